@@ -1,0 +1,3 @@
+from fieldcheck.cli import main
+
+raise SystemExit(main())
