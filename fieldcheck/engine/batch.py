@@ -1,0 +1,160 @@
+"""PostBatch: the engine's input, a struct of numpy arrays in fixed SI units.
+
+Units inside the engine, always: lengths in mm, forces in N, stresses in MPa (N/mm^2),
+moisture in percent, temperature in degrees C. One PostBatch holds n posts; every field is
+an array of length n (scalars given to :func:`make_batch` are broadcast). A single post is a
+batch of length one: there is no separate single-post path.
+
+Axis convention: axis 1 buckles in the plane of ``d1_mm`` (the larger side), axis 2 in the
+plane of ``d2_mm`` (the smaller side, and the total thickness of a built-up post). For a
+round post both are the side of the equivalent square (NDS 2018 §3.7.2).
+
+A NaN in an optional field means "not given": the check that needs it is skipped (and the
+rating says so), never silently filled with a guess.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field, fields
+
+import numpy as np
+
+# End conditions, per end (NDS 2018 Appendix G, Table G1 cases).
+PINNED, FIXED, FREE, GUIDED = 0, 1, 2, 3
+END_NAMES = ("pinned", "fixed", "free", "guided")
+
+# Design method.
+ASD, LRFD, EC5 = 0, 1, 2
+METHOD_NAMES = ("asd", "lrfd", "ec5")
+
+# Product class: decides the column constant c, the wet-service table and the size rules.
+DIMENSION, TIMBER, POLE, GLULAM = 0, 1, 2, 3
+PRODUCT_NAMES = ("dimension", "timber", "pole", "glulam")
+
+# Section shape.
+RECT, ROUND, BUILT_UP = 0, 1, 2
+
+
+def _f(default: float = np.nan):
+    return field(default_factory=lambda: np.array([default], dtype=np.float64), metadata={"default": default})
+
+
+def _i(default: int = 0):
+    return field(default_factory=lambda: np.array([default], dtype=np.int8), metadata={"default": default})
+
+
+def _b(default: bool = False):
+    return field(default_factory=lambda: np.array([default], dtype=bool), metadata={"default": default})
+
+
+@dataclass
+class PostBatch:
+    """n posts as arrays. Build with :func:`make_batch`, not directly."""
+
+    # --- section (measured; NDS 2018 §3.7.1.3: d is the dimension in the plane of buckling)
+    d1_mm: np.ndarray = _f()
+    d2_mm: np.ndarray = _f()
+    shape: np.ndarray = _i(RECT)
+    plies: np.ndarray = _i(1)
+    kf: np.ndarray = _f(1.0)  # NDS 2018 §15.3: 0.6 nailed, 0.75 bolted, 1.0 solid (axis 2 only)
+
+    # --- height and bracing
+    height_mm: np.ndarray = _f()
+    lu1_mm: np.ndarray = _f()  # unbraced length about axis 1 (NaN: the full height)
+    lu2_mm: np.ndarray = _f()
+    braced1: np.ndarray = _b()  # a brace point lies between the ends in axis 1
+    braced2: np.ndarray = _b()
+
+    # --- ends (NDS 2018 Appendix G)
+    top: np.ndarray = _i(PINNED)
+    bottom: np.ndarray = _i(PINNED)
+    ke1: np.ndarray = _f()  # effective-length factor override per axis (NaN: from the ends)
+    ke2: np.ndarray = _f()
+    theoretical_k: np.ndarray = _b()  # use theoretical K instead of the recommended design Ke
+
+    # --- material reference values (NDS Supplement or EN 338), before adjustment
+    fc_mpa: np.ndarray = _f()  # Fc (NDS) or f_c,0,k (EN 338)
+    fc_perp_mpa: np.ndarray = _f()  # Fc-perp of the post itself (or f_c,90,k)
+    fb_mpa: np.ndarray = _f()  # Fb (or f_m,k)
+    e_mpa: np.ndarray = _f()  # E (or E_0,mean)
+    emin_mpa: np.ndarray = _f()  # Emin (or E_0,05)
+    cf_fc: np.ndarray = _f(1.0)  # size factor CF for Fc (NDS Supplement Table 4A)
+    cf_fb: np.ndarray = _f(1.0)  # size factor CF for Fb
+    product: np.ndarray = _i(DIMENSION)
+    wet_tabulated: np.ndarray = _b()  # values already for wet service (no further CM)
+    knowledge: np.ndarray = _f(1.0)  # knowledge factor kappa (ASCE 41), 0.75 for default values
+
+    # --- service conditions
+    method: np.ndarray = _i(ASD)
+    cd: np.ndarray = _f(1.0)  # NDS 2018 Table 2.3.2 (ASD only)
+    lam: np.ndarray = _f(0.8)  # NDS 2018 Appendix N Table N3 time effect factor (LRFD only)
+    kmod: np.ndarray = _f(0.8)  # EN 1995-1-1 Table 3.1 (EC5 only)
+    gamma_m: np.ndarray = _f(1.3)  # EN 1995-1-1 Table 2.3 (EC5 only)
+    moisture_pct: np.ndarray = _f()  # NaN: not measured, dry service assumed (with a warning)
+    temp_c: np.ndarray = _f()  # NaN: normal temperature (<= 38 C)
+    incised: np.ndarray = _b()
+    construction: np.ndarray = _b()  # construction-stage member: le/d limit 75 not 50
+
+    # --- load (ASD: service load; LRFD: factored load; EC5: design load)
+    load_n: np.ndarray = _f()
+
+    # --- bearing at the ends (NDS 2018 §3.10)
+    end_contact: np.ndarray = _f(1.0)  # fraction of the end area in contact
+    end_plate: np.ndarray = _b()  # ends bear on a steel plate (NDS 2018 §3.10.1.3)
+    top_fc_perp_mpa: np.ndarray = _f()  # Fc-perp of the cap or beam above (NaN: not checked)
+    top_lb_mm: np.ndarray = _f()  # bearing length along the cap's grain (NaN: post dimension)
+    top_cb: np.ndarray = _b()  # bearing >= 3 in from the cap's end, so Cb may exceed 1
+    bottom_fc_perp_mpa: np.ndarray = _f()  # Fc-perp of the sill or plate below
+    bottom_lb_mm: np.ndarray = _f()
+    bottom_cb: np.ndarray = _b()
+    bearing_wet: np.ndarray = _b()  # the cap or sill is in wet service (CM = 0.67 on Fc-perp)
+
+    @property
+    def n(self) -> int:
+        return int(self.d1_mm.shape[0])
+
+    def take(self, idx) -> PostBatch:
+        """A new batch holding the posts at ``idx`` (an index array, slice or mask)."""
+        return PostBatch(**{f.name: getattr(self, f.name)[idx] for f in fields(self)})
+
+    def replace(self, **changes) -> PostBatch:
+        """A copy with some fields replaced (scalars are broadcast)."""
+        out = {f.name: getattr(self, f.name) for f in fields(self)}
+        for k, v in changes.items():
+            cur = out[k]
+            out[k] = np.broadcast_to(np.asarray(v, dtype=cur.dtype), cur.shape).copy()
+        return PostBatch(**out)
+
+    @staticmethod
+    def concat(batches: list[PostBatch]) -> PostBatch:
+        return PostBatch(
+            **{f.name: np.concatenate([getattr(b, f.name) for b in batches]) for f in fields(PostBatch)}
+        )
+
+
+FIELD_NAMES = tuple(f.name for f in fields(PostBatch))
+_DEFAULTS = {f.name: f.metadata["default"] for f in fields(PostBatch)}
+_DTYPES = {f.name: f.default_factory().dtype for f in fields(PostBatch)}  # type: ignore[misc]
+
+
+def make_batch(n: int | None = None, **values) -> PostBatch:
+    """Build a PostBatch; every field not given takes its default, scalars are broadcast.
+
+    ``n`` is taken from the longest array given when not stated.
+    """
+    unknown = set(values) - set(FIELD_NAMES)
+    if unknown:
+        raise TypeError(f"unknown PostBatch fields: {sorted(unknown)}")
+    if n is None:
+        sizes = [np.size(v) for v in values.values() if np.ndim(v) > 0]
+        n = max(sizes) if sizes else 1
+    out = {}
+    for name in FIELD_NAMES:
+        v = values.get(name, _DEFAULTS[name])
+        arr = np.asarray(v, dtype=_DTYPES[name])
+        if arr.ndim == 0:
+            arr = np.full(n, arr, dtype=_DTYPES[name])
+        elif arr.shape != (n,):
+            raise ValueError(f"field {name} has shape {arr.shape}, expected ({n},)")
+        out[name] = arr
+    return PostBatch(**out)
