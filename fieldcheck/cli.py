@@ -1,0 +1,80 @@
+"""Command line: `fieldcheck [--db PATH]` opens the interface; subcommands do the rest.
+
+Thin on purpose: parse arguments, call the library, print. Errors the user can fix are one
+sentence on stderr and exit code 2, never a traceback.
+"""
+
+from __future__ import annotations
+
+import argparse
+import importlib
+import sys
+
+from fieldcheck import __version__
+from fieldcheck.commands import COMMANDS
+
+
+class UsageError(Exception):
+    """A problem with what the user asked for: printed as one sentence, exit code 2."""
+
+
+class _Parser(argparse.ArgumentParser):
+    def error(self, message: str) -> None:  # one sentence, exit 2 (argparse's own code too)
+        self.exit(2, f"fieldcheck: {message}. See `{self.prog} --help`.\n")
+
+
+def build_parser(only: str | None = None) -> argparse.ArgumentParser:
+    p = _Parser(
+        prog="fieldcheck",
+        description="Rate existing timber posts and temporary wood shores on site. A screening aid "
+        "for a competent person: local codes, the authority having jurisdiction and a licensed "
+        "engineer govern.",
+    )
+    p.add_argument("--version", action="version", version=f"fieldcheck {__version__}")
+    p.add_argument("--db", metavar="PATH", help="survey log to open (default: your data folder)")
+    p.add_argument(
+        "--units", choices=("us", "metric"), default=None, help="unit system for display"
+    )
+    sub = p.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
+    for name, (module, help_) in COMMANDS.items():
+        if only is not None and name != only:
+            sub.add_parser(name, help=help_, add_help=False)
+            continue
+        try:
+            mod = importlib.import_module(f"fieldcheck.commands.{module}")
+        except ModuleNotFoundError as exc:
+            if exc.name != f"fieldcheck.commands.{module}":
+                raise
+            continue
+        sp = sub.add_parser(name, help=help_, description=getattr(mod, "DESCRIPTION", help_))
+        mod.add_arguments(sp)
+        sp.set_defaults(_run=mod.run)
+    return p
+
+
+def main(argv: list[str] | None = None) -> int:
+    argv = sys.argv[1:] if argv is None else argv
+    command = next((a for a in argv if a in COMMANDS), None)
+    parser = build_parser(only=command)
+    args = parser.parse_args(argv)
+    try:
+        if args.command is None:
+            return _open_interface(args)
+        return int(args._run(args) or 0)
+    except UsageError as exc:
+        print(f"fieldcheck: {exc}", file=sys.stderr)
+        return 2
+    except ValueError as exc:  # bad input from the engine or the unit parser
+        print(f"fieldcheck: {exc}", file=sys.stderr)
+        return 2
+    except KeyboardInterrupt:
+        return 130
+
+
+def _open_interface(args: argparse.Namespace) -> int:
+    try:
+        tui = importlib.import_module("fieldcheck.tui.app")
+    except ModuleNotFoundError:
+        print("fieldcheck: the interface is not built yet; rate a post with `fieldcheck rate --help`.")
+        return 0
+    return int(tui.run(db=args.db, units=args.units) or 0)
