@@ -1,0 +1,133 @@
+"""Species and grade reference values and the NDS adjustment factors that depend on them.
+
+Lookups here run once per distinct (species, grade, size) and are cached; the per-post
+arithmetic on arrays lives in nds.py. Values come from data/nds_reference_values.csv (psi) and
+are returned in MPa.
+"""
+
+from __future__ import annotations
+
+from functools import cache
+
+import numpy as np
+
+from fieldcheck.engine.refdata import table
+
+PSI = 0.006894757293168361  # MPa per psi (1 lbf/in^2 = 4.4482216152605 N / 645.16 mm^2)
+
+SPECIES = ("douglas-fir-larch", "hem-fir", "spruce-pine-fir", "southern-pine")
+SPECIES_ALIASES = {
+    "douglas-fir-larch": "douglas-fir-larch", "df-l": "douglas-fir-larch", "dfl": "douglas-fir-larch",
+    "douglas-fir": "douglas-fir-larch", "df": "douglas-fir-larch", "hem-fir": "hem-fir",
+    "hf": "hem-fir", "spruce-pine-fir": "spruce-pine-fir", "spf": "spruce-pine-fir",
+    "southern-pine": "southern-pine", "sp": "southern-pine", "syp": "southern-pine",
+    "southern-yellow-pine": "southern-pine", "unknown": "unknown", "?": "unknown",
+}
+GRADES = ("select-structural", "no1-btr", "no1", "no2", "no3", "stud", "construction", "standard")
+GRADE_ALIASES = {
+    "select-structural": "select-structural", "ss": "select-structural", "sel-str": "select-structural",
+    "no1-btr": "no1-btr", "no1&btr": "no1-btr", "no1-and-better": "no1-btr",
+    "no1": "no1", "no.1": "no1", "#1": "no1", "1": "no1", "no2": "no2", "no.2": "no2", "#2": "no2",
+    "2": "no2", "no3": "no3", "no.3": "no3", "#3": "no3", "3": "no3", "stud": "stud",
+    "construction": "construction", "const": "construction", "standard": "standard", "std": "standard",
+    "unknown": "unknown", "?": "unknown",
+}
+# Lowest structural grade assumed when the grade is unknown (field-practice.md §3.2; judgement).
+DEFAULT_GRADE = "no2"
+# Knowledge factor with default (assumed) values: ASCE 41 data-collection table (secondary).
+KAPPA_DEFAULT_VALUES = 0.75
+
+
+def _key(text: str) -> str:
+    return "-".join(text.strip().lower().replace("_", "-").replace(" ", "-").split("-")).strip("-")
+
+
+def normalise_species(text: str) -> str:
+    key = SPECIES_ALIASES.get(_key(text))
+    if key is None:
+        raise ValueError(
+            f"species: '{text}' is not a species group we hold; use one of {', '.join(SPECIES)} or unknown."
+        )
+    return key
+
+
+def normalise_grade(text: str) -> str:
+    key = GRADE_ALIASES.get(_key(text).replace(".", "") if _key(text) not in GRADE_ALIASES else _key(text))
+    if key is None:
+        raise ValueError(
+            f"grade: '{text}' is not a grade we hold; use one of {', '.join(GRADES)} (no2, ss, stud ...) or unknown."
+        )
+    return key
+
+
+@cache
+def _rows() -> dict[tuple[str, str, str], dict[str, str]]:
+    return {(r["species"], r["grade"], r["category"]): r for r in table("nds_reference_values")}
+
+
+@cache
+def reference_values(species: str, grade: str, category: str) -> dict[str, float | str | bool]:
+    """Reference values in MPa for a species group, grade and category (dimension | timber).
+
+    ``species`` or ``grade`` 'unknown': the lowest value of each property over every species group
+    we hold, at the lowest structural grade (No.2), with the knowledge factor for default values
+    (field-practice.md §3.2, ASCE 41 data-collection levels; judgement).
+    """
+    if species == "unknown" or grade == "unknown":
+        g = DEFAULT_GRADE if grade == "unknown" else grade
+        pool = [r for (s, gr, c), r in _rows().items() if gr == g and c == category]
+        if species != "unknown":
+            pool = [r for r in pool if r["species"] == species]
+        if not pool:
+            raise ValueError(f"grade: no {category} values held for grade {g}; choose another grade.")
+        out = {p: min(float(r[f"{p}_psi"]) for r in pool) * PSI for p in ("fb", "fc", "fc_perp", "e", "emin")}
+        out.update(
+            g=min(float(r["g"]) for r in pool), wet_tabulated=False, knowledge=KAPPA_DEFAULT_VALUES,
+            table="lowest of " + ", ".join(sorted({r["table"] for r in pool})),
+            status="memory", assumed=True,
+        )
+        return out
+    row = _rows().get((species, grade, category))
+    if row is None:
+        held = sorted({gr for (s, gr, c) in _rows() if s == species and c == category})
+        raise ValueError(
+            f"grade: {species} {grade} is not held for {category} sizes; held grades: {', '.join(held)}."
+        )
+    out = {p: float(row[f"{p}_psi"]) * PSI for p in ("fb", "fc", "fc_perp", "e", "emin")}
+    out.update(
+        g=float(row["g"]), wet_tabulated=row["wet_tabulated"] == "1", knowledge=1.0,
+        table=row["table"], status=row["status"], assumed=False,
+    )
+    return out
+
+
+@cache
+def size_factors(species: str, grade: str, nominal_width_in: int, thickness_in: int) -> tuple[float, float]:
+    """(CF for Fc, CF for Fb) for dimension lumber (NDS Supplement Table 4A size factors).
+
+    Southern Pine (Table 4B) and timbers (Table 4D, Fc) take 1.0. Stud grade wider than 6 in takes
+    the No.3 factors (the table's own rule), which are the 'structural' row here.
+    """
+    if species == "southern-pine" or thickness_in >= 5:
+        return 1.0, 1.0
+    g = grade if grade != "unknown" else DEFAULT_GRADE
+    group = {"stud": "stud", "construction": "construction", "standard": "construction"}.get(g, "structural")
+    if group == "stud" and nominal_width_in > 6:
+        group = "structural"
+    rows = [r for r in table("nds_size_factors") if r["grade_group"] == group]
+    for r in rows:
+        if nominal_width_in <= float(r["max_width_in"]):
+            fb_col = "cf_fb_thick_4" if thickness_in >= 4 else "cf_fb_thick_2_3"
+            return float(r["cf_fc"]), float(r[fb_col])
+    raise ValueError(f"size: {grade} is not graded at {nominal_width_in} in nominal width.")
+
+
+def fc_perp_of(species: str) -> float:
+    """Fc-perp (MPa) of a species group, for a cap, beam or sill it bears on (same for all grades)."""
+    if species == "unknown":
+        return min(float(r["fc_perp_psi"]) for r in _rows().values()) * PSI
+    return min(float(r["fc_perp_psi"]) for (s, _, _), r in _rows().items() if s == species) * PSI
+
+
+def as_array(values: list[float]) -> np.ndarray:
+    return np.asarray(values, dtype=np.float64)

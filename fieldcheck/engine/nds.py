@@ -1,0 +1,91 @@
+"""NDS 2018 checks for posts, vectorised (ASD and LRFD). SI inside: mm, N, MPa.
+
+Every function takes and returns numpy arrays of length n. Clauses are ANSI/AWC NDS-2018 and
+its Supplement unless stated.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from fieldcheck.engine.batch import DIMENSION, GLULAM, POLE, TIMBER
+
+IN = 25.4
+PSI = 0.006894757293168361  # MPa per psi
+
+# LRFD format conversion and resistance factors (NDS 2018 Table 4.3.1 and Appendix N; from memory
+# except KF = 2.16/phi for Fc, which column-design.md §1.2 supports).
+KF_FC, PHI_C = 2.40, 0.90
+KF_EMIN, PHI_S = 1.76, 0.85
+KF_FCP, PHI_FCP = 1.67, 0.90
+KF_FB, PHI_B = 2.54, 0.85
+
+# Column constant c by product (NDS 2018 §3.7.1): sawn 0.8, round poles 0.85, glulam/SCL 0.9.
+C_BY_PRODUCT = np.array([0.8, 0.8, 0.85, 0.9])
+assert (DIMENSION, TIMBER, POLE, GLULAM) == (0, 1, 2, 3)
+
+# le/d limits (NDS 2018 §3.7.1.4): 50, or 75 during construction.
+LE_D_LIMIT, LE_D_LIMIT_CONSTRUCTION = 50.0, 75.0
+FCE_COEFF = 0.822  # NDS 2018 §3.7.1 (= pi^2/12 to 0.06 %)
+END_BEARING_PLATE_RATIO = 0.75  # NDS 2018 §3.10.1.3
+CB_REACH_MM = 0.375 * IN  # NDS 2018 §3.10.4: Cb = (lb + 0.375 in)/lb
+CB_MAX_LB_MM = 6.0 * IN
+
+
+def column_stability_factor(fce: np.ndarray, fc_star: np.ndarray, c: np.ndarray) -> np.ndarray:
+    """Cp (NDS 2018 §3.7.1, Eq. 3.7-1), Ylinen's column curve."""
+    a = fce / fc_star
+    h = (1.0 + a) / (2.0 * c)
+    return h - np.sqrt(h * h - a / c)
+
+
+def euler_stress(emin_prime: np.ndarray, le_d: np.ndarray) -> np.ndarray:
+    """FcE = 0.822 Emin' / (le/d)^2 (NDS 2018 §3.7.1)."""
+    return FCE_COEFF * emin_prime / (le_d * le_d)
+
+
+def wet_service_factors(product, fc, cf_fc, fb, cf_fb, wet, wet_tabulated):
+    """CM for Fc, Fc-perp, E/Emin, Fb (NDS Supplement Tables 4A and 4D adjustment factors).
+
+    Dimension lumber: Fc 0.8 (1.0 when Fc CF <= 750 psi), Fc-perp 0.67, E 0.9, Fb 0.85 (1.0 when
+    Fb CF <= 1150 psi). Timbers: Fc 0.91, Fc-perp 0.67, E 1.0, Fb 1.0. Values already tabulated
+    for wet service take 1.0.
+    """
+    timber = product != DIMENSION
+    cm_fc = np.where(timber, 0.91, np.where(fc * cf_fc <= 750 * PSI, 1.0, 0.8))
+    cm_fb = np.where(timber, 1.0, np.where(fb * cf_fb <= 1150 * PSI, 1.0, 0.85))
+    cm_e = np.where(timber, 1.0, 0.9)
+    apply = wet & ~wet_tabulated
+    one = 1.0
+    return (
+        np.where(apply, cm_fc, one),
+        np.where(apply, 0.67, one),
+        np.where(apply, cm_e, one),
+        np.where(apply, cm_fb, one),
+    )
+
+
+def temperature_factors(temp_c: np.ndarray, wet: np.ndarray):
+    """Ct for Fc/Fb/Fc-perp and for E/Emin (NDS 2018 §2.3.3, Table 2.3.3; from memory).
+
+    T <= 100 F (37.8 C): 1.0; 100 F < T <= 125 F (51.7 C): 0.8 dry / 0.7 wet, E 0.9;
+    125 F < T <= 150 F (65.6 C): 0.7 dry / 0.5 wet, E 0.9. NaN temperature: normal (1.0).
+    """
+    t = np.nan_to_num(temp_c, nan=20.0)
+    mid = (t > 37.8) & (t <= 51.7)
+    hot = t > 51.7
+    ct_f = np.where(mid, np.where(wet, 0.7, 0.8), np.where(hot, np.where(wet, 0.5, 0.7), 1.0))
+    ct_e = np.where(mid | hot, 0.9, 1.0)
+    return ct_f, ct_e
+
+
+def incising_factors(incised: np.ndarray):
+    """Ci for Fc/Fb and for E/Emin (NDS 2018 §4.3.8, Table 4.3.8): 0.80 and 0.95; Fc-perp 1.0."""
+    return np.where(incised, 0.80, 1.0), np.where(incised, 0.95, 1.0)
+
+
+def bearing_area_factor(lb_mm: np.ndarray, eligible: np.ndarray) -> np.ndarray:
+    """Cb = (lb + 0.375 in)/lb for lb < 6 in and bearing >= 3 in from the member end, else 1.0
+    (NDS 2018 §3.10.4)."""
+    ok = eligible & (lb_mm < CB_MAX_LB_MM) & (lb_mm > 0)
+    return np.where(ok, (lb_mm + CB_REACH_MM) / np.where(ok, lb_mm, 1.0), 1.0)

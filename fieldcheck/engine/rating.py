@@ -1,0 +1,339 @@
+"""PostBatch -> Rating: every check, the governing check, the ratio, an action, the working.
+
+One pass over arrays rates one post or a million. Per-post text (warnings, working, the JSON
+summary) is produced on demand for the posts a person looks at, never for the whole batch.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from fieldcheck.engine import nds
+from fieldcheck.engine.batch import EC5, LRFD, METHOD_NAMES, PostBatch
+from fieldcheck.engine.cautions import CAUTIONS
+from fieldcheck.engine.restraint import MODE_KEYS, MODES, SWAY, mode_index
+from fieldcheck.engine.restraint import ke as ke_from_ends
+
+LBF = 4.4482216152605  # N per lbf
+IN = 25.4
+
+# Action categories (our own wording; ratio bands are judgement, field-practice.md §8 #120).
+ACTIONS = ("no-action", "monitor", "repair-or-brace", "make-safe-now")
+ACTION_TEXT = (
+    "No action: adequate as found.",
+    "Monitor: adequate, but re-inspect at the next visit and after any change.",
+    "Repair or brace before the due date; restrict the load until then.",
+    "Make safe now: clear the area under the load and call the engineer.",
+)
+DUE_DAYS = (None, 90, 14, 0)  # judgement defaults, editable later
+RATIO_BANDS = (0.8, 1.0, 1.25)  # <= 0.8 none, <= 1.0 monitor, <= 1.25 repair, above: make safe
+
+# Warning flags (bit positions). Condition, load and ground modules add theirs after these.
+FLAG_TEXT: dict[int, str] = {}
+
+
+def _flag(bit: int, text: str) -> int:
+    FLAG_TEXT[bit] = text
+    return 1 << bit
+
+
+F_NO_LOAD = _flag(0, "No load given: the capacity is shown, but no decision can be made without the load.")
+F_SLENDER_CONSTRUCTION = _flag(
+    1, "le/d exceeds 50: admissible only as a construction-stage member (NDS 2018 §3.7.1.4 allows 75)."
+)
+F_SLENDER_LIMIT = _flag(
+    2, "le/d exceeds the NDS 2018 §3.7.1.4 limit (50, or 75 during construction): brace it or replace it."
+)
+F_END_PLATE = _flag(
+    3, "End-grain bearing stress exceeds 0.75 Fc*: bear the end on a steel plate (NDS 2018 §3.10.1.3)."
+)
+F_DRY_ASSUMED = _flag(4, "Moisture not measured: dry service (19 % or less) assumed.")
+F_WET = _flag(5, "Wet service: moisture above 19 %, wet-service factors CM applied (NDS Supplement).")
+F_ASSUMED_MATERIAL = _flag(
+    6, "Species or grade unknown: lowest plausible values and a knowledge factor applied (ASCE 41)."
+)
+F_CAP_UNCHECKED = _flag(7, "Bearing on the cap or beam above not checked: give what it is.")
+F_SILL_UNCHECKED = _flag(8, "Bearing on the sill or plate below not checked: give what it is.")
+F_THEORETICAL_K = _flag(9, "Theoretical K used instead of the NDS recommended design Ke, as you chose.")
+F_SWAY_BRACES = _flag(
+    10, "Braces ignored for a sway case (the ends can move sideways): full height used, conservative."
+)
+F_MECHANISM = _flag(11, "The end conditions make a mechanism: the post cannot carry load as described.")
+F_BUILT_UP = _flag(12, "Built-up post: Kf applied about the axis across the plies (NDS 2018 §15.3).")
+
+
+@dataclass
+class Check:
+    name: str
+    label: str
+    clause: str
+    capacity_n: np.ndarray
+    demand_n: np.ndarray
+
+    @property
+    def ratio(self) -> np.ndarray:
+        with np.errstate(divide="ignore", invalid="ignore"):
+            return self.demand_n / self.capacity_n
+
+
+@dataclass
+class Step:
+    """One line of the working: what, its value and unit, and where it comes from."""
+
+    label: str
+    value: str
+    clause: str = ""
+
+
+@dataclass
+class Rating:
+    batch: PostBatch
+    checks: dict[str, Check]
+    capacity_n: np.ndarray
+    demand_n: np.ndarray
+    ratio: np.ndarray
+    governing: np.ndarray  # index into check_names
+    action: np.ndarray
+    flags: np.ndarray
+    values: dict[str, np.ndarray] = field(default_factory=dict)  # intermediates by name
+
+    @property
+    def check_names(self) -> tuple[str, ...]:
+        return tuple(self.checks)
+
+    @property
+    def n(self) -> int:
+        return self.batch.n
+
+    def __getattr__(self, name: str) -> np.ndarray:
+        values = self.__dict__.get("values", {})
+        if name in values:
+            return values[name]
+        raise AttributeError(name)
+
+    # ---- per post, on demand -------------------------------------------------------------
+    def governing_name(self, i: int) -> str:
+        return self.check_names[int(self.governing[i])]
+
+    def warnings(self, i: int) -> list[str]:
+        f = int(self.flags[i])
+        return [text for bit, text in sorted(FLAG_TEXT.items()) if f >> bit & 1]
+
+    def working(self, i: int) -> list[Step]:
+        from fieldcheck.engine.working import working_steps
+
+        return working_steps(self, i)
+
+    def summary(self, i: int) -> dict:
+        """The JSON object of `fieldcheck rate --json` for post i (ARCHITECTURE.md §4 keys)."""
+        v = self.values
+        ax = int(v["axis"][i])
+        ratio = float(self.ratio[i])
+        cap = float(self.capacity_n[i])
+        checks = []
+        for name, c in self.checks.items():
+            capn = float(c.capacity_n[i])
+            if np.isnan(capn):
+                continue
+            r = float(c.ratio[i])
+            checks.append({
+                "name": name, "label": c.label, "capacity_kN": round(capn / 1000.0, 4),
+                "capacity_lbf": round(capn / LBF, 1), "demand_kN": _num(c.demand_n[i] / 1000.0, 4),
+                "ratio": _num(r, 4), "clause": c.clause,
+            })
+        act = int(self.action[i])
+        return {
+            "method": METHOD_NAMES[int(self.batch.method[i])],
+            "allowable_load_lbf": round(cap / LBF, 1),
+            "allowable_load_kN": round(cap / 1000.0, 4),
+            "demand_lbf": _num(self.demand_n[i] / LBF, 1),
+            "demand_kN": _num(self.demand_n[i] / 1000.0, 4),
+            "demand_capacity_ratio": _num(ratio, 4),
+            "governing_check": self.governing_name(i),
+            "governing_axis": ax,
+            "effective_length_factor": round(float(v["ke1" if ax == 1 else "ke2"][i]), 4),
+            "effective_length_factors": [round(float(v["ke1"][i]), 4), round(float(v["ke2"][i]), 4)],
+            "slenderness_ratio": round(float(v["le_d_max"][i]), 3),
+            "slenderness_ratios": [round(float(v["le_d1"][i]), 3), round(float(v["le_d2"][i]), 3)],
+            "slenderness_limit": float(v["le_d_limit"][i]),
+            "stability_factor": round(float(v["cp"][i]), 6),
+            "within_slenderness_limit": bool(v["le_d_max"][i] <= v["le_d_limit"][i]),
+            "action": ACTIONS[act],
+            "action_text": ACTION_TEXT[act],
+            "due_days": DUE_DAYS[act],
+            "checks": checks,
+            "warnings": self.warnings(i),
+            "cautions": list(CAUTIONS),
+        }
+
+
+def _num(x: float, nd: int) -> float | None:
+    x = float(x)
+    return None if np.isnan(x) else round(x, nd)
+
+
+def _nan_to(a: np.ndarray, v: float) -> np.ndarray:
+    return np.where(np.isnan(a), v, a)
+
+
+def rate(b: PostBatch) -> Rating:
+    """Rate every post of the batch in one pass."""
+    n = b.n
+    lrfd = b.method == LRFD
+    measured = ~np.isnan(b.moisture_pct)
+    wet = measured & (b.moisture_pct > 19.0)  # NDS Supplement: dry service is 19 % or less
+
+    # ---- adjusted design values (NDS 2018 Table 4.3.1) --------------------------------------
+    cm_fc, cm_fcp, cm_e, cm_fb = nds.wet_service_factors(
+        b.product, b.fc_mpa, b.cf_fc, b.fb_mpa, b.cf_fb, wet, b.wet_tabulated
+    )
+    ct_f, ct_e = nds.temperature_factors(b.temp_c, wet)
+    ci_f, ci_e = nds.incising_factors(b.incised)
+    # ASD: x CD (NDS 2018 §2.3.2); LRFD: x KF phi lambda (NDS 2018 Appendix N)
+    time_fc = np.where(lrfd, nds.KF_FC * nds.PHI_C * b.lam, b.cd)
+    fc_star = b.fc_mpa * cm_fc * ct_f * b.cf_fc * ci_f * time_fc  # NDS 2018 §3.7.1: Fc*
+    emin_p = b.emin_mpa * cm_e * ct_e * ci_e * np.where(lrfd, nds.KF_EMIN * nds.PHI_S, 1.0)
+
+    # ---- effective lengths (NDS 2018 §3.7.1.2, Appendix G) ----------------------------------
+    mode = mode_index(b.bottom, b.top)
+    sway = SWAY[np.where(mode < 0, 0, mode)] & (mode >= 0)
+    k_ends = ke_from_ends(b.bottom, b.top, b.theoretical_k)
+    h = b.height_mm
+    lu1 = np.where(sway | np.isnan(b.lu1_mm), h, b.lu1_mm)
+    lu2 = np.where(sway | np.isnan(b.lu2_mm), h, b.lu2_mm)
+    # between brace points a braced (no-sway) segment is taken as pinned-pinned, Ke = 1.0
+    ke1 = np.where(np.isnan(b.ke1), np.where(b.braced1 & ~sway, 1.0, k_ends), b.ke1)
+    ke2 = np.where(np.isnan(b.ke2), np.where(b.braced2 & ~sway, 1.0, k_ends), b.ke2)
+    le_d1 = ke1 * lu1 / b.d1_mm
+    le_d2 = ke2 * lu2 / b.d2_mm
+
+    # ---- column stability (NDS 2018 §3.7.1; built-up §15.3) ---------------------------------
+    c = nds.C_BY_PRODUCT[b.product]
+    fce1 = nds.euler_stress(emin_p, le_d1)
+    fce2 = nds.euler_stress(emin_p, le_d2)
+    cp1 = nds.column_stability_factor(fce1, fc_star, c)
+    cp2 = b.kf * nds.column_stability_factor(fce2, fc_star, c)  # NDS 2018 §15.3.2: Kf
+    axis2 = cp2 < cp1
+    cp = np.where(axis2, cp2, cp1)
+    area = b.d1_mm * b.d2_mm
+    kappa = b.knowledge
+    p_column = cp * fc_star * area * kappa
+
+    # ---- end-grain bearing on the post (NDS 2018 §3.10.1) ------------------------------------
+    a_contact = area * b.end_contact
+    p_end = fc_star * a_contact * kappa
+
+    # ---- bearing perpendicular to grain on the cap and the sill (NDS 2018 §3.10.2, §3.10.4) --
+    # CD does not apply to Fc-perp (NDS 2018 Table 2.3.2 footnote); LRFD KF phi (Appendix N);
+    # lambda on Fc-perp applied only where it reduces (judgement: not verified).
+    perp_time = np.where(lrfd, nds.KF_FCP * nds.PHI_FCP * np.minimum(b.lam, 1.0), 1.0)
+    cm_bear = np.where(b.bearing_wet, 0.67, 1.0)
+    lb_top = _nan_to(b.top_lb_mm, 0.0)
+    lb_top = np.where(lb_top > 0, lb_top, b.d1_mm)
+    lb_bot = _nan_to(b.bottom_lb_mm, 0.0)
+    lb_bot = np.where(lb_bot > 0, lb_bot, b.d1_mm)
+    cb_top = nds.bearing_area_factor(lb_top, b.top_cb)
+    cb_bot = nds.bearing_area_factor(lb_bot, b.bottom_cb)
+    p_cap = b.top_fc_perp_mpa * cm_bear * ct_f * perp_time * cb_top * a_contact
+    p_sill = b.bottom_fc_perp_mpa * cm_bear * ct_f * perp_time * cb_bot * a_contact
+
+    load = b.load_n
+    checks = {
+        "column": Check("column", "column buckling and crushing", "NDS 2018 §3.7.1", p_column, load),
+        "end_bearing": Check("end_bearing", "end-grain bearing of the post", "NDS 2018 §3.10.1", p_end, load),
+        "cap_bearing": Check(
+            "cap_bearing", "bearing on the cap or beam above", "NDS 2018 §3.10.2, §3.10.4", p_cap, load
+        ),
+        "sill_bearing": Check(
+            "sill_bearing", "bearing on the sill or plate below", "NDS 2018 §3.10.2, §3.10.4", p_sill, load
+        ),
+    }
+    values = {
+        "fc_star": fc_star, "emin_prime": emin_p, "cm_fc": cm_fc, "cm_e": cm_e, "ct_f": ct_f,
+        "ct_e": ct_e, "ci_f": ci_f, "ci_e": ci_e, "time_fc": time_fc, "mode": mode, "ke1": ke1,
+        "ke2": ke2, "lu1": lu1, "lu2": lu2, "le_d1": le_d1, "le_d2": le_d2, "fce1": fce1,
+        "fce2": fce2, "cp1": cp1, "cp2": cp2, "cp": cp, "c": c, "area": area,
+        "axis": np.where(axis2, 2, 1).astype(np.int8), "cb_top": cb_top, "cb_bot": cb_bot,
+        "perp_time": perp_time, "cm_bear": cm_bear, "a_contact": a_contact,
+    }
+    if np.any(b.method == EC5):
+        from fieldcheck.engine.ec5_rating import apply_ec5
+
+        apply_ec5(b, checks, values)
+
+    # ---- slenderness limit (NDS 2018 §3.7.1.4) ----------------------------------------------
+    le_d_max = np.maximum(values["le_d1"], values["le_d2"])
+    limit = np.where(b.construction, nds.LE_D_LIMIT_CONSTRUCTION, nds.LE_D_LIMIT)
+    values["le_d_max"], values["le_d_limit"] = le_d_max, limit
+
+    flags = np.zeros(n, dtype=np.int64)
+    has_load = ~np.isnan(load)
+    flags |= np.where(has_load, 0, F_NO_LOAD)
+    flags |= np.where(b.construction & (le_d_max > nds.LE_D_LIMIT) & (le_d_max <= limit), F_SLENDER_CONSTRUCTION, 0)
+    over = le_d_max > limit
+    flags |= np.where(over, F_SLENDER_LIMIT, 0)
+    flags |= np.where(
+        ~b.end_plate & has_load & (load > nds.END_BEARING_PLATE_RATIO * fc_star * a_contact), F_END_PLATE, 0
+    )
+    flags |= np.where(measured, 0, F_DRY_ASSUMED)
+    flags |= np.where(wet, F_WET, 0)
+    flags |= np.where(kappa < 1.0, F_ASSUMED_MATERIAL, 0)
+    flags |= np.where(np.isnan(b.top_fc_perp_mpa), F_CAP_UNCHECKED, 0)
+    flags |= np.where(np.isnan(b.bottom_fc_perp_mpa), F_SILL_UNCHECKED, 0)
+    flags |= np.where(b.theoretical_k, F_THEORETICAL_K, 0)
+    flags |= np.where(sway & (b.braced1 | b.braced2), F_SWAY_BRACES, 0)
+    flags |= np.where(mode < 0, F_MECHANISM, 0)
+    flags |= np.where(b.kf < 1.0, F_BUILT_UP, 0)
+
+    rating = Rating(
+        batch=b, checks=checks, capacity_n=p_column, demand_n=load, ratio=p_column,
+        governing=np.zeros(n, dtype=np.int8), action=np.zeros(n, dtype=np.int8), flags=flags,
+        values=values,
+    )
+    return finish(rating)
+
+
+def finish(r: Rating) -> Rating:
+    """Governing check, ratio and action from the checks (run again after adding checks)."""
+    caps = np.stack([c.capacity_n for c in r.checks.values()])
+    demands = np.stack([c.demand_n for c in r.checks.values()])
+    with np.errstate(divide="ignore", invalid="ignore"):
+        ratios = demands / caps
+    has_load = ~np.isnan(r.batch.load_n)
+    by_ratio = np.argmax(np.where(np.isnan(ratios), -np.inf, ratios), axis=0)
+    by_cap = np.argmin(np.where(np.isnan(caps), np.inf, caps), axis=0)
+    gov = np.where(has_load, by_ratio, by_cap)
+    cols = np.arange(r.n)
+    r.governing = gov.astype(np.int8)
+    r.capacity_n = caps[gov, cols]
+    r.demand_n = demands[gov, cols]
+    r.ratio = ratios[gov, cols]
+    r.action = action_from(r.ratio, r.flags, r.values.get("le_d_max"), r.values.get("le_d_limit"))
+    return r
+
+
+def action_from(ratio, flags, le_d_max=None, limit=None) -> np.ndarray:
+    """Action category from the ratio bands and the condition flags (judgement)."""
+    lo, mid, hi = RATIO_BANDS
+    r = np.where(np.isnan(ratio), 0.0, ratio)
+    act = np.select([r > hi, r > mid, r > lo], [3, 2, 1], 0).astype(np.int8)
+    act = np.maximum(act, np.where(np.isnan(ratio), 1, 0)).astype(np.int8)
+    if le_d_max is not None:
+        act = np.maximum(act, np.where(le_d_max > limit, 2, 0)).astype(np.int8)
+    act = np.maximum(act, np.where(flags & F_MECHANISM, 3, 0)).astype(np.int8)
+    for bits, level in ESCALATIONS:
+        act = np.maximum(act, np.where(flags & bits, level, 0)).astype(np.int8)
+    return act
+
+
+# (flag bits, minimum action level): condition flags register here (condition.py).
+ESCALATIONS: list[tuple[int, int]] = []
+
+
+def mode_label(i_mode: int) -> str:
+    if i_mode < 0:
+        return "mechanism"
+    key = MODE_KEYS[i_mode]
+    return f"NDS case ({key}) {MODES[key][0]}"

@@ -1,0 +1,76 @@
+"""End conditions -> buckling mode -> effective-length factor Ke; brace heights -> unbraced lengths.
+
+Each end is pinned, fixed, free or guided (rotation held, translation free). The pair gives one
+of the six classic buckling modes of NDS 2018 Appendix G, Table G1, with its theoretical K and
+the recommended design Ke (larger where fixity is assumed, because field fixity is imperfect).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from fieldcheck.engine.batch import END_NAMES, FIXED, FREE, GUIDED, PINNED
+
+# mode: (label, theoretical K, recommended design Ke)   NDS 2018 Appendix G Table G1
+MODES = {
+    "a": ("fixed-fixed", 0.5, 0.65),
+    "b": ("fixed-pinned", 0.699156, 0.80),  # exact K: pi / 4.493409 (root of tan u = u)
+    "c": ("fixed-guided, sway", 1.0, 1.2),
+    "d": ("pinned-pinned", 1.0, 1.0),
+    "e": ("fixed-free, flagpole", 2.0, 2.10),
+    "f": ("pinned-guided, sway", 2.0, 2.4),
+}
+MODE_KEYS = tuple(MODES)  # index 0..5; -1 marks a mechanism
+MECHANISM = -1
+
+# 4x4 lookup [bottom, top] -> mode index (symmetric: the six cases do not depend on which end is up)
+_P, _F, _R, _G = PINNED, FIXED, FREE, GUIDED
+_LUT = np.full((4, 4), MECHANISM, dtype=np.int8)
+for (a, b), m in {
+    (_F, _F): "a", (_F, _P): "b", (_F, _G): "c", (_P, _P): "d", (_F, _R): "e", (_P, _G): "f",
+}.items():
+    _LUT[a, b] = _LUT[b, a] = MODE_KEYS.index(m)
+THEORETICAL = np.array([MODES[k][1] for k in MODE_KEYS])
+RECOMMENDED = np.array([MODES[k][2] for k in MODE_KEYS])
+SWAY = np.array([k in "cef" for k in MODE_KEYS])
+
+
+def mode_index(bottom: np.ndarray, top: np.ndarray) -> np.ndarray:
+    """Mode index 0..5 (a..f) per post, or -1 where the pair is a mechanism."""
+    return _LUT[np.asarray(bottom, dtype=np.intp), np.asarray(top, dtype=np.intp)]
+
+
+def mechanism_reason(bottom: int, top: int) -> str | None:
+    """One sentence saying why an end pair cannot carry load, or None if it can."""
+    if _LUT[bottom, top] != MECHANISM:
+        return None
+    b, t = END_NAMES[bottom], END_NAMES[top]
+    if bottom in (FREE, GUIDED) and top in (FREE, GUIDED):
+        why = "neither end is held against sideways movement, so the post can slide over as a whole"
+    else:
+        why = "a pinned end under (or over) a free end lets the post rotate over as a rigid body"
+    return f"ends: a {b} bottom with a {t} top is a mechanism: {why}; hold one end sideways or fix the pinned end."
+
+
+def ke(bottom: np.ndarray, top: np.ndarray, theoretical: np.ndarray | bool = False) -> np.ndarray:
+    """Ke per post from the end pair (NDS 2018 Appendix G Table G1); NaN for a mechanism."""
+    m = mode_index(bottom, top)
+    table = np.where(np.asarray(theoretical)[..., None], THEORETICAL, RECOMMENDED) if np.ndim(theoretical) else (
+        THEORETICAL if theoretical else RECOMMENDED
+    )
+    safe = np.where(m < 0, 0, m)
+    val = np.take_along_axis(table, safe[:, None], axis=1)[:, 0] if table.ndim == 2 else table[safe]
+    return np.where(m < 0, np.nan, val)
+
+
+def unbraced_length(height_mm: float, brace_heights_mm: list[float], field: str) -> float:
+    """Longest unbraced segment (mm) between the ends and the brace points (NDS 2018 §3.7.1.1)."""
+    pts = sorted(brace_heights_mm)
+    for h in pts:
+        if not 0.0 < h < height_mm:
+            raise ValueError(
+                f"{field}: a brace at {h:.0f} mm is not between the bottom (0) and the top "
+                f"({height_mm:.0f} mm); give brace heights measured up from the bottom."
+            )
+    edges = [0.0, *pts, height_mm]
+    return max(b - a for a, b in zip(edges, edges[1:], strict=False))
