@@ -29,11 +29,22 @@ import numpy as np
 from fieldcheck.engine import batch as _batch
 from fieldcheck.engine.refdata import table
 
+
+def _f64(x) -> np.ndarray:
+    return np.asarray(x, dtype=np.float64)
+
+
 # --- names and codes -------------------------------------------------------------------------
 
 PRODUCTS = ("solid", "glulam", "lvl")  # index = EC5 product code used in this module
 SOLID, GLULAM, LVL = 0, 1, 2
-DURATIONS = ("permanent", "long-term", "medium-term", "short-term", "instantaneous")  # EN 1995-1-1 Table 2.1
+DURATIONS = (
+    "permanent",
+    "long-term",
+    "medium-term",
+    "short-term",
+    "instantaneous",
+)  # EN 1995-1-1 Table 2.1
 SERVICE_CLASSES = (1, 2, 3)  # EN 1995-1-1 §2.3.1.3
 SUPPORTS = ("general", "continuous", "discrete")  # EN 1995-1-1 §6.1.5(2)-(4)
 
@@ -48,7 +59,12 @@ _PRODUCT_ALIASES = {
     "lvl": LVL,
 }
 # PostBatch product codes -> EC5 product code (LVL has no PostBatch code yet).
-_BATCH_PRODUCT = {_batch.DIMENSION: SOLID, _batch.TIMBER: SOLID, _batch.POLE: SOLID, _batch.GLULAM: GLULAM}
+_BATCH_PRODUCT = {
+    _batch.DIMENSION: SOLID,
+    _batch.TIMBER: SOLID,
+    _batch.POLE: SOLID,
+    _batch.GLULAM: GLULAM,
+}
 if hasattr(_batch, "LVL"):  # pragma: no cover - picked up when the batch gains an LVL code
     _BATCH_PRODUCT[_batch.LVL] = LVL
 
@@ -64,7 +80,9 @@ def _names_to_codes(values, lookup: dict, field: str, accepted: str, example: st
     for j, u in enumerate(uniq):  # loop over distinct values only (a handful), not over posts
         key = " ".join(str(u).strip().lower().replace("_", " ").replace("-", " ").split())
         if key not in lookup:
-            raise ValueError(f"{field} must be one of {accepted}, got {str(u)!r}; for example {example}.")
+            raise ValueError(
+                f"{field} must be one of {accepted}, got {str(u)!r}; for example {example}."
+            )
         codes[j] = lookup[key]
     return codes[inverse].reshape(arr.shape)
 
@@ -82,8 +100,8 @@ def product_code(product) -> np.ndarray:
         bad |= out < 0
         if np.any(bad):
             raise ValueError(
-                f"product must be a PostBatch product code {sorted(_BATCH_PRODUCT)} or one of {accepted}, "
-                f"got {arr[bad].flat[0]}; for example 'solid'."
+                f"product must be a PostBatch product code {sorted(_BATCH_PRODUCT)} "
+                f"or one of {accepted}, got {arr[bad].flat[0]}; for example 'solid'."
             )
         return out
     lookup = {k.replace("-", " "): v for k, v in _PRODUCT_ALIASES.items()}
@@ -93,7 +111,9 @@ def product_code(product) -> np.ndarray:
 def duration_code(duration) -> np.ndarray:
     """Index into DURATIONS from names (case, '-', '_' and spaces are forgiven) or 0..4 codes."""
     arr = np.asarray(duration)
-    accepted = "permanent, long-term, medium-term, short-term or instantaneous (EN 1995-1-1 Table 2.1)"
+    accepted = (
+        "permanent, long-term, medium-term, short-term or instantaneous (EN 1995-1-1 Table 2.1)"
+    )
     if arr.dtype.kind in "iu":
         bad = (arr < 0) | (arr >= len(DURATIONS))
         if np.any(bad):
@@ -109,7 +129,10 @@ def duration_code(duration) -> np.ndarray:
 def service_class_index(service_class) -> np.ndarray:
     """0-based index (0, 1, 2) from service classes 1, 2, 3 (ints, floats or digit strings)."""
     arr = np.asarray(service_class)
-    msg = "service class must be 1, 2 or 3 (EN 1995-1-1 §2.3.1.3), got {!r}; for example --service-class 1."
+    msg = (
+        "service class must be 1, 2 or 3 (EN 1995-1-1 §2.3.1.3), got {!r}; "
+        "for example --service-class 1."
+    )
     if arr.dtype.kind in "iuf":
         num = arr.astype(np.float64)
         bad = ~np.isin(num, SERVICE_CLASSES)
@@ -136,11 +159,15 @@ def _kmod_table() -> np.ndarray:
     """k_mod as an array [product, service class - 1, duration] (EN 1995-1-1 Table 3.1)."""
     out = np.full((len(PRODUCTS), len(SERVICE_CLASSES), len(DURATIONS)), np.nan)
     for r in table("ec5_kmod"):
-        out[PRODUCTS.index(r["product"]), int(r["service_class"]) - 1, DURATIONS.index(r["duration"])] = float(
-            r["kmod"]
-        )
+        out[
+            PRODUCTS.index(r["product"]),
+            int(r["service_class"]) - 1,
+            DURATIONS.index(r["duration"]),
+        ] = float(r["kmod"])
     if np.isnan(out).any():
-        raise RuntimeError("data/ec5_kmod.csv is incomplete: every product, service class and duration needs a row")
+        raise RuntimeError(
+            "data/ec5_kmod.csv is incomplete: every product, service class and duration needs a row"
+        )
     out.setflags(write=False)
     return out
 
@@ -151,9 +178,14 @@ def _gamma_m_table() -> np.ndarray:
     out = np.full((len(PRODUCTS), 2), np.nan)
     for r in table("ec5_gamma_m"):
         if r["material"] in PRODUCTS:
-            out[PRODUCTS.index(r["material"]), int(r["combination"] == "accidental")] = float(r["gamma_m"])
+            out[PRODUCTS.index(r["material"]), int(r["combination"] == "accidental")] = float(
+                r["gamma_m"]
+            )
     if np.isnan(out).any():
-        raise RuntimeError("data/ec5_gamma_m.csv is incomplete: every product needs fundamental and accidental rows")
+        raise RuntimeError(
+            "data/ec5_gamma_m.csv is incomplete: "
+            "every product needs fundamental and accidental rows"
+        )
     out.setflags(write=False)
     return out
 
@@ -171,7 +203,10 @@ def kmod(service_class, duration_class, product="solid") -> np.ndarray:
 
 
 def gamma_m(product="solid", accidental=False) -> np.ndarray:
-    """Partial factor gamma_M (-); EN 1995-1-1 Table 2.3 recommended values (National Annex may differ)."""
+    """Partial factor gamma_M (-); EN 1995-1-1 Table 2.3 recommended values.
+
+    A National Annex may change them. ``accidental=True``: accidental combinations (1.0).
+    """
     pr = product_code(product)
     acc = np.asarray(accidental, dtype=bool)
     pr, acc = np.broadcast_arrays(pr, acc)
@@ -196,19 +231,25 @@ def radius_of_gyration_rect(d_mm) -> np.ndarray:
 
 
 def relative_slenderness(lef_mm, i_mm, fc0k, e005) -> np.ndarray:
-    """lambda_rel (-) = (L_ef / i) / pi * sqrt(f_c,0,k / E_0,05); EN 1995-1-1 §6.3.2 Eq. 6.21/6.22."""
-    lam = np.asarray(lef_mm, dtype=np.float64) / np.asarray(i_mm, dtype=np.float64)  # slenderness ratio lambda
-    return lam / np.pi * np.sqrt(np.asarray(fc0k, dtype=np.float64) / np.asarray(e005, dtype=np.float64))  # Eq. 6.21/6.22
+    """lambda_rel (-) = (L_ef / i) / pi * sqrt(f_c,0,k / E_0,05).
+
+    EN 1995-1-1 §6.3.2 Eq. 6.21/6.22; lengths in mm, strengths and moduli in MPa.
+    """
+    # §6.3.2: slenderness ratio lambda = L_ef / i
+    lam = _f64(lef_mm) / _f64(i_mm)
+    # Eq. 6.21/6.22
+    return lam / np.pi * np.sqrt(_f64(fc0k) / _f64(e005))
 
 
 def k_factor(lam_rel, beta_c) -> np.ndarray:
     """k = 0.5 [1 + beta_c (lambda_rel - 0.3) + lambda_rel^2]; EN 1995-1-1 §6.3.2 Eq. 6.27/6.28."""
-    lam_rel = np.asarray(lam_rel, dtype=np.float64)
-    return 0.5 * (1.0 + np.asarray(beta_c, dtype=np.float64) * (lam_rel - LAM_REL_LIMIT) + lam_rel**2)  # Eq. 6.27/6.28
+    lam_rel = _f64(lam_rel)
+    # Eq. 6.27/6.28
+    return 0.5 * (1.0 + _f64(beta_c) * (lam_rel - LAM_REL_LIMIT) + lam_rel**2)
 
 
 def kc(lam_rel, beta_c) -> np.ndarray:
-    """Instability factor k_c = 1 / (k + sqrt(k^2 - lambda_rel^2)); EN 1995-1-1 §6.3.2 Eq. 6.25/6.26.
+    """Instability factor k_c = 1 / (k + sqrt(k^2 - lambda_rel^2)); EN 1995-1-1 Eq. 6.25/6.26.
 
     k_c = 1 where lambda_rel <= 0.3 (EN 1995-1-1 §6.3.2(2): no buckling reduction).
     """
@@ -222,7 +263,7 @@ def kc(lam_rel, beta_c) -> np.ndarray:
 
 def compression_design_strength(fc0k, kmod, gamma_m) -> np.ndarray:
     """f_c,0,d (MPa) = k_mod f_c,0,k / gamma_M; EN 1995-1-1 §2.4.1 Eq. 2.17."""
-    return np.asarray(kmod, dtype=np.float64) * np.asarray(fc0k, dtype=np.float64) / np.asarray(gamma_m, dtype=np.float64)
+    return _f64(kmod) * _f64(fc0k) / _f64(gamma_m)  # §2.4.1 Eq. 2.17
 
 
 class ColumnResistance(NamedTuple):
@@ -256,8 +297,8 @@ def column_resistance(
     ``gamma_m`` as from :func:`kmod` and :func:`gamma_m` (or PostBatch.kmod, PostBatch.gamma_m).
     """
     area = np.asarray(area_mm2, dtype=np.float64)
-    lam1 = np.asarray(lef1_mm, dtype=np.float64) / np.asarray(i1_mm, dtype=np.float64)  # §6.3.2 lambda_y
-    lam2 = np.asarray(lef2_mm, dtype=np.float64) / np.asarray(i2_mm, dtype=np.float64)  # §6.3.2 lambda_z
+    lam1 = _f64(lef1_mm) / _f64(i1_mm)  # §6.3.2 lambda_y
+    lam2 = _f64(lef2_mm) / _f64(i2_mm)  # §6.3.2 lambda_z
     lr1 = relative_slenderness(lef1_mm, i1_mm, fc0k, e005)  # Eq. 6.21
     lr2 = relative_slenderness(lef2_mm, i2_mm, fc0k, e005)  # Eq. 6.22
     bc = beta_c(product)  # Eq. 6.29
@@ -272,7 +313,9 @@ def column_resistance(
     n_rd = np.minimum(n1, n2)
     kc_gov = np.where(gov == 1, kc1, kc2)
     no_buck = (lr1 <= LAM_REL_LIMIT) & (lr2 <= LAM_REL_LIMIT)  # §6.3.2(2)
-    arrs = np.broadcast_arrays(lam1, lam2, lr1, lr2, bc, k1, k2, kc1, kc2, fc0d, n1, n2, n_rd, kc_gov, gov, no_buck)
+    arrs = np.broadcast_arrays(
+        lam1, lam2, lr1, lr2, bc, k1, k2, kc1, kc2, fc0d, n1, n2, n_rd, kc_gov, gov, no_buck
+    )
     return ColumnResistance(*(np.array(a) for a in arrs))
 
 
@@ -324,11 +367,10 @@ def bearing_perp_resistance(
     than a, l or l1/2 (§6.1.5(1)). Here one side is limited by a (and l, l1/2), the other by l and
     l1/2 only.
     """
-    b = np.asarray(b_mm, dtype=np.float64)
-    l = np.asarray(l_mm, dtype=np.float64)
-    a = np.nan_to_num(np.asarray(a_mm, dtype=np.float64), nan=0.0, posinf=np.inf)  # NaN: 0 (judgement)
-    l1 = np.nan_to_num(np.asarray(l1_mm, dtype=np.float64), nan=0.0, posinf=np.inf)  # NaN: 0 (judgement)
-    h = np.asarray(h_mm, dtype=np.float64)
+    b, l, h = _f64(b_mm), _f64(l_mm), _f64(h_mm)
+    # unknown end distance or spacing: no extension that way (judgement, conservative)
+    a = np.nan_to_num(_f64(a_mm), nan=0.0, posinf=np.inf)
+    l1 = np.nan_to_num(_f64(l1_mm), nan=0.0, posinf=np.inf)
     sup = _support_code(support)
     pr = product_code(product)
     soft = np.asarray(softwood, dtype=bool)
@@ -360,10 +402,15 @@ def _support_code(support) -> np.ndarray:
     arr = np.asarray(support)
     if arr.dtype.kind in "iu":
         if np.any((arr < 0) | (arr > 2)):
-            raise ValueError("bearing support must be 0 general, 1 continuous or 2 discrete; for example 'general'.")
+            raise ValueError(
+                "bearing support must be 0 general, 1 continuous or 2 discrete; "
+                "for example 'general'."
+            )
         return arr.astype(np.int8)
     lookup = {s: i for i, s in enumerate(SUPPORTS)}
-    return _names_to_codes(arr, lookup, "bearing support", "general, continuous or discrete", "'general'")
+    return _names_to_codes(
+        arr, lookup, "bearing support", "general, continuous or discrete", "'general'"
+    )
 
 
 # --- compression with bending --------------------------------------------------------------
@@ -383,12 +430,7 @@ def bending_design_strength(fmk, kmod, gamma_m, kh=1.0) -> np.ndarray:
 
     k_h defaults to 1.0 (conservative); see :func:`kh_bending`.
     """
-    return (
-        np.asarray(kh, dtype=np.float64)
-        * np.asarray(kmod, dtype=np.float64)
-        * np.asarray(fmk, dtype=np.float64)
-        / np.asarray(gamma_m, dtype=np.float64)
-    )
+    return _f64(kh) * _f64(kmod) * _f64(fmk) / _f64(gamma_m)  # §2.4.1 Eq. 2.17, §3.2(3)
 
 
 def kh_bending(depth_mm, product="solid") -> np.ndarray:
@@ -403,7 +445,9 @@ def kh_bending(depth_mm, product="solid") -> np.ndarray:
     with np.errstate(divide="ignore", invalid="ignore"):
         solid = np.where(h < 150.0, np.minimum((150.0 / h) ** 0.2, 1.3), 1.0)  # §3.2(3) Eq. 3.1
         glulam = np.where(h < 600.0, np.minimum((600.0 / h) ** 0.1, 1.1), 1.0)  # §3.3(3) Eq. 3.2
-    return np.where(np.isnan(h), np.nan, np.where(pr == SOLID, solid, np.where(pr == GLULAM, glulam, 1.0)))
+    return np.where(
+        np.isnan(h), np.nan, np.where(pr == SOLID, solid, np.where(pr == GLULAM, glulam, 1.0))
+    )
 
 
 class CombinedCheck(NamedTuple):
@@ -432,7 +476,9 @@ def combined_ratio(
     m2 = np.asarray(sigma_m2_mpa, dtype=np.float64) / np.asarray(fm2d, dtype=np.float64)
     fc0d = np.asarray(fc0d, dtype=np.float64)
     k_m = np.asarray(km, dtype=np.float64)
-    no_buck = (np.asarray(lam_rel1) <= LAM_REL_LIMIT) & (np.asarray(lam_rel2) <= LAM_REL_LIMIT)  # §6.3.2(2)
+    no_buck = (np.asarray(lam_rel1) <= LAM_REL_LIMIT) & (
+        np.asarray(lam_rel2) <= LAM_REL_LIMIT
+    )  # §6.3.2(2)
     # §6.3.2(3) Eq. 6.23 / 6.24
     r1_buck = sc / (np.asarray(kc1) * fc0d) + m1 + k_m * m2
     r2_buck = sc / (np.asarray(kc2) * fc0d) + k_m * m1 + m2

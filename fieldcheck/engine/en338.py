@@ -11,12 +11,22 @@ from functools import cache
 
 from fieldcheck.engine.refdata import table
 
-_VALUE_COLUMNS = ("fmk_mpa", "fc0k_mpa", "fc90k_mpa", "e0mean_mpa", "e005_mpa", "rhok_kgm3", "rhomean_kgm3")
+_VALUE_COLUMNS = (
+    "fmk_mpa",
+    "fc0k_mpa",
+    "fc90k_mpa",
+    "e0mean_mpa",
+    "e005_mpa",
+    "rhok_kgm3",
+    "rhomean_kgm3",
+)
 
 
 @cache
 def _classes() -> dict[str, dict[str, float]]:
-    return {r["class"].upper(): {c: float(r[c]) for c in _VALUE_COLUMNS} for r in table("en338_classes")}
+    return {
+        r["class"].upper(): {c: float(r[c]) for c in _VALUE_COLUMNS} for r in table("en338_classes")
+    }
 
 
 def class_names() -> tuple[str, ...]:
@@ -34,7 +44,8 @@ def strength_class(name: str) -> dict[str, float]:
     found = _classes().get(key)
     if found is None:
         raise ValueError(
-            f"strength class must be one of {', '.join(class_names())} (EN 338), got {name!r}; for example --class C24."
+            f"strength class must be one of {', '.join(class_names())} (EN 338), "
+            f"got {name!r}; for example --class C24."
         )
     return dict(found)
 
@@ -46,7 +57,10 @@ def is_softwood(name: str) -> bool:
 
 
 def batch_fields(name: str) -> dict[str, float]:
-    """PostBatch material fields for a class: fc_mpa, fc_perp_mpa, fb_mpa, e_mpa, emin_mpa (EC5 meanings)."""
+    """PostBatch material fields for a class, in their EC5 meanings.
+
+    Keys: fc_mpa, fc_perp_mpa, fb_mpa, e_mpa, emin_mpa.
+    """
     v = strength_class(name)
     return {
         "fc_mpa": v["fc0k_mpa"],  # f_c,0,k
