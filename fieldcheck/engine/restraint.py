@@ -47,9 +47,11 @@ def mechanism_reason(bottom: int, top: int) -> str | None:
     b, t = END_NAMES[bottom], END_NAMES[top]
     if bottom in (FREE, GUIDED) and top in (FREE, GUIDED):
         why = "neither end is held against sideways movement, so the post can slide over as a whole"
+        fix = "hold one end sideways (brace it) or fix it"
     else:
-        why = "a pinned end under (or over) a free end lets the post rotate over as a rigid body"
-    return f"ends: a {b} bottom with a {t} top is a mechanism: {why}; hold one end sideways or fix the pinned end."
+        why = "a pinned end with a free end lets the post rotate over as a rigid body"
+        fix = "fix the pinned end or hold the free end sideways"
+    return f"ends: a {b} bottom with a {t} top is a mechanism: {why}; {fix}."
 
 
 def ke(bottom: np.ndarray, top: np.ndarray, theoretical: np.ndarray | bool = False) -> np.ndarray:

@@ -1,0 +1,139 @@
+"""`fieldcheck rate`: one post from options, or many from a CSV file in one engine pass."""
+
+from __future__ import annotations
+
+import argparse
+import csv
+import json
+import sys
+
+from fieldcheck.records.columns import COLUMNS
+
+DESCRIPTION = (
+    "Rate a timber post or shore. Values take units in your own notation (3-1/2 in, 8' 6\", 2.44 m, "
+    "89 mm, 4 kip, 17.8 kN, 24%%). With --batch, every CSV column is one of the options below "
+    "(without the dashes, - written _), one post per row. A screening aid for a competent person."
+)
+RESULT_COLUMNS = (
+    "allowable_load_lbf", "allowable_load_kN", "demand_capacity_ratio", "governing_check", "action",
+    "effective_length_factor", "slenderness_ratio", "stability_factor", "within_slenderness_limit",
+    "warnings", "error",
+)
+
+
+def add_arguments(p: argparse.ArgumentParser) -> None:
+    groups: dict[str, argparse._ArgumentGroup] = {}
+    for col in COLUMNS.values():
+        g = groups.get(col.group) or groups.setdefault(col.group, p.add_argument_group(col.group))
+        g.add_argument(col.option, dest=f"col_{col.name}", metavar="VALUE",
+                       help=f"{col.help} (e.g. {col.example})")
+    out = p.add_argument_group("output")
+    out.add_argument("--json", action="store_true", help="print one JSON object")
+    out.add_argument("--working", action="store_true", help="show the working step by step")
+    out.add_argument("--batch", metavar="IN.csv", help="rate every row of a CSV file")
+    out.add_argument("--out", metavar="OUT.csv", help="with --batch: where to write the results")
+
+
+def _record(args: argparse.Namespace) -> dict[str, str]:
+    return {name: v for name in COLUMNS if (v := getattr(args, f"col_{name}", None)) is not None}
+
+
+def run(args: argparse.Namespace) -> int:
+    if args.batch:
+        return _run_batch(args)
+    from fieldcheck.records import parse_records
+
+    rec = _record(args)
+    parsed = parse_records([rec])
+    if parsed.errors:
+        # one sentence for the first problem; the rest follow on their own lines
+        for err in parsed.errors:
+            print(f"fieldcheck: {err.message}", file=sys.stderr)
+        return 2
+    from fieldcheck.engine.rating import rate
+
+    rating = rate(parsed.batch)
+    summary = rating.summary(0)
+    summary["material"] = parsed.meta[0].get("_material", "")
+    if args.json:
+        if args.working:
+            summary["working"] = [s.__dict__ for s in rating.working(0)]
+        print(json.dumps(summary, indent=2, ensure_ascii=False))
+        return 0
+    print(_text(summary, args.units or "us"))
+    if args.working:
+        print("\nWorking:")
+        for s in rating.working(0):
+            clause = f"   [{s.clause}]" if s.clause else ""
+            print(f"  {s.label}: {s.value}{clause}")
+    return 0
+
+
+def _text(s: dict, system: str) -> str:
+    from fieldcheck.units import format_force
+
+    lines = []
+    cap = s["allowable_load_kN"] * 1000.0
+    lines.append(f"Capacity      {format_force(cap, system)}   governed by {s['governing_check']}")
+    if s["demand_capacity_ratio"] is not None:
+        lines.append(f"Demand        {format_force(s['demand_kN'] * 1000.0, system)}")
+        lines.append(f"Ratio         {s['demand_capacity_ratio']:.3f}")
+    lines.append(
+        f"Ke {s['effective_length_factor']}, le/d {s['slenderness_ratio']:.1f} "
+        f"(limit {s['slenderness_limit']:.0f}), stability factor {s['stability_factor']:.3f}"
+    )
+    lines.append(f"Material      {s.get('material', '')}")
+    lines.append(f"ACTION        {s['action_text']}")
+    for c in s["checks"]:
+        r = "" if c["ratio"] is None else f"  ratio {c['ratio']:.3f}"
+        lines.append(f"  - {c['label']}: {format_force(c['capacity_kN'] * 1000.0, system)}{r}  [{c['clause']}]")
+    for w in s["warnings"]:
+        lines.append(f"  ! {w}")
+    lines.append("")
+    lines.extend(f"  * {c}" for c in s["cautions"])
+    return "\n".join(lines)
+
+
+def _run_batch(args: argparse.Namespace) -> int:
+    from fieldcheck.cli import UsageError
+    from fieldcheck.records import parse_records
+    from fieldcheck.report.batch_csv import result_columns
+
+    try:
+        with open(args.batch, newline="", encoding="utf-8-sig") as fh:
+            rows = list(csv.DictReader(fh))
+    except OSError as exc:
+        raise UsageError(f"batch: cannot read {args.batch} ({exc.strerror}).") from None
+    if rows and (unknown := [c for c in rows[0] if c not in COLUMNS]):
+        print(f"fieldcheck: batch: columns not used for rating: {', '.join(unknown)}.", file=sys.stderr)
+    parsed = parse_records(rows)
+    from fieldcheck.engine.rating import rate
+
+    rating = rate(parsed.batch)
+    results = result_columns(rating)
+    for err in parsed.errors:
+        print(f"fieldcheck: {err}", file=sys.stderr)
+    errors_by_row: dict[int, list[str]] = {}
+    for err in parsed.errors:
+        errors_by_row.setdefault(err.row, []).append(f"{err.column}: {err.message}")
+    out = open(args.out, "w", newline="", encoding="utf-8") if args.out else sys.stdout
+    try:
+        fieldnames = list(rows[0].keys()) if rows else []
+        w = csv.writer(out)
+        w.writerow(fieldnames + list(RESULT_COLUMNS))
+        j = 0
+        for i, row in enumerate(rows):
+            base = [row.get(k, "") for k in fieldnames]
+            if parsed.ok[i]:
+                w.writerow(base + [results[k][j] for k in RESULT_COLUMNS[:-1]] + [""])
+                j += 1
+            else:
+                w.writerow(base + [""] * (len(RESULT_COLUMNS) - 1) + ["; ".join(errors_by_row[i])])
+    finally:
+        if out is not sys.stdout:
+            out.close()
+    rated = int(parsed.ok.sum())
+    print(f"fieldcheck: rated {rated} of {len(rows)} posts"
+          + (f"; {len(rows) - rated} rows need correcting (see the error column)." if rated < len(rows) else "."),
+          file=sys.stderr)
+    return 0 if rated == len(rows) else 1

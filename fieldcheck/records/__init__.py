@@ -1,0 +1,114 @@
+"""Posts as typed -> one PostBatch, and rating in one call.
+
+A record is a ``dict[str, str]`` keyed by column name (see columns.py). Bad values never stop the
+other rows: each problem is a :class:`FieldError` naming its row and column, and the rows without
+errors are rated together in one engine pass.
+
+    parsed = parse_records(rows)        # Parsed(batch, errors, ok, rows, meta)
+    rating, errors = rate_records(rows) # rating covers the rows where parsed.ok is True
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Any
+
+import numpy as np
+
+from fieldcheck.engine.batch import PostBatch, make_batch
+from fieldcheck.records.builders import BUILDERS, RowError
+from fieldcheck.records.columns import COLUMNS, GROUPS, Column
+
+__all__ = ["COLUMNS", "GROUPS", "Column", "FieldError", "Parsed", "parse_records", "rate_records", "parse_row"]
+
+
+@dataclass(frozen=True)
+class FieldError:
+    row: int  # 0-based index into the rows given
+    column: str
+    message: str
+
+    def __str__(self) -> str:
+        return f"row {self.row + 1}, column {self.column}: {self.message}"
+
+
+@dataclass
+class Parsed:
+    batch: PostBatch  # the rows without errors, in order
+    errors: list[FieldError]
+    ok: np.ndarray  # bool per input row
+    meta: list[dict[str, Any]] = field(default_factory=list)  # per rated row: material text etc.
+
+    @property
+    def index(self) -> np.ndarray:
+        """Input row index of each post in the batch."""
+        return np.flatnonzero(self.ok)
+
+
+def parse_row(record: dict[str, str]) -> tuple[dict[str, Any], dict[str, Any], list[tuple[str, str]]]:
+    """One record -> (PostBatch field values, meta, [(column, message), ...])."""
+    values: dict[str, Any] = {}
+    problems: list[tuple[str, str]] = []
+    for name, text in record.items():
+        if text is None:
+            continue
+        text = str(text)
+        if not text.strip():
+            continue
+        col = COLUMNS.get(name)
+        if col is None:
+            continue  # unknown columns are kept in the log but not rated (e.g. a site's own notes)
+        try:
+            values[name] = col.parse(text)
+        except ValueError as exc:
+            problems.append((name, str(exc)))
+    if problems:
+        return {}, {}, problems
+    fields: dict[str, Any] = {}
+    meta: dict[str, Any] = {}
+    for build in BUILDERS:
+        try:
+            fields.update(build(values, meta))
+        except RowError as exc:
+            return {}, {}, [(exc.column, str(exc))]
+        except ValueError as exc:
+            return {}, {}, [(getattr(build, "column", "input"), str(exc))]
+    return fields, meta, []
+
+
+def parse_records(rows: list[dict[str, str]]) -> Parsed:
+    errors: list[FieldError] = []
+    ok = np.zeros(len(rows), dtype=bool)
+    per_field: dict[str, list[Any]] = {}
+    metas: list[dict[str, Any]] = []
+    good: list[dict[str, Any]] = []
+    for i, rec in enumerate(rows):
+        fields, meta, problems = parse_row(rec)
+        if problems:
+            errors.extend(FieldError(i, c, m) for c, m in problems)
+            continue
+        ok[i] = True
+        good.append(fields)
+        metas.append(meta)
+    n = len(good)
+    if n == 0:
+        return Parsed(make_batch(n=0), errors, ok, metas)
+    keys = set().union(*good)
+    from fieldcheck.engine.batch import _DEFAULTS
+
+    for k in keys:
+        d = _DEFAULTS[k]
+        per_field[k] = [g.get(k, d) for g in good]
+    return Parsed(make_batch(n=n, **per_field), errors, ok, metas)
+
+
+def rate_records(rows: list[dict[str, str]]):
+    """Parse and rate in one engine pass: (Rating of the rows without errors, errors).
+
+    Rating post j is input row ``np.flatnonzero(ok)[j]`` where ok excludes the rows named in
+    the errors; use :func:`parse_records` and ``rate(parsed.batch)`` to keep the mapping at hand.
+    """
+    from fieldcheck.engine.rating import rate
+
+    parsed = parse_records(rows)
+    return rate(parsed.batch), parsed.errors

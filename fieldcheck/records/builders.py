@@ -1,0 +1,171 @@
+"""Builders: one row of parsed column values -> PostBatch fields (SI scalars).
+
+Each builder takes the parsed row (column name -> value; absent columns are missing) and returns
+a dict of PostBatch field values, or raises ValueError naming the column. Other modules add
+builders with :func:`register_builder` (condition, loads, ground).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from typing import Any
+
+import numpy as np
+
+from fieldcheck.engine import materials, sections
+from fieldcheck.engine.batch import (
+    BUILT_UP, DIMENSION, END_NAMES, EC5, LRFD, METHOD_NAMES, RECT, ROUND, TIMBER,
+)
+from fieldcheck.engine.restraint import mechanism_reason, unbraced_length
+
+IN = 25.4
+Row = dict[str, Any]
+Builder = Callable[[Row, dict[str, Any]], dict[str, Any]]
+
+CD = {"permanent": 0.9, "ten-years": 1.0, "two-months": 1.15, "seven-days": 1.25, "ten-minutes": 1.6,
+      "impact": 2.0}  # NDS 2018 Table 2.3.2
+LAMBDA = {"permanent": 0.6, "ten-years": 0.8, "two-months": 0.8, "seven-days": 0.8, "ten-minutes": 1.0,
+          "impact": 1.25}  # NDS 2018 Appendix N Table N3 (from memory), by the shortest load
+CB_MIN_END_DISTANCE_MM = 3.0 * IN  # NDS 2018 §3.10.4
+
+
+class RowError(ValueError):
+    def __init__(self, column: str, message: str):
+        super().__init__(message)
+        self.column = column
+
+
+def section_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
+    """Section: measured wins; nominal fills; round -> equivalent square; built-up plies."""
+    nominal = row.get("size")
+    f: dict[str, Any] = {"shape": RECT}
+    thick_nom = width_nom = None
+    if "plies" in row and row["plies"] > 1:
+        ply = row.get("ply")
+        if ply is None:
+            raise RowError("ply", "ply: a built-up post needs the nominal size of one ply, e.g. --ply 2x6.")
+        t_nom, w_nom = min(ply), max(ply)
+        w_mm, t_mm = sections.nominal_dressed_mm(w_nom, t_nom)
+        if "section" in row:  # measured overall size wins
+            d1, d2 = max(row["section"]), min(row["section"])
+        else:
+            d1, d2 = w_mm, row["plies"] * t_mm
+        kf = 0.75 if row.get("fastening", "nailed") == "bolted" else 0.6  # NDS 2018 §15.3.2
+        f.update(shape=BUILT_UP, plies=row["plies"], kf=kf)
+        thick_nom, width_nom = t_nom, w_nom
+    elif "diameter" in row:
+        d1 = d2 = float(sections.round_equivalent_side(np.array([row["diameter"]]))[0])  # NDS 2018 §3.7.2
+        f.update(shape=ROUND)
+    elif "section" in row:
+        d1, d2 = max(row["section"]), min(row["section"])
+        if nominal is not None:
+            thick_nom, width_nom = min(nominal), max(nominal)
+    elif nominal is not None:
+        thick_nom, width_nom = min(nominal), max(nominal)
+        d1, d2 = sections.nominal_dressed_mm(width_nom, thick_nom)
+    else:
+        raise RowError("size", "size: give a nominal size (e.g. 4x4), a measured --section or a --diameter.")
+    if thick_nom is None:
+        timber = bool(sections.is_timber(np.array([d2]))[0])
+        thick_nom = 5 if timber else 4
+        width_nom = int(sections.nominal_width_in(np.array([d1]))[0])
+    f.update(d1_mm=d1, d2_mm=d2)
+    out["_category"] = "timber" if thick_nom >= 5 else "dimension"
+    out["_width_nom"], out["_thick_nom"] = int(width_nom), int(thick_nom)
+    f["product"] = TIMBER if thick_nom >= 5 else DIMENSION
+    return f
+
+
+def height_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
+    if "height" not in row:
+        raise RowError("height", "height: the post's height is needed, e.g. --height 10ft or 8' 6\".")
+    h = row["height"]
+    f: dict[str, Any] = {"height_mm": h}
+    for col, axis in (("brace_strong", 1), ("brace_weak", 2)):
+        pts = row.get(col) or []
+        if pts:
+            try:
+                f[f"lu{axis}_mm"] = unbraced_length(h, pts, col)
+            except ValueError as exc:
+                raise RowError(col, str(exc)) from None
+            f[f"braced{axis}"] = True
+    return f
+
+
+def end_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
+    top = END_NAMES.index(row.get("top", "pinned"))
+    bottom = END_NAMES.index(row.get("bottom", "pinned"))
+    why = mechanism_reason(bottom, top)
+    if why:
+        raise RowError("top", why)
+    return {"top": top, "bottom": bottom, "theoretical_k": bool(row.get("k_theoretical", False))}
+
+
+def material_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
+    method = METHOD_NAMES.index(row.get("method", "asd"))
+    duration = row.get("duration", "ten-years")
+    f: dict[str, Any] = {"method": method, "cd": CD[duration], "lam": LAMBDA[duration]}
+    if method == EC5:
+        return f  # the EC5 builder fills the material
+    species = row.get("species", "unknown")
+    grade = row.get("grade", "unknown")
+    cat = out["_category"]
+    try:
+        rv = materials.reference_values(species, grade, cat)
+        cf_fc, cf_fb = materials.size_factors(species, grade, out["_width_nom"], out["_thick_nom"])
+    except ValueError as exc:
+        raise RowError("grade", str(exc)) from None
+    if "diameter" in row or row.get("plies", 1) > 1:
+        cf_fc, cf_fb = (1.0, 1.0) if "diameter" in row else (cf_fc, cf_fb)
+    f.update(
+        fc_mpa=rv["fc"], fc_perp_mpa=rv["fc_perp"], fb_mpa=rv["fb"], e_mpa=rv["e"], emin_mpa=rv["emin"],
+        cf_fc=cf_fc, cf_fb=cf_fb, wet_tabulated=rv["wet_tabulated"], knowledge=rv["knowledge"],
+    )
+    out["_material"] = f"{species} {grade} ({rv['table']}, {rv['status']})"
+    if method == LRFD:
+        f["lam"] = LAMBDA[duration]
+    return f
+
+
+def service_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
+    f: dict[str, Any] = {}
+    if "moisture" in row:
+        f["moisture_pct"] = row["moisture"]
+        f["bearing_wet"] = row["moisture"] > 19.0  # the cap and sill share the post's exposure (judgement)
+    if "temperature" in row:
+        f["temp_c"] = row["temperature"]
+    f["incised"] = bool(row.get("incised", False))
+    f["construction"] = bool(row.get("construction", False))
+    if "load" in row:
+        f["load_n"] = row["load"]
+    return f
+
+
+def bearing_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
+    f: dict[str, Any] = {}
+    for end, col in (("top", "cap"), ("bottom", "sill")):
+        sp = row.get(f"{col}_species")
+        if sp:
+            f[f"{end}_fc_perp_mpa"] = materials.fc_perp_of(sp)
+        if f"{col}_bearing" in row:
+            f[f"{end}_lb_mm"] = row[f"{col}_bearing"]
+        dist = row.get(f"{col}_end_distance")
+        f[f"{end}_cb"] = dist is not None and dist >= CB_MIN_END_DISTANCE_MM
+    if "end_contact" in row:
+        f["end_contact"] = row["end_contact"] / 100.0
+    f["end_plate"] = bool(row.get("end_plate", False))
+    return f
+
+
+BUILDERS: list[Builder] = [section_fields, height_fields, end_fields, material_fields, service_fields,
+                           bearing_fields]
+
+
+def register_builder(fn: Builder, after: Builder | None = None) -> None:
+    """Add a builder (runs after the core ones, or right after ``after``)."""
+    if fn in BUILDERS:
+        return
+    if after is None:
+        BUILDERS.append(fn)
+    else:
+        BUILDERS.insert(BUILDERS.index(after) + 1, fn)
