@@ -1,0 +1,92 @@
+"""The survey log: SQLite through sqlite-utils, append-only, one file per inspector's laptop.
+
+Nothing outside ``fieldcheck.store`` writes SQL. Code against this API (everything returns frozen
+dataclasses from ``fieldcheck.store.repo``)::
+
+    from fieldcheck.store import Log, default_log_path, seed_demo
+
+    log = Log.open(path=None, author=None, device=None, readonly=False)   # None: default_log_path()
+        # creates the file; upgrades an older schema after a backup copy beside it
+        # (log.backup_path); refuses a newer, foreign or damaged file with LogError (a ValueError,
+        # one sentence). Use as a context manager or call log.close().
+    log.path, log.device_id, log.author, log.schema_version, log.meta(), log.is_empty()
+
+    site  = log.add_site(name, address="", notes="")                  -> Site
+    log.sites() -> list[Site];  log.site(id);  log.find_site(name) -> Site | None
+    visit = log.add_visit(site_id, inspector=None, level="minimum",   -> Visit
+                          *, name=None, instruments=(), notes="", started_at=None)
+    log.visits(site_id=None) -> list[Visit];  log.visit(id);  log.find_visit(site_id, name)
+
+    obs = log.save_post(visit_id, record, member_id=None, *, allow_errors=False) -> Observation
+        # record: dict[str, str] as typed (fieldcheck.records column names), stored verbatim
+        # (empty cells dropped). member_id None: a new post; else a new revision superseding the
+        # current head. Rated in the same transaction. Field errors raise ValueError (first error)
+        # unless allow_errors=True (then stored unrated).
+    log.withdraw(member_id, visit_id, reason) -> Observation   # hidden from posts(), kept in history
+    log.head(member_id) -> Observation | None;  log.history(member_id) -> list[Observation]
+    log.observation(id) -> Observation
+    log.posts(visit_id=None, *, site_id=None, include_withdrawn=False) -> list[PostView]
+        # current revision per member (members seen on that visit), in the order first recorded:
+        # tag, location, record, ratio, action, action_label, capacity_n, demand_n, governing,
+        # engine_version, revised_at, revised_by, conflict
+    log.counts_by_action(visit_id=None) -> dict[str, int]   # "no-action", "monitor",
+        # "repair-or-brace", "make-safe-now", "not rated"
+    log.rating_for(observation_id) -> StoredRating | None   # latest, exactly as stored
+    log.ratings_for(observation_id) -> list[StoredRating]   # every engine run, oldest first
+        # StoredRating: engine_version, data_editions, capacity_n, demand_n, ratio, action,
+        # action_label, governing, flags, summary (the `rate --json` dict without cautions, for
+        # posts saved one at a time; None for bulk-rated rows), created_at
+    log.rerate_all() -> RerateResult(rated, unrated, engine_version, errors)  # one engine call
+    log.conflicts() -> list[member_id]                      # members with more than one head
+
+    log.import_rows(rows, site, visit, inspector=None) -> ImportResult(imported, errors, site, visit)
+        # rows: iterable of dict[str, str] (the `rate --batch` column set); one transaction, one
+        # engine call; bad rows are left out and reported as RowError(row, column, message)
+    log.export_rows(visit_id=None) -> ExportTable(columns, rows)   # record columns + rating columns
+
+    log.attach(observation_id, photo_path, caption="") -> Attachment   # path + sha256 + size
+    log.attachments(member_id=None) -> list[Attachment]
+    log.check_attachments() -> list[AttachmentProblem]   # .problem "missing" | "changed", .sentence()
+    log.add_review(kind, text, *, member_id=None, observation_id=None, visit_id=None) -> Review
+    log.reviews(member_id=None) -> list[Review]           # kind "note" | "sign-off"
+    log.integrity() -> IntegrityReport                    # .ok, .problems() -> list[str]
+
+    seed_demo(log) -> (Site, list[Visit])                 # the invented demo survey
+
+Guarantees: WAL + synchronous=FULL + foreign_keys=ON on every connection; STRICT tables; every
+method that writes is one transaction; revision tables are append-only (triggers refuse UPDATE and
+DELETE); every row has a device-made UUID, device_id, per-device device_seq, author and a time
+with zone; the current view follows parent links and device_seq, never the wall clock.
+"""
+
+from __future__ import annotations
+
+from typing import Any
+
+from fieldcheck.store.paths import default_log_path
+
+__all__ = [
+    "Attachment", "AttachmentProblem", "ExportTable", "ImportResult", "IntegrityReport", "Log",
+    "LogError", "Observation", "PostView", "RerateResult", "Review", "RowError", "Site",
+    "StoredRating", "Visit", "default_log_path", "seed_demo",
+]
+
+
+def __getattr__(name: str) -> Any:  # lazy: `import fieldcheck.store` stays cheap
+    if name == "seed_demo":
+        from fieldcheck.store.demo import seed_demo
+
+        return seed_demo
+    if name == "LogError":
+        from fieldcheck.store.connection import LogError
+
+        return LogError
+    if name == "RowError":
+        from fieldcheck.store.rated import RowError
+
+        return RowError
+    if name in __all__:
+        from fieldcheck.store import repo
+
+        return getattr(repo, name)
+    raise AttributeError(name)

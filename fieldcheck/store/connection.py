@@ -1,0 +1,75 @@
+"""One SQLite connection per log, set up for a laptop whose battery may die at any moment.
+
+Every connection gets the same PRAGMAs (they are per connection, except journal_mode which the
+file keeps): WAL, synchronous=FULL (a commit that returned survives a power cut), foreign keys
+on. sqlite-utils sits on our own sqlite3 connection in the legacy transaction mode (sqlite-utils
+4 refuses ``autocommit=`` connections); every user action is one ``db.atomic()`` block.
+"""
+
+from __future__ import annotations
+
+import sqlite3
+from pathlib import Path
+
+from sqlite_utils import Database
+
+# "fchk" as a 32-bit integer: marks the file as a fieldcheck survey log (PRAGMA application_id).
+APPLICATION_ID = 0x6663686B
+BUSY_TIMEOUT_S = 5.0
+
+
+class LogError(ValueError):
+    """The survey log cannot be used as it is (corrupted, foreign, newer): one sentence."""
+
+
+def damaged(path: Path | str, exc: BaseException) -> LogError:
+    """The one sentence for a file SQLite cannot read."""
+    return LogError(
+        f"the survey log {path} cannot be read ({exc}); it may be truncated or corrupted: keep "
+        "the file and any -wal file beside it untouched, and restore from a backup or the office copy"
+    )
+
+
+def connect(path: Path | str, *, readonly: bool = False, inspect=None) -> Database:
+    """Open ``path`` (created when missing unless ``readonly``) with the field PRAGMAs.
+
+    ``inspect(db)`` runs after the file is known to be SQLite and before anything is written
+    (journal mode included), so a foreign or newer file can be refused untouched.
+    """
+    path = Path(path)
+    if readonly:
+        if not path.exists():
+            raise LogError(f"the survey log {path} does not exist; give an existing file with --db")
+        uri = f"file:{path.resolve().as_posix()}?mode=ro"
+        conn = sqlite3.connect(uri, uri=True, timeout=BUSY_TIMEOUT_S, check_same_thread=False)
+    else:
+        path.parent.mkdir(parents=True, exist_ok=True)
+        conn = sqlite3.connect(str(path), timeout=BUSY_TIMEOUT_S, check_same_thread=False)
+    try:
+        db = Database(conn)
+        # a file that is not SQLite at all fails on the first read
+        conn.execute("PRAGMA schema_version").fetchone()
+        if inspect is not None:
+            inspect(db)
+        if not readonly:
+            mode = conn.execute("PRAGMA journal_mode=WAL").fetchone()[0]
+            if str(mode).lower() != "wal":
+                raise LogError(
+                    f"the survey log {path} cannot use write-ahead logging (journal mode {mode}); "
+                    "keep survey logs on a local disk, not a network share"
+                )
+        conn.execute("PRAGMA synchronous=FULL")
+        conn.execute("PRAGMA foreign_keys=ON")
+    except sqlite3.DatabaseError as exc:
+        conn.close()
+        raise damaged(path, exc) from exc
+    except BaseException:
+        conn.close()
+        raise
+    return db
+
+
+def pragma(db: Database, name: str) -> object:
+    """One PRAGMA value (first column of the first row)."""
+    row = db.conn.execute(f"PRAGMA {name}").fetchone()
+    return None if row is None else row[0]

@@ -1,0 +1,123 @@
+"""What the log keeps of a rating: the engine's arrays turned into rows, in one engine pass.
+
+The records layer parses and rates (``fieldcheck.records.rate_records``); here we only lift the
+arrays into column lists (vectorised: ``tolist`` per array, no per-post engine work) and stamp
+each rating with the engine version and the reference-data editions it used, so an old rating
+can be shown as it was and re-rated on demand.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+from dataclasses import dataclass
+from functools import cache
+
+import numpy as np
+
+# the engine's names (fieldcheck.engine.rating.ACTIONS); repeated here so reading a log never
+# needs the engine
+ACTION_LABELS = ("no-action", "monitor", "repair-or-brace", "make-safe-now")
+
+
+@dataclass(frozen=True)
+class RowError:
+    """A field the records layer refused: 0-based row of the input, the column, one sentence."""
+
+    row: int
+    column: str
+    message: str
+
+
+@dataclass(frozen=True)
+class RatedRows:
+    """Per input row: a tuple of rating columns (see RATING_COLUMNS) or None when it has errors."""
+
+    rows: list[tuple | None]
+    errors: list[RowError]
+
+
+RATING_COLUMNS = (
+    "capacity_n", "demand_n", "ratio", "action", "governing", "flags", "summary_json",
+)
+
+
+@cache
+def engine_stamp() -> tuple[str, str]:
+    """(engine version, JSON of {table: edition}) recorded with every stored rating."""
+    from fieldcheck import ENGINE_VERSION
+    from fieldcheck.engine.refdata import editions
+
+    return ENGINE_VERSION, json.dumps(editions(), sort_keys=True, separators=(",", ":"))
+
+
+def action_label(action: int | None) -> str:
+    if action is None:
+        return "not rated"
+    return ACTION_LABELS[action] if 0 <= action < len(ACTION_LABELS) else str(action)
+
+
+def _floats(a) -> list[float | None]:
+    out = np.asarray(a, dtype=np.float64).tolist()
+    return [None if (x is None or math.isnan(x) or math.isinf(x)) else x for x in out]
+
+
+def _json_default(o):
+    if isinstance(o, np.generic):
+        return o.item()
+    if isinstance(o, np.ndarray):
+        return o.tolist()
+    return str(o)
+
+
+def _clean(o):
+    """JSON has no NaN: turn non-finite floats into null (nested)."""
+    if isinstance(o, float):
+        return o if math.isfinite(o) else None
+    if isinstance(o, dict):
+        return {k: _clean(v) for k, v in o.items()}
+    if isinstance(o, (list, tuple)):
+        return [_clean(v) for v in o]
+    if isinstance(o, np.generic):
+        return _clean(o.item())
+    return o
+
+
+def summary_json(rating, i: int) -> str:
+    """The post's summary as stored (the cautions are constant text: shown, not stored)."""
+    s = dict(rating.summary(i))
+    s.pop("cautions", None)
+    return json.dumps(_clean(s), default=_json_default, separators=(",", ":"))
+
+
+def rate(records: list[dict[str, str]], *, summaries: bool = True) -> RatedRows:
+    """Rate every record in ONE engine call; rows with field errors get None and their errors."""
+    from fieldcheck.records import rate_records
+
+    n = len(records)
+    if n == 0:
+        return RatedRows([], [])
+    rating, errors = rate_records(records)
+    errs = [RowError(int(e.row), str(e.column), str(e.message)) for e in errors]
+    bad = {e.row for e in errs}
+    ok_rows = [i for i in range(n) if i not in bad]
+    m = len(ok_rows)
+    out: list[tuple | None] = [None] * n
+    if m == 0:
+        return RatedRows(out, errs)
+    cap = _floats(rating.capacity_n)
+    dem = _floats(rating.demand_n)
+    ratio = _floats(rating.ratio)
+    action = np.asarray(rating.action).astype(np.int64).tolist()
+    names = np.asarray(list(rating.check_names), dtype=object)
+    gov = names[np.asarray(rating.governing, dtype=np.int64)].tolist()
+    flags = np.asarray(rating.flags).astype(np.int64).tolist()
+    if len(cap) != m:
+        raise RuntimeError(f"the engine returned {len(cap)} ratings for {m} valid records")
+    if summaries:
+        summ = [summary_json(rating, j) for j in range(m)]
+    else:
+        summ = [None] * m
+    for j, i in enumerate(ok_rows):
+        out[i] = (cap[j], dem[j], ratio[j], action[j], gov[j], flags[j], summ[j])
+    return RatedRows(out, errs)

@@ -1,0 +1,986 @@
+"""The survey log's repository API: plain methods in, frozen dataclasses out, no SQL outside.
+
+See the package docstring (``fieldcheck.store``) for the whole API in one place.
+"""
+
+from __future__ import annotations
+
+import contextlib
+import datetime as _dt
+import getpass
+import hashlib
+import json
+import shutil
+import sqlite3
+import threading
+import uuid
+from collections.abc import Iterable, Iterator, Mapping
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from sqlite_utils import Database
+
+from fieldcheck.store import rated
+from fieldcheck.store.connection import APPLICATION_ID, LogError, connect, damaged, pragma
+from fieldcheck.store.paths import default_log_path
+from fieldcheck.store.rated import RowError, action_label
+from fieldcheck.store.schema import MIGRATION_NAMES, MIGRATION_SET, SCHEMA_VERSION, migrations
+
+VISIT_LEVELS = ("minimum", "standard", "detailed")  # how much was measured (judgement)
+REVIEW_KINDS = ("note", "sign-off")
+# columns that export adds beside the record; import drops them so an export re-imports
+EXPORT_ONLY_COLUMNS = (
+    "site", "visit", "member_id", "observation_id", "revised_at", "revised_by",
+    "ratio", "action", "capacity_kN", "demand_kN", "governing", "engine_version",
+)
+
+
+def now() -> str:
+    """Wall time with its zone, ISO-8601 (for people only: order comes from device_seq)."""
+    return _dt.datetime.now().astimezone().isoformat(timespec="milliseconds")
+
+
+def new_id() -> str:
+    return str(uuid.uuid4())
+
+
+def _loads(text: str | None):
+    return None if text is None else json.loads(text)
+
+
+def _dumps(obj) -> str:
+    return json.dumps(obj, ensure_ascii=False, separators=(",", ":"))
+
+
+def clean_record(record: Mapping[str, object]) -> dict[str, str]:
+    """The record as typed, minus cells left empty (an empty cell means "not given")."""
+    out: dict[str, str] = {}
+    for k, v in record.items():
+        if v is None:
+            continue
+        s = v if isinstance(v, str) else str(v)
+        if s.strip():
+            out[str(k)] = s
+    return out
+
+
+# ----------------------------------------------------------------------------- dataclasses
+
+
+@dataclass(frozen=True)
+class Site:
+    id: str
+    name: str
+    address: str
+    notes: str
+    device_id: str
+    author: str
+    created_at: str
+
+
+@dataclass(frozen=True)
+class Visit:
+    id: str
+    site_id: str
+    name: str
+    inspector: str
+    started_at: str
+    level: str
+    instruments: tuple[str, ...]
+    notes: str
+    device_id: str
+    author: str
+    created_at: str
+
+
+@dataclass(frozen=True)
+class Observation:
+    """One revision of a member's inputs, as typed on a visit."""
+
+    id: str
+    member_id: str
+    visit_id: str
+    supersedes: str | None
+    withdrawn: bool
+    reason: str
+    record: dict[str, str]
+    device_id: str
+    device_seq: int
+    author: str
+    created_at: str
+
+
+@dataclass(frozen=True)
+class StoredRating:
+    """A rating as the engine gave it then, with the engine version and data editions used."""
+
+    id: str
+    observation_id: str
+    engine_version: str
+    data_editions: dict[str, str]
+    capacity_n: float | None
+    demand_n: float | None
+    ratio: float | None
+    action: int | None
+    action_label: str
+    governing: str
+    flags: int
+    summary: dict | None
+    created_at: str
+
+
+@dataclass(frozen=True)
+class PostView:
+    """The current revision of one member with its latest rating (one row of the posts table)."""
+
+    member_id: str
+    observation_id: str
+    visit_id: str
+    site_id: str
+    tag: str
+    location: str
+    record: dict[str, str]
+    ratio: float | None
+    action: int | None
+    action_label: str
+    capacity_n: float | None
+    demand_n: float | None
+    governing: str
+    engine_version: str | None
+    revised_at: str
+    revised_by: str
+    conflict: bool  # more than one head: two revisions made without seeing each other
+
+
+@dataclass(frozen=True)
+class Attachment:
+    id: str
+    observation_id: str | None
+    member_id: str
+    path: str
+    sha256: str
+    size_bytes: int
+    caption: str
+    created_at: str
+
+
+@dataclass(frozen=True)
+class AttachmentProblem:
+    attachment: Attachment
+    problem: str  # "missing" or "changed"
+
+    def sentence(self) -> str:
+        if self.problem == "missing":
+            return f"photo {self.attachment.path} is missing (recorded {self.attachment.created_at})"
+        return (
+            f"photo {self.attachment.path} has changed since it was attached "
+            f"(sha256 no longer {self.attachment.sha256[:12]}...)"
+        )
+
+
+@dataclass(frozen=True)
+class Review:
+    id: str
+    kind: str
+    text: str
+    member_id: str | None
+    observation_id: str | None
+    visit_id: str | None
+    author: str
+    created_at: str
+
+
+@dataclass(frozen=True)
+class RerateResult:
+    rated: int
+    unrated: int  # current records the engine now refuses (kept, with their old ratings)
+    engine_version: str
+    errors: list[RowError] = field(default_factory=list)
+
+
+@dataclass(frozen=True)
+class ImportResult:
+    imported: int
+    errors: list[RowError]
+    site: Site
+    visit: Visit
+
+
+@dataclass(frozen=True)
+class ExportTable:
+    columns: list[str]
+    rows: list[dict[str, object]]
+
+
+@dataclass(frozen=True)
+class IntegrityReport:
+    path: str
+    schema_version: int
+    integrity: list[str]  # PRAGMA integrity_check lines ("ok" when sound)
+    foreign_keys: list[str]
+    attachments: list[AttachmentProblem]
+    conflicts: int
+
+    @property
+    def ok(self) -> bool:
+        return not self.problems()
+
+    def problems(self) -> list[str]:
+        out: list[str] = []
+        if self.integrity != ["ok"]:
+            out += [f"SQLite integrity check: {line}" for line in self.integrity]
+        out += [f"foreign key: {line}" for line in self.foreign_keys]
+        out += [p.sentence() for p in self.attachments]
+        if self.schema_version != SCHEMA_VERSION:
+            out.append(
+                f"schema version {self.schema_version}, this fieldcheck writes {SCHEMA_VERSION} "
+                "(opening the log for writing upgrades it after a backup copy)"
+            )
+        return out
+
+
+# ----------------------------------------------------------------------------- the log
+
+
+class Log:
+    """One survey log file: one writer connection, one transaction per user action."""
+
+    def __init__(self, db: Database, path: Path, device_id: str, author: str, readonly: bool):
+        self.db = db
+        self.path = path
+        self.device_id = device_id
+        self.author = author
+        self.readonly = readonly
+        self._lock = threading.RLock()
+        self.backup_path: Path | None = None  # set when open() upgraded the file
+
+    # ---- opening
+
+    @classmethod
+    def open(
+        cls,
+        path: Path | str | None = None,
+        *,
+        author: str | None = None,
+        device: str | None = None,
+        readonly: bool = False,
+    ) -> Log:
+        """Open (or create) a log; an older schema is upgraded after a backup copy beside it, a
+        newer or foreign file is refused with one sentence (LogError, a ValueError)."""
+        path = Path(path) if path is not None else default_log_path()
+        if path.exists() and path.is_dir():
+            raise LogError(f"the survey log {path} is a folder; give a file name such as {path}/survey.db")
+        found: dict[str, int] = {}
+
+        def inspect(db: Database) -> None:
+            found["app"] = int(pragma(db, "application_id") or 0)
+            found["version"] = int(pragma(db, "user_version") or 0)
+            found["tables"] = int(
+                db.conn.execute("SELECT count(*) FROM sqlite_master").fetchone()[0]
+            )
+            if found["app"] not in (0, APPLICATION_ID) or (found["app"] == 0 and found["tables"]):
+                raise LogError(
+                    f"{path} is an SQLite file but not a fieldcheck survey log; give a survey log "
+                    "or a new file name with --db"
+                )
+            if found["version"] > SCHEMA_VERSION:
+                raise LogError(
+                    f"the survey log {path} was written by a newer fieldcheck (schema version "
+                    f"{found['version']}, this one reads up to {SCHEMA_VERSION}); update fieldcheck "
+                    "to open it, the file is left unchanged"
+                )
+
+        db = connect(path, readonly=readonly, inspect=inspect)
+        try:
+            version = found["version"]
+            backup = None
+            if not readonly:
+                if 0 < version < SCHEMA_VERSION:
+                    backup = _backup_copy(db, path, version)
+                migrations.apply(db)
+                _check_migrations(db, path)
+                meta = _ensure_meta(db)
+            else:
+                meta = _read_meta(db)
+            dev = device or meta.get("device_id") or "unknown-device"
+            who = author or meta.get("author") or _default_author()
+        except sqlite3.DatabaseError as exc:
+            db.close()
+            raise damaged(path, exc) from exc
+        except BaseException:
+            db.close()
+            raise
+        log = cls(db, path, dev, who, readonly)
+        log.backup_path = backup
+        return log
+
+    def close(self) -> None:
+        with self._lock:
+            with contextlib.suppress(sqlite3.Error):
+                if not self.readonly:
+                    self.db.execute("PRAGMA wal_checkpoint(TRUNCATE)")
+            self.db.close()
+
+    def __enter__(self) -> Log:
+        return self
+
+    def __exit__(self, *exc) -> None:
+        self.close()
+
+    @property
+    def schema_version(self) -> int:
+        return int(pragma(self.db, "user_version") or 0)
+
+    def meta(self) -> dict[str, str]:
+        return _read_meta(self.db)
+
+    def set_firm(self, firm_id: str) -> None:
+        with self._write():
+            self.db.execute("INSERT OR REPLACE INTO meta VALUES ('firm_id', ?)", [firm_id])
+
+    # ---- internals
+
+    @contextlib.contextmanager
+    def _write(self) -> Iterator[None]:
+        """One user action = one transaction (and one thread at a time)."""
+        if self.readonly:
+            raise LogError(f"the survey log {self.path} was opened read-only")
+        with self._lock, self.db.atomic():
+            yield
+
+    def _seqs(self, n: int) -> range:
+        """Allocate n per-device sequence numbers inside the current transaction."""
+        assert self.db.conn.in_transaction
+        key = f"seq:{self.device_id}"
+        row = self.db.conn.execute("SELECT value FROM meta WHERE key = ?", [key]).fetchone()
+        last = int(row[0]) if row else 0
+        self.db.conn.execute("INSERT OR REPLACE INTO meta VALUES (?, ?)", [key, str(last + n)])
+        return range(last + 1, last + n + 1)
+
+    def _insert(self, table: str, columns: tuple[str, ...], rows: Iterable[tuple]) -> None:
+        """Bulk insert inside the open transaction (executemany: the fast path for 100k rows;
+        sqlite-utils' own ``atomic()`` owns the transaction)."""
+        assert self.db.conn.in_transaction
+        marks = ",".join("?" * len(columns))
+        self.db.conn.executemany(
+            f"INSERT INTO {table} ({','.join(columns)}) VALUES ({marks})", rows
+        )
+
+    def _origin(self, seq: int, created: str) -> tuple:
+        return (self.device_id, seq, self.author, created)
+
+    def _one(self, sql: str, params: list) -> dict | None:
+        rows = list(self.db.query(sql, params))
+        return rows[0] if rows else None
+
+    # ---- sites and visits
+
+    def add_site(self, name: str, address: str = "", notes: str = "") -> Site:
+        name = name.strip()
+        if not name:
+            raise ValueError("site name is empty; give a name such as '14 Alder Row'")
+        with self._write():
+            (seq,) = self._seqs(1)
+            site = Site(new_id(), name, address, notes, self.device_id, self.author, now())
+            self._insert(
+                "sites", _SITE_COLS,
+                [(site.id, name, address, notes, *self._origin(seq, site.created_at))],
+            )
+        return site
+
+    def sites(self) -> list[Site]:
+        return [_site(r) for r in self.db.query("SELECT * FROM sites ORDER BY rowid")]
+
+    def site(self, site_id: str) -> Site:
+        r = self._one("SELECT * FROM sites WHERE id = ?", [site_id])
+        if r is None:
+            raise ValueError(f"site {site_id} is not in this log; list sites with the interface")
+        return _site(r)
+
+    def find_site(self, name: str) -> Site | None:
+        r = self._one("SELECT * FROM sites WHERE name = ? ORDER BY rowid LIMIT 1", [name])
+        return None if r is None else _site(r)
+
+    def add_visit(
+        self,
+        site_id: str,
+        inspector: str | None = None,
+        level: str = "minimum",
+        *,
+        name: str | None = None,
+        instruments: Iterable[str] = (),
+        notes: str = "",
+        started_at: str | None = None,
+    ) -> Visit:
+        if level not in VISIT_LEVELS:
+            raise ValueError(
+                f"visit level {level!r} is not known; use one of {', '.join(VISIT_LEVELS)}, "
+                "e.g. minimum"
+            )
+        inspector = (inspector or self.author).strip() or self.author
+        started = started_at or now()
+        name = (name or f"{started[:10]} {inspector}").strip()
+        with self._write():
+            self.site(site_id)
+            (seq,) = self._seqs(1)
+            v = Visit(
+                new_id(), site_id, name, inspector, started, level, tuple(instruments), notes,
+                self.device_id, self.author, now(),
+            )
+            self._insert(
+                "visits", _VISIT_COLS,
+                [(v.id, site_id, name, inspector, started, _dumps(list(v.instruments)), level,
+                  notes, *self._origin(seq, v.created_at))],
+            )
+        return v
+
+    def visits(self, site_id: str | None = None) -> list[Visit]:
+        if site_id is None:
+            rows = self.db.query("SELECT * FROM visits ORDER BY rowid")
+        else:
+            rows = self.db.query("SELECT * FROM visits WHERE site_id = ? ORDER BY rowid", [site_id])
+        return [_visit(r) for r in rows]
+
+    def visit(self, visit_id: str) -> Visit:
+        r = self._one("SELECT * FROM visits WHERE id = ?", [visit_id])
+        if r is None:
+            raise ValueError(f"visit {visit_id} is not in this log; choose a visit of a site")
+        return _visit(r)
+
+    def find_visit(self, site_id: str, name: str) -> Visit | None:
+        r = self._one(
+            "SELECT * FROM visits WHERE site_id = ? AND name = ? ORDER BY rowid LIMIT 1",
+            [site_id, name],
+        )
+        return None if r is None else _visit(r)
+
+    # ---- posts: revisions and ratings
+
+    def save_post(
+        self,
+        visit_id: str,
+        record: Mapping[str, object],
+        member_id: str | None = None,
+        *,
+        allow_errors: bool = False,
+    ) -> Observation:
+        """Store a post as typed: a new member (member_id None) or a new revision superseding the
+        member's current head; rated in the same transaction. A record the engine refuses
+        raises ValueError (its first field error) unless ``allow_errors`` (then stored unrated)."""
+        rec = clean_record(record)
+        result = rated.rate([rec])
+        if result.errors and not allow_errors:
+            raise ValueError(result.errors[0].message)
+        version, editions = rated.engine_stamp()
+        with self._write():
+            visit = self.visit(visit_id)
+            seqs = iter(self._seqs(3))
+            created = now()
+            head = None
+            if member_id is None:
+                member_id = new_id()
+                self._insert(
+                    "members", _MEMBER_COLS,
+                    [(member_id, visit.site_id, rec.get("tag", ""), *self._origin(next(seqs), created))],
+                )
+            else:
+                head = self._head(member_id)
+                if head is None:
+                    raise ValueError(f"post {member_id} is not in this log; save it as a new post")
+            obs = Observation(
+                new_id(), member_id, visit_id, head.id if head else None, False, "", rec,
+                self.device_id, next(seqs), self.author, created,
+            )
+            self._insert("observations", _OBS_COLS, [_obs_row(obs)])
+            row = result.rows[0]
+            if row is not None:
+                self._insert(
+                    "ratings", _RATING_COLS,
+                    [(new_id(), obs.id, version, editions, *row, *self._origin(next(seqs), created))],
+                )
+        return obs
+
+    def withdraw(self, member_id: str, visit_id: str, reason: str) -> Observation:
+        """Remove a post from the current view: a revision marked withdrawn (history kept)."""
+        with self._write():
+            self.visit(visit_id)
+            head = self._head(member_id)
+            if head is None:
+                raise ValueError(f"post {member_id} is not in this log")
+            if head.withdrawn:
+                raise ValueError("this post is already withdrawn; save it again to restore it")
+            (seq,) = self._seqs(1)
+            obs = Observation(
+                new_id(), member_id, visit_id, head.id, True, reason, head.record,
+                self.device_id, seq, self.author, now(),
+            )
+            self._insert("observations", _OBS_COLS, [_obs_row(obs)])
+        return obs
+
+    def _head(self, member_id: str) -> Observation | None:
+        r = self._one(
+            "SELECT * FROM observations o WHERE member_id = ? AND NOT EXISTS "
+            "(SELECT 1 FROM observations c WHERE c.supersedes = o.id) "
+            "ORDER BY device_seq DESC, id DESC LIMIT 1",
+            [member_id],
+        )
+        return None if r is None else _observation(r)
+
+    def head(self, member_id: str) -> Observation | None:
+        """The current revision of a member (withdrawn or not); None if unknown."""
+        return self._head(member_id)
+
+    def history(self, member_id: str) -> list[Observation]:
+        """Every revision of a member, oldest first (a revision always follows its parent)."""
+        return [
+            _observation(r)
+            for r in self.db.query(
+                "SELECT * FROM observations WHERE member_id = ? ORDER BY rowid", [member_id]
+            )
+        ]
+
+    def observation(self, observation_id: str) -> Observation:
+        r = self._one("SELECT * FROM observations WHERE id = ?", [observation_id])
+        if r is None:
+            raise ValueError(f"observation {observation_id} is not in this log")
+        return _observation(r)
+
+    def rating_for(self, observation_id: str) -> StoredRating | None:
+        """The latest stored rating of a revision, exactly as it was stored."""
+        r = self._one(
+            "SELECT * FROM ratings WHERE observation_id = ? ORDER BY rowid DESC LIMIT 1",
+            [observation_id],
+        )
+        return None if r is None else _rating(r)
+
+    def ratings_for(self, observation_id: str) -> list[StoredRating]:
+        """Every rating of a revision, oldest first (one per engine run)."""
+        return [
+            _rating(r)
+            for r in self.db.query(
+                "SELECT * FROM ratings WHERE observation_id = ? ORDER BY rowid", [observation_id]
+            )
+        ]
+
+    def posts(
+        self,
+        visit_id: str | None = None,
+        *,
+        site_id: str | None = None,
+        include_withdrawn: bool = False,
+    ) -> list[PostView]:
+        """Current revision of each member (seen on ``visit_id`` / at ``site_id`` / all), in the
+        order the members were first recorded, with the latest rating of that revision."""
+        where, params = [], []
+        if visit_id is not None:
+            where.append("o.member_id IN (SELECT member_id FROM observations WHERE visit_id = ?)")
+            params.append(visit_id)
+        if site_id is not None:
+            where.append("o.member_id IN (SELECT id FROM members WHERE site_id = ?)")
+            params.append(site_id)
+        sql = _POSTS_SQL.format(
+            filter=("AND " + " AND ".join(where)) if where else "",
+            withdrawn="" if include_withdrawn else "AND h.withdrawn = 0",
+        )
+        return [_post_view(r) for r in self.db.query(sql, params)]
+
+    def conflicts(self) -> list[str]:
+        """Members with more than one head (revisions made without seeing each other)."""
+        return [
+            r["member_id"]
+            for r in self.db.query(
+                "SELECT member_id FROM observations o WHERE NOT EXISTS "
+                "(SELECT 1 FROM observations c WHERE c.supersedes = o.id) "
+                "GROUP BY member_id HAVING count(*) > 1"
+            )
+        ]
+
+    def counts_by_action(self, visit_id: str | None = None) -> dict[str, int]:
+        """{action label: number of current posts}, every label present (for the first screen)."""
+        out = {action_label(a): 0 for a in range(len(rated.ACTION_LABELS))}
+        out[action_label(None)] = 0
+        for p in self.posts(visit_id):
+            out[p.action_label] = out.get(p.action_label, 0) + 1
+        return out
+
+    def rerate_all(self) -> RerateResult:
+        """Re-rate every current revision in ONE engine call and store the new ratings (with
+        this engine's version and data editions) in one transaction; old ratings are kept."""
+        with self._lock:
+            heads = list(
+                self.db.query(
+                    "SELECT id, record_json FROM observations o WHERE withdrawn = 0 AND NOT EXISTS "
+                    "(SELECT 1 FROM observations c WHERE c.supersedes = o.id) ORDER BY rowid"
+                )
+            )
+            ids = [h["id"] for h in heads]
+            loads = json.loads
+            records = [loads(h["record_json"]) for h in heads]
+            result = rated.rate(records, summaries=False)
+            version, editions = rated.engine_stamp()
+            good = [(i, row) for i, row in zip(ids, result.rows, strict=True) if row is not None]
+            created = now()
+            with self._write():
+                seqs = self._seqs(len(good))
+                origin = (self.device_id, self.author, created)
+                self._insert(
+                    "ratings", _RATING_COLS,
+                    (
+                        (new_id(), oid, version, editions, *row, origin[0], seq, origin[1], origin[2])
+                        for (oid, row), seq in zip(good, seqs, strict=True)
+                    ),
+                )
+        return RerateResult(len(good), len(ids) - len(good), version, result.errors)
+
+    # ---- bulk import and export
+
+    def import_rows(
+        self,
+        rows: Iterable[Mapping[str, object]],
+        site: str,
+        visit: str,
+        inspector: str | None = None,
+    ) -> ImportResult:
+        """Add many posts in ONE transaction and ONE engine call: the site and visit are found by
+        name (or created); rows the records layer refuses are reported (0-based row, column,
+        message) and left out, the others imported as new members."""
+        records = [
+            clean_record({k: v for k, v in r.items() if k not in _EXPORT_ONLY}) for r in rows
+        ]
+        result = rated.rate(records, summaries=False)
+        version, editions = rated.engine_stamp()
+        ok = [i for i, row in enumerate(result.rows) if row is not None]
+        with self._write():
+            s = self.find_site(site) or self.add_site(site)
+            v = self.find_visit(s.id, visit) or self.add_visit(s.id, inspector, name=visit)
+            created = now()
+            seqs = iter(self._seqs(3 * len(ok)))
+            member_ids = [new_id() for _ in ok]
+            obs_ids = [new_id() for _ in ok]
+            dev, who = self.device_id, self.author
+            self._insert(
+                "members", _MEMBER_COLS,
+                [(mid, s.id, records[i].get("tag", ""), dev, next(seqs), who, created)
+                 for mid, i in zip(member_ids, ok, strict=True)],
+            )
+            self._insert(
+                "observations", _OBS_COLS,
+                [(oid, mid, v.id, None, 0, "", _dumps(records[i]), dev, next(seqs), who, created)
+                 for oid, mid, i in zip(obs_ids, member_ids, ok, strict=True)],
+            )
+            rows_ = result.rows
+            self._insert(
+                "ratings", _RATING_COLS,
+                [(new_id(), oid, version, editions, *rows_[i], dev, next(seqs), who, created)
+                 for oid, i in zip(obs_ids, ok, strict=True)],
+            )
+        return ImportResult(len(ok), result.errors, s, v)
+
+    def export_rows(self, visit_id: str | None = None) -> ExportTable:
+        """Current posts as flat rows: the record columns (registry order, then any others) and
+        the rating columns (EXPORT_ONLY_COLUMNS); an exported CSV imports again."""
+        posts = self.posts(visit_id)
+        sites = {s.id: s.name for s in self.sites()}
+        visits = {v.id: v.name for v in self.visits()}
+        seen: dict[str, None] = {}
+        for p in posts:
+            for k in p.record:
+                seen.setdefault(k, None)
+        order = [c for c in _registry_columns() if c in seen]
+        cols = order + [c for c in seen if c not in set(order)]
+        out = []
+        for p in posts:
+            row: dict[str, object] = {c: p.record.get(c, "") for c in cols}
+            row.update(
+                site=sites.get(p.site_id, ""),
+                visit=visits.get(p.visit_id, ""),
+                member_id=p.member_id,
+                observation_id=p.observation_id,
+                revised_at=p.revised_at,
+                revised_by=p.revised_by,
+                ratio=p.ratio,
+                action=p.action_label,
+                capacity_kN=None if p.capacity_n is None else p.capacity_n / 1000.0,
+                demand_kN=None if p.demand_n is None else p.demand_n / 1000.0,
+                governing=p.governing,
+                engine_version=p.engine_version,
+            )
+            out.append(row)
+        return ExportTable(cols + list(EXPORT_ONLY_COLUMNS), out)
+
+    # ---- attachments
+
+    def attach(self, observation_id: str, photo_path: Path | str, caption: str = "") -> Attachment:
+        """Record a photo of a revision by path and sha256 (the file itself stays where it is)."""
+        p = Path(photo_path).expanduser()
+        if not p.is_file():
+            raise ValueError(f"photo {p} is not a file; give the path of a photo, e.g. ~/photos/P1.jpg")
+        digest, size = _sha256(p)
+        with self._write():
+            obs = self.observation(observation_id)
+            (seq,) = self._seqs(1)
+            a = Attachment(new_id(), obs.id, obs.member_id, str(p.resolve()), digest, size, caption, now())
+            self._insert(
+                "attachments", _ATT_COLS,
+                [(a.id, a.observation_id, a.member_id, a.path, digest, size, caption,
+                  *self._origin(seq, a.created_at))],
+            )
+        return a
+
+    def attachments(self, member_id: str | None = None) -> list[Attachment]:
+        if member_id is None:
+            rows = self.db.query("SELECT * FROM attachments ORDER BY rowid")
+        else:
+            rows = self.db.query(
+                "SELECT * FROM attachments WHERE member_id = ? ORDER BY rowid", [member_id]
+            )
+        return [_attachment(r) for r in rows]
+
+    def check_attachments(self) -> list[AttachmentProblem]:
+        """Every attachment whose file is missing or whose sha256 differs from the recorded one."""
+        out = []
+        for a in self.attachments():
+            p = Path(a.path)
+            if not p.is_file():
+                out.append(AttachmentProblem(a, "missing"))
+            elif _sha256(p)[0] != a.sha256:
+                out.append(AttachmentProblem(a, "changed"))
+        return out
+
+    # ---- office review notes and sign-offs
+
+    def add_review(
+        self,
+        kind: str,
+        text: str,
+        *,
+        member_id: str | None = None,
+        observation_id: str | None = None,
+        visit_id: str | None = None,
+    ) -> Review:
+        if kind not in REVIEW_KINDS:
+            raise ValueError(f"review kind {kind!r} is not known; use note or sign-off")
+        with self._write():
+            (seq,) = self._seqs(1)
+            r = Review(new_id(), kind, text, member_id, observation_id, visit_id, self.author, now())
+            self._insert(
+                "reviews", _REVIEW_COLS,
+                [(r.id, member_id, observation_id, visit_id, kind, text,
+                  *self._origin(seq, r.created_at))],
+            )
+        return r
+
+    def reviews(self, member_id: str | None = None) -> list[Review]:
+        if member_id is None:
+            rows = self.db.query("SELECT * FROM reviews ORDER BY rowid")
+        else:
+            rows = self.db.query("SELECT * FROM reviews WHERE member_id = ? ORDER BY rowid", [member_id])
+        return [_review(r) for r in rows]
+
+    # ---- integrity
+
+    def integrity(self) -> IntegrityReport:
+        """SQLite's integrity and foreign-key checks, attachment hashes, schema version."""
+        with self._lock:
+            lines = [r[0] for r in self.db.conn.execute("PRAGMA integrity_check").fetchall()]
+            fks = [
+                f"{r[0]} row {r[1]} refers to a missing {r[2]} row"
+                for r in self.db.conn.execute("PRAGMA foreign_key_check").fetchall()
+            ]
+            has_att = "attachments" in self.db.table_names()
+            problems = self.check_attachments() if has_att else []
+            conflicts = len(self.conflicts()) if "observations" in self.db.table_names() else 0
+        return IntegrityReport(str(self.path), self.schema_version, lines, fks, problems, conflicts)
+
+    def is_empty(self) -> bool:
+        return self.db.conn.execute("SELECT count(*) FROM sites").fetchone()[0] == 0
+
+
+# ----------------------------------------------------------------------------- helpers
+
+_ORIGIN_COLS = ("device_id", "device_seq", "author", "created_at")
+_SITE_COLS = ("id", "name", "address", "notes", *_ORIGIN_COLS)
+_VISIT_COLS = (
+    "id", "site_id", "name", "inspector", "started_at", "instruments", "level", "notes",
+    *_ORIGIN_COLS,
+)
+_MEMBER_COLS = ("id", "site_id", "tag", *_ORIGIN_COLS)
+_OBS_COLS = (
+    "id", "member_id", "visit_id", "supersedes", "withdrawn", "reason", "record_json",
+    *_ORIGIN_COLS,
+)
+_RATING_COLS = (
+    "id", "observation_id", "engine_version", "data_editions", *rated.RATING_COLUMNS,
+    *_ORIGIN_COLS,
+)
+_ATT_COLS = (
+    "id", "observation_id", "member_id", "path", "sha256", "size_bytes", "caption", *_ORIGIN_COLS,
+)
+_REVIEW_COLS = ("id", "member_id", "observation_id", "visit_id", "kind", "text", *_ORIGIN_COLS)
+_EXPORT_ONLY = frozenset(EXPORT_ONLY_COLUMNS)
+
+# heads: revisions nobody supersedes; the newest head per member (by device_seq, never by clock)
+_POSTS_SQL = """
+WITH heads AS (
+    SELECT o.*,
+        row_number() OVER (PARTITION BY o.member_id ORDER BY o.device_seq DESC, o.id DESC) AS rn,
+        count(*) OVER (PARTITION BY o.member_id) AS nheads
+    FROM observations o
+    WHERE NOT EXISTS (SELECT 1 FROM observations c WHERE c.supersedes = o.id) {filter}
+)
+SELECT h.id, h.member_id, h.visit_id, h.record_json, h.nheads, h.created_at, h.author,
+    m.site_id, r.capacity_n, r.demand_n, r.ratio, r.action, r.governing, r.engine_version
+FROM heads h
+JOIN members m ON m.id = h.member_id
+LEFT JOIN ratings r ON r.rowid = (SELECT max(rowid) FROM ratings WHERE observation_id = h.id)
+WHERE h.rn = 1 {withdrawn}
+ORDER BY m.rowid
+"""
+
+
+def _obs_row(o: Observation) -> tuple:
+    return (
+        o.id, o.member_id, o.visit_id, o.supersedes, int(o.withdrawn), o.reason, _dumps(o.record),
+        o.device_id, o.device_seq, o.author, o.created_at,
+    )
+
+
+def _site(r: dict) -> Site:
+    return Site(r["id"], r["name"], r["address"], r["notes"], r["device_id"], r["author"], r["created_at"])
+
+
+def _visit(r: dict) -> Visit:
+    return Visit(
+        r["id"], r["site_id"], r["name"], r["inspector"], r["started_at"], r["level"],
+        tuple(json.loads(r["instruments"])), r["notes"], r["device_id"], r["author"], r["created_at"],
+    )
+
+
+def _observation(r: dict) -> Observation:
+    return Observation(
+        r["id"], r["member_id"], r["visit_id"], r["supersedes"], bool(r["withdrawn"]), r["reason"],
+        json.loads(r["record_json"]), r["device_id"], r["device_seq"], r["author"], r["created_at"],
+    )
+
+
+def _rating(r: dict) -> StoredRating:
+    return StoredRating(
+        r["id"], r["observation_id"], r["engine_version"], json.loads(r["data_editions"]),
+        r["capacity_n"], r["demand_n"], r["ratio"], r["action"], action_label(r["action"]),
+        r["governing"], r["flags"], _loads(r["summary_json"]), r["created_at"],
+    )
+
+
+def _post_view(r: dict) -> PostView:
+    rec = json.loads(r["record_json"])
+    return PostView(
+        r["member_id"], r["id"], r["visit_id"], r["site_id"], rec.get("tag", ""),
+        rec.get("location", ""), rec, r["ratio"], r["action"], action_label(r["action"]),
+        r["capacity_n"], r["demand_n"], r["governing"] or "", r["engine_version"],
+        r["created_at"], r["author"], r["nheads"] > 1,
+    )
+
+
+def _attachment(r: dict) -> Attachment:
+    return Attachment(
+        r["id"], r["observation_id"], r["member_id"], r["path"], r["sha256"], r["size_bytes"],
+        r["caption"], r["created_at"],
+    )
+
+
+def _review(r: dict) -> Review:
+    return Review(
+        r["id"], r["kind"], r["text"], r["member_id"], r["observation_id"], r["visit_id"],
+        r["author"], r["created_at"],
+    )
+
+
+def _sha256(p: Path) -> tuple[str, int]:
+    h = hashlib.sha256()
+    size = 0
+    with p.open("rb") as fh:
+        for chunk in iter(lambda: fh.read(1 << 20), b""):
+            h.update(chunk)
+            size += len(chunk)
+    return h.hexdigest(), size
+
+
+def _default_author() -> str:
+    try:
+        return getpass.getuser() or "inspector"
+    except (OSError, KeyError):
+        return "inspector"
+
+
+def _registry_columns() -> list[str]:
+    """Record columns in the registry's order (fieldcheck.records.columns), if it is there."""
+    try:
+        from fieldcheck.records import columns as reg
+    except ImportError:
+        return list(_FALLBACK_ORDER)
+    for attr in ("COLUMNS", "REGISTRY", "columns"):
+        cols = getattr(reg, attr, None)
+        if cols is None:
+            continue
+        if isinstance(cols, Mapping):
+            return [str(k) for k in cols]
+        try:
+            return [c if isinstance(c, str) else c.name for c in cols]
+        except (TypeError, AttributeError):
+            continue
+    return list(_FALLBACK_ORDER)
+
+
+_FALLBACK_ORDER = (
+    "tag", "location", "size", "section", "diameter", "height", "brace1", "brace2", "top",
+    "bottom", "species", "grade", "method", "duration", "moisture", "load", "notes",
+)
+
+
+def _read_meta(db: Database) -> dict[str, str]:
+    if "meta" not in db.table_names():
+        return {}
+    return {r["key"]: r["value"] for r in db.query("SELECT key, value FROM meta")}
+
+
+def _ensure_meta(db: Database) -> dict[str, str]:
+    meta = _read_meta(db)
+    if "device_id" not in meta:
+        with db.atomic():
+            db.execute("INSERT OR IGNORE INTO meta VALUES ('device_id', ?)", [new_id()])
+            db.execute("INSERT OR IGNORE INTO meta VALUES ('firm_id', '')")
+            db.execute("INSERT OR IGNORE INTO meta VALUES ('created_at', ?)", [now()])
+        meta = _read_meta(db)
+    if meta.get("schema_version") != str(SCHEMA_VERSION):
+        db.execute("INSERT OR REPLACE INTO meta VALUES ('schema_version', ?)", [str(SCHEMA_VERSION)])
+        meta["schema_version"] = str(SCHEMA_VERSION)
+    return meta
+
+
+def _check_migrations(db: Database, path: Path) -> None:
+    """A migration we do not know means a newer fieldcheck wrote this file (belt and braces)."""
+    applied = {m.name for m in migrations.applied(db)}
+    unknown = applied - set(MIGRATION_NAMES)
+    if unknown:
+        raise LogError(
+            f"the survey log {path} has migrations this fieldcheck does not know "
+            f"({', '.join(sorted(unknown))} in set {MIGRATION_SET}); update fieldcheck to open it"
+        )
+
+
+def _backup_copy(db: Database, path: Path, version: int) -> Path:
+    """A consistent copy beside the log before upgrading it: survey.db.v1-backup-<time>."""
+    stamp = _dt.datetime.now().strftime("%Y%m%dT%H%M%S")
+    dest = path.with_name(f"{path.name}.v{version}-backup-{stamp}")
+    n = 1
+    while dest.exists():
+        n += 1
+        dest = path.with_name(f"{path.name}.v{version}-backup-{stamp}-{n}")
+    tmp = dest.with_name(dest.name + ".part")
+    target = sqlite3.connect(str(tmp))
+    try:
+        db.conn.backup(target)
+    finally:
+        target.close()
+    shutil.move(str(tmp), str(dest))
+    return dest

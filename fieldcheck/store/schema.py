@@ -1,0 +1,144 @@
+"""The survey log's tables and their migrations (sqlite-utils ``Migrations``).
+
+The schema version lives in the file twice: ``PRAGMA user_version`` (read before anything else,
+so a log written by a newer fieldcheck is refused before we touch it) and the sqlite-utils
+``_sqlite_migrations`` table (which migrations ran, and when). ``PRAGMA application_id`` marks
+the file as ours.
+
+Every table that holds what an inspector or the office recorded is append-only: BEFORE UPDATE
+and BEFORE DELETE triggers abort. Each row carries a UUID made on the device that wrote it, the
+device id, a per-device sequence number (ordering and sync never rely on laptop clocks), the
+author and the time with its zone. ``meta`` and ``sync_state`` are bookkeeping and may change.
+
+Version history
+  1  sites, visits, members, observations, ratings, attachments, meta
+  2  reviews (office notes and sign-offs, synced back to the field), sync_state
+"""
+
+from __future__ import annotations
+
+from sqlite_utils import Database, Migrations
+
+from fieldcheck.store.connection import APPLICATION_ID
+
+SCHEMA_VERSION = 2
+MIGRATION_SET = "fieldcheck"
+migrations = Migrations(MIGRATION_SET)
+
+# who wrote a row, where and when (time as ISO-8601 with zone, for people only)
+_ORIGIN = """
+    device_id TEXT NOT NULL,
+    device_seq INTEGER NOT NULL CHECK (device_seq > 0),
+    author TEXT NOT NULL,
+    created_at TEXT NOT NULL CHECK (created_at LIKE '____-__-__T__:__:__%'),
+    UNIQUE (device_id, device_seq)"""
+
+APPEND_ONLY_V1 = ("sites", "visits", "members", "observations", "ratings", "attachments")
+APPEND_ONLY_V2 = ("reviews",)
+APPEND_ONLY = APPEND_ONLY_V1 + APPEND_ONLY_V2
+
+
+def _append_only(db: Database, table: str) -> None:
+    for op in ("UPDATE", "DELETE"):
+        db.execute(
+            f"CREATE TRIGGER IF NOT EXISTS {table}_no_{op.lower()} BEFORE {op} ON {table} "
+            f"BEGIN SELECT RAISE(ABORT, '{table} is append-only: record a new revision instead'); END"
+        )
+
+
+@migrations(name="0001_initial")
+def _v1(db: Database) -> None:
+    statements = [
+        """CREATE TABLE meta (key TEXT PRIMARY KEY, value TEXT NOT NULL) STRICT""",
+        f"""CREATE TABLE sites (
+            id TEXT PRIMARY KEY,
+            name TEXT NOT NULL CHECK (length(name) > 0),
+            address TEXT NOT NULL DEFAULT '',
+            notes TEXT NOT NULL DEFAULT '',{_ORIGIN}) STRICT""",
+        f"""CREATE TABLE visits (
+            id TEXT PRIMARY KEY,
+            site_id TEXT NOT NULL REFERENCES sites(id),
+            name TEXT NOT NULL CHECK (length(name) > 0),
+            inspector TEXT NOT NULL,
+            started_at TEXT NOT NULL,
+            instruments TEXT NOT NULL DEFAULT '[]' CHECK (json_valid(instruments)),
+            level TEXT NOT NULL DEFAULT 'minimum',
+            notes TEXT NOT NULL DEFAULT '',{_ORIGIN}) STRICT""",
+        f"""CREATE TABLE members (
+            id TEXT PRIMARY KEY,
+            site_id TEXT NOT NULL REFERENCES sites(id),
+            tag TEXT NOT NULL DEFAULT '',{_ORIGIN}) STRICT""",
+        f"""CREATE TABLE observations (
+            id TEXT PRIMARY KEY,
+            member_id TEXT NOT NULL REFERENCES members(id),
+            visit_id TEXT NOT NULL REFERENCES visits(id),
+            supersedes TEXT REFERENCES observations(id),
+            withdrawn INTEGER NOT NULL DEFAULT 0 CHECK (withdrawn IN (0, 1)),
+            reason TEXT NOT NULL DEFAULT '',
+            record_json TEXT NOT NULL CHECK (json_valid(record_json)),{_ORIGIN}) STRICT""",
+        f"""CREATE TABLE ratings (
+            id TEXT PRIMARY KEY,
+            observation_id TEXT NOT NULL REFERENCES observations(id),
+            engine_version TEXT NOT NULL,
+            data_editions TEXT NOT NULL CHECK (json_valid(data_editions)),
+            capacity_n REAL,
+            demand_n REAL,
+            ratio REAL,
+            action INTEGER,
+            governing TEXT NOT NULL DEFAULT '',
+            flags INTEGER NOT NULL DEFAULT 0,
+            summary_json TEXT CHECK (summary_json IS NULL OR json_valid(summary_json)),{_ORIGIN}) STRICT""",
+        f"""CREATE TABLE attachments (
+            id TEXT PRIMARY KEY,
+            observation_id TEXT REFERENCES observations(id),
+            member_id TEXT NOT NULL REFERENCES members(id),
+            path TEXT NOT NULL,
+            sha256 TEXT NOT NULL CHECK (length(sha256) = 64),
+            size_bytes INTEGER NOT NULL,
+            caption TEXT NOT NULL DEFAULT '',{_ORIGIN}) STRICT""",
+        "CREATE INDEX visits_site ON visits(site_id)",
+        "CREATE INDEX members_site ON members(site_id)",
+        "CREATE INDEX observations_member ON observations(member_id)",
+        "CREATE INDEX observations_visit ON observations(visit_id)",
+        "CREATE INDEX observations_supersedes ON observations(supersedes)",
+        "CREATE INDEX ratings_observation ON ratings(observation_id)",
+        "CREATE INDEX attachments_observation ON attachments(observation_id)",
+        "CREATE INDEX attachments_member ON attachments(member_id)",
+    ]
+    for sql in statements:
+        db.execute(sql)
+    for table in APPEND_ONLY_V1:
+        _append_only(db, table)
+    db.execute(f"PRAGMA application_id = {APPLICATION_ID}")
+    db.execute("PRAGMA user_version = 1")
+
+
+@migrations(name="0002_reviews_sync")
+def _v2(db: Database) -> None:
+    db.execute(
+        f"""CREATE TABLE reviews (
+            id TEXT PRIMARY KEY,
+            member_id TEXT REFERENCES members(id),
+            observation_id TEXT REFERENCES observations(id),
+            visit_id TEXT REFERENCES visits(id),
+            kind TEXT NOT NULL CHECK (kind IN ('note', 'sign-off')),
+            text TEXT NOT NULL DEFAULT '',{_ORIGIN}) STRICT"""
+    )
+    db.execute("CREATE INDEX reviews_member ON reviews(member_id)")
+    db.execute("CREATE INDEX reviews_observation ON reviews(observation_id)")
+    # bookkeeping for sync: what we last sent to / took from each peer (mutable on purpose)
+    db.execute(
+        """CREATE TABLE sync_state (
+            peer_id TEXT NOT NULL,
+            direction TEXT NOT NULL CHECK (direction IN ('sent', 'received')),
+            device_id TEXT NOT NULL,
+            high_water_seq INTEGER NOT NULL DEFAULT 0,
+            updated_at TEXT NOT NULL,
+            PRIMARY KEY (peer_id, direction, device_id)) STRICT"""
+    )
+    for table in APPEND_ONLY_V2:
+        _append_only(db, table)
+    db.execute("PRAGMA user_version = 2")
+
+
+MIGRATION_NAMES = ("0001_initial", "0002_reviews_sync")  # index + 1 = the version it makes
