@@ -71,6 +71,10 @@ class PostBatch:
     ke1: np.ndarray = _f()  # effective-length factor override per axis (NaN: from the ends)
     ke2: np.ndarray = _f()
     theoretical_k: np.ndarray = _b()  # use theoretical K instead of the recommended design Ke
+    # rotational spring at an end as R = k L / (E I) (0 pin, inf fixed; NaN: from the end code);
+    # the end's translation still comes from its code (free or guided: sways). stability.py
+    r_top: np.ndarray = _f()
+    r_bottom: np.ndarray = _f()
 
     # --- material reference values (NDS Supplement or EN 338), before adjustment
     fc_mpa: np.ndarray = _f()  # Fc (NDS) or f_c,0,k (EN 338)

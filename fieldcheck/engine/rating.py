@@ -262,6 +262,8 @@ def rate(b: PostBatch) -> Rating:
         from fieldcheck.engine.ec5_rating import apply_ec5
 
         apply_ec5(b, checks, values)
+    for hook in CHECK_HOOKS:  # other engine modules add their checks (ground, ...)
+        hook(b, checks, values)
 
     # ---- slenderness limit (NDS 2018 §3.7.1.4) ----------------------------------------------
     le_d_max = np.maximum(values["le_d1"], values["le_d2"])
@@ -286,6 +288,8 @@ def rate(b: PostBatch) -> Rating:
     flags |= np.where(sway & (b.braced1 | b.braced2), F_SWAY_BRACES, 0)
     flags |= np.where(mode < 0, F_MECHANISM, 0)
     flags |= np.where(b.kf < 1.0, F_BUILT_UP, 0)
+    for hook in FLAG_HOOKS:
+        flags |= hook(b, values)
 
     rating = Rating(
         batch=b, checks=checks, capacity_n=p_column, demand_n=load, ratio=p_column,
@@ -330,6 +334,27 @@ def action_from(ratio, flags, le_d_max=None, limit=None) -> np.ndarray:
 
 # (flag bits, minimum action level): condition flags register here (condition.py).
 ESCALATIONS: list[tuple[int, int]] = []
+# hook(batch, checks, values) -> None: adds Check objects (and values) after the core checks
+CHECK_HOOKS: list = []
+# hook(batch, values) -> int64 flag array, OR-ed into the flags
+FLAG_HOOKS: list = []
+
+
+def register_check_hook(fn) -> None:
+    if fn not in CHECK_HOOKS:
+        CHECK_HOOKS.append(fn)
+
+
+def register_flag_hook(fn) -> None:
+    if fn not in FLAG_HOOKS:
+        FLAG_HOOKS.append(fn)
+
+
+def new_flag(bit: int, text: str) -> int:
+    """Claim a warning bit (0-62) with its text; each module keeps its own range."""
+    if bit in FLAG_TEXT and FLAG_TEXT[bit] != text:
+        raise ValueError(f"flag bit {bit} already used")
+    return _flag(bit, text)
 
 
 def mode_label(i_mode: int) -> str:
