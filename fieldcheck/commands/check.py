@@ -1,0 +1,45 @@
+"""`fieldcheck check`: integrity of a survey log (exit 0 sound, 1 problems found, 2 usage)."""
+
+from __future__ import annotations
+
+import argparse
+
+from fieldcheck.commands.log_option import add_db_option, log_path
+
+DESCRIPTION = (
+    "Check a survey log without changing it: SQLite's integrity and foreign-key checks, the "
+    "schema version, and every attached photo against its recorded sha256. Exit code 0 when "
+    "sound, 1 when problems are found."
+)
+
+
+def add_arguments(p: argparse.ArgumentParser) -> None:
+    add_db_option(p)
+
+
+def run(args: argparse.Namespace) -> int:
+    import sqlite3
+
+    from fieldcheck.cli import UsageError
+    from fieldcheck.store import Log, LogError
+    from fieldcheck.store.connection import damaged
+
+    path = log_path(args)
+    if not path.is_file():
+        raise UsageError(f"the survey log {path} does not exist; give an existing log with --db PATH")
+    try:
+        with Log.open(path, readonly=True) as log:
+            report = log.integrity()
+    except LogError as exc:
+        print(f"fieldcheck: {exc}")
+        return 1
+    except sqlite3.DatabaseError as exc:
+        print(f"fieldcheck: {damaged(path, exc)}")
+        return 1
+    problems = report.problems()
+    print(f"{path}: schema version {report.schema_version}, "
+          f"{'sound' if not problems else f'{len(problems)} problems'}"
+          + (f", {report.conflicts} posts with conflicting revisions" if report.conflicts else ""))
+    for p in problems:
+        print(f"  - {p}")
+    return 0 if not problems else 1

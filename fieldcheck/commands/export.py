@@ -1,0 +1,47 @@
+"""`fieldcheck export`: the current posts of a survey log as CSV or JSON."""
+
+from __future__ import annotations
+
+import argparse
+import csv
+import json
+import sys
+
+from fieldcheck.commands.log_option import add_db_option, open_log
+
+DESCRIPTION = (
+    "Write the current posts of a survey log (each post's latest revision, as typed, with its "
+    "latest rating) as CSV or JSON. An exported CSV can be imported again."
+)
+
+
+def add_arguments(p: argparse.ArgumentParser) -> None:
+    add_db_option(p)
+    p.add_argument("--format", choices=("csv", "json"), default="csv", help="output format (csv)")
+    p.add_argument("--out", metavar="FILE", help="write here instead of the standard output")
+
+
+def run(args: argparse.Namespace) -> int:
+    from fieldcheck.cli import UsageError
+
+    with open_log(args, readonly=True, must_exist=True) as log:
+        table = log.export_rows()
+    try:
+        out = open(args.out, "w", newline="", encoding="utf-8") if args.out else sys.stdout
+    except OSError as exc:
+        raise UsageError(f"export: cannot write {args.out} ({exc.strerror})") from None
+    try:
+        if args.format == "json":
+            json.dump({"columns": table.columns, "posts": table.rows}, out, ensure_ascii=False, indent=1)
+            out.write("\n")
+        else:
+            w = csv.DictWriter(out, fieldnames=table.columns, extrasaction="ignore")
+            w.writeheader()
+            for row in table.rows:
+                w.writerow({k: "" if v is None else v for k, v in row.items()})
+    finally:
+        if out is not sys.stdout:
+            out.close()
+    if args.out:
+        print(f"Exported {len(table.rows)} posts to {args.out}.", file=sys.stderr)
+    return 0

@@ -1,0 +1,48 @@
+"""`fieldcheck import`: add posts from a CSV file (the `rate --batch` column set) to a survey log."""
+
+from __future__ import annotations
+
+import argparse
+import csv
+import sys
+
+from fieldcheck.commands.log_option import add_db_option, open_log
+
+DESCRIPTION = (
+    "Add posts from a CSV file to a survey log, into a site and visit named by options (created "
+    "when new). The columns are those of `fieldcheck rate --batch`; a row with a bad value is "
+    "reported by row and column and left out, the others are imported in one transaction."
+)
+
+
+def add_arguments(p: argparse.ArgumentParser) -> None:
+    add_db_option(p)
+    p.add_argument("csv", metavar="IN.csv", nargs="?", help="posts, one per row")
+    p.add_argument("--site", help="site name (created if new), e.g. '14 Alder Row'")
+    p.add_argument("--visit", help="visit name (created if new), e.g. 'Basement survey'")
+    p.add_argument("--inspector", help="who inspected (default: your user name)")
+
+
+def run(args: argparse.Namespace) -> int:
+    from fieldcheck.cli import UsageError
+
+    if not args.csv:
+        raise UsageError("import: give the CSV file to import, e.g. fieldcheck import --db survey.db posts.csv --site 'Alder Row' --visit 'Basement'")
+    if not args.site or not args.visit:
+        raise UsageError("import: give --site NAME and --visit NAME for the imported posts, e.g. --site '14 Alder Row' --visit 'Basement survey'")
+    try:
+        with open(args.csv, newline="", encoding="utf-8-sig") as fh:
+            rows = list(csv.DictReader(ln for ln in fh if not ln.startswith("#")))
+    except OSError as exc:
+        raise UsageError(f"import: cannot read {args.csv} ({exc.strerror})") from None
+    except (csv.Error, UnicodeDecodeError) as exc:
+        raise UsageError(f"import: {args.csv} is not a readable CSV file ({exc})") from None
+    with open_log(args) as log:
+        result = log.import_rows(rows, args.site, args.visit, inspector=args.inspector)
+        for err in result.errors:
+            print(f"fieldcheck: row {err.row + 1}, column {err.column}: {err.message}", file=sys.stderr)
+        bad = len({e.row for e in result.errors})
+        print(f"Imported {result.imported} of {len(rows)} posts into {result.site.name!r}, visit "
+              f"{result.visit.name!r} ({log.path})"
+              + (f"; {bad} rows left out, correct them and import those rows again." if bad else "."))
+    return 0 if not result.errors else 1

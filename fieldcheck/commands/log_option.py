@@ -1,0 +1,30 @@
+"""The ``--db PATH`` option shared by the survey-log subcommands, and opening the log it names."""
+
+from __future__ import annotations
+
+import argparse
+from pathlib import Path
+
+
+def add_db_option(p: argparse.ArgumentParser) -> None:
+    # SUPPRESS: when not given here, the main parser's `fieldcheck --db PATH demo` value stands
+    p.add_argument("--db", metavar="PATH", default=argparse.SUPPRESS,
+                   help="survey log file (default: your data folder, or $FIELDCHECK_DB)")
+
+
+def log_path(args: argparse.Namespace) -> Path:
+    from fieldcheck.store.paths import default_log_path
+
+    db = getattr(args, "db", None)
+    return Path(db).expanduser() if db else default_log_path()
+
+
+def open_log(args: argparse.Namespace, *, readonly: bool = False, must_exist: bool = False):
+    """Open the log named by --db; a missing file is a usage error when it must exist."""
+    from fieldcheck.cli import UsageError
+    from fieldcheck.store import Log
+
+    path = log_path(args)
+    if must_exist and not path.exists():
+        raise UsageError(f"the survey log {path} does not exist; give an existing log with --db PATH")
+    return Log.open(path, readonly=readonly)
