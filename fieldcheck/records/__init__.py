@@ -112,3 +112,5 @@ def rate_records(rows: list[dict[str, str]]):
 
     parsed = parse_records(rows)
     return rate(parsed.batch), parsed.errors
+
+from fieldcheck.records import ec5_columns as _ec5_columns  # noqa: E402,F401  (registers columns)
