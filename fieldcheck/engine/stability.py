@@ -52,7 +52,8 @@ __all__ = [
 
 _TWO_PI = 2.0 * math.pi
 _ITERATIONS = 52  # halvings of the bracket: 2**-52 ~ 2e-16 of the upper bound on u
-_SERIES_BELOW = 1.0  # use the Taylor series of the cancelling differences below this argument
+_SERIES_BELOW = 1.0
+_RIGID_RATIO = 1e9  # a spring this many times the segment stiffness (12EI/l^3, 4EI/l) is rigid  # use the Taylor series of the cancelling differences below this argument
 
 # ---------------------------------------------------------------------------------------------
 # Ideal cases: NDS 2018 Appendix G, Table G1 (column-design.md §1.4). Theoretical K for (b) is the
@@ -312,7 +313,11 @@ def _solve_group(Rt, Rb, Tt, Tb, xb, Tbr) -> np.ndarray:
     spring[:, 2 * (nodes - 1) + 1] = Rt
     if m:
         spring[:, 2:2 * (nodes - 1):2] = Tbr
-    held = np.isinf(spring)
+    # A finite spring 1e9 times stiffer than the stiffest segment is rigid to ~1e-9 in K, and
+    # leaving it finite only spoils the conditioning of K(P): treat it as held (judgement).
+    short = seg.min(axis=1)[:, None]
+    rigid_at = np.where(np.arange(size) % 2 == 0, 12.0 / short**3, 4.0 / short) * _RIGID_RATIO
+    held = spring > rigid_at
     spring = np.where(held, 0.0, spring)
     keep = ~held
     keep2 = keep[:, :, None] & keep[:, None, :]

@@ -148,6 +148,11 @@ def test_large_finite_stiffness_tends_to_fixed():
     # column-design.md §7.4 numerical notes: R of 1e6 to 1e8 behaves as fixed
     K = k_from_ratios([1e8, 1e8, 1e8], [1e8, 0.0, 1e8], [False, False, True])
     np.testing.assert_allclose(K, [0.5, 0.699156, 1.0], atol=TOL)
+    # far beyond that (1e14) the answer must not be spoiled by round-off (common practice, no source)
+    K = k_from_ratios([1e14, 1e14, 1e14], [1e14, 0.0, 1e14], [False, False, True])
+    np.testing.assert_allclose(K, [0.5, 0.699156, 1.0], atol=TOL)
+    K = effective_length_factor(1.0, 1.0, 0.0, 0.0, [1e12, 1e14], INF)
+    np.testing.assert_allclose(K, [1.0, 1.0], atol=1e-9)
 
 
 def _f_braced(u, ra, rb):
