@@ -113,6 +113,20 @@ class PostBatch:
     bottom_cb: np.ndarray = _b()
     bearing_wet: np.ndarray = _b()  # the cap or sill is in wet service (CM = 0.67 on Fc-perp)
 
+    # --- ground and load (engine/ground.py, engine/loads.py, engine/remedies.py) ----------------
+    pad_area_mm2: np.ndarray = _f()  # mudsill or pad contact area on the ground (NaN: not given)
+    pad_l1_mm: np.ndarray = _f()  # pad sides in plan (NaN: given as an area only)
+    pad_l2_mm: np.ndarray = _f()
+    pad_t_mm: np.ndarray = _f()  # pad or mudsill thickness (NaN: not given, rigid pad assumed)
+    soil_kpa: np.ndarray = _f()  # presumptive allowable pressure, IBC 2012 Table 1806.2 (NaN: none)
+    soil_flags: np.ndarray = _i(0)  # loads.SOIL_* bits: unknown / unprepared / assumed; 16 no soil given
+    plate_lb_mm: np.ndarray = _f()  # steel bearing plate length along the cap and sill grain (NaN: none)
+    combo: np.ndarray = _i(-1)  # governing combination: row of data/load_combinations.csv (-1: --load)
+    lateral_rule: np.ndarray = _i(-1)  # row of data/shore_lateral.csv (-1: bracing demand not asked)
+    lateral_edge_mm: np.ndarray = _f()  # floor edge braced (cal-osha rule)
+    lean_mm: np.ndarray = _f()  # out of plumb over the height, for the bracing thrust (NaN: plumb)
+    species_code: np.ndarray = _i(-1)  # index into materials.SPECIES (-1 unknown): remedies' stock
+
     @property
     def n(self) -> int:
         return int(self.d1_mm.shape[0])
