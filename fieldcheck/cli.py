@@ -56,7 +56,10 @@ def main(argv: list[str] | None = None) -> int:
     argv = sys.argv[1:] if argv is None else argv
     command = next((a for a in argv if a in COMMANDS), None)
     parser = build_parser(only=command)
-    args = parser.parse_args(argv)
+    try:
+        args = parser.parse_args(argv)
+    except SystemExit as exc:  # --help, --version, or a usage error already printed
+        return int(exc.code or 0)
     try:
         if args.command is None:
             return _open_interface(args)

@@ -11,7 +11,7 @@ from fieldcheck.records.columns import COLUMNS
 
 DESCRIPTION = (
     "Rate a timber post or shore. Values take units in your own notation (3-1/2 in, 8' 6\", 2.44 m, "
-    "89 mm, 4 kip, 17.8 kN, 24%%). With --batch, every CSV column is one of the options below "
+    "89 mm, 4 kip, 17.8 kN, 24%). With --batch, every CSV column is one of the options below "
     "(without the dashes, - written _), one post per row. A screening aid for a competent person."
 )
 RESULT_COLUMNS = (
@@ -25,8 +25,9 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
     groups: dict[str, argparse._ArgumentGroup] = {}
     for col in COLUMNS.values():
         g = groups.get(col.group) or groups.setdefault(col.group, p.add_argument_group(col.group))
-        g.add_argument(col.option, dest=f"col_{col.name}", metavar="VALUE",
-                       help=f"{col.help} (e.g. {col.example})")
+        extra = {"nargs": "?", "const": "yes", "metavar": "yes|no"} if col.flag else {"metavar": "VALUE"}
+        g.add_argument(col.option, dest=f"col_{col.name}", help=f"{col.help} (e.g. {col.example})".replace("%", "%%"),
+                       **extra)
     out = p.add_argument_group("output")
     out.add_argument("--json", action="store_true", help="print one JSON object")
     out.add_argument("--working", action="store_true", help="show the working step by step")

@@ -27,6 +27,7 @@ class Column:
     parse: Callable[[str], Any]
     default: str = ""
     choices: tuple[str, ...] = ()
+    flag: bool = False  # a yes/no column: `--name` alone means yes
 
     @property
     def option(self) -> str:
@@ -133,7 +134,7 @@ for _c in (
     Column("bottom", "ends", f"what holds the bottom: {ENDS_HELP}", "pinned", _choice("bottom", END_NAMES),
            "pinned", END_NAMES),
     Column("k_theoretical", "ends", "use theoretical K instead of the NDS recommended design Ke (yes/no)",
-           "no", _yes_no("k_theoretical"), "no"),
+           "no", _yes_no("k_theoretical"), "no", flag=True),
     Column("species", "material", "species group from the stamp, or unknown", "douglas-fir-larch",
            materials.normalise_species, "unknown", (*materials.SPECIES, "unknown")),
     Column("grade", "material", "grade from the stamp, or unknown", "no2", materials.normalise_grade,
@@ -145,9 +146,9 @@ for _c in (
            lambda s: units.parse_percent(s, "moisture", lo=0.0, hi=200.0)),
     Column("temperature", "condition", "sustained service temperature (up to 150 F)", "70 F",
            lambda s: units.parse_temperature(s, "temperature", lo=-60.0, hi=65.6)),
-    Column("incised", "material", "incised for preservative treatment (yes/no)", "no", _yes_no("incised"), "no"),
+    Column("incised", "material", "incised for preservative treatment (yes/no)", "no", _yes_no("incised"), "no", flag=True),
     Column("construction", "load", "a temporary, construction-stage member: le/d limit 75 (yes/no)", "no",
-           _yes_no("construction"), "no"),
+           _yes_no("construction"), "no", flag=True),
     Column("load", "load", "axial load on the post (service load; factored for LRFD)", "4000lbf",
            lambda s: units.parse_force(s, "load", lo=0.0, hi=1e8)),
     Column("cap_species", "bearing", "species group of the cap or beam above (for its Fc-perp), or none",
@@ -164,7 +165,7 @@ for _c in (
            _length("sill_end_distance", 0.0, 1e5)),
     Column("end_contact", "bearing", "share of the end area in full contact", "100%",
            lambda s: units.parse_percent(s, "end_contact", lo=1.0, hi=100.0)),
-    Column("end_plate", "bearing", "the ends bear on steel plates (yes/no)", "no", _yes_no("end_plate"), "no"),
+    Column("end_plate", "bearing", "the ends bear on steel plates (yes/no)", "no", _yes_no("end_plate"), "no", flag=True),
 ):
     register(_c)
 

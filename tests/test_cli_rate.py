@@ -1,0 +1,93 @@
+"""`fieldcheck rate`: the ARCHITECTURE.md §4 contract, one-sentence errors with exit code 2, batches."""
+
+import csv
+import json
+
+import pytest
+
+from fieldcheck.cli import main
+
+LBF = 4.4482216152605
+EXAMPLE_A = ["rate", "--size", "4x4", "--height", "10ft", "--species", "douglas-fir-larch", "--grade", "no2",
+             "--top", "pinned", "--bottom", "pinned"]
+
+
+def test_example_a_json(capsys):
+    assert main([*EXAMPLE_A, "--json"]) == 0
+    out = json.loads(capsys.readouterr().out)
+    # column-design.md worked example A at 10 ft (NDS 2018 §3.7.1): 4,665.07 lb, Cp 0.245296
+    assert out["allowable_load_lbf"] == pytest.approx(4665.1, abs=0.05)
+    assert out["allowable_load_kN"] == pytest.approx(4665.07 * LBF / 1000, rel=1e-5)
+    assert out["stability_factor"] == pytest.approx(0.245296, abs=1e-6)
+    assert out["slenderness_ratio"] == pytest.approx(34.286, abs=1e-3)
+    assert out["effective_length_factor"] == 1.0
+    assert out["within_slenderness_limit"] is True
+    assert out["demand_capacity_ratio"] is None
+    assert out["governing_check"] == "column"
+    for key in ("action", "checks", "warnings"):
+        assert key in out
+    assert all({"name", "capacity_kN", "ratio", "clause"} <= set(c) for c in out["checks"])
+
+
+def test_ratio_with_load(capsys):
+    assert main([*EXAMPLE_A, "--load", "4000lbf", "--json"]) == 0
+    out = json.loads(capsys.readouterr().out)
+    assert out["demand_capacity_ratio"] == pytest.approx(4000 / 4665.07, abs=1e-4)
+
+
+def test_text_output_shows_cautions_and_working(capsys):
+    assert main([*EXAMPLE_A, "--load", "4 kip", "--working"]) == 0
+    out = capsys.readouterr().out
+    assert "screening aid" in out and "licensed engineer" in out and "clear the area" in out
+    assert "NDS 2018 §3.7.1" in out and "Working:" in out
+
+
+@pytest.mark.parametrize(("option", "value"), [
+    ("--height", "ten feet"), ("--height", "-3 ft"), ("--height", "3,5 m"), ("--size", "4by4"),
+    ("--section", "89mm"), ("--diameter", "-7in"), ("--load", "4 kg"), ("--top", "wobbly"),
+    ("--bottom", "nailed"), ("--species", "balsa"), ("--grade", "premium"), ("--moisture", "-3%"),
+    ("--duration", "a while"), ("--method", "csa"), ("--brace-weak", "40ft"), ("--plies", "x"),
+    ("--temperature", "90 C"), ("--end-contact", "0%"), ("--construction", "maybe"),
+    ("--incised", "perhaps"), ("--cap-species", "teak"), ("--cap-bearing", "-1in"),
+])
+def test_bad_input_is_one_sentence_and_exit_2(capsys, option, value):
+    argv = [a for a in EXAMPLE_A]
+    if option in argv:
+        i = argv.index(option)
+        del argv[i : i + 2]
+    argv.append(f"{option}={value}")  # the = form, so a value may start with a minus sign
+    assert main(argv) == 2
+    err = capsys.readouterr().err.strip()
+    assert err.startswith("fieldcheck: ")
+    assert len(err.splitlines()) == 1
+    assert "Traceback" not in err
+
+
+def test_unknown_option_is_exit_2(capsys):
+    assert main([*EXAMPLE_A, "--heigth", "3m"]) == 2
+    assert "Traceback" not in capsys.readouterr().err
+
+
+def test_batch_rates_good_rows_and_names_bad_ones(tmp_path, capsys):
+    src = tmp_path / "in.csv"
+    with src.open("w", newline="") as fh:
+        w = csv.writer(fh)
+        w.writerow(["tag", "size", "height", "species", "grade", "load"])
+        w.writerow(["P1", "4x4", "10ft", "douglas-fir-larch", "no2", "4000lbf"])
+        w.writerow(["P2", "4x4", "ten feet", "douglas-fir-larch", "no2", "4000lbf"])
+        w.writerow(["P3", "6x6", "10 ft", "douglas-fir-larch", "no1", "12 kip"])
+    out = tmp_path / "out.csv"
+    assert main(["rate", "--batch", str(src), "--out", str(out)]) == 1
+    err = capsys.readouterr().err
+    assert "row 2, column height" in err
+    rows = list(csv.DictReader(out.open()))
+    assert [r["tag"] for r in rows] == ["P1", "P2", "P3"]
+    assert float(rows[0]["allowable_load_lbf"]) == pytest.approx(4665.1, abs=0.05)  # worked example A
+    assert rows[1]["error"].startswith("height:") and rows[1]["allowable_load_lbf"] == ""
+    assert float(rows[2]["allowable_load_lbf"]) == pytest.approx(20918.2, abs=0.1)  # worked example B
+
+
+def test_bare_fieldcheck_help_never_a_traceback(capsys):
+    assert main(["--help"]) == 0
+    assert main(["rate", "--help"]) == 0
+    assert "Traceback" not in capsys.readouterr().err
