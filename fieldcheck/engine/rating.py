@@ -144,7 +144,7 @@ class Rating:
                 "ratio": _num(r, 4), "clause": c.clause,
             })
         act = int(self.action[i])
-        return {
+        out = {
             "method": METHOD_NAMES[int(self.batch.method[i])],
             "allowable_load_lbf": round(cap / LBF, 1),
             "allowable_load_kN": round(cap / 1000.0, 4),
@@ -167,6 +167,9 @@ class Rating:
             "warnings": self.warnings(i),
             "cautions": list(CAUTIONS),
         }
+        for hook in SUMMARY_HOOKS:  # other engine modules add their keys (loads, ground, remedies)
+            hook(self, i, out)
+        return out
 
 
 def _num(x: float, nd: int) -> float | None:
@@ -338,6 +341,13 @@ ESCALATIONS: list[tuple[int, int]] = []
 CHECK_HOOKS: list = []
 # hook(batch, values) -> int64 flag array, OR-ed into the flags
 FLAG_HOOKS: list = []
+# hook(rating, i, summary_dict) -> None: adds keys to Rating.summary(i)
+SUMMARY_HOOKS: list = []
+
+
+def register_summary_hook(fn) -> None:
+    if fn not in SUMMARY_HOOKS:
+        SUMMARY_HOOKS.append(fn)
 
 
 def register_check_hook(fn) -> None:
