@@ -119,13 +119,14 @@ class PostBatch:
     pad_l2_mm: np.ndarray = _f()
     pad_t_mm: np.ndarray = _f()  # pad or mudsill thickness (NaN: not given, rigid pad assumed)
     soil_kpa: np.ndarray = _f()  # presumptive allowable pressure, IBC 2012 Table 1806.2 (NaN: none)
-    soil_flags: np.ndarray = _i(0)  # loads.SOIL_* bits: unknown / unprepared / assumed; 16 no soil given
+    soil_flags: np.ndarray = _i(0)  # loads.SOIL_* bits: unknown / unprepared / assumed
     plate_lb_mm: np.ndarray = _f()  # steel bearing plate length along the cap and sill grain (NaN: none)
     combo: np.ndarray = _i(-1)  # governing combination: row of data/load_combinations.csv (-1: --load)
     lateral_rule: np.ndarray = _i(-1)  # row of data/shore_lateral.csv (-1: bracing demand not asked)
     lateral_edge_mm: np.ndarray = _f()  # floor edge braced (cal-osha rule)
     lean_mm: np.ndarray = _f()  # out of plumb over the height, for the bracing thrust (NaN: plumb)
     species_code: np.ndarray = _i(-1)  # index into materials.SPECIES (-1 unknown): remedies' stock
+    shared_by: np.ndarray = _i(1)  # posts sharing the load under a stiff cap (load_n is per post)
 
     @property
     def n(self) -> int:
