@@ -60,6 +60,7 @@ def connect(path: Path | str, *, readonly: bool = False, inspect=None) -> Databa
                 )
         conn.execute("PRAGMA synchronous=FULL")
         conn.execute("PRAGMA foreign_keys=ON")
+        conn.execute("PRAGMA cache_size=-65536")  # 64 MiB: bulk imports touch big indexes
     except sqlite3.DatabaseError as exc:
         conn.close()
         raise damaged(path, exc) from exc

@@ -8,6 +8,7 @@ can be shown as it was and re-rated on demand.
 
 from __future__ import annotations
 
+import hashlib
 import json
 import math
 from dataclasses import dataclass
@@ -43,12 +44,15 @@ RATING_COLUMNS = (
 
 
 @cache
-def engine_stamp() -> tuple[str, str]:
-    """(engine version, JSON of {table: edition}) recorded with every stored rating."""
+def engine_stamp() -> tuple[str, str, str]:
+    """(stamp id, engine version, JSON of {table: edition}) recorded with every stored rating;
+    the id is a hash of the other two, so every device names the same stamp alike."""
     from fieldcheck import ENGINE_VERSION
     from fieldcheck.engine.refdata import editions
 
-    return ENGINE_VERSION, json.dumps(editions(), sort_keys=True, separators=(",", ":"))
+    eds = json.dumps(editions(), sort_keys=True, separators=(",", ":"))
+    sid = hashlib.sha256(f"{ENGINE_VERSION}\n{eds}".encode()).hexdigest()[:32]
+    return sid, ENGINE_VERSION, eds
 
 
 def action_label(action: int | None) -> str:

@@ -11,7 +11,7 @@ device id, a per-device sequence number (ordering and sync never rely on laptop 
 author and the time with its zone. ``meta`` and ``sync_state`` are bookkeeping and may change.
 
 Version history
-  1  sites, visits, members, observations, ratings, attachments, meta
+  1  sites, visits, members, observations, engine_stamps, ratings, attachments, meta
   2  reviews (office notes and sign-offs, synced back to the field), sync_state
 """
 
@@ -33,7 +33,9 @@ _ORIGIN = """
     created_at TEXT NOT NULL CHECK (created_at LIKE '____-__-__T__:__:__%'),
     UNIQUE (device_id, device_seq)"""
 
-APPEND_ONLY_V1 = ("sites", "visits", "members", "observations", "ratings", "attachments")
+APPEND_ONLY_V1 = (
+    "sites", "visits", "members", "observations", "engine_stamps", "ratings", "attachments",
+)
 APPEND_ONLY_V2 = ("reviews",)
 APPEND_ONLY = APPEND_ONLY_V1 + APPEND_ONLY_V2
 
@@ -76,11 +78,18 @@ def _v1(db: Database) -> None:
             withdrawn INTEGER NOT NULL DEFAULT 0 CHECK (withdrawn IN (0, 1)),
             reason TEXT NOT NULL DEFAULT '',
             record_json TEXT NOT NULL CHECK (json_valid(record_json)),{_ORIGIN}) STRICT""",
+        # engine version + reference-data editions, content-addressed (the same id on every
+        # device), so 100,000 ratings share one row instead of repeating the editions
+        """CREATE TABLE engine_stamps (
+            id TEXT PRIMARY KEY,
+            engine_version TEXT NOT NULL,
+            data_editions TEXT NOT NULL CHECK (json_valid(data_editions)),
+            created_at TEXT NOT NULL) STRICT""",
         f"""CREATE TABLE ratings (
             id TEXT PRIMARY KEY,
             observation_id TEXT NOT NULL REFERENCES observations(id),
             engine_version TEXT NOT NULL,
-            data_editions TEXT NOT NULL CHECK (json_valid(data_editions)),
+            stamp_id TEXT NOT NULL REFERENCES engine_stamps(id),
             capacity_n REAL,
             demand_n REAL,
             ratio REAL,
