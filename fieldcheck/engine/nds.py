@@ -51,18 +51,18 @@ def wet_service_factors(product, fc, cf_fc, fb, cf_fb, wet, wet_tabulated):
     Fb CF <= 1150 psi). Timbers: Fc 0.91, Fc-perp 0.67, E 1.0, Fb 1.0. Values already tabulated
     for wet service take 1.0.
     """
-    timber = product != DIMENSION
-    cm_fc = np.where(timber, 0.91, np.where(fc * cf_fc <= 750 * PSI, 1.0, 0.8))
-    cm_fb = np.where(timber, 1.0, np.where(fb * cf_fb <= 1150 * PSI, 1.0, 0.85))
-    cm_e = np.where(timber, 1.0, 0.9)
     apply = wet & ~wet_tabulated
-    one = 1.0
-    return (
-        np.where(apply, cm_fc, one),
-        np.where(apply, 0.67, one),
-        np.where(apply, cm_e, one),
-        np.where(apply, cm_fb, one),
-    )
+    timber = product != DIMENSION
+    cm_fc = np.where(fc * cf_fc <= 750 * PSI, 1.0, 0.8)
+    np.copyto(cm_fc, 0.91, where=timber)
+    cm_fb = np.where(timber | (fb * cf_fb <= 1150 * PSI), 1.0, 0.85)
+    cm_e = np.where(timber, 1.0, 0.9)
+    one = np.ones_like(fc)
+    cm_fcp = np.where(apply, 0.67, one)
+    np.copyto(cm_fc, 1.0, where=~apply)
+    np.copyto(cm_fb, 1.0, where=~apply)
+    np.copyto(cm_e, 1.0, where=~apply)
+    return cm_fc, cm_fcp, cm_e, cm_fb
 
 
 def temperature_factors(temp_c: np.ndarray, wet: np.ndarray):

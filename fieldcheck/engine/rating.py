@@ -98,6 +98,11 @@ class Rating:
     action: np.ndarray
     flags: np.ndarray
     values: dict[str, np.ndarray] = field(default_factory=dict)  # intermediates by name
+    partial: bool = False  # a large batch keeps only KEEP; per-post text re-rates that post
+
+    def detail(self, i: int) -> Rating:
+        """A full rating of post i alone (same code, length-one batch), for its text."""
+        return _rate_block(self.batch.take(np.array([i])))
 
     @property
     def check_names(self) -> tuple[str, ...]:
@@ -118,16 +123,22 @@ class Rating:
         return self.check_names[int(self.governing[i])]
 
     def warnings(self, i: int) -> list[str]:
+        if self.partial:
+            return self.detail(i).warnings(0)
         f = int(self.flags[i])
         return [text for bit, text in sorted(FLAG_TEXT.items()) if f >> bit & 1]
 
     def working(self, i: int) -> list[Step]:
         from fieldcheck.engine.working import working_steps
 
+        if self.partial:
+            return self.detail(i).working(0)
         return working_steps(self, i)
 
     def summary(self, i: int) -> dict:
         """The JSON object of `fieldcheck rate --json` for post i (ARCHITECTURE.md §4 keys)."""
+        if self.partial:
+            return self.detail(i).summary(0)
         v = self.values
         ax = int(v["axis"][i])
         ratio = float(self.ratio[i])
@@ -181,8 +192,51 @@ def _nan_to(a: np.ndarray, v: float) -> np.ndarray:
     return np.where(np.isnan(a), v, a)
 
 
+# Large batches are rated in blocks that stay in the CPU cache, two blocks at a time (numpy
+# releases the GIL inside array operations); the arithmetic is the same for every block.
+BLOCK = 1 << 15
+# what a large batch keeps per post besides the checks; the rest is recomputed for the post a
+# person opens (the single-post path is the batch path on a length-one batch)
+KEEP = ("ke1", "ke2", "le_d1", "le_d2", "le_d_max", "le_d_limit", "cp", "axis", "fc_star", "emin_prime")
+
+
 def rate(b: PostBatch) -> Rating:
-    """Rate every post of the batch in one pass."""
+    """Rate every post of the batch: one pass of array arithmetic, blockwise for large batches."""
+    n = b.n
+    if n <= BLOCK:
+        return _rate_block(b)
+    starts = range(0, n, BLOCK)
+    first = _rate_block(b.take(slice(0, BLOCK)))
+    checks = {
+        k: Check(c.name, c.label, c.clause, np.empty(n), np.empty(n)) for k, c in first.checks.items()
+    }
+    out = {k: np.empty(n, dtype=np.asarray(first.values[k]).dtype) for k in KEEP if k in first.values}
+    core = {k: np.empty(n, dtype=getattr(first, k).dtype)
+            for k in ("capacity_n", "demand_n", "ratio", "governing", "action", "flags")}
+
+    def put(start: int, r: Rating | None = None) -> None:
+        r = r if r is not None else _rate_block(b.take(slice(start, start + BLOCK)))
+        sl = slice(start, start + r.n)
+        for k, c in r.checks.items():
+            checks[k].capacity_n[sl] = c.capacity_n
+            checks[k].demand_n[sl] = c.demand_n
+            if c.clause not in checks[k].clause:
+                checks[k].clause += f" / {c.clause}"
+        for k, a in out.items():
+            a[sl] = r.values[k]
+        for k, a in core.items():
+            a[sl] = getattr(r, k)
+
+    put(0, first)
+    from concurrent.futures import ThreadPoolExecutor
+
+    with ThreadPoolExecutor(max_workers=2) as pool:
+        list(pool.map(put, starts[1:]))
+    return Rating(batch=b, checks=checks, values=out, partial=True, **core)
+
+
+def _rate_block(b: PostBatch) -> Rating:
+    """Rate one block of posts (every check, all intermediates kept)."""
     n = b.n
     lrfd = b.method == LRFD
     measured = ~np.isnan(b.moisture_pct)
@@ -233,10 +287,8 @@ def rate(b: PostBatch) -> Rating:
     # lambda on Fc-perp applied only where it reduces (judgement: not verified).
     perp_time = np.where(lrfd, nds.KF_FCP * nds.PHI_FCP * np.minimum(b.lam, 1.0), 1.0)
     cm_bear = np.where(b.bearing_wet, 0.67, 1.0)
-    lb_top = _nan_to(b.top_lb_mm, 0.0)
-    lb_top = np.where(lb_top > 0, lb_top, b.d1_mm)
-    lb_bot = _nan_to(b.bottom_lb_mm, 0.0)
-    lb_bot = np.where(lb_bot > 0, lb_bot, b.d1_mm)
+    lb_top = np.where(b.top_lb_mm > 0, b.top_lb_mm, b.d1_mm)  # NaN compares False: the post's width
+    lb_bot = np.where(b.bottom_lb_mm > 0, b.bottom_lb_mm, b.d1_mm)
     cb_top = nds.bearing_area_factor(lb_top, b.top_cb)
     cb_bot = nds.bearing_area_factor(lb_bot, b.bottom_cb)
     p_cap = b.top_fc_perp_mpa * cm_bear * ct_f * perp_time * cb_top * a_contact
@@ -275,22 +327,25 @@ def rate(b: PostBatch) -> Rating:
 
     flags = np.zeros(n, dtype=np.int64)
     has_load = ~np.isnan(load)
-    flags |= np.where(has_load, 0, F_NO_LOAD)
-    flags |= np.where(b.construction & (le_d_max > nds.LE_D_LIMIT) & (le_d_max <= limit), F_SLENDER_CONSTRUCTION, 0)
     over = le_d_max > limit
-    flags |= np.where(over, F_SLENDER_LIMIT, 0)
-    flags |= np.where(
-        ~b.end_plate & has_load & (load > nds.END_BEARING_PLATE_RATIO * fc_star * a_contact), F_END_PLATE, 0
-    )
-    flags |= np.where(measured, 0, F_DRY_ASSUMED)
-    flags |= np.where(wet, F_WET, 0)
-    flags |= np.where(kappa < 1.0, F_ASSUMED_MATERIAL, 0)
-    flags |= np.where(np.isnan(b.top_fc_perp_mpa), F_CAP_UNCHECKED, 0)
-    flags |= np.where(np.isnan(b.bottom_fc_perp_mpa), F_SILL_UNCHECKED, 0)
-    flags |= np.where(b.theoretical_k, F_THEORETICAL_K, 0)
-    flags |= np.where(sway & (b.braced1 | b.braced2), F_SWAY_BRACES, 0)
-    flags |= np.where(mode < 0, F_MECHANISM, 0)
-    flags |= np.where(b.kf < 1.0, F_BUILT_UP, 0)
+
+    def flag(bit: int, where: np.ndarray) -> None:
+        np.bitwise_or(flags, bit, out=flags, where=where)
+
+    flag(F_NO_LOAD, ~has_load)
+    flag(F_SLENDER_CONSTRUCTION, b.construction & (le_d_max > nds.LE_D_LIMIT) & ~over)
+    flag(F_SLENDER_LIMIT, over)
+    # NDS 2018 §3.10.1.3: fc > 0.75 Fc* needs a steel plate (NaN load compares False)
+    flag(F_END_PLATE, ~b.end_plate & (load > nds.END_BEARING_PLATE_RATIO * fc_star * a_contact))
+    flag(F_DRY_ASSUMED, ~measured)
+    flag(F_WET, wet)
+    flag(F_ASSUMED_MATERIAL, kappa < 1.0)
+    flag(F_CAP_UNCHECKED, np.isnan(b.top_fc_perp_mpa))
+    flag(F_SILL_UNCHECKED, np.isnan(b.bottom_fc_perp_mpa))
+    flag(F_THEORETICAL_K, b.theoretical_k)
+    flag(F_SWAY_BRACES, sway & (b.braced1 | b.braced2))
+    flag(F_MECHANISM, mode < 0)
+    flag(F_BUILT_UP, b.kf < 1.0)
     for hook in FLAG_HOOKS:
         flags |= hook(b, values)
 
@@ -303,20 +358,36 @@ def rate(b: PostBatch) -> Rating:
 
 
 def finish(r: Rating) -> Rating:
-    """Governing check, ratio and action from the checks (run again after adding checks)."""
-    caps = np.stack([c.capacity_n for c in r.checks.values()])
-    demands = np.stack([c.demand_n for c in r.checks.values()])
-    with np.errstate(divide="ignore", invalid="ignore"):
-        ratios = demands / caps
-    has_load = ~np.isnan(r.batch.load_n)
-    by_ratio = np.argmax(np.where(np.isnan(ratios), -np.inf, ratios), axis=0)
-    by_cap = np.argmin(np.where(np.isnan(caps), np.inf, caps), axis=0)
-    gov = np.where(has_load, by_ratio, by_cap)
-    cols = np.arange(r.n)
-    r.governing = gov.astype(np.int8)
-    r.capacity_n = caps[gov, cols]
-    r.demand_n = demands[gov, cols]
-    r.ratio = ratios[gov, cols]
+    """Governing check, ratio and action from the checks (run again after adding checks).
+
+    The governing check has the largest demand/capacity ratio; with one demand for every check
+    (the usual case) that is the smallest capacity, found without a ratio per check. A check
+    with a NaN capacity was not made and never governs.
+    """
+    checks = list(r.checks.values())
+    demand = checks[0].demand_n
+    if all(c.demand_n is demand for c in checks):
+        gov = np.zeros(r.n, dtype=np.int8)
+        cap = checks[0].capacity_n
+        for k, c in enumerate(checks[1:], start=1):
+            lower = c.capacity_n < cap  # NaN compares False: a check not made never governs
+            cap = np.where(lower, c.capacity_n, cap)
+            np.copyto(gov, k, where=lower)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            ratio = demand / cap
+    else:
+        caps = np.stack([c.capacity_n for c in checks])
+        demands = np.stack([c.demand_n for c in checks])
+        with np.errstate(divide="ignore", invalid="ignore"):
+            ratios = demands / caps
+        has_load = ~np.isnan(r.batch.load_n)
+        by_ratio = np.argmax(np.where(np.isnan(ratios), -np.inf, ratios), axis=0)
+        by_cap = np.argmin(np.where(np.isnan(caps), np.inf, caps), axis=0)
+        gov = np.where(has_load, by_ratio, by_cap).astype(np.int8)
+        cols = np.arange(r.n)
+        cap, demand, ratio = caps[gov, cols], demands[gov, cols], ratios[gov, cols]
+    r.governing = gov
+    r.capacity_n, r.demand_n, r.ratio = cap, demand, ratio
     r.action = action_from(r.ratio, r.flags, r.values.get("le_d_max"), r.values.get("le_d_limit"))
     return r
 
@@ -324,14 +395,15 @@ def finish(r: Rating) -> Rating:
 def action_from(ratio, flags, le_d_max=None, limit=None) -> np.ndarray:
     """Action category from the ratio bands and the condition flags (judgement)."""
     lo, mid, hi = RATIO_BANDS
-    r = np.where(np.isnan(ratio), 0.0, ratio)
-    act = np.select([r > hi, r > mid, r > lo], [3, 2, 1], 0).astype(np.int8)
-    act = np.maximum(act, np.where(np.isnan(ratio), 1, 0)).astype(np.int8)
+    act = (ratio > lo).astype(np.int8)  # NaN compares False
+    act += ratio > mid
+    act += ratio > hi
+    np.maximum(act, 1, out=act, where=np.isnan(ratio))  # no load: at least monitor
     if le_d_max is not None:
-        act = np.maximum(act, np.where(le_d_max > limit, 2, 0)).astype(np.int8)
-    act = np.maximum(act, np.where(flags & F_MECHANISM, 3, 0)).astype(np.int8)
+        np.maximum(act, 2, out=act, where=le_d_max > limit)
+    np.maximum(act, 3, out=act, where=(flags & F_MECHANISM) != 0)
     for bits, level in ESCALATIONS:
-        act = np.maximum(act, np.where(flags & bits, level, 0)).astype(np.int8)
+        np.maximum(act, level, out=act, where=(flags & bits) != 0)
     return act
 
 

@@ -54,15 +54,19 @@ def mechanism_reason(bottom: int, top: int) -> str | None:
     return f"ends: a {b} bottom with a {t} top is a mechanism: {why}; {fix}."
 
 
+# [bottom, top, theoretical] -> K (NaN for a mechanism), flattened for one take per call
+_KE_LUT = np.full((4, 4, 2), np.nan)
+for _b in range(4):
+    for _t in range(4):
+        if _LUT[_b, _t] != MECHANISM:
+            _KE_LUT[_b, _t] = RECOMMENDED[_LUT[_b, _t]], THEORETICAL[_LUT[_b, _t]]
+_KE_FLAT = _KE_LUT.ravel()
+
+
 def ke(bottom: np.ndarray, top: np.ndarray, theoretical: np.ndarray | bool = False) -> np.ndarray:
     """Ke per post from the end pair (NDS 2018 Appendix G Table G1); NaN for a mechanism."""
-    m = mode_index(bottom, top)
-    table = np.where(np.asarray(theoretical)[..., None], THEORETICAL, RECOMMENDED) if np.ndim(theoretical) else (
-        THEORETICAL if theoretical else RECOMMENDED
-    )
-    safe = np.where(m < 0, 0, m)
-    val = np.take_along_axis(table, safe[:, None], axis=1)[:, 0] if table.ndim == 2 else table[safe]
-    return np.where(m < 0, np.nan, val)
+    idx = (np.asarray(bottom, dtype=np.intp) * 4 + np.asarray(top, dtype=np.intp)) * 2
+    return _KE_FLAT.take(idx + np.asarray(theoretical, dtype=np.intp))
 
 
 def unbraced_length(height_mm: float, brace_heights_mm: list[float], field: str) -> float:
