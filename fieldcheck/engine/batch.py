@@ -126,6 +126,58 @@ class PostBatch:
     lateral_edge_mm: np.ndarray = _f()  # floor edge braced (cal-osha rule)
     lean_mm: np.ndarray = _f()  # out of plumb over the height, for the bracing thrust (NaN: plumb)
     species_code: np.ndarray = _i(-1)  # index into materials.SPECIES (-1 unknown): remedies' stock
+
+    # --- condition: the post as found (engine/condition.py; field-practice.md §1-§3) -----------
+    # Depths in mm from the original face, 0 or NaN: none. Faces: 1p/1m the two narrow faces
+    # (loss there reduces d1), 2p/2m the two wide faces (reduces d2). Zones: condition.ZONE_NAMES
+    # (0 full height, 1 middle half, 2 top end, 3 bottom end).
+    decay_1p_mm: np.ndarray = _f(0.0)  # decay or insect loss, probed depth
+    decay_1m_mm: np.ndarray = _f(0.0)
+    decay_2p_mm: np.ndarray = _f(0.0)
+    decay_2m_mm: np.ndarray = _f(0.0)
+    decay_zone: np.ndarray = _i(0)
+    decay_margin_mm: np.ndarray = _f(13.0)  # added past the probed boundary (judgement, 1/2 in)
+    hollow_mm: np.ndarray = _f(0.0)  # diameter of a hollow (decayed) core at the centre
+    hollow_zone: np.ndarray = _i(0)
+    char_1p_mm: np.ndarray = _f(0.0)  # char depth; the 7 mm zero-strength layer is added
+    char_1m_mm: np.ndarray = _f(0.0)
+    char_2p_mm: np.ndarray = _f(0.0)
+    char_2m_mm: np.ndarray = _f(0.0)
+    char_zone: np.ndarray = _i(0)
+    wane_mm: np.ndarray = _f(0.0)  # wane leg at a corner (45-degree triangle)
+    wane_corners: np.ndarray = _i(0)  # 0-4 corners
+    notch_mm: np.ndarray = _f(0.0)  # notch depth across one whole face
+    notch_face: np.ndarray = _i(0)  # 0 a wide face, 1 a narrow face
+    notch_z_mm: np.ndarray = _f()  # height of the notch above the bottom (NaN: mid-height assumed)
+    hole_mm: np.ndarray = _f(0.0)  # bored hole diameter, through the member
+    hole_face: np.ndarray = _i(0)  # 0 bored through the wide faces, 1 through the narrow faces
+    hole_z_mm: np.ndarray = _f()
+    knot_mm: np.ndarray = _f(0.0)  # largest knot measured across its face
+    knot_face: np.ndarray = _i(0)  # 0 on a wide face (width d1), 1 on a narrow face (width d2)
+    slope_n: np.ndarray = _f(np.inf)  # slope of grain 1 in n (inf: straight)
+    slope_table: np.ndarray = _i(0)  # 0 grading (ASTM D245, memory), 1 clear-wood (Wood Handbook 5-12)
+    sr_applies: np.ndarray = _b(True)  # knots/slope reduce the values (ungraded, or beyond grade)
+    split: np.ndarray = _i(0)  # 0 none, 1 check, 2 through, 3 opening
+    split_faces: np.ndarray = _i(0)  # faces a through split shows on: 0 unknown, 1 wide, 2 narrow
+    split_zone: np.ndarray = _i(0)
+    crushed_end: np.ndarray = _i(0)  # crushed or broomed: bit 1 top, bit 2 bottom
+    crushing_active: np.ndarray = _b()  # crushing in progress (fresh fibres, growing indentation)
+    settling_sill: np.ndarray = _b()
+    post_moving: np.ndarray = _b()  # leaning or moving more than before
+    bow1_mm: np.ndarray = _f(0.0)  # mid-height bow in the plane of d1 (string line), axis 1
+    bow2_mm: np.ndarray = _f(0.0)
+    plumb1_mm: np.ndarray = _f(0.0)  # top offset from the bottom over the height, in the d1 plane
+    plumb2_mm: np.ndarray = _f(0.0)
+    offset1_mm: np.ndarray = _f(0.0)  # load resultant off the post centroid on the cap, d1 direction
+    offset2_mm: np.ndarray = _f(0.0)
+    sw_time_us: np.ndarray = _f()  # stress-wave transit time across the member
+    sw_path_mm: np.ndarray = _f()  # its path length
+    sw_sound_us: np.ndarray = _f()  # transit time on sound wood of the same member, same path
+    density_kgm3: np.ndarray = _f()  # density at the test moisture (for E_d = rho v^2)
+    sw_suspect: np.ndarray = _f(1.3)  # time ratio flagging suspect decay (from memory, editable)
+    sw_advanced: np.ndarray = _f(1.5)  # time ratio flagging advanced decay (from memory, editable)
+    data_level: np.ndarray = _i(-1)  # condition.DATA_LEVELS index (-1 not stated)
+    material_assumed: np.ndarray = _b()  # species or grade unknown: default values used
     shared_by: np.ndarray = _i(1)  # posts sharing the load under a stiff cap (load_n is per post)
 
     @property
