@@ -521,7 +521,9 @@ class Log:
         with self._write():
             self._ensure_stamp()
             visit = self.visit(visit_id)
-            seqs = iter(self._seqs(3))
+            row = result.rows[0]
+            # exactly one seq per row written: the per-device sequence stays gap-free
+            seqs = iter(self._seqs((member_id is None) + 1 + (row is not None)))
             created = now()
             head = None
             if member_id is None:
@@ -539,7 +541,6 @@ class Log:
                 self.device_id, next(seqs), self.author, created,
             )
             self._insert("observations", _OBS_COLS, [_obs_row(obs)])
-            row = result.rows[0]
             if row is not None:
                 self._insert(
                     "ratings", _RATING_COLS,

@@ -1,0 +1,84 @@
+"""CSV import (bad rows reported by row and column, the rest imported in one transaction),
+export round trip, the demo survey and the commands around them."""
+
+from __future__ import annotations
+
+import csv
+import json
+
+from fieldcheck.cli import main
+from fieldcheck.store import Log, seed_demo
+
+
+def test_import_rows_reports_bad_rows_and_imports_the_rest(log, shore):
+    rows = [shore, {**shore, "tag": "S2", "height": "tall"}, {**shore, "tag": "S3"}]
+    res = log.import_rows(rows, "Alder Row", "Shoring")
+    assert res.imported == 2
+    assert [(e.row, e.column) for e in res.errors] == [(1, "height")]
+    assert [p.tag for p in log.posts(res.visit.id)] == ["S1", "S3"]
+    assert all(p.ratio is not None for p in log.posts())
+    # same site and visit found by name on a second import
+    res2 = log.import_rows([{**shore, "tag": "S4"}], "Alder Row", "Shoring")
+    assert res2.visit == res.visit and len(log.posts(res.visit.id)) == 3
+
+
+def test_export_round_trip_through_csv(log, shore, tmp_path):
+    seed_demo(log)
+    table = log.export_rows()
+    out = tmp_path / "out.csv"
+    with out.open("w", newline="") as fh:
+        w = csv.DictWriter(fh, table.columns)
+        w.writeheader()
+        w.writerows({k: "" if v is None else v for k, v in r.items()} for r in table.rows)
+    with out.open(newline="") as fh:
+        rows = list(csv.DictReader(fh))
+    with Log.open(tmp_path / "second.db") as other:
+        res = other.import_rows(rows, "Copy", "Copy")
+        assert res.errors == [] and res.imported == len(table.rows)
+        again = other.export_rows()
+    strip = [c for c in table.columns if c not in ("site", "visit", "member_id", "observation_id",
+                                                     "revised_at", "revised_by")]
+    assert [{k: str(r[k] or "") for k in strip} for r in again.rows] == [
+        {k: str(r[k] or "") for k in strip} for r in table.rows]
+
+
+def test_demo_has_sound_posts_and_one_to_make_safe(log):
+    site, visits = seed_demo(log)
+    assert site.name == "14 Alder Row" and len(visits) == 2
+    posts = log.posts(site_id=site.id)
+    tags = [p.tag for p in posts]
+    assert tags[:4] == ["B1", "B2", "B3", "B4"] and "S6" not in tags  # S6 withdrawn
+    actions = {p.tag: p.action_label for p in posts}
+    assert actions["S4"] == "make-safe-now"
+    assert sum(a == "no-action" for a in actions.values()) >= 4
+    s3 = next(p for p in posts if p.tag == "S3")
+    assert len(log.history(s3.member_id)) == 2  # the correction is kept as history
+
+
+def test_commands_demo_import_export(tmp_path, capsys):
+    db = str(tmp_path / "survey.db")
+    assert main(["demo", "--db", db]) == 0
+    assert main(["demo", "--db", db]) == 2  # the log already holds sites
+    assert main(["--db", db, "demo", "--force"]) == 0  # main-parser --db is honoured too
+    capsys.readouterr()
+    src = tmp_path / "in.csv"
+    src.write_text(
+        "# posts from the tablet\n"
+        "tag,size,height,species,grade,load\n"
+        "P1,4x4,8ft,douglas-fir-larch,no2,3000lbf\n"
+        "P2,4x4,eight feet,douglas-fir-larch,no2,3000lbf\n"
+        "P3,6x6,9ft,southern-pine,no1,6000lbf\n"
+    )
+    rc = main(["import", "--db", db, str(src), "--site", "Yard", "--visit", "Day 1", "--inspector", "K"])
+    err = capsys.readouterr().err
+    assert rc == 1 and "row 2, column height" in err
+    out = tmp_path / "out.json"
+    assert main(["export", "--db", db, "--format", "json", "--out", str(out)]) == 0
+    data = json.loads(out.read_text())
+    assert {"P1", "P3"} <= {p["tag"] for p in data["posts"]}
+    assert "ratio" in data["columns"] and "engine_version" in data["columns"]
+    assert main(["export", "--db", db, "--format", "csv"]) == 0
+    text = capsys.readouterr().out
+    assert text.splitlines()[0].startswith("tag,") and "14 Alder Row" in text
+    assert main(["import", "--db", db, str(src)]) == 2  # --site and --visit are required
+    assert main(["export", "--db", str(tmp_path / "none.db")]) == 2

@@ -1,0 +1,134 @@
+"""Schema versions: upgrade from version 1 after a backup, newer or foreign files refused,
+damaged files reported in one sentence, the field PRAGMAs on every connection."""
+
+from __future__ import annotations
+
+import sqlite3
+
+import pytest
+
+from fieldcheck.store import Log, LogError
+from fieldcheck.store.connection import connect, pragma
+from fieldcheck.store.schema import MIGRATION_NAMES, SCHEMA_VERSION, migrations
+
+
+def _make_v1(path):
+    """A log as the first schema version left it, with one post in it."""
+    db = connect(path)
+    migrations.apply(db, stop_before=MIGRATION_NAMES[1])
+    origin = "'dev-old', {seq}, 'old author', '2026-06-01T09:00:00+01:00'"
+    with db.atomic():
+        db.execute("INSERT INTO meta VALUES ('device_id', 'dev-old')")
+        db.execute(f"INSERT INTO sites VALUES ('s1', 'Old site', '', '', {origin.format(seq=1)})")
+        db.execute(
+            "INSERT INTO visits VALUES ('v1', 's1', 'June', 'A. B.', '2026-06-01T09:00:00+01:00', "
+            f"'[]', 'minimum', '', {origin.format(seq=2)})"
+        )
+        db.execute(f"INSERT INTO members VALUES ('m1', 's1', 'P1', {origin.format(seq=3)})")
+        db.execute(
+            "INSERT INTO observations VALUES ('o1', 'm1', 'v1', NULL, 0, '', "
+            "'{\"tag\": \"P1\", \"size\": \"4x4\", \"height\": \"8ft\", \"load\": \"2000lbf\"}', "
+            f"{origin.format(seq=4)})"
+        )
+    assert pragma(db, "user_version") == 1
+    db.close()
+
+
+def test_every_connection_gets_the_field_pragmas(log):
+    assert pragma(log.db, "journal_mode") == "wal"
+    assert pragma(log.db, "synchronous") == 2  # FULL
+    assert pragma(log.db, "foreign_keys") == 1
+    strict = [r[0] for r in log.db.conn.execute(
+        "SELECT name FROM sqlite_master WHERE type = 'table' AND sql LIKE '%STRICT'")]
+    assert {"sites", "visits", "members", "observations", "ratings", "attachments", "reviews"} <= set(strict)
+    assert log.schema_version == SCHEMA_VERSION
+
+
+def test_strict_tables_refuse_wrong_types(log, visit):
+    with pytest.raises(sqlite3.IntegrityError):
+        log.db.execute(
+            "INSERT INTO sync_state VALUES ('office', 'sent', 'd', 'many', '2026-01-01T00:00:00Z')"
+        )
+
+
+def test_upgrade_from_version_1_keeps_data_and_leaves_a_backup(tmp_path):
+    path = tmp_path / "survey.db"
+    _make_v1(path)
+    with Log.open(path) as log:
+        assert log.schema_version == SCHEMA_VERSION
+        assert log.backup_path is not None and log.backup_path.name.startswith("survey.db.v1-backup-")
+        (post,) = log.posts()
+        assert post.tag == "P1" and post.record["load"] == "2000lbf" and post.ratio is None
+        assert log.device_id == "dev-old"
+        # the new tables work, and the old post re-rates through the engine
+        log.add_review("sign-off", "checked in the office", member_id=post.member_id)
+        assert log.rerate_all().rated == 1
+        backup = log.backup_path
+    old = sqlite3.connect(backup)
+    assert old.execute("PRAGMA user_version").fetchone()[0] == 1
+    assert old.execute("SELECT count(*) FROM observations").fetchone()[0] == 1
+    assert old.execute("PRAGMA integrity_check").fetchone()[0] == "ok"
+    old.close()
+    # opening again upgrades nothing and makes no second backup
+    with Log.open(path) as log:
+        assert log.backup_path is None
+    assert len(list(tmp_path.glob("survey.db.v1-backup-*"))) == 1
+
+
+def test_newer_schema_is_refused_and_the_file_left_unchanged(tmp_path):
+    path = tmp_path / "future.db"
+    Log.open(path).close()
+    con = sqlite3.connect(path)
+    con.execute(f"PRAGMA user_version = {SCHEMA_VERSION + 1}")
+    con.commit()
+    con.close()
+    before = path.read_bytes()
+    with pytest.raises(LogError, match=r"newer fieldcheck \(schema version 3, this one reads up to 2\)"):
+        Log.open(path)
+    assert path.read_bytes() == before
+
+
+def test_foreign_sqlite_file_is_refused(tmp_path):
+    path = tmp_path / "other.db"
+    con = sqlite3.connect(path)
+    con.execute("CREATE TABLE x (a)")
+    con.commit()
+    con.close()
+    with pytest.raises(LogError, match="not a fieldcheck survey log"):
+        Log.open(path)
+
+
+def test_unknown_migration_is_refused(tmp_path):
+    path = tmp_path / "s.db"
+    with Log.open(path) as log:
+        log.db.table("_sqlite_migrations").insert(
+            {"migration_set": "fieldcheck", "name": "0099_future", "applied_at": "x"})
+    with pytest.raises(LogError, match="0099_future"):
+        Log.open(path)
+
+
+@pytest.mark.parametrize("damage", ["garbage", "truncated", "zeroed-pages"])
+def test_damaged_file_is_reported_in_one_sentence(tmp_path, damage, shore):
+    path = tmp_path / "s.db"
+    with Log.open(path) as log:
+        s = log.add_site("s")
+        v = log.add_visit(s.id, "x")
+        for i in range(3):
+            log.save_post(v.id, {**shore, "tag": f"P{i}", "notes": "x" * 200})
+        log.import_rows([{**shore, "tag": f"Q{i}", "notes": "y" * 300} for i in range(400)], "s", "v")
+    data = path.read_bytes()
+    if damage == "garbage":
+        path.write_bytes(b"this is not a database at all" * 100)
+    elif damage == "truncated":
+        path.write_bytes(data[: len(data) // 3])
+    else:
+        page = 4096
+        path.write_bytes(data[: 2 * page] + b"\xff" * (len(data) - 4 * page) + data[-2 * page:])
+    try:
+        with Log.open(path) as log:
+            report = log.integrity()
+            problems = report.problems()
+            assert problems and not report.ok
+    except LogError as exc:
+        msg = str(exc)
+        assert "cannot be read" in msg and "\n" not in msg and str(path) in msg
