@@ -18,6 +18,7 @@ import numpy as np
 from fieldcheck.engine.batch import PostBatch, make_batch
 from fieldcheck.records.builders import BUILDERS, RowError
 from fieldcheck.records.columns import COLUMNS, GROUPS, Column
+from fieldcheck.records import load_columns as _load_columns  # noqa: F401,E402  (tributary loads, ground)
 
 __all__ = ["COLUMNS", "GROUPS", "Column", "FieldError", "Parsed", "parse_records", "rate_records", "parse_row"]
 
