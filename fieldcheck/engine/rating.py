@@ -263,8 +263,13 @@ def _rate_block(b: PostBatch) -> Rating:
     # between brace points a braced (no-sway) segment is taken as pinned-pinned, Ke = 1.0
     ke1 = np.where(np.isnan(b.ke1), np.where(b.braced1 & ~sway, 1.0, k_ends), b.ke1)
     ke2 = np.where(np.isnan(b.ke2), np.where(b.braced2 & ~sway, 1.0, k_ends), b.ke2)
-    le_d1 = ke1 * lu1 / b.d1_mm
-    le_d2 = ke2 * lu2 / b.d2_mm
+    # ---- the post as found: residual section and strength ratios (engine/condition.py) ------
+    # loss in the middle part enters the stability check through d_eff = sqrt(12 I / A);
+    # knots and slope reduce Fc* by the lowest strength ratio (exactly 1.0 and d for a sound post)
+    cond = _condition.residual(b, ke1 * lu1, ke2 * lu2)
+    fc_star = fc_star * cond["strength_ratio"]
+    le_d1 = ke1 * lu1 / cond["d_eff1"]
+    le_d2 = ke2 * lu2 / cond["d_eff2"]
 
     # ---- column stability (NDS 2018 §3.7.1; built-up §15.3) ---------------------------------
     c = nds.C_BY_PRODUCT[b.product]
@@ -274,12 +279,15 @@ def _rate_block(b: PostBatch) -> Rating:
     cp2 = b.kf * nds.column_stability_factor(fce2, fc_star, c)  # NDS 2018 §15.3.2: Kf
     axis2 = cp2 < cp1
     cp = np.where(axis2, cp2, cp1)
-    area = b.d1_mm * b.d2_mm
+    area = cond["area"]  # residual area of the middle part (NDS 2018 §3.6.3 as remembered [M])
     kappa = b.knowledge
     p_column = cp * fc_star * area * kappa
 
     # ---- end-grain bearing on the post (NDS 2018 §3.10.1) ------------------------------------
-    a_contact = area * b.end_contact
+    # each end's residual area x contact share; a crushed or broomed end bears on part of it
+    a_top = cond["area_top"] * b.end_contact * np.where(b.crushed_end & 1, _condition.CRUSHED_AREA, 1.0)
+    a_bot = cond["area_bottom"] * b.end_contact * np.where(b.crushed_end & 2, _condition.CRUSHED_AREA, 1.0)
+    a_contact = np.minimum(a_top, a_bot)
     p_end = fc_star * a_contact * kappa
 
     # ---- bearing perpendicular to grain on the cap and the sill (NDS 2018 §3.10.2, §3.10.4) --
@@ -291,8 +299,8 @@ def _rate_block(b: PostBatch) -> Rating:
     lb_bot = np.where(b.bottom_lb_mm > 0, b.bottom_lb_mm, b.d1_mm)
     cb_top = nds.bearing_area_factor(lb_top, b.top_cb)
     cb_bot = nds.bearing_area_factor(lb_bot, b.bottom_cb)
-    p_cap = b.top_fc_perp_mpa * cm_bear * ct_f * perp_time * cb_top * a_contact
-    p_sill = b.bottom_fc_perp_mpa * cm_bear * ct_f * perp_time * cb_bot * a_contact
+    p_cap = b.top_fc_perp_mpa * cm_bear * ct_f * perp_time * cb_top * a_top
+    p_sill = b.bottom_fc_perp_mpa * cm_bear * ct_f * perp_time * cb_bot * a_bot
 
     load = b.load_n
     checks = {
@@ -311,8 +319,12 @@ def _rate_block(b: PostBatch) -> Rating:
         "ke2": ke2, "lu1": lu1, "lu2": lu2, "le_d1": le_d1, "le_d2": le_d2, "fce1": fce1,
         "fce2": fce2, "cp1": cp1, "cp2": cp2, "cp": cp, "c": c, "area": area,
         "axis": np.where(axis2, 2, 1).astype(np.int8), "cb_top": cb_top, "cb_bot": cb_bot,
-        "perp_time": perp_time, "cm_bear": cm_bear, "a_contact": a_contact,
+        "perp_time": perp_time, "cm_bear": cm_bear, "a_contact": a_contact, "a_top": a_top,
+        "a_bottom": a_bot, "cm_fb": cm_fb, "wet": wet, "sway": sway,
     }
+    values.update(cond)
+    values["area"] = area
+    _condition.add_checks(b, checks, values)  # eccentric load and bow; net-section crushing
     if np.any(b.method == EC5):
         from fieldcheck.engine.ec5_rating import apply_ec5
 
@@ -339,7 +351,7 @@ def _rate_block(b: PostBatch) -> Rating:
     flag(F_END_PLATE, ~b.end_plate & (load > nds.END_BEARING_PLATE_RATIO * fc_star * a_contact))
     flag(F_DRY_ASSUMED, ~measured)
     flag(F_WET, wet)
-    flag(F_ASSUMED_MATERIAL, kappa < 1.0)
+    flag(F_ASSUMED_MATERIAL, (kappa < 1.0) & (b.material_assumed | (b.data_level < 0)))
     flag(F_CAP_UNCHECKED, np.isnan(b.top_fc_perp_mpa))
     flag(F_SILL_UNCHECKED, np.isnan(b.bottom_fc_perp_mpa))
     flag(F_THEORETICAL_K, b.theoretical_k)
@@ -444,3 +456,6 @@ def mode_label(i_mode: int) -> str:
         return "mechanism"
     key = MODE_KEYS[i_mode]
     return f"NDS case ({key}) {MODES[key][0]}"
+
+
+from fieldcheck.engine import condition as _condition  # noqa: E402  (registers its flags and hooks)

@@ -70,6 +70,7 @@ def section_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
         thick_nom = 5 if timber else 4
         width_nom = int(sections.nominal_width_in(np.array([d1]))[0])
     f.update(d1_mm=d1, d2_mm=d2)
+    out["_d1"], out["_d2"] = d1, d2
     out["_category"] = "timber" if thick_nom >= 5 else "dimension"
     out["_width_nom"], out["_thick_nom"] = int(width_nom), int(thick_nom)
     f["product"] = TIMBER if thick_nom >= 5 else DIMENSION
@@ -95,7 +96,8 @@ def height_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
 def end_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
     top = END_NAMES.index(row.get("top", "pinned"))
     bottom = END_NAMES.index(row.get("bottom", "pinned"))
-    why = mechanism_reason(bottom, top)
+    springs = any(k in row for k in ("top_spring", "bottom_spring", "top_ratio", "bottom_ratio"))
+    why = None if springs else mechanism_reason(bottom, top)  # spring ends: checked by the solver
     if why:
         raise RowError("top", why)
     return {"top": top, "bottom": bottom, "theoretical_k": bool(row.get("k_theoretical", False))}
@@ -122,6 +124,7 @@ def material_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
         cf_fc=cf_fc, cf_fb=cf_fb, wet_tabulated=rv["wet_tabulated"], knowledge=rv["knowledge"],
     )
     out["_material"] = f"{species} {grade} ({rv['table']}, {rv['status']})"
+    out["_e_mpa"] = rv["e"]
     if method == LRFD:
         f["lam"] = LAMBDA[duration]
     return f

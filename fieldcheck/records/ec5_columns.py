@@ -52,6 +52,7 @@ def ec5_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
         raise RowError("class", "class: an EC5 rating needs a strength class, e.g. --class C24.")
     name = row["class"]
     f = dict(en338.batch_fields(name))
+    out["_e_mpa"] = f["e_mpa"]
     duration = EC5_DURATION[row.get("duration", "ten-years")]
     product = "solid"
     f["kmod"] = float(ec5.kmod(row.get("service_class", 1), duration, product))  # EN 1995-1-1 Table 3.1

@@ -1,0 +1,511 @@
+"""The post as found: defects and damage -> residual section, strength ratios, eccentricity, flags.
+
+Pure numpy on PostBatch arrays (SI: mm, N, MPa), no per-post loops. rating.rate() calls
+:func:`residual` before its column checks and :func:`add_checks` after them; the flags, the
+escalations of the action and the working lines register themselves when this module is imported
+(rating.py imports it).
+
+Model (field-practice.md §1.1, §1.13; column-design.md §4):
+
+* Section loss is deducted from the section (decayed, insect-damaged and charred wood has no
+  strength): depth per face from the original face, a hollow core at the centre, char plus the
+  zero-strength layer, a notch across one face, a bored hole, wane at the corners. Probed decay is
+  extended by a margin (``decay_margin_mm``, default 13 mm: judgement, field-practice.md §1.6 #119).
+* Where along the height: loss in the middle half (or over the full height) enters the stability
+  check through the residual I and A (d_eff = sqrt(12 I / A) per axis); loss at an end enters the
+  bearing checks at that end; the crushing check uses the net section wherever the loss is
+  (NDS 2018 §3.6.3 as remembered: net section for the stress check anywhere, net section in Cp
+  where the reduction is in the buckling-critical part) [M].
+* Knots and slope of grain reduce Fc (and Fb) through the lowest strength ratio (ASTM D245
+  principle, from memory). A graded member's tabulated values already allow its grade's own
+  knots and slope, so the ratio is applied only when the member is ungraded or of unknown grade,
+  or the inspector states the defect is beyond the grade (``sr_applies``); it then multiplies the
+  tabulated value as if it were clear wood: conservative by up to the grade's own ratio
+  (judgement, field-practice.md §1.1).
+* Eccentricity (load off-centre, the centroid shift of one-sided loss, partial end contact, the
+  lean of a sway post) and bow at mid-height are checked with the NDS 2018 §3.9.2 interaction in
+  the eccentric-column form of §15.4.1 (column-design.md §4.1, §4.2, §4.4); the capacity is the
+  largest load meeting it. A centred straight post has no such check: it gives exactly the plain
+  column result.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from fieldcheck.engine import nds
+from fieldcheck.engine import rating as _r
+from fieldcheck.engine.batch import EC5, LRFD, PostBatch
+from fieldcheck.engine.refdata import table
+
+IN = 25.4
+
+# ---- codes used in PostBatch condition fields ----------------------------------------------
+ZONE_NAMES = ("full", "middle", "top", "bottom")  # where along the height a loss lies
+FULL, MIDDLE, TOP, BOTTOM = 0, 1, 2, 3
+FACE_NAMES = ("wide", "narrow")  # a wide face is d1 wide (loss there reduces d2)
+WIDE, NARROW = 0, 1
+SPLIT_NAMES = ("none", "check", "through", "opening")
+SPLIT_NONE, SPLIT_CHECK, SPLIT_THROUGH, SPLIT_OPENING = 0, 1, 2, 3
+SPLIT_FACE_NAMES = ("unknown", "wide", "narrow")  # the faces a through split shows on
+SLOPE_TABLES = ("grading", "clear-wood")  # grading: ASTM D245 [M]; clear-wood: Wood Handbook 5-12 [V]
+GRADING, CLEAR_WOOD = 0, 1
+CRUSHED_NAMES = ("none", "top", "bottom", "both")  # bit 1 top, bit 2 bottom
+DATA_LEVELS = ("default-values", "drawings", "usual", "comprehensive")  # ASCE 41 data collection
+CONDITIONS = ("none recorded", "minor", "moderate", "severe")  # what was seen (not what to do)
+
+# ---- judgement and remembered constants (each editable here) --------------------------------
+CHAR_LAYER_MM = 7.0  # zero-strength layer beyond the char line, EN 1995-1-2 §4.2.2 d0 = 7 mm [M]
+CRUSHED_AREA = 0.5  # share of a crushed or broomed end taken as bearing (judgement)
+MIDDLE_FROM, MIDDLE_TO = 0.25, 0.75  # the buckling-critical middle half of the height (judgement)
+MC_DECAY_RISK = 20.0  # % MC at or above which most decay fungi grow (Smulski 1996 [S]; judgement flag)
+MC_SATURATED = 28.0  # % MC: near fibre saturation, meters unreliable (FPL-GTR-6 [V]; flag judgement)
+HANKINSON_Q_BENDING = 0.1  # Q/P for bending at an angle to grain (Wood Handbook ch. 5 range [M])
+LE_BENDING = 1.84  # le/lu for the bending check of a post with end moments (NDS 2018 Table 3.3.3 [M])
+ECC_ITERATIONS = 28  # Illinois steps of the interaction solve (converges to ~1e-12 relative)
+DEPTH_FIELDS = ("1p", "1m", "2p", "2m")  # faces: 1p/1m the narrow faces (reduce d1), 2p/2m wide
+
+
+@np.errstate(divide="ignore", invalid="ignore")
+def _nz(a: np.ndarray) -> np.ndarray:
+    """NaN -> 0 (a depth not given is no loss)."""
+    return np.where(np.isnan(a), 0.0, a)
+
+
+# =============================================================================================
+# Strength ratios
+# =============================================================================================
+def slope_rows(name: str, prop: str) -> tuple[np.ndarray, np.ndarray, str]:
+    """(slope n ascending, ratio 0-1, status) for one table and property from data/slope_of_grain.csv."""
+    rows = [r for r in table("slope_of_grain") if r["table"] == name and r["property"] == prop]
+    rows.sort(key=lambda r: float(r["slope_n"]))
+    return (np.array([float(r["slope_n"]) for r in rows]), np.array([float(r["ratio_pct"]) / 100 for r in rows]),
+            rows[0]["status"])
+
+
+def _hankinson(n: np.ndarray, q: np.ndarray) -> np.ndarray:
+    """Strength at the grain angle of slope 1 in n over strength along the grain, exponent 2:
+    Q / (P sin^2 + Q cos^2) with P = 1 (Hankinson; FPL Report 1203 [V], NDS 2018 §3.10.3 form)."""
+    s2 = 1.0 / (1.0 + n * n)  # sin^2(atan(1/n))
+    return q / (s2 + q * (1.0 - s2))
+
+
+def slope_ratio(n: np.ndarray, which: np.ndarray, prop: str, q: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """(strength ratio, steeper-than-table mask) for slope 1 in n (inf: straight).
+
+    A slope between rows takes the row at or steeper than it (conservative). Steeper than the
+    steepest row: that row's ratio scaled by Hankinson's formula (continuous, judgement).
+    """
+    out = np.ones_like(n, dtype=np.float64)
+    beyond = np.zeros(n.shape, dtype=bool)
+    straight = ~np.isfinite(n)
+    for code, name in enumerate(SLOPE_TABLES):
+        ns, sr, _ = slope_rows(name, prop)
+        m = (which == code) & ~straight
+        if not m.any():
+            continue
+        idx = np.searchsorted(ns, n, side="right") - 1
+        steep = idx < 0
+        row = sr[np.clip(idx, 0, None)]
+        ext = sr[0] * _hankinson(n, q) / _hankinson(np.full_like(n, ns[0]), q)
+        out = np.where(m, np.where(steep, np.minimum(ext, sr[0]), row), out)
+        beyond |= m & steep
+    return out, beyond
+
+
+def strength_ratios(b: PostBatch) -> dict[str, np.ndarray]:
+    """Lowest strength ratio of the knot and the slope, for Fc and for Fb (D245: lowest, not product)."""
+    k = _nz(b.knot_mm)
+    w = np.where(b.knot_face == NARROW, b.d2_mm, b.d1_mm)
+    sr_knot = np.clip(1.0 - k / w, 0.0, 1.0)  # ASTM D245 principle, knot as a hole: 1 - k/w [M]
+    q_c = np.clip(np.where(np.isnan(b.fc_perp_mpa), 0.1, b.fc_perp_mpa / b.fc_mpa), 0.02, 1.0)
+    sr_slope_c, beyond = slope_ratio(b.slope_n, b.slope_table, "compression", q_c)
+    sr_slope_b, _ = slope_ratio(b.slope_n, b.slope_table, "bending", np.full_like(q_c, HANKINSON_Q_BENDING))
+    recorded = (k > 0) | np.isfinite(b.slope_n)
+    apply = b.sr_applies & recorded
+    sr_c = np.where(apply, np.minimum(sr_knot, sr_slope_c), 1.0)
+    # bending: the compression knot form is used for Fb too (judgement; D245 bending rules for
+    # edge and centre knots are more detailed and were not verified)
+    sr_b = np.where(apply, np.minimum(sr_knot, sr_slope_b), 1.0)
+    return {"strength_ratio": sr_c, "sr_bending": sr_b, "sr_knot": sr_knot, "sr_slope": sr_slope_c,
+            "sr_slope_bending": sr_slope_b, "slope_beyond_table": beyond & apply, "sr_recorded": recorded}
+
+
+# =============================================================================================
+# Residual section
+# =============================================================================================
+def _in_zone(zone: np.ndarray, *wanted: int) -> np.ndarray:
+    m = zone == FULL
+    for z in wanted:
+        m = m | (zone == z)
+    return m
+
+
+def _cut_zones(z_mm: np.ndarray, h: np.ndarray, d1: np.ndarray):
+    """(middle, top end, bottom end) masks for a notch or hole at height z (NaN: mid-height assumed,
+    the worst place for buckling). An end means within one section width of it (judgement)."""
+    z = np.where(np.isnan(z_mm), 0.5 * h, z_mm)
+    mid = (z >= MIDDLE_FROM * h) & (z <= MIDDLE_TO * h)
+    return mid, z >= h - d1, z <= d1
+
+
+def _section(b: PostBatch, dec: list, chr_: list, inc_dec, inc_chr, inc_hollow, inc_notch, inc_hole,
+             full: bool = True) -> dict[str, np.ndarray]:
+    """Residual section for the losses included (boolean masks). Coordinates from the original
+    centre: x along d1, y along d2. Returns area and, if ``full``, I1, I2, centroid, S, sizes."""
+    d1, d2 = b.d1_mm, b.d2_mm
+    notch = _nz(b.notch_mm) * inc_notch
+    a = []
+    for k in range(4):
+        on_face = (b.notch_face == NARROW) if k == 0 else (b.notch_face == WIDE) if k == 2 else False
+        ak = np.maximum(dec[k] * inc_dec, chr_[k] * inc_chr)
+        if k in (0, 2):
+            ak = np.maximum(ak, notch * on_face)  # a notch is cut on the + face (sign is immaterial)
+        a.append(ak)
+    a1p, a1m, a2p, a2m = a
+    b1 = np.maximum(d1 - a1p - a1m, 0.0)
+    b2 = np.maximum(d2 - a2p - a2m, 0.0)
+    xc, yc = 0.5 * (a1m - a1p), 0.5 * (a2m - a2p)
+    ar = b1 * b2
+    # wane: 45-degree corner triangles of leg w at the original corners, filled in the order
+    # (+1,+2), (-1,+2), (+1,-2), (-1,-2); face losses shrink the leg to w - a1 - a2 (exact)
+    w = _nz(b.wane_mm)
+    corners = ((1, 1, a1p, a2p), (-1, 1, a1m, a2p), (1, -1, a1p, a2m), (-1, -1, a1m, a2m))
+    tri = []
+    for j, (sx, sy, ax, ay) in enumerate(corners):
+        wc = np.maximum(w - ax - ay, 0.0) * (b.wane_corners > j)
+        tri.append((sx, sy, wc))
+    hol = _nz(b.hollow_mm) * inc_hollow
+    a_h = np.pi / 4.0 * hol * hol
+    hole = _nz(b.hole_mm) * inc_hole
+    through_wide = b.hole_face == WIDE  # bored through the wide faces: runs along d2
+    a_bore = np.where(through_wide, hole * b2, hole * b1)
+    area = ar - a_h - a_bore
+    for _, _, wc in tri:
+        area = area - 0.5 * wc * wc
+    out = {"area": np.maximum(area, 0.0)}
+    if not full:
+        return out
+    # first moments and second moments about the original centre, then about the new centroid
+    x_t = [d1 * 0.5 * sx - np.where(sx > 0, a1p, -a1m) - sx * wc / 3.0 for sx, _, wc in tri]
+    y_t = [d2 * 0.5 * sy - np.where(sy > 0, a2p, -a2m) - sy * wc / 3.0 for _, sy, wc in tri]
+    at = [0.5 * wc * wc for _, _, wc in tri]
+    xb_bore = np.where(through_wide, 0.0, xc)
+    yb_bore = np.where(through_wide, yc, 0.0)
+    sx_ = ar * xc - a_bore * xb_bore
+    sy_ = ar * yc - a_bore * yb_bore
+    for k in range(4):
+        sx_ = sx_ - at[k] * x_t[k]
+        sy_ = sy_ - at[k] * y_t[k]
+    with np.errstate(divide="ignore", invalid="ignore"):
+        safe = np.where(area > 0, area, 1.0)
+        xbar, ybar = sx_ / safe, sy_ / safe
+    i_h = np.pi / 64.0 * hol**4
+    i1 = b2 * b1**3 / 12.0 + ar * xc * xc - i_h
+    i2 = b1 * b2**3 / 12.0 + ar * yc * yc - i_h
+    i1 = i1 - np.where(through_wide, b2 * hole**3 / 12.0, hole * b1**3 / 12.0 + a_bore * xc * xc)
+    i2 = i2 - np.where(through_wide, hole * b2**3 / 12.0 + a_bore * yc * yc, b1 * hole**3 / 12.0)
+    for k, (_, _, wc) in enumerate(tri):
+        it = wc**4 / 36.0  # right isosceles triangle about its centroid
+        i1 = i1 - it - at[k] * x_t[k] ** 2
+        i2 = i2 - it - at[k] * y_t[k] ** 2
+    i1 = np.maximum(i1 - area * xbar * xbar, 0.0)
+    i2 = np.maximum(i2 - area * ybar * ybar, 0.0)
+    c1 = np.maximum(0.5 * d1 - a1p - xbar, xbar + 0.5 * d1 - a1m)  # extreme fibres
+    c2 = np.maximum(0.5 * d2 - a2p - ybar, ybar + 0.5 * d2 - a2m)
+    out.update(i1=i1, i2=i2, xbar=xbar, ybar=ybar, c1=c1, c2=c2, b1=b1, b2=b2)
+    return out
+
+
+def residual(b: PostBatch, le1: np.ndarray | None = None, le2: np.ndarray | None = None) -> dict[str, np.ndarray]:
+    """Every condition value the rating needs, as arrays (see the module docstring).
+
+    Keys: area (middle section, used by the column check), area_gross, area_net (all losses
+    together, for the crushing check), area_top, area_bottom (end bearing), res_i1, res_i2,
+    d_eff1, d_eff2, i_gyr1, i_gyr2, s1, s2, least_d1, least_d2, shift1, shift2, loss (bool),
+    and the strength ratios (strength_ratio for Fc, sr_bending for Fb, ...). ``le1``, ``le2``
+    (effective lengths) decide the axis of a through split whose faces were not recorded.
+    """
+    d1, d2, h = b.d1_mm, b.d2_mm, b.height_mm
+    margin = _nz(b.decay_margin_mm)
+    dec = [np.where(_nz(getattr(b, f"decay_{f}_mm")) > 0, _nz(getattr(b, f"decay_{f}_mm")) + margin, 0.0)
+           for f in DEPTH_FIELDS]  # judgement margin past the probed boundary (field-practice.md §1.6)
+    chr_ = [np.where(_nz(getattr(b, f"char_{f}_mm")) > 0, _nz(getattr(b, f"char_{f}_mm")) + CHAR_LAYER_MM, 0.0)
+            for f in DEPTH_FIELDS]  # char + zero-strength layer d0 (EN 1995-1-2 §4.2.2, from memory)
+    n_mid, n_top, n_bot = _cut_zones(b.notch_z_mm, h, d1)
+    h_mid, h_top, h_bot = _cut_zones(b.hole_z_mm, h, d1)
+    yes = np.ones(b.n, dtype=bool)
+    mid = _section(b, dec, chr_, _in_zone(b.decay_zone, MIDDLE), _in_zone(b.char_zone, MIDDLE),
+                   _in_zone(b.hollow_zone, MIDDLE), n_mid, h_mid)
+    net = _section(b, dec, chr_, yes, yes, yes, yes, yes)
+    top = _section(b, dec, chr_, _in_zone(b.decay_zone, TOP), _in_zone(b.char_zone, TOP),
+                   _in_zone(b.hollow_zone, TOP), n_top, h_top, full=False)
+    bot = _section(b, dec, chr_, _in_zone(b.decay_zone, BOTTOM), _in_zone(b.char_zone, BOTTOM),
+                   _in_zone(b.hollow_zone, BOTTOM), n_bot, h_bot, full=False)
+    gross = d1 * d2
+    loss_any = (
+        (sum(dec) + sum(chr_) + _nz(b.hollow_mm) + _nz(b.notch_mm) + _nz(b.hole_mm)
+         + _nz(b.wane_mm) * (b.wane_corners > 0)) > 0
+    )
+    loss_mid = loss_any & (mid["area"] < gross)
+    # through split in the buckling-critical part: the halves act separately about one axis,
+    # I about it / 4 (mechanics, field-practice.md §1.4 [X]); unknown faces: the worse axis
+    split_mid = (b.split >= SPLIT_THROUGH) & _in_zone(b.split_zone, MIDDLE)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        a_m = np.where(loss_mid, mid["area"], gross)
+        de1 = np.where(loss_mid, np.sqrt(12.0 * mid["i1"] / a_m), d1)  # d_eff = sqrt(12 I / A)
+        de2 = np.where(loss_mid, np.sqrt(12.0 * mid["i2"] / a_m), d2)
+    if le1 is None:
+        le1, le2 = h, h
+    worse_is_1 = le1 / de1 > le2 / de2  # halving d_eff doubles le/d: the larger one matters more
+    s_axis1 = split_mid & ((b.split_faces == 1) | ((b.split_faces == 0) & worse_is_1))
+    s_axis2 = split_mid & ~s_axis1
+    i1 = np.where(loss_mid, mid["i1"], d2 * d1**3 / 12.0)
+    i2 = np.where(loss_mid, mid["i2"], d1 * d2**3 / 12.0)
+    i1 = np.where(s_axis1, 0.25 * i1, i1)
+    i2 = np.where(s_axis2, 0.25 * i2, i2)
+    de1 = np.where(s_axis1, 0.5 * de1, de1)
+    de2 = np.where(s_axis2, 0.5 * de2, de2)
+    c1 = np.where(loss_mid, mid["c1"], 0.5 * d1)
+    c2 = np.where(loss_mid, mid["c2"], 0.5 * d2)
+    shift1 = np.where(loss_any, np.where(np.abs(net["xbar"]) > np.abs(mid["xbar"]), net["xbar"], mid["xbar"]), 0.0)
+    shift2 = np.where(loss_any, np.where(np.abs(net["ybar"]) > np.abs(mid["ybar"]), net["ybar"], mid["ybar"]), 0.0)
+    out = {
+        "area": a_m, "area_gross": gross, "area_net": np.where(loss_any, net["area"], gross),
+        "area_top": np.where(loss_any, top["area"], gross), "area_bottom": np.where(loss_any, bot["area"], gross),
+        "res_i1": i1, "res_i2": i2, "d_eff1": de1, "d_eff2": de2,
+        "i_gyr1": de1 / np.sqrt(12.0), "i_gyr2": de2 / np.sqrt(12.0),
+        "s1": i1 / c1, "s2": i2 / c2, "least_d1": np.where(loss_mid, mid["b1"], d1),
+        "least_d2": np.where(loss_mid, mid["b2"], d2), "shift1": shift1, "shift2": shift2,
+        "loss": loss_any, "loss_mid": loss_mid, "split_axis": np.where(s_axis1, 1, np.where(s_axis2, 2, 0)).astype(np.int8),
+    }
+    out.update(strength_ratios(b))
+    return out
+
+
+# =============================================================================================
+# Checks added to the rating: eccentric load and bow, net-section crushing
+# =============================================================================================
+def _interaction(x, a0, u1, u2, g1, h1, g2, h2, f1, f2, k):
+    """NDS 2018 Eq. 15.4-1 with the bow terms, minus 1, at load x (N); +inf past a pole."""
+    den1 = 1.0 - u1 * x
+    kx = k * x
+    den2 = 1.0 - u2 * x - kx * kx
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        t = a0 * x * x + x * (g1 + h1 * x) / (f1 * den1) + x * (g2 + h2 * x) / (f2 * den2) - 1.0
+    return np.where((den1 > 0) & (den2 > 0), t, np.inf)
+
+
+def eccentric_capacity(area, s1, s2, e1, e2, bow1, bow2, fc_prime, fb1p, fb2p, fce1, fce2, fbe):
+    """Largest P meeting the NDS 2018 §3.9.2 / §15.4.1 interaction (column-design.md §4.1, §4.2, §4.4).
+
+        (fc/Fc')^2 + [fb1 + fc (6 e1/d1)(1 + 0.234 fc/FcE1)] / (Fb1' [1 - fc/FcE1])
+                   + [fb2 + fc (6 e2/d2)(1 + 0.234 fc/FcE2)] / (Fb2' [1 - fc/FcE2 - ((fb1 + fc 6e1/d1)/FbE)^2]) = 1
+
+    with fc = P/A, fc 6e/d = P e / S (the end-moment stress of the residual section) and fb = P bow / S
+    (a measured initial bow, amplified by the same 1/(1 - fc/FcE) term: column-design.md §4.4).
+    The left side grows with P, so the root lies between 0 and the concentric capacity A Fc':
+    Illinois (modified regula falsi) steps on the bracket, vectorised; the lower end is returned,
+    so the answer always satisfies the interaction.
+    """
+    a0 = 1.0 / (area * fc_prime) ** 2
+    u1 = 1.0 / (area * fce1)
+    u2 = 1.0 / (area * fce2)
+    g1 = (bow1 + e1) / s1
+    h1 = 0.234 * u1 * e1 / s1  # NDS 2018 Eq. 15.4-1: 0.234 fc/FcE
+    g2 = (bow2 + e2) / s2
+    h2 = 0.234 * u2 * e2 / s2
+    k = np.where(np.isfinite(fbe), g1 / fbe, 0.0)  # (fb1 + fc 6e1/d1) / FbE = k P
+    args = (a0, u1, u2, g1, h1, g2, h2, fb1p, fb2p, k)
+    lo = np.zeros_like(area)
+    flo = np.full_like(area, -1.0)
+    hi = area * fc_prime
+    fhi = _interaction(hi, *args)
+    side = np.zeros(area.shape, dtype=np.int8)
+    for _ in range(ECC_ITERATIONS):
+        finite = np.isfinite(fhi)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            x = np.where(finite, (lo * fhi - hi * flo) / (fhi - flo), 0.5 * (lo + hi))
+        x = np.where((x > lo) & (x < hi), x, 0.5 * (lo + hi))
+        fx = _interaction(x, *args)
+        neg = fx <= 0.0
+        lo = np.where(neg, x, lo)
+        flo = np.where(neg, fx, flo)
+        hi = np.where(neg, hi, x)
+        fhi = np.where(neg, fhi, fx)
+        fhi = np.where(neg & (side == -1), 0.5 * fhi, fhi)  # Illinois: same end kept twice
+        flo = np.where(~neg & (side == 1), 0.5 * flo, flo)
+        side = np.where(neg, -1, 1).astype(np.int8)
+    return lo
+
+
+def eccentricities(b: PostBatch, values: dict) -> tuple[np.ndarray, ...]:
+    """(e1, e2, bow1, bow2) in mm: end eccentricity per axis and the mid-height bow per axis.
+
+    End eccentricity adds (all taken in the same sense, conservative): the load off-centre on the
+    cap; the centroid shift of one-sided loss; partial end contact, (1 - contact) d2 / 2 about the
+    weak axis (judgement: the patch taken against one wide face); and for a sway post (a top or
+    bottom free to move sideways) the lean over the height (P-delta; the sway Ke in FcE gives the
+    amplification, column-design.md §4.4). A post held at both ends gains no bending from its lean.
+    """
+    sway = values["sway"]
+    contact = np.clip(b.end_contact, 0.0, 1.0)
+    e1 = np.abs(_nz(b.offset1_mm)) + np.abs(values["shift1"]) + np.where(sway, np.abs(_nz(b.plumb1_mm)), 0.0)
+    e2 = (np.abs(_nz(b.offset2_mm)) + np.abs(values["shift2"]) + (1.0 - contact) * 0.5 * b.d2_mm
+          + np.where(sway, np.abs(_nz(b.plumb2_mm)), 0.0))
+    return e1, e2, np.abs(_nz(b.bow1_mm)), np.abs(_nz(b.bow2_mm))
+
+
+def add_checks(b: PostBatch, checks: dict, values: dict) -> None:
+    """Add the 'eccentric' and 'net_section' checks (NaN where they do not apply)."""
+    v = values
+    n = b.n
+    load = b.load_n
+    kappa = b.knowledge
+    nds_m = b.method != EC5
+    lrfd = b.method == LRFD
+    # ---- net section away from mid-height (NDS 2018 §3.6.3 as remembered [M]) -----------------
+    p_net = np.full(n, np.nan)
+    m_net = nds_m & (v["area_net"] < v["area"])
+    p_net = np.where(m_net, v["fc_star"] * v["area_net"] * kappa, p_net)
+    checks["net_section"] = Check(
+        "net_section", "crushing of the net section (loss near an end)", "NDS 2018 §3.6.3, §3.7.1", p_net, load)
+    # ---- eccentric load and bow (NDS 2018 §3.9.2, §15.4.1) ------------------------------------
+    e1, e2, bow1, bow2 = eccentricities(b, v)
+    time_fb = np.where(lrfd, nds.KF_FB * nds.PHI_B * b.lam, b.cd)
+    fb_star = b.fb_mpa * time_fb * v["cm_fb"] * v["ct_f"] * b.cf_fb * v["ci_f"] * v["sr_bending"]
+    # lateral-torsional buckling only for d1/d2 > 2 (NDS 2018 §4.4.1: CL = 1.0 up to 2, from memory)
+    deep = b.d1_mm > 2.0 * b.d2_mm
+    rb2 = LE_BENDING * v["lu1"] * b.d1_mm / (b.d2_mm * b.d2_mm)  # RB^2 (NDS 2018 §3.3.3)
+    fbe = np.where(deep, 1.20 * v["emin_prime"] / rb2, np.inf)  # FbE (NDS 2018 §3.3.3)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        r = fbe / fb_star
+        hh = (1.0 + r) / 1.9
+        cl = np.where(deep, hh - np.sqrt(hh * hh - r / 0.95), 1.0)  # NDS 2018 Eq. 3.3-6
+    want = (e1 > 0) | (e2 > 0) | (bow1 > 0) | (bow2 > 0)
+    m = want & nds_m & np.isfinite(fb_star) & (fb_star > 0) & (v["area"] > 0)
+    p_ecc = np.full(n, np.nan)
+    idx = np.flatnonzero(m)
+    if idx.size:
+        fc_prime = (v["cp"] * v["fc_star"] * kappa)[idx]
+        p_ecc[idx] = eccentric_capacity(
+            v["area"][idx], v["s1"][idx], v["s2"][idx], e1[idx], e2[idx], bow1[idx], bow2[idx], fc_prime,
+            (fb_star * cl * kappa)[idx], (fb_star * kappa)[idx], v["fce1"][idx], v["fce2"][idx], fbe[idx])
+    checks["eccentric"] = Check(
+        "eccentric", "combined axial load and bending (eccentricity, bow)", "NDS 2018 §3.9.2, §15.4.1",
+        p_ecc, load)
+    v.update(ecc1=e1, ecc2=e2, bow1=bow1, bow2=bow2, fb_star=fb_star, fbe=fbe, cl=cl,
+             ecc_checked=m, ecc_wanted=want)
+
+
+# =============================================================================================
+# Flags, escalations, condition level
+# =============================================================================================
+F_DECAY_RISK = _r.new_flag(18, "Moisture 20 % or more: decay risk. Probe for decay and find the water source "
+                               "(judgement, field-practice.md §1.9).")
+F_SATURATED = _r.new_flag(19, "Moisture 28 % or more: near fibre saturation the meter reads unreliably; treat "
+                              "the post as wet and probe it thoroughly (judgement).")
+F_SECTION_LOSS = _r.new_flag(20, "Section loss deducted: the checks use the residual section (decayed, insect-"
+                                 "damaged and charred wood taken as having no strength).")
+F_DECAY_FOUND = _r.new_flag(21, "Decay or insect damage found: repair or brace before the due date and stop the "
+                                "water getting in; hidden decay may reach further than probed.")
+F_SR_APPLIED = _r.new_flag(22, "Knots or slope of grain reduce Fc and Fb by the lowest strength ratio "
+                               "(ASTM D245 principle, from memory).")
+F_SR_NOT_APPLIED = _r.new_flag(23, "Knots or slope recorded on a graded member but not deducted: the grade "
+                                   "allows for its own; give beyond_grade yes if they exceed the grade.")
+F_SLOPE_STEEP = _r.new_flag(24, "Slope of grain steeper than the table covers: ratio extended by Hankinson's "
+                                "formula; the member is outside structural grades, the engineer should assess it.")
+F_CHECKS = _r.new_flag(25, "Seasoning checks: little effect on crushing; probe the bottom of deep checks for decay.")
+F_SPLIT_THROUGH = _r.new_flag(26, "Through split in the middle part: the halves are taken as acting separately "
+                                  "(I / 4 about one axis). Clamp or bolt it.")
+F_SPLIT_OPENING = _r.new_flag(27, "Split opening under load: make safe now.")
+F_END_SPLIT = _r.new_flag(28, "Split at an end: the halves may act separately near the end; clamp it or "
+                              "replace the post.")
+F_CRUSHED_END = _r.new_flag(29, "Crushed or broomed end: half of that end's area taken as bearing (judgement); "
+                                "re-wedge or pack it to full contact.")
+F_CRUSHING = _r.new_flag(30, "Crushing in progress: make safe now (clear the area, call the engineer).")
+F_SETTLING = _r.new_flag(31, "Sill or pad settling: make safe now (clear the area, call the engineer).")
+F_MOVING = _r.new_flag(32, "Post leaning or moving more than before: make safe now.")
+F_ECCENTRIC = _r.new_flag(33, "Eccentric load or bow: combined axial load and bending checked "
+                              "(NDS 2018 §3.9.2, §15.4.1).")
+F_ECC_UNCHECKED = _r.new_flag(34, "Eccentricity or bow recorded but the combined check was not made (no "
+                                  "bending value Fb for this method): the capacity shown is for a centred load.")
+F_LEAN_THRUST = _r.new_flag(35, "Out of plumb with both ends held: no bending added, but the bracing and the "
+                                "end friction must carry H = P x lean / height.")
+F_SW_SUSPECT = _r.new_flag(36, "Stress-wave time 30 % or more above the sound reading: suspect decay; drill or "
+                               "probe there (threshold from memory).")
+F_SW_ADVANCED = _r.new_flag(37, "Stress-wave time 50 % or more above the sound reading: advanced decay likely "
+                                "(threshold from memory).")
+F_NO_SECTION = _r.new_flag(38, "No sound section left at some height: the post cannot be relied on.")
+F_DATA_LEVEL = _r.new_flag(39, "Knowledge factor set from the data-collection level given (ASCE 41, borrowed "
+                               "for gravity checks: judgement).")
+
+_r.ESCALATIONS.extend([
+    (F_SPLIT_OPENING | F_CRUSHING | F_SETTLING | F_MOVING | F_NO_SECTION, 3),  # field-practice.md §6.2 D
+    (F_DECAY_FOUND | F_SW_ADVANCED, 2),  # field-practice.md §6.2 C: decay found
+    (F_DECAY_RISK | F_SATURATED | F_SW_SUSPECT | F_CRUSHED_END | F_SPLIT_THROUGH | F_END_SPLIT, 1),  # §6.2 B
+])
+SEVERE = F_SPLIT_OPENING | F_CRUSHING | F_SETTLING | F_MOVING | F_NO_SECTION
+MODERATE = (F_SECTION_LOSS | F_DECAY_FOUND | F_SW_ADVANCED | F_SR_APPLIED | F_SPLIT_THROUGH | F_END_SPLIT
+            | F_CRUSHED_END | F_ECCENTRIC | F_ECC_UNCHECKED | F_SLOPE_STEEP)
+MINOR = F_DECAY_RISK | F_SATURATED | F_SW_SUSPECT | F_CHECKS | F_SR_NOT_APPLIED | F_LEAN_THRUST
+
+
+def stress_wave(b: PostBatch) -> dict[str, np.ndarray]:
+    """Velocity v = path / time (m/s), E_d = rho v^2 (MPa; field-practice.md §2, physics) and the
+    ratio of the transit time to the sound reading on the same member and path."""
+    with np.errstate(divide="ignore", invalid="ignore"):
+        v = b.sw_path_mm / b.sw_time_us * 1000.0  # mm/us = 1000 m/s
+        ed = b.density_kgm3 * v * v / 1e6  # Pa -> MPa
+        ratio = b.sw_time_us / b.sw_sound_us
+    return {"sw_velocity": v, "sw_ed_mpa": ed, "sw_ratio": ratio}
+
+
+def condition_flags(b: PostBatch, values: dict) -> np.ndarray:
+    """Flag hook: condition flags (int64) and values['condition'] (0-3, what was seen)."""
+    v = values
+    flags = np.zeros(b.n, dtype=np.int64)
+
+    def flag(bit: int, where) -> None:
+        np.bitwise_or(flags, bit, out=flags, where=where)
+
+    mc = b.moisture_pct  # NaN compares False
+    flag(F_DECAY_RISK, mc >= MC_DECAY_RISK)
+    flag(F_SATURATED, mc >= MC_SATURATED)
+    flag(F_SECTION_LOSS, v["loss"])
+    decay = (_nz(b.decay_1p_mm) + _nz(b.decay_1m_mm) + _nz(b.decay_2p_mm) + _nz(b.decay_2m_mm)
+             + _nz(b.hollow_mm)) > 0
+    flag(F_DECAY_FOUND, decay)
+    flag(F_SR_APPLIED, v["strength_ratio"] < 1.0)
+    flag(F_SR_NOT_APPLIED, v["sr_recorded"] & ~b.sr_applies)
+    flag(F_SLOPE_STEEP, v["slope_beyond_table"])
+    flag(F_CHECKS, b.split == SPLIT_CHECK)
+    at_end = (b.split_zone == TOP) | (b.split_zone == BOTTOM)
+    flag(F_SPLIT_THROUGH, (b.split >= SPLIT_THROUGH) & ~at_end)
+    flag(F_END_SPLIT, (b.split >= SPLIT_THROUGH) & at_end)
+    flag(F_SPLIT_OPENING, b.split == SPLIT_OPENING)
+    flag(F_CRUSHED_END, b.crushed_end > 0)
+    flag(F_CRUSHING, b.crushing_active)
+    flag(F_SETTLING, b.settling_sill)
+    flag(F_MOVING, b.post_moving)
+    flag(F_ECCENTRIC, v["ecc_checked"])
+    flag(F_ECC_UNCHECKED, v["ecc_wanted"] & ~v["ecc_checked"])
+    sway = v["sway"]
+    flag(F_LEAN_THRUST, ~sway & ((_nz(b.plumb1_mm) != 0) | (_nz(b.plumb2_mm) != 0)))
+    sw = stress_wave(b)
+    v.update(sw)
+    flag(F_SW_ADVANCED, sw["sw_ratio"] >= b.sw_advanced)
+    flag(F_SW_SUSPECT, (sw["sw_ratio"] >= b.sw_suspect) & ~(sw["sw_ratio"] >= b.sw_advanced))
+    flag(F_NO_SECTION, (v["area"] <= 0) | (v["area_net"] <= 0) | (v["area_top"] <= 0) | (v["area_bottom"] <= 0))
+    flag(F_DATA_LEVEL, b.data_level >= 0)
+    level = np.zeros(b.n, dtype=np.int8)
+    np.maximum(level, 1, out=level, where=(flags & MINOR) != 0)
+    np.maximum(level, 2, out=level, where=(flags & MODERATE) != 0)
+    np.maximum(level, 3, out=level, where=(flags & SEVERE) != 0)
+    v["condition"] = level
+    return flags
+
+
+_r.register_flag_hook(condition_flags)
+
+Check = _r.Check
