@@ -257,6 +257,15 @@ def _rate_block(b: PostBatch) -> Rating:
     mode = mode_index(b.bottom, b.top)
     sway = SWAY[np.where(mode < 0, 0, mode)] & (mode >= 0)
     k_ends = ke_from_ends(b.bottom, b.top, b.theoretical_k)
+    k_solved = np.full(n, np.nan)
+    springs = ~(np.isnan(b.r_top) & np.isnan(b.r_bottom))
+    if springs.any():  # spring-restrained ends: K solved numerically (stability.py)
+        from fieldcheck.engine.spring_ends import SPRING_MODE, spring_ke
+
+        idx = np.flatnonzero(springs)
+        kd, ks, sway_s = spring_ke(b, idx)
+        k_ends[idx], k_solved[idx], sway[idx] = kd, ks, sway_s
+        mode[idx] = np.where(np.isnan(kd), -1, SPRING_MODE)
     h = b.height_mm
     lu1 = np.where(sway | np.isnan(b.lu1_mm), h, b.lu1_mm)
     lu2 = np.where(sway | np.isnan(b.lu2_mm), h, b.lu2_mm)
@@ -317,7 +326,7 @@ def _rate_block(b: PostBatch) -> Rating:
         "fc_star": fc_star, "emin_prime": emin_p, "cm_fc": cm_fc, "cm_e": cm_e, "ct_f": ct_f,
         "ct_e": ct_e, "ci_f": ci_f, "ci_e": ci_e, "time_fc": time_fc, "mode": mode, "ke1": ke1,
         "ke2": ke2, "lu1": lu1, "lu2": lu2, "le_d1": le_d1, "le_d2": le_d2, "fce1": fce1,
-        "fce2": fce2, "cp1": cp1, "cp2": cp2, "cp": cp, "c": c, "area": area,
+        "k_solved": k_solved, "fce2": fce2, "cp1": cp1, "cp2": cp2, "cp": cp, "c": c, "area": area,
         "axis": np.where(axis2, 2, 1).astype(np.int8), "cb_top": cb_top, "cb_bot": cb_bot,
         "perp_time": perp_time, "cm_bear": cm_bear, "a_contact": a_contact, "a_top": a_top,
         "a_bottom": a_bot, "cm_fb": cm_fb, "wet": wet, "sway": sway,
@@ -356,7 +365,7 @@ def _rate_block(b: PostBatch) -> Rating:
     flag(F_SILL_UNCHECKED, np.isnan(b.bottom_fc_perp_mpa))
     flag(F_THEORETICAL_K, b.theoretical_k)
     flag(F_SWAY_BRACES, sway & (b.braced1 | b.braced2))
-    flag(F_MECHANISM, mode < 0)
+    flag(F_MECHANISM, mode == -1)
     flag(F_BUILT_UP, b.kf < 1.0)
     for hook in FLAG_HOOKS:
         flags |= hook(b, values)
@@ -452,6 +461,8 @@ def new_flag(bit: int, text: str) -> int:
 
 
 def mode_label(i_mode: int) -> str:
+    if i_mode == -2:
+        return "spring-restrained ends: K solved numerically (stability.py), design value per NDS 2018 Appendix G margins"
     if i_mode < 0:
         return "mechanism"
     key = MODE_KEYS[i_mode]
