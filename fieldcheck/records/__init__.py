@@ -115,3 +115,4 @@ def rate_records(rows: list[dict[str, str]]):
     return rate(parsed.batch), parsed.errors
 
 from fieldcheck.records import ec5_columns as _ec5_columns  # noqa: E402,F401  (registers columns)
+from fieldcheck.records import spring_columns as _spring_columns  # noqa: E402,F401  (spring ends)
