@@ -312,8 +312,12 @@ class Log:
         def inspect(db: Database) -> None:
             found["app"] = int(pragma(db, "application_id") or 0)
             found["version"] = int(pragma(db, "user_version") or 0)
+            # sqlite-utils creates its migrations table before the first migration commits: a
+            # file holding only that table is our own creation, interrupted
             found["tables"] = int(
-                db.conn.execute("SELECT count(*) FROM sqlite_master").fetchone()[0]
+                db.conn.execute(
+                    "SELECT count(*) FROM sqlite_master WHERE tbl_name != '_sqlite_migrations'"
+                ).fetchone()[0]
             )
             if found["app"] not in (0, APPLICATION_ID) or (found["app"] == 0 and found["tables"]):
                 raise LogError(

@@ -132,3 +132,16 @@ def test_damaged_file_is_reported_in_one_sentence(tmp_path, damage, shore):
     except LogError as exc:
         msg = str(exc)
         assert "cannot be read" in msg and "\n" not in msg and str(path) in msg
+
+
+def test_creation_interrupted_before_the_first_migration_is_finished_on_open(tmp_path):
+    # found by the kill test: sqlite-utils commits its migrations table (and index) before
+    # migration 1; a kill in between must not make the file look foreign
+    from sqlite_utils import Database
+
+    path = tmp_path / "half.db"
+    db = Database(sqlite3.connect(path))
+    migrations.ensure_migrations_table(db)
+    db.close()
+    with Log.open(path) as log:
+        assert log.schema_version == SCHEMA_VERSION and log.is_empty()
