@@ -1,0 +1,65 @@
+"""`fieldcheck report`: the survey report as one self-contained HTML file."""
+
+from __future__ import annotations
+
+import argparse
+import sys
+
+from fieldcheck.commands.log_option import add_db_option, open_log
+
+DESCRIPTION = (
+    "Write the survey report (a client summary in plain words and the technical record: inputs, "
+    "assumptions, every check, the working, remedies, photos) as one HTML file that needs no "
+    "network and prints a page per post. The posts are re-rated by this engine for the report."
+)
+
+
+def add_arguments(p: argparse.ArgumentParser) -> None:
+    add_db_option(p)
+    p.add_argument("--site", metavar="NAME-or-id", help="only this site (name or id)")
+    p.add_argument("--visit", metavar="NAME-or-id", help="only the posts seen on this visit")
+    p.add_argument("--out", metavar="FILE.html", required=True, help="the HTML file to write")
+    # SUPPRESS: `fieldcheck --units metric report ...` (the main option) stands when not given here
+    p.add_argument("--units", choices=("us", "metric"), default=argparse.SUPPRESS,
+                   help="unit system for the numbers (us)")
+
+
+def _find_site(log, text: str):
+    from fieldcheck.cli import UsageError
+
+    for s in log.sites():
+        if text in (s.id, s.name):
+            return s
+    names = ", ".join(repr(s.name) for s in log.sites()) or "none"
+    raise UsageError(f"--site: no site named or numbered {text!r} in this log; sites: {names}")
+
+
+def _find_visit(log, text: str, site_id: str | None):
+    from fieldcheck.cli import UsageError
+
+    found = [v for v in log.visits(site_id) if text in (v.id, v.name)]
+    if len(found) == 1:
+        return found[0]
+    if len(found) > 1:
+        raise UsageError(f"--visit: {len(found)} visits are named {text!r}; give the site with "
+                         "--site or the visit's id")
+    names = ", ".join(repr(v.name) for v in log.visits(site_id)) or "none"
+    raise UsageError(f"--visit: no visit named or numbered {text!r}; visits: {names}")
+
+
+def run(args: argparse.Namespace) -> int:
+    from fieldcheck.cli import UsageError
+    from fieldcheck.report.html import write_report
+
+    units = getattr(args, "units", None) or "us"
+    with open_log(args, readonly=True, must_exist=True) as log:
+        site = _find_site(log, args.site) if args.site else None
+        visit = _find_visit(log, args.visit, site.id if site else None) if args.visit else None
+        try:
+            path = write_report(log, args.out, site.id if site else None,
+                                visit.id if visit else None, units)
+        except OSError as exc:
+            raise UsageError(f"report: cannot write {args.out} ({exc.strerror or exc})") from None
+        n = len(log.posts(visit.id) if visit else log.posts(site_id=site.id if site else None))
+    print(f"Wrote the report of {n} posts to {path}.", file=sys.stderr)
+    return 0

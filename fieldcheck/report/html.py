@@ -1,0 +1,478 @@
+"""The survey report as one self-contained HTML file: inline CSS and SVG, no scripts, no links out.
+
+    from fieldcheck.report.html import render_report, write_report
+    text = render_report(log, site_id=None, visit_id=None, units="us")   # -> str
+    path = write_report(log, "report.html", site_id=None, visit_id=None, units="us")  # atomic
+
+Two parts: a client summary in plain words (what is safe to use, what is restricted, what must
+happen by when) and the technical record for the office (every input as typed, the assumptions,
+every check, the working, remedies, notes, photos with their sha256, the stored rating compared
+with the re-rating). All the numbers come from one engine call over the report's posts
+(model.gather); every piece of user text goes through html.escape.
+"""
+
+from __future__ import annotations
+
+import math
+import os
+import tempfile
+from html import escape
+from pathlib import Path
+
+from fieldcheck.engine.cautions import CAUTIONS
+from fieldcheck.engine.rating import ACTION_TEXT, ACTIONS, DUE_DAYS
+from fieldcheck.report.model import PostEntry, ReportData, gather, visit_date
+from fieldcheck.report.style import CSS
+from fieldcheck.report.svg import capacity_plot
+from fieldcheck.units import format_force, format_length
+
+# a word and a symbol beside every colour (never colour alone)
+BADGES = {
+    0: ("a0", "\u2713", "NO ACTION"),
+    1: ("a1", "\u25cb", "MONITOR"),
+    2: ("a2", "\u25b2", "REPAIR OR BRACE"),
+    3: ("a3", "\u2716", "MAKE SAFE NOW"),
+    None: ("an", "?", "NOT RATED"),
+}
+LEVEL_TEXT = {
+    "minimum": "minimum (visual assessment, default material values)",
+    "standard": "standard (measured, some testing)",
+    "detailed": "detailed (comprehensive testing and condition assessment)",
+}
+
+
+def e(x: object) -> str:
+    return escape("" if x is None else str(x), quote=True)
+
+
+def badge(action: int | None) -> str:
+    cls, sym, word = BADGES.get(action, BADGES[None])
+    return f'<span class="badge {cls}">{sym} {word}</span>'
+
+
+def ratio_text(r: float | None) -> str:
+    return "no load given" if r is None or not math.isfinite(r) else f"{r:.3f}"
+
+
+def date_text(d) -> str:
+    return "" if d is None else d.isoformat()
+
+
+def due_text(p: PostEntry) -> str:
+    a = p.action
+    if a is None:
+        return "assess first"
+    if DUE_DAYS[a] is None:
+        return "none"
+    if DUE_DAYS[a] == 0:
+        return f"now ({date_text(p.due)})" if p.due else "now"
+    return date_text(p.due) or f"within {DUE_DAYS[a]} days"
+
+
+# ----------------------------------------------------------------------------- sections
+
+
+def cautions_box(compact: bool = False) -> str:
+    items = "".join(f"<li>{e(c)}</li>" for c in CAUTIONS)
+    cls = "cautions compact" if compact else "cautions"
+    head = "" if compact else "<h3>Read this first</h3>"
+    return f'<div class="{cls}">{head}<ul>{items}</ul></div>'
+
+
+def _cover(d: ReportData) -> str:
+    site_rows = "".join(
+        f"<tr><th>Site</th><td>{e(s.name)}<br><span class='muted'>{e(s.address)}</span>"
+        f"{'<br>' + e(s.notes) if s.notes else ''}</td></tr>"
+        for s in d.sites
+    ) or "<tr><th>Site</th><td>none in this log</td></tr>"
+    vrows = "".join(
+        f"<tr><td>{e(v.name)}</td><td>{e(date_text(visit_date(v)))}</td><td>{e(v.inspector)}</td>"
+        f"<td>{e(LEVEL_TEXT.get(v.level, v.level))}</td><td>{e(', '.join(v.instruments))}</td></tr>"
+        for v in d.visits
+    )
+    counts: dict[int | None, int] = {}
+    for p in d.posts:
+        counts[p.action] = counts.get(p.action, 0) + 1
+    count_txt = ", ".join(f"{badge(a)} {n}" for a, n in sorted(counts.items(), key=lambda t: -1 if t[0] is None else t[0]))
+    return (
+        '<section id="cover"><h1>Survey report</h1>'
+        f'<p class="muted">Scope: {e(d.scope)}. Written {e(d.created.strftime("%Y-%m-%d %H:%M %Z"))} '
+        f'by fieldcheck engine {e(d.engine_version)}; units: {e(d.units)}.</p>'
+        f'<table class="kv">{site_rows}'
+        f"<tr><th>Posts in this report</th><td>{len(d.posts)}{': ' + count_txt if count_txt else ''}</td></tr>"
+        "</table>"
+        "<h3>Visits</h3><table><tr><th>Visit</th><th>Date</th><th>Inspector</th>"
+        "<th>Data-collection level</th><th>Instruments</th></tr>"
+        f"{vrows or '<tr><td colspan=5>no visits</td></tr>'}</table>"
+        f"{cautions_box()}"
+        '<nav><h3>Contents</h3><ol><li><a href="#client">Client summary</a></li>'
+        '<li><a href="#summary">Every post</a></li><li><a href="#actions">Open actions</a></li>'
+        '<li><a href="#conflicts">Open sync conflicts</a></li>'
+        '<li><a href="#record">Technical record</a></li><li><a href="#engine">Engine and reference data</a></li>'
+        "</ol></nav></section>"
+    )
+
+
+def _where(p: PostEntry) -> str:
+    loc = p.view.location
+    return f"{e(p.tag)}{' (' + e(loc) + ')' if loc else ''}"
+
+
+def _client(d: ReportData) -> str:
+    """Plain words for the client: safe, restricted, to do by when; no engineering terms."""
+    out = ['<section id="client" class="page client"><h2>Client summary</h2>']
+    if not d.posts:
+        out.append("<p>No posts were recorded in the scope of this report, so there is nothing "
+                   "to decide from it. Ask the inspector whether the survey is complete.</p>")
+    groups: dict[int | None, list[PostEntry]] = {}
+    for p in d.by_urgency():
+        groups.setdefault(p.action, []).append(p)
+    if groups.get(3):
+        out.append('<div class="alert"><h3>\u2716 Unsafe now: keep everyone out from under these '
+                   "and call the engineer</h3><ul>")
+        out += [f"<li>{_where(p)}: clear the area under the load now and put in emergency "
+                "support before anyone works there again.</li>" for p in groups[3]]
+        out.append("</ul></div>")
+    if groups.get(2):
+        out.append("<h3>\u25b2 Restricted: do not add load; repair or brace by the date shown</h3><ul>")
+        out += [f"<li>{_where(p)}: no storage or extra load near this post; it must be repaired, "
+                f"braced or supported by <b>{e(due_text(p))}</b>.</li>" for p in groups[2]]
+        out.append("</ul>")
+    if groups.get(1):
+        out.append("<h3>\u25cb Safe to use, to be checked again</h3><ul>")
+        out += [f"<li>{_where(p)}: safe to use as it is now; to be looked at again by "
+                f"{e(due_text(p))}, and at once after any change, impact or movement.</li>"
+                for p in groups[1]]
+        out.append("</ul>")
+    if groups.get(0):
+        out.append("<h3>\u2713 Safe to use as found</h3><p>"
+                   + ", ".join(_where(p) for p in groups[0]) + ".</p>")
+    if groups.get(None):
+        out.append("<h3>? Not assessed</h3><p>These posts could not be assessed from what was "
+                   "recorded; treat them as unsafe until the inspector completes them: "
+                   + ", ".join(_where(p) for p in groups[None]) + ".</p>")
+    dated = [p for p in d.by_urgency() if p.action in (2, 3)]
+    if dated:
+        out.append("<h3>What must happen by when</h3><table><tr><th>By</th><th>Post</th>"
+                   "<th>What</th></tr>")
+        out += [f"<tr><td>{e(due_text(p))}</td><td>{_where(p)}</td>"
+                f"<td>{e(ACTION_TEXT[p.action])}</td></tr>" for p in dated]
+        out.append("</table>")
+    levels = sorted({v.level for v in d.visits})
+    out.append(
+        "<h3>Limits of this survey</h3><p>The posts were assessed from what could be seen and "
+        f"measured on the day (data-collection level: {e(', '.join(levels) or 'not recorded')}). "
+        "Hidden decay, hidden joints or loads nobody knew about can make a post weaker than shown. "
+        "Where the wood species or grade was unknown, the lowest likely values were used.</p>"
+        "<h3>Who to call</h3><p>The engineer responsible for the works. If you see or hear "
+        "anything on the list below, first get everyone out from under the load, then call.</p>"
+    )
+    out.append(cautions_box(compact=True))
+    out.append("</section>")
+    return "".join(out)
+
+
+def _summary_table(d: ReportData) -> str:
+    u = d.units
+    rows = []
+    for p in d.posts:
+        mid = e(p.view.member_id)
+        if p.j is None:
+            rows.append(f"<tr><td><a href='#m-{mid}'>{e(p.tag)}</a></td><td>{e(p.view.location)}</td>"
+                        f"<td>{e(p.visit.name)}</td><td>{badge(None)}</td>"
+                        "<td colspan=4>not rated: the record has field errors</td>"
+                        "<td>assess first</td></tr>")
+            continue
+        r = d.rating
+        rows.append(
+            f"<tr><td><a href='#m-{mid}'>{e(p.tag)}</a></td><td>{e(p.view.location)}</td>"
+            f"<td>{e(p.visit.name)}</td><td>{badge(p.action)}</td>"
+            f'<td class="num" data-k="capacity" data-post="{mid}">{e(format_force(r.capacity_n[p.j], u))}</td>'
+            f'<td class="num">{e(format_force(r.demand_n[p.j], u))}</td>'
+            f'<td class="num" data-k="ratio" data-post="{mid}">{e(ratio_text(float(r.ratio[p.j])))}</td>'
+            f"<td>{e(r.governing_name(p.j))}</td><td>{e(due_text(p))}</td></tr>"
+        )
+    body = "".join(rows) or "<tr><td colspan=9>No posts are recorded in this scope.</td></tr>"
+    return (
+        '<section id="summary" class="page"><h2>Every post</h2>'
+        "<p class='small muted'>Re-rated for this report in one engine run; due date = visit date "
+        "+ the action's interval (judgement defaults: monitor 90 days, repair or brace 14 days, "
+        "make safe: now).</p>"
+        "<table><tr><th>Tag</th><th>Location</th><th>Visit</th><th>Action</th>"
+        '<th class="num">Capacity</th><th class="num">Demand</th><th class="num">Ratio</th>'
+        f"<th>Governs</th><th>Due</th></tr>{body}</table>{cautions_box(compact=True)}</section>"
+    )
+
+
+def _open_actions(d: ReportData) -> str:
+    open_ = [p for p in d.by_urgency() if p.action is None or p.action >= 1]
+    out = ['<section id="actions"><h2>Open actions</h2>']
+    first = [p for p in open_ if p.action == 3]
+    if first:
+        out.append('<div class="alert"><h3>\u2716 Make safe first</h3><ol>')
+        out += [f"<li>{_where(p)}: ratio {e(ratio_text(p.summary.get('demand_capacity_ratio')))}; "
+                f"{e(ACTION_TEXT[3])}</li>" for p in first]
+        out.append("</ol></div>")
+    if not open_:
+        out.append("<p>No open actions: every post in this report is adequate as found.</p>")
+    else:
+        out.append("<table><tr><th>Post</th><th>Action</th><th class='num'>Ratio</th><th>Due</th>"
+                   "<th>What to do</th></tr>")
+        for p in open_:
+            ratio = p.summary.get("demand_capacity_ratio") if p.summary else None
+            what = ACTION_TEXT[p.action] if p.action is not None else (
+                "Complete the record: " + "; ".join(p.errors))
+            out.append(f"<tr><td>{_where(p)}</td><td>{badge(p.action)}</td>"
+                       f"<td class='num'>{e(ratio_text(ratio))}</td><td>{e(due_text(p))}</td>"
+                       f"<td>{e(what)}</td></tr>")
+        out.append("</table>")
+    out.append("</section>")
+    return "".join(out)
+
+
+def _conflicts(d: ReportData) -> str:
+    out = ['<section id="conflicts"><h2>Open sync conflicts</h2>']
+    if not d.conflicts:
+        out.append("<p>None: every post has one current revision.</p>")
+    for tag, heads in d.conflicts:
+        out.append(f"<h3>\u26a0 {e(tag)}: {len(heads)} revisions made without seeing each other</h3>"
+                   "<p>Both are kept; the office must choose one (nothing is resolved silently). "
+                   "This report shows the newest.</p><table><tr><th>Revision</th><th>By</th>"
+                   "<th>When</th><th>Device</th></tr>")
+        out += [f"<tr><td class='hash'>{e(h.id)}</td><td>{e(h.author)}</td><td>{e(h.created_at)}</td>"
+                f"<td class='hash'>{e(h.device_id)}</td></tr>" for h in heads]
+        out.append("</table>")
+    out.append("</section>")
+    return "".join(out)
+
+
+def _record_table(record: dict[str, str]) -> str:
+    from fieldcheck.records import COLUMNS
+
+    order = [c for c in COLUMNS if c in record] + [c for c in record if c not in COLUMNS]
+    rows = "".join(
+        f"<tr><th>{e(c)}</th><td>{e(record[c])}</td>"
+        f"<td class='small muted'>{e(COLUMNS[c].help) if c in COLUMNS else 'not an engine input'}</td></tr>"
+        for c in order
+    )
+    return f'<table class="kv">{rows}</table>'
+
+
+def _assumptions(d: ReportData, p: PostEntry) -> str:
+    r, j, b, u, s = d.rating, p.j, d.rating.batch, d.units, p.summary
+    v = r.values
+    method = s.get("method", "")
+    if method == "ec5":
+        dur = f"k_mod = {float(b.kmod[j]):g} (EN 1995-1-1 Table 3.1)"
+    elif method == "lrfd":
+        dur = f"time effect factor \u03bb = {float(b.lam[j]):g} (NDS 2018 Appendix N)"
+    else:
+        dur = f"C_D = {float(b.cd[j]):g} (NDS 2018 Table 2.3.2)"
+    rec = p.view.record
+    rows = [
+        ("Method", method.upper()),
+        ("Material", p.meta.get("_material", rec.get("species", ""))),
+        ("Knowledge factor \u03ba", f"{float(b.knowledge[j]):g} (ASCE 41 data collection; visit level "
+         f"{p.visit.level})"),
+        ("Load duration", f"{rec.get('duration', 'not given: default')}; {dur}"),
+        ("Moisture", rec.get("moisture") or "not measured: dry service assumed"),
+        ("Construction-stage member", "yes" if bool(b.construction[j]) else "no"),
+    ]
+    for ax in (1, 2):
+        ke = v.get(f"ke{ax}")
+        lu = v.get(f"lu{ax}")
+        led = v.get(f"le_d{ax}")
+        if ke is None:
+            continue
+        kev = float(ke[j])
+        luv = float(lu[j]) if lu is not None else float(b.height_mm[j])
+        rows.append((f"Axis {ax}: Ke, lu, le = Ke lu, le/d",
+                     f"Ke = {kev:.3g}, lu = {format_length(luv, u)}, le = {format_length(kev * luv, u)}, "
+                     f"le/d = {float(led[j]):.2f}" if led is not None else ""))
+    lc = s.get("load_combination")
+    if isinstance(lc, dict) and lc.get("name"):
+        rows.append(("Load", f"{lc.get('name')}{'; ' + lc['clause'] if lc.get('clause') else ''}"))
+    body = "".join(f"<tr><th>{e(k)}</th><td>{e(val)}</td></tr>" for k, val in rows)
+    warn = "".join(f"<li>\u26a0 {e(w)}</li>" for w in s.get("warnings", []))
+    return f'<table class="kv">{body}</table>' + (f"<ul>{warn}</ul>" if warn else "")
+
+
+def _checks(d: ReportData, p: PostEntry) -> str:
+    r, j, u = d.rating, p.j, d.units
+    gov = r.governing_name(j)
+    rows = []
+    for name, c in r.checks.items():
+        cap = float(c.capacity_n[j])
+        if math.isnan(cap):
+            continue
+        ratio = float(c.ratio[j])
+        mark = " \u25c0 governs" if name == gov else ""
+        rows.append(f"<tr><td>{e(c.label)} <span class='muted'>({e(name)})</span>{mark}</td>"
+                    f"<td class='num'>{e(format_force(cap, u))}</td>"
+                    f"<td class='num'>{e(format_force(float(c.demand_n[j]), u))}</td>"
+                    f"<td class='num'>{e(ratio_text(ratio))}</td><td>{e(c.clause)}</td></tr>")
+    return ("<table><tr><th>Check</th><th class='num'>Capacity</th><th class='num'>Demand</th>"
+            f"<th class='num'>Ratio</th><th>Clause</th></tr>{''.join(rows)}</table>")
+
+
+def _remedies(d: ReportData, p: PostEntry) -> str:
+    rem = p.summary.get("remedies") if p.summary else None
+    if not rem:
+        return ""
+    items = []
+    for x in rem:
+        if isinstance(x, dict):
+            text = x.get("description") or x.get("text") or "; ".join(f"{k}: {v}" for k, v in x.items())
+            after = []
+            if x.get("capacity_kN") is not None:
+                after.append(f"capacity {format_force(1000.0 * float(x['capacity_kN']), d.units)}")
+            if x.get("ratio") is not None:
+                after.append(f"ratio {ratio_text(float(x['ratio']))}")
+            if x.get("action"):
+                after.append(f"action {x['action']}")
+            if after:
+                text = f"{text} Then: {', '.join(after)}."
+        else:
+            text = str(x)
+        items.append(f"<li>{e(text)}</li>")
+    return (f"<h3>Remedies</h3><p class='small muted'>Each option re-rated by the same engine; "
+            f"an engineer chooses and details the work.</p><ol>{''.join(items)}</ol>")
+
+
+def _notes_photos(p: PostEntry) -> str:
+    out = []
+    note = p.view.record.get("notes")
+    revs = "".join(f"<li>{e(rv.kind)} by {e(rv.author)}, {e(rv.created_at)}: {e(rv.text)}</li>"
+                   for rv in p.reviews)
+    out.append(f"<h3>Notes</h3><p>{e(note) if note else 'none recorded'}</p>")
+    if revs:
+        out.append(f"<h3>Office reviews</h3><ul>{revs}</ul>")
+    if p.attachments:
+        rows = "".join(f"<tr><td>{e(a.path)}</td><td>{e(a.caption)}</td><td class='hash'>{e(a.sha256)}</td></tr>"
+                       for a in p.attachments)
+        out.append("<h3>Photos</h3><table><tr><th>File</th><th>Caption</th><th>sha256</th></tr>"
+                   f"{rows}</table>")
+    else:
+        out.append("<h3>Photos</h3><p>none attached</p>")
+    return "".join(out)
+
+
+def _stored(p: PostEntry) -> str:
+    s = p.stored
+    if s is None:
+        head = "<p>No stored rating for this revision.</p>"
+    else:
+        head = (f"<p>Stored rating: engine {e(s.engine_version)}, {e(s.created_at)}; "
+                f"{badge(s.action)} capacity {e(format_force(s.capacity_n or float('nan'), 'metric'))}, "
+                f"ratio {e(ratio_text(s.ratio))}. Data editions: "
+                + "; ".join(f"{e(k)} {e(v)}" for k, v in sorted(s.data_editions.items())) + ".</p>")
+    if p.differs:
+        items = "".join(f"<li>{e(x)}</li>" for x in p.differs)
+        return head + f'<div class="differs"><b>\u26a0 The stored rating differs from this re-rating:</b><ul>{items}</ul></div>'
+    return head + "<p>\u2713 The stored rating equals this re-rating.</p>"
+
+
+def _post(d: ReportData, p: PostEntry) -> str:
+    mid = e(p.view.member_id)
+    head = (f'<section class="post" id="m-{mid}" data-post="{mid}"><h2>Post {e(p.tag)} '
+            f"{badge(p.action)}</h2><p class='muted'>{e(p.view.location)} &middot; visit "
+            f"{e(p.visit.name)} ({e(date_text(visit_date(p.visit)))}) &middot; revised "
+            f"{e(p.view.revised_at)} by {e(p.view.revised_by)} &middot; member {mid}</p>")
+    if p.j is None:
+        errs = "".join(f"<li>{e(x)}</li>" for x in p.errors)
+        return (head + f"<div class='alert'><b>Not rated:</b> the record as typed has errors."
+                f"<ul>{errs}</ul></div><h3>Inputs as measured</h3>{_record_table(p.view.record)}"
+                f"{_notes_photos(p)}{_stored(p)}</section>")
+    r, j, u, s = d.rating, p.j, d.units, p.summary
+    dem = float(r.demand_n[j])
+    result = (
+        '<table class="kv">'
+        f'<tr><th>Capacity (governing)</th><td data-k="capacity" data-post="{mid}">'
+        f"{e(format_force(r.capacity_n[j], u))}</td></tr>"
+        f"<tr><th>Demand</th><td>{e(format_force(dem, u)) if math.isfinite(dem) else 'no load given'}</td></tr>"
+        f'<tr><th>Demand / capacity</th><td data-k="ratio" data-post="{mid}">'
+        f"{e(ratio_text(float(r.ratio[j])))}</td></tr>"
+        f"<tr><th>Governing check</th><td>{e(r.governing_name(j))}</td></tr>"
+        f"<tr><th>Action</th><td>{badge(p.action)} {e(ACTION_TEXT[p.action])}</td></tr>"
+        f"<tr><th>Due</th><td>{e(due_text(p))}</td></tr></table>"
+    )
+    plot = ""
+    if p.curve_h is not None:
+        plot = capacity_plot(p.curve_h, p.curve_cap, float(r.batch.height_mm[j]),
+                             float(r.capacity_n[j]), dem, u, p.tag)
+        if bool(r.batch.braced1[j] or r.batch.braced2[j]) or math.isfinite(float(r.batch.lu1_mm[j])) \
+                or math.isfinite(float(r.batch.lu2_mm[j])):
+            plot += "<p class='small muted'>Curve: the same post unbraced over its full height.</p>"
+    steps = "".join(f"<tr><td>{k}</td><td>{e(st.label)}</td><td>{e(st.value)}</td>"
+                    f"<td class='small'>{e(st.clause)}</td></tr>"
+                    for k, st in enumerate(p.working, 1))
+    return (
+        head + result + cautions_box(compact=True)
+        + f"<h3>Inputs as measured</h3>{_record_table(p.view.record)}"
+        + f"<h3>Assumptions</h3>{_assumptions(d, p)}"
+        + f"<h3>Checks</h3>{_checks(d, p)}"
+        + f"<h3>Capacity against height</h3>{plot}"
+        + _remedies(d, p)
+        + f"<h3>Working</h3><table class='steps'><tr><th>#</th><th>Step</th><th>Value</th>"
+          f"<th>Clause</th></tr>{steps}</table>"
+        + _notes_photos(p)
+        + f"<h3>Stored rating</h3>{_stored(p)}</section>"
+    )
+
+
+def _engine(d: ReportData) -> str:
+    rows = "".join(f"<tr><td>{e(k)}</td><td>{e(v)}</td></tr>" for k, v in sorted(d.editions.items()))
+    return (
+        '<section id="engine" class="page"><h2>Engine and reference data</h2>'
+        f"<p>fieldcheck engine version {e(d.engine_version)}. Reference-data editions used for "
+        "every re-rating in this report:</p>"
+        f"<table><tr><th>Table</th><th>Edition</th></tr>{rows}</table>"
+        f"{cautions_box()}</section>"
+    )
+
+
+def render(d: ReportData) -> str:
+    title = "Survey report" + (f": {d.sites[0].name}" if len(d.sites) == 1 else "")
+    parts = [
+        "<!DOCTYPE html>", '<html lang="en"><head><meta charset="utf-8">',
+        f"<title>{e(title)}</title><style>{CSS}</style></head><body>",
+        _cover(d), _client(d), _summary_table(d), _open_actions(d), _conflicts(d),
+        '<section id="record" class="page"><h2>Technical record</h2>'
+        "<p>One section per post: the inputs as typed, the assumptions, every check, the working, "
+        "notes and photos, and the stored rating compared with this re-rating.</p>",
+    ]
+    if not d.posts:
+        parts.append("<p>No posts are recorded in this scope (an empty visit or site).</p>")
+    parts.append("</section>")
+    parts += [_post(d, p) for p in d.posts]
+    parts += [_engine(d), "</body></html>\n"]
+    return "\n".join(parts)
+
+
+def render_report(log, site_id: str | None = None, visit_id: str | None = None,
+                  units: str = "us") -> str:
+    """The whole report as one HTML string (see the module docstring)."""
+    if units not in ("us", "metric"):
+        raise ValueError(f"units: '{units}' is not known; write us or metric, e.g. --units metric")
+    return render(gather(log, site_id, visit_id, units))
+
+
+def write_report(log, path, site_id: str | None = None, visit_id: str | None = None,
+                 units: str = "us") -> Path:
+    """Write the report to ``path`` atomically (a temporary file beside it, then a rename)."""
+    path = Path(path).expanduser()
+    text = render_report(log, site_id, visit_id, units)
+    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".part", dir=path.parent or ".")
+    try:
+        with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as fh:
+            fh.write(text)
+            fh.flush()
+            os.fsync(fh.fileno())
+        os.replace(tmp, path)
+    except BaseException:
+        Path(tmp).unlink(missing_ok=True)
+        raise
+    return path
+
+
+__all__ = ["ACTIONS", "render_report", "write_report"]
