@@ -31,6 +31,8 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
     out = p.add_argument_group("output")
     out.add_argument("--json", action="store_true", help="print one JSON object")
     out.add_argument("--working", action="store_true", help="show the working step by step")
+    out.add_argument("--units", dest="units_here", choices=("us", "metric"), default=None,
+                     help="unit system for the text output (input is accepted in either)")
     out.add_argument("--batch", metavar="IN.csv", help="rate every row of a CSV file")
     out.add_argument("--out", metavar="OUT.csv", help="with --batch: where to write the results")
 
@@ -61,7 +63,7 @@ def run(args: argparse.Namespace) -> int:
             summary["working"] = [s.__dict__ for s in rating.working(0)]
         print(json.dumps(summary, indent=2, ensure_ascii=False))
         return 0
-    print(_text(summary, args.units or "us"))
+    print(_text(summary, args.units_here or args.units or "us"))
     if args.working:
         print("\nWorking:")
         for s in rating.working(0):
