@@ -27,9 +27,15 @@ def run(args: argparse.Namespace) -> int:
     from fieldcheck.cli import UsageError
 
     if not args.csv:
-        raise UsageError("import: give the CSV file to import, e.g. fieldcheck import --db survey.db posts.csv --site 'Alder Row' --visit 'Basement'")
+        raise UsageError(
+            "import: give the CSV file to import, e.g. fieldcheck import --db survey.db posts.csv "
+            "--site 'Alder Row' --visit 'Basement'"
+        )
     if not args.site or not args.visit:
-        raise UsageError("import: give --site NAME and --visit NAME for the imported posts, e.g. --site '14 Alder Row' --visit 'Basement survey'")
+        raise UsageError(
+            "import: give --site NAME and --visit NAME for the imported posts, e.g. "
+            "--site '14 Alder Row' --visit 'Basement survey'"
+        )
     try:
         with open(args.csv, newline="", encoding="utf-8-sig") as fh:
             rows = list(csv.DictReader(ln for ln in fh if not ln.startswith("#")))
