@@ -1,0 +1,121 @@
+"""Remedies: every option offered passes when re-rated, by the batch and by the changed record."""
+
+import numpy as np
+import pytest
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
+
+import fieldcheck.engine  # noqa: F401  (hooks)
+from fieldcheck.engine.rating import rate
+from fieldcheck.engine.remedies import KINDS, remedies
+from fieldcheck.records import parse_records
+
+LBF = 4.4482216152605
+
+records = st.fixed_dictionaries(
+    {
+        "size": st.sampled_from(["4x4", "4x6", "6x6", "6x8", "2x6"]),
+        "height": st.integers(4, 16).map(lambda f: f"{f}ft"),
+        "species": st.sampled_from(["douglas-fir-larch", "hem-fir", "spruce-pine-fir", "unknown"]),
+        "grade": st.sampled_from(["no2", "no1", "unknown"]),
+        "load": st.integers(1, 60).map(lambda k: f"{k * 1000}lbf"),
+    },
+    optional={
+        "sill_species": st.sampled_from(["douglas-fir-larch", "spruce-pine-fir"]),
+        "pad": st.sampled_from(["1ft x 1ft", "2ft x 2ft", "3 ft2"]),
+        "pad_thickness": st.sampled_from(["1.5in", "6in"]),
+        "soil": st.sampled_from(["sand", "clay", "sandy-gravel", "unknown"]),
+        "brace_weak": st.just("3ft"),
+        "moisture": st.sampled_from(["12%", "25%"]),
+        "top": st.sampled_from(["pinned", "fixed"]),
+    },
+)
+
+
+@settings(max_examples=60, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(records)
+def test_every_remedy_offered_passes_when_re_rated(rec):
+    # the brief of remedies.py: never offer an option that would itself fail (ratio <= 1, action < 2)
+    parsed = parse_records([rec])
+    if parsed.errors:
+        return
+    b = parsed.batch
+    r = rate(b)
+    rem = remedies(b, r)
+    for x in rem.for_post(0):
+        # 1. the engine variant, re-rated on its own
+        again = rate(b.replace(**x.changes))
+        assert again.ratio[0] <= 1.0 and again.action[0] < 2, (x.kind, x.changes)
+        assert again.capacity_n[0] == pytest.approx(x.capacity_n, rel=1e-9)
+        # 2. the record as the interface would save it
+        new = {**rec, **x.record_changes}
+        new = {k: v for k, v in new.items() if v != ""}
+        p2 = parse_records([new])
+        assert not p2.errors, (x.kind, p2.errors)
+        r2 = rate(p2.batch)
+        assert r2.ratio[0] <= 1.0 and r2.action[0] < 2, (x.kind, x.record_changes, r2.ratio[0])
+    failing = r.ratio[0] > 1 or r.action[0] >= 2
+    assert failing or not rem.for_post(0)
+
+
+def _rec(**kw):
+    base = dict(size="4x4", height="10ft", species="douglas-fir-larch", grade="no2")
+    return {**base, **kw}
+
+
+def test_ranked_by_cost_then_capacity():
+    # column-design.md worked example A at 10 ft: 4,665 lb; 6,000 lb fails (ratio 1.286)
+    p = parse_records([_rec(load="6000lbf")])
+    rem = remedies(p.batch)
+    kinds = [x.kind for x in rem.for_post(0)]
+    assert kinds == sorted(kinds, key=KINDS.index)  # judgement: brace < plate < pad < second post < replace
+    assert "brace-both" in kinds and "brace-weak" not in kinds  # a square post needs both axes braced
+    assert kinds[-1] == "replace"
+    rep = rem.for_post(0)[-1]
+    assert rep.record_changes["size"] in ("4x6", "6x6") and rep.resets_condition
+
+
+def test_weak_axis_brace_on_a_4x6():
+    # NDS 2018 §3.7.1: a 4x6 buckles across the 3.5 in side; a mid-height brace there halves lu2
+    p = parse_records([_rec(size="4x6", species="hem-fir", load="7000lbf")])
+    rem = remedies(p.batch).for_post(0)
+    assert rem[0].kind == "brace-weak" and rem[0].record_changes == {"brace_weak": "1524 mm"}
+    assert all(x.kind != "brace-both" for x in rem)  # the weak brace alone does it
+
+
+def test_pad_remedy_for_soil():
+    # IBC 2012 Table 1806.2: 5,000 lb on clay (1,500 psf) needs 3.33 ft^2; a 1 ft x 1 ft pad fails
+    p = parse_records([_rec(height="4ft", load="5000lbf", pad="1ft x 1ft", pad_thickness="6in", soil="clay")])
+    r = rate(p.batch)
+    assert r.governing_name(0) == "soil_bearing"
+    pads = [x for x in remedies(p.batch, r).for_post(0) if x.kind == "pad"]
+    assert len(pads) == 1
+    side = float(pads[0].record_changes["pad"].split(" x ")[0])
+    assert (side / 304.8) ** 2 >= 5000 / 1500 - 1e-9
+
+
+def test_plate_lifts_end_bearing_limit():
+    # NDS 2018 §3.10.1.3 / §3.10.2: short 4x4 limited by a spruce-pine-fir sill (425 psi x 12.25 in^2)
+    p = parse_records([_rec(height="3ft", load="7000lbf", sill_species="spruce-pine-fir")])
+    r = rate(p.batch)
+    assert r.governing_name(0) == "sill_bearing"
+    kinds = [x.kind for x in remedies(p.batch, r).for_post(0)]
+    assert kinds[0] == "plate"
+
+
+def test_nothing_offered_when_nothing_passes_or_no_load():
+    p = parse_records([_rec(load="6000lbf", pad="2ft x 2ft", soil="unprepared")])
+    assert remedies(p.batch).for_post(0) == []  # unprepared ground: repair-or-brace whatever we change
+    s = rate(p.batch).summary(0)
+    assert s["remedies"] == [] and "remedies_note" in s
+    p = parse_records([_rec(height="20ft")])  # le/d over 50 with no load: nothing can be shown to pass
+    assert remedies(p.batch).for_post(0) == []
+
+
+def test_vectorised_many_posts_one_call():
+    rows = [_rec(load=f"{k}lbf") for k in (3000, 6000, 9000, 12000)]
+    p = parse_records(rows)
+    rem = remedies(p.batch)
+    assert list(rem.failing) == [1, 2, 3]
+    assert set(np.unique(rem.post)) <= {1, 2, 3}
+    assert np.all(rem.ratio <= 1.0) and np.all(rem.action < 2)
