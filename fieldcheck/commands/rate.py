@@ -92,6 +92,19 @@ def _text(s: dict, system: str) -> str:
         lines.append(f"  - {c['label']}: {format_force(c['capacity_kN'] * 1000.0, system)}{r}  [{c['clause']}]")
     for w in s["warnings"]:
         lines.append(f"  ! {w}")
+    lc = s.get("load_combination")
+    if lc and lc.get("key"):
+        lines.append(f"Load          {lc['name']} governs, {lc['factor_name']} {lc['factor']}  [{lc['clause']}]")
+    if s.get("bracing") and s["bracing"]["total_kN"] is not None:
+        br = s["bracing"]
+        lines.append(f"Bracing must carry {format_force(br['total_kN'] * 1000.0, system)}  [{br['clause']}]")
+    if s.get("remedies"):
+        lines.append("What would make it pass (cheapest first):")
+        for k, rem in enumerate(s["remedies"], 1):
+            cap = format_force(rem["capacity_kN"] * 1000.0, system)
+            lines.append(f"  {k}. {rem['description']} Capacity {cap}, ratio {rem['ratio']:.3f}.")
+    elif s.get("remedies_note"):
+        lines.append(f"Remedies      {s['remedies_note']}")
     lines.append("")
     lines.extend(f"  * {c}" for c in s["cautions"])
     return "\n".join(lines)
