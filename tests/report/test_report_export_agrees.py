@@ -1,0 +1,34 @@
+"""`fieldcheck export --format csv` carries the same ratings as the report (demo survey)."""
+
+from __future__ import annotations
+
+import csv
+import math
+
+from fieldcheck.cli import main
+from fieldcheck.engine.rating import ACTIONS, rate
+from fieldcheck.records import parse_records
+from fieldcheck.report.html import render_report
+from fieldcheck.units import format_force
+
+
+def test_export_csv_columns_equal_the_report(demo_log, tmp_path, parse_html):
+    db = str(demo_log.path)
+    out_csv = tmp_path / "export.csv"
+    assert main(["export", "--db", db, "--format", "csv", "--out", str(out_csv)]) == 0
+    with out_csv.open(newline="", encoding="utf-8") as fh:
+        rows = list(csv.DictReader(fh))
+    posts = demo_log.posts()
+    assert [r["member_id"] for r in rows] == [p.member_id for p in posts]
+    r = rate(parse_records([p.record for p in posts]).batch)
+    cells = parse_html(render_report(demo_log)).cells
+    for j, row in enumerate(rows):
+        cap_n = float(row["capacity_kN"]) * 1000.0
+        assert math.isclose(cap_n, float(r.capacity_n[j]), rel_tol=1e-9), row["tag"]
+        assert math.isclose(float(row["ratio"]), float(r.ratio[j]), rel_tol=1e-9), row["tag"]
+        assert math.isclose(float(row["demand_kN"]) * 1000.0, float(r.demand_n[j]), rel_tol=1e-9)
+        assert row["action"] == ACTIONS[int(r.action[j])]
+        assert row["governing"] == r.governing_name(j)
+        # and the report prints the exported numbers
+        assert cells[(row["member_id"], "capacity")][0] == format_force(cap_n, "us")
+        assert cells[(row["member_id"], "ratio")][0] == f"{float(row['ratio']):.3f}"

@@ -1,0 +1,137 @@
+"""The report file: parses, balanced, self-contained, every post and caution in it, escaped."""
+
+from __future__ import annotations
+
+import re
+
+import pytest
+
+from fieldcheck.engine.cautions import CAUTIONS
+from fieldcheck.report.html import render_report, write_report
+
+
+def _text(parsed) -> str:
+    return re.sub(r"\s+", " ", "".join(parsed.text))
+
+
+def test_demo_report_parses_with_balanced_tags(demo_log, parse_html):
+    out = render_report(demo_log)
+    p = parse_html(out)
+    assert p.problems == []  # every end tag closes the element it should
+    assert p.stack == []  # and nothing is left open
+    assert out.startswith("<!DOCTYPE html>")
+
+
+def test_every_post_and_every_caution_appears(demo_log, parse_html):
+    out = render_report(demo_log)
+    text = _text(parse_html(out))
+    posts = demo_log.posts()
+    assert len(posts) == 9  # the demo: 4 basement posts, 5 shores (S6 withdrawn)
+    for p in posts:
+        assert f"Post {p.tag}" in text
+        assert f'id="m-{p.member_id}"' in out
+    assert "Post S6" not in text  # withdrawn: kept in history, not in the report
+    for c in CAUTIONS:
+        # on the cover, near the summary table and beside every post's result
+        assert text.count(c) >= 2 + len(posts)
+
+
+def test_no_external_references(demo_log, parse_html):
+    out = render_report(demo_log)
+    for bad in ("http:", "https:", "//", "<link", "<script", "<img", "<iframe", "@import", "url("):
+        assert bad not in out.lower(), bad
+    p = parse_html(out)
+    for tag, attrs in p.tags:
+        assert "src" not in attrs, tag
+        if "href" in attrs:
+            assert attrs["href"].startswith("#"), attrs["href"]  # in-page anchors only
+    ids = {a["id"] for _, a in p.tags if "id" in a}
+    for _, a in p.tags:
+        if "href" in a:
+            assert a["href"][1:] in ids  # every anchor lands somewhere
+
+
+def test_prints_a_page_per_post_and_never_colour_alone(demo_log):
+    out = render_report(demo_log)
+    assert "@media print" in out and "break-before: page" in out
+    badges = re.findall(r'<span class="badge (a[0-3n])">([^<]*)</span>', out)
+    assert badges
+    words = {"a0": "NO ACTION", "a1": "MONITOR", "a2": "REPAIR OR BRACE", "a3": "MAKE SAFE NOW",
+             "an": "NOT RATED"}
+    for cls, label in badges:
+        assert words[cls] in label  # a word beside every colour
+        assert label.split()[0] != words[cls].split()[0]  # and a symbol before it
+
+
+def test_one_inline_svg_plot_per_rated_post_with_axis_labels(demo_log):
+    out = render_report(demo_log)
+    assert out.count("<svg") == 9
+    assert out.count("height (ft)") == 9 and out.count("capacity (lbf)") == 9
+    assert "this post (S4)" in out
+    metric = render_report(demo_log, units="metric")
+    assert metric.count("height (m)") == 9 and metric.count("capacity (kN)") == 9
+
+
+def test_user_text_is_escaped(empty_log, parse_html):
+    site = empty_log.add_site("Site <b>&</b>")
+    v = empty_log.add_visit(site.id, "A & B <i>", name="visit \"one\" <x>")
+    empty_log.save_post(v.id, {"tag": "<script>alert(1)</script>", "size": "4x4", "height": "8ft",
+                               "species": "douglas-fir-larch", "grade": "no2", "load": "2000lbf",
+                               "notes": "wedge <loose> & 'split'"})
+    out = render_report(empty_log)
+    assert "<script" not in out and "<loose>" not in out and "<x>" not in out and "<b>&" not in out
+    assert "&lt;script&gt;alert(1)&lt;/script&gt;" in out
+    p = parse_html(out)
+    assert p.problems == [] and p.stack == []
+    assert "wedge <loose> & 'split'" in "".join(p.text)
+
+
+def test_an_empty_visit_says_so(empty_log, parse_html):
+    site = empty_log.add_site("Quiet site")
+    v = empty_log.add_visit(site.id, "tester", name="nothing found")
+    out = render_report(empty_log, visit_id=v.id)
+    p = parse_html(out)
+    assert p.problems == [] and p.stack == []
+    text = _text(p)
+    assert "No posts are recorded in this scope" in text
+    assert "nothing to decide" in text
+    assert "Quiet site" in text and "nothing found" in text
+
+
+def test_an_empty_log_renders(empty_log):
+    out = render_report(empty_log)
+    assert "No posts are recorded" in out
+
+
+def test_unknown_units_are_refused_in_one_sentence(demo_log):
+    with pytest.raises(ValueError, match="units: 'imperial' is not known; write us or metric"):
+        render_report(demo_log, units="imperial")
+
+
+def test_write_report_is_atomic_and_leaves_no_temporary_file(demo_log, tmp_path):
+    target = tmp_path / "out" / "report.html"
+    target.parent.mkdir()
+    target.write_text("old")
+    path = write_report(demo_log, target, units="metric")
+    assert path == target
+    assert target.read_text(encoding="utf-8").startswith("<!DOCTYPE html>")
+    assert [f.name for f in target.parent.iterdir()] == ["report.html"]
+
+
+def test_visit_and_site_scopes(demo_log):
+    site = demo_log.sites()[0]
+    basement = demo_log.find_visit(site.id, "Basement survey")
+    out = render_report(demo_log, visit_id=basement.id)
+    assert out.count('class="post"') == 4 and "Post B1" in out and "Post S1" not in out
+    out = render_report(demo_log, site_id=site.id)
+    assert out.count('class="post"') == 9
+
+
+def test_client_summary_is_separate_and_plain(demo_log, parse_html):
+    out = render_report(demo_log)
+    client = out[out.index('id="client"'):out.index('id="summary"')]
+    assert "Unsafe now" in client and "S4" in client  # the overloaded shore (demo)
+    assert "Safe to use as found" in client
+    assert "What must happen by when" in client
+    for jargon in ("le/d", "Cp", "NDS", "Fc"):
+        assert jargon not in client  # plain words for the client

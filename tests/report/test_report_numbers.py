@@ -1,0 +1,138 @@
+"""The report's numbers are the engine's: one re-rating of the current records, formatted."""
+
+from __future__ import annotations
+
+import datetime as dt
+import re
+from html import escape
+
+import numpy as np
+import pytest
+
+from fieldcheck.engine.curves import capacity_vs_height
+from fieldcheck.engine.rating import ACTIONS, DUE_DAYS, rate
+from fieldcheck.records import parse_records
+from fieldcheck.report import model
+from fieldcheck.report.html import render_report, ratio_text
+from fieldcheck.units import format_force
+
+
+def _engine(log):
+    posts = log.posts()
+    parsed = parse_records([p.record for p in posts])
+    assert parsed.errors == []
+    return posts, rate(parsed.batch)
+
+
+@pytest.mark.parametrize("units", ["us", "metric"])
+def test_capacity_and_ratio_cells_equal_the_engine(demo_log, parse_html, units):
+    posts, r = _engine(demo_log)
+    cells = parse_html(render_report(demo_log, units=units)).cells
+    for j, p in enumerate(posts):
+        cap = format_force(r.capacity_n[j], units)
+        # the summary table and the post's own section  # engine: rating.capacity_n, formatted
+        assert cells[(p.member_id, "capacity")] == [cap, cap], p.tag
+        rt = f"{r.ratio[j]:.3f}"
+        assert cells[(p.member_id, "ratio")] == [rt, rt], p.tag
+
+
+def test_every_check_row_is_the_engines(demo_log):
+    posts, r = _engine(demo_log)
+    out = render_report(demo_log)
+    j = [p.tag for p in posts].index("S4")
+    sec = out[out.index(f'id="m-{posts[j].member_id}"'):]
+    sec = sec[:sec.index("</section>")]
+    for name, c in r.checks.items():
+        cap = float(c.capacity_n[j])
+        if np.isnan(cap):
+            assert c.label not in sec
+            continue
+        row = re.search(re.escape(c.label) + r".*?</tr>", sec).group(0)
+        assert format_force(cap, "us") in row and ratio_text(float(c.ratio[j])) in row
+        assert escape(c.clause) in row
+
+
+def test_stored_rating_shown_and_compared(demo_log, monkeypatch):
+    out = render_report(demo_log)
+    assert "The stored rating equals this re-rating" in out
+    assert "Stored rating: engine 0.1.0" in out
+    # a report made by a later engine says the stored ratings came from another one
+    monkeypatch.setattr(model, "ENGINE_VERSION", "9.9.9")
+    later = render_report(demo_log)
+    assert "The stored rating differs from this re-rating" in later
+    assert "Stored by engine 0.1.0; this report uses 9.9.9." in later
+
+
+def test_changed_numbers_are_reported_as_a_difference(demo_log, monkeypatch):
+    real = model.rate
+
+    def stronger(batch):  # stands in for a changed engine: 10 % more capacity everywhere
+        r = real(batch)
+        r.capacity_n = r.capacity_n * 1.1
+        return r
+
+    monkeypatch.setattr(model, "rate", stronger)
+    out = render_report(demo_log)
+    assert out.count("The stored capacity differs from the re-rating.") == 9
+
+
+def test_unrated_record_is_shown_with_its_errors(empty_log, parse_html):
+    site = empty_log.add_site("Site")
+    v = empty_log.add_visit(site.id, "tester")
+    empty_log.save_post(v.id, {"tag": "P1", "size": "4x4", "height": "eight feet"},
+                        allow_errors=True)
+    out = render_report(empty_log)
+    p = parse_html(out)
+    assert p.problems == [] and p.stack == []
+    assert "NOT RATED" in out and "height" in out and "assess first" in out
+    assert "No stored rating" in out
+
+
+def test_open_actions_sorted_by_urgency_then_ratio(demo_log):
+    out = render_report(demo_log)
+    sec = out[out.index('id="actions"'):out.index('id="conflicts"')]
+    table = sec[sec.index("<table>"):]
+    order = re.findall(r"<tr><td>([A-Z]\d)", table)
+    posts, r = _engine(demo_log)
+    expect = sorted(
+        (j for j in range(r.n) if r.action[j] >= 1), key=lambda j: (-r.action[j], -r.ratio[j])
+    )
+    assert order == [posts[j].tag for j in expect]
+    assert order[0] == "S4"  # the demo's overloaded shore: make safe first
+    assert "Make safe first" in sec
+
+
+def test_due_date_is_visit_date_plus_due_days(demo_log):
+    posts, r = _engine(demo_log)
+    data = model.gather(demo_log)
+    for p in data.posts:
+        a = int(r.action[p.j])
+        visit_day = dt.datetime.fromisoformat(p.visit.started_at).date()
+        if DUE_DAYS[a] is None:
+            assert p.due is None
+        else:  # judgement defaults in engine.rating.DUE_DAYS
+            assert p.due == visit_day + dt.timedelta(days=DUE_DAYS[a])
+        assert p.summary["action"] == ACTIONS[a]
+
+
+def test_curves_agree_with_the_engine_curve_function(demo_log):
+    posts, r = _engine(demo_log)
+    b = r.batch
+    heights, caps = model.capacity_curves(b)
+    for j in range(b.n):
+        one = capacity_vs_height(b.take(np.array([j])), heights[j])[0]
+        np.testing.assert_allclose(caps[j], one, rtol=1e-12)
+    # at the post's own height (no braces in the demo) the curve is the post's capacity
+    _, at1 = model.capacity_curves(b, np.array([1.0]))
+    np.testing.assert_allclose(at1[:, 0], r.capacity_n, rtol=1e-12)
+
+
+def test_remedies_are_shown_when_the_engine_gives_them(demo_log):
+    data = model.gather(demo_log)
+    out = render_report(demo_log)
+    for p in data.posts:
+        for rem in (p.summary or {}).get("remedies") or []:
+            if isinstance(rem, dict) and rem.get("description"):
+                from html import escape
+
+                assert escape(rem["description"]) in out
