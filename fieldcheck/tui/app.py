@@ -1,0 +1,142 @@
+"""The fieldcheck interface: `fieldcheck` opens this.
+
+Start-up stays light: this module imports Textual and our screens only. The survey log (sqlite-
+utils, numpy) is opened on its own thread after the first frame (see logthread.py), and the engine
+is imported when the first post editor opens.
+
+Screens: SitesScreen (sites and visits with counts per action) -> VisitScreen (the posts of a
+visit) -> PostEditor (the form, the live rating, working, shape and plot, remedies, history).
+Global keys: F1 help, F7 conflicts, F8 units, F9 sync, F10 report, ctrl+p commands, ctrl+q quit.
+"""
+
+from __future__ import annotations
+
+import json
+from collections.abc import Iterable
+from functools import partial
+from pathlib import Path
+from typing import Any
+
+from textual.app import App, SystemCommand
+from textual.binding import Binding
+from textual.screen import Screen
+
+from fieldcheck.tui.logthread import LogThread
+from fieldcheck.tui.sites import SitesScreen
+
+UNIT_SYSTEMS = ("us", "metric")
+
+
+class FieldcheckApp(App[None]):
+    CSS_PATH = Path(__file__).parent / "app.tcss"
+    TITLE = "fieldcheck"
+    SUB_TITLE = "timber posts and shores: screening aid for a competent person"
+    BINDINGS = [
+        Binding("f1", "help", "Help", id="help"),
+        Binding("f7", "conflicts", "Conflicts", id="conflicts"),
+        Binding("f8", "units", "Units", id="units"),
+        Binding("f9", "sync", "Sync", id="sync"),
+        Binding("f10", "report", "Report", id="report"),
+    ]
+
+    def __init__(self, db: str | Path | None = None, units: str | None = None,
+                 *, seed_if_empty: bool = True) -> None:
+        super().__init__()
+        self.units = units if units in UNIT_SYSTEMS else "us"
+        self.store = LogThread(db, seed_if_empty=seed_if_empty)
+        self.drafts: dict[str, dict[str, Any]] = {}  # member id or "new:<visit id>" -> draft
+        self.office_path: str = ""
+        self.last_summary: str = ""  # the last sync or report summary (also notified)
+
+    # -- life cycle --------------------------------------------------------------------------
+    def on_mount(self) -> None:
+        self.push_screen(SitesScreen())
+
+    def on_unmount(self) -> None:
+        self.save_drafts()
+        self.store.close()
+
+    # -- drafts survive leaving a screen (memory) and quitting (a file beside the log) --------
+    def drafts_file(self) -> Path | None:
+        return None if self.store.path is None else self.store.path.with_suffix(".drafts.json")
+
+    def load_drafts(self) -> None:
+        f = self.drafts_file()
+        if f is not None and f.exists():
+            try:
+                self.drafts.update(json.loads(f.read_text(encoding="utf-8")))
+            except (OSError, ValueError):
+                self.notify(f"Could not read drafts from {f}.", severity="warning", markup=False)
+
+    def save_drafts(self) -> None:
+        f = self.drafts_file()
+        if f is None:
+            return
+        try:
+            if self.drafts:
+                f.write_text(json.dumps(self.drafts, indent=1), encoding="utf-8")
+            elif f.exists():
+                f.unlink()
+        except OSError:
+            pass
+
+    # -- global actions ----------------------------------------------------------------------
+    def action_help(self) -> None:
+        from fieldcheck.tui.dialogs import HelpScreen
+
+        self.push_screen(HelpScreen(self.screen))
+
+    def action_units(self) -> None:
+        self.units = "metric" if self.units == "us" else "us"
+        self.notify(f"Units: {self.units}")
+        refresh = getattr(self.screen, "units_changed", None)
+        if refresh is not None:
+            refresh()
+
+    def _visit_context(self) -> tuple[str | None, str | None]:
+        """(site id, visit id) of the screen in front, for sync and report scope."""
+        for screen in reversed(self.screen_stack):
+            visit_id = getattr(screen, "visit_id", None)
+            if visit_id:
+                return getattr(screen, "site_id", None), visit_id
+        return None, None
+
+    def action_sync(self) -> None:
+        from fieldcheck.tui.dialogs import SyncDialog
+
+        self.push_screen(SyncDialog(self.office_path))
+
+    def action_report(self) -> None:
+        from fieldcheck.tui.dialogs import ReportDialog
+
+        site_id, visit_id = self._visit_context()
+        self.push_screen(ReportDialog(site_id, visit_id))
+
+    def action_conflicts(self) -> None:
+        from fieldcheck.tui.dialogs import ConflictsScreen
+
+        self.push_screen(ConflictsScreen())
+
+    # -- command palette: every action that has a key, on the screen in front ------------------
+    def get_system_commands(self, screen: Screen) -> Iterable[SystemCommand]:
+        yield from super().get_system_commands(screen)
+        seen: set[str] = set()
+        for key, active in screen.active_bindings.items():
+            b = active.binding
+            if not b.description or b.system or b.action in seen:
+                continue
+            if type(active.node).__module__.startswith("textual."):
+                continue  # the widgets' own keys (cursor motion, editing)
+            seen.add(b.action)
+            label = b.key_display or key
+            yield SystemCommand(
+                b.description, f"{b.tooltip or b.description} (key: {label})",
+                partial(self.call_later, active.node.run_action, b.action),
+            )
+
+
+def run(db: str | Path | None = None, units: str | None = None) -> int:
+    """Open the interface on the survey log at ``db`` (default: the user's data folder)."""
+    app = FieldcheckApp(db=db, units=units)
+    app.run()
+    return int(app.return_code or 0)

@@ -1,0 +1,473 @@
+"""The post editor: the form beside a live rating that re-rates on every valid change.
+
+Panes (F2-F6): Rating (capacity, demand, ratio bar, governing check, action, warnings, cautions),
+Working (each step with its clause), Shape (end conditions drawn, capacity against height with
+this post marked), Remedies (ctrl+r applies one as a new revision), History (every revision).
+Saving (ctrl+s) appends a revision; leaving with changes asks, or keeps them as a draft; ctrl+z
+undoes the last change.
+"""
+
+from __future__ import annotations
+
+import math
+from typing import Any
+
+import numpy as np
+from textual import on, work
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Horizontal, VerticalScroll
+from textual.screen import Screen
+from textual.widgets import (
+    Footer, Header, Input, OptionList, Static, TabbedContent, TabPane,
+)
+from textual.widgets.option_list import Option
+
+from fieldcheck.engine.rating import rate
+from fieldcheck.records import COLUMNS, GROUPS, parse_records
+from fieldcheck.tui import present
+from fieldcheck.tui.drawing import ends_drawing
+from fieldcheck.tui.form import compose_form, field_ids
+from fieldcheck.tui.plot import braille_plot
+
+TABS = ("rating", "working", "shape", "remedies", "history")
+
+
+def clean(record: dict[str, str]) -> dict[str, str]:
+    return {k: v for k, v in record.items() if v is not None and str(v).strip()}
+
+
+def capacity_curve(batch: Any, heights_mm: np.ndarray) -> np.ndarray:
+    """Capacity (N) of this one post at each height, in one engine call."""
+    try:
+        from fieldcheck.engine.curves import capacity_vs_height
+    except ImportError:
+        k = len(heights_mm)
+        many = batch.take(np.zeros(k, int)).replace(height_mm=heights_mm, lu1_mm=np.nan,
+                                                    lu2_mm=np.nan)
+        return np.asarray(rate(many).capacity_n, dtype=float)
+    return np.asarray(capacity_vs_height(batch, heights_mm), dtype=float).reshape(-1)
+
+
+def remedy_text(rem: dict[str, Any]) -> str:
+    for key in ("text", "label", "description", "title", "name"):
+        if rem.get(key):
+            head = str(rem[key])
+            break
+    else:
+        head = "remedy"
+    changes = rem.get("record_changes") or {}
+    extra = ", ".join(f"{k} = {v}" for k, v in changes.items())
+    ratio = rem.get("ratio") or rem.get("new_ratio")
+    tail = f" → ratio {ratio:.2f}" if isinstance(ratio, (int, float)) else ""
+    return f"{head}{tail}" + (f"  [{extra}]" if extra else "")
+
+
+class PostEditor(Screen[None]):
+    AUTO_FOCUS = "#form Input"
+    BINDINGS = [
+        Binding("ctrl+s", "save", "Save", id="save"),
+        Binding("ctrl+z", "undo", "Undo", id="undo"),
+        Binding("ctrl+r", "apply_remedy", "Apply remedy", id="apply_remedy"),
+        Binding("escape", "leave", "Back", id="leave"),
+        Binding("f2", "tab('rating')", "Rating", id="tab_rating"),
+        Binding("f3", "tab('working')", "Working", id="tab_working"),
+        Binding("f4", "tab('shape')", "Shape", id="tab_shape"),
+        Binding("f5", "tab('remedies')", "Remedies", id="tab_remedies"),
+        Binding("f6", "tab('history')", "History", id="tab_history"),
+        Binding("ctrl+down", "next_field", "Next field", show=False, id="next_field"),
+    ]
+
+    def __init__(self, visit_id: str, member_id: str | None, record: dict[str, str],
+                 tag: str = "") -> None:
+        super().__init__()
+        self.visit_id = visit_id
+        self.site_id: str | None = None
+        self.member_id = member_id
+        self.saved_record = clean(record)
+        self.record = dict(self.saved_record)
+        self.tag = tag
+        self.undo_stack: list[dict[str, str]] = []
+        self.last_field: str | None = None
+        self.errors: dict[str, str] = {}  # column -> message (typing or combination)
+        self.batch: Any = None
+        self.rating: Any = None
+        self.summary: dict[str, Any] | None = None
+        self.stale = False  # the rating shown is the last valid one
+        self.remedies: list[dict[str, Any]] = []
+        self.draft_restored = False
+
+    @property
+    def draft_key(self) -> str:
+        return self.member_id or f"new:{self.visit_id}"
+
+    @property
+    def dirty(self) -> bool:
+        return clean(self.record) != self.saved_record
+
+    def compose(self) -> ComposeResult:
+        draft = self.app.drafts.get(self.draft_key)  # type: ignore[attr-defined]
+        if draft is not None and clean(draft) != self.saved_record:
+            self.record = dict(draft)
+            self.draft_restored = True
+        yield Header()
+        yield Static("", id="editor-title", classes="title")
+        with Horizontal(id="editor-body"):
+            with VerticalScroll(id="form"):
+                yield from compose_form(COLUMNS, GROUPS, self.record)
+            with TabbedContent(initial="rating", id="side"):
+                with TabPane("Rating F2", id="rating"):
+                    with VerticalScroll():
+                        yield Static("", id="rating-panel")
+                        yield Static("", id="cautions", classes="cautions")
+                with TabPane("Working F3", id="working"):
+                    with VerticalScroll():
+                        yield Static("", id="working-panel")
+                with TabPane("Shape F4", id="shape"):
+                    with VerticalScroll():
+                        yield Static("", id="ends-panel", markup=False)
+                        yield Static("", id="plot-panel", markup=False)
+                with TabPane("Remedies F5", id="remedies"):
+                    yield Static("", id="remedy-help")
+                    yield OptionList(id="remedy-list")
+                with TabPane("History F6", id="history"):
+                    with VerticalScroll():
+                        yield Static("", id="history-panel")
+        yield Footer()
+
+    def on_mount(self) -> None:
+        for name, text in self.record.items():
+            if text and name in COLUMNS:
+                self._validate(name)
+        self.query_one("#cautions", Static).update("\n".join(present.cautions_short()))
+        self.rerate()
+        self._title()
+        if self.member_id:
+            self.load_history()
+        else:
+            self.query_one("#history-panel", Static).update("A new post: no revisions yet.")
+        if self.draft_restored:
+            self.notify("Your unsaved draft of this post was restored (ctrl+s saves it).",
+                        markup=False)
+
+    def units_changed(self) -> None:
+        self.render_rating()
+
+    # -- typing ------------------------------------------------------------------------------
+    @on(Input.Changed)
+    def _changed(self, event: Input.Changed) -> None:
+        iid = event.input.id or ""
+        if not iid.startswith("f-"):
+            return
+        name = iid[2:]
+        text = event.value
+        if self.record.get(name, "") == text:
+            return
+        if name != self.last_field:
+            self.undo_stack.append(dict(self.record))
+            self.last_field = name
+        if text.strip():
+            self.record[name] = text
+        else:
+            self.record.pop(name, None)
+        self._validate(name)
+        self._after_change()
+
+    @on(Input.Submitted)
+    def _submitted(self, event: Input.Submitted) -> None:
+        if (event.input.id or "").startswith("f-"):
+            self.focus_next()
+
+    def action_next_field(self) -> None:
+        self.focus_next()
+
+    def _after_change(self) -> None:
+        self._keep_draft()
+        self.rerate()
+        self._title()
+
+    def _keep_draft(self) -> None:
+        drafts = self.app.drafts  # type: ignore[attr-defined]
+        if self.dirty:
+            drafts[self.draft_key] = dict(self.record)
+        else:
+            drafts.pop(self.draft_key, None)
+
+    def _validate(self, name: str) -> bool:
+        text = self.record.get(name, "")
+        msg = ""
+        if text.strip():
+            try:
+                COLUMNS[name].parse(text)
+            except ValueError as exc:
+                msg = str(exc)
+        self._show_error(name, msg)
+        return not msg
+
+    def _show_error(self, name: str, msg: str) -> None:
+        if name not in COLUMNS:
+            return
+        fid, mid = field_ids(name)
+        try:
+            inp = self.query_one(f"#{fid}", Input)
+            box = self.query_one(f"#{mid}", Static)
+        except Exception:  # noqa: BLE001 - a column registered after the form was built
+            return
+        if msg:
+            self.errors[name] = msg
+            inp.add_class("-bad")
+            box.update(f"✖ {msg}")
+            box.add_class("-shown")
+        else:
+            self.errors.pop(name, None)
+            inp.remove_class("-bad")
+            box.update("")
+            box.remove_class("-shown")
+
+    # -- rating ------------------------------------------------------------------------------
+    def rerate(self) -> None:
+        """Parse the record and rate it (about a millisecond): every valid change re-rates."""
+        bad = [n for n in self.errors if not self._parses(n)]  # typing errors stay shown
+        for name in [n for n in self.errors if n not in bad]:
+            self._show_error(name, "")  # a combination error is re-derived below
+        self.combination: list[str] = []
+        if bad:
+            self.stale = True
+            self.render_rating()
+            return
+        parsed = parse_records([self.record])
+        if parsed.errors:
+            self.stale = True
+            for err in parsed.errors:
+                if err.column in COLUMNS:
+                    self._show_error(err.column, err.message)
+            self.combination = [e.message for e in parsed.errors]
+            self.render_rating()
+            return
+        self.batch = parsed.batch
+        self.rating = rate(parsed.batch)
+        self.summary = self.rating.summary(0)
+        self.stale = False
+        self.render_rating()
+
+    def _parses(self, name: str) -> bool:
+        text = self.record.get(name, "")
+        if not text.strip() or name not in COLUMNS:
+            return True
+        try:
+            COLUMNS[name].parse(text)
+        except ValueError:
+            return False
+        return True
+
+    def render_rating(self) -> None:
+        units = self.app.units  # type: ignore[attr-defined]
+        panel = self.query_one("#rating-panel", Static)
+        lines: list[str] = []
+        if self.stale:
+            bad = [n for n in self.errors]
+            lines.append("[b $warning]✖ Not rated: fix " + present.escape(", ".join(bad) or "the form")
+                         + "[/]" + (" (last good rating below)" if self.summary else ""))
+            for m in getattr(self, "combination", [])[:3]:
+                lines.append(present.escape(m))
+        if self.summary is not None:
+            width = max(30, self.query_one("#side").size.width - 4)
+            lines += present.summary_lines(self.summary, units, width)
+        elif not self.stale:
+            lines.append("Type a size and a height to rate this post.")
+        panel.update("\n".join(lines))
+        self._render_remedies()
+        active = self.query_one("#side", TabbedContent).active
+        try:
+            if active == "working":
+                self._render_working()
+            elif active == "shape":
+                self._render_shape()
+        except Exception as exc:  # noqa: BLE001 - a drawing problem must never lose the form
+            self.notify(f"Could not draw the {active} pane: {exc}", severity="warning", markup=False)
+
+    def _render_working(self) -> None:
+        out = []
+        if self.rating is not None:
+            out.append("[b]Working (last good rating)[/b]" if self.stale else "[b]Working[/b]")
+            for step in self.rating.working(0):
+                clause = f"  [dim]{present.escape(step.clause)}[/dim]" if step.clause else ""
+                out.append(f"{present.escape(step.label)}: [b]{present.escape(step.value)}[/b]{clause}")
+        else:
+            out.append("No rating yet.")
+        self.query_one("#working-panel", Static).update("\n".join(out))
+
+    def _render_shape(self) -> None:
+        rec = self.record
+        ke = self.summary.get("effective_length_factor") if self.summary else None
+        self.query_one("#ends-panel", Static).update(
+            ends_drawing(rec.get("top") or "pinned", rec.get("bottom") or "pinned", ke, height=7))
+        plot = self.query_one("#plot-panel", Static)
+        if self.batch is None or self.rating is None:
+            plot.update("No plot until the post is rated.")
+            return
+        units = self.app.units  # type: ignore[attr-defined]
+        h = float(self.batch.height_mm[0])
+        width = max(20, min(60, self.query_one("#side").size.width - 14))
+        heights = np.linspace(max(300.0, 0.3 * h), 2.0 * h, 2 * width)
+        caps = capacity_curve(self.batch, heights)
+        cap = float(self.rating.capacity_n[0])
+        dem = float(self.rating.demand_n[0])
+        text = braille_plot(
+            heights, caps, width=width, height=8, mark=(h, cap),
+            hline=dem if math.isfinite(dem) and dem > 0 else None,
+            xfmt=lambda v: present.length(v, units), yfmt=lambda v: present.force(v, units),
+        )
+        plot.update("Capacity against height\n" + text
+                    + f"\n◆ this post: {present.length(h, units)}, {present.force(cap, units)}"
+                    + ("\n╌ D demand " + present.force(dem, units) if math.isfinite(dem) and dem > 0 else ""))
+
+    def _render_remedies(self) -> None:
+        rems = list((self.summary or {}).get("remedies") or [])
+        if rems == self.remedies and self.query_one("#remedy-list", OptionList).option_count == len(rems):
+            return
+        self.remedies = rems
+        box = self.query_one("#remedy-list", OptionList)
+        box.clear_options()
+        for i, rem in enumerate(rems):
+            box.add_option(Option(remedy_text(rem), id=str(i)))
+        ratio = (self.summary or {}).get("demand_capacity_ratio")
+        if rems:
+            msg = "Highlight a remedy and press ctrl+r to apply it as a new revision."
+        elif ratio is not None and ratio > 1.0:
+            msg = "No remedy offered by the engine for this post yet."
+        else:
+            msg = "No remedy needed: the post passes." if ratio is not None else "Not rated yet."
+        self.query_one("#remedy-help", Static).update(msg)
+
+    @on(TabbedContent.TabActivated, "#side")
+    def _tab(self) -> None:
+        self.render_rating()
+
+    def action_tab(self, name: str) -> None:
+        self.query_one("#side", TabbedContent).active = name
+        if name == "remedies":
+            self.query_one("#remedy-list").focus()
+
+    # -- title, history ----------------------------------------------------------------------
+    def _title(self) -> None:
+        tag = self.record.get("tag") or self.tag or "new post"
+        state = "new, not saved" if self.member_id is None else ("unsaved changes" if self.dirty else "saved")
+        mark = "✎ " if self.dirty or self.member_id is None else "✓ "
+        self.query_one("#editor-title", Static).update(
+            f"Post {present.escape(tag)} — {mark}{state}   (ctrl+s save, Esc back)")
+
+    @work(group="history", exclusive=True, exit_on_error=False)
+    async def load_history(self) -> None:
+        member = self.member_id
+        hist = await self.app.store.call(lambda log: log.history(member))  # type: ignore[attr-defined]
+        lines = [f"[b]{len(hist)} revision{'s' if len(hist) != 1 else ''}[/b] (oldest first)"]
+        prev: dict[str, str] = {}
+        for k, obs in enumerate(hist, 1):
+            what = "withdrawn: " + present.escape(obs.reason) if obs.withdrawn else ""
+            changed = [c for c in sorted(set(prev) | set(obs.record)) if prev.get(c) != obs.record.get(c)]
+            detail = ", ".join(f"{c} = {present.escape(obs.record.get(c, '(cleared)'))}" for c in changed[:8])
+            if len(changed) > 8:
+                detail += f", … {len(changed) - 8} more"
+            lines.append(f"{k}. {obs.created_at[:16]} by {present.escape(obs.author)} {what}")
+            lines.append(f"   {detail or 'no change'}")
+            prev = obs.record
+        self.query_one("#history-panel", Static).update("\n".join(lines))
+
+    # -- save, undo, leave, remedies ---------------------------------------------------------
+    async def save(self) -> bool:
+        record = clean(self.record)
+        member = self.member_id
+        try:
+            obs = await self.app.store.call(  # type: ignore[attr-defined]
+                lambda log: log.save_post(self.visit_id, record, member, allow_errors=True))
+        except Exception as exc:  # noqa: BLE001 - shown, never a traceback
+            self.notify(f"Not saved: {exc}", severity="error", markup=False)
+            return False
+        self.app.drafts.pop(self.draft_key, None)  # type: ignore[attr-defined]
+        self.member_id = obs.member_id
+        self.saved_record = record
+        self.app.drafts.pop(self.draft_key, None)  # type: ignore[attr-defined]
+        self._title()
+        self.load_history()
+        tag = record.get("tag", "post")
+        if self.stale:
+            self.notify(f"Saved {tag} as a new revision, not rated: "
+                        + "; ".join(self.errors.values() or ["see the form"]),
+                        severity="warning", markup=False)
+        else:
+            self.notify(f"Saved {tag} as a new revision.", markup=False)
+        return True
+
+    @work(group="write", exit_on_error=False)
+    async def action_save(self) -> None:
+        await self.save()
+
+    def action_undo(self) -> None:
+        if not self.undo_stack:
+            self.notify("Nothing to undo.", markup=False)
+            return
+        self.set_record(self.undo_stack.pop())
+        self.last_field = None
+
+    def set_record(self, record: dict[str, str]) -> None:
+        self.record = dict(record)
+        for name in COLUMNS:
+            fid, _ = field_ids(name)
+            try:
+                inp = self.query_one(f"#{fid}", Input)
+            except Exception:  # noqa: BLE001
+                continue
+            value = self.record.get(name, "")
+            if inp.value != value:
+                with inp.prevent(Input.Changed):
+                    inp.value = value
+            self._validate(name)
+        self._after_change()
+
+    def action_apply_remedy(self) -> None:
+        if not self.remedies:
+            self.notify("No remedy to apply.", markup=False)
+            return
+        box = self.query_one("#remedy-list", OptionList)
+        index = box.highlighted if box.highlighted is not None else 0
+        rem = self.remedies[index]
+        changes = rem.get("record_changes") or {}
+        if not changes:
+            self.notify("This remedy changes nothing in the record: do it on site.", markup=False)
+            return
+        self.undo_stack.append(dict(self.record))
+        self.last_field = None
+        new = dict(self.record)
+        new.update({k: str(v) for k, v in changes.items()})
+        self.set_record(new)
+        self.action_save()
+
+    @on(OptionList.OptionSelected, "#remedy-list")
+    def _remedy_chosen(self) -> None:
+        self.action_apply_remedy()
+
+    def action_leave(self) -> None:
+        if not self.dirty:
+            self.app.drafts.pop(self.draft_key, None)  # type: ignore[attr-defined]
+            self.app.pop_screen()
+            return
+        from fieldcheck.tui.dialogs import LeaveDialog
+
+        def chosen(answer: str | None) -> None:
+            if answer == "save":
+                self._save_and_leave()
+            elif answer == "draft":
+                self._keep_draft()
+                self.app.save_drafts()  # type: ignore[attr-defined]
+                self.app.pop_screen()
+            elif answer == "discard":
+                self.app.drafts.pop(self.draft_key, None)  # type: ignore[attr-defined]
+                self.app.pop_screen()
+
+        self.app.push_screen(LeaveDialog(), chosen)
+
+    @work(group="write", exit_on_error=False)
+    async def _save_and_leave(self) -> None:
+        if await self.save():
+            self.app.pop_screen()

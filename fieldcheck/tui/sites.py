@@ -1,0 +1,119 @@
+"""The first screen: every site and visit in the log with its posts counted by action."""
+
+from __future__ import annotations
+
+from typing import Any
+
+from textual import on, work
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.screen import Screen
+from textual.widgets import DataTable, Footer, Header, Static
+
+from fieldcheck.tui.present import ACTIONS, ACTION_ORDER, escape
+
+
+def _load_overview(log: Any) -> dict[str, Any]:
+    sites = {s.id: s for s in log.sites()}
+    rows = []
+    for v in log.visits():
+        counts = log.counts_by_action(v.id)
+        rows.append((v, sites.get(v.site_id), counts))
+    return {"rows": rows, "conflicts": len(log.conflicts()), "path": str(log.path)}
+
+
+class SitesScreen(Screen[None]):
+    """Sites and visits. Enter opens a visit."""
+
+    AUTO_FOCUS = "#visits"
+    BINDINGS = [
+        Binding("o", "open_visit", "Open", key_display="o/⏎", id="open_visit"),
+        Binding("ctrl+n", "new_visit", "New visit", id="new_visit"),
+        Binding("f5", "reload", "Reload", id="reload"),
+        Binding("question_mark", "app.help", "Help", show=False, id="help_q"),
+    ]
+
+    def compose(self) -> ComposeResult:
+        yield Header()
+        yield Static("Sites and visits — opening the survey log…", id="sites-title", classes="title")
+        table: DataTable[Any] = DataTable(id="visits", cursor_type="row", zebra_stripes=True)
+        yield table
+        yield Static("", id="sites-status", classes="status")
+        yield Footer()
+
+    def on_mount(self) -> None:
+        table = self.query_one("#visits", DataTable)
+        table.add_column("Site", key="site")
+        table.add_column("Visit", key="visit")
+        table.add_column("Date", key="date")
+        for label in ACTION_ORDER:
+            sym, word, _ = ACTIONS[label]
+            table.add_column(f"{sym} {word}", key=label)
+        table.add_column("Posts", key="total")
+        self.reload()
+
+    @work(exclusive=True, group="sites", exit_on_error=False)
+    async def reload(self) -> None:
+        app: Any = self.app
+        first = app.store.path is None
+        data = await app.store.call(_load_overview)
+        if first:
+            app.load_drafts()
+        self._fill(data)
+        if app.store.seeded and first:
+            self.notify("A new survey log with the invented demo survey was made: open a visit "
+                        "with Enter.", title="Demo survey", markup=False)
+
+    def _fill(self, data: dict[str, Any]) -> None:
+        table = self.query_one("#visits", DataTable)
+        keep = table.cursor_row
+        table.clear()
+        for v, site, counts in data["rows"]:
+            cells = [escape(site.name if site else "?"), escape(v.name), v.started_at[:10]]
+            cells += [str(counts.get(label, 0)) for label in ACTION_ORDER]
+            cells.append(str(sum(counts.values())))
+            table.add_row(*cells, key=v.id)
+        if table.row_count:
+            table.move_cursor(row=min(keep, table.row_count - 1))
+        n = table.row_count
+        self.query_one("#sites-title", Static).update(
+            f"Sites and visits: {n} visit{'s' if n != 1 else ''} — Enter opens one")
+        conflicts = data["conflicts"]
+        status = f"Log: {escape(data['path'])}"
+        if conflicts:
+            status += f"  ⚡ {conflicts} conflict{'s' if conflicts != 1 else ''} (F7)"
+        self.query_one("#sites-status", Static).update(status)
+
+    def on_screen_resume(self) -> None:
+        if self.app.store.path is not None:  # type: ignore[attr-defined]
+            self.reload()
+
+    def units_changed(self) -> None:
+        pass
+
+    def action_reload(self) -> None:
+        self.reload()
+
+    @on(DataTable.RowSelected, "#visits")
+    def _selected(self, event: DataTable.RowSelected) -> None:
+        self._open(str(event.row_key.value))
+
+    def action_open_visit(self) -> None:
+        table = self.query_one("#visits", DataTable)
+        if table.row_count:
+            key = table.coordinate_to_cell_key(table.cursor_coordinate).row_key
+            self._open(str(key.value))
+
+    def _open(self, visit_id: str) -> None:
+        from fieldcheck.tui.visit import VisitScreen
+
+        self.app.push_screen(VisitScreen(visit_id))
+
+    def action_new_visit(self) -> None:
+        from fieldcheck.tui.dialogs import NewVisitDialog
+
+        def made(visit_id: str | None) -> None:
+            if visit_id:
+                self._open(visit_id)
+
+        self.app.push_screen(NewVisitDialog(), made)
