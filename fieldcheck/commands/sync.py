@@ -1,0 +1,72 @@
+"""`fieldcheck sync --db FIELD OFFICE`: send this log to the office and take back what is new."""
+
+from __future__ import annotations
+
+import argparse
+import sys
+import time
+
+from fieldcheck.commands.log_option import add_db_option, open_log
+
+DESCRIPTION = (
+    "Sync a survey log with the office. OFFICE is the office's survey log file (merged directly) "
+    "or a shared folder (bundles are dropped there and the office's are taken). Every row the "
+    "other side lacks moves once; a repeated sync moves nothing. Posts revised in two places "
+    "without seeing each other are kept both ways and listed for review."
+)
+
+
+def add_arguments(p: argparse.ArgumentParser) -> None:
+    add_db_option(p)
+    p.add_argument("office", metavar="OFFICE", help="office survey log file or shared folder")
+    p.add_argument("--quiet", action="store_true", help="no progress bar")
+
+
+class ProgressBar:
+    """A plain text bar on stderr, redrawn at most 10 times a second (no dependency)."""
+
+    def __init__(self, stream=sys.stderr, width: int = 30):
+        self.stream, self.width = stream, width
+        self.last = 0.0
+        self.stage = None
+        self.shown = False
+
+    def __call__(self, done: int, total: int, stage: str) -> None:
+        now = time.monotonic()
+        final = total == 0 or done >= total
+        if stage == self.stage and not final and now - self.last < 0.1:
+            return
+        self.last, self.stage = now, stage
+        frac = 1.0 if total <= 0 else min(1.0, done / total)
+        fill = int(frac * self.width)
+        bar = "#" * fill + "." * (self.width - fill)
+        self.stream.write(f"\r[{bar}] {frac:4.0%} {stage:<18} {done:,}/{total:,} rows ")
+        self.stream.flush()
+        self.shown = True
+
+    def close(self) -> None:
+        if self.shown:
+            self.stream.write("\n")
+            self.stream.flush()
+
+
+def run(args: argparse.Namespace) -> int:
+    from fieldcheck.store.sync import sync
+
+    bar = None if args.quiet or not sys.stderr.isatty() else ProgressBar()
+    with open_log(args, must_exist=True) as log:
+        try:
+            summary = sync(log, args.office, progress=bar)
+        finally:
+            if bar is not None:
+                bar.close()
+    print(summary.sentence())
+    for table, n in summary.sent.items():
+        print(f"  sent      {table:<14} {n:>9,}")
+    for table, n in summary.received.items():
+        print(f"  took back {table:<14} {n:>9,}")
+    for c in summary.conflicts:
+        print(f"  conflict: post {c} has two revisions made apart; review it in the office")
+    for r in summary.refused:
+        print(f"fieldcheck: {r}", file=sys.stderr)
+    return 1 if summary.refused else 0
