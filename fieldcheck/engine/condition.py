@@ -62,7 +62,7 @@ MC_DECAY_RISK = 20.0  # % MC at or above which most decay fungi grow (Smulski 19
 MC_SATURATED = 28.0  # % MC: near fibre saturation, meters unreliable (FPL-GTR-6 [V]; flag judgement)
 HANKINSON_Q_BENDING = 0.1  # Q/P for bending at an angle to grain (Wood Handbook ch. 5 range [M])
 LE_BENDING = 1.84  # le/lu for the bending check of a post with end moments (NDS 2018 Table 3.3.3 [M])
-ECC_ITERATIONS = 28  # Illinois steps of the interaction solve (converges to ~1e-12 relative)
+ECC_ITERATIONS = 16  # most Illinois steps of the interaction solve (stops once 1e-9 relative)
 DEPTH_FIELDS = ("1p", "1m", "2p", "2m")  # faces: 1p/1m the narrow faces (reduce d1), 2p/2m wide
 
 
@@ -150,71 +150,96 @@ def _cut_zones(z_mm: np.ndarray, h: np.ndarray, d1: np.ndarray):
 
 
 def _section(b: PostBatch, dec: list, chr_: list, inc_dec, inc_chr, inc_hollow, inc_notch, inc_hole,
-             full: bool = True) -> dict[str, np.ndarray]:
+             parts: dict, full: bool = True) -> dict[str, np.ndarray]:
     """Residual section for the losses included (boolean masks). Coordinates from the original
-    centre: x along d1, y along d2. Returns area and, if ``full``, I1, I2, centroid, S, sizes."""
+    centre: x along d1, y along d2. Returns area and, if ``full``, I1, I2, centroid, S, sizes.
+
+    ``parts`` holds the per-batch inputs prepared once by :func:`residual` (NaN -> 0, face masks,
+    and which kinds of loss occur in this batch at all, so absent kinds cost nothing).
+    """
     d1, d2 = b.d1_mm, b.d2_mm
-    notch = _nz(b.notch_mm) * inc_notch
-    a = []
-    for k in range(4):
-        on_face = (b.notch_face == NARROW) if k == 0 else (b.notch_face == WIDE) if k == 2 else False
-        ak = np.maximum(dec[k] * inc_dec, chr_[k] * inc_chr)
-        if k in (0, 2):
-            ak = np.maximum(ak, notch * on_face)  # a notch is cut on the + face (sign is immaterial)
-        a.append(ak)
+    a = [np.maximum(dec[k] * inc_dec, chr_[k] * inc_chr) for k in range(4)]
+    if parts["has_notch"]:  # a notch is cut on the + face of its pair (the sign is immaterial)
+        notch = parts["notch"] * inc_notch
+        a[0] = np.maximum(a[0], notch * parts["notch_narrow"])
+        a[2] = np.maximum(a[2], notch * parts["notch_wide"])
     a1p, a1m, a2p, a2m = a
     b1 = np.maximum(d1 - a1p - a1m, 0.0)
     b2 = np.maximum(d2 - a2p - a2m, 0.0)
-    xc, yc = 0.5 * (a1m - a1p), 0.5 * (a2m - a2p)
     ar = b1 * b2
+    area = ar.copy()
     # wane: 45-degree corner triangles of leg w at the original corners, filled in the order
     # (+1,+2), (-1,+2), (+1,-2), (-1,-2); face losses shrink the leg to w - a1 - a2 (exact)
-    w = _nz(b.wane_mm)
-    corners = ((1, 1, a1p, a2p), (-1, 1, a1m, a2p), (1, -1, a1p, a2m), (-1, -1, a1m, a2m))
     tri = []
-    for j, (sx, sy, ax, ay) in enumerate(corners):
-        wc = np.maximum(w - ax - ay, 0.0) * (b.wane_corners > j)
-        tri.append((sx, sy, wc))
-    hol = _nz(b.hollow_mm) * inc_hollow
-    a_h = np.pi / 4.0 * hol * hol
-    hole = _nz(b.hole_mm) * inc_hole
-    through_wide = b.hole_face == WIDE  # bored through the wide faces: runs along d2
-    a_bore = np.where(through_wide, hole * b2, hole * b1)
-    area = ar - a_h - a_bore
-    for _, _, wc in tri:
-        area = area - 0.5 * wc * wc
-    out = {"area": np.maximum(area, 0.0)}
+    if parts["has_wane"]:
+        w = parts["wane"]
+        for j, (sx, sy, ax, ay) in enumerate(((1, 1, a1p, a2p), (-1, 1, a1m, a2p), (1, -1, a1p, a2m),
+                                              (-1, -1, a1m, a2m))):
+            wc = np.maximum(w - ax - ay, 0.0) * parts["corner"][j]
+            at = 0.5 * wc * wc
+            area -= at
+            tri.append((sx, sy, ax, ay, wc, at))
+    if parts["has_hollow"]:
+        hol = parts["hollow"] * inc_hollow
+        a_h = (np.pi / 4.0) * hol * hol
+        area -= a_h
+    if parts["has_hole"]:
+        hole = parts["hole"] * inc_hole
+        tw = parts["hole_wide"]  # 1.0: bored through the wide faces (runs along d2), else 0.0
+        a_bore = hole * (tw * b2 + (1.0 - tw) * b1)
+        area -= a_bore
+    np.maximum(area, 0.0, out=area)
+    out = {"area": area}
     if not full:
         return out
-    # first moments and second moments about the original centre, then about the new centroid
-    x_t = [d1 * 0.5 * sx - np.where(sx > 0, a1p, -a1m) - sx * wc / 3.0 for sx, _, wc in tri]
-    y_t = [d2 * 0.5 * sy - np.where(sy > 0, a2p, -a2m) - sy * wc / 3.0 for _, sy, wc in tri]
-    at = [0.5 * wc * wc for _, _, wc in tri]
-    xb_bore = np.where(through_wide, 0.0, xc)
-    yb_bore = np.where(through_wide, yc, 0.0)
-    sx_ = ar * xc - a_bore * xb_bore
-    sy_ = ar * yc - a_bore * yb_bore
-    for k in range(4):
-        sx_ = sx_ - at[k] * x_t[k]
-        sy_ = sy_ - at[k] * y_t[k]
-    with np.errstate(divide="ignore", invalid="ignore"):
-        safe = np.where(area > 0, area, 1.0)
-        xbar, ybar = sx_ / safe, sy_ / safe
-    i_h = np.pi / 64.0 * hol**4
-    i1 = b2 * b1**3 / 12.0 + ar * xc * xc - i_h
-    i2 = b1 * b2**3 / 12.0 + ar * yc * yc - i_h
-    i1 = i1 - np.where(through_wide, b2 * hole**3 / 12.0, hole * b1**3 / 12.0 + a_bore * xc * xc)
-    i2 = i2 - np.where(through_wide, hole * b2**3 / 12.0 + a_bore * yc * yc, b1 * hole**3 / 12.0)
-    for k, (_, _, wc) in enumerate(tri):
-        it = wc**4 / 36.0  # right isosceles triangle about its centroid
-        i1 = i1 - it - at[k] * x_t[k] ** 2
-        i2 = i2 - it - at[k] * y_t[k] ** 2
+    # first and second moments about the original centre, then about the new centroid
+    xc, yc = 0.5 * (a1m - a1p), 0.5 * (a2m - a2p)
+    sx_, sy_ = ar * xc, ar * yc
+    i1 = b2 * b1 * b1 * b1 / 12.0 + ar * xc * xc
+    i2 = b1 * b2 * b2 * b2 / 12.0 + ar * yc * yc
+    for sx, sy, ax, ay, wc, at in tri:
+        x_t = sx * (0.5 * d1 - ax - wc / 3.0)
+        y_t = sy * (0.5 * d2 - ay - wc / 3.0)
+        wc2 = wc * wc
+        it = wc2 * wc2 / 36.0  # right isosceles triangle about its centroid
+        sx_ -= at * x_t
+        sy_ -= at * y_t
+        i1 -= it + at * x_t * x_t
+        i2 -= it + at * y_t * y_t
+    if parts["has_hollow"]:
+        i_h = (np.pi / 64.0) * (hol * hol) * (hol * hol)
+        i1 -= i_h
+        i2 -= i_h
+    if parts["has_hole"]:
+        xb, yb = (1.0 - tw) * xc, tw * yc
+        sx_ -= a_bore * xb
+        sy_ -= a_bore * yb
+        h3 = hole * hole * hole / 12.0
+        i1 -= tw * b2 * h3 + (1.0 - tw) * hole * b1 * b1 * b1 / 12.0 + a_bore * xb * xb
+        i2 -= tw * hole * b2 * b2 * b2 / 12.0 + (1.0 - tw) * b1 * h3 + a_bore * yb * yb
+    safe = np.maximum(area, 1e-9)
+    xbar, ybar = sx_ / safe, sy_ / safe
     i1 = np.maximum(i1 - area * xbar * xbar, 0.0)
     i2 = np.maximum(i2 - area * ybar * ybar, 0.0)
     c1 = np.maximum(0.5 * d1 - a1p - xbar, xbar + 0.5 * d1 - a1m)  # extreme fibres
     c2 = np.maximum(0.5 * d2 - a2p - ybar, ybar + 0.5 * d2 - a2m)
     out.update(i1=i1, i2=i2, xbar=xbar, ybar=ybar, c1=c1, c2=c2, b1=b1, b2=b2)
     return out
+
+
+def _sections(b, dec, chr_, parts, h, d1):
+    """(middle, net, top end, bottom end) residual sections: each loss in the zones it covers."""
+    n_mid, n_top, n_bot = _cut_zones(b.notch_z_mm, h, d1)
+    h_mid, h_top, h_bot = _cut_zones(b.hole_z_mm, h, d1)
+    yes = np.ones(b.n, dtype=bool)
+    mid = _section(b, dec, chr_, _in_zone(b.decay_zone, MIDDLE), _in_zone(b.char_zone, MIDDLE),
+                   _in_zone(b.hollow_zone, MIDDLE), n_mid, h_mid, parts)
+    net = _section(b, dec, chr_, yes, yes, yes, yes, yes, parts)
+    top = _section(b, dec, chr_, _in_zone(b.decay_zone, TOP), _in_zone(b.char_zone, TOP),
+                   _in_zone(b.hollow_zone, TOP), n_top, h_top, parts, full=False)
+    bot = _section(b, dec, chr_, _in_zone(b.decay_zone, BOTTOM), _in_zone(b.char_zone, BOTTOM),
+                   _in_zone(b.hollow_zone, BOTTOM), n_bot, h_bot, parts, full=False)
+    return mid, net, top, bot
 
 
 def residual(b: PostBatch, le1: np.ndarray | None = None, le2: np.ndarray | None = None) -> dict[str, np.ndarray]:
@@ -232,29 +257,33 @@ def residual(b: PostBatch, le1: np.ndarray | None = None, le2: np.ndarray | None
            for f in DEPTH_FIELDS]  # judgement margin past the probed boundary (field-practice.md §1.6)
     chr_ = [np.where(_nz(getattr(b, f"char_{f}_mm")) > 0, _nz(getattr(b, f"char_{f}_mm")) + CHAR_LAYER_MM, 0.0)
             for f in DEPTH_FIELDS]  # char + zero-strength layer d0 (EN 1995-1-2 §4.2.2, from memory)
-    n_mid, n_top, n_bot = _cut_zones(b.notch_z_mm, h, d1)
-    h_mid, h_top, h_bot = _cut_zones(b.hole_z_mm, h, d1)
-    yes = np.ones(b.n, dtype=bool)
-    mid = _section(b, dec, chr_, _in_zone(b.decay_zone, MIDDLE), _in_zone(b.char_zone, MIDDLE),
-                   _in_zone(b.hollow_zone, MIDDLE), n_mid, h_mid)
-    net = _section(b, dec, chr_, yes, yes, yes, yes, yes)
-    top = _section(b, dec, chr_, _in_zone(b.decay_zone, TOP), _in_zone(b.char_zone, TOP),
-                   _in_zone(b.hollow_zone, TOP), n_top, h_top, full=False)
-    bot = _section(b, dec, chr_, _in_zone(b.decay_zone, BOTTOM), _in_zone(b.char_zone, BOTTOM),
-                   _in_zone(b.hollow_zone, BOTTOM), n_bot, h_bot, full=False)
+    parts = {
+        "notch": _nz(b.notch_mm), "wane": _nz(b.wane_mm), "hollow": _nz(b.hollow_mm), "hole": _nz(b.hole_mm),
+        "notch_narrow": (b.notch_face == NARROW).astype(np.float64),
+        "notch_wide": (b.notch_face == WIDE).astype(np.float64),
+        "hole_wide": (b.hole_face == WIDE).astype(np.float64),
+        "corner": [(b.wane_corners > j).astype(np.float64) for j in range(4)],
+    }
+    for k in ("notch", "wane", "hollow", "hole"):
+        parts[f"has_{k}"] = bool(parts[k].any())
     gross = d1 * d2
-    loss_any = (
-        (sum(dec) + sum(chr_) + _nz(b.hollow_mm) + _nz(b.notch_mm) + _nz(b.hole_mm)
-         + _nz(b.wane_mm) * (b.wane_corners > 0)) > 0
-    )
+    loss_any = (sum(dec) + sum(chr_) + parts["hollow"] + parts["notch"] + parts["hole"]
+                + parts["wane"] * parts["corner"][0]) > 0
+    if not loss_any.any():  # a sound block: the gross section, nothing to compute
+        zero = np.zeros(b.n)
+        mid = net = {"area": gross, "i1": zero, "i2": zero, "xbar": zero, "ybar": zero, "c1": zero, "c2": zero,
+                     "b1": d1, "b2": d2}
+        top = bot = mid
+    else:
+        mid, net, top, bot = _sections(b, dec, chr_, parts, h, d1)
     loss_mid = loss_any & (mid["area"] < gross)
     # through split in the buckling-critical part: the halves act separately about one axis,
     # I about it / 4 (mechanics, field-practice.md §1.4 [X]); unknown faces: the worse axis
     split_mid = (b.split >= SPLIT_THROUGH) & _in_zone(b.split_zone, MIDDLE)
     with np.errstate(divide="ignore", invalid="ignore"):
         a_m = np.where(loss_mid, mid["area"], gross)
-        de1 = np.where(loss_mid, np.sqrt(12.0 * mid["i1"] / a_m), d1)  # d_eff = sqrt(12 I / A)
-        de2 = np.where(loss_mid, np.sqrt(12.0 * mid["i2"] / a_m), d2)
+        de1 = np.where(loss_mid, np.sqrt(12.0 * mid["i1"] / np.maximum(a_m, 1e-9)), d1)  # d_eff = sqrt(12 I / A)
+        de2 = np.where(loss_mid, np.sqrt(12.0 * mid["i2"] / np.maximum(a_m, 1e-9)), d2)
     if le1 is None:
         le1, le2 = h, h
     worse_is_1 = le1 / de1 > le2 / de2  # halving d_eff doubles le/d: the larger one matters more
@@ -287,13 +316,13 @@ def residual(b: PostBatch, le1: np.ndarray | None = None, le2: np.ndarray | None
 # Checks added to the rating: eccentric load and bow, net-section crushing
 # =============================================================================================
 def _interaction(x, a0, u1, u2, g1, h1, g2, h2, f1, f2, k):
-    """NDS 2018 Eq. 15.4-1 with the bow terms, minus 1, at load x (N); +inf past a pole."""
-    den1 = 1.0 - u1 * x
+    """NDS 2018 Eq. 15.4-1 with the bow terms, minus 1, times both amplifier denominators
+    (positive below the poles, so the root is the same and the function has no poles)."""
+    den1 = 1.0 - u1 * x  # 1 - fc/FcE1
     kx = k * x
-    den2 = 1.0 - u2 * x - kx * kx
-    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
-        t = a0 * x * x + x * (g1 + h1 * x) / (f1 * den1) + x * (g2 + h2 * x) / (f2 * den2) - 1.0
-    return np.where((den1 > 0) & (den2 > 0), t, np.inf)
+    den2 = 1.0 - u2 * x - kx * kx  # 1 - fc/FcE2 - (fb1/FbE)^2
+    d12 = den1 * den2
+    return (a0 * x * x - 1.0) * d12 + x * (g1 + h1 * x) * den2 / f1 + x * (g2 + h2 * x) * den1 / f2
 
 
 def eccentric_capacity(area, s1, s2, e1, e2, bow1, bow2, fc_prime, fb1p, fb2p, fce1, fce2, fbe):
@@ -304,9 +333,10 @@ def eccentric_capacity(area, s1, s2, e1, e2, bow1, bow2, fc_prime, fb1p, fb2p, f
 
     with fc = P/A, fc 6e/d = P e / S (the end-moment stress of the residual section) and fb = P bow / S
     (a measured initial bow, amplified by the same 1/(1 - fc/FcE) term: column-design.md §4.4).
-    The left side grows with P, so the root lies between 0 and the concentric capacity A Fc':
-    Illinois (modified regula falsi) steps on the bracket, vectorised; the lower end is returned,
-    so the answer always satisfies the interaction.
+    The left side grows with P, so the root lies between 0 and the concentric capacity A Fc' (or
+    the first pole of the amplifiers, if sooner). Multiplied by both amplifier denominators the
+    equation becomes a quartic without poles; Illinois (modified regula falsi) steps on the
+    bracket, vectorised; the lower end is returned, so the answer always satisfies the interaction.
     """
     a0 = 1.0 / (area * fc_prime) ** 2
     u1 = 1.0 / (area * fce1)
@@ -317,25 +347,44 @@ def eccentric_capacity(area, s1, s2, e1, e2, bow1, bow2, fc_prime, fb1p, fb2p, f
     h2 = 0.234 * u2 * e2 / s2
     k = np.where(np.isfinite(fbe), g1 / fbe, 0.0)  # (fb1 + fc 6e1/d1) / FbE = k P
     args = (a0, u1, u2, g1, h1, g2, h2, fb1p, fb2p, k)
-    lo = np.zeros_like(area)
-    flo = np.full_like(area, -1.0)
-    hi = area * fc_prime
+    # bracket: without the amplifiers the equation is a quadratic whose root p0 is an upper bound;
+    # with the amplifiers frozen at their p0 values (their largest below p0) its root p1 is a
+    # lower bound. Also below the concentric capacity and the first pole (fc < FcE1; T2).
+    def quad_root(bb):  # root of a0 x^2 + bb x - 1 = 0, stable form
+        return 2.0 / (bb + np.sqrt(bb * bb + 4.0 * a0))
+
+    p0 = quad_root(g1 / fb1p + g2 / fb2p)
+    pole2 = 2.0 / (u2 + np.sqrt(u2 * u2 + 4.0 * k * k))
+    hi = np.minimum(np.minimum(np.minimum(area * fc_prime, 1.0 / u1), pole2), p0)
+    den1, den2 = 1.0 - u1 * hi, 1.0 - u2 * hi - (k * hi) ** 2
+    with np.errstate(divide="ignore", invalid="ignore"):
+        p1 = quad_root((g1 + h1 * hi) / (fb1p * den1) + (g2 + h2 * hi) / (fb2p * den2))
+    lo = np.where((den1 > 0) & (den2 > 0) & (p1 < hi), p1, 0.0)
+    flo = _interaction(lo, *args)
+    np.copyto(lo, 0.0, where=flo > 0)  # rounding guard: keep lo on the safe side
+    np.copyto(flo, -1.0, where=flo > 0)
     fhi = _interaction(hi, *args)
-    side = np.zeros(area.shape, dtype=np.int8)
+    prev_lo = np.zeros(area.shape, dtype=bool)  # the last step moved lo
+    prev_hi = np.zeros(area.shape, dtype=bool)
+    mid = np.empty_like(area)
     for _ in range(ECC_ITERATIONS):
-        finite = np.isfinite(fhi)
         with np.errstate(divide="ignore", invalid="ignore"):
-            x = np.where(finite, (lo * fhi - hi * flo) / (fhi - flo), 0.5 * (lo + hi))
-        x = np.where((x > lo) & (x < hi), x, 0.5 * (lo + hi))
+            x = (lo * fhi - hi * flo) / (fhi - flo)  # regula falsi
+        np.add(lo, hi, out=mid)
+        mid *= 0.5
+        np.copyto(x, mid, where=~((x > lo) & (x < hi)))  # outside the bracket or NaN: bisect
         fx = _interaction(x, *args)
         neg = fx <= 0.0
-        lo = np.where(neg, x, lo)
-        flo = np.where(neg, fx, flo)
-        hi = np.where(neg, hi, x)
-        fhi = np.where(neg, fhi, fx)
-        fhi = np.where(neg & (side == -1), 0.5 * fhi, fhi)  # Illinois: same end kept twice
-        flo = np.where(~neg & (side == 1), 0.5 * flo, flo)
-        side = np.where(neg, -1, 1).astype(np.int8)
+        pos = ~neg
+        np.copyto(lo, x, where=neg)
+        np.copyto(flo, fx, where=neg)
+        np.copyto(hi, x, where=pos)
+        np.copyto(fhi, fx, where=pos)
+        np.multiply(fhi, 0.5, out=fhi, where=neg & prev_lo)  # Illinois: same end kept twice
+        np.multiply(flo, 0.5, out=flo, where=pos & prev_hi)
+        prev_lo, prev_hi = neg, pos
+        if (hi - lo <= 1e-9 * hi).all():
+            break
     return lo
 
 
@@ -509,3 +558,154 @@ def condition_flags(b: PostBatch, values: dict) -> np.ndarray:
 _r.register_flag_hook(condition_flags)
 
 Check = _r.Check
+
+
+# =============================================================================================
+# Per post, on demand: reductions (for --json), working lines
+# =============================================================================================
+def _mm(x: float) -> str:
+    return f"{x:.1f} mm ({x / IN:.3f} in)"
+
+
+def reductions(r, i: int) -> list[dict]:
+    """Each reduction applied to post i, in order, with its factor and clause."""
+    b, v = r.batch, r.values
+    out: list[dict] = []
+
+    def add(what: str, detail: str, factor: float | None, clause: str) -> None:
+        out.append({"reduction": what, "detail": detail,
+                    "factor": None if factor is None else round(float(factor), 6), "clause": clause})
+
+    gross = float(v["area_gross"][i])
+    if bool(v["loss"][i]):
+        add("residual section, middle part",
+            f"area {v['area'][i] / gross:.3f} of gross; d_eff {_mm(v['d_eff1'][i])} x {_mm(v['d_eff2'][i])}; "
+            f"centroid shift {_mm(v['shift1'][i])}, {_mm(v['shift2'][i])}; decay margin {_mm(b.decay_margin_mm[i])}"
+            " (judgement)", v["area"][i] / gross,
+            "field-practice.md §1.6, §1.10 (char + 7 mm, EN 1995-1-2 §4.2.2 from memory); NDS 2018 §3.6.3 [M]")
+        add("net section (all losses together)", f"area {v['area_net'][i] / gross:.3f} of gross",
+            v["area_net"][i] / gross, "NDS 2018 §3.6.3 as remembered")
+    for end, key in (("top", "a_top"), ("bottom", "a_bottom")):
+        f = v[key][i] / gross
+        if f < 1.0:
+            add(f"bearing area at the {end}", "residual end area x contact share"
+                + (" x 0.5 crushed end (judgement)" if b.crushed_end[i] & (1 if end == "top" else 2) else ""),
+                f, "NDS 2018 §3.10.1; field-practice.md §1.8")
+    if int(v["split_axis"][i]):
+        add("through split", f"halves act separately: I about axis {int(v['split_axis'][i])} / 4", 0.25,
+            "mechanics, field-practice.md §1.4")
+    if v["strength_ratio"][i] < 1.0 or v["sr_bending"][i] < 1.0:
+        tname = SLOPE_TABLES[int(b.slope_table[i])]
+        src = "ASTM D245 grading table, from memory" if tname == "grading" else "Wood Handbook Table 5-12"
+        parts = []
+        if _nz(b.knot_mm[i:i + 1])[0] > 0:
+            parts.append(f"knot {_mm(b.knot_mm[i])} on a {FACE_NAMES[int(b.knot_face[i])]} face: {v['sr_knot'][i]:.3f}")
+        if np.isfinite(b.slope_n[i]):
+            parts.append(f"slope 1 in {b.slope_n[i]:g} ({tname} table, {src}): {v['sr_slope'][i]:.3f}")
+        add("strength ratio on Fc (lowest, not the product)", "; ".join(parts), v["strength_ratio"][i],
+            "ASTM D245 principle (from memory); field-practice.md §1.2, §1.3")
+        add("strength ratio on Fb", "lowest of knot and slope (bending column)", v["sr_bending"][i],
+            "ASTM D245 principle (from memory)")
+    if v["cm_fc"][i] < 1.0:
+        add("wet service CM on Fc", f"moisture {b.moisture_pct[i]:.0f} %", v["cm_fc"][i], "NDS Supplement")
+    if b.knowledge[i] < 1.0:
+        lvl = int(b.data_level[i])
+        basis = DATA_LEVELS[lvl] if lvl >= 0 else "default values (species or grade unknown)"
+        add("knowledge factor kappa", f"data collection: {basis}", b.knowledge[i], "ASCE 41 (secondary); judgement")
+    ecc = r.checks.get("eccentric")
+    if ecc is not None and np.isfinite(ecc.capacity_n[i]):
+        col = r.checks["column"].capacity_n[i]
+        add("eccentricity and bow", f"e1 {_mm(v['ecc1'][i])}, e2 {_mm(v['ecc2'][i])}, bow {_mm(v['bow1'][i])}, "
+            f"{_mm(v['bow2'][i])}", ecc.capacity_n[i] / col, "NDS 2018 §3.9.2, §15.4.1")
+    return out
+
+
+def summary_keys(r, i: int, out: dict) -> None:
+    """Summary hook: what was seen (condition), the reductions, the stress-wave readings."""
+    v = r.values
+    lvl = int(v["condition"][i])
+    out["condition"] = CONDITIONS[lvl]
+    out["condition_level"] = lvl
+    out["urgency_days"] = out.get("due_days")
+    out["reductions"] = reductions(r, i)
+    if np.isfinite(v["sw_velocity"][i]):
+        out["stress_wave"] = {
+            "velocity_m_s": round(float(v["sw_velocity"][i]), 1),
+            "dynamic_e_mpa": _num(v["sw_ed_mpa"][i]), "time_ratio": _num(v["sw_ratio"][i]),
+            "note": "E_d is an indicator, not a design value (field-practice.md §2)",
+        }
+
+
+def _num(x) -> float | None:
+    x = float(x)
+    return None if not np.isfinite(x) else round(x, 4)
+
+
+def working_lines(r, i: int) -> list:
+    """Working steps for the condition of post i (registered with working.py)."""
+    Step = _r.Step
+    b, v = r.batch, r.values
+    s = []
+    if bool(v["loss"][i]):
+        s.append(Step("Residual section (middle part): A, I1, I2",
+                      f"{v['area'][i]:,.0f} mm2, {v['res_i1'][i]:.4g} mm4, {v['res_i2'][i]:.4g} mm4",
+                      "field-practice.md §1.6; decayed and charred wood has no strength"))
+        s.append(Step("d_eff = sqrt(12 I / A) per axis", f"{_mm(v['d_eff1'][i])}, {_mm(v['d_eff2'][i])}",
+                      "mechanics; NDS 2018 §3.6.3 net section in Cp [M]"))
+        s.append(Step("Net section (all losses), end areas top / bottom",
+                      f"{v['area_net'][i]:,.0f} / {v['area_top'][i]:,.0f} / {v['area_bottom'][i]:,.0f} mm2",
+                      "NDS 2018 §3.6.3 [M], §3.10.1"))
+    if int(v["split_axis"][i]):
+        s.append(Step("Through split: I / 4", f"axis {int(v['split_axis'][i])}", "field-practice.md §1.4"))
+    if v["sr_recorded"][i]:
+        tname = SLOPE_TABLES[int(b.slope_table[i])]
+        applied = "applied" if b.sr_applies[i] else "not applied (graded member; grade allows for it)"
+        s.append(Step(f"Strength ratio, lowest of knot and slope ({tname} table), {applied}",
+                      f"Fc x {v['strength_ratio'][i]:.4f}, Fb x {v['sr_bending'][i]:.4f}",
+                      "ASTM D245 principle (from memory); " + (
+                          "ASTM D245 slope table (from memory)" if tname == "grading" else "Wood Handbook Table 5-12")))
+    if b.material_assumed[i] or b.data_level[i] >= 0:
+        lvl = int(b.data_level[i])
+        s.append(Step("Knowledge factor kappa" + (f" (data level {DATA_LEVELS[lvl]})" if lvl >= 0 else
+                                                  " (default values: species or grade unknown)"),
+                      f"{b.knowledge[i]:.2f}", "ASCE 41 data collection (secondary); judgement"))
+    if v["ecc_checked"][i]:
+        s.append(Step("Eccentricity e1, e2; bow at mid-height", f"{_mm(v['ecc1'][i])}, {_mm(v['ecc2'][i])}; "
+                      f"{_mm(v['bow1'][i])}, {_mm(v['bow2'][i])}", "column-design.md §4.4; judgement"))
+        s.append(Step("Fb* (Fb x factors x strength ratio), CL, FbE",
+                      f"{v['fb_star'][i]:.3f} MPa, {v['cl'][i]:.4f}, {v['fbe'][i]:.4g} MPa", "NDS 2018 §3.3.3"))
+    if np.isfinite(v["sw_velocity"][i]):
+        s.append(Step("Stress wave: v = path / time; E_d = rho v^2; time / sound time",
+                      f"{v['sw_velocity'][i]:,.0f} m/s; {v['sw_ed_mpa'][i]:,.0f} MPa; {v['sw_ratio'][i]:.2f}",
+                      "field-practice.md §2 (thresholds from memory)"))
+    s.append(Step("Condition (what was seen)", CONDITIONS[int(v["condition"][i])], "field-practice.md §6.2"))
+    return s
+
+
+def bench_fields(rng: np.random.Generator, n: int, d1: np.ndarray, d2: np.ndarray) -> dict[str, np.ndarray]:
+    """Every condition input in use, for bench/engine.py --conditions."""
+    u = rng.uniform
+    return dict(
+        decay_1p_mm=u(0, 0.1, n) * d1, decay_2p_mm=u(0, 0.1, n) * d2, decay_2m_mm=u(0, 0.05, n) * d2,
+        decay_zone=rng.integers(0, 4, n), hollow_mm=u(0, 0.2, n) * d2, char_1m_mm=u(0, 10, n),
+        char_zone=rng.integers(0, 4, n), wane_mm=u(0, 10, n), wane_corners=rng.integers(0, 5, n),
+        notch_mm=u(0, 0.1, n) * d2, notch_face=rng.integers(0, 2, n), notch_z_mm=u(0, 2000, n),
+        hole_mm=u(0, 0.1, n) * d2, hole_face=rng.integers(0, 2, n), hole_z_mm=u(0, 2000, n),
+        knot_mm=u(0, 0.3, n) * d2, knot_face=rng.integers(0, 2, n), slope_n=u(4, 30, n),
+        slope_table=rng.integers(0, 2, n), split=rng.integers(0, 3, n), split_faces=rng.integers(0, 3, n),
+        crushed_end=rng.integers(0, 4, n), bow1_mm=u(0, 20, n), bow2_mm=u(0, 20, n),
+        plumb1_mm=u(0, 30, n), plumb2_mm=u(0, 30, n), offset1_mm=u(0, 15, n), offset2_mm=u(0, 15, n),
+        fb_mpa=u(5, 10, n), sw_time_us=u(300, 900, n), sw_path_mm=d2, sw_sound_us=np.full(n, 400.0),
+        density_kgm3=u(400, 600, n),
+    )
+
+
+_r.register_summary_hook(summary_keys)
+
+
+def _register_steps() -> None:
+    from fieldcheck.engine.working import register_steps
+
+    register_steps(working_lines)
+
+_register_steps()
