@@ -105,7 +105,6 @@ def effective_pad_area_mm2(b: PostBatch) -> np.ndarray:
 
 
 def _ground_checks(b: PostBatch, checks: dict, values: dict) -> None:
-    has_pad = ~np.isnan(b.pad_area_mm2)
     sf = b.soil_flags.astype(np.int64)
     q = b.soil_kpa
     soil_given = ~np.isnan(q) | (sf != 0)
