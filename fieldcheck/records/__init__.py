@@ -116,3 +116,4 @@ def rate_records(rows: list[dict[str, str]]):
 
 from fieldcheck.records import ec5_columns as _ec5_columns  # noqa: E402,F401  (registers columns)
 from fieldcheck.records import spring_columns as _spring_columns  # noqa: E402,F401  (spring ends)
+from fieldcheck.records import condition_columns as _condition_columns  # noqa: E402,F401  (the post as found)
