@@ -15,7 +15,9 @@ from __future__ import annotations
 
 import math
 import os
+import re
 import tempfile
+from functools import cache
 from html import escape
 from pathlib import Path
 
@@ -41,8 +43,13 @@ LEVEL_TEXT = {
 }
 
 
+_SPECIAL = re.compile(r"[&<>\"']")
+
+
 def e(x: object) -> str:
-    return escape("" if x is None else str(x), quote=True)
+    """html.escape (quotes too), with a fast path for the many strings that need nothing."""
+    s = "" if x is None else str(x)
+    return escape(s, quote=True) if _SPECIAL.search(s) else s
 
 
 def badge(action: int | None) -> str:
@@ -72,6 +79,7 @@ def due_text(p: PostEntry) -> str:
 # ----------------------------------------------------------------------------- sections
 
 
+@cache
 def cautions_box(compact: bool = False) -> str:
     items = "".join(f"<li>{e(c)}</li>" for c in CAUTIONS)
     cls = "cautions compact" if compact else "cautions"

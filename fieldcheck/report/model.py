@@ -16,7 +16,9 @@ from typing import Any
 import numpy as np
 
 from fieldcheck import ENGINE_VERSION
-from fieldcheck.engine.rating import ACTIONS, DUE_DAYS, Rating, rate
+from fieldcheck.engine import rating as _rating
+from fieldcheck.engine.batch import METHOD_NAMES
+from fieldcheck.engine.rating import ACTION_TEXT, ACTIONS, DUE_DAYS, Rating, rate
 from fieldcheck.engine.refdata import editions
 
 # heights of a capacity curve as multiples of the post's own height: a quarter to twice it, as
@@ -113,6 +115,43 @@ def capacity_curves(batch, factors: np.ndarray = CURVE_FACTORS) -> tuple[np.ndar
     return heights, cap
 
 
+def batch_remedies(batch, rating: Rating):
+    """Remedies of every failing post in ONE engine call (engine.remedies), or None if absent."""
+    try:
+        from fieldcheck.engine.remedies import remedies
+    except ImportError:
+        return None
+    return remedies(batch, rating)
+
+
+def _is_remedies_hook(hook) -> bool:
+    return getattr(hook, "__module__", "") == "fieldcheck.engine.remedies"
+
+
+def post_summary(rating: Rating, j: int, rem) -> dict[str, Any]:
+    """The keys of ``Rating.summary(j)`` the report shows, from the same arrays, with every
+    summary hook run except the remedies one: that hook rates each failing post on its own, so
+    the report takes the remedies of all posts from one call (``batch_remedies``) instead."""
+    if rem is None:
+        return rating.summary(j)
+    act = int(rating.action[j])
+    ratio = float(rating.ratio[j])
+    out: dict[str, Any] = {
+        "method": METHOD_NAMES[int(rating.batch.method[j])],
+        "demand_capacity_ratio": None if math.isnan(ratio) else round(ratio, 4),
+        "governing_check": rating.governing_name(j),
+        "action": ACTIONS[act],
+        "action_text": ACTION_TEXT[act],
+        "due_days": DUE_DAYS[act],
+        "warnings": rating.warnings(j),
+    }
+    for hook in _rating.SUMMARY_HOOKS:
+        if not _is_remedies_hook(hook):
+            hook(rating, j, out)
+    out["remedies"] = [x.as_dict() for x in rem.for_post(j)]
+    return out
+
+
 def _close(a, b) -> bool:
     if a is None or b is None:
         return a is None and b is None
@@ -179,6 +218,7 @@ def gather(log, site_id: str | None = None, visit_id: str | None = None,
     parsed = parse_records([p.record for p in views])
     rating = rate(parsed.batch) if parsed.batch.n else None
     heights, caps = capacity_curves(parsed.batch) if rating is not None else (None, None)
+    rem = batch_remedies(parsed.batch, rating) if rating is not None else None
     errs: dict[int, list[str]] = {}
     for e in parsed.errors:
         errs.setdefault(e.row, []).append(f"{e.column}: {e.message}")
@@ -205,7 +245,7 @@ def gather(log, site_id: str | None = None, visit_id: str | None = None,
                                      [], None, att.get(view.member_id, []),
                                      rev.get(view.member_id, [])))
             continue
-        summary = rating.summary(j)
+        summary = post_summary(rating, j, rem)
         entries.append(PostEntry(
             view, visit, j, [], parsed.meta[j], stored, summary, rating.working(j),
             _differences(stored, rating, j, eds),

@@ -136,3 +136,16 @@ def test_remedies_are_shown_when_the_engine_gives_them(demo_log):
                 from html import escape
 
                 assert escape(rem["description"]) in out
+
+
+def test_report_summary_equals_rating_summary(demo_log):
+    """The report's per-post summary (remedies of all posts from one call) equals the engine's
+    own Rating.summary(i) on every key the report shows."""
+    posts, r = _engine(demo_log)
+    data = model.gather(demo_log)
+    for p in data.posts:
+        full = r.summary(p.j)
+        for key in ("method", "demand_capacity_ratio", "governing_check", "action", "due_days",
+                    "warnings", "load_combination", "remedies"):
+            assert p.summary.get(key) == full.get(key), (p.tag, key)
+    assert any(p.summary["remedies"] for p in data.posts)  # S4 (demo) has options
