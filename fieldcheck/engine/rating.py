@@ -23,7 +23,7 @@ IN = 25.4
 ACTIONS = ("no-action", "monitor", "repair-or-brace", "make-safe-now")
 ACTION_TEXT = (
     "No action: adequate as found.",
-    "Monitor: adequate, but re-inspect at the next visit and after any change.",
+    "Monitor: re-inspect at the next visit and after any change; read the warnings.",
     "Repair or brace before the due date; restrict the load until then.",
     "Make safe now: clear the area under the load and call the engineer.",
 )
