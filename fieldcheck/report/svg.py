@@ -25,13 +25,9 @@ def nice_ticks(lo: float, hi: float, n: int = 5) -> list[float]:
     raw = (hi - lo) / max(n, 1)
     mag = 10 ** math.floor(math.log10(raw))
     step = next(m * mag for m in (1, 2, 5, 10) if m * mag >= raw)
-    start = math.floor(lo / step) * step
-    out = []
-    v = start
-    while v <= hi + step * 1e-9:
-        out.append(round(v, 10))
-        v += step
-    return out
+    first = math.floor(lo / step + 1e-9)
+    last = math.ceil(hi / step - 1e-9)  # the last tick is at or beyond hi: the data fits inside
+    return [round(k * step, 10) for k in range(first, max(last, first + 1) + 1)]
 
 
 def _tick_text(v: float) -> str:
