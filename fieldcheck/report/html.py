@@ -112,12 +112,24 @@ def _cover(d: ReportData) -> str:
         "<h3>Visits</h3><table><tr><th>Visit</th><th>Date</th><th>Inspector</th>"
         "<th>Data-collection level</th><th>Instruments</th></tr>"
         f"{vrows or '<tr><td colspan=5>no visits</td></tr>'}</table>"
-        f"{cautions_box()}"
+        f"{_signoff(d)}{cautions_box()}"
         '<nav><h3>Contents</h3><ol><li><a href="#client">Client summary</a></li>'
         '<li><a href="#summary">Every post</a></li><li><a href="#actions">Open actions</a></li>'
         '<li><a href="#conflicts">Open sync conflicts</a></li>'
         '<li><a href="#record">Technical record</a></li><li><a href="#engine">Engine and reference data</a></li>'
         "</ol></nav></section>"
+    )
+
+
+def _signoff(d: ReportData) -> str:
+    """Recorded sign-offs, and lines to sign on paper (field-practice.md §6.4: the inspector signs
+    the visit, a licensed engineer signs any capacity used for decisions)."""
+    done = "".join(f"<li>\u2713 {e(r.author)}, {e(r.created_at)}: {e(r.text)}</li>" for r in d.signoffs)
+    return (
+        "<h3>Sign-off</h3>"
+        + (f"<ul>{done}</ul>" if done else "<p>Not signed off in the log yet.</p>")
+        + "<table class='kv'><tr><th>Inspector (signature, date)</th><td>&nbsp;</td></tr>"
+        "<tr><th>Reviewing engineer (signature, licence, date)</th><td>&nbsp;</td></tr></table>"
     )
 
 
@@ -243,12 +255,16 @@ def _conflicts(d: ReportData) -> str:
     if not d.conflicts:
         out.append("<p>None: every post has one current revision.</p>")
     for tag, heads in d.conflicts:
+        keys = sorted({k for h in heads for k in h.record}
+                      - {k for k in heads[0].record if all(h.record.get(k) == heads[0].record[k] for h in heads)})
         out.append(f"<h3>\u26a0 {e(tag)}: {len(heads)} revisions made without seeing each other</h3>"
                    "<p>Both are kept; the office must choose one (nothing is resolved silently). "
-                   "This report shows the newest.</p><table><tr><th>Revision</th><th>By</th>"
-                   "<th>When</th><th>Device</th></tr>")
+                   "This report rates the newest.</p><table><tr><th>Revision</th><th>By</th>"
+                   "<th>When</th><th>Device</th><th>Where they differ</th></tr>")
         out += [f"<tr><td class='hash'>{e(h.id)}</td><td>{e(h.author)}</td><td>{e(h.created_at)}</td>"
-                f"<td class='hash'>{e(h.device_id)}</td></tr>" for h in heads]
+                f"<td class='hash'>{e(h.device_id)}</td><td>"
+                + "; ".join(f"{e(k)} = {e(h.record.get(k, '(not given)'))}" for k in keys)
+                + "</td></tr>" for h in heads]
         out.append("</table>")
     out.append("</section>")
     return "".join(out)
@@ -365,13 +381,13 @@ def _notes_photos(p: PostEntry) -> str:
     return "".join(out)
 
 
-def _stored(p: PostEntry) -> str:
+def _stored(p: PostEntry, units: str) -> str:
     s = p.stored
     if s is None:
         head = "<p>No stored rating for this revision.</p>"
     else:
         head = (f"<p>Stored rating: engine {e(s.engine_version)}, {e(s.created_at)}; "
-                f"{badge(s.action)} capacity {e(format_force(s.capacity_n or float('nan'), 'metric'))}, "
+                f"{badge(s.action)} capacity {e(format_force(s.capacity_n if s.capacity_n is not None else float('nan'), units))}, "
                 f"ratio {e(ratio_text(s.ratio))}. Data editions: "
                 + "; ".join(f"{e(k)} {e(v)}" for k, v in sorted(s.data_editions.items())) + ".</p>")
     if p.differs:
@@ -390,7 +406,7 @@ def _post(d: ReportData, p: PostEntry) -> str:
         errs = "".join(f"<li>{e(x)}</li>" for x in p.errors)
         return (head + f"<div class='alert'><b>Not rated:</b> the record as typed has errors."
                 f"<ul>{errs}</ul></div><h3>Inputs as measured</h3>{_record_table(p.view.record)}"
-                f"{_notes_photos(p)}{_stored(p)}</section>")
+                f"{_notes_photos(p)}{_stored(p, d.units)}</section>")
     r, j, u, s = d.rating, p.j, d.units, p.summary
     dem = float(r.demand_n[j])
     result = (
@@ -424,7 +440,7 @@ def _post(d: ReportData, p: PostEntry) -> str:
         + f"<h3>Working</h3><table class='steps'><tr><th>#</th><th>Step</th><th>Value</th>"
           f"<th>Clause</th></tr>{steps}</table>"
         + _notes_photos(p)
-        + f"<h3>Stored rating</h3>{_stored(p)}</section>"
+        + f"<h3>Stored rating</h3>{_stored(p, d.units)}</section>"
     )
 
 

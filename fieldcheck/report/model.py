@@ -75,6 +75,7 @@ class ReportData:
     editions: dict[str, str]
     created: _dt.datetime
     units: str
+    signoffs: list[Any] = field(default_factory=list)  # sign-off reviews of the report's visits
 
     @property
     def rated(self) -> list[PostEntry]:
@@ -231,9 +232,13 @@ def gather(log, site_id: str | None = None, visit_id: str | None = None,
         if a.member_id in members:
             att.setdefault(a.member_id, []).append(a)
     rev: dict[str, list] = {}
+    visit_ids = {v.id for v in visits}
+    signoffs = []
     for r in log.reviews():
         if r.member_id in members:
             rev.setdefault(r.member_id, []).append(r)
+        elif r.kind == "sign-off" and r.visit_id in visit_ids:
+            signoffs.append(r)
 
     entries: list[PostEntry] = []
     for i, view in enumerate(views):
@@ -262,4 +267,4 @@ def gather(log, site_id: str | None = None, visit_id: str | None = None,
                      if not any(c.supersedes == o.id for c in log.history(mid))]
             conflicts.append((tags.get(mid) or mid[:8], heads))
     return ReportData(sites, visits, scope, entries, rating, conflicts, ENGINE_VERSION, eds,
-                      _dt.datetime.now().astimezone(), units)
+                      _dt.datetime.now().astimezone(), units, signoffs)

@@ -135,3 +135,36 @@ def test_client_summary_is_separate_and_plain(demo_log, parse_html):
     assert "What must happen by when" in client
     for jargon in ("le/d", "Cp", "NDS", "Fc"):
         assert jargon not in client  # plain words for the client
+
+
+def test_open_sync_conflicts_are_listed_with_their_differences(empty_log):
+    import uuid
+
+    site = empty_log.add_site("Site")
+    v = empty_log.add_visit(site.id, "tester")
+    first = empty_log.save_post(v.id, {"tag": "S1", "size": "4x4", "height": "8ft",
+                                       "species": "douglas-fir-larch", "grade": "no2",
+                                       "load": "3000lbf"})
+    # two revisions made apart (as a sync brings them): both supersede the same parent
+    with empty_log.db.atomic():
+        for dev, h in (("device-B", "9ft"), ("device-C", "10ft")):
+            empty_log.db.execute(
+                "INSERT INTO observations (id, member_id, visit_id, supersedes, record_json, device_id,"
+                " device_seq, author, created_at) VALUES (?, ?, ?, ?, ?, ?, 1, 'x', ?)",
+                [str(uuid.uuid4()), first.member_id, v.id, first.id,
+                 '{"tag": "S1", "size": "4x4", "height": "%s", "load": "3000lbf"}' % h, dev,
+                 "2026-01-01T00:00:00+00:00"],
+            )
+    out = render_report(empty_log)
+    sec = out[out.index('id="conflicts"'):out.index('id="record"')]
+    assert "S1: 2 revisions made without seeing each other" in sec
+    assert "height = 9ft" in sec and "height = 10ft" in sec
+    assert "device-B" in sec and "device-C" in sec
+
+
+def test_sign_offs_are_on_the_cover(demo_log):
+    v = demo_log.visits()[0]
+    demo_log.add_review("sign-off", "Basement posts reviewed", visit_id=v.id)
+    out = render_report(demo_log)
+    cover = out[:out.index('id="client"')]
+    assert "Basement posts reviewed" in cover and "Reviewing engineer" in cover
