@@ -143,18 +143,29 @@ def _sha256(path: Path) -> tuple[str, int]:
 
 
 def _digests(conn: sqlite3.Connection, schema: str) -> dict[str, dict]:
+    """Per table: row count and ``merge.RowsDigest`` of the ids (a covering-index scan)."""
     out: dict[str, dict] = {}
     have = _tables(conn, schema)
     for t in SYNC_TABLES:
         if t.name not in have:
             continue
-        keys = "id, device_id, device_seq" if t.origin else "id, NULL, NULL"
         d = RowsDigest()
-        cur = conn.execute(f"SELECT {keys} FROM {schema}.{t.name} ORDER BY id")
+        cur = conn.execute(f"SELECT id FROM {schema}.{t.name} ORDER BY id")
         while batch := cur.fetchmany(10_000):
-            d.update(batch)
-        out[t.name] = {"rows": d.rows, "rows_sha256": d.hexdigest()}
+            d.update_ids([r[0] for r in batch])
+        out[t.name] = {"rows": d.rows, "ids_sha256": d.hexdigest()}
     return out
+
+
+def _in_ranges(conn: sqlite3.Connection, schema: str, table: str, ranges: Mapping) -> int:
+    """Rows of ``table`` inside the seq ranges (UNIQUE(device_id, device_seq) index)."""
+    return sum(
+        conn.execute(
+            f"SELECT count(*) FROM {schema}.{table} WHERE device_id = ? AND device_seq BETWEEN ? AND ?",
+            [dev, int(r[0]), int(r[1])],
+        ).fetchone()[0]
+        for dev, r in ranges.items()
+    )
 
 
 # ----------------------------------------------------------------------------- writing
@@ -358,16 +369,25 @@ def verify_rows(bundle: Bundle) -> None:
         raise TransferRefused(f"the bundle {name} cannot be opened ({exc}); nothing was changed") from None
     try:
         found = _digests(conn, "main")
+        for t in SYNC_TABLES:  # every row inside the seq ranges the manifest declares
+            if t.origin and t.name in found:
+                found[t.name]["in_ranges"] = _in_ranges(conn, "main", t.name, bundle.manifest["ranges"])
     except sqlite3.Error as exc:
         raise TransferRefused(f"the bundle {name} cannot be read ({exc}); nothing was changed") from None
     finally:
         conn.close()
+    origin = {t.name for t in SYNC_TABLES if t.origin}
     for table, want in bundle.manifest["tables"].items():
         got = found.get(table)
-        if got is None or got["rows"] != int(want["rows"]) or got["rows_sha256"] != want["rows_sha256"]:
+        if got is None or got["rows"] != int(want["rows"]) or got["ids_sha256"] != want.get("ids_sha256"):
             raise TransferRefused(
                 f"the bundle {name} does not match its manifest in table {table} (tampered or "
                 "damaged); copy it again from the sender, nothing was changed"
+            )
+        if table in origin and got.get("in_ranges") != got["rows"]:
+            raise TransferRefused(
+                f"the bundle {name} holds {table} rows outside the device ranges its manifest "
+                "declares (tampered or damaged); nothing was changed"
             )
 
 

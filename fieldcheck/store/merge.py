@@ -132,19 +132,20 @@ def check_schema(transfer_version: int, our_version: int) -> None:
 
 
 class RowsDigest:
-    """Per-table digest of which rows a transfer holds: sha256 over ``id,device_id,device_seq\\n``
-    in id order. Every byte of the snapshot is covered by the file's sha256 as well; this one
-    travels with the rows, so a hub that receives rows rather than files can check it too."""
+    """Per-table digest of which rows a transfer holds: sha256 over the ids in ascending order,
+    one per line (``id\n``). Each row is also bound to the transfer's per-device seq ranges
+    (every row must lie inside one), and every byte of a snapshot file is covered by the file's
+    sha256; this digest travels with the rows, so a hub that receives rows rather than files can
+    check it too."""
 
     def __init__(self) -> None:
         self._h = hashlib.sha256()
         self.rows = 0
 
-    def update(self, keys: Iterable[Sequence]) -> None:
-        lines = [f"{k[0]},{'' if k[1] is None else k[1]},{'' if k[2] is None else k[2]}" for k in keys]
-        if lines:
-            self._h.update(("\n".join(lines) + "\n").encode())
-            self.rows += len(lines)
+    def update_ids(self, ids: Sequence[str]) -> None:
+        if ids:
+            self._h.update(("\n".join(ids) + "\n").encode())
+            self.rows += len(ids)
 
     def hexdigest(self) -> str:
         return self._h.hexdigest()

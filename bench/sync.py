@@ -1,0 +1,75 @@
+"""Sync speed: move N observations (with their members and ratings) from a field log into an
+empty office log, then repeat the sync (nothing to move), and measure peak Python memory.
+
+Peak memory is tracemalloc's peak during the first sync (rows stream inside SQLite and in
+fixed-size batches, so it must not grow with N); a second, smaller run shows it side by side.
+Prints one JSON object on its last line: {"rows", "first_seconds", "repeat_seconds", "peak_mb",
+...}. Targets (issue 8): first sync under 5 s, repeat under 0.5 s.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+import tempfile
+import time
+import tracemalloc
+from pathlib import Path
+
+sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
+
+from bench.store import synthetic  # noqa: E402
+from fieldcheck.store import Log  # noqa: E402
+from fieldcheck.store.sync import sync  # noqa: E402
+
+
+def run(n: int) -> dict:
+    with tempfile.TemporaryDirectory() as tmp:
+        t = time.perf_counter()
+        with Log.open(Path(tmp) / "field.db", author="bench", device="bench-field") as log:
+            log.import_rows(synthetic(n), "Bench site", "Bench visit")
+        build_s = time.perf_counter() - t
+        office = Path(tmp) / "office.db"
+        Log.open(office, author="office").close()
+        with Log.open(Path(tmp) / "field.db") as log:
+            t = time.perf_counter()
+            first = sync(log, office)
+            first_s = time.perf_counter() - t
+            t = time.perf_counter()
+            again = sync(log, office)
+            repeat_s = time.perf_counter() - t
+            # memory on its own run (tracemalloc slows every allocation): a second empty office
+            office2 = Path(tmp) / "office2.db"
+            Log.open(office2, author="office").close()
+            tracemalloc.start()
+            sync(log, office2)
+            peak = tracemalloc.get_traced_memory()[1]
+            tracemalloc.stop()
+        with Log.open(office, readonly=True) as off:
+            got = off.db.conn.execute("SELECT count(*) FROM observations").fetchone()[0]
+    assert got == n, (got, n)
+    assert again.moved == 0, again.sentence()
+    return {
+        "rows": n, "first_seconds": round(first_s, 3), "repeat_seconds": round(repeat_s, 3),
+        "peak_mb": round(peak / 2**20, 2), "rows_moved": first.rows_sent,
+        "build_seconds": round(build_s, 2),
+    }
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser()
+    ap.add_argument("--rows", type=int, default=100_000)
+    ap.add_argument("--small", type=int, default=10_000)
+    a = ap.parse_args()
+    small = run(a.small)
+    print(json.dumps(small))
+    big = run(a.rows)
+    big["small_rows"] = small["rows"]
+    big["small_peak_mb"] = small["peak_mb"]
+    big["small_first_seconds"] = small["first_seconds"]
+    print(json.dumps(big))
+
+
+if __name__ == "__main__":
+    main()
