@@ -6,6 +6,8 @@ from __future__ import annotations
 import csv
 import json
 
+import pytest
+
 from fieldcheck.cli import main
 from fieldcheck.store import Log, seed_demo
 
@@ -36,10 +38,17 @@ def test_export_round_trip_through_csv(log, shore, tmp_path):
         res = other.import_rows(rows, "Copy", "Copy")
         assert res.errors == [] and res.imported == len(table.rows)
         again = other.export_rows()
-    strip = [c for c in table.columns if c not in ("site", "visit", "member_id", "observation_id",
-                                                     "revised_at", "revised_by")]
-    assert [{k: str(r[k] or "") for k in strip} for r in again.rows] == [
-        {k: str(r[k] or "") for k in strip} for r in table.rows]
+    numeric = ("ratio", "capacity_kN", "demand_kN")
+    same = [c for c in table.columns if c not in ("site", "visit", "member_id", "observation_id",
+                                                  "revised_at", "revised_by", *numeric)]
+    assert [{k: str(r[k] or "") for k in same} for r in again.rows] == [
+        {k: str(r[k] or "") for k in same} for r in table.rows]
+    # the engine's iterative solves may differ in the last digits between batches
+    for a, b in zip(again.rows, table.rows, strict=True):
+        for k in numeric:
+            assert (a[k] is None) == (b[k] is None)
+            if a[k] is not None:
+                assert float(a[k]) == pytest.approx(float(b[k]), rel=1e-6)
 
 
 def test_demo_has_sound_posts_and_one_to_make_safe(log):
