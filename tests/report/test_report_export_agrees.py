@@ -24,11 +24,12 @@ def test_export_csv_columns_equal_the_report(demo_log, tmp_path, parse_html):
     cells = parse_html(render_report(demo_log)).cells
     for j, row in enumerate(rows):
         cap_n = float(row["capacity_kN"]) * 1000.0
-        assert math.isclose(cap_n, float(r.capacity_n[j]), rel_tol=1e-9), row["tag"]
-        assert math.isclose(float(row["ratio"]), float(r.ratio[j]), rel_tol=1e-9), row["tag"]
-        assert math.isclose(float(row["demand_kN"]) * 1000.0, float(r.demand_n[j]), rel_tol=1e-9)
+        assert math.isclose(cap_n, float(r.capacity_n[j]), rel_tol=1e-6), row["tag"]
+        assert math.isclose(float(row["ratio"]), float(r.ratio[j]), rel_tol=1e-6), row["tag"]
+        assert math.isclose(float(row["demand_kN"]) * 1000.0, float(r.demand_n[j]), rel_tol=1e-6)
         assert row["action"] == ACTIONS[int(r.action[j])]
         assert row["governing"] == r.governing_name(j)
-        # and the report prints the exported numbers
+        # and the report prints the exported numbers (rel 1e-6: iterative solves differ in the
+        # last digits between a one-post save and a batch re-rating)
         assert cells[(row["member_id"], "capacity")][0] == format_force(cap_n, "us")
         assert cells[(row["member_id"], "ratio")][0] == f"{float(row['ratio']):.3f}"
