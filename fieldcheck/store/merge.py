@@ -43,11 +43,14 @@ class TransferRefused(ValueError):
 class TableSpec:
     name: str
     origin: bool  # carries device_id/device_seq (engine_stamps is content-addressed instead)
+    # columns that may differ between two copies of one row (each device stamps the engine
+    # stamp it first rated with at its own time): left out of the "same id, other content" check
+    local: tuple[str, ...] = ()
 
 
 # parents before children; every table has a TEXT primary key ``id``
 SYNC_TABLES: tuple[TableSpec, ...] = (
-    TableSpec("engine_stamps", False),
+    TableSpec("engine_stamps", False, ("created_at",)),
     TableSpec("sites", True),
     TableSpec("visits", True),
     TableSpec("members", True),
@@ -230,7 +233,7 @@ def prepare(target: MergeTarget, header: TransferHeader, source: RowSource) -> s
                 f"this transfer holds {t.name} rows this log has no table for; update fieldcheck "
                 "and sync again, nothing was changed"
             )
-        bad = target.mismatched(t.name, cols, source)
+        bad = target.mismatched(t.name, [c for c in cols if c not in t.local], source)
         if bad:
             raise TransferRefused(
                 f"this transfer holds {bad} {t.name} rows whose ids this log already has with "
