@@ -19,11 +19,16 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
     add_db_option(p)
     p.add_argument("--format", choices=("csv", "json"), default="csv", help="output format (csv)")
     p.add_argument("--out", metavar="FILE", help="write here instead of the standard output")
+    p.add_argument("--bundle", metavar="OUT", help="write a sync bundle (OUT and OUT.json) instead")
 
 
 def run(args: argparse.Namespace) -> int:
     from fieldcheck.cli import UsageError
 
+    if args.bundle:
+        from fieldcheck.commands.sync import run_export_bundle
+
+        return run_export_bundle(args)
     with open_log(args, readonly=True, must_exist=True) as log:
         table = log.export_rows()
     try:

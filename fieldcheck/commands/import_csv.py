@@ -21,11 +21,16 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
     p.add_argument("--site", help="site name (created if new), e.g. '14 Alder Row'")
     p.add_argument("--visit", help="visit name (created if new), e.g. 'Basement survey'")
     p.add_argument("--inspector", help="who inspected (default: your user name)")
+    p.add_argument("--bundle", metavar="IN", help="take a sync bundle (IN and IN.json) instead of a CSV")
 
 
 def run(args: argparse.Namespace) -> int:
     from fieldcheck.cli import UsageError
 
+    if args.bundle:
+        from fieldcheck.commands.sync import run_import_bundle
+
+        return run_import_bundle(args)
     if not args.csv:
         raise UsageError(
             "import: give the CSV file to import, e.g. fieldcheck import --db survey.db posts.csv "
