@@ -38,7 +38,7 @@ def synthetic(n: int, seed: int = 7, conditions: bool = False):
         product=rng.integers(0, 2, n), bottom=ends[:, 0], top=ends[:, 1], cd=rng.choice([0.9, 1.0, 1.15, 1.25], n),
         moisture_pct=rng.uniform(8, 35, n), load_n=rng.uniform(5e3, 2e5, n),
         top_fc_perp_mpa=np.full(n, 625 * PSI), bottom_fc_perp_mpa=np.full(n, 565 * PSI),
-        top_cb=rng.random(n) < 0.5, bottom_cb=rng.random(n) < 0.5, end_contact=rng.uniform(0.6, 1.0, n),
+        top_cb=rng.random(n) < 0.5, bottom_cb=rng.random(n) < 0.5,
     )
     if conditions:
         from fieldcheck.engine import condition

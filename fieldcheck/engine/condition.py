@@ -115,6 +115,10 @@ def slope_ratio(n: np.ndarray, which: np.ndarray, prop: str, q: np.ndarray) -> t
 
 def strength_ratios(b: PostBatch) -> dict[str, np.ndarray]:
     """Lowest strength ratio of the knot and the slope, for Fc and for Fb (D245: lowest, not product)."""
+    if not (np.any(b.knot_mm > 0) or np.any(np.isfinite(b.slope_n))):  # nothing recorded in this block
+        one, no = np.ones(b.n), np.zeros(b.n, dtype=bool)
+        return {"strength_ratio": one, "sr_bending": one, "sr_knot": one, "sr_slope": one,
+                "sr_slope_bending": one, "slope_beyond_table": no, "sr_recorded": no}
     k = _nz(b.knot_mm)
     w = np.where(b.knot_face == NARROW, b.d2_mm, b.d1_mm)
     sr_knot = np.clip(1.0 - k / w, 0.0, 1.0)  # ASTM D245 principle, knot as a hole: 1 - k/w [M]
@@ -242,6 +246,31 @@ def _sections(b, dec, chr_, parts, h, d1):
     return mid, net, top, bot
 
 
+LOSS_FIELDS = tuple(f"{k}_{f}_mm" for k in ("decay", "char") for f in DEPTH_FIELDS) + (
+    "hollow_mm", "wane_mm", "notch_mm", "hole_mm")
+
+
+def _block_has_loss(b: PostBatch) -> bool:
+    """Any section loss or through split in this block (NaN and 0 mean none)."""
+    return any(np.any(getattr(b, f) > 0) for f in LOSS_FIELDS) or bool(np.any(b.split >= SPLIT_THROUGH))
+
+
+def _sound(b: PostBatch) -> dict[str, np.ndarray]:
+    d1, d2 = b.d1_mm, b.d2_mm
+    gross = d1 * d2
+    i1, i2 = d2 * d1**3 / 12.0, d1 * d2**3 / 12.0
+    zero, no = np.zeros(b.n), np.zeros(b.n, dtype=bool)
+    out = {
+        "area": gross, "area_gross": gross, "area_net": gross, "area_top": gross, "area_bottom": gross,
+        "res_i1": i1, "res_i2": i2, "d_eff1": d1, "d_eff2": d2, "i_gyr1": d1 / np.sqrt(12.0),
+        "i_gyr2": d2 / np.sqrt(12.0), "s1": i1 / (0.5 * d1), "s2": i2 / (0.5 * d2), "least_d1": d1,
+        "least_d2": d2, "shift1": zero, "shift2": zero, "loss": no, "loss_mid": no,
+        "split_axis": np.zeros(b.n, dtype=np.int8),
+    }
+    out.update(strength_ratios(b))
+    return out
+
+
 def residual(b: PostBatch, le1: np.ndarray | None = None, le2: np.ndarray | None = None) -> dict[str, np.ndarray]:
     """Every condition value the rating needs, as arrays (see the module docstring).
 
@@ -252,6 +281,8 @@ def residual(b: PostBatch, le1: np.ndarray | None = None, le2: np.ndarray | None
     (effective lengths) decide the axis of a through split whose faces were not recorded.
     """
     d1, d2, h = b.d1_mm, b.d2_mm, b.height_mm
+    if not _block_has_loss(b):  # a sound block: the gross section (same values as below, fewer steps)
+        return _sound(b)
     margin = _nz(b.decay_margin_mm)
     dec = [np.where(_nz(getattr(b, f"decay_{f}_mm")) > 0, _nz(getattr(b, f"decay_{f}_mm")) + margin, 0.0)
            for f in DEPTH_FIELDS]  # judgement margin past the probed boundary (field-practice.md §1.6)
@@ -696,7 +727,7 @@ def bench_fields(rng: np.random.Generator, n: int, d1: np.ndarray, d2: np.ndarra
         crushed_end=rng.integers(0, 4, n), bow1_mm=u(0, 20, n), bow2_mm=u(0, 20, n),
         plumb1_mm=u(0, 30, n), plumb2_mm=u(0, 30, n), offset1_mm=u(0, 15, n), offset2_mm=u(0, 15, n),
         fb_mpa=u(5, 10, n), sw_time_us=u(300, 900, n), sw_path_mm=d2, sw_sound_us=np.full(n, 400.0),
-        density_kgm3=u(400, 600, n),
+        density_kgm3=u(400, 600, n), end_contact=u(0.6, 1.0, n),
     )
 
 
