@@ -426,6 +426,10 @@ def _range_text(kind: _Kind, lo: float | None, hi: float | None) -> str:
 def _check_value(kind: _Kind, value: float, text: object, field: str, lo: float | None,
                  hi: float | None, positive: bool, nonnegative: bool, what: str = "") -> float:
     """Sign, finiteness and range checks on a parsed value; ``what`` prefixes the reason."""
+    ok = math.isfinite(value) and not (positive and value <= 0) and not (nonnegative and value < 0)
+    ok = ok and not (kind.name == "temperature" and value < -273.15)
+    if ok and not ((lo is not None and value < lo) or (hi is not None and value > hi)):
+        return value  # the common case: no message to build
     r = _range_text(kind, lo, hi)
     rng = f" (accepted range: {r})" if r else ""
     if not math.isfinite(value):

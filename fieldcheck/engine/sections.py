@@ -6,6 +6,8 @@ old stock is often full size; column-design.md §2.3).
 
 from __future__ import annotations
 
+from functools import cache
+
 import numpy as np
 
 IN = 25.4  # mm per inch, exact (NIST SP 811)
@@ -24,6 +26,7 @@ def dressed_in(nominal_in: np.ndarray, thickness_in: np.ndarray | None = None) -
     return np.where(timber | (nom <= 6), nom - 0.5, nom - 0.75)
 
 
+@cache
 def nominal_dressed_mm(a: int, b: int) -> tuple[float, float]:
     """Dressed (d1, d2) in mm for a nominal size a x b (d1 the larger)."""
     big, small = max(a, b), min(a, b)

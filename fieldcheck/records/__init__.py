@@ -11,6 +11,7 @@ errors are rated together in one engine pass.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from functools import lru_cache
 from typing import Any
 
 import numpy as np
@@ -46,6 +47,13 @@ class Parsed:
         return np.flatnonzero(self.ok)
 
 
+@lru_cache(maxsize=1 << 16)
+def _parse_cell(name: str, text: str) -> Any:
+    """A column's parser is a pure function of the text: a bulk import repeats the same cells."""
+    value = COLUMNS[name].parse(text)
+    return tuple(value) if isinstance(value, list) else value
+
+
 def parse_row(record: dict[str, str]) -> tuple[dict[str, Any], dict[str, Any], list[tuple[str, str]]]:
     """One record -> (PostBatch field values, meta, [(column, message), ...])."""
     values: dict[str, Any] = {}
@@ -56,11 +64,10 @@ def parse_row(record: dict[str, str]) -> tuple[dict[str, Any], dict[str, Any], l
         text = str(text)
         if not text.strip():
             continue
-        col = COLUMNS.get(name)
-        if col is None:
+        if name not in COLUMNS:
             continue  # unknown columns are kept in the log but not rated (e.g. a site's own notes)
         try:
-            values[name] = col.parse(text)
+            values[name] = _parse_cell(name, text)
         except ValueError as exc:
             problems.append((name, str(exc)))
     if problems:

@@ -70,6 +70,7 @@ def _density(s: str) -> float:
 
 ZONE_HELP = "full (whole height), middle (middle half), top or bottom (at that end)"
 FACES = cond.FACE_NAMES
+_OWN: list[str] = []
 for _c in (
     Column("decay_wide", "condition", "decay or insect loss: probed depth on one wide face", "1 in",
            _depth("decay_wide")),
@@ -152,6 +153,7 @@ for _c in (
            cond.DATA_LEVELS),
 ):
     register(_c)
+    _OWN.append(_c.name)
 
 
 def _kappa(level: str) -> float:
@@ -160,9 +162,11 @@ def _kappa(level: str) -> float:
 
 def condition_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
     """Condition columns -> PostBatch fields, with one-sentence checks against the section."""
+    unknown = row.get("species", "unknown") == "unknown" or row.get("grade", "unknown") == "unknown"
+    if _CONDITION_NAMES.isdisjoint(row):  # nothing recorded about the condition: the defaults
+        return {"sr_applies": unknown, "material_assumed": unknown and row.get("method", "asd") != "ec5"}
     g = lambda k, d=0.0: row.get(k, d)  # noqa: E731
-    sec = section_fields(row, {})
-    d1, d2 = sec["d1_mm"], sec["d2_mm"]
+    d1, d2 = out["_d1"], out["_d2"]  # set by builders.section_fields, which runs first
     h = row.get("height", np.nan)
     f: dict[str, Any] = {}
 
@@ -224,7 +228,6 @@ def condition_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]
     if "slope" in row:
         f["slope_n"] = row["slope"]
     f["slope_table"] = cond.SLOPE_TABLES.index(row.get("slope_table", "grading"))
-    unknown = row.get("species", "unknown") == "unknown" or row.get("grade", "unknown") == "unknown"
     f["sr_applies"] = bool(row.get("beyond_grade", unknown))
     f["material_assumed"] = unknown and row.get("method", "asd") != "ec5"
     f["split"] = cond.SPLIT_NAMES.index(row.get("split", "none"))
@@ -261,4 +264,5 @@ def condition_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]
 
 
 condition_fields.column = "condition"  # type: ignore[attr-defined]
+_CONDITION_NAMES = frozenset(_OWN)  # every column this module registers
 register_builder(condition_fields)
