@@ -419,6 +419,15 @@ def eccentric_capacity(area, s1, s2, e1, e2, bow1, bow2, fc_prime, fb1p, fb2p, f
     return lo
 
 
+ECC_FIELDS = ("offset1_mm", "offset2_mm", "bow1_mm", "bow2_mm", "plumb1_mm", "plumb2_mm")
+
+
+def _block_has_eccentricity(b: PostBatch, v: dict) -> bool:
+    """Any load offset, bow, lean, centroid shift or partial contact in this block."""
+    return (any(np.any(getattr(b, f) != 0) & ~np.isnan(getattr(b, f)).all() for f in ECC_FIELDS)
+            or bool(np.any(b.end_contact < 1.0)) or bool(np.any(v["shift1"] != 0)) or bool(np.any(v["shift2"] != 0)))
+
+
 def eccentricities(b: PostBatch, values: dict) -> tuple[np.ndarray, ...]:
     """(e1, e2, bow1, bow2) in mm: end eccentricity per axis and the mid-height bow per axis.
 
@@ -451,6 +460,16 @@ def add_checks(b: PostBatch, checks: dict, values: dict) -> None:
     checks["net_section"] = Check(
         "net_section", "crushing of the net section (loss near an end)", "NDS 2018 §3.6.3, §3.7.1", p_net, load)
     # ---- eccentric load and bow (NDS 2018 §3.9.2, §15.4.1) ------------------------------------
+    if not _block_has_eccentricity(b, v):  # centred, straight, full contact: no combined check
+        nan = np.broadcast_to(np.float64(np.nan), (n,))
+        zero = np.broadcast_to(np.float64(0.0), (n,))
+        no = np.broadcast_to(np.False_, (n,))
+        checks["eccentric"] = Check(
+            "eccentric", "combined axial load and bending (eccentricity, bow)", "NDS 2018 §3.9.2, §15.4.1",
+            nan, load)
+        v.update(ecc1=zero, ecc2=zero, bow1=zero, bow2=zero, fb_star=nan, fbe=nan, cl=nan,
+                 ecc_checked=no, ecc_wanted=no)
+        return
     e1, e2, bow1, bow2 = eccentricities(b, v)
     time_fb = np.where(lrfd, nds.KF_FB * nds.PHI_B * b.lam, b.cd)
     fb_star = b.fb_mpa * time_fb * v["cm_fb"] * v["ct_f"] * b.cf_fb * v["ci_f"] * v["sr_bending"]
@@ -547,15 +566,17 @@ def condition_flags(b: PostBatch, values: dict) -> np.ndarray:
     flags = np.zeros(b.n, dtype=np.int64)
 
     def flag(bit: int, where) -> None:
-        np.bitwise_or(flags, bit, out=flags, where=where)
+        if np.any(where):
+            np.bitwise_or(flags, bit, out=flags, where=where)
 
     mc = b.moisture_pct  # NaN compares False
     flag(F_DECAY_RISK, mc >= MC_DECAY_RISK)
     flag(F_SATURATED, mc >= MC_SATURATED)
     flag(F_SECTION_LOSS, v["loss"])
-    decay = (_nz(b.decay_1p_mm) + _nz(b.decay_1m_mm) + _nz(b.decay_2p_mm) + _nz(b.decay_2m_mm)
-             + _nz(b.hollow_mm)) > 0
-    flag(F_DECAY_FOUND, decay)
+    if _block_has_loss(b):
+        decay = (_nz(b.decay_1p_mm) + _nz(b.decay_1m_mm) + _nz(b.decay_2p_mm) + _nz(b.decay_2m_mm)
+                 + _nz(b.hollow_mm)) > 0
+        flag(F_DECAY_FOUND, decay)
     flag(F_SR_APPLIED, v["strength_ratio"] < 1.0)
     flag(F_SR_NOT_APPLIED, v["sr_recorded"] & ~b.sr_applies)
     flag(F_SLOPE_STEEP, v["slope_beyond_table"])
@@ -572,13 +593,20 @@ def condition_flags(b: PostBatch, values: dict) -> np.ndarray:
     flag(F_ECC_UNCHECKED, v["ecc_wanted"] & ~v["ecc_checked"])
     sway = v["sway"]
     flag(F_LEAN_THRUST, ~sway & ((_nz(b.plumb1_mm) != 0) | (_nz(b.plumb2_mm) != 0)))
-    sw = stress_wave(b)
+    if np.isnan(b.sw_time_us).all():  # no stress-wave readings in this block
+        nan = np.broadcast_to(np.float64(np.nan), (b.n,))
+        sw = {"sw_velocity": nan, "sw_ed_mpa": nan, "sw_ratio": nan}
+    else:
+        sw = stress_wave(b)
     v.update(sw)
     flag(F_SW_ADVANCED, sw["sw_ratio"] >= b.sw_advanced)
     flag(F_SW_SUSPECT, (sw["sw_ratio"] >= b.sw_suspect) & ~(sw["sw_ratio"] >= b.sw_advanced))
     flag(F_NO_SECTION, (v["area"] <= 0) | (v["area_net"] <= 0) | (v["area_top"] <= 0) | (v["area_bottom"] <= 0))
     flag(F_DATA_LEVEL, b.data_level >= 0)
     level = np.zeros(b.n, dtype=np.int8)
+    if not flags.any():
+        v["condition"] = level
+        return flags
     np.maximum(level, 1, out=level, where=(flags & MINOR) != 0)
     np.maximum(level, 2, out=level, where=(flags & MODERATE) != 0)
     np.maximum(level, 3, out=level, where=(flags & SEVERE) != 0)

@@ -104,7 +104,21 @@ def effective_pad_area_mm2(b: PostBatch) -> np.ndarray:
     return np.where(np.isnan(t), a, spread)
 
 
+def _block_is_plain(b: PostBatch) -> bool:
+    """No pad, soil, plate, lateral rule or shared load anywhere in this block."""
+    return (np.isnan(b.pad_area_mm2).all() and np.isnan(b.soil_kpa).all() and not b.soil_flags.any()
+            and np.isnan(b.plate_lb_mm).all() and not np.any(b.lateral_rule >= 0) and not np.any(b.shared_by > 1))
+
+
 def _ground_checks(b: PostBatch, checks: dict, values: dict) -> None:
+    if _block_is_plain(b):
+        nan = np.broadcast_to(np.float64(np.nan), (b.n,))
+        values.update(pad_area_eff=nan, soil_capacity=nan, soil_given=np.broadcast_to(np.False_, (b.n,)),
+                      lateral_n=nan, lateral_min_n=nan, lateral_thrust_n=nan, ground_plain=True)
+        checks["soil_bearing"] = Check(
+            "soil_bearing", "mudsill or pad on the soil", "IBC 2012 Table 1806.2", nan, b.load_n
+        )
+        return
     sf = b.soil_flags.astype(np.int64)
     q = b.soil_kpa
     soil_given = ~np.isnan(q) | (sf != 0)
@@ -155,6 +169,8 @@ def _ground_checks(b: PostBatch, checks: dict, values: dict) -> None:
 
 
 def _ground_flags(b: PostBatch, values: dict) -> np.ndarray:
+    if values.get("ground_plain"):
+        return np.zeros(b.n, dtype=np.int64)
     sf = b.soil_flags.astype(np.int64)
     has_pad = ~np.isnan(b.pad_area_mm2)
     soil_given = values["soil_given"]

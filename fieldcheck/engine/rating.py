@@ -183,6 +183,26 @@ class Rating:
         return out
 
 
+_ONES: dict[int, np.ndarray] = {}
+
+
+def _one(n: int) -> np.ndarray:
+    """A read-only array of ones for a block: a factor that does not apply anywhere in it."""
+    a = _ONES.get(n)
+    if a is None:
+        a = _ONES.setdefault(n, np.broadcast_to(np.float64(1.0), (n,)))
+    return a
+
+
+def _prod(first: np.ndarray, *factors: np.ndarray) -> np.ndarray:
+    """first x every factor, skipping the ones that are the block's ONE (exactly 1.0)."""
+    out = first
+    for f in factors:
+        if f is not _ONES.get(f.shape[0] if np.ndim(f) else -1):
+            out = out * f
+    return out if out is not first else first.copy()
+
+
 def _num(x: float, nd: int) -> float | None:
     x = float(x)
     return None if np.isnan(x) else round(x, nd)
@@ -243,15 +263,24 @@ def _rate_block(b: PostBatch) -> Rating:
     wet = measured & (b.moisture_pct > 19.0)  # NDS Supplement: dry service is 19 % or less
 
     # ---- adjusted design values (NDS 2018 Table 4.3.1) --------------------------------------
-    cm_fc, cm_fcp, cm_e, cm_fb = nds.wet_service_factors(
-        b.product, b.fc_mpa, b.cf_fc, b.fb_mpa, b.cf_fb, wet, b.wet_tabulated
-    )
-    ct_f, ct_e = nds.temperature_factors(b.temp_c, wet)
-    ci_f, ci_e = nds.incising_factors(b.incised)
+    # a factor that is 1.0 for the whole block is the shared ONE view and is skipped in products
+    one = _one(n)
+    if wet.any():
+        cm_fc, cm_fcp, cm_e, cm_fb = nds.wet_service_factors(
+            b.product, b.fc_mpa, b.cf_fc, b.fb_mpa, b.cf_fb, wet, b.wet_tabulated
+        )
+    else:
+        cm_fc = cm_fcp = cm_e = cm_fb = one
+    if np.isnan(b.temp_c).all():
+        ct_f = ct_e = one
+    else:
+        ct_f, ct_e = nds.temperature_factors(b.temp_c, wet)
+    ci_f, ci_e = nds.incising_factors(b.incised) if b.incised.any() else (one, one)
     # ASD: x CD (NDS 2018 §2.3.2); LRFD: x KF phi lambda (NDS 2018 Appendix N)
-    time_fc = np.where(lrfd, nds.KF_FC * nds.PHI_C * b.lam, b.cd)
-    fc_star = b.fc_mpa * cm_fc * ct_f * b.cf_fc * ci_f * time_fc  # NDS 2018 §3.7.1: Fc*
-    emin_p = b.emin_mpa * cm_e * ct_e * ci_e * np.where(lrfd, nds.KF_EMIN * nds.PHI_S, 1.0)
+    any_lrfd = bool(lrfd.any())
+    time_fc = np.where(lrfd, nds.KF_FC * nds.PHI_C * b.lam, b.cd) if any_lrfd else b.cd
+    fc_star = _prod(b.fc_mpa, cm_fc, ct_f, b.cf_fc, ci_f, time_fc)  # NDS 2018 §3.7.1: Fc*
+    emin_p = _prod(b.emin_mpa, cm_e, ct_e, ci_e, np.where(lrfd, nds.KF_EMIN * nds.PHI_S, 1.0) if any_lrfd else one)
 
     # ---- effective lengths (NDS 2018 §3.7.1.2, Appendix G) ----------------------------------
     mode = mode_index(b.bottom, b.top)
@@ -294,8 +323,9 @@ def _rate_block(b: PostBatch) -> Rating:
 
     # ---- end-grain bearing on the post (NDS 2018 §3.10.1) ------------------------------------
     # each end's residual area x contact share; a crushed or broomed end bears on part of it
-    a_top = cond["area_top"] * b.end_contact * np.where(b.crushed_end & 1, _condition.CRUSHED_AREA, 1.0)
-    a_bot = cond["area_bottom"] * b.end_contact * np.where(b.crushed_end & 2, _condition.CRUSHED_AREA, 1.0)
+    crushed = b.crushed_end.any()
+    a_top = _prod(cond["area_top"], b.end_contact, np.where(b.crushed_end & 1, _condition.CRUSHED_AREA, 1.0) if crushed else one)
+    a_bot = _prod(cond["area_bottom"], b.end_contact, np.where(b.crushed_end & 2, _condition.CRUSHED_AREA, 1.0) if crushed else one)
     a_contact = np.minimum(a_top, a_bot)
     p_end = fc_star * a_contact * kappa
 
@@ -351,7 +381,8 @@ def _rate_block(b: PostBatch) -> Rating:
     over = le_d_max > limit
 
     def flag(bit: int, where: np.ndarray) -> None:
-        np.bitwise_or(flags, bit, out=flags, where=where)
+        if where.any():
+            np.bitwise_or(flags, bit, out=flags, where=where)
 
     flag(F_NO_LOAD, ~has_load)
     flag(F_SLENDER_CONSTRUCTION, b.construction & (le_d_max > nds.LE_D_LIMIT) & ~over)
