@@ -62,7 +62,8 @@ MC_DECAY_RISK = 20.0  # % MC at or above which most decay fungi grow (Smulski 19
 MC_SATURATED = 28.0  # % MC: near fibre saturation, meters unreliable (FPL-GTR-6 [V]; flag judgement)
 HANKINSON_Q_BENDING = 0.1  # Q/P for bending at an angle to grain (Wood Handbook ch. 5 range [M])
 LE_BENDING = 1.84  # le/lu for the bending check of a post with end moments (NDS 2018 Table 3.3.3 [M])
-ECC_ITERATIONS = 16  # most Illinois steps of the interaction solve (stops once 1e-9 relative)
+ECC_ITERATIONS = 16  # most Illinois steps of the interaction solve
+ECC_RTOL = 1e-7  # stop once every bracket is this tight (relative); lo is returned, on the safe side
 DEPTH_FIELDS = ("1p", "1m", "2p", "2m")  # faces: 1p/1m the narrow faces (reduce d1), 2p/2m wide
 
 
@@ -395,14 +396,14 @@ def eccentric_capacity(area, s1, s2, e1, e2, bow1, bow2, fc_prime, fb1p, fb2p, f
     np.copyto(lo, 0.0, where=flo > 0)  # rounding guard: keep lo on the safe side
     np.copyto(flo, -1.0, where=flo > 0)
     fhi = _interaction(hi, *args)
+    out = lo  # the answer; the loop works on the posts still open and writes back when they close
+    idx = np.arange(area.shape[0])
     prev_lo = np.zeros(area.shape, dtype=bool)  # the last step moved lo
     prev_hi = np.zeros(area.shape, dtype=bool)
-    mid = np.empty_like(area)
     for _ in range(ECC_ITERATIONS):
         with np.errstate(divide="ignore", invalid="ignore"):
             x = (lo * fhi - hi * flo) / (fhi - flo)  # regula falsi
-        np.add(lo, hi, out=mid)
-        mid *= 0.5
+        mid = 0.5 * (lo + hi)
         np.copyto(x, mid, where=~((x > lo) & (x < hi)))  # outside the bracket or NaN: bisect
         fx = _interaction(x, *args)
         neg = fx <= 0.0
@@ -414,9 +415,17 @@ def eccentric_capacity(area, s1, s2, e1, e2, bow1, bow2, fc_prime, fb1p, fb2p, f
         np.multiply(fhi, 0.5, out=fhi, where=neg & prev_lo)  # Illinois: same end kept twice
         np.multiply(flo, 0.5, out=flo, where=pos & prev_hi)
         prev_lo, prev_hi = neg, pos
-        if (hi - lo <= 1e-9 * hi).all():
+        done = hi - lo <= ECC_RTOL * hi
+        if done.all():
             break
-    return lo
+        if done.mean() > 0.5:  # most have closed: keep going on the rest only
+            out[idx[done]] = lo[done]
+            keep = ~done
+            idx, lo, hi, flo, fhi = idx[keep], lo[keep], hi[keep], flo[keep], fhi[keep]
+            prev_lo, prev_hi = prev_lo[keep], prev_hi[keep]
+            args = tuple(a[keep] for a in args)
+    out[idx] = lo
+    return out
 
 
 ECC_FIELDS = ("offset1_mm", "offset2_mm", "bow1_mm", "bow2_mm", "plumb1_mm", "plumb2_mm")
