@@ -31,6 +31,38 @@ from fieldcheck.tui.form import compose_form, field_ids
 from fieldcheck.tui.plot import braille_plot
 
 TABS = ("rating", "working", "shape", "remedies", "history")
+FULL_SUMMARY_DELAY = 0.15  # seconds of no typing before the full summary (with remedies)
+
+
+def quick_summary(rating: Any) -> dict[str, Any]:
+    """The keys the rating panel shows first, straight from the rating arrays (well under a
+    millisecond); the engine's full ``summary(0)`` replaces it moments later."""
+    from fieldcheck.engine.rating import ACTION_TEXT, ACTIONS, DUE_DAYS
+
+    def num(x: Any, scale: float = 1.0) -> float | None:
+        x = float(x)
+        return None if math.isnan(x) else x / scale
+
+    checks = []
+    for name, c in rating.checks.items():
+        if math.isnan(float(c.capacity_n[0])):
+            continue
+        checks.append({"name": name, "label": c.label, "clause": c.clause,
+                       "ratio": num(c.ratio[0]), "capacity_kN": num(c.capacity_n[0], 1000.0)})
+    act = int(rating.action[0])
+    v = rating.values
+    ax = int(v["axis"][0]) if "axis" in v else 1
+    ke = v.get("ke1" if ax == 1 else "ke2")
+    return {
+        "allowable_load_kN": num(rating.capacity_n[0], 1000.0),
+        "demand_kN": num(rating.demand_n[0], 1000.0),
+        "demand_capacity_ratio": num(rating.ratio[0]),
+        "governing_check": rating.governing_name(0),
+        "action": ACTIONS[act], "action_text": ACTION_TEXT[act], "due_days": DUE_DAYS[act],
+        "checks": checks, "warnings": rating.warnings(0),
+        "effective_length_factor": None if ke is None else float(ke[0]),
+        "quick": True,
+    }
 
 
 def clean(record: dict[str, str]) -> dict[str, str]:
@@ -96,6 +128,8 @@ class PostEditor(Screen[None]):
         self.stale = False  # the rating shown is the last valid one
         self.remedies: list[dict[str, Any]] = []
         self.draft_restored = False
+        self.generation = 0
+        self._full_timer: Any = None
 
     @property
     def draft_key(self) -> str:
@@ -116,21 +150,23 @@ class PostEditor(Screen[None]):
             with VerticalScroll(id="form"):
                 yield from compose_form(COLUMNS, GROUPS, self.record)
             with TabbedContent(initial="rating", id="side"):
-                with TabPane("Rating F2", id="rating"):
-                    with VerticalScroll():
+                with TabPane("Rating", id="rating"):
+                    with VerticalScroll(id="rating-panel-scroll"):
+                        yield Static("", id="rating-head")
+                        yield Static("", id="rating-checks")
                         yield Static("", id="rating-panel")
                         yield Static("", id="cautions", classes="cautions")
-                with TabPane("Working F3", id="working"):
+                with TabPane("Work", id="working"):
                     with VerticalScroll():
                         yield Static("", id="working-panel")
-                with TabPane("Shape F4", id="shape"):
+                with TabPane("Shape", id="shape"):
                     with VerticalScroll():
                         yield Static("", id="ends-panel", markup=False)
                         yield Static("", id="plot-panel", markup=False)
-                with TabPane("Remedies F5", id="remedies"):
+                with TabPane("Fixes", id="remedies"):
                     yield Static("", id="remedy-help")
                     yield OptionList(id="remedy-list")
-                with TabPane("History F6", id="history"):
+                with TabPane("History", id="history"):
                     with VerticalScroll():
                         yield Static("", id="history-panel")
         yield Footer()
@@ -215,14 +251,14 @@ class PostEditor(Screen[None]):
             return
         if msg:
             self.errors[name] = msg
-            inp.add_class("-bad")
-            box.update(f"✖ {msg}")
-            box.add_class("-shown")
         else:
             self.errors.pop(name, None)
-            inp.remove_class("-bad")
-            box.update("")
-            box.remove_class("-shown")
+        shown = f"✖ {msg}" if msg else ""
+        if str(box.content) == shown:
+            return  # unchanged: no layout pass (the form has hundreds of widgets)
+        inp.set_class(bool(msg), "-bad")
+        box.set_class(bool(msg), "-shown")
+        box.update(shown)
 
     # -- rating ------------------------------------------------------------------------------
     def rerate(self) -> None:
@@ -246,8 +282,28 @@ class PostEditor(Screen[None]):
             return
         self.batch = parsed.batch
         self.rating = rate(parsed.batch)
-        self.summary = self.rating.summary(0)
+        self.summary = quick_summary(self.rating)
         self.stale = False
+        self.render_rating()
+        # the full summary (load combination, remedies: ~20 ms) follows once typing pauses
+        self.generation += 1
+        if self._full_timer is not None:
+            self._full_timer.stop()
+        self._full_timer = self.set_timer(FULL_SUMMARY_DELAY, self._start_full_summary)
+
+    def _start_full_summary(self) -> None:
+        self._full_timer = None
+        self.full_summary(self.rating, self.generation)
+
+    @work(thread=True, exclusive=True, group="summary", exit_on_error=False)
+    def full_summary(self, rating: Any, generation: int) -> None:
+        summary = rating.summary(0)
+        self.app.call_from_thread(self._full_done, summary, generation)
+
+    def _full_done(self, summary: dict[str, Any], generation: int) -> None:
+        if generation != self.generation or self.stale:
+            return  # typed on since: a newer rating is on its way
+        self.summary = summary
         self.render_rating()
 
     def _parses(self, name: str) -> bool:
@@ -262,20 +318,30 @@ class PostEditor(Screen[None]):
 
     def render_rating(self) -> None:
         units = self.app.units  # type: ignore[attr-defined]
-        panel = self.query_one("#rating-panel", Static)
-        lines: list[str] = []
+        width = self.query_one("#side").size.width - 4
         if self.stale:
-            bad = [n for n in self.errors]
-            lines.append("[b $warning]✖ Not rated: fix " + present.escape(", ".join(bad) or "the form")
-                         + "[/]" + (" (last good rating below)" if self.summary else ""))
-            for m in getattr(self, "combination", [])[:3]:
-                lines.append(present.escape(m))
-        if self.summary is not None:
-            width = max(30, self.query_one("#side").size.width - 4)
-            lines += present.summary_lines(self.summary, units, width)
-        elif not self.stale:
-            lines.append("Type a size and a height to rate this post.")
-        panel.update("\n".join(lines))
+            bad = ", ".join(self.errors) or "the form"
+            status = f"[b $warning]✖ NOT RATED: fix {present.escape(bad)}[/]"
+            if self.summary is not None:
+                status += " (last good below)"
+        elif self.summary is None:
+            status = "Type a size and a height to rate this post."
+        else:
+            status = "[b]✓ rated[/b] live: every valid change re-rates"
+        head = self.query_one("#rating-head", Static)
+        head.update("\n".join(present.head_lines(self.summary, units, width, status)), layout=False)
+        checks = self.query_one("#rating-checks", Static)
+        lines = present.check_lines(self.summary)
+        same = getattr(checks, "_fc_lines", None) == len(lines)
+        checks._fc_lines = len(lines)  # type: ignore[attr-defined]
+        checks.update("\n".join(lines), layout=not same)
+        more = present.detail_lines(self.summary)
+        if self.stale:
+            more = [present.escape(m) for m in self.combination[:3]] + more
+        text = "\n".join(more)
+        panel = self.query_one("#rating-panel", Static)
+        if str(panel.content) != text:
+            panel.update(text)
         self._render_remedies()
         active = self.query_one("#side", TabbedContent).active
         try:
@@ -285,6 +351,15 @@ class PostEditor(Screen[None]):
                 self._render_shape()
         except Exception as exc:  # noqa: BLE001 - a drawing problem must never lose the form
             self.notify(f"Could not draw the {active} pane: {exc}", severity="warning", markup=False)
+
+    def _update_static(self, widget: Static, text: str) -> None:
+        """Update without a layout pass when the wrapped height cannot change (a keystroke must
+        repaint within a frame; a layout pass over the whole form costs tens of ms)."""
+        width = max(1, widget.size.width)
+        shape = [max(1, -(-len(line) // width)) for line in text.split("\n")]
+        same = getattr(widget, "_fc_shape", None) == shape and widget.size.width > 0
+        widget._fc_shape = shape  # type: ignore[attr-defined]
+        widget.update(text, layout=not same)
 
     def _render_working(self) -> None:
         out = []
@@ -338,7 +413,9 @@ class PostEditor(Screen[None]):
             msg = "No remedy offered by the engine for this post yet."
         else:
             msg = "No remedy needed: the post passes." if ratio is not None else "Not rated yet."
-        self.query_one("#remedy-help", Static).update(msg)
+        help_ = self.query_one("#remedy-help", Static)
+        if str(help_.content) != msg:
+            help_.update(msg)
 
     @on(TabbedContent.TabActivated, "#side")
     def _tab(self) -> None:
@@ -354,8 +431,10 @@ class PostEditor(Screen[None]):
         tag = self.record.get("tag") or self.tag or "new post"
         state = "new, not saved" if self.member_id is None else ("unsaved changes" if self.dirty else "saved")
         mark = "✎ " if self.dirty or self.member_id is None else "✓ "
-        self.query_one("#editor-title", Static).update(
-            f"Post {present.escape(tag)} — {mark}{state}   (ctrl+s save, Esc back)")
+        title = f"Post {present.escape(tag)} — {mark}{state}   (ctrl+s save, Esc back)"
+        widget = self.query_one("#editor-title", Static)
+        if str(widget.content) != title:
+            widget.update(title, layout=False)
 
     @work(group="history", exclusive=True, exit_on_error=False)
     async def load_history(self) -> None:

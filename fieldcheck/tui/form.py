@@ -8,6 +8,8 @@ from __future__ import annotations
 from typing import Any
 
 from textual.app import ComposeResult
+from textual.geometry import Size
+from textual.widget import Widget
 from textual.containers import Horizontal, Vertical
 from textual.suggester import SuggestFromList
 from textual.widgets import Collapsible, Input, Label, Static
@@ -28,6 +30,29 @@ COMMON = {
 }
 
 
+class FieldInput(Input):
+    """An Input whose keystrokes repaint without a layout pass over the whole form.
+
+    Textual's Input stores its text width as ``virtual_size``, a reactive that asks the screen
+    for a layout on every character; with a fixed height and width (see app.tcss) nothing
+    outside the field can move, so the width is stored without that request.
+    """
+
+    def _watch_value(self, value: str) -> None:
+        self.set_reactive(Widget.virtual_size, Size(self.content_width, 1))
+        self.refresh()
+        self._suggestion = ""
+        if self.suggester and value:
+            self.run_worker(self.suggester._get_suggestion(self, value))
+        validation_result = self.validate(value) if "changed" in self.validate_on else None
+        self.post_message(self.Changed(self, value, validation_result))
+        if self._initial_value:
+            self.cursor_position = len(self.value)
+            self._initial_value = False
+        else:
+            self.selection = self.selection
+
+
 def field_ids(name: str) -> tuple[str, str]:
     return f"f-{name}", f"m-{name}"
 
@@ -46,7 +71,7 @@ def _row(col: Any, value: str) -> ComposeResult:
         suggester = None
     with Horizontal(classes="field"):
         yield Label(col.name.replace("_", " "), classes="field-name")
-        yield Input(value=value, placeholder=hint, id=fid, compact=True, tooltip=tip,
+        yield FieldInput(value=value, placeholder=hint, id=fid, compact=True, tooltip=tip,
                     suggester=suggester, select_on_focus=False)
     yield Static("", id=mid, classes="msg", markup=False)
 

@@ -109,37 +109,50 @@ def material_text(record: dict[str, str]) -> str:
     return f"{sp} {gr}" if (sp, gr) != ("unknown", "unknown") else "unknown"
 
 
-def summary_lines(summary: dict[str, Any], system: str, width: int = 34) -> list[str]:
-    """The live rating panel as content-markup lines (numbers, words and symbols, colour only
-    alongside)."""
+def head_lines(summary: dict[str, Any] | None, system: str, width: int, status: str) -> list[str]:
+    """Seven lines, always: status, action, capacity, demand, ratio bar, governing check, due.
+    A fixed height lets a keystroke repaint them without a layout pass."""
+    if summary is None:
+        return [status, "Action    —", "Capacity  —", "Demand    —", "Ratio     —", "Governs   —",
+                "Due       —"]
     kn = 1000.0
     cap = summary.get("allowable_load_kN")
     dem = summary.get("demand_kN")
     ratio = summary.get("demand_capacity_ratio")
     label = summary.get("action") or "not rated"
-    lines = [
+    due = summary.get("due_days")
+    due_text = "now" if due == 0 else (f"within {due} days" if due else "—")
+    return [
+        status,
         f"Action    {action_markup(label)}",
         f"Capacity  [b]{force(cap * kn if cap is not None else None, system)}[/b]",
         f"Demand    {force(dem * kn if dem is not None else None, system)}",
-        "Ratio     " + ratio_bar(ratio, max(8, width - 26)),
+        "Ratio     " + ratio_bar(ratio, max(8, min(30, width - 27))),
         f"Governs   {escape(_check_label(summary))}",
+        f"Due       {due_text}",
     ]
-    due = summary.get("due_days")
-    if due:
-        lines.append(f"Due       within {due} days")
+
+
+def check_lines(summary: dict[str, Any] | None) -> list[str]:
+    out = ["[b]Checks[/b] (ratio, clause)"]
+    for c in (summary or {}).get("checks") or []:
+        r = c.get("ratio")
+        mark = "✖" if (r is not None and r > 1.0) else "✓"
+        out.append(f" {mark} {ratio_text(r)} {escape(c.get('label', c.get('name', '')))} "
+                   f"({escape(c.get('clause', ''))})")
+    return out
+
+
+def detail_lines(summary: dict[str, Any] | None) -> list[str]:
+    """Wrapped text under the checks: what to do, the load case, warnings."""
+    if not summary:
+        return []
+    lines = []
     if summary.get("action_text"):
         lines.append(escape(summary["action_text"]))
-    checks = summary.get("checks") or []
-    if checks:
-        lines.append("[b]Checks[/b]")
-        for c in checks:
-            r = c.get("ratio")
-            mark = "✖" if (r is not None and r > 1.0) else "✓"
-            lines.append(f" {mark} {escape(c.get('label', c.get('name', '')))}: "
-                         f"{ratio_text(r)} ({escape(c.get('clause', ''))})")
     comb = summary.get("load_combination")
     if isinstance(comb, dict) and comb.get("name"):
-        lines.append(f"Load case {escape(comb['name'])}")
+        lines.append(f"Load case: {escape(comb['name'])}")
     warnings = summary.get("warnings") or []
     if warnings:
         lines.append(f"[b]Warnings ({len(warnings)})[/b]")

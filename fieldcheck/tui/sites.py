@@ -10,7 +10,16 @@ from textual.binding import Binding
 from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Header, Static
 
-from fieldcheck.tui.present import ACTIONS, ACTION_ORDER, escape
+from fieldcheck.tui.present import ACTION_ORDER, escape
+
+
+# short headers so the counts fit at 80 columns; the help screen spells out each symbol
+SHORT = {"make-safe-now": "✖ now", "repair-or-brace": "▲ fix", "monitor": "◔ mon",
+         "no-action": "✓ ok", "not rated": "? n/r"}
+
+
+def _cut(text: str, n: int) -> str:
+    return escape(text if len(text) <= n else text[: n - 1] + "…")
 
 
 def _load_overview(log: Any) -> dict[str, Any]:
@@ -45,11 +54,10 @@ class SitesScreen(Screen[None]):
         table = self.query_one("#visits", DataTable)
         table.add_column("Site", key="site")
         table.add_column("Visit", key="visit")
-        table.add_column("Date", key="date")
         for label in ACTION_ORDER:
-            sym, word, _ = ACTIONS[label]
-            table.add_column(f"{sym} {word}", key=label)
+            table.add_column(SHORT[label], key=label)
         table.add_column("Posts", key="total")
+        table.add_column("Date", key="date")
         self.reload()
 
     @work(exclusive=True, group="sites", exit_on_error=False)
@@ -69,9 +77,9 @@ class SitesScreen(Screen[None]):
         keep = table.cursor_row
         table.clear()
         for v, site, counts in data["rows"]:
-            cells = [escape(site.name if site else "?"), escape(v.name), v.started_at[:10]]
+            cells = [_cut(site.name if site else "?", 16), _cut(v.name, 26)]
             cells += [str(counts.get(label, 0)) for label in ACTION_ORDER]
-            cells.append(str(sum(counts.values())))
+            cells += [str(sum(counts.values())), v.started_at[:10]]
             table.add_row(*cells, key=v.id)
         if table.row_count:
             table.move_cursor(row=min(keep, table.row_count - 1))

@@ -17,9 +17,9 @@ from fieldcheck.tui.present import (
 )
 
 COLUMNS = (  # key, title
-    ("tag", "Tag"), ("location", "Location"), ("section", "Section"), ("height", "Height"),
-    ("material", "Material"), ("ends", "Ends"), ("load", "Load"), ("ratio", "Ratio"),
-    ("action", "Action"),
+    ("tag", "Tag"), ("ratio", "Ratio"), ("action", "Action"), ("location", "Location"),
+    ("section", "Section"), ("height", "Height"), ("material", "Material"), ("ends", "Ends"),
+    ("load", "Load"),
 )
 SORTS = ("worst", "tag", "location", "action", "height")
 
@@ -139,10 +139,13 @@ class VisitScreen(Screen[None]):
             action = action_word(p.action_label)
             if p.conflict:
                 action = "⚡ " + action
+            loc = p.location or ""
+            if len(loc) > 24:
+                loc = loc[:23] + "…"
             table.add_row(
-                escape(tag), escape(p.location or ""), escape(section_text(p.record)),
+                escape(tag), ratio_text(p.ratio), action, escape(loc), escape(section_text(p.record)),
                 escape(p.record.get("height", "—")), escape(material_text(p.record)),
-                escape(ends_text(p.record)), force(p.demand_n, units), ratio_text(p.ratio), action,
+                escape(ends_text(p.record)), force(p.demand_n, units),
                 key=p.member_id,
             )
         if select is not None:
