@@ -415,10 +415,12 @@ def eccentric_capacity(area, s1, s2, e1, e2, bow1, bow2, fc_prime, fb1p, fb2p, f
         np.multiply(fhi, 0.5, out=fhi, where=neg & prev_lo)  # Illinois: same end kept twice
         np.multiply(flo, 0.5, out=flo, where=pos & prev_hi)
         prev_lo, prev_hi = neg, pos
+        # a post stops as soon as its own bracket is tight, so its answer never depends on which
+        # other posts share the batch (the single-post path gives the same number)
         done = hi - lo <= ECC_RTOL * hi
         if done.all():
             break
-        if done.mean() > 0.5:  # most have closed: keep going on the rest only
+        if done.any():
             out[idx[done]] = lo[done]
             keep = ~done
             idx, lo, hi, flo, fhi = idx[keep], lo[keep], hi[keep], flo[keep], fhi[keep]
