@@ -19,6 +19,8 @@ import numpy as np
 from fieldcheck.engine.batch import PostBatch, make_batch
 from fieldcheck.records.builders import BUILDERS, RowError
 from fieldcheck.records.columns import COLUMNS, GROUPS, Column
+
+_UNRATED = frozenset(("tag", "location", "notes"))  # kept in the log, not seen by the engine
 from fieldcheck.records import load_columns as _load_columns  # noqa: F401,E402  (tributary loads, ground)
 
 __all__ = ["COLUMNS", "GROUPS", "Column", "FieldError", "Parsed", "parse_records", "rate_records", "parse_row"]
@@ -84,30 +86,45 @@ def parse_row(record: dict[str, str]) -> tuple[dict[str, Any], dict[str, Any], l
     return fields, meta, []
 
 
+def _rated_key(rec: dict[str, str]) -> tuple:
+    """What the engine sees of a record: every rated column's text (tags and notes left out)."""
+    return tuple(sorted((k, str(v)) for k, v in rec.items() if k not in _UNRATED and v is not None and str(v).strip()))
+
+
 def parse_records(rows: list[dict[str, str]]) -> Parsed:
+    """Rows -> one PostBatch. Identical records (a row of identical shores, a re-rated log) are
+    parsed once: the builders run per distinct record, the arrays are gathered by index."""
     errors: list[FieldError] = []
-    ok = np.zeros(len(rows), dtype=bool)
-    per_field: dict[str, list[Any]] = {}
-    metas: list[dict[str, Any]] = []
-    good: list[dict[str, Any]] = []
+    uid_of: dict[tuple, int] = {}
+    uniq: list[tuple[dict[str, Any], dict[str, Any], list[tuple[str, str]]]] = []
+    row_uid = np.empty(len(rows), dtype=np.intp)
     for i, rec in enumerate(rows):
-        fields, meta, problems = parse_row(rec)
+        key = _rated_key(rec)
+        u = uid_of.get(key)
+        if u is None:
+            u = uid_of[key] = len(uniq)
+            uniq.append(parse_row(rec))
+        row_uid[i] = u
+        problems = uniq[u][2]
         if problems:
             errors.extend(FieldError(i, c, m) for c, m in problems)
-            continue
-        ok[i] = True
-        good.append(fields)
-        metas.append(meta)
-    n = len(good)
-    if n == 0:
+    bad_u = np.array([bool(p) for _, _, p in uniq], dtype=bool)
+    ok = ~bad_u[row_uid] if len(rows) else np.zeros(0, dtype=bool)
+    good_rows = row_uid[ok]
+    metas = [uniq[u][1] for u in good_rows.tolist()]
+    if good_rows.size == 0:
         return Parsed(make_batch(n=0), errors, ok, metas)
-    keys = set().union(*good)
-    from fieldcheck.engine.batch import _DEFAULTS
+    # arrays over the distinct good records, then gathered per row
+    good_u = np.flatnonzero(~bad_u)
+    remap = np.full(len(uniq), -1, dtype=np.intp)
+    remap[good_u] = np.arange(good_u.size)
+    fields_u = [uniq[u][0] for u in good_u.tolist()]
+    keys = set().union(*fields_u)
+    from fieldcheck.engine.batch import _DEFAULTS, _DTYPES
 
-    for k in keys:
-        d = _DEFAULTS[k]
-        per_field[k] = [g.get(k, d) for g in good]
-    return Parsed(make_batch(n=n, **per_field), errors, ok, metas)
+    per_u = {k: np.asarray([f.get(k, _DEFAULTS[k]) for f in fields_u], dtype=_DTYPES[k]) for k in keys}
+    take = remap[good_rows]
+    return Parsed(make_batch(n=int(take.size), **{k: a[take] for k, a in per_u.items()}), errors, ok, metas)
 
 
 def rate_records(rows: list[dict[str, str]]):
