@@ -237,3 +237,33 @@ async def test_every_bound_action_is_in_the_command_palette(db: Path) -> None:
         for needed in ("Open", "Add", "Copy", "Withdraw", "Sort", "Worst", "Filter", "Help",
                        "Sync", "Report", "Conflicts"):
             assert needed in titles, needed
+
+
+async def test_report_and_sync_from_the_interface(db: Path, tmp_path: Path) -> None:
+    pytest.importorskip("fieldcheck.report.html")
+    pytest.importorskip("fieldcheck.store.sync")
+    app = FieldcheckApp(db=db)
+    async with app.run_test(size=(100, 30)) as pilot:
+        await settle(app, pilot)
+        await pilot.press("enter")
+        await settle(app, pilot)
+        await pilot.press("f10")
+        await settle(app, pilot)
+        out = tmp_path / "visit.html"
+        field = app.screen.query_one("#report-path", Input)
+        field.value = str(out)
+        field.focus()
+        await pilot.press("enter")
+        await settle(app, pilot)
+        assert out.exists() and out.stat().st_size > 0
+        assert "Report written" in app.last_summary
+        await pilot.press("escape")
+        await settle(app, pilot)
+        await pilot.press("f9")
+        await settle(app, pilot)
+        office = app.screen.query_one("#office", Input)
+        office.value = str(tmp_path / "office.fieldcheck")
+        office.focus()
+        await pilot.press("enter")
+        await settle(app, pilot)
+        assert app.last_summary and "failed" not in app.last_summary.lower(), app.last_summary
