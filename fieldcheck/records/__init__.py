@@ -88,7 +88,9 @@ def parse_row(record: dict[str, str]) -> tuple[dict[str, Any], dict[str, Any], l
 
 def _rated_key(rec: dict[str, str]) -> tuple:
     """What the engine sees of a record: every rated column's text (tags and notes left out)."""
-    return tuple(sorted((k, str(v)) for k, v in rec.items() if k not in _UNRATED and v is not None and str(v).strip()))
+    items = [(k, v) for k, v in rec.items() if v and k not in _UNRATED]  # keys are unique: v never compared
+    items.sort()
+    return tuple(items)
 
 
 def parse_records(rows: list[dict[str, str]]) -> Parsed:
