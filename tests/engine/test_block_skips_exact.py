@@ -46,3 +46,21 @@ def test_damaged_post_rates_the_same_in_any_company():
     mixed = rate(parse_records([*SOUND, EVERYTHING, *SOUND]).batch)
     assert alone.capacity_n[0] == mixed.capacity_n[3]
     assert alone.governing[0] == mixed.governing[3]
+
+
+def test_large_batches_in_blocks_match_one_pass(monkeypatch):
+    from fieldcheck.engine import rating as rating_mod
+
+    rows = [dict(SOUND[i % 3]) for i in range(50)] + [EVERYTHING] * 3 + [dict(SOUND[1]) for _ in range(30)]
+    batch = parse_records(rows).batch
+    whole = rating_mod.rate(batch)
+    monkeypatch.setattr(rating_mod, "BLOCK", 16)  # 83 posts in blocks of 16 on two threads
+    blocks = rating_mod.rate(batch)
+    assert blocks.partial
+    np.testing.assert_array_equal(whole.capacity_n, blocks.capacity_n)
+    np.testing.assert_array_equal(whole.ratio, blocks.ratio)
+    np.testing.assert_array_equal(whole.action, blocks.action)
+    np.testing.assert_array_equal(whole.flags, blocks.flags)
+    for i in (0, 51, 70):
+        assert whole.summary(i) == blocks.summary(i)
+        assert [s.value for s in whole.working(i)] == [s.value for s in blocks.working(i)]
