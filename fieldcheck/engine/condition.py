@@ -537,7 +537,7 @@ F_CRUSHING = _r.new_flag(30, "Crushing in progress: make safe now (clear the are
 F_SETTLING = _r.new_flag(31, "Sill or pad settling: make safe now (clear the area, call the engineer).")
 F_MOVING = _r.new_flag(32, "Post leaning or moving more than before: make safe now.")
 F_ECCENTRIC = _r.new_flag(33, "Eccentric load or bow: combined axial load and bending checked "
-                              "(NDS 2018 §3.9.2, §15.4.1).")
+                              "(NDS 2018 §3.9.2, §15.4.1; EN 1995-1-1 §6.3.2(3) for EC5 ratings).")
 F_ECC_UNCHECKED = _r.new_flag(34, "Eccentricity or bow recorded but the combined check was not made (no "
                                   "bending value Fb for this method): the capacity shown is for a centred load.")
 F_LEAN_THRUST = _r.new_flag(35, "Out of plumb with both ends held: no bending added, but the bracing and the "

@@ -44,12 +44,55 @@ def apply_ec5(b: PostBatch, checks: dict, values: dict) -> None:
                                          fc90k, b.kmod, b.gamma_m, a_mm=np.nan, l1_mm=np.nan)
         checks[key].capacity_n = np.where(m, br.n_rd, checks[key].capacity_n)
         checks[key].clause = _mixed(m, checks[key].clause, "EN 1995-1-1 §6.1.5")
+    _combined(b, checks, values, m, col, kappa)
     values.update(
         ec5_mask=m, ec5_lam_rel1=col.lam_rel1, ec5_lam_rel2=col.lam_rel2, ec5_kc1=col.kc1, ec5_kc2=col.kc2,
         ec5_fc0d=col.fc0d, ec5_beta_c=col.beta_c,
     )
     v["cp"] = np.where(m, kc_gov, v["cp"])
     v["axis"] = np.where(m, np.where(axis2, 2, 1), v["axis"]).astype(np.int8)
+
+
+def _combined(b: PostBatch, checks: dict, v: dict, m: np.ndarray, col, kappa: np.ndarray) -> None:
+    """Eccentricity and bow of the condition inputs, checked by EN 1995-1-1 §6.3.2(3).
+
+    The end eccentricity plus the measured bow (judgement: first-order moments at mid-height, taken
+    together, conservative) give sigma_m = N e / W on the residual section. With lambda_rel > 0.3 on
+    an axis Eq. 6.23/6.24 are linear in N, so the largest N is 1 / (the sum of the terms per unit N);
+    otherwise Eq. 6.19/6.20 (§6.2.4) are quadratic in N, solved in closed form.
+    """
+    wanted = np.asarray(v.get("ecc_wanted", False)) & m
+    if not np.any(wanted):
+        return
+    idx = np.flatnonzero(wanted)
+    e1 = (np.asarray(v["ecc1"]) + np.asarray(v["bow1"]))[idx]
+    e2 = (np.asarray(v["ecc2"]) + np.asarray(v["bow2"]))[idx]
+    area = v["area"][idx]
+    fmd = ec5.bending_design_strength(b.fb_mpa[idx] * v.get("sr_bending", np.ones(b.n))[idx], b.kmod[idx],
+                                      b.gamma_m[idx])  # EN 1995-1-1 §2.4.1, k_h = 1 (conservative)
+    km = ec5.km(b.shape[idx])  # EN 1995-1-1 §6.1.6(2)
+    fc0d = col.fc0d[idx]
+    b1 = e1 / (v["s1"][idx] * fmd)  # sigma_m,y / f_m,y,d per unit N
+    b2 = e2 / (v["s2"][idx] * fmd)
+    kc1, kc2 = col.kc1[idx], col.kc2[idx] * b.kf[idx]
+    # EN 1995-1-1 Eq. 6.23 / 6.24: N (1/(A kc fc0d) + ...) = 1
+    n1 = 1.0 / (1.0 / (area * kc1 * fc0d) + b1 + km * b2)
+    n2 = 1.0 / (1.0 / (area * kc2 * fc0d) + km * b1 + b2)
+    # EN 1995-1-1 Eq. 6.19 / 6.20 (no buckling): (N/(A fc0d))^2 + N (...) = 1
+    a = 1.0 / (area * fc0d) ** 2
+    q1, q2 = b1 + km * b2, km * b1 + b2
+    s1 = 2.0 / (q1 + np.sqrt(q1 * q1 + 4.0 * a))
+    s2 = 2.0 / (q2 + np.sqrt(q2 * q2 + 4.0 * a))
+    short = (col.lam_rel1[idx] <= ec5.LAM_REL_LIMIT) & (col.lam_rel2[idx] <= ec5.LAM_REL_LIMIT)
+    n_rd = np.where(short, np.minimum(s1, s2), np.minimum(n1, n2)) * kappa[idx]
+    c = checks["eccentric"]
+    cap = np.array(c.capacity_n, dtype=np.float64)  # a writable copy (may be a shared view)
+    cap[idx] = n_rd
+    c.capacity_n = cap
+    c.clause = _mixed(m, c.clause, "EN 1995-1-1 §6.3.2(3), §6.2.4")
+    checked = np.array(v["ecc_checked"], dtype=bool)
+    checked[idx] = True
+    v["ecc_checked"] = checked
 
 
 def _mixed(mask: np.ndarray, nds_clause: str, ec5_clause: str) -> str:
