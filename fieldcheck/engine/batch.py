@@ -63,6 +63,13 @@ class PostBatch:
     lu1_mm: np.ndarray = _f()  # unbraced length about axis 1 (NaN: the full height)
     lu2_mm: np.ndarray = _f()
     braced1: np.ndarray = _b()  # a brace point lies between the ends in axis 1
+    # the first two brace heights per axis (mm from the bottom; NaN none), for the stability solver
+    # when an end is a spring or free to sway; more braces only shorten lu (a solver given fewer
+    # braces than there are errs on the safe side)
+    brace1a_mm: np.ndarray = _f()
+    brace1b_mm: np.ndarray = _f()
+    brace2a_mm: np.ndarray = _f()
+    brace2b_mm: np.ndarray = _f()
     braced2: np.ndarray = _b()
 
     # --- ends (NDS 2018 Appendix G)

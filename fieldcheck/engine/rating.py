@@ -301,6 +301,20 @@ def _rate_block(b: PostBatch) -> Rating:
     # between brace points a braced (no-sway) segment is taken as pinned-pinned, Ke = 1.0
     ke1 = np.where(np.isnan(b.ke1), np.where(b.braced1 & ~sway, 1.0, k_ends), b.ke1)
     ke2 = np.where(np.isnan(b.ke2), np.where(b.braced2 & ~sway, 1.0, k_ends), b.ke2)
+    # braces on a post that sways or has spring ends: solved with the braces (stability.py), K
+    # over the full height, with the NDS margins of the bracketing ideal cases (design_k)
+    solve_braced = (b.braced1 | b.braced2) & (sway | springs) & np.isnan(b.ke1) & np.isnan(b.ke2)
+    braced_solved = np.zeros(n, dtype=bool)
+    if solve_braced.any():
+        from fieldcheck.engine.spring_ends import braced_ke
+
+        for axis, ke_ax, lu_ax, braced_ax in ((1, ke1, lu1, b.braced1), (2, ke2, lu2, b.braced2)):
+            idx = np.flatnonzero(solve_braced & braced_ax)
+            if idx.size:
+                kd, _ = braced_ke(b, idx, axis)
+                good = ~np.isnan(kd)
+                ke_ax[idx[good]], lu_ax[idx[good]] = kd[good], h[idx[good]]
+                braced_solved[idx[good]] = True
     # ---- the post as found: residual section and strength ratios (engine/condition.py) ------
     # loss in the middle part enters the stability check through d_eff = sqrt(12 I / A);
     # knots and slope reduce Fc* by the lowest strength ratio (exactly 1.0 and d for a sound post)
@@ -395,7 +409,7 @@ def _rate_block(b: PostBatch) -> Rating:
     flag(F_CAP_UNCHECKED, np.isnan(b.top_fc_perp_mpa))
     flag(F_SILL_UNCHECKED, np.isnan(b.bottom_fc_perp_mpa))
     flag(F_THEORETICAL_K, b.theoretical_k)
-    flag(F_SWAY_BRACES, sway & (b.braced1 | b.braced2))
+    flag(F_SWAY_BRACES, sway & (b.braced1 | b.braced2) & ~braced_solved)
     flag(F_MECHANISM, mode == -1)
     flag(F_BUILT_UP, b.kf < 1.0)
     for hook in FLAG_HOOKS:

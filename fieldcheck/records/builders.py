@@ -90,6 +90,10 @@ def height_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
             except ValueError as exc:
                 raise RowError(col, str(exc)) from None
             f[f"braced{axis}"] = True
+            first = sorted(pts)[:2]
+            f[f"brace{axis}a_mm"] = first[0]
+            if len(first) > 1:
+                f[f"brace{axis}b_mm"] = first[1]
     return f
 
 

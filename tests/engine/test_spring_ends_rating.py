@@ -97,3 +97,26 @@ def test_brace_curve_square_post_one_axis_does_not_help():
     parsed = parse_records([BASE])
     c = capacity_vs_brace(parsed.batch, np.array([0.25, 0.5, 0.75]), axis=2)
     assert c[0] == pytest.approx([cap()] * 3)
+
+
+def test_braces_on_a_swaying_post_feed_the_solver():
+    # fixed base, free top, braced at mid-height in both axes: the solver sees the brace, so the
+    # capacity lies between the unbraced flagpole (NDS case (e)) and a braced fixed-pinned post
+    flag = cap(bottom="fixed", top="free")
+    braced = cap(bottom="fixed", top="free", brace_weak="4ft", brace_strong="4ft")
+    assert flag < braced < cap(bottom="fixed", top="pinned")
+    r, _ = rate_records([dict(BASE, bottom="fixed", top="free", brace_weak="4ft", brace_strong="4ft")])
+    assert not any("Braces ignored" in w for w in r.warnings(0))
+    # braced in one axis only: the other axis keeps the flagpole value (NDS 2018 §3.7.1.1)
+    r, _ = rate_records([dict(BASE, bottom="fixed", top="free", brace_weak="4ft")])
+    assert r.ke1[0] == pytest.approx(2.10) and r.ke2[0] < 2.10
+
+
+def test_braces_with_spring_ends_and_pinned_posts():
+    # pinned-pinned with a mid brace: Ke 1.0 on the half-height segment (NDS 2018 §3.7.1.1)
+    r, _ = rate_records([dict(BASE, brace_weak="4ft", brace_strong="4ft")])
+    assert r.ke1[0] == 1.0 and r.lu1[0] == pytest.approx(48 * 25.4)
+    # spring ends with a mid brace: solved over the full height, never weaker than Ke 1 on the
+    # segment less the springs' help, never stronger than fixed ends on the segment
+    springs = cap(top_ratio="2", bottom_ratio="2", brace_weak="4ft", brace_strong="4ft")
+    assert cap(brace_weak="4ft", brace_strong="4ft") <= springs * (1 + 1e-9)
