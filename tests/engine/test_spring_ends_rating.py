@@ -120,3 +120,15 @@ def test_braces_with_spring_ends_and_pinned_posts():
     # segment less the springs' help, never stronger than fixed ends on the segment
     springs = cap(top_ratio="2", bottom_ratio="2", brace_weak="4ft", brace_strong="4ft")
     assert cap(brace_weak="4ft", brace_strong="4ft") <= springs * (1 + 1e-9)
+
+
+def test_brace_curve_for_a_flagpole_uses_the_solver():
+    # a brace moved up a fixed-free post: capacity rises as it nears the free top (mechanics)
+    parsed = parse_records([dict(BASE, bottom="fixed", top="free")])
+    c = capacity_vs_brace(parsed.batch, np.array([0.3, 0.6, 0.9]), axis=2)[0]
+    one_axis = cap(bottom="fixed", top="free")  # the unbraced axis still governs a square post
+    assert (c == pytest.approx([one_axis] * 3))
+    parsed = parse_records([dict(BASE, bottom="fixed", top="free", brace_strong="7ft 6in")])
+    c = capacity_vs_brace(parsed.batch, np.array([0.2, 0.5, 0.9]), axis=2)[0]
+    assert c[0] <= c[1] <= c[2] and c[0] < c[2]
+    assert c[0] > one_axis
