@@ -15,4 +15,5 @@ COMMANDS: dict[str, tuple[str, str]] = {
     "report": ("report", "write the survey report as one self-contained HTML file"),
     "sync": ("sync", "send this log to the office and take back what is new"),
     "check": ("check", "integrity check of a survey log"),
+    "rerate": ("rerate", "re-rate every current post of a log with this engine, in one pass"),
 }
