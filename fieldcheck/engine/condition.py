@@ -512,7 +512,7 @@ def add_checks(b: PostBatch, checks: dict, values: dict) -> None:
 # Flags, escalations, condition level
 # =============================================================================================
 F_DECAY_RISK = _r.new_flag(18, "Moisture 20 % or more: decay risk. Probe for decay and find the water source "
-                               "(judgement, field-practice.md §1.9).")
+                               "(judgement; most decay fungi need about 20 % MC).")
 F_SATURATED = _r.new_flag(19, "Moisture 28 % or more: near fibre saturation the meter reads unreliably; treat "
                               "the post as wet and probe it thoroughly (judgement).")
 F_SECTION_LOSS = _r.new_flag(20, "Section loss deducted: the checks use the residual section (decayed, insect-"
@@ -652,7 +652,7 @@ def reductions(r, i: int) -> list[dict]:
             f"area {v['area'][i] / gross:.3f} of gross; d_eff {_mm(v['d_eff1'][i])} x {_mm(v['d_eff2'][i])}; "
             f"centroid shift {_mm(v['shift1'][i])}, {_mm(v['shift2'][i])}; decay margin {_mm(b.decay_margin_mm[i])}"
             " (judgement)", v["area"][i] / gross,
-            "field-practice.md §1.6, §1.10 (char + 7 mm, EN 1995-1-2 §4.2.2 from memory); NDS 2018 §3.6.3 [M]")
+            "common practice: decayed wood has no strength; char + 7 mm (EN 1995-1-2 §4.2.2, from memory); NDS 2018 §3.6.3 (from memory)")
         add("net section (all losses together)", f"area {v['area_net'][i] / gross:.3f} of gross",
             v["area_net"][i] / gross, "NDS 2018 §3.6.3 as remembered")
     for end, key in (("top", "a_top"), ("bottom", "a_bottom")):
@@ -660,10 +660,10 @@ def reductions(r, i: int) -> list[dict]:
         if f < 1.0:
             add(f"bearing area at the {end}", "residual end area x contact share"
                 + (" x 0.5 crushed end (judgement)" if b.crushed_end[i] & (1 if end == "top" else 2) else ""),
-                f, "NDS 2018 §3.10.1; field-practice.md §1.8")
+                f, "NDS 2018 §3.10.1; judgement for partial contact")
     if int(v["split_axis"][i]):
         add("through split", f"halves act separately: I about axis {int(v['split_axis'][i])} / 4", 0.25,
-            "mechanics, field-practice.md §1.4")
+            "mechanics: two halves acting separately, I / 4")
     if v["strength_ratio"][i] < 1.0 or v["sr_bending"][i] < 1.0:
         tname = SLOPE_TABLES[int(b.slope_table[i])]
         src = "ASTM D245 grading table, from memory" if tname == "grading" else "Wood Handbook Table 5-12"
@@ -673,7 +673,7 @@ def reductions(r, i: int) -> list[dict]:
         if np.isfinite(b.slope_n[i]):
             parts.append(f"slope 1 in {b.slope_n[i]:g} ({tname} table, {src}): {v['sr_slope'][i]:.3f}")
         add("strength ratio on Fc (lowest, not the product)", "; ".join(parts), v["strength_ratio"][i],
-            "ASTM D245 principle (from memory); field-practice.md §1.2, §1.3")
+            "ASTM D245 principle (from memory); Wood Handbook Table 5-12")
         add("strength ratio on Fb", "lowest of knot and slope (bending column)", v["sr_bending"][i],
             "ASTM D245 principle (from memory)")
     if v["cm_fc"][i] < 1.0:
@@ -702,7 +702,7 @@ def summary_keys(r, i: int, out: dict) -> None:
         out["stress_wave"] = {
             "velocity_m_s": round(float(v["sw_velocity"][i]), 1),
             "dynamic_e_mpa": _num(v["sw_ed_mpa"][i]), "time_ratio": _num(v["sw_ratio"][i]),
-            "note": "E_d is an indicator, not a design value (field-practice.md §2)",
+            "note": "E_d is an indicator, not a design value (common practice)",
         }
 
 
@@ -719,14 +719,14 @@ def working_lines(r, i: int) -> list:
     if bool(v["loss"][i]):
         s.append(Step("Residual section (middle part): A, I1, I2",
                       f"{v['area'][i]:,.0f} mm2, {v['res_i1'][i]:.4g} mm4, {v['res_i2'][i]:.4g} mm4",
-                      "field-practice.md §1.6; decayed and charred wood has no strength"))
+                      "common practice: decayed and charred wood has no strength"))
         s.append(Step("d_eff = sqrt(12 I / A) per axis", f"{_mm(v['d_eff1'][i])}, {_mm(v['d_eff2'][i])}",
                       "mechanics; NDS 2018 §3.6.3 net section in Cp [M]"))
         s.append(Step("Net section (all losses), end areas top / bottom",
                       f"{v['area_net'][i]:,.0f} / {v['area_top'][i]:,.0f} / {v['area_bottom'][i]:,.0f} mm2",
                       "NDS 2018 §3.6.3 [M], §3.10.1"))
     if int(v["split_axis"][i]):
-        s.append(Step("Through split: I / 4", f"axis {int(v['split_axis'][i])}", "field-practice.md §1.4"))
+        s.append(Step("Through split: I / 4", f"axis {int(v['split_axis'][i])}", "mechanics: two halves acting separately"))
     if v["sr_recorded"][i]:
         tname = SLOPE_TABLES[int(b.slope_table[i])]
         applied = "applied" if b.sr_applies[i] else "not applied (graded member; grade allows for it)"
@@ -741,14 +741,14 @@ def working_lines(r, i: int) -> list:
                       f"{b.knowledge[i]:.2f}", "ASCE 41 data collection (secondary); judgement"))
     if v["ecc_checked"][i]:
         s.append(Step("Eccentricity e1, e2; bow at mid-height", f"{_mm(v['ecc1'][i])}, {_mm(v['ecc2'][i])}; "
-                      f"{_mm(v['bow1'][i])}, {_mm(v['bow2'][i])}", "column-design.md §4.4; judgement"))
+                      f"{_mm(v['bow1'][i])}, {_mm(v['bow2'][i])}", "initially curved bar (Timoshenko & Gere ch. 1); judgement"))
         s.append(Step("Fb* (Fb x factors x strength ratio), CL, FbE",
                       f"{v['fb_star'][i]:.3f} MPa, {v['cl'][i]:.4f}, {v['fbe'][i]:.4g} MPa", "NDS 2018 §3.3.3"))
     if np.isfinite(v["sw_velocity"][i]):
         s.append(Step("Stress wave: v = path / time; E_d = rho v^2; time / sound time",
                       f"{v['sw_velocity'][i]:,.0f} m/s; {v['sw_ed_mpa'][i]:,.0f} MPa; {v['sw_ratio'][i]:.2f}",
-                      "field-practice.md §2 (thresholds from memory)"))
-    s.append(Step("Condition (what was seen)", CONDITIONS[int(v["condition"][i])], "field-practice.md §6.2"))
+                      "stress-wave timing practice (thresholds from memory)"))
+    s.append(Step("Condition (what was seen)", CONDITIONS[int(v["condition"][i])], "judgement: what was seen, kept apart from the action"))
     return s
 
 
