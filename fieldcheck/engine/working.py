@@ -34,7 +34,7 @@ def working_steps(r: Rating, i: int) -> list[Step]:
     add = s.append
     add(Step("Method", METHOD_NAMES[method].upper() + ("" if method == EC5 else " (NDS 2018)"), ""))
     add(Step("Section d1 x d2 (measured or dressed)", f"{_mm(b.d1_mm[i])} x {_mm(b.d2_mm[i])}", "NDS 2018 §3.7.1.3"))
-    add(Step("Area A", f"{v['area'][i]:,.0f} mm2 ({v['area'][i] / IN**2:.3f} in2)", ""))
+    add(Step("Area A used by the column check", f"{v['area'][i]:,.0f} mm2 ({v['area'][i] / IN**2:.3f} in2)", ""))
     for key, label in extra_section_steps():
         if key in v:
             add(Step(label, f"{v[key][i]:.4g}", ""))
