@@ -18,8 +18,9 @@ from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, VerticalScroll
 from textual.screen import Screen
+from textual.css.query import NoMatches
 from textual.widgets import (
-    Footer, Header, Input, OptionList, Static, TabbedContent, TabPane,
+    Collapsible, Footer, Header, Input, OptionList, Static, TabbedContent, TabPane,
 )
 from textual.widgets.option_list import Option
 
@@ -27,7 +28,7 @@ from fieldcheck.engine.rating import rate
 from fieldcheck.records import COLUMNS, GROUPS, parse_records
 from fieldcheck.tui import present
 from fieldcheck.tui.drawing import ends_drawing
-from fieldcheck.tui.form import compose_form, field_ids
+from fieldcheck.tui.form import FieldGroup, compose_form, field_ids, group_path
 from fieldcheck.tui.plot import braille_plot
 
 TABS = ("rating", "working", "shape", "remedies", "history")
@@ -130,6 +131,8 @@ class PostEditor(Screen[None]):
         self.draft_restored = False
         self.generation = 0
         self._full_timer: Any = None
+        self._msg_boxes: dict[str, Static] = {}  # column -> its message line, once mounted
+        self._detail_stale: bool | None = None  # stale state when the detail panel was drawn
 
     @property
     def draft_key(self) -> str:
@@ -192,11 +195,15 @@ class PostEditor(Screen[None]):
     # -- typing ------------------------------------------------------------------------------
     @on(Input.Changed)
     def _changed(self, event: Input.Changed) -> None:
-        iid = event.input.id or ""
+        self.field_edited(event.input, event.value)  # already done, unless set from code
+
+    def field_edited(self, inp: Input, text: str) -> None:
+        """A field's value changed: called by the field itself (form.FieldInput), so the
+        rating is repainted in the same frame as the keystroke."""
+        iid = inp.id or ""
         if not iid.startswith("f-"):
             return
         name = iid[2:]
-        text = event.value
         if self.record.get(name, "") == text:
             return
         if name != self.last_field:
@@ -243,22 +250,66 @@ class PostEditor(Screen[None]):
     def _show_error(self, name: str, msg: str) -> None:
         if name not in COLUMNS:
             return
-        fid, mid = field_ids(name)
-        try:
-            inp = self.query_one(f"#{fid}", Input)
-            box = self.query_one(f"#{mid}", Static)
-        except Exception:  # noqa: BLE001 - a column registered after the form was built
-            return
         if msg:
             self.errors[name] = msg
         else:
             self.errors.pop(name, None)
+        self._paint_error(name)
+
+    def _paint_error(self, name: str) -> None:
+        """Show the column's message under its field (if the field is built yet); unchanged
+        messages cost nothing, so a keystroke in a good field asks for no layout."""
+        fid, mid = field_ids(name)
+        msg = self.errors.get(name, "")
         shown = f"✖ {msg}" if msg else ""
+        box = self._msg_boxes.get(name)
+        if box is None:
+            if not msg:
+                return
+            try:
+                inp = self.query_one(f"#{fid}", Input)
+            except NoMatches:
+                return  # its section is not built yet: shown when it is opened
+            row = inp.parent
+            box = Static(shown, id=mid, classes="msg -shown", markup=False)
+            self._msg_boxes[name] = box
+            inp.set_class(True, "-bad")
+            row.parent.mount(box, after=row)  # type: ignore[union-attr]
+            return
         if str(box.content) == shown:
-            return  # unchanged: no layout pass (the form has hundreds of widgets)
-        inp.set_class(bool(msg), "-bad")
+            return
+        try:
+            self.query_one(f"#{fid}", Input).set_class(bool(msg), "-bad")
+        except NoMatches:
+            pass
         box.set_class(bool(msg), "-shown")
         box.update(shown)
+
+    @on(Collapsible.Expanded)
+    async def _opened(self, event: Collapsible.Expanded) -> None:
+        group = event.collapsible
+        if isinstance(group, FieldGroup) and await group.build(self.record):
+            for name in group.names:
+                if name in self.errors:
+                    self._paint_error(name)
+
+    def _reveal(self, name: str) -> None:
+        """Open the sections holding the field of ``name`` (building them if needed)."""
+        gid, *rest = group_path(COLUMNS, name)
+        try:
+            outer = self.query_one(f"#{gid}", FieldGroup)
+        except NoMatches:
+            return
+        if not outer.built or outer.collapsed:
+            outer.collapsed = False  # built from self.record, its "more…" open if it holds a value
+            if not outer.built:
+                return
+        for more_id in rest:
+            try:
+                more = outer.query_one(f"#{more_id}", FieldGroup)
+            except NoMatches:
+                return
+            more.collapsed = False
 
     # -- rating ------------------------------------------------------------------------------
     def rerate(self) -> None:
@@ -284,7 +335,7 @@ class PostEditor(Screen[None]):
         self.rating = rate(parsed.batch)
         self.summary = quick_summary(self.rating)
         self.stale = False
-        self.render_rating()
+        self.render_rating(detail=False)
         # the full summary (load combination, remedies: ~20 ms) follows once typing pauses
         self.generation += 1
         if self._full_timer is not None:
@@ -295,7 +346,10 @@ class PostEditor(Screen[None]):
         self._full_timer = None
         self.full_summary(self.rating, self.generation)
 
-    @work(thread=True, exclusive=True, group="summary", exit_on_error=False)
+    # a description of our own: Textual would otherwise build one from repr(rating), which
+    # prints every array of the rating (~15 ms on the UI thread)
+    @work(thread=True, exclusive=True, group="summary", exit_on_error=False,
+          description="full summary")
     def full_summary(self, rating: Any, generation: int) -> None:
         summary = rating.summary(0)
         self.app.call_from_thread(self._full_done, summary, generation)
@@ -316,7 +370,10 @@ class PostEditor(Screen[None]):
             return False
         return True
 
-    def render_rating(self) -> None:
+    def render_rating(self, detail: bool = True) -> None:
+        """Repaint the rating. ``detail=False`` (a keystroke with a valid form) repaints the
+        fixed-height head and the checks only; the wrapped text below and the remedies follow
+        with the full summary once typing pauses, so a keystroke asks for no layout pass."""
         units = self.app.units  # type: ignore[attr-defined]
         width = self.query_one("#side").size.width - 4
         if self.stale:
@@ -335,14 +392,16 @@ class PostEditor(Screen[None]):
         same = getattr(checks, "_fc_lines", None) == len(lines)
         checks._fc_lines = len(lines)  # type: ignore[attr-defined]
         checks.update("\n".join(lines), layout=not same)
-        more = present.detail_lines(self.summary)
-        if self.stale:
-            more = [present.escape(m) for m in self.combination[:3]] + more
-        text = "\n".join(more)
-        panel = self.query_one("#rating-panel", Static)
-        if str(panel.content) != text:
-            panel.update(text)
-        self._render_remedies()
+        if detail or self._detail_stale is not self.stale:
+            self._detail_stale = self.stale
+            more = present.detail_lines(self.summary)
+            if self.stale:
+                more = [present.escape(m) for m in self.combination[:3]] + more
+            text = "\n".join(more)
+            panel = self.query_one("#rating-panel", Static)
+            if str(panel.content) != text:
+                panel.update(text)
+            self._render_remedies()
         active = self.query_one("#side", TabbedContent).active
         try:
             if active == "working":
@@ -370,13 +429,13 @@ class PostEditor(Screen[None]):
                 out.append(f"{present.escape(step.label)}: [b]{present.escape(step.value)}[/b]{clause}")
         else:
             out.append("No rating yet.")
-        self.query_one("#working-panel", Static).update("\n".join(out))
+        self._update_static(self.query_one("#working-panel", Static), "\n".join(out))
 
     def _render_shape(self) -> None:
         rec = self.record
         ke = self.summary.get("effective_length_factor") if self.summary else None
-        self.query_one("#ends-panel", Static).update(
-            ends_drawing(rec.get("top") or "pinned", rec.get("bottom") or "pinned", ke, height=7))
+        self._update_static(self.query_one("#ends-panel", Static), ends_drawing(
+            rec.get("top") or "pinned", rec.get("bottom") or "pinned", ke, height=7))
         plot = self.query_one("#plot-panel", Static)
         if self.batch is None or self.rating is None:
             plot.update("No plot until the post is rated.")
@@ -393,11 +452,13 @@ class PostEditor(Screen[None]):
             hline=dem if math.isfinite(dem) and dem > 0 else None,
             xfmt=lambda v: present.length(v, units), yfmt=lambda v: present.force(v, units),
         )
-        plot.update("Capacity against height\n" + text
+        self._update_static(plot, "Capacity against height\n" + text
                     + f"\n◆ this post: {present.length(h, units)}, {present.force(cap, units)}"
                     + ("\n╌ D demand " + present.force(dem, units) if math.isfinite(dem) and dem > 0 else ""))
 
     def _render_remedies(self) -> None:
+        if self.query_one("#side", TabbedContent).active != "remedies":
+            return  # drawn when its pane is shown: a hidden widget's update costs a full layout
         rems = list((self.summary or {}).get("remedies") or [])
         if rems == self.remedies and self.query_one("#remedy-list", OptionList).option_count == len(rems):
             return
@@ -495,22 +556,32 @@ class PostEditor(Screen[None]):
             fid, _ = field_ids(name)
             try:
                 inp = self.query_one(f"#{fid}", Input)
-            except Exception:  # noqa: BLE001
-                continue
-            value = self.record.get(name, "")
-            if inp.value != value:
-                with inp.prevent(Input.Changed):
-                    inp.value = value
+            except NoMatches:
+                if self.record.get(name):
+                    self._reveal(name)  # a value in a section not built yet: open it
+            else:
+                value = self.record.get(name, "")
+                if inp.value != value:
+                    with inp.prevent(Input.Changed):
+                        inp.value = value
             self._validate(name)
         self._after_change()
 
     def action_apply_remedy(self) -> None:
-        if not self.remedies:
-            self.notify("No remedy to apply.", markup=False)
+        if self.summary is not None and self.summary.get("quick") and self.rating is not None \
+                and not self.stale:
+            self.summary = self.rating.summary(0)  # typed since the last full summary
+            self.render_rating()
+        rems = list((self.summary or {}).get("remedies") or [])
+        if not rems or self.stale:
+            self.notify("No remedy to apply." if not self.stale else
+                        "Fix the form first: remedies follow from a good rating.", markup=False)
             return
+        index = 0  # the first (the engine's preferred) unless one is highlighted in its pane
         box = self.query_one("#remedy-list", OptionList)
-        index = box.highlighted if box.highlighted is not None else 0
-        rem = self.remedies[index]
+        if rems == self.remedies and box.highlighted is not None:
+            index = box.highlighted
+        rem = rems[index]
         changes = rem.get("record_changes") or {}
         if not changes:
             self.notify("This remedy changes nothing in the record: do it on site.", markup=False)
