@@ -12,6 +12,8 @@ Global keys: F1 help, F7 conflicts, F8 units, F9 sync, F10 report, ctrl+p comman
 from __future__ import annotations
 
 import json
+import os
+import threading
 from collections.abc import Iterable
 from functools import partial
 from pathlib import Path
@@ -25,6 +27,22 @@ from fieldcheck.tui.logthread import LogThread
 from fieldcheck.tui.sites import SitesScreen
 
 UNIT_SYSTEMS = ("us", "metric")
+DRAFTS_DELAY = 1.0  # seconds after the last change before the drafts file is written
+
+
+def replace_file(path: Path, text: str | None) -> None:
+    """Write ``text`` to ``path`` atomically (a temporary file beside it, flushed to disk, then
+    renamed over it): a crash leaves the old file or the new one, never half of one. None
+    removes the file."""
+    if text is None:
+        path.unlink(missing_ok=True)
+        return
+    tmp = path.with_name(f"{path.name}.{os.getpid()}.tmp")
+    with open(tmp, "w", encoding="utf-8") as fh:
+        fh.write(text)
+        fh.flush()
+        os.fsync(fh.fileno())
+    os.replace(tmp, path)
 
 
 class FieldcheckApp(App[None]):
@@ -45,6 +63,10 @@ class FieldcheckApp(App[None]):
         self.units = units if units in UNIT_SYSTEMS else "us"
         self.store = LogThread(db, seed_if_empty=seed_if_empty)
         self.drafts: dict[str, dict[str, Any]] = {}  # member id or "new:<visit id>" -> draft
+        self._drafts_timer: Any = None
+        self._drafts_lock = threading.Lock()
+        self._drafts_seq = 0  # bumped on every change; a write never replaces a newer one
+        self._drafts_written = 0
         self.office_path: str = ""
         self.last_summary: str = ""  # the last sync or report summary (also notified)
 
@@ -68,17 +90,49 @@ class FieldcheckApp(App[None]):
             except (OSError, ValueError):
                 self.notify(f"Could not read drafts from {f}.", severity="warning", markup=False)
 
-    def save_drafts(self) -> None:
+    def drafts_changed(self) -> None:
+        """A draft changed: write the drafts file once typing has paused for DRAFTS_DELAY (so a
+        crash loses at most that much typing), on a worker thread, atomically."""
+        self._drafts_seq += 1
+        if self._drafts_timer is not None:
+            self._drafts_timer.stop()
+        self._drafts_timer = self.set_timer(DRAFTS_DELAY, self._drafts_due)
+
+    def _drafts_due(self) -> None:
+        self._drafts_timer = None
+        text = json.dumps(self.drafts, indent=1) if self.drafts else None
+        self.run_worker(partial(self._write_drafts, text, self._drafts_seq), thread=True,
+                        group="drafts", exit_on_error=False, description="write drafts")
+
+    def _write_drafts(self, text: str | None, seq: int) -> None:
         f = self.drafts_file()
         if f is None:
             return
-        try:
-            if self.drafts:
-                f.write_text(json.dumps(self.drafts, indent=1), encoding="utf-8")
-            elif f.exists():
-                f.unlink()
-        except OSError:
-            pass
+        with self._drafts_lock:
+            if seq < self._drafts_written:
+                return  # a newer state is already on disk
+            self._drafts_written = seq
+            try:
+                replace_file(f, text)
+            except OSError as exc:
+                self.call_from_thread(self.notify, f"Could not keep drafts in {f}: {exc}",
+                                      severity="warning", markup=False)
+
+    def save_drafts(self) -> None:
+        """Write the drafts file now (leaving a post, quitting)."""
+        if self._drafts_timer is not None:
+            self._drafts_timer.stop()
+            self._drafts_timer = None
+        f = self.drafts_file()
+        if f is None:
+            return
+        text = json.dumps(self.drafts, indent=1) if self.drafts else None
+        with self._drafts_lock:
+            self._drafts_written = self._drafts_seq
+            try:
+                replace_file(f, text)
+            except OSError:
+                pass
 
     # -- global actions ----------------------------------------------------------------------
     def action_help(self) -> None:

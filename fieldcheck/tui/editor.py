@@ -99,10 +99,12 @@ def remedy_text(rem: dict[str, Any]) -> str:
 class PostEditor(Screen[None]):
     AUTO_FOCUS = "#form Input"
     BINDINGS = [
+        # save, back and help first: the footer is cut at 80 columns (F1 and ctrl+p list all)
         Binding("ctrl+s", "save", "Save", id="save"),
+        Binding("escape", "leave", "Back", id="leave"),
+        Binding("f1", "app.help", "Help", id="editor_help"),
         Binding("ctrl+z", "undo", "Undo", id="undo"),
         Binding("ctrl+r", "apply_remedy", "Apply remedy", id="apply_remedy"),
-        Binding("escape", "leave", "Back", id="leave"),
         Binding("f2", "tab('rating')", "Rating", id="tab_rating"),
         Binding("f3", "tab('working')", "Working", id="tab_working"),
         Binding("f4", "tab('shape')", "Shape", id="tab_shape"),
@@ -233,8 +235,9 @@ class PostEditor(Screen[None]):
         drafts = self.app.drafts  # type: ignore[attr-defined]
         if self.dirty:
             drafts[self.draft_key] = dict(self.record)
-        else:
-            drafts.pop(self.draft_key, None)
+        elif drafts.pop(self.draft_key, None) is None:
+            return
+        self.app.drafts_changed()  # type: ignore[attr-defined]
 
     def _validate(self, name: str) -> bool:
         text = self.record.get(name, "")
@@ -528,6 +531,7 @@ class PostEditor(Screen[None]):
         self.member_id = obs.member_id
         self.saved_record = record
         self.app.drafts.pop(self.draft_key, None)  # type: ignore[attr-defined]
+        self.app.drafts_changed()  # type: ignore[attr-defined]
         self._title()
         self.load_history()
         tag = record.get("tag", "post")
@@ -599,7 +603,8 @@ class PostEditor(Screen[None]):
 
     def action_leave(self) -> None:
         if not self.dirty:
-            self.app.drafts.pop(self.draft_key, None)  # type: ignore[attr-defined]
+            if self.app.drafts.pop(self.draft_key, None) is not None:  # type: ignore[attr-defined]
+                self.app.save_drafts()  # type: ignore[attr-defined]
             self.app.pop_screen()
             return
         from fieldcheck.tui.dialogs import LeaveDialog
@@ -613,6 +618,7 @@ class PostEditor(Screen[None]):
                 self.app.pop_screen()
             elif answer == "discard":
                 self.app.drafts.pop(self.draft_key, None)  # type: ignore[attr-defined]
+                self.app.save_drafts()  # type: ignore[attr-defined]
                 self.app.pop_screen()
 
         self.app.push_screen(LeaveDialog(), chosen)

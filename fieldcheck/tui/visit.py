@@ -51,14 +51,16 @@ def _ratio_key(p: Any) -> float:
 class VisitScreen(Screen[None]):
     AUTO_FOCUS = "#posts"
     BINDINGS = [
+        # open, add, back and help first: the footer is cut at 80 columns (F1 and ctrl+p list all)
         Binding("o", "open_post", "Open", key_display="o/⏎", id="open_post"),
         Binding("ctrl+n", "add_post", "Add", id="add_post"),
+        Binding("escape", "back", "Back", id="back_visit"),
+        Binding("f1", "app.help", "Help", id="visit_help"),
         Binding("c", "copy_post", "Copy", id="copy_post"),
         Binding("w", "withdraw_post", "Withdraw", id="withdraw_post"),
         Binding("s", "cycle_sort", "Sort", id="cycle_sort"),
         Binding("x", "worst", "Worst", id="worst"),
         Binding("slash", "focus_filter", "Filter", key_display="/", id="focus_filter"),
-        Binding("escape", "back", "Back", id="back_visit"),
         Binding("question_mark", "app.help", "Help", show=False, id="help_q2"),
     ]
 
