@@ -197,7 +197,9 @@ class PostEditor(Screen[None]):
     # -- typing ------------------------------------------------------------------------------
     @on(Input.Changed)
     def _changed(self, event: Input.Changed) -> None:
-        self.field_edited(event.input, event.value)  # already done, unless set from code
+        # normally already done by the field itself; the message arrives a frame late, so use
+        # the field's value now, not the one it carries (which a later key may have replaced)
+        self.field_edited(event.input, event.input.value)
 
     def field_edited(self, inp: Input, text: str) -> None:
         """A field's value changed: called by the field itself (form.FieldInput), so the
@@ -285,6 +287,9 @@ class PostEditor(Screen[None]):
             self.query_one(f"#{fid}", Input).set_class(bool(msg), "-bad")
         except NoMatches:
             pass
+        if box.has_class("-shown") == bool(msg):
+            self._update_static(box, shown)  # a message that keeps its height: no layout pass
+            return
         box.set_class(bool(msg), "-shown")
         box.update(shown)
 

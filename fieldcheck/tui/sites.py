@@ -58,7 +58,9 @@ class SitesScreen(Screen[None]):
             table.add_column(SHORT[label], key=label)
         table.add_column("Posts", key="total")
         table.add_column("Date", key="date")
-        self.reload()
+        # the log (sqlite-utils, numpy) opens on its own thread after the first frame is drawn:
+        # importing them meanwhile would hold the GIL against the first paint
+        self.call_after_refresh(self.reload)
 
     @work(exclusive=True, group="sites", exit_on_error=False)
     async def reload(self) -> None:

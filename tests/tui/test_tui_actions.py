@@ -232,3 +232,52 @@ async def test_footer_at_80_by_24_shows_the_main_keys_of_each_screen(db: Path) -
         for word in ("Copy", "Withdraw", "Sort", "Worst", "Filter", "Sync", "Report", "Units",
                      "Conflicts"):
             assert word in helptext, word
+
+
+async def test_closed_sections_are_built_when_opened_and_validate_like_the_rest(db: Path) -> None:
+    from textual.widgets._collapsible import CollapsibleTitle
+
+    from fieldcheck.tui.form import FieldGroup
+
+    app = FieldcheckApp(db=db)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await settle(app, pilot)
+        await pilot.press("enter")
+        await settle(app, pilot)
+        await pilot.press("ctrl+n")
+        await settle(app, pilot)
+        editor = app.screen
+        for name, value in (("size", "4x4"), ("height", "8ft"), ("species", "spf"),
+                            ("grade", "no2"), ("load", "2000 lbf")):
+            inp = editor.query_one(f"#f-{name}", Input)
+            inp.focus()
+            await pilot.pause()
+            await pilot.press(*value)
+        await settle(app, pilot, 0.3)
+        assert not editor.stale and editor.summary is not None
+        group = editor.query_one("#g-condition", FieldGroup)
+        assert group.collapsed and not group.query(Input)  # nothing built while closed
+        group.query_one(CollapsibleTitle).focus()
+        await pilot.press("enter")
+        await settle(app, pilot)
+        assert editor.query_one("#f-moisture", Input)
+        more = editor.query_one("#more-condition", FieldGroup)
+        assert more.collapsed and not more.query(Input)
+        more.query_one(CollapsibleTitle).focus()
+        await pilot.press("enter")
+        await settle(app, pilot)
+        decay = editor.query_one("#f-decay_wide", Input)
+        decay.focus()
+        await pilot.pause()
+        await pilot.press(*"lots")
+        await settle(app, pilot)
+        msg = str(editor.query_one("#m-decay_wide", Static).content)
+        assert "decay" in msg.lower()  # the field's own message  # records/columns.py
+        assert decay.has_class("-bad")
+        assert "NOT RATED" in text(app, "#rating-head")
+        assert editor.query_one("#f-size", Input).value == "4x4"  # the rest kept
+        await pilot.press("ctrl+z")
+        await settle(app, pilot)
+        assert decay.value == "" and "decay_wide" not in editor.errors
+        assert not editor.query_one("#m-decay_wide").display
+        assert not editor.stale
