@@ -659,15 +659,13 @@ class Log:
         """Re-rate every current revision in ONE engine call and store the new ratings (with
         this engine's version and data editions) in one transaction; old ratings are kept."""
         with self._lock:
-            heads = list(
-                self.db.query(
-                    "SELECT id, record_json FROM observations o WHERE withdrawn = 0 AND NOT EXISTS "
-                    "(SELECT 1 FROM observations c WHERE c.supersedes = o.id) ORDER BY rowid"
-                )
-            )
-            ids = [h["id"] for h in heads]
-            loads = json.loads
-            records = [loads(h["record_json"]) for h in heads]
+            heads = self.db.conn.execute(  # plain tuples: no dict per row for 100k rows
+                "SELECT id, record_json FROM observations o WHERE withdrawn = 0 AND NOT EXISTS "
+                "(SELECT 1 FROM observations c WHERE c.supersedes = o.id) ORDER BY rowid"
+            ).fetchall()
+            ids = [h[0] for h in heads]
+            # one decode of one JSON array: half the time of a decode per row
+            records = json.loads("[" + ",".join(h[1] for h in heads) + "]")
             result = rated.rate(records, summaries=False)
             stamp, version, _ = rated.engine_stamp()
             good = [(i, row) for i, row in zip(ids, result.rows, strict=True) if row is not None]
