@@ -277,6 +277,7 @@ class PostEditor(Screen[None]):
                 return  # its section is not built yet: shown when it is opened
             row = inp.parent
             box = Static(shown, id=mid, classes="msg -shown", markup=False)
+            box._fc_text = shown  # type: ignore[attr-defined]
             self._msg_boxes[name] = box
             inp.set_class(True, "-bad")
             row.parent.mount(box, after=row)  # type: ignore[union-attr]
@@ -292,6 +293,7 @@ class PostEditor(Screen[None]):
             return
         box.set_class(bool(msg), "-shown")
         box.update(shown)
+        box._fc_text = shown  # type: ignore[attr-defined]
 
     @on(Collapsible.Expanded)
     async def _opened(self, event: Collapsible.Expanded) -> None:
@@ -382,6 +384,22 @@ class PostEditor(Screen[None]):
         """Repaint the rating. ``detail=False`` (a keystroke with a valid form) repaints the
         fixed-height head and the checks only; the wrapped text below and the remedies follow
         with the full summary once typing pauses, so a keystroke asks for no layout pass."""
+        active = self.query_one("#side", TabbedContent).active
+        if active == "rating":
+            self._render_rating_pane(detail)
+        elif not detail:
+            return  # the working, the plot and the remedies follow once typing pauses (~20 ms)
+        if active == "remedies":
+            self._render_remedies()
+        try:
+            if active == "working":
+                self._render_working()
+            elif active == "shape":
+                self._render_shape()
+        except Exception as exc:  # noqa: BLE001 - a drawing problem must never lose the form
+            self.notify(f"Could not draw the {active} pane: {exc}", severity="warning", markup=False)
+
+    def _render_rating_pane(self, detail: bool) -> None:
         units = self.app.units  # type: ignore[attr-defined]
         width = self.query_one("#side").size.width - 4
         if self.stale:
@@ -405,28 +423,22 @@ class PostEditor(Screen[None]):
             more = present.detail_lines(self.summary)
             if self.stale:
                 more = [present.escape(m) for m in self.combination[:3]] + more
-            text = "\n".join(more)
-            panel = self.query_one("#rating-panel", Static)
-            if str(panel.content) != text:
-                panel.update(text)
-            self._render_remedies()
-        active = self.query_one("#side", TabbedContent).active
-        try:
-            if active == "working":
-                self._render_working()
-            elif active == "shape":
-                self._render_shape()
-        except Exception as exc:  # noqa: BLE001 - a drawing problem must never lose the form
-            self.notify(f"Could not draw the {active} pane: {exc}", severity="warning", markup=False)
+            self._update_static(self.query_one("#rating-panel", Static), "\n".join(more))
 
     def _update_static(self, widget: Static, text: str) -> None:
-        """Update without a layout pass when the wrapped height cannot change (a keystroke must
-        repaint within a frame; a layout pass over the whole form costs tens of ms)."""
-        width = max(1, widget.size.width)
-        shape = [max(1, -(-len(line) // width)) for line in text.split("\n")]
-        same = getattr(widget, "_fc_shape", None) == shape and widget.size.width > 0
-        widget._fc_shape = shape  # type: ignore[attr-defined]
-        widget.update(text, layout=not same)
+        """Update a Static, asking for a layout pass only if its wrapped height changes (a layout
+        pass costs the whole screen; a keystroke must repaint within a frame)."""
+        if getattr(widget, "_fc_text", None) == text:
+            return
+        widget._fc_text = text  # type: ignore[attr-defined]
+        width = widget.size.width
+        if width <= 0 or not widget.display:
+            widget.update(text)
+            return
+        old = widget.size.height
+        widget.update(text, layout=False)
+        if widget.visual.get_height(widget.styles, width) != old:
+            widget.refresh(layout=True)
 
     def _render_working(self) -> None:
         out = []
@@ -446,7 +458,7 @@ class PostEditor(Screen[None]):
             rec.get("top") or "pinned", rec.get("bottom") or "pinned", ke, height=7))
         plot = self.query_one("#plot-panel", Static)
         if self.batch is None or self.rating is None:
-            plot.update("No plot until the post is rated.")
+            self._update_static(plot, "No plot until the post is rated.")
             return
         units = self.app.units  # type: ignore[attr-defined]
         h = float(self.batch.height_mm[0])
