@@ -281,3 +281,38 @@ async def test_closed_sections_are_built_when_opened_and_validate_like_the_rest(
         assert decay.value == "" and "decay_wide" not in editor.errors
         assert not editor.query_one("#m-decay_wide").display
         assert not editor.stale
+
+
+async def test_working_and_plot_follow_a_change_made_on_the_rating_pane(db: Path) -> None:
+    from fieldcheck.tui import present
+
+    app = FieldcheckApp(db=db)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await open_post(app, pilot, "B1")
+        editor = app.screen
+        await pilot.press("f3")
+        await settle(app, pilot)
+        before = text(app, "#working-panel")
+        assert "Working" in before
+        await pilot.press("f2")
+        await settle(app, pilot)
+        inp = editor.query_one("#f-height", Input)
+        inp.focus()
+        await pilot.pause()
+        inp.value = ""
+        await pilot.press(*"12ft")
+        await settle(app, pilot, 0.3)
+        await pilot.press("f3")  # drawn when shown, from the rating of 12ft
+        await settle(app, pilot)
+        assert text(app, "#working-panel") != before
+        await pilot.press("f4")
+        await settle(app, pilot)
+        height = present.length(float(editor.batch.height_mm[0]), app.units)
+        assert f"◆ this post: {height}" in text(app, "#plot-panel")
+        inp.focus()  # typing with the plot in front: it follows once typing pauses
+        await pilot.pause()
+        inp.value = ""
+        await pilot.press(*"9ft")
+        await settle(app, pilot, 0.3)
+        height = present.length(float(editor.batch.height_mm[0]), app.units)
+        assert f"◆ this post: {height}" in text(app, "#plot-panel")
