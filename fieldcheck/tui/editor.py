@@ -5,6 +5,13 @@ Working (each step with its clause), Shape (end conditions drawn, capacity again
 this post marked), Remedies (ctrl+r applies one as a new revision), History (every revision).
 Saving (ctrl+s) appends a revision; leaving with changes asks, or keeps them as a draft; ctrl+z
 undoes the last change.
+
+Speed (bench/interface.py, keystroke to repainted rating): a field reports its new value inside
+the key's handler (form.FieldInput), the rating head and checks are repainted without a layout
+pass, in the same frame; Textual lays out the whole screen on any layout request, so nothing a
+keystroke touches may change height. The wrapped text, the remedies, the working and the plot
+follow with the full summary once typing pauses (FULL_SUMMARY_DELAY); only the pane in front is
+drawn.
 """
 
 from __future__ import annotations
