@@ -88,9 +88,8 @@ def parse_row(record: dict[str, str]) -> tuple[dict[str, Any], dict[str, Any], l
 
 def _rated_key(rec: dict[str, str]) -> tuple:
     """What the engine sees of a record: every rated column's text (tags and notes left out)."""
-    items = [(k, v) for k, v in rec.items() if v and k not in _UNRATED]  # keys are unique: v never compared
-    items.sort()
-    return tuple(items)
+    # in the record's own order: rows from one file or log share it; another order only costs a parse
+    return tuple([(k, v) for k, v in rec.items() if v and k not in _UNRATED])
 
 
 def parse_records(rows: list[dict[str, str]]) -> Parsed:
