@@ -412,6 +412,27 @@ def _fail(kind: _Kind, field: str, text: object, reason: str, suggestion: str | 
     return UnitInputError(field, shown, f"{head}{rng}; {tail}.")
 
 
+def _in_range_example(kind: _Kind, lo: float | None, hi: float | None) -> str | None:
+    """A round value inside the accepted range, in US and metric units (lengths and forces)."""
+    if lo is None or hi is None or lo <= 0 or kind.name not in ("length", "force"):
+        return None  # no lower bound to centre on: the unit's own example
+    mid = math.sqrt(lo * hi)  # a typical middle on a log scale
+
+    def snap(step: float) -> float:
+        v = max(round(mid / step), 1) * step
+        return v if lo <= v <= hi else mid
+
+    def sig2(x: float) -> float:
+        return float(f"{x:.2g}")
+
+    if kind.name == "length":
+        us = snap(FT_MM) if mid >= 2 * FT_MM else snap(IN_MM)
+        return f"a value in that range, e.g. {format_length(us, 'us')} or {format_length(sig2(mid), 'metric')}"
+    us = snap(1000 * LBF_N) if mid >= 1000 * LBF_N else snap(100 * LBF_N)
+    return (f"a value in that range, e.g. {format_force(us, 'us', grouping=False)} or "
+            f"{format_force(sig2(mid), 'metric', grouping=False)}")
+
+
 def _range_text(kind: _Kind, lo: float | None, hi: float | None) -> str:
     """The accepted range in the internal unit, e.g. '300 to 30000 mm'; '' when open."""
     if lo is not None and hi is not None:
@@ -442,7 +463,7 @@ def _check_value(kind: _Kind, value: float, text: object, field: str, lo: float 
         raise _fail(kind, field, text, f"{what}is below absolute zero", rng=rng)
     if (lo is not None and value < lo) or (hi is not None and value > hi):
         raise _fail(kind, field, text, f"{what}is {_num(value, sig=4)} {kind.si},"
-                    f" outside the accepted range ({r})")
+                    f" outside the accepted range ({r})", suggestion=_in_range_example(kind, lo, hi))
     return value
 
 
