@@ -62,8 +62,12 @@ def action_label(action: int | None) -> str:
 
 
 def _floats(a) -> list[float | None]:
-    out = np.asarray(a, dtype=np.float64).tolist()
-    return [None if (x is None or math.isnan(x) or math.isinf(x)) else x for x in out]
+    """Floats for SQLite REAL columns; NaN or inf (no value) becomes NULL."""
+    arr = np.asarray(a, dtype=np.float64)
+    out = arr.tolist()
+    for i in np.flatnonzero(~np.isfinite(arr)).tolist():  # only the few missing values in Python
+        out[i] = None
+    return out
 
 
 def _json_default(o):
