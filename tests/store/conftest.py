@@ -1,23 +1,10 @@
-"""Fixtures for the survey-log tests: a fresh log with one site and visit, and sound records."""
+"""Fixtures for the survey-log tests: a fresh log with one site and visit (the shore record is in tests/conftest.py)."""
 
 from __future__ import annotations
 
 import pytest
 
 from fieldcheck.store import Log
-
-# a sound temporary shore (values as typed on site; common practice, no source)
-SHORE = {
-    "tag": "S1", "location": "under the header", "size": "4x4", "height": "8ft",
-    "species": "douglas-fir-larch", "grade": "no2", "load": "3000lbf", "duration": "seven-days",
-    "construction": "yes",
-}
-
-
-@pytest.fixture
-def shore() -> dict[str, str]:
-    return dict(SHORE)
-
 
 @pytest.fixture
 def log(tmp_path):
