@@ -37,8 +37,8 @@ from fieldcheck.engine import nds
 from fieldcheck.engine import rating as _r
 from fieldcheck.engine.batch import EC5, LRFD, PostBatch
 from fieldcheck.engine.refdata import table
+from fieldcheck.engine.customary import IN
 
-IN = 25.4
 
 # ---- codes used in PostBatch condition fields ----------------------------------------------
 ZONE_NAMES = ("full", "middle", "top", "bottom")  # where along the height a loss lies

@@ -40,8 +40,8 @@ from fieldcheck.engine.rating import (
     register_summary_hook,
 )
 from fieldcheck.engine.refdata import table
+from fieldcheck.engine.customary import LBF
 
-LBF = 4.4482216152605  # N per lbf (exact)
 FT2 = 304.8**2  # mm^2 per ft^2
 PSF = loads.PSF_KPA  # kPa per psf
 

@@ -12,8 +12,8 @@ from functools import cache
 import numpy as np
 
 from fieldcheck.engine.refdata import table
+from fieldcheck.engine.customary import PSI
 
-PSI = 0.006894757293168361  # MPa per psi (1 lbf/in^2 = 4.4482216152605 N / 645.16 mm^2)
 
 SPECIES = ("douglas-fir-larch", "hem-fir", "spruce-pine-fir", "southern-pine")
 SPECIES_ALIASES = {

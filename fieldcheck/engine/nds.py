@@ -9,9 +9,8 @@ from __future__ import annotations
 import numpy as np
 
 from fieldcheck.engine.batch import DIMENSION, GLULAM, POLE, TIMBER
+from fieldcheck.engine.customary import IN, PSI
 
-IN = 25.4
-PSI = 0.006894757293168361  # MPa per psi
 
 # LRFD format conversion and resistance factors (NDS 2018 Table 4.3.1 and Appendix N; from memory
 # except KF = 2.16/phi for Fc, which column-design.md §1.2 supports).

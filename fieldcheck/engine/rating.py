@@ -15,9 +15,8 @@ from fieldcheck.engine.batch import EC5, LRFD, METHOD_NAMES, PostBatch
 from fieldcheck.engine.cautions import CAUTIONS
 from fieldcheck.engine.restraint import MODE_KEYS, MODES, SWAY, mode_index
 from fieldcheck.engine.restraint import ke as ke_from_ends
+from fieldcheck.engine.customary import IN, LBF
 
-LBF = 4.4482216152605  # N per lbf
-IN = 25.4
 
 # Action categories (our own wording; ratio bands are judgement, field-practice.md §8 #120).
 ACTIONS = ("no-action", "monitor", "repair-or-brace", "make-safe-now")
@@ -206,10 +205,6 @@ def _prod(first: np.ndarray, *factors: np.ndarray) -> np.ndarray:
 def _num(x: float, nd: int) -> float | None:
     x = float(x)
     return None if np.isnan(x) else round(x, nd)
-
-
-def _nan_to(a: np.ndarray, v: float) -> np.ndarray:
-    return np.where(np.isnan(a), v, a)
 
 
 # Large batches are rated in blocks that stay in the CPU cache, two blocks at a time (numpy

@@ -42,10 +42,9 @@ import numpy as np
 from fieldcheck.engine import materials, nds, sections
 from fieldcheck.engine.batch import DIMENSION, EC5, LRFD, RECT, TIMBER, PostBatch, make_batch
 from fieldcheck.engine.rating import ACTIONS, F_END_PLATE, Rating, rate, register_summary_hook
+from fieldcheck.engine.customary import IN, LBF
 
-IN = 25.4
 FT = 304.8
-LBF = 4.4482216152605
 
 KINDS = ("brace-weak", "brace-both", "plate", "pad", "second-post", "replace")  # cost order, judgement
 BRACE_WEAK, BRACE_BOTH, PLATE, PAD, SECOND, REPLACE = range(6)

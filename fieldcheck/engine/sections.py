@@ -10,7 +10,8 @@ from functools import cache
 
 import numpy as np
 
-IN = 25.4  # mm per inch, exact (NIST SP 811)
+from fieldcheck.engine.customary import IN
+
 
 
 def dressed_in(nominal_in: np.ndarray, thickness_in: np.ndarray | None = None) -> np.ndarray:

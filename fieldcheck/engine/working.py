@@ -9,10 +9,8 @@ import numpy as np
 
 from fieldcheck.engine.batch import EC5, LRFD, METHOD_NAMES, PRODUCT_NAMES
 from fieldcheck.engine.rating import ACTION_TEXT, Rating, Step, mode_label
+from fieldcheck.engine.customary import IN, LBF, PSI
 
-PSI = 0.006894757293168361
-LBF = 4.4482216152605
-IN = 25.4
 
 
 def _mpa(x: float) -> str:

@@ -16,9 +16,9 @@ from fieldcheck.engine import materials, sections
 from fieldcheck.engine.batch import (
     BUILT_UP, DIMENSION, END_NAMES, EC5, LRFD, METHOD_NAMES, RECT, ROUND, TIMBER,
 )
+from fieldcheck.engine.customary import IN
 from fieldcheck.engine.restraint import mechanism_reason, unbraced_length
 
-IN = 25.4
 Row = dict[str, Any]
 Builder = Callable[[Row, dict[str, Any]], dict[str, Any]]
 

@@ -19,7 +19,7 @@ from fieldcheck.engine.refdata import table
 from fieldcheck.records.builders import RowError, register_builder, section_fields
 from fieldcheck.records.columns import Column, _choice, _yes_no, register
 
-IN = 25.4
+IN = units.IN_MM  # mm per inch
 
 
 def _depth(field: str, hi: float = 1000.0):

@@ -5,8 +5,8 @@ from __future__ import annotations
 import numpy as np
 
 from fieldcheck.engine.rating import ACTIONS, FLAG_TEXT, Rating
+from fieldcheck.engine.customary import LBF
 
-LBF = 4.4482216152605
 
 
 def _fmt(a: np.ndarray, nd: int) -> list[str]:
