@@ -15,16 +15,12 @@ DESCRIPTION = (
 
 
 def _ratio(s: str) -> float:
-    t = s.strip().lower()
-    if t in ("inf", "infinity", "fixed"):
-        return math.inf
+    from fieldcheck.records.spring_columns import parse_ratio
+
     try:
-        v = float(t)
-    except ValueError:
-        raise argparse.ArgumentTypeError(f"'{s}' is not a number; give R from 0 (pin) to inf (fixed), e.g. 2") from None
-    if math.isnan(v) or v < 0:
-        raise argparse.ArgumentTypeError(f"'{s}' is negative; give R from 0 (pin) to inf (fixed), e.g. 2")
-    return v
+        return parse_ratio(s, "R")
+    except ValueError as exc:  # argparse adds the option's name
+        raise argparse.ArgumentTypeError(str(exc).removeprefix("R: ").rstrip(".")) from None
 
 
 def add_arguments(p: argparse.ArgumentParser) -> None:

@@ -19,20 +19,22 @@ from fieldcheck.records.builders import RowError, register_builder
 from fieldcheck.records.columns import Column, register
 
 
-def _ratio(field: str):
-    def parse(s: str) -> float:
-        t = s.strip().lower()
-        if t in ("inf", "infinity", "fixed"):
-            return math.inf
-        try:
-            v = float(t)
-        except ValueError:
-            raise ValueError(f"{field}: '{s}' is not a number; give R = k L / (E I) from 0 (pin) to inf (fixed), e.g. 2.") from None
-        if not v >= 0 or math.isnan(v):
-            raise ValueError(f"{field}: {s} is negative; give R from 0 (pin) to inf (fixed), e.g. 2.")
-        return v
+def parse_ratio(text: str, field: str) -> float:
+    """R = k L / (E I) as typed: a number from 0 (pin) to inf (fixed), or 'inf' / 'fixed'."""
+    t = text.strip().lower()
+    if t in ("inf", "infinity", "fixed"):
+        return math.inf
+    try:
+        v = float(t)
+    except ValueError:
+        raise ValueError(f"{field}: '{text}' is not a number; give R = k L / (E I) from 0 (pin) to inf (fixed), e.g. 2.") from None
+    if math.isnan(v) or v < 0:
+        raise ValueError(f"{field}: {text} is negative; give R from 0 (pin) to inf (fixed), e.g. 2.")
+    return v
 
-    return parse
+
+def _ratio(field: str):
+    return lambda s: parse_ratio(s, field)
 
 
 for _c in (
