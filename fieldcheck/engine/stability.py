@@ -355,6 +355,8 @@ def _solve_group(Rt, Rb, Tt, Tb, xb, Tbr) -> np.ndarray:
 
 def _solve_u(Rt, Rb, Tt, Tb, xb, Tbr, on_mechanism: str) -> np.ndarray:
     """Dimensionless critical u per post; NaN (or ValueError) for mechanisms."""
+    if on_mechanism not in ("raise", "nan"):
+        raise ValueError(f"on_mechanism is {on_mechanism!r}: it must be 'raise' or 'nan', for example 'nan'.")
     mech = _mechanism_mask(Rt, Rb, Tt, Tb, Tbr)
     if mech.any() and on_mechanism == "raise":
         raise ValueError(_mechanism_sentence(int(np.argmax(mech)), Rt, Rb, Tt, Tb, Tbr))
@@ -422,8 +424,6 @@ def critical_load(
     Scalars broadcast to the number of posts. on_mechanism: "raise" (ValueError, one sentence
     naming the first such post) or "nan" (NaN for those posts; see :func:`is_mechanism`).
     """
-    if on_mechanism not in ("raise", "nan"):
-        raise ValueError(f"on_mechanism is {on_mechanism!r}: it must be 'raise' or 'nan', for example 'nan'.")
     EI, L, Rt, Rb, Tt, Tb, xb, Tbr = _dimensionless(
         EI_nmm2, L_mm, k_rot_top, k_rot_bottom, k_lat_top, k_lat_bottom, braces, brace_k
     )
@@ -445,8 +445,6 @@ def effective_length_factor(
 ) -> np.ndarray:
     """K = (pi / L) sqrt(EI / P_cr) for each post (relative to the full length L); arguments as
     :func:`critical_load`. Mechanisms: ValueError, or NaN with on_mechanism="nan"."""
-    if on_mechanism not in ("raise", "nan"):
-        raise ValueError(f"on_mechanism is {on_mechanism!r}: it must be 'raise' or 'nan', for example 'nan'.")
     _, _, Rt, Rb, Tt, Tb, xb, Tbr = _dimensionless(
         EI_nmm2, L_mm, k_rot_top, k_rot_bottom, k_lat_top, k_lat_bottom, braces, brace_k
     )
