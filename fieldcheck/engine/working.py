@@ -33,9 +33,6 @@ def working_steps(r: Rating, i: int) -> list[Step]:
     add(Step("Method", METHOD_NAMES[method].upper() + ("" if method == EC5 else " (NDS 2018)"), ""))
     add(Step("Section d1 x d2 (measured or dressed)", f"{_mm(b.d1_mm[i])} x {_mm(b.d2_mm[i])}", "NDS 2018 §3.7.1.3"))
     add(Step("Area A used by the column check", f"{v['area'][i]:,.0f} mm2 ({v['area'][i] / IN**2:.3f} in2)", ""))
-    for key, label in extra_section_steps():
-        if key in v:
-            add(Step(label, f"{v[key][i]:.4g}", ""))
     add(Step("Product", PRODUCT_NAMES[int(b.product[i])], ""))
     if method == EC5:
         from fieldcheck.engine.ec5_rating import ec5_steps
@@ -89,13 +86,8 @@ def working_steps(r: Rating, i: int) -> list[Step]:
     return s
 
 
-# Hooks for other engine modules (condition, loads) to add their lines to the working.
-_SECTION_STEPS: list[tuple[str, str]] = []
+# Hooks for other engine modules (condition, ground) to add their lines to the working.
 _EXTRA: list = []
-
-
-def extra_section_steps() -> list[tuple[str, str]]:
-    return _SECTION_STEPS
 
 
 def extra_steps(r: Rating, i: int) -> list[Step]:
