@@ -192,8 +192,20 @@ class PostBatch:
         return int(self.d1_mm.shape[0])
 
     def take(self, idx) -> PostBatch:
-        """A new batch holding the posts at ``idx`` (an index array, slice or mask)."""
-        return PostBatch(**{f.name: getattr(self, f.name)[idx] for f in fields(self)})
+        """A new batch holding the posts at ``idx`` (an index array, slice or mask).
+
+        A field holding one value for every post stays one value: its part is a shared,
+        read-only contiguous array of that value (numpy's fast loops want contiguous input).
+        """
+        out = {}
+        for f in fields(self):
+            a = getattr(self, f.name)
+            if a.strides == (0,) and a.size:
+                m = len(range(*idx.indices(a.size))) if isinstance(idx, slice) else len(a[idx])
+                out[f.name] = _constant(a[0], m)
+            else:
+                out[f.name] = a[idx]
+        return PostBatch(**out)
 
     def replace(self, **changes) -> PostBatch:
         """A copy with some fields replaced (scalars are broadcast)."""
@@ -208,6 +220,48 @@ class PostBatch:
         return PostBatch(
             **{f.name: np.concatenate([getattr(b, f.name) for b in batches]) for f in fields(PostBatch)}
         )
+
+
+_CONSTANTS: dict[tuple, np.ndarray] = {}
+_CONSTANT_IDS: set[int] = set()  # the arrays above (kept alive by the dict, so ids are stable)
+_FILLED: dict[tuple, np.ndarray] = {}
+
+
+def _constant(value: np.generic, n: int) -> np.ndarray:
+    """A read-only array of n copies of value, shared (blocks of one size reuse it)."""
+    key = (value.dtype.str, value.tobytes(), n)
+    arr = _CONSTANTS.get(key)
+    if arr is None:
+        if len(_CONSTANTS) > 4096:  # many odd lengths: start again rather than grow
+            _CONSTANTS.clear()
+            _CONSTANT_IDS.clear()
+        arr = np.full(n, value, dtype=value.dtype)
+        arr.flags.writeable = False
+        arr = _CONSTANTS.setdefault(key, arr)
+        _CONSTANT_IDS.add(id(arr))
+    return arr
+
+
+def filled(value, n: int) -> np.ndarray:
+    """n copies of one value as a read-only broadcast view, cached (np.broadcast_to is slow to
+    call for every block). For results that do not apply anywhere in a block (NaN, 0, False)."""
+    v = np.asarray(value)
+    key = (v.dtype.str, v.tobytes(), n)
+    arr = _FILLED.get(key)
+    if arr is None:
+        if len(_FILLED) > 4096:
+            _FILLED.clear()
+        arr = _FILLED.setdefault(key, np.broadcast_to(v, (n,)))
+    return arr
+
+
+def distinct(a: np.ndarray) -> np.ndarray:
+    """``a``, or just its first element when every element is known to be the same (a field
+    nobody gave, or a filled result): block-level tests such as ``distinct(a).any()`` then
+    look at one value instead of a block of them."""
+    if a.size and (a.strides == (0,) or id(a) in _CONSTANT_IDS):
+        return a[:1]
+    return a
 
 
 FIELD_NAMES = tuple(f.name for f in fields(PostBatch))
@@ -231,7 +285,9 @@ def make_batch(n: int | None = None, **values) -> PostBatch:
         v = values.get(name, _DEFAULTS[name])
         arr = np.asarray(v, dtype=_DTYPES[name])
         if arr.ndim == 0:
-            arr = np.full(n, arr, dtype=_DTYPES[name])
+            # one value for every post: a read-only broadcast view, not n copies. It costs no
+            # memory, and a block reading a field nobody gave reads one cached value.
+            arr = np.broadcast_to(arr, (n,))
         elif arr.shape != (n,):
             raise ValueError(f"field {name} has shape {arr.shape}, expected ({n},)")
         out[name] = arr

@@ -35,8 +35,9 @@ import numpy as np
 
 from fieldcheck.engine import nds
 from fieldcheck.engine import rating as _r
-from fieldcheck.engine.batch import EC5, LRFD, PostBatch
+from fieldcheck.engine.batch import EC5, LRFD, PostBatch, distinct, filled
 from fieldcheck.engine.refdata import table
+from fieldcheck.engine.sections import second_moments
 from fieldcheck.engine.customary import IN
 
 
@@ -252,14 +253,19 @@ LOSS_FIELDS = tuple(f"{k}_{f}_mm" for k in ("decay", "char") for f in DEPTH_FIEL
 
 
 def _block_has_loss(b: PostBatch) -> bool:
-    """Any section loss or through split in this block (NaN and 0 mean none)."""
-    return any(np.any(getattr(b, f) > 0) for f in LOSS_FIELDS) or bool(np.any(b.split >= SPLIT_THROUGH))
+    """Any section loss or through split in this block (NaN and 0 mean none); kept on the batch."""
+    memo = b.__dict__.get("_has_loss")
+    if memo is None:
+        memo = (any((distinct(getattr(b, f)) > 0).any() for f in LOSS_FIELDS)
+                or bool((distinct(b.split) >= SPLIT_THROUGH).any()))
+        b.__dict__["_has_loss"] = memo
+    return memo
 
 
 def _sound(b: PostBatch) -> dict[str, np.ndarray]:
     d1, d2 = b.d1_mm, b.d2_mm
     gross = d1 * d2
-    i1, i2 = d2 * d1**3 / 12.0, d1 * d2**3 / 12.0
+    i1, i2 = second_moments(d1, d2)
     zero, no = np.zeros(b.n), np.zeros(b.n, dtype=bool)
     out = {
         "area": gross, "area_gross": gross, "area_net": gross, "area_top": gross, "area_bottom": gross,
@@ -321,8 +327,9 @@ def residual(b: PostBatch, le1: np.ndarray | None = None, le2: np.ndarray | None
     worse_is_1 = le1 / de1 > le2 / de2  # halving d_eff doubles le/d: the larger one matters more
     s_axis1 = split_mid & ((b.split_faces == 1) | ((b.split_faces == 0) & worse_is_1))
     s_axis2 = split_mid & ~s_axis1
-    i1 = np.where(loss_mid, mid["i1"], d2 * d1**3 / 12.0)
-    i2 = np.where(loss_mid, mid["i2"], d1 * d2**3 / 12.0)
+    g1, g2 = second_moments(d1, d2)
+    i1 = np.where(loss_mid, mid["i1"], g1)
+    i2 = np.where(loss_mid, mid["i2"], g2)
     i1 = np.where(s_axis1, 0.25 * i1, i1)
     i2 = np.where(s_axis2, 0.25 * i2, i2)
     de1 = np.where(s_axis1, 0.5 * de1, de1)
@@ -435,8 +442,9 @@ ECC_FIELDS = ("offset1_mm", "offset2_mm", "bow1_mm", "bow2_mm", "plumb1_mm", "pl
 
 def _block_has_eccentricity(b: PostBatch, v: dict) -> bool:
     """Any load offset, bow, lean, centroid shift or partial contact in this block."""
-    return (any(np.any(getattr(b, f) != 0) & ~np.isnan(getattr(b, f)).all() for f in ECC_FIELDS)
-            or bool(np.any(b.end_contact < 1.0)) or bool(np.any(v["shift1"] != 0)) or bool(np.any(v["shift2"] != 0)))
+    return (any((np.abs(distinct(getattr(b, f))) > 0).any() for f in ECC_FIELDS)  # NaN: none
+            or bool((distinct(b.end_contact) < 1.0).any()) or bool((distinct(v["shift1"]) != 0).any())
+            or bool((distinct(v["shift2"]) != 0).any()))
 
 
 def eccentricities(b: PostBatch, values: dict) -> tuple[np.ndarray, ...]:
@@ -465,16 +473,15 @@ def add_checks(b: PostBatch, checks: dict, values: dict) -> None:
     nds_m = b.method != EC5
     lrfd = b.method == LRFD
     # ---- net section away from mid-height (NDS 2018 §3.6.3 as remembered [M]) -----------------
-    p_net = np.full(n, np.nan)
+    nan = filled(np.nan, n)
     m_net = nds_m & (v["area_net"] < v["area"])
-    p_net = np.where(m_net, v["fc_star"] * v["area_net"] * kappa, p_net)
+    p_net = np.where(m_net, v["fc_star"] * v["area_net"] * kappa, nan) if m_net.any() else nan
     checks["net_section"] = Check(
         "net_section", "crushing of the net section (loss near an end)", "NDS 2018 §3.6.3, §3.7.1", p_net, load)
     # ---- eccentric load and bow (NDS 2018 §3.9.2, §15.4.1) ------------------------------------
     if not _block_has_eccentricity(b, v):  # centred, straight, full contact: no combined check
-        nan = np.broadcast_to(np.float64(np.nan), (n,))
-        zero = np.broadcast_to(np.float64(0.0), (n,))
-        no = np.broadcast_to(np.False_, (n,))
+        zero = filled(0.0, n)
+        no = filled(False, n)
         checks["eccentric"] = Check(
             "eccentric", "combined axial load and bending (eccentricity, bow)", "NDS 2018 §3.9.2, §15.4.1",
             nan, load)
@@ -577,8 +584,7 @@ def condition_flags(b: PostBatch, values: dict) -> np.ndarray:
     flags = np.zeros(b.n, dtype=np.int64)
 
     def flag(bit: int, where) -> None:
-        if np.any(where):
-            np.bitwise_or(flags, bit, out=flags, where=where)
+        _r.set_flag(flags, bit, where)
 
     mc = b.moisture_pct  # NaN compares False
     flag(F_DECAY_RISK, mc >= MC_DECAY_RISK)
@@ -603,9 +609,9 @@ def condition_flags(b: PostBatch, values: dict) -> np.ndarray:
     flag(F_ECCENTRIC, v["ecc_checked"])
     flag(F_ECC_UNCHECKED, v["ecc_wanted"] & ~v["ecc_checked"])
     sway = v["sway"]
-    flag(F_LEAN_THRUST, ~sway & ((_nz(b.plumb1_mm) != 0) | (_nz(b.plumb2_mm) != 0)))
+    flag(F_LEAN_THRUST, ~sway & ((np.abs(b.plumb1_mm) > 0) | (np.abs(b.plumb2_mm) > 0)))  # NaN: none
     if np.isnan(b.sw_time_us).all():  # no stress-wave readings in this block
-        nan = np.broadcast_to(np.float64(np.nan), (b.n,))
+        nan = filled(np.nan, b.n)
         sw = {"sw_velocity": nan, "sw_ed_mpa": nan, "sw_ratio": nan}
     else:
         sw = stress_wave(b)
@@ -618,9 +624,8 @@ def condition_flags(b: PostBatch, values: dict) -> np.ndarray:
     if not flags.any():
         v["condition"] = level
         return flags
-    np.maximum(level, 1, out=level, where=(flags & MINOR) != 0)
-    np.maximum(level, 2, out=level, where=(flags & MODERATE) != 0)
-    np.maximum(level, 3, out=level, where=(flags & SEVERE) != 0)
+    for lv, bits in ((1, MINOR), (2, MODERATE), (3, SEVERE)):
+        _r._at_least(level, lv, (flags & bits) != 0)
     v["condition"] = level
     return flags
 

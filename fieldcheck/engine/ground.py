@@ -34,7 +34,7 @@ from functools import cache
 import numpy as np
 
 from fieldcheck.engine import loads, nds
-from fieldcheck.engine.batch import EC5, LRFD, PostBatch
+from fieldcheck.engine.batch import EC5, LRFD, PostBatch, filled
 from fieldcheck.engine.rating import (
     ESCALATIONS, Check, Rating, Step, new_flag, register_check_hook, register_flag_hook,
     register_summary_hook,
@@ -112,8 +112,8 @@ def _block_is_plain(b: PostBatch) -> bool:
 
 def _ground_checks(b: PostBatch, checks: dict, values: dict) -> None:
     if _block_is_plain(b):
-        nan = np.broadcast_to(np.float64(np.nan), (b.n,))
-        values.update(pad_area_eff=nan, soil_capacity=nan, soil_given=np.broadcast_to(np.False_, (b.n,)),
+        nan = filled(np.nan, b.n)
+        values.update(pad_area_eff=nan, soil_capacity=nan, soil_given=filled(False, b.n),
                       lateral_n=nan, lateral_min_n=nan, lateral_thrust_n=nan, ground_plain=True)
         checks["soil_bearing"] = Check(
             "soil_bearing", "mudsill or pad on the soil", "IBC 2012 Table 1806.2", nan, b.load_n

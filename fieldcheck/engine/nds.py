@@ -52,15 +52,11 @@ def wet_service_factors(product, fc, cf_fc, fb, cf_fb, wet, wet_tabulated):
     """
     apply = wet & ~wet_tabulated
     timber = product != DIMENSION
-    cm_fc = np.where(fc * cf_fc <= 750 * PSI, 1.0, 0.8)
-    np.copyto(cm_fc, 0.91, where=timber)
-    cm_fb = np.where(timber | (fb * cf_fb <= 1150 * PSI), 1.0, 0.85)
-    cm_e = np.where(timber, 1.0, 0.9)
-    one = np.ones_like(fc)
-    cm_fcp = np.where(apply, 0.67, one)
-    np.copyto(cm_fc, 1.0, where=~apply)
-    np.copyto(cm_fb, 1.0, where=~apply)
-    np.copyto(cm_e, 1.0, where=~apply)
+    dim = apply & ~timber
+    cm_fc = np.where(apply, np.where(timber, 0.91, np.where(fc * cf_fc <= 750 * PSI, 1.0, 0.8)), 1.0)
+    cm_fb = np.where(dim & ~(fb * cf_fb <= 1150 * PSI), 0.85, 1.0)  # NaN Fb: 0.85, as before
+    cm_e = np.where(dim, 0.9, 1.0)
+    cm_fcp = np.where(apply, 0.67, 1.0)
     return cm_fc, cm_fcp, cm_e, cm_fb
 
 

@@ -6,6 +6,7 @@ summary) is produced on demand for the posts a person looks at, never for the wh
 
 from __future__ import annotations
 
+import threading
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -13,8 +14,7 @@ import numpy as np
 from fieldcheck.engine import nds
 from fieldcheck.engine.batch import EC5, LRFD, METHOD_NAMES, PostBatch
 from fieldcheck.engine.cautions import CAUTIONS
-from fieldcheck.engine.restraint import MODE_KEYS, MODES, SWAY, mode_index
-from fieldcheck.engine.restraint import ke as ke_from_ends
+from fieldcheck.engine.restraint import MODE_KEYS, MODES, end_pair, modes_of_pairs
 from fieldcheck.engine.customary import IN, LBF
 
 
@@ -202,6 +202,16 @@ def _prod(first: np.ndarray, *factors: np.ndarray) -> np.ndarray:
     return out if out is not first else first.copy()
 
 
+def set_flag(flags: np.ndarray, bit: int, where: np.ndarray) -> None:
+    """OR the flag value ``bit`` into ``flags`` where ``where`` holds (in place).
+
+    A product of the mask, not a ufunc masked with ``where=``: numpy's masked loops are about
+    ten times slower on a mixed mask, and the flags are set some forty times per block.
+    """
+    if np.any(where):
+        flags |= np.multiply(where, bit, dtype=np.int64)
+
+
 def _num(x: float, nd: int) -> float | None:
     x = float(x)
     return None if np.isnan(x) else round(x, nd)
@@ -210,9 +220,15 @@ def _num(x: float, nd: int) -> float | None:
 # Large batches are rated in blocks that stay in the CPU cache, two blocks at a time (numpy
 # releases the GIL inside array operations); the arithmetic is the same for every block.
 BLOCK = 1 << 15
-# what a large batch keeps per post besides the checks; the rest is recomputed for the post a
-# person opens (the single-post path is the batch path on a length-one batch)
-KEEP = ("ke1", "ke2", "le_d1", "le_d2", "le_d_max", "le_d_limit", "cp", "axis", "fc_star", "emin_prime")
+# what a large batch keeps per post besides the checks (what the batch CSV columns read); the
+# rest is recomputed for the post a person opens (the single-post path is the batch path on a
+# length-one batch)
+KEEP = ("ke1", "ke2", "le_d_max", "le_d_limit", "cp", "axis")
+
+
+def _absent(a: np.ndarray) -> bool:
+    """A check not made anywhere in a block: one NaN broadcast over it."""
+    return a.strides == (0,) and a.size > 0 and bool(np.isnan(a[0]))
 
 
 def rate(b: PostBatch) -> Rating:
@@ -222,32 +238,96 @@ def rate(b: PostBatch) -> Rating:
         return _rate_block(b)
     starts = range(0, n, BLOCK)
     first = _rate_block(b.take(slice(0, BLOCK)))
-    checks = {
-        k: Check(c.name, c.label, c.clause, np.empty(n), np.empty(n)) for k, c in first.checks.items()
-    }
+    # Results are written block by block into arrays of the batch's length. Two kinds are made
+    # only when a block needs them (each full-length array costs page faults): a check's
+    # capacities stay one broadcast NaN until a block makes that check, and a demand stays the
+    # batch's own load column until a block's demand differs from its load.
+    load = b.load_n
+    nan = np.broadcast_to(np.float64(np.nan), (n,))
     out = {k: np.empty(n, dtype=np.asarray(first.values[k]).dtype) for k in KEEP if k in first.values}
     core = {k: np.empty(n, dtype=getattr(first, k).dtype)
-            for k in ("capacity_n", "demand_n", "ratio", "governing", "action", "flags")}
+            for k in ("capacity_n", "ratio", "governing", "action", "flags")}
+    clauses = {k: c.clause for k, c in first.checks.items()}
+    made: dict[tuple[str, str], np.ndarray] = {}
+    lock = threading.Lock()
+
+    def made_once(key: tuple[str, str], fill) -> np.ndarray:
+        with lock:  # whichever thread needs it first makes it
+            if key not in made:
+                made[key] = fill()
+            return made[key]
 
     def put(start: int, r: Rating | None = None) -> None:
         r = r if r is not None else _rate_block(b.take(slice(start, start + BLOCK)))
         sl = slice(start, start + r.n)
+        own_load = r.batch.load_n
         for k, c in r.checks.items():
-            checks[k].capacity_n[sl] = c.capacity_n
-            checks[k].demand_n[sl] = c.demand_n
-            if c.clause not in checks[k].clause:
-                checks[k].clause += f" / {c.clause}"
+            if not _absent(c.capacity_n):
+                made_once((k, "capacity"), lambda: np.full(n, np.nan))[sl] = c.capacity_n
+            if c.demand_n is not own_load:
+                made_once((k, "demand"), load.copy)[sl] = c.demand_n
+            if c.clause not in clauses[k]:
+                with lock:
+                    clauses[k] += f" / {c.clause}"
         for k, a in out.items():
             a[sl] = r.values[k]
         for k, a in core.items():
             a[sl] = getattr(r, k)
+        if r.demand_n is not own_load:
+            made_once(("", "demand"), load.copy)[sl] = r.demand_n
 
     put(0, first)
-    from concurrent.futures import ThreadPoolExecutor
+    _share_blocks(put, starts[1:])
+    checks = {
+        k: Check(c.name, c.label, clauses[k], made.get((k, "capacity"), nan), made.get((k, "demand"), load))
+        for k, c in first.checks.items()
+    }
+    demand = made.get(("", "demand"), load)
+    return Rating(batch=b, checks=checks, values=out, partial=True, demand_n=demand, **core)
 
-    with ThreadPoolExecutor(max_workers=2) as pool:
-        list(pool.map(put, starts[1:]))
-    return Rating(batch=b, checks=checks, values=out, partial=True, **core)
+
+def _share_blocks(work, starts) -> None:
+    """Run work(start) for every block start on this thread and one helper thread.
+
+    This thread takes part rather than waiting on a pool of two: its memory arena keeps the
+    block's freed temporaries for the next block, where fresh pool threads handed memory back
+    to the system and faulted it in again (measured by bench/engine.py: a third slower).
+    """
+    todo = iter(starts)
+    lock = threading.Lock()
+    errors: list[BaseException] = []
+
+    def run() -> None:
+        while not errors:
+            with lock:
+                start = next(todo, None)
+            if start is None:
+                return
+            try:
+                work(start)
+            except BaseException as exc:  # raised again on the calling thread
+                errors.append(exc)
+
+    helper = threading.Thread(target=run, name="fieldcheck-rate", daemon=True)
+    helper.start()
+    run()
+    helper.join()
+    if errors:
+        raise errors[0]
+
+
+def _unbraced(lu: np.ndarray, h: np.ndarray, sway: np.ndarray) -> np.ndarray:
+    """Unbraced length: the given one, or the full height where none is given or the ends sway."""
+    if np.isnan(lu).all():
+        return h.copy()  # a fresh array: braced solutions write into it
+    return np.where(sway | np.isnan(lu), h, lu)
+
+
+def _axis_ke(ke_given: np.ndarray, braced: np.ndarray, sway: np.ndarray, k_ends: np.ndarray) -> np.ndarray:
+    """Ke about one axis: as given; 1.0 between brace points of a no-sway post; else from the ends."""
+    if np.isnan(ke_given).all() and not braced.any():
+        return k_ends.copy()
+    return np.where(np.isnan(ke_given), np.where(braced & ~sway, 1.0, k_ends), ke_given)
 
 
 def _rate_block(b: PostBatch) -> Rating:
@@ -278,9 +358,7 @@ def _rate_block(b: PostBatch) -> Rating:
     emin_p = _prod(b.emin_mpa, cm_e, ct_e, ci_e, np.where(lrfd, nds.KF_EMIN * nds.PHI_S, 1.0) if any_lrfd else one)
 
     # ---- effective lengths (NDS 2018 §3.7.1.2, Appendix G) ----------------------------------
-    mode = mode_index(b.bottom, b.top)
-    sway = SWAY[np.where(mode < 0, 0, mode)] & (mode >= 0)
-    k_ends = ke_from_ends(b.bottom, b.top, b.theoretical_k)
+    mode, sway, k_ends = modes_of_pairs(end_pair(b.bottom, b.top), b.theoretical_k)
     k_solved = np.full(n, np.nan)
     springs = ~(np.isnan(b.r_top) & np.isnan(b.r_bottom))
     if springs.any():  # spring-restrained ends: K solved numerically (stability.py)
@@ -291,11 +369,11 @@ def _rate_block(b: PostBatch) -> Rating:
         k_ends[idx], k_solved[idx], sway[idx] = kd, ks, sway_s
         mode[idx] = np.where(np.isnan(kd), -1, SPRING_MODE)
     h = b.height_mm
-    lu1 = np.where(sway | np.isnan(b.lu1_mm), h, b.lu1_mm)
-    lu2 = np.where(sway | np.isnan(b.lu2_mm), h, b.lu2_mm)
+    lu1 = _unbraced(b.lu1_mm, h, sway)
+    lu2 = _unbraced(b.lu2_mm, h, sway)
     # between brace points a braced (no-sway) segment is taken as pinned-pinned, Ke = 1.0
-    ke1 = np.where(np.isnan(b.ke1), np.where(b.braced1 & ~sway, 1.0, k_ends), b.ke1)
-    ke2 = np.where(np.isnan(b.ke2), np.where(b.braced2 & ~sway, 1.0, k_ends), b.ke2)
+    ke1 = _axis_ke(b.ke1, b.braced1, sway, k_ends)
+    ke2 = _axis_ke(b.ke2, b.braced2, sway, k_ends)
     # braces on a post that sways or has spring ends: solved with the braces (stability.py), K
     # over the full height, with the NDS margins of the bracketing ideal cases (design_k)
     solve_braced = (b.braced1 | b.braced2) & (sway | springs) & np.isnan(b.ke1) & np.isnan(b.ke2)
@@ -319,7 +397,7 @@ def _rate_block(b: PostBatch) -> Rating:
     le_d2 = ke2 * lu2 / cond["d_eff2"]
 
     # ---- column stability (NDS 2018 §3.7.1; built-up §15.3) ---------------------------------
-    c = nds.C_BY_PRODUCT[b.product]
+    c = nds.C_BY_PRODUCT.take(b.product.astype(np.intp))
     fce1 = nds.euler_stress(emin_p, le_d1)
     fce2 = nds.euler_stress(emin_p, le_d2)
     cp1 = nds.column_stability_factor(fce1, fc_star, c)
@@ -341,14 +419,14 @@ def _rate_block(b: PostBatch) -> Rating:
     # ---- bearing perpendicular to grain on the cap and the sill (NDS 2018 §3.10.2, §3.10.4) --
     # CD does not apply to Fc-perp (NDS 2018 Table 2.3.2 footnote); LRFD KF phi (Appendix N);
     # lambda on Fc-perp applied only where it reduces (judgement: not verified).
-    perp_time = np.where(lrfd, nds.KF_FCP * nds.PHI_FCP * np.minimum(b.lam, 1.0), 1.0)
-    cm_bear = np.where(b.bearing_wet, 0.67, 1.0)
+    perp_time = np.where(lrfd, nds.KF_FCP * nds.PHI_FCP * np.minimum(b.lam, 1.0), 1.0) if any_lrfd else one
+    cm_bear = np.where(b.bearing_wet, 0.67, 1.0) if b.bearing_wet.any() else one
     lb_top = np.where(b.top_lb_mm > 0, b.top_lb_mm, b.d1_mm)  # NaN compares False: the post's width
     lb_bot = np.where(b.bottom_lb_mm > 0, b.bottom_lb_mm, b.d1_mm)
     cb_top = nds.bearing_area_factor(lb_top, b.top_cb)
     cb_bot = nds.bearing_area_factor(lb_bot, b.bottom_cb)
-    p_cap = b.top_fc_perp_mpa * cm_bear * ct_f * perp_time * cb_top * a_top
-    p_sill = b.bottom_fc_perp_mpa * cm_bear * ct_f * perp_time * cb_bot * a_bot
+    p_cap = _prod(b.top_fc_perp_mpa, cm_bear, ct_f, perp_time, cb_top, a_top)
+    p_sill = _prod(b.bottom_fc_perp_mpa, cm_bear, ct_f, perp_time, cb_bot, a_bot)
 
     load = b.load_n
     checks = {
@@ -390,8 +468,7 @@ def _rate_block(b: PostBatch) -> Rating:
     over = le_d_max > limit
 
     def flag(bit: int, where: np.ndarray) -> None:
-        if where.any():
-            np.bitwise_or(flags, bit, out=flags, where=where)
+        set_flag(flags, bit, where)
 
     flag(F_NO_LOAD, ~has_load)
     flag(F_SLENDER_CONSTRUCTION, b.construction & (le_d_max > nds.LE_D_LIMIT) & ~over)
@@ -428,12 +505,24 @@ def finish(r: Rating) -> Rating:
     checks = list(r.checks.values())
     demand = checks[0].demand_n
     if all(c.demand_n is demand for c in checks):
+        # the smallest capacity that was computed (fmin passes over NaN: a check not made never
+        # governs); a NaN first (column) capacity stays NaN, as for a mechanism
+        first = checks[0].capacity_n
+        made = [k for k in range(1, len(checks)) if not _absent(checks[k].capacity_n)]
+        cap = first
+        for k in made:
+            cap = np.fmin(cap, checks[k].capacity_n)
+        nan_first = np.isnan(first)
+        if nan_first.any():
+            cap = np.where(nan_first, first, cap)
+        # governing: the first check, in order, whose capacity is that smallest one
         gov = np.zeros(r.n, dtype=np.int8)
-        cap = checks[0].capacity_n
-        for k, c in enumerate(checks[1:], start=1):
-            lower = c.capacity_n < cap  # NaN compares False: a check not made never governs
-            cap = np.where(lower, c.capacity_n, cap)
-            np.copyto(gov, k, where=lower)
+        for k in reversed(made):
+            hit = checks[k].capacity_n == cap
+            if hit.any():
+                gov = np.where(hit, np.int8(k), gov)
+        if made:
+            gov = np.where(first == cap, np.int8(0), gov)
         with np.errstate(divide="ignore", invalid="ignore"):
             ratio = demand / cap
     else:
@@ -459,13 +548,29 @@ def action_from(ratio, flags, le_d_max=None, limit=None) -> np.ndarray:
     act = (ratio > lo).astype(np.int8)  # NaN compares False
     act += ratio > mid
     act += ratio > hi
-    np.maximum(act, 1, out=act, where=np.isnan(ratio))  # no load: at least monitor
+    np.maximum(act, np.isnan(ratio), out=act)  # no load: at least monitor
     if le_d_max is not None:
-        np.maximum(act, 2, out=act, where=le_d_max > limit)
-    np.maximum(act, 3, out=act, where=(flags & F_MECHANISM) != 0)
-    for bits, level in ESCALATIONS:
-        np.maximum(act, level, out=act, where=(flags & bits) != 0)
+        _at_least(act, 2, le_d_max > limit)
+    for level in (1, 2, 3):  # the flags that raise the action, one mask per level
+        bits = _escalation_bits(level)
+        if bits:
+            _at_least(act, level, (flags & bits) != 0)
     return act
+
+
+def _escalation_bits(level: int) -> int:
+    """Every flag bit that raises the action to ``level`` (ESCALATIONS and the mechanism)."""
+    bits = F_MECHANISM if level == 3 else 0
+    for b, lv in ESCALATIONS:
+        if lv == level:
+            bits |= b
+    return bits
+
+
+def _at_least(act: np.ndarray, level: int, where: np.ndarray) -> None:
+    """act = max(act, level) where ``where`` holds (int8, in place; a product, not a masked loop)."""
+    if np.any(where):
+        np.maximum(act, np.multiply(where, level, dtype=np.int8), out=act)
 
 
 # (flag bits, minimum action level): condition flags register here (condition.py).

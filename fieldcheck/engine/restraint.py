@@ -35,9 +35,29 @@ RECOMMENDED = np.array([MODES[k][2] for k in MODE_KEYS])
 SWAY = np.array([k in "cef" for k in MODE_KEYS])
 
 
+_LUT_FLAT = _LUT.ravel()
+# [bottom * 4 + top] -> the ends can move sideways (a sway case; False for a mechanism)
+_SWAY_FLAT = np.array([m >= 0 and bool(SWAY[m]) for m in _LUT_FLAT])
+
+
+def end_pair(bottom: np.ndarray, top: np.ndarray) -> np.ndarray:
+    """bottom * 4 + top as intp: one index into the flat end-pair tables (a 1-D take is far
+    faster than a 2-D fancy index or a take with int8 indices)."""
+    pair = np.multiply(bottom, 4, dtype=np.intp)
+    pair += top
+    return pair
+
+
 def mode_index(bottom: np.ndarray, top: np.ndarray) -> np.ndarray:
     """Mode index 0..5 (a..f) per post, or -1 where the pair is a mechanism."""
-    return _LUT[np.asarray(bottom, dtype=np.intp), np.asarray(top, dtype=np.intp)]
+    return _LUT_FLAT.take(end_pair(bottom, top))
+
+
+def modes_of_pairs(pair: np.ndarray, theoretical: np.ndarray | bool = False):
+    """(mode index, sway, Ke) per post from :func:`end_pair` (NDS 2018 Appendix G Table G1)."""
+    k_idx = pair * 2
+    k_idx += np.asarray(theoretical, dtype=np.intp)
+    return _LUT_FLAT.take(pair), _SWAY_FLAT.take(pair), _KE_FLAT.take(k_idx)
 
 
 def mechanism_reason(bottom: int, top: int) -> str | None:
@@ -65,8 +85,7 @@ _KE_FLAT = _KE_LUT.ravel()
 
 def ke(bottom: np.ndarray, top: np.ndarray, theoretical: np.ndarray | bool = False) -> np.ndarray:
     """Ke per post from the end pair (NDS 2018 Appendix G Table G1); NaN for a mechanism."""
-    idx = (np.asarray(bottom, dtype=np.intp) * 4 + np.asarray(top, dtype=np.intp)) * 2
-    return _KE_FLAT.take(idx + np.asarray(theoretical, dtype=np.intp))
+    return modes_of_pairs(end_pair(bottom, top), theoretical)[2]
 
 
 def unbraced_length(height_mm: float, brace_heights_mm: list[float], field: str) -> float:

@@ -64,4 +64,5 @@ def area(d1_mm: np.ndarray, d2_mm: np.ndarray) -> np.ndarray:
 
 def second_moments(d1_mm: np.ndarray, d2_mm: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """(I1, I2) in mm^4: I1 bends in the plane of d1 (d2 d1^3 / 12), I2 in the plane of d2."""
-    return d2_mm * d1_mm**3 / 12.0, d1_mm * d2_mm**3 / 12.0
+    # products, not **3: numpy's power is several times slower than two multiplications
+    return d2_mm * (d1_mm * d1_mm * d1_mm) / 12.0, d1_mm * (d2_mm * d2_mm * d2_mm) / 12.0
