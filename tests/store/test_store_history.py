@@ -115,6 +115,23 @@ def test_rerate_all_adds_new_ratings_and_keeps_the_old(log, visit, shore):
     assert len(log.ratings_for(w.id)) == 1  # withdrawn: not re-rated
 
 
+def test_rerate_all_rates_repeated_records_once_each_row_its_own(log, visit, shore):
+    # a run of identical shores (only tag and location differ), a different post, and two rows
+    # the engine refuses: every good row gets its own rating, each bad row its own error
+    same = [log.save_post(visit.id, {**shore, "tag": f"R{i}", "location": f"bay {i}"}) for i in range(3)]
+    tall = log.save_post(visit.id, {**shore, "tag": "T", "height": "9ft"})
+    bad = [log.save_post(visit.id, {**shore, "tag": f"B{i}", "height": "tall"}, allow_errors=True)
+           for i in range(2)]
+    res = log.rerate_all()
+    assert (res.rated, res.unrated) == (4, 2)
+    assert sorted(e.row for e in res.errors) == [4, 5]  # rows in log order, one error each
+    assert all(e.column == "height" for e in res.errors)
+    caps = [log.ratings_for(o.id)[-1].capacity_n for o in same]
+    assert caps[0] == caps[1] == caps[2]
+    assert log.ratings_for(tall.id)[-1].capacity_n < caps[0]  # taller: less capacity (Euler)
+    assert all(log.rating_for(o.id) is None for o in bad)
+
+
 def test_sites_and_visits(log):
     s = log.add_site("14 Alder Row", "Millbrook")
     v = log.add_visit(s.id, "R. O.", "detailed", name="Basement", instruments=("tape", "awl"))
