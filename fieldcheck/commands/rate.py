@@ -113,7 +113,7 @@ def _text(s: dict, system: str) -> str:
 def _run_batch(args: argparse.Namespace) -> int:
     from fieldcheck.cli import UsageError
     from fieldcheck.records import parse_records
-    from fieldcheck.report.batch_csv import result_columns
+    from fieldcheck.report.batch_csv import KEEP, result_columns
 
     try:
         with open(args.batch, newline="", encoding="utf-8-sig") as fh:
@@ -125,7 +125,7 @@ def _run_batch(args: argparse.Namespace) -> int:
     parsed = parse_records(rows)
     from fieldcheck.engine.rating import rate
 
-    rating = rate(parsed.batch)
+    rating = rate(parsed.batch, keep=KEEP)
     results = result_columns(rating)
     for err in parsed.errors:
         print(f"fieldcheck: {err}", file=sys.stderr)

@@ -83,4 +83,6 @@ def bearing_area_factor(lb_mm: np.ndarray, eligible: np.ndarray) -> np.ndarray:
     """Cb = (lb + 0.375 in)/lb for lb < 6 in and bearing >= 3 in from the member end, else 1.0
     (NDS 2018 §3.10.4)."""
     ok = eligible & (lb_mm < CB_MAX_LB_MM) & (lb_mm > 0)
-    return np.where(ok, (lb_mm + CB_REACH_MM) / np.where(ok, lb_mm, 1.0), 1.0)
+    with np.errstate(divide="ignore", invalid="ignore"):  # lb 0 or NaN only where not ok
+        cb = (lb_mm + CB_REACH_MM) / lb_mm
+    return np.where(ok, cb, 1.0)

@@ -97,7 +97,7 @@ class Rating:
     action: np.ndarray
     flags: np.ndarray
     values: dict[str, np.ndarray] = field(default_factory=dict)  # intermediates by name
-    partial: bool = False  # a large batch keeps only KEEP; per-post text re-rates that post
+    partial: bool = False  # a large batch keeps the rating and what rate(keep=) names; per-post text re-rates that post
 
     def detail(self, i: int) -> Rating:
         """A full rating of post i alone (same code, length-one batch), for its text."""
@@ -208,7 +208,7 @@ def set_flag(flags: np.ndarray, bit: int, where: np.ndarray) -> None:
     A product of the mask, not a ufunc masked with ``where=``: numpy's masked loops are about
     ten times slower on a mixed mask, and the flags are set some forty times per block.
     """
-    if np.any(where):
+    if where.any():
         flags |= np.multiply(where, bit, dtype=np.int64)
 
 
@@ -219,11 +219,7 @@ def _num(x: float, nd: int) -> float | None:
 
 # Large batches are rated in blocks that stay in the CPU cache, two blocks at a time (numpy
 # releases the GIL inside array operations); the arithmetic is the same for every block.
-BLOCK = 1 << 15
-# what a large batch keeps per post besides the checks (what the batch CSV columns read); the
-# rest is recomputed for the post a person opens (the single-post path is the batch path on a
-# length-one batch)
-KEEP = ("ke1", "ke2", "le_d_max", "le_d_limit", "cp", "axis")
+BLOCK = 1 << 16
 
 
 def _absent(a: np.ndarray) -> bool:
@@ -231,8 +227,14 @@ def _absent(a: np.ndarray) -> bool:
     return a.strides == (0,) and a.size > 0 and bool(np.isnan(a[0]))
 
 
-def rate(b: PostBatch) -> Rating:
-    """Rate every post of the batch: one pass of array arithmetic, blockwise for large batches."""
+def rate(b: PostBatch, keep: tuple[str, ...] = ()) -> Rating:
+    """Rate every post of the batch: one pass of array arithmetic, blockwise for large batches.
+
+    A batch of one block keeps every intermediate value. A larger batch keeps the rating (the
+    checks, capacity, ratio, governing check, action, flags) and the intermediates named in
+    ``keep`` (for columns over the whole batch, e.g. report.batch_csv.KEEP); per-post text
+    re-rates that post alone (Rating.detail: the single-post path is the batch path).
+    """
     n = b.n
     if n <= BLOCK:
         return _rate_block(b)
@@ -244,7 +246,7 @@ def rate(b: PostBatch) -> Rating:
     # batch's own load column until a block's demand differs from its load.
     load = b.load_n
     nan = np.broadcast_to(np.float64(np.nan), (n,))
-    out = {k: np.empty(n, dtype=np.asarray(first.values[k]).dtype) for k in KEEP if k in first.values}
+    out = {k: np.empty(n, dtype=np.asarray(first.values[k]).dtype) for k in keep}
     core = {k: np.empty(n, dtype=getattr(first, k).dtype)
             for k in ("capacity_n", "ratio", "governing", "action", "flags")}
     clauses = {k: c.clause for k, c in first.checks.items()}
@@ -507,22 +509,24 @@ def finish(r: Rating) -> Rating:
     if all(c.demand_n is demand for c in checks):
         # the smallest capacity that was computed (fmin passes over NaN: a check not made never
         # governs); a NaN first (column) capacity stays NaN, as for a mechanism
+        # in check order, a strictly smaller capacity takes over (ties keep the earlier check);
+        # fmin passes over NaN, so a check not made never governs. The governing index is
+        # updated by arithmetic on int8 (gov += lower * (k - gov)), cheaper than a masked copy.
         first = checks[0].capacity_n
-        made = [k for k in range(1, len(checks)) if not _absent(checks[k].capacity_n)]
         cap = first
-        for k in made:
-            cap = np.fmin(cap, checks[k].capacity_n)
-        nan_first = np.isnan(first)
-        if nan_first.any():
-            cap = np.where(nan_first, first, cap)
-        # governing: the first check, in order, whose capacity is that smallest one
         gov = np.zeros(r.n, dtype=np.int8)
-        for k in reversed(made):
-            hit = checks[k].capacity_n == cap
-            if hit.any():
-                gov = np.where(hit, np.int8(k), gov)
-        if made:
-            gov = np.where(first == cap, np.int8(0), gov)
+        for k in range(1, len(checks)):
+            c = checks[k].capacity_n
+            if _absent(c):
+                continue
+            lower = c < cap  # NaN compares False
+            if lower.any():
+                gov += lower * (np.int8(k) - gov)
+            cap = np.fmin(cap, c)
+        nan_first = np.isnan(first)
+        if nan_first.any():  # no column capacity (a mechanism): NaN, as the column check says
+            cap = np.where(nan_first, first, cap)
+            gov = np.where(nan_first, np.int8(0), gov)
         with np.errstate(divide="ignore", invalid="ignore"):
             ratio = demand / cap
     else:

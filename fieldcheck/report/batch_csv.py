@@ -9,6 +9,10 @@ from fieldcheck.engine.customary import LBF
 
 
 
+# the engine's intermediate values these columns read (rate(batch, keep=KEEP) for a large batch)
+KEEP = ("ke1", "ke2", "le_d_max", "le_d_limit", "cp", "axis")
+
+
 def _fmt(a: np.ndarray, nd: int) -> list[str]:
     return ["" if np.isnan(x) else f"{x:.{nd}f}" for x in a.tolist()]
 

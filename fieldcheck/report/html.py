@@ -284,7 +284,8 @@ def _record_table(record: dict[str, str]) -> str:
 
 def _assumptions(d: ReportData, p: PostEntry) -> str:
     r, j, b, u, s = d.rating, p.j, d.rating.batch, d.units, p.summary
-    v = r.values
+    # a large batch keeps only the rating: the post's intermediates come from rating it alone
+    v, jv = (r.detail(j).values, 0) if r.partial else (r.values, j)
     method = s.get("method", "")
     if method == "ec5":
         dur = f"k_mod = {float(b.kmod[j]):g} (EN 1995-1-1 Table 3.1)"
@@ -308,11 +309,11 @@ def _assumptions(d: ReportData, p: PostEntry) -> str:
         led = v.get(f"le_d{ax}")
         if ke is None:
             continue
-        kev = float(ke[j])
-        luv = float(lu[j]) if lu is not None else float(b.height_mm[j])
+        kev = float(ke[jv])
+        luv = float(lu[jv]) if lu is not None else float(b.height_mm[j])
         rows.append((f"Axis {ax}: Ke, lu, le = Ke lu, le/d",
                      f"Ke = {kev:.3g}, lu = {format_length(luv, u)}, le = {format_length(kev * luv, u)}, "
-                     f"le/d = {float(led[j]):.2f}" if led is not None else ""))
+                     f"le/d = {float(led[jv]):.2f}" if led is not None else ""))
     lc = s.get("load_combination")
     if isinstance(lc, dict) and lc.get("name"):
         rows.append(("Load", f"{lc.get('name')}{'; ' + lc['clause'] if lc.get('clause') else ''}"))
