@@ -118,7 +118,7 @@ def slope_ratio(n: np.ndarray, which: np.ndarray, prop: str, q: np.ndarray) -> t
 def strength_ratios(b: PostBatch) -> dict[str, np.ndarray]:
     """Lowest strength ratio of the knot and the slope, for Fc and for Fb (D245: lowest, not product)."""
     if not (np.any(b.knot_mm > 0) or np.any(np.isfinite(b.slope_n))):  # nothing recorded in this block
-        one, no = np.ones(b.n), np.zeros(b.n, dtype=bool)
+        one, no = filled(1.0, b.n), filled(False, b.n)
         return {"strength_ratio": one, "sr_bending": one, "sr_knot": one, "sr_slope": one,
                 "sr_slope_bending": one, "slope_beyond_table": no, "sr_recorded": no}
     k = _nz(b.knot_mm)
@@ -589,37 +589,47 @@ def condition_flags(b: PostBatch, values: dict) -> np.ndarray:
     mc = b.moisture_pct  # NaN compares False
     flag(F_DECAY_RISK, mc >= MC_DECAY_RISK)
     flag(F_SATURATED, mc >= MC_SATURATED)
-    flag(F_SECTION_LOSS, v["loss"])
+    # fields nobody gave hold one value for the whole block: distinct() tests that one value
+    # (a mask of length one stands for the block), so the flags of a plain block cost little
+    u = distinct
+    flag(F_SECTION_LOSS, u(v["loss"]))
     if _block_has_loss(b):
         decay = (_nz(b.decay_1p_mm) + _nz(b.decay_1m_mm) + _nz(b.decay_2p_mm) + _nz(b.decay_2m_mm)
                  + _nz(b.hollow_mm)) > 0
         flag(F_DECAY_FOUND, decay)
-    flag(F_SR_APPLIED, v["strength_ratio"] < 1.0)
-    flag(F_SR_NOT_APPLIED, v["sr_recorded"] & ~b.sr_applies)
-    flag(F_SLOPE_STEEP, v["slope_beyond_table"])
-    flag(F_CHECKS, b.split == SPLIT_CHECK)
-    at_end = (b.split_zone == TOP) | (b.split_zone == BOTTOM)
-    flag(F_SPLIT_THROUGH, (b.split >= SPLIT_THROUGH) & ~at_end)
-    flag(F_END_SPLIT, (b.split >= SPLIT_THROUGH) & at_end)
-    flag(F_SPLIT_OPENING, b.split == SPLIT_OPENING)
-    flag(F_CRUSHED_END, b.crushed_end > 0)
-    flag(F_CRUSHING, b.crushing_active)
-    flag(F_SETTLING, b.settling_sill)
-    flag(F_MOVING, b.post_moving)
-    flag(F_ECCENTRIC, v["ecc_checked"])
-    flag(F_ECC_UNCHECKED, v["ecc_wanted"] & ~v["ecc_checked"])
-    sway = v["sway"]
-    flag(F_LEAN_THRUST, ~sway & ((np.abs(b.plumb1_mm) > 0) | (np.abs(b.plumb2_mm) > 0)))  # NaN: none
+    flag(F_SR_APPLIED, u(v["strength_ratio"]) < 1.0)
+    flag(F_SR_NOT_APPLIED, u(v["sr_recorded"]) & ~u(b.sr_applies))
+    flag(F_SLOPE_STEEP, u(v["slope_beyond_table"]))
+    split = u(b.split)
+    flag(F_CHECKS, split == SPLIT_CHECK)
+    if (split >= SPLIT_THROUGH).any():
+        at_end = (b.split_zone == TOP) | (b.split_zone == BOTTOM)
+        flag(F_SPLIT_THROUGH, (b.split >= SPLIT_THROUGH) & ~at_end)
+        flag(F_END_SPLIT, (b.split >= SPLIT_THROUGH) & at_end)
+    flag(F_SPLIT_OPENING, split == SPLIT_OPENING)
+    flag(F_CRUSHED_END, u(b.crushed_end) > 0)
+    flag(F_CRUSHING, u(b.crushing_active))
+    flag(F_SETTLING, u(b.settling_sill))
+    flag(F_MOVING, u(b.post_moving))
+    flag(F_ECCENTRIC, u(v["ecc_checked"]))
+    flag(F_ECC_UNCHECKED, u(v["ecc_wanted"]) & ~u(v["ecc_checked"]))
+    leaning = (np.abs(u(b.plumb1_mm)) > 0) | (np.abs(u(b.plumb2_mm)) > 0)  # NaN: none
+    if leaning.any():
+        flag(F_LEAN_THRUST, ~v["sway"] & leaning)
     if np.isnan(b.sw_time_us).all():  # no stress-wave readings in this block
         nan = filled(np.nan, b.n)
         sw = {"sw_velocity": nan, "sw_ed_mpa": nan, "sw_ratio": nan}
     else:
         sw = stress_wave(b)
     v.update(sw)
-    flag(F_SW_ADVANCED, sw["sw_ratio"] >= b.sw_advanced)
-    flag(F_SW_SUSPECT, (sw["sw_ratio"] >= b.sw_suspect) & ~(sw["sw_ratio"] >= b.sw_advanced))
-    flag(F_NO_SECTION, (v["area"] <= 0) | (v["area_net"] <= 0) | (v["area_top"] <= 0) | (v["area_bottom"] <= 0))
-    flag(F_DATA_LEVEL, b.data_level >= 0)
+    ratio = u(sw["sw_ratio"])
+    flag(F_SW_ADVANCED, ratio >= u(b.sw_advanced))
+    flag(F_SW_SUSPECT, (ratio >= u(b.sw_suspect)) & ~(ratio >= u(b.sw_advanced)))
+    no_section = v["area"] <= 0  # a sound block: the areas are all the gross area
+    if _block_has_loss(b):
+        no_section = no_section | (v["area_net"] <= 0) | (v["area_top"] <= 0) | (v["area_bottom"] <= 0)
+    flag(F_NO_SECTION, no_section)
+    flag(F_DATA_LEVEL, u(b.data_level) >= 0)
     level = np.zeros(b.n, dtype=np.int8)
     if not flags.any():
         v["condition"] = level

@@ -12,7 +12,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from fieldcheck.engine import nds
-from fieldcheck.engine.batch import EC5, LRFD, METHOD_NAMES, PostBatch
+from fieldcheck.engine.batch import EC5, LRFD, METHOD_NAMES, PostBatch, distinct, filled
 from fieldcheck.engine.cautions import CAUTIONS
 from fieldcheck.engine.restraint import MODE_KEYS, MODES, end_pair, modes_of_pairs
 from fieldcheck.engine.customary import IN, LBF
@@ -182,22 +182,16 @@ class Rating:
         return out
 
 
-_ONES: dict[int, np.ndarray] = {}
-
-
 def _one(n: int) -> np.ndarray:
     """A read-only array of ones for a block: a factor that does not apply anywhere in it."""
-    a = _ONES.get(n)
-    if a is None:
-        a = _ONES.setdefault(n, np.broadcast_to(np.float64(1.0), (n,)))
-    return a
+    return filled(1.0, n)
 
 
 def _prod(first: np.ndarray, *factors: np.ndarray) -> np.ndarray:
     """first x every factor, skipping the ones that are the block's ONE (exactly 1.0)."""
     out = first
     for f in factors:
-        if f is not _ONES.get(f.shape[0] if np.ndim(f) else -1):
+        if f is not filled(1.0, f.shape[0]):
             out = out * f
     return out if out is not first else first.copy()
 
@@ -394,7 +388,7 @@ def _rate_block(b: PostBatch) -> Rating:
     # loss in the middle part enters the stability check through d_eff = sqrt(12 I / A);
     # knots and slope reduce Fc* by the lowest strength ratio (exactly 1.0 and d for a sound post)
     cond = _condition.residual(b, ke1 * lu1, ke2 * lu2)
-    fc_star = fc_star * cond["strength_ratio"]
+    fc_star = _prod(fc_star, cond["strength_ratio"])
     le_d1 = ke1 * lu1 / cond["d_eff1"]
     le_d2 = ke2 * lu2 / cond["d_eff2"]
 
@@ -472,20 +466,24 @@ def _rate_block(b: PostBatch) -> Rating:
     def flag(bit: int, where: np.ndarray) -> None:
         set_flag(flags, bit, where)
 
+    u = distinct  # a field nobody gave: its one value stands for the block (a mask of length one)
     flag(F_NO_LOAD, ~has_load)
-    flag(F_SLENDER_CONSTRUCTION, b.construction & (le_d_max > nds.LE_D_LIMIT) & ~over)
+    if u(b.construction).any():
+        flag(F_SLENDER_CONSTRUCTION, b.construction & (le_d_max > nds.LE_D_LIMIT) & ~over)
     flag(F_SLENDER_LIMIT, over)
     # NDS 2018 §3.10.1.3: fc > 0.75 Fc* needs a steel plate (NaN load compares False)
-    flag(F_END_PLATE, ~b.end_plate & (load > nds.END_BEARING_PLATE_RATIO * fc_star * a_contact))
+    flag(F_END_PLATE, ~u(b.end_plate) & (load > nds.END_BEARING_PLATE_RATIO * fc_star * a_contact))
     flag(F_DRY_ASSUMED, ~measured)
     flag(F_WET, wet)
-    flag(F_ASSUMED_MATERIAL, (kappa < 1.0) & (b.material_assumed | (b.data_level < 0)))
-    flag(F_CAP_UNCHECKED, np.isnan(b.top_fc_perp_mpa))
-    flag(F_SILL_UNCHECKED, np.isnan(b.bottom_fc_perp_mpa))
-    flag(F_THEORETICAL_K, b.theoretical_k)
-    flag(F_SWAY_BRACES, sway & (b.braced1 | b.braced2) & ~braced_solved)
+    if (u(kappa) < 1.0).any():
+        flag(F_ASSUMED_MATERIAL, (kappa < 1.0) & (b.material_assumed | (b.data_level < 0)))
+    flag(F_CAP_UNCHECKED, np.isnan(u(b.top_fc_perp_mpa)))
+    flag(F_SILL_UNCHECKED, np.isnan(u(b.bottom_fc_perp_mpa)))
+    flag(F_THEORETICAL_K, u(b.theoretical_k))
+    if (u(b.braced1) | u(b.braced2)).any():
+        flag(F_SWAY_BRACES, sway & (b.braced1 | b.braced2) & ~braced_solved)
     flag(F_MECHANISM, mode == -1)
-    flag(F_BUILT_UP, b.kf < 1.0)
+    flag(F_BUILT_UP, u(b.kf) < 1.0)
     for hook in FLAG_HOOKS:
         flags |= hook(b, values)
 
