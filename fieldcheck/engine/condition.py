@@ -263,19 +263,29 @@ def _block_has_loss(b: PostBatch) -> bool:
 
 
 def _sound(b: PostBatch) -> dict[str, np.ndarray]:
+    """A block with no loss: the gross section. The bending properties (I, i, S) are added only
+    where a check needs them (gross_bending_properties), not for every sound block."""
     d1, d2 = b.d1_mm, b.d2_mm
     gross = d1 * d2
-    i1, i2 = second_moments(d1, d2)
-    zero, no = np.zeros(b.n), np.zeros(b.n, dtype=bool)
+    zero, no = filled(0.0, b.n), filled(False, b.n)
     out = {
         "area": gross, "area_gross": gross, "area_net": gross, "area_top": gross, "area_bottom": gross,
-        "res_i1": i1, "res_i2": i2, "d_eff1": d1, "d_eff2": d2, "i_gyr1": d1 / np.sqrt(12.0),
-        "i_gyr2": d2 / np.sqrt(12.0), "s1": i1 / (0.5 * d1), "s2": i2 / (0.5 * d2), "least_d1": d1,
-        "least_d2": d2, "shift1": zero, "shift2": zero, "loss": no, "loss_mid": no,
-        "split_axis": np.zeros(b.n, dtype=np.int8),
+        "d_eff1": d1, "d_eff2": d2, "least_d1": d1, "least_d2": d2, "shift1": zero, "shift2": zero,
+        "loss": no, "loss_mid": no, "split_axis": filled(np.int8(0), b.n),
     }
     out.update(strength_ratios(b))
     return out
+
+
+def gross_bending_properties(b: PostBatch, v: dict) -> None:
+    """res_i1, res_i2, i_gyr1, i_gyr2, s1, s2 of the gross section, where a sound block left them
+    out (the same formulas as the residual path gives a sound post)."""
+    if "s1" in v:
+        return
+    d1, d2 = b.d1_mm, b.d2_mm
+    i1, i2 = second_moments(d1, d2)
+    v.update(res_i1=i1, res_i2=i2, i_gyr1=d1 / np.sqrt(12.0), i_gyr2=d2 / np.sqrt(12.0),
+             s1=i1 / (0.5 * d1), s2=i2 / (0.5 * d2))
 
 
 def residual(b: PostBatch, le1: np.ndarray | None = None, le2: np.ndarray | None = None) -> dict[str, np.ndarray]:
@@ -488,6 +498,7 @@ def add_checks(b: PostBatch, checks: dict, values: dict) -> None:
         v.update(ecc1=zero, ecc2=zero, bow1=zero, bow2=zero, fb_star=nan, fbe=nan, cl=nan,
                  ecc_checked=no, ecc_wanted=no)
         return
+    gross_bending_properties(b, v)
     e1, e2, bow1, bow2 = eccentricities(b, v)
     time_fb = np.where(lrfd, nds.KF_FB * nds.PHI_B * b.lam, b.cd)
     fb_star = b.fb_mpa * time_fb * v["cm_fb"] * v["ct_f"] * b.cf_fb * v["ci_f"] * v["sr_bending"]
@@ -634,8 +645,10 @@ def condition_flags(b: PostBatch, values: dict) -> np.ndarray:
     if not flags.any():
         v["condition"] = level
         return flags
+    present = int(np.bitwise_or.reduce(flags))  # every flag raised in the block
     for lv, bits in ((1, MINOR), (2, MODERATE), (3, SEVERE)):
-        _r._at_least(level, lv, (flags & bits) != 0)
+        if bits & present:
+            _r._at_least(level, lv, (flags & bits) != 0)
     v["condition"] = level
     return flags
 

@@ -44,11 +44,11 @@ def euler_stress(emin_prime: np.ndarray, le_d: np.ndarray) -> np.ndarray:
 
 
 def wet_service_factors(product, fc, cf_fc, fb, cf_fb, wet, wet_tabulated):
-    """CM for Fc, Fc-perp, E/Emin, Fb (NDS Supplement Tables 4A and 4D adjustment factors).
+    """CM for Fc, E/Emin and Fb (NDS Supplement Tables 4A and 4D adjustment factors).
 
-    Dimension lumber: Fc 0.8 (1.0 when Fc CF <= 750 psi), Fc-perp 0.67, E 0.9, Fb 0.85 (1.0 when
-    Fb CF <= 1150 psi). Timbers: Fc 0.91, Fc-perp 0.67, E 1.0, Fb 1.0. Values already tabulated
-    for wet service take 1.0.
+    Dimension lumber: Fc 0.8 (1.0 when Fc CF <= 750 psi), E 0.9, Fb 0.85 (1.0 when Fb CF <= 1150
+    psi). Timbers: Fc 0.91, E 1.0, Fb 1.0. Values already tabulated for wet service take 1.0.
+    CM for Fc-perp (0.67) belongs to each bearing: the rating applies it where the bearing is wet.
     """
     apply = wet & ~wet_tabulated
     timber = product != DIMENSION
@@ -56,8 +56,7 @@ def wet_service_factors(product, fc, cf_fc, fb, cf_fb, wet, wet_tabulated):
     cm_fc = np.where(apply, np.where(timber, 0.91, np.where(fc * cf_fc <= 750 * PSI, 1.0, 0.8)), 1.0)
     cm_fb = np.where(dim & ~(fb * cf_fb <= 1150 * PSI), 0.85, 1.0)  # NaN Fb: 0.85, as before
     cm_e = np.where(dim, 0.9, 1.0)
-    cm_fcp = np.where(apply, 0.67, 1.0)
-    return cm_fc, cm_fcp, cm_e, cm_fb
+    return cm_fc, cm_e, cm_fb
 
 
 def temperature_factors(temp_c: np.ndarray, wet: np.ndarray):

@@ -337,11 +337,11 @@ def _rate_block(b: PostBatch) -> Rating:
     # a factor that is 1.0 for the whole block is the shared ONE view and is skipped in products
     one = _one(n)
     if wet.any():
-        cm_fc, cm_fcp, cm_e, cm_fb = nds.wet_service_factors(
+        cm_fc, cm_e, cm_fb = nds.wet_service_factors(
             b.product, b.fc_mpa, b.cf_fc, b.fb_mpa, b.cf_fb, wet, b.wet_tabulated
         )
     else:
-        cm_fc = cm_fcp = cm_e = cm_fb = one
+        cm_fc = cm_e = cm_fb = one
     if np.isnan(b.temp_c).all():
         ct_f = ct_e = one
     else:
@@ -553,8 +553,9 @@ def action_from(ratio, flags, le_d_max=None, limit=None) -> np.ndarray:
     np.maximum(act, np.isnan(ratio), out=act)  # no load: at least monitor
     if le_d_max is not None:
         _at_least(act, 2, le_d_max > limit)
+    present = int(np.bitwise_or.reduce(flags)) if flags.size else 0  # every flag raised anywhere
     for level in (1, 2, 3):  # the flags that raise the action, one mask per level
-        bits = _escalation_bits(level)
+        bits = _escalation_bits(level) & present
         if bits:
             _at_least(act, level, (flags & bits) != 0)
     return act
