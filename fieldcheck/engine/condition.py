@@ -501,7 +501,8 @@ def add_checks(b: PostBatch, checks: dict, values: dict) -> None:
     gross_bending_properties(b, v)
     e1, e2, bow1, bow2 = eccentricities(b, v)
     time_fb = np.where(lrfd, nds.KF_FB * nds.PHI_B * b.lam, b.cd)
-    fb_star = b.fb_mpa * time_fb * v["cm_fb"] * v["ct_f"] * b.cf_fb * v["ci_f"] * v["sr_bending"]
+    cm_fb = nds.wet_bending_factor(b.product, b.fb_mpa, b.cf_fb, v["wet"], b.wet_tabulated)
+    fb_star = b.fb_mpa * time_fb * cm_fb * v["ct_f"] * b.cf_fb * v["ci_f"] * v["sr_bending"]
     # lateral-torsional buckling only for d1/d2 > 2 (NDS 2018 §4.4.1: CL = 1.0 up to 2, from memory)
     deep = b.d1_mm > 2.0 * b.d2_mm
     rb2 = LE_BENDING * v["lu1"] * b.d1_mm / (b.d2_mm * b.d2_mm)  # RB^2 (NDS 2018 §3.3.3)

@@ -337,11 +337,9 @@ def _rate_block(b: PostBatch) -> Rating:
     # a factor that is 1.0 for the whole block is the shared ONE view and is skipped in products
     one = _one(n)
     if wet.any():
-        cm_fc, cm_e, cm_fb = nds.wet_service_factors(
-            b.product, b.fc_mpa, b.cf_fc, b.fb_mpa, b.cf_fb, wet, b.wet_tabulated
-        )
+        cm_fc, cm_e = nds.wet_service_factors(b.product, b.fc_mpa, b.cf_fc, wet, b.wet_tabulated)
     else:
-        cm_fc = cm_e = cm_fb = one
+        cm_fc = cm_e = one
     if np.isnan(b.temp_c).all():
         ct_f = ct_e = one
     else:
@@ -440,9 +438,9 @@ def _rate_block(b: PostBatch) -> Rating:
         "ct_e": ct_e, "ci_f": ci_f, "ci_e": ci_e, "time_fc": time_fc, "mode": mode, "ke1": ke1,
         "ke2": ke2, "lu1": lu1, "lu2": lu2, "le_d1": le_d1, "le_d2": le_d2, "fce1": fce1,
         "k_solved": k_solved, "fce2": fce2, "cp1": cp1, "cp2": cp2, "cp": cp, "c": c, "area": area,
-        "axis": np.where(axis2, 2, 1).astype(np.int8), "cb_top": cb_top, "cb_bot": cb_bot,
+        "axis": np.add(axis2, 1, dtype=np.int8), "cb_top": cb_top, "cb_bot": cb_bot,
         "perp_time": perp_time, "cm_bear": cm_bear, "a_contact": a_contact, "a_top": a_top,
-        "a_bottom": a_bot, "cm_fb": cm_fb, "wet": wet, "sway": sway,
+        "a_bottom": a_bot, "wet": wet, "sway": sway,
     }
     values.update(cond)
     values["area"] = area
@@ -456,7 +454,11 @@ def _rate_block(b: PostBatch) -> Rating:
 
     # ---- slenderness limit (NDS 2018 §3.7.1.4) ----------------------------------------------
     le_d_max = np.maximum(values["le_d1"], values["le_d2"])
-    limit = np.where(b.construction, nds.LE_D_LIMIT_CONSTRUCTION, nds.LE_D_LIMIT)
+    con = distinct(b.construction)
+    if con.size == 1 and n > 1:  # one answer for the block
+        limit = filled(nds.LE_D_LIMIT_CONSTRUCTION if con[0] else nds.LE_D_LIMIT, n)
+    else:
+        limit = np.where(b.construction, nds.LE_D_LIMIT_CONSTRUCTION, nds.LE_D_LIMIT)
     values["le_d_max"], values["le_d_limit"] = le_d_max, limit
 
     flags = np.zeros(n, dtype=np.int64)
