@@ -198,13 +198,15 @@ class PostBatch:
         read-only contiguous array of that value (numpy's fast loops want contiguous input).
         """
         out = {}
-        for f in fields(self):
-            a = getattr(self, f.name)
+        m = None  # the new length, found from the first field holding one value
+        for name in FIELD_NAMES:
+            a = getattr(self, name)
             if a.strides == (0,) and a.size:
-                m = len(range(*idx.indices(a.size))) if isinstance(idx, slice) else len(a[idx])
-                out[f.name] = _constant(a[0], m)
+                if m is None:
+                    m = len(range(*idx.indices(a.size))) if isinstance(idx, slice) else len(a[idx])
+                out[name] = _constant(a[0], m)
             else:
-                out[f.name] = a[idx]
+                out[name] = a[idx]
         return PostBatch(**out)
 
     def replace(self, **changes) -> PostBatch:
