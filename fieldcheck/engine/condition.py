@@ -293,7 +293,8 @@ def residual(b: PostBatch, le1: np.ndarray | None = None, le2: np.ndarray | None
 
     Keys: area (middle section, used by the column check), area_gross, area_net (all losses
     together, for the crushing check), area_top, area_bottom (end bearing), res_i1, res_i2,
-    d_eff1, d_eff2, i_gyr1, i_gyr2, s1, s2, least_d1, least_d2, shift1, shift2, loss (bool),
+    d_eff1, d_eff2, i_gyr1, i_gyr2, s1, s2 (a sound block leaves res_i*, i_gyr* and s* to
+    gross_bending_properties), least_d1, least_d2, shift1, shift2, loss (bool),
     and the strength ratios (strength_ratio for Fc, sr_bending for Fb, ...). ``le1``, ``le2``
     (effective lengths) decide the axis of a through split whose faces were not recorded.
     """

@@ -97,7 +97,7 @@ class Rating:
     action: np.ndarray
     flags: np.ndarray
     values: dict[str, np.ndarray] = field(default_factory=dict)  # intermediates by name
-    partial: bool = False  # a large batch keeps the rating and what rate(keep=) names; per-post text re-rates that post
+    partial: bool = False  # large batch: the rating and rate(keep=) only; per-post text re-rates
 
     def detail(self, i: int) -> Rating:
         """A full rating of post i alone (same code, length-one batch), for its text."""
@@ -211,8 +211,8 @@ def _num(x: float, nd: int) -> float | None:
     return None if np.isnan(x) else round(x, nd)
 
 
-# Large batches are rated in blocks that stay in the CPU cache, two blocks at a time (numpy
-# releases the GIL inside array operations); the arithmetic is the same for every block.
+# Large batches are rated in blocks that stay in the CPU cache, on this thread and one helper
+# (numpy releases the GIL inside array operations); the arithmetic is the same for every block.
 BLOCK = 1 << 16
 
 
@@ -239,7 +239,7 @@ def rate(b: PostBatch, keep: tuple[str, ...] = ()) -> Rating:
     # capacities stay one broadcast NaN until a block makes that check, and a demand stays the
     # batch's own load column until a block's demand differs from its load.
     load = b.load_n
-    nan = np.broadcast_to(np.float64(np.nan), (n,))
+    nan = filled(np.nan, n)
     out = {k: np.empty(n, dtype=np.asarray(first.values[k]).dtype) for k in keep}
     core = {k: np.empty(n, dtype=getattr(first, k).dtype)
             for k in ("capacity_n", "ratio", "governing", "action", "flags")}
