@@ -87,6 +87,26 @@ def test_batch_rates_good_rows_and_names_bad_ones(tmp_path, capsys):
     assert float(rows[2]["allowable_load_lbf"]) == pytest.approx(20918.2, abs=0.1)  # worked example B
 
 
+def test_batch_output_is_the_same_in_engine_blocks(tmp_path, monkeypatch):
+    # a batch above one engine block keeps only the columns the CSV asks for (rate(keep=...))
+    from fieldcheck.engine import rating as rating_mod
+
+    src = tmp_path / "in.csv"
+    with src.open("w", newline="") as fh:
+        w = csv.writer(fh)
+        w.writerow(["tag", "size", "height", "species", "grade", "load", "top", "construction"])
+        for i, (size, h, top) in enumerate([("4x4", "10ft", "pinned"), ("6x6", "10 ft", "fixed"),
+                                            ("2x4", "12ft", "pinned"), ("4x6", "8ft", "guided")] * 3):
+            w.writerow([f"P{i}", size, h, "douglas-fir-larch", "no2", "4000lbf", top, "yes" if i % 2 else ""])
+    outs = []
+    for block in (1 << 16, 3):
+        monkeypatch.setattr(rating_mod, "BLOCK", block)
+        out = tmp_path / f"out{block}.csv"
+        assert main(["rate", "--batch", str(src), "--out", str(out)]) == 0
+        outs.append(out.read_text())
+    assert outs[0] == outs[1]
+
+
 def test_bare_fieldcheck_help_never_a_traceback(capsys):
     assert main(["--help"]) == 0
     assert main(["rate", "--help"]) == 0

@@ -146,9 +146,11 @@ def post_summary(rating: Rating, j: int, rem) -> dict[str, Any]:
         "due_days": DUE_DAYS[act],
         "warnings": rating.warnings(j),
     }
+    # a large batch keeps no intermediates: the hooks read the post rated alone (same numbers)
+    src, k = (rating.detail(j), 0) if rating.partial else (rating, j)
     for hook in _rating.SUMMARY_HOOKS:
         if not _is_remedies_hook(hook):
-            hook(rating, j, out)
+            hook(src, k, out)
     out["remedies"] = [x.as_dict() for x in rem.for_post(j)]
     return out
 

@@ -168,3 +168,13 @@ def test_sign_offs_are_on_the_cover(demo_log):
     out = render_report(demo_log)
     cover = out[:out.index('id="client"')]
     assert "Basement posts reviewed" in cover and "Reviewing engineer" in cover
+
+
+def test_a_large_batch_reports_the_same_as_a_small_one(demo_log, monkeypatch):
+    # above one engine block the rating keeps no intermediates; the report rates each post alone
+    # for its assumptions table, so the report is the same text either way
+    from fieldcheck.engine import rating as rating_mod
+
+    whole = render_report(demo_log)
+    monkeypatch.setattr(rating_mod, "BLOCK", 2)  # the demo's posts in blocks of two: partial
+    assert render_report(demo_log) == whole
