@@ -224,44 +224,45 @@ class PostBatch:
         )
 
 
-_CONSTANTS: dict[tuple, np.ndarray] = {}
-_CONSTANT_IDS: set[int] = set()  # the arrays above (kept alive by the dict, so ids are stable)
-_FILLED: dict[tuple, np.ndarray] = {}
+_SHARED: dict[tuple, np.ndarray] = {}  # read-only arrays of one value, by (value, n, kind)
+_SHARED_IDS: set[int] = set()  # their ids (kept alive by the dict, so the ids are stable)
+
+
+def _shared(value, n: int, contiguous: bool) -> np.ndarray:
+    """n copies of one value, read-only and cached: blocks of one size reuse them."""
+    v = np.asarray(value)
+    key = (v.dtype.str, v.tobytes(), n, contiguous)
+    arr = _SHARED.get(key)
+    if arr is None:
+        if len(_SHARED) > 4096:  # many odd lengths: start again rather than grow
+            _SHARED.clear()
+            _SHARED_IDS.clear()
+        if contiguous:
+            arr = np.full(n, v, dtype=v.dtype)
+            arr.flags.writeable = False
+        else:
+            arr = np.broadcast_to(v, (n,))
+        arr = _SHARED.setdefault(key, arr)
+        _SHARED_IDS.add(id(arr))
+    return arr
 
 
 def _constant(value: np.generic, n: int) -> np.ndarray:
-    """A read-only array of n copies of value, shared (blocks of one size reuse it)."""
-    key = (value.dtype.str, value.tobytes(), n)
-    arr = _CONSTANTS.get(key)
-    if arr is None:
-        if len(_CONSTANTS) > 4096:  # many odd lengths: start again rather than grow
-            _CONSTANTS.clear()
-            _CONSTANT_IDS.clear()
-        arr = np.full(n, value, dtype=value.dtype)
-        arr.flags.writeable = False
-        arr = _CONSTANTS.setdefault(key, arr)
-        _CONSTANT_IDS.add(id(arr))
-    return arr
+    """A block's part of a field holding one value: contiguous (numpy's fast loops want it)."""
+    return _shared(value, n, contiguous=True)
 
 
 def filled(value, n: int) -> np.ndarray:
-    """n copies of one value as a read-only broadcast view, cached (np.broadcast_to is slow to
-    call for every block). For results that do not apply anywhere in a block (NaN, 0, False)."""
-    v = np.asarray(value)
-    key = (v.dtype.str, v.tobytes(), n)
-    arr = _FILLED.get(key)
-    if arr is None:
-        if len(_FILLED) > 4096:
-            _FILLED.clear()
-        arr = _FILLED.setdefault(key, np.broadcast_to(v, (n,)))
-    return arr
+    """n copies of one value as a broadcast view (np.broadcast_to is slow to call for every
+    block). For results that do not apply anywhere in a block (NaN, 0, False, a factor 1.0)."""
+    return _shared(value, n, contiguous=False)
 
 
 def distinct(a: np.ndarray) -> np.ndarray:
     """``a``, or just its first element when every element is known to be the same (a field
     nobody gave, or a filled result): block-level tests such as ``distinct(a).any()`` then
     look at one value instead of a block of them."""
-    if a.size and (a.strides == (0,) or id(a) in _CONSTANT_IDS):
+    if a.size and (a.strides == (0,) or id(a) in _SHARED_IDS):
         return a[:1]
     return a
 

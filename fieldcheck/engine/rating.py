@@ -182,13 +182,8 @@ class Rating:
         return out
 
 
-def _one(n: int) -> np.ndarray:
-    """A read-only array of ones for a block: a factor that does not apply anywhere in it."""
-    return filled(1.0, n)
-
-
 def _prod(first: np.ndarray, *factors: np.ndarray) -> np.ndarray:
-    """first x every factor, skipping the ones that are the block's ONE (exactly 1.0)."""
+    """first x every factor, skipping the ones that are filled(1.0, n) (exactly 1.0)."""
     out = first
     for f in factors:
         if f is not filled(1.0, f.shape[0]):
@@ -334,8 +329,8 @@ def _rate_block(b: PostBatch) -> Rating:
     wet = measured & (b.moisture_pct > 19.0)  # NDS Supplement: dry service is 19 % or less
 
     # ---- adjusted design values (NDS 2018 Table 4.3.1) --------------------------------------
-    # a factor that is 1.0 for the whole block is the shared ONE view and is skipped in products
-    one = _one(n)
+    # a factor of exactly 1.0 for the whole block is the shared filled(1.0, n): _prod skips it
+    one = filled(1.0, n)
     if wet.any():
         cm_fc, cm_e = nds.wet_service_factors(b.product, b.fc_mpa, b.cf_fc, wet, b.wet_tabulated)
     else:

@@ -83,11 +83,6 @@ for _b in range(4):
 _KE_FLAT = _KE_LUT.ravel()
 
 
-def ke(bottom: np.ndarray, top: np.ndarray, theoretical: np.ndarray | bool = False) -> np.ndarray:
-    """Ke per post from the end pair (NDS 2018 Appendix G Table G1); NaN for a mechanism."""
-    return modes_of_pairs(end_pair(bottom, top), theoretical)[2]
-
-
 def unbraced_length(height_mm: float, brace_heights_mm: list[float], field: str) -> float:
     """Longest unbraced segment (mm) between the ends and the brace points (NDS 2018 §3.7.1.1)."""
     pts = sorted(brace_heights_mm)

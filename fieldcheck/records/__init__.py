@@ -20,10 +20,12 @@ from fieldcheck.engine.batch import PostBatch, make_batch
 from fieldcheck.records.builders import BUILDERS, RowError
 from fieldcheck.records.columns import COLUMNS, GROUPS, Column
 
-_UNRATED = frozenset(("tag", "location", "notes"))  # kept in the log, not seen by the engine
+UNRATED_COLUMNS = ("tag", "location", "notes")  # kept in the log, not seen by the engine
+_UNRATED = frozenset(UNRATED_COLUMNS)
 from fieldcheck.records import load_columns as _load_columns  # noqa: F401,E402  (tributary loads, ground)
 
-__all__ = ["COLUMNS", "GROUPS", "Column", "FieldError", "Parsed", "parse_records", "rate_records", "parse_row"]
+__all__ = ["COLUMNS", "GROUPS", "UNRATED_COLUMNS", "Column", "FieldError", "Parsed", "parse_records",
+           "rate_records", "parse_row"]
 
 
 @dataclass(frozen=True)

@@ -658,13 +658,16 @@ class Log:
     def rerate_all(self) -> RerateResult:
         """Re-rate every current revision in ONE engine call and store the new ratings (with
         this engine's version and data editions) in one transaction; old ratings are kept."""
+        from fieldcheck.records import UNRATED_COLUMNS
+
+        # What the engine sees of each record: its JSON without the columns the records layer
+        # leaves out (tag, location, notes). A log repeats such records (a run of identical
+        # shores), so each distinct one is decoded, parsed and rated once; SQLite strips the
+        # keys in C, and the rows are plain tuples, no dict per row.
+        strip = ", ".join(f"'$.{c}'" for c in UNRATED_COLUMNS)
         with self._lock:
-            # What the engine sees of each record: its JSON without the tag, location and notes
-            # (records.parse_records leaves the same columns out). A log repeats such records (a
-            # run of identical shores), so each distinct one is decoded, parsed and rated once;
-            # SQLite strips the keys in C, and the rows are plain tuples, no dict per row.
             heads = self.db.conn.execute(
-                "SELECT id, json_remove(record_json, '$.tag', '$.location', '$.notes') "
+                f"SELECT id, json_remove(record_json, {strip}) "
                 "FROM observations o WHERE withdrawn = 0 AND NOT EXISTS "
                 "(SELECT 1 FROM observations c WHERE c.supersedes = o.id) ORDER BY rowid"
             ).fetchall()
@@ -870,6 +873,8 @@ _OBS_COLS = (
     "id", "member_id", "visit_id", "supersedes", "withdrawn", "reason", "record_json",
     *_ORIGIN_COLS,
 )
+
+
 def _spread_errors(errors: list[RowError], which: list[int]) -> list[RowError]:
     """Errors found on distinct records, given for every row holding that record, in row order."""
     if not errors:
