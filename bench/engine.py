@@ -28,17 +28,35 @@ def synthetic(n: int, seed: int = 7, conditions: bool = False):
     rng = np.random.default_rng(seed)
     d1 = rng.uniform(3.5, 11.5, n) * IN
     d2 = np.minimum(d1, rng.uniform(3.5, 11.5, n) * IN)
-    pairs = np.array([(b, t) for b in range(4) for t in range(4) if mode_index(np.array([b]), np.array([t]))[0] >= 0])
+    pairs = np.array(
+        [
+            (b, t)
+            for b in range(4)
+            for t in range(4)
+            if mode_index(np.array([b]), np.array([t]))[0] >= 0
+        ]
+    )
     ends = pairs[rng.integers(0, len(pairs), n)]
     fields = dict(
-        d1_mm=d1, d2_mm=d2, height_mm=rng.uniform(48, 240, n) * IN,
-        fc_mpa=rng.uniform(500, 1700, n) * PSI, emin_mpa=rng.uniform(4e5, 7e5, n) * PSI,
-        fb_mpa=rng.uniform(500, 1500, n) * PSI, fc_perp_mpa=rng.uniform(400, 650, n) * PSI,
-        e_mpa=rng.uniform(1.1e6, 1.9e6, n) * PSI, cf_fc=rng.choice([1.0, 1.05, 1.1, 1.15], n),
-        product=rng.integers(0, 2, n), bottom=ends[:, 0], top=ends[:, 1], cd=rng.choice([0.9, 1.0, 1.15, 1.25], n),
-        moisture_pct=rng.uniform(8, 35, n), load_n=rng.uniform(5e3, 2e5, n),
-        top_fc_perp_mpa=np.full(n, 625 * PSI), bottom_fc_perp_mpa=np.full(n, 565 * PSI),
-        top_cb=rng.random(n) < 0.5, bottom_cb=rng.random(n) < 0.5,
+        d1_mm=d1,
+        d2_mm=d2,
+        height_mm=rng.uniform(48, 240, n) * IN,
+        fc_mpa=rng.uniform(500, 1700, n) * PSI,
+        emin_mpa=rng.uniform(4e5, 7e5, n) * PSI,
+        fb_mpa=rng.uniform(500, 1500, n) * PSI,
+        fc_perp_mpa=rng.uniform(400, 650, n) * PSI,
+        e_mpa=rng.uniform(1.1e6, 1.9e6, n) * PSI,
+        cf_fc=rng.choice([1.0, 1.05, 1.1, 1.15], n),
+        product=rng.integers(0, 2, n),
+        bottom=ends[:, 0],
+        top=ends[:, 1],
+        cd=rng.choice([0.9, 1.0, 1.15, 1.25], n),
+        moisture_pct=rng.uniform(8, 35, n),
+        load_n=rng.uniform(5e3, 2e5, n),
+        top_fc_perp_mpa=np.full(n, 625 * PSI),
+        bottom_fc_perp_mpa=np.full(n, 565 * PSI),
+        top_cb=rng.random(n) < 0.5,
+        bottom_cb=rng.random(n) < 0.5,
     )
     if conditions:
         from fieldcheck.engine import condition
@@ -102,9 +120,13 @@ def main() -> None:
     fl = min(floor(b) for _ in range(3))
     per_post = loop(b, sample=min(n, 2000))
     out = {
-        "posts": n, "seconds": round(seconds, 4), "ratio_to_floor": round(seconds / fl, 2),
-        "speedup_vs_loop": round(per_post * n / seconds, 1), "floor_seconds": round(fl, 4),
-        "loop_us_per_post": round(per_post * 1e6, 1), "conditions": conditions,
+        "posts": n,
+        "seconds": round(seconds, 4),
+        "ratio_to_floor": round(seconds / fl, 2),
+        "speedup_vs_loop": round(per_post * n / seconds, 1),
+        "floor_seconds": round(fl, 4),
+        "loop_us_per_post": round(per_post * 1e6, 1),
+        "conditions": conditions,
     }
     print(json.dumps(out))
 

@@ -50,8 +50,9 @@ Timed(db=sys.argv[1]).run(headless=True)
 
 
 def first_screen(code: str, db: str) -> float:
-    out = subprocess.run([sys.executable, "-c", code, db], cwd=ROOT, capture_output=True,
-                         text=True, timeout=120)
+    out = subprocess.run(
+        [sys.executable, "-c", code, db], cwd=ROOT, capture_output=True, text=True, timeout=120
+    )
     for line in out.stdout.splitlines():
         if line.startswith("READY"):
             return float(line.split()[1])

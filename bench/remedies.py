@@ -25,13 +25,22 @@ def failing_posts(n: int, seed: int = 1):
     d = (nominal - 0.5) * 25.4
     timber = nominal >= 6
     return make_batch(
-        n=n, d1_mm=d, d2_mm=d, height_mm=rng.uniform(2400, 4200, n),
-        fc_mpa=np.where(timber, 1000.0, 1350.0) * PSI, fc_perp_mpa=625 * PSI, fb_mpa=900 * PSI,
-        e_mpa=1.6e6 * PSI, emin_mpa=580_000 * PSI, cf_fc=np.where(timber, 1.0, 1.15),
-        product=timber.astype(np.int8), species_code=0,
+        n=n,
+        d1_mm=d,
+        d2_mm=d,
+        height_mm=rng.uniform(2400, 4200, n),
+        fc_mpa=np.where(timber, 1000.0, 1350.0) * PSI,
+        fc_perp_mpa=625 * PSI,
+        fb_mpa=900 * PSI,
+        e_mpa=1.6e6 * PSI,
+        emin_mpa=580_000 * PSI,
+        cf_fc=np.where(timber, 1.0, 1.15),
+        product=timber.astype(np.int8),
+        species_code=0,
         load_n=np.where(timber, rng.uniform(110e3, 160e3, n), rng.uniform(30e3, 50e3, n)),
         bottom_fc_perp_mpa=np.where(rng.random(n) < 0.3, 425 * PSI, np.nan),
-        pad_area_mm2=np.where(rng.random(n) < 0.3, 610.0**2, np.nan), soil_kpa=95.76,
+        pad_area_mm2=np.where(rng.random(n) < 0.3, 610.0**2, np.nan),
+        soil_kpa=95.76,
     )
 
 
@@ -46,8 +55,12 @@ def main() -> None:
     assert rem.failing.size == N, rem.failing.size
     secs = time.perf_counter() - t0
     per_post = np.bincount(rem.post, minlength=N)
-    print(f"failing {rem.failing.size} of {N}; options offered {len(rem)}; posts with none {(per_post[rem.failing] == 0).sum()}")
-    print(json.dumps({"posts": int(rem.failing.size), "seconds": round(secs, 3), "options": len(rem)}))
+    print(
+        f"failing {rem.failing.size} of {N}; options offered {len(rem)}; posts with none {(per_post[rem.failing] == 0).sum()}"
+    )
+    print(
+        json.dumps({"posts": int(rem.failing.size), "seconds": round(secs, 3), "options": len(rem)})
+    )
 
 
 if __name__ == "__main__":

@@ -16,8 +16,8 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 
-from fieldcheck.report.html import write_report  # noqa: E402
-from fieldcheck.store import Log  # noqa: E402
+from fieldcheck.report.html import write_report
+from fieldcheck.store import Log
 
 
 def synthetic(n: int) -> list[dict[str, str]]:
@@ -62,12 +62,20 @@ def main() -> None:
             path = write_report(log, Path(tmp) / "report.html", units=a.units)
             seconds = time.perf_counter() - t
             size = path.stat().st_size
-    print(f"imported {res.imported} posts in {import_s:.2f} s; report {size / 1e6:.1f} MB",
-          file=sys.stderr)
-    print(json.dumps({
-        "posts": res.imported, "seconds": round(seconds, 3), "bytes": size,
-        "per_post_ms": round(1000 * seconds / max(res.imported, 1), 3),
-    }))
+    print(
+        f"imported {res.imported} posts in {import_s:.2f} s; report {size / 1e6:.1f} MB",
+        file=sys.stderr,
+    )
+    print(
+        json.dumps(
+            {
+                "posts": res.imported,
+                "seconds": round(seconds, 3),
+                "bytes": size,
+                "per_post_ms": round(1000 * seconds / max(res.imported, 1), 3),
+            }
+        )
+    )
 
 
 if __name__ == "__main__":

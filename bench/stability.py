@@ -25,7 +25,9 @@ def posts(n: int, seed: int = 4):
     k_rot_top = R() * EI / L
     k_rot_bottom = R() * EI / L
     sway = rng.random(n) < 0.3
-    k_lat_top = np.where(sway, 0.0, np.where(rng.random(n) < 0.2, 10 ** rng.uniform(-1, 3, n), np.inf))
+    k_lat_top = np.where(
+        sway, 0.0, np.where(rng.random(n) < 0.2, 10 ** rng.uniform(-1, 3, n), np.inf)
+    )
     k_lat_bottom = np.inf
     braces = np.full((n, 2), np.nan)
     one = rng.random(n) < 0.3
@@ -44,9 +46,15 @@ def main() -> None:
     seconds = time.perf_counter() - t0
     K = np.pi / args[1] * np.sqrt(args[0] / p)
     braced_share = float((~np.isnan(args[6])).any(axis=1).mean())
-    print(f"{N} posts, {braced_share:.0%} with braces, K from {np.nanmin(K):.3f} to {np.nanmax(K):.3f}")
+    print(
+        f"{N} posts, {braced_share:.0%} with braces, K from {np.nanmin(K):.3f} to {np.nanmax(K):.3f}"
+    )
     print(f"mechanisms: {int(is_mechanism(*args).sum())}")
-    print(json.dumps({"posts": N, "seconds": round(seconds, 4), "braced_share": round(braced_share, 3)}))
+    print(
+        json.dumps(
+            {"posts": N, "seconds": round(seconds, 4), "braced_share": round(braced_share, 3)}
+        )
+    )
 
 
 if __name__ == "__main__":

@@ -15,7 +15,7 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 
-from fieldcheck.store import Log  # noqa: E402
+from fieldcheck.store import Log
 
 
 def synthetic(n: int) -> list[dict[str, str]]:
@@ -28,19 +28,21 @@ def synthetic(n: int) -> list[dict[str, str]]:
     loads = ("2000lbf", "3000lbf", "4500lbf", "6000lbf", "12 kN", "25 kN", "8000lbf")
     rows = []
     for i in range(n):
-        rows.append({
-            "tag": f"P{i + 1}",
-            "location": f"grid {chr(65 + i % 8)}/{i % 13 + 1}",
-            "size": sizes[i % 5],
-            "height": heights[i % 8],
-            "top": ends[i % 3],
-            "bottom": "pinned",
-            "species": species[(i // 5) % 4],
-            "grade": grades[(i // 3) % 4],
-            "load": loads[i % 7],
-            "moisture": ("12%", "19%", "24%")[i % 3],
-            "notes": "",
-        })
+        rows.append(
+            {
+                "tag": f"P{i + 1}",
+                "location": f"grid {chr(65 + i % 8)}/{i % 13 + 1}",
+                "size": sizes[i % 5],
+                "height": heights[i % 8],
+                "top": ends[i % 3],
+                "bottom": "pinned",
+                "species": species[(i // 5) % 4],
+                "grade": grades[(i // 3) % 4],
+                "load": loads[i % 7],
+                "moisture": ("12%", "19%", "24%")[i % 3],
+                "notes": "",
+            }
+        )
     return rows
 
 
@@ -82,18 +84,22 @@ def main() -> None:
         size_mb = (Path(tmp) / "bench.db").stat().st_size / 1e6
     assert res.imported == a.posts and not res.errors, res.errors[:3]
     assert rr.rated == a.posts
-    print(json.dumps({
-        "posts": a.posts,
-        "import_seconds": round(t1 - t0, 3),
-        "rerate_seconds": round(t2 - t1, 3),
-        "import_store_seconds": round(t1 - t0 - import_engine, 3),
-        "rerate_store_seconds": round(t2 - t1 - rerate_engine, 3),
-        "rate_records_seconds": round(rerate_engine, 3),
-        "records_parse_seconds": round(parse_s, 3),
-        "posts_view_seconds": round(t3 - t2, 3),
-        "current_posts": len(posts),
-        "file_mb": round(size_mb, 1),
-    }))
+    print(
+        json.dumps(
+            {
+                "posts": a.posts,
+                "import_seconds": round(t1 - t0, 3),
+                "rerate_seconds": round(t2 - t1, 3),
+                "import_store_seconds": round(t1 - t0 - import_engine, 3),
+                "rerate_store_seconds": round(t2 - t1 - rerate_engine, 3),
+                "rate_records_seconds": round(rerate_engine, 3),
+                "records_parse_seconds": round(parse_s, 3),
+                "posts_view_seconds": round(t3 - t2, 3),
+                "current_posts": len(posts),
+                "file_mb": round(size_mb, 1),
+            }
+        )
+    )
 
 
 if __name__ == "__main__":

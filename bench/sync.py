@@ -19,9 +19,9 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 
-from bench.store import synthetic  # noqa: E402
-from fieldcheck.store import Log  # noqa: E402
-from fieldcheck.store.sync import sync  # noqa: E402
+from bench.store import synthetic
+from fieldcheck.store import Log
+from fieldcheck.store.sync import sync
 
 
 def run(n: int) -> dict:
@@ -51,8 +51,11 @@ def run(n: int) -> dict:
     assert got == n, (got, n)
     assert again.moved == 0, again.sentence()
     return {
-        "rows": n, "first_seconds": round(first_s, 3), "repeat_seconds": round(repeat_s, 3),
-        "peak_mb": round(peak / 2**20, 2), "rows_moved": first.rows_sent,
+        "rows": n,
+        "first_seconds": round(first_s, 3),
+        "repeat_seconds": round(repeat_s, 3),
+        "peak_mb": round(peak / 2**20, 2),
+        "rows_moved": first.rows_sent,
         "build_seconds": round(build_s, 2),
     }
 

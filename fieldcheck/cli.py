@@ -83,6 +83,8 @@ def _open_interface(args: argparse.Namespace) -> int:
     try:
         tui = importlib.import_module("fieldcheck.tui.app")
     except ModuleNotFoundError:
-        print("fieldcheck: the interface is not built yet; rate a post with `fieldcheck rate --help`.")
+        print(
+            "fieldcheck: the interface is not built yet; rate a post with `fieldcheck rate --help`."
+        )
         return 0
     return int(tui.run(db=args.db, units=args.units) or 0)

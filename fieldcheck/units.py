@@ -103,92 +103,184 @@ _KINDS: dict[str, _Kind] = {
     k.name: k
     for k in (
         _kind(
-            "length", "a length", "mm", "millimeter", "e.g. 10 ft, 8' 6\" or 2.44 m",
+            "length",
+            "a length",
+            "mm",
+            "millimeter",
+            "e.g. 10 ft, 8' 6\" or 2.44 m",
             anycase={
-                "in": _INCH, "inch": _INCH, "inches": _INCH, '"': _INCH,
-                "ft": _FOOT, "foot": _FOOT, "feet": _FOOT, "'": _FOOT,
-                "mm": "millimeter", "millimeter": "millimeter", "millimeters": "millimeter",
-                "millimetre": "millimeter", "millimetres": "millimeter",
-                "cm": "centimeter", "centimeter": "centimeter", "centimeters": "centimeter",
-                "centimetre": "centimeter", "centimetres": "centimeter",
-                "m": "meter", "meter": "meter", "meters": "meter",
-                "metre": "meter", "metres": "meter",
+                "in": _INCH,
+                "inch": _INCH,
+                "inches": _INCH,
+                '"': _INCH,
+                "ft": _FOOT,
+                "foot": _FOOT,
+                "feet": _FOOT,
+                "'": _FOOT,
+                "mm": "millimeter",
+                "millimeter": "millimeter",
+                "millimeters": "millimeter",
+                "millimetre": "millimeter",
+                "millimetres": "millimeter",
+                "cm": "centimeter",
+                "centimeter": "centimeter",
+                "centimeters": "centimeter",
+                "centimetre": "centimeter",
+                "centimetres": "centimeter",
+                "m": "meter",
+                "meter": "meter",
+                "meters": "meter",
+                "metre": "meter",
+                "metres": "meter",
             },
         ),
         _kind(
-            "force", "a force", "N", "newton", "e.g. 4000 lbf, 4 kip or 17.8 kN",
+            "force",
+            "a force",
+            "N",
+            "newton",
+            "e.g. 4000 lbf, 4 kip or 17.8 kN",
             exact={"MN": "meganewton"},  # never "mn": milli or mega?
             anycase={
-                "n": "newton", "newton": "newton", "newtons": "newton",
-                "kn": "kilonewton", "kilonewton": "kilonewton", "kilonewtons": "kilonewton",
-                "lbf": "pound_force", "lb": "pound_force", "lbs": "pound_force",
-                "pound": "pound_force", "pounds": "pound_force",
-                "kip": "kip", "kips": "kip",
+                "n": "newton",
+                "newton": "newton",
+                "newtons": "newton",
+                "kn": "kilonewton",
+                "kilonewton": "kilonewton",
+                "kilonewtons": "kilonewton",
+                "lbf": "pound_force",
+                "lb": "pound_force",
+                "lbs": "pound_force",
+                "pound": "pound_force",
+                "pounds": "pound_force",
+                "kip": "kip",
+                "kips": "kip",
             },
         ),
         _kind(
-            "stress", "a stress", "MPa", "megapascal", "e.g. 1350 psi or 9.31 MPa",
+            "stress",
+            "a stress",
+            "MPa",
+            "megapascal",
+            "e.g. 1350 psi or 9.31 MPa",
             exact={"MPa": "megapascal", "Mpa": "megapascal", "MPA": "megapascal"},
             anycase={
-                "psi": "psi", "ksi": "ksi", "kpa": "kilopascal", "gpa": "gigapascal",
+                "psi": "psi",
+                "ksi": "ksi",
+                "kpa": "kilopascal",
+                "gpa": "gigapascal",
                 "n/mm2": "newton/millimeter**2",
             },
         ),
         _kind(
-            "area_load", "an area load or pressure", "kPa", "kilopascal",
+            "area_load",
+            "an area load or pressure",
+            "kPa",
+            "kilopascal",
             "e.g. 40 psf or 1.9 kPa",
             anycase={
-                "psf": "pound_force/foot**2", "lb/ft2": "pound_force/foot**2",
-                "lbf/ft2": "pound_force/foot**2", "lbs/ft2": "pound_force/foot**2",
-                "ksf": "kip/foot**2", "kip/ft2": "kip/foot**2",
-                "kpa": "kilopascal", "kn/m2": "kilonewton/meter**2",
-                "pa": "pascal", "n/m2": "newton/meter**2",
+                "psf": "pound_force/foot**2",
+                "lb/ft2": "pound_force/foot**2",
+                "lbf/ft2": "pound_force/foot**2",
+                "lbs/ft2": "pound_force/foot**2",
+                "ksf": "kip/foot**2",
+                "kip/ft2": "kip/foot**2",
+                "kpa": "kilopascal",
+                "kn/m2": "kilonewton/meter**2",
+                "pa": "pascal",
+                "n/m2": "newton/meter**2",
             },
             exact={"MPa": "megapascal", "Mpa": "megapascal", "MPA": "megapascal"},
         ),
         _kind(
-            "stiffness", "a rotational stiffness", "N*mm/rad", "newton*millimeter/radian",
+            "stiffness",
+            "a rotational stiffness",
+            "N*mm/rad",
+            "newton*millimeter/radian",
             "e.g. 500 kip-in/rad or 56 kN*m/rad",
             exact={"Nm/rad": "newton*meter/radian"},  # never "nm": nanometre
             anycase={
-                "kipin/rad": "kip*inch/radian", "kipsin/rad": "kip*inch/radian",
-                "kipft/rad": "kip*foot/radian", "kipsft/rad": "kip*foot/radian",
-                "lbfin/rad": "pound_force*inch/radian", "lbin/rad": "pound_force*inch/radian",
+                "kipin/rad": "kip*inch/radian",
+                "kipsin/rad": "kip*inch/radian",
+                "kipft/rad": "kip*foot/radian",
+                "kipsft/rad": "kip*foot/radian",
+                "lbfin/rad": "pound_force*inch/radian",
+                "lbin/rad": "pound_force*inch/radian",
                 "lbsin/rad": "pound_force*inch/radian",
-                "lbfft/rad": "pound_force*foot/radian", "lbft/rad": "pound_force*foot/radian",
-                "knm/rad": "kilonewton*meter/radian", "knmm/rad": "kilonewton*millimeter/radian",
+                "lbfft/rad": "pound_force*foot/radian",
+                "lbft/rad": "pound_force*foot/radian",
+                "knm/rad": "kilonewton*meter/radian",
+                "knmm/rad": "kilonewton*millimeter/radian",
                 "nmm/rad": "newton*millimeter/radian",
             },
         ),
         _kind(
-            "percent", "a percentage", "%", "percent", "e.g. 24%",
+            "percent",
+            "a percentage",
+            "%",
+            "percent",
+            "e.g. 24%",
             anycase={"%": "percent", "pct": "percent", "percent": "percent", "": "percent"},
         ),
         _kind(
-            "area", "an area", "mm2", "millimeter**2", "e.g. 120 ft2 or 11.1 m2",
+            "area",
+            "an area",
+            "mm2",
+            "millimeter**2",
+            "e.g. 120 ft2 or 11.1 m2",
             anycase={
-                "ft2": "foot**2", "sqft": "foot**2", "sq ft": "foot**2",
-                "in2": "inch**2", "sqin": "inch**2", "sq in": "inch**2",
-                "m2": "meter**2", "sq m": "meter**2", "cm2": "centimeter**2",
-                "mm2": "millimeter**2", "sq mm": "millimeter**2",
+                "ft2": "foot**2",
+                "sqft": "foot**2",
+                "sq ft": "foot**2",
+                "in2": "inch**2",
+                "sqin": "inch**2",
+                "sq in": "inch**2",
+                "m2": "meter**2",
+                "sq m": "meter**2",
+                "cm2": "centimeter**2",
+                "mm2": "millimeter**2",
+                "sq mm": "millimeter**2",
             },
         ),
         _kind(
-            "temperature", "a temperature", "degC", "degC", "e.g. 100 F or 38 C",
+            "temperature",
+            "a temperature",
+            "degC",
+            "degC",
+            "e.g. 100 F or 38 C",
             anycase={
-                "f": "degF", "°f": "degF", "degf": "degF", "deg f": "degF",
+                "f": "degF",
+                "°f": "degF",
+                "degf": "degF",
+                "deg f": "degF",
                 "fahrenheit": "degF",
-                "c": "degC", "°c": "degC", "degc": "degC", "deg c": "degC", "celsius": "degC",
+                "c": "degC",
+                "°c": "degC",
+                "degc": "degC",
+                "deg c": "degC",
+                "celsius": "degC",
             },
         ),
         _kind(
-            "time", "a time", "us", "microsecond", "e.g. 250 us or 0.25 ms",
+            "time",
+            "a time",
+            "us",
+            "microsecond",
+            "e.g. 250 us or 0.25 ms",
             anycase={
-                "us": "microsecond", "µs": "microsecond", "usec": "microsecond",
-                "microsecond": "microsecond", "microseconds": "microsecond",
-                "ms": "millisecond", "msec": "millisecond",
-                "millisecond": "millisecond", "milliseconds": "millisecond",
-                "s": "second", "sec": "second", "second": "second", "seconds": "second",
+                "us": "microsecond",
+                "µs": "microsecond",
+                "usec": "microsecond",
+                "microsecond": "microsecond",
+                "microseconds": "microsecond",
+                "ms": "millisecond",
+                "msec": "millisecond",
+                "millisecond": "millisecond",
+                "milliseconds": "millisecond",
+                "s": "second",
+                "sec": "second",
+                "second": "second",
+                "seconds": "second",
             },
         ),
     )
@@ -282,13 +374,35 @@ _NOMINAL = re.compile(r"\s*(\d{1,2})\s*[xX×]\s*(\d{1,2})\s*")
 _SECTION_SPLIT = re.compile(r"\s*[xX×]\s*")
 
 _FRACTIONS = {
-    "½": "1/2", "⅓": "1/3", "⅔": "2/3", "¼": "1/4", "¾": "3/4", "⅕": "1/5", "⅖": "2/5",
-    "⅗": "3/5", "⅘": "4/5", "⅙": "1/6", "⅚": "5/6", "⅛": "1/8", "⅜": "3/8", "⅝": "5/8",
+    "½": "1/2",
+    "⅓": "1/3",
+    "⅔": "2/3",
+    "¼": "1/4",
+    "¾": "3/4",
+    "⅕": "1/5",
+    "⅖": "2/5",
+    "⅗": "3/5",
+    "⅘": "4/5",
+    "⅙": "1/6",
+    "⅚": "5/6",
+    "⅛": "1/8",
+    "⅜": "3/8",
+    "⅝": "5/8",
     "⅞": "7/8",
 }
 _CHARS = {
-    "′": "'", "’": "'", "‘": "'", "″": '"', "“": '"', "”": '"', "−": "-", "–": "-",
-    "⁄": "/", "μ": "µ", "º": "°", "\u00a0": " ",
+    "′": "'",
+    "’": "'",
+    "‘": "'",
+    "″": '"',
+    "“": '"',
+    "”": '"',
+    "−": "-",
+    "–": "-",
+    "⁄": "/",
+    "μ": "µ",
+    "º": "°",
+    "\u00a0": " ",
 }
 
 
@@ -377,9 +491,10 @@ def _parse(kind_name: str, text: str) -> float:
             inches = _magnitude(m, "b")
             if inches >= 12.0:
                 raise _Refusal("has an inches part of 12 or more")
-            value = float(m.group("ft")) * _factor("length", _FOOT)[0] + inches * _factor(
-                "length", _INCH
-            )[0]
+            value = (
+                float(m.group("ft")) * _factor("length", _FOOT)[0]
+                + inches * _factor("length", _INCH)[0]
+            )
             return -value if m.group("sign") == "-" else value
     try:
         value, unit = _split(t)
@@ -404,8 +519,9 @@ def _num(x: float, grouping: bool = False, sig: int = 3) -> str:
     return "0" if s in ("-0", "") else s
 
 
-def _fail(kind: _Kind, field: str, text: object, reason: str, suggestion: str | None = None,
-          rng: str = "") -> UnitInputError:
+def _fail(
+    kind: _Kind, field: str, text: object, reason: str, suggestion: str | None = None, rng: str = ""
+) -> UnitInputError:
     shown = text.strip() if isinstance(text, str) else repr(text)
     head = f"{field}: '{shown}' {reason}" if shown else f"{field}: no value given"
     tail = f"write {suggestion}" if suggestion else f"write {kind.example}"
@@ -429,8 +545,10 @@ def _in_range_example(kind: _Kind, lo: float | None, hi: float | None) -> str | 
         us = snap(FT_MM) if mid >= 2 * FT_MM else snap(IN_MM)
         return f"a value in that range, e.g. {format_length(us, 'us')} or {format_length(sig2(mid), 'metric')}"
     us = snap(1000 * LBF_N) if mid >= 1000 * LBF_N else snap(100 * LBF_N)
-    return (f"a value in that range, e.g. {format_force(us, 'us', grouping=False)} or "
-            f"{format_force(sig2(mid), 'metric', grouping=False)}")
+    return (
+        f"a value in that range, e.g. {format_force(us, 'us', grouping=False)} or "
+        f"{format_force(sig2(mid), 'metric', grouping=False)}"
+    )
 
 
 def _range_text(kind: _Kind, lo: float | None, hi: float | None) -> str:
@@ -444,8 +562,17 @@ def _range_text(kind: _Kind, lo: float | None, hi: float | None) -> str:
     return ""
 
 
-def _check_value(kind: _Kind, value: float, text: object, field: str, lo: float | None,
-                 hi: float | None, positive: bool, nonnegative: bool, what: str = "") -> float:
+def _check_value(
+    kind: _Kind,
+    value: float,
+    text: object,
+    field: str,
+    lo: float | None,
+    hi: float | None,
+    positive: bool,
+    nonnegative: bool,
+    what: str = "",
+) -> float:
     """Sign, finiteness and range checks on a parsed value; ``what`` prefixes the reason."""
     ok = math.isfinite(value) and not (positive and value <= 0) and not (nonnegative and value < 0)
     ok = ok and not (kind.name == "temperature" and value < -273.15)
@@ -462,13 +589,26 @@ def _check_value(kind: _Kind, value: float, text: object, field: str, lo: float 
     if kind.name == "temperature" and value < -273.15:
         raise _fail(kind, field, text, f"{what}is below absolute zero", rng=rng)
     if (lo is not None and value < lo) or (hi is not None and value > hi):
-        raise _fail(kind, field, text, f"{what}is {_num(value, sig=4)} {kind.si},"
-                    f" outside the accepted range ({r})", suggestion=_in_range_example(kind, lo, hi))
+        raise _fail(
+            kind,
+            field,
+            text,
+            f"{what}is {_num(value, sig=4)} {kind.si}, outside the accepted range ({r})",
+            suggestion=_in_range_example(kind, lo, hi),
+        )
     return value
 
 
-def _parse_checked(kind_name: str, text: str, field: str, *, lo: float | None,
-                   hi: float | None, positive: bool, nonnegative: bool) -> float:
+def _parse_checked(
+    kind_name: str,
+    text: str,
+    field: str,
+    *,
+    lo: float | None,
+    hi: float | None,
+    positive: bool,
+    nonnegative: bool,
+) -> float:
     kind = _KINDS[kind_name]
     try:
         value = _parse(kind_name, text)
@@ -494,8 +634,9 @@ def _parse_checked(kind_name: str, text: str, field: str, *, lo: float | None,
     return _check_value(kind, value, text, field, lo, hi, positive, nonnegative)
 
 
-def parse_length(text: str, field: str = "length", *, lo: float | None = None,
-                 hi: float | None = None) -> float:
+def parse_length(
+    text: str, field: str = "length", *, lo: float | None = None, hi: float | None = None
+) -> float:
     """Length in mm from `3-1/2 in`, `3½"`, `8' 6"`, `8 ft 6 in`, `96in`, `2.44 m`, `89 mm`.
 
     Refuses a bare number, unknown units, commas in numbers, zero, negatives, NaN/inf.
@@ -504,54 +645,60 @@ def parse_length(text: str, field: str = "length", *, lo: float | None = None,
     return _parse_checked("length", text, field, lo=lo, hi=hi, positive=True, nonnegative=True)
 
 
-def parse_force(text: str, field: str = "load", *, lo: float | None = None,
-                hi: float | None = None) -> float:
+def parse_force(
+    text: str, field: str = "load", *, lo: float | None = None, hi: float | None = None
+) -> float:
     """Force in N from `4000 lbf`, `4000 lb(s)`, `4 kip(s)`, `17.8 kN`, `500 N`, `1 MN`. >= 0."""
     return _parse_checked("force", text, field, lo=lo, hi=hi, positive=False, nonnegative=True)
 
 
-def parse_stress(text: str, field: str = "stress", *, lo: float | None = None,
-                 hi: float | None = None) -> float:
+def parse_stress(
+    text: str, field: str = "stress", *, lo: float | None = None, hi: float | None = None
+) -> float:
     """Stress in MPa from psi, ksi, MPa, N/mm2, N/mm^2, kPa, GPa. > 0."""
     return _parse_checked("stress", text, field, lo=lo, hi=hi, positive=True, nonnegative=True)
 
 
-def parse_area_load(text: str, field: str = "area load", *, lo: float | None = None,
-                    hi: float | None = None) -> float:
+def parse_area_load(
+    text: str, field: str = "area load", *, lo: float | None = None, hi: float | None = None
+) -> float:
     """Area load or soil pressure in kPa from psf, ksf, lb/ft2, kPa, kN/m2, Pa. >= 0."""
-    return _parse_checked("area_load", text, field, lo=lo, hi=hi, positive=False,
-                          nonnegative=True)
+    return _parse_checked("area_load", text, field, lo=lo, hi=hi, positive=False, nonnegative=True)
 
 
-def parse_stiffness(text: str, field: str = "stiffness", *, lo: float | None = None,
-                    hi: float | None = None) -> float:
+def parse_stiffness(
+    text: str, field: str = "stiffness", *, lo: float | None = None, hi: float | None = None
+) -> float:
     """Rotational spring stiffness in N*mm/rad from `kip-in/rad`, `kN*m/rad`, `N*mm/rad`... >= 0."""
-    return _parse_checked("stiffness", text, field, lo=lo, hi=hi, positive=False,
-                          nonnegative=True)
+    return _parse_checked("stiffness", text, field, lo=lo, hi=hi, positive=False, nonnegative=True)
 
 
-def parse_percent(text: str, field: str = "percent", *, lo: float | None = 0.0,
-                  hi: float | None = 200.0) -> float:
+def parse_percent(
+    text: str, field: str = "percent", *, lo: float | None = 0.0, hi: float | None = 200.0
+) -> float:
     """Percent from `24%`, `24 %` or a bare `24`; accepted range ``lo``..``hi`` (inclusive)."""
-    return _parse_checked("percent", text, field, lo=lo, hi=hi, positive=False,
-                          nonnegative=False)
+    return _parse_checked("percent", text, field, lo=lo, hi=hi, positive=False, nonnegative=False)
 
 
-def parse_area(text: str, field: str = "area", *, lo: float | None = None,
-               hi: float | None = None) -> float:
+def parse_area(
+    text: str, field: str = "area", *, lo: float | None = None, hi: float | None = None
+) -> float:
     """Area in mm^2 from `120 ft2`, `120 sq ft`, `120 ft^2`, `11.1 m2`, `12.25 in2`. > 0."""
     return _parse_checked("area", text, field, lo=lo, hi=hi, positive=True, nonnegative=True)
 
 
-def parse_temperature(text: str, field: str = "temperature", *, lo: float | None = None,
-                      hi: float | None = None) -> float:
+def parse_temperature(
+    text: str, field: str = "temperature", *, lo: float | None = None, hi: float | None = None
+) -> float:
     """Temperature in degrees C from `100 F`, `100 °F`, `38 C`, `38 °C` (negatives allowed)."""
-    return _parse_checked("temperature", text, field, lo=lo, hi=hi, positive=False,
-                          nonnegative=False)
+    return _parse_checked(
+        "temperature", text, field, lo=lo, hi=hi, positive=False, nonnegative=False
+    )
 
 
-def parse_time(text: str, field: str = "time", *, lo: float | None = None,
-               hi: float | None = None) -> float:
+def parse_time(
+    text: str, field: str = "time", *, lo: float | None = None, hi: float | None = None
+) -> float:
     """Time in microseconds from `250 us`, `250 µs`, `0.25 ms`. > 0."""
     return _parse_checked("time", text, field, lo=lo, hi=hi, positive=True, nonnegative=True)
 
@@ -573,8 +720,9 @@ def _section(text: str, field: str, lo: float | None, hi: float | None) -> tuple
     example = "e.g. 3.5 x 5.5 in, 3-1/2 x 5-1/2 in or 89 x 140 mm"
     t = _normalise(text)
     if parse_nominal(t) is not None:
-        raise _fail(kind, field, text, "has no unit (a nominal size?)",
-                    f"the measured size, {example}")
+        raise _fail(
+            kind, field, text, "has no unit (a nominal size?)", f"the measured size, {example}"
+        )
     parts = _SECTION_SPLIT.split(t)
     if len(parts) != 2 or not all(parts):
         raise _fail(kind, field, text, "is not a section size (two sides joined by x)", example)
@@ -599,8 +747,9 @@ def _section(text: str, field: str, lo: float | None, hi: float | None) -> tuple
     return out[0], out[1]
 
 
-def parse_section(text: str, field: str = "section", *, lo: float | None = None,
-                  hi: float | None = None) -> tuple[float, float]:
+def parse_section(
+    text: str, field: str = "section", *, lo: float | None = None, hi: float | None = None
+) -> tuple[float, float]:
     """Two sides in mm, as typed: `3.5 x 5.5 in`, `3-1/2 x 5-1/2 in`, `89x89mm`, `3.5" x 5.5"`.
 
     A unit on the last side applies to both; a nominal `4x4` is refused (use parse_nominal).
@@ -612,16 +761,22 @@ def parse_section(text: str, field: str = "section", *, lo: float | None = None,
     return _section(text, field, lo, hi)
 
 
-def parse_heights(text: str, field: str = "heights", *, lo: float | None = None,
-                  hi: float | None = None) -> list[float]:
+def parse_heights(
+    text: str, field: str = "heights", *, lo: float | None = None, hi: float | None = None
+) -> list[float]:
     """Several lengths in mm separated by `;` (`4ft; 8ft`), in the order typed. Blank -> []."""
     if not isinstance(text, str):
         raise _fail(_KINDS["length"], field, text, "is not text")
     if not text.strip():
         return []
     if "," in text and not re.search(r"\d,\d", text):
-        raise _fail(_KINDS["length"], field, text, "uses a comma between heights",
-                    text.strip().replace(",", ";"))
+        raise _fail(
+            _KINDS["length"],
+            field,
+            text,
+            "uses a comma between heights",
+            text.strip().replace(",", ";"),
+        )
     return [parse_length(p, field, lo=lo, hi=hi) for p in text.split(";") if p.strip()]
 
 

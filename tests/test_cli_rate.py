@@ -8,8 +8,21 @@ import pytest
 from fieldcheck.cli import main
 
 LBF = 4.4482216152605
-EXAMPLE_A = ["rate", "--size", "4x4", "--height", "10ft", "--species", "douglas-fir-larch", "--grade", "no2",
-             "--top", "pinned", "--bottom", "pinned"]
+EXAMPLE_A = [
+    "rate",
+    "--size",
+    "4x4",
+    "--height",
+    "10ft",
+    "--species",
+    "douglas-fir-larch",
+    "--grade",
+    "no2",
+    "--top",
+    "pinned",
+    "--bottom",
+    "pinned",
+]
 
 
 def test_example_a_json(capsys):
@@ -42,14 +55,33 @@ def test_text_output_shows_cautions_and_working(capsys):
     assert "NDS 2018 §3.7.1" in out and "Working:" in out
 
 
-@pytest.mark.parametrize(("option", "value"), [
-    ("--height", "ten feet"), ("--height", "-3 ft"), ("--height", "3,5 m"), ("--size", "4by4"),
-    ("--section", "89mm"), ("--diameter", "-7in"), ("--load", "4 kg"), ("--top", "wobbly"),
-    ("--bottom", "nailed"), ("--species", "balsa"), ("--grade", "premium"), ("--moisture", "-3%"),
-    ("--duration", "a while"), ("--method", "csa"), ("--brace-weak", "40ft"), ("--plies", "x"),
-    ("--temperature", "90 C"), ("--end-contact", "0%"), ("--construction", "maybe"),
-    ("--incised", "perhaps"), ("--cap-species", "teak"), ("--cap-bearing", "-1in"),
-])
+@pytest.mark.parametrize(
+    ("option", "value"),
+    [
+        ("--height", "ten feet"),
+        ("--height", "-3 ft"),
+        ("--height", "3,5 m"),
+        ("--size", "4by4"),
+        ("--section", "89mm"),
+        ("--diameter", "-7in"),
+        ("--load", "4 kg"),
+        ("--top", "wobbly"),
+        ("--bottom", "nailed"),
+        ("--species", "balsa"),
+        ("--grade", "premium"),
+        ("--moisture", "-3%"),
+        ("--duration", "a while"),
+        ("--method", "csa"),
+        ("--brace-weak", "40ft"),
+        ("--plies", "x"),
+        ("--temperature", "90 C"),
+        ("--end-contact", "0%"),
+        ("--construction", "maybe"),
+        ("--incised", "perhaps"),
+        ("--cap-species", "teak"),
+        ("--cap-bearing", "-1in"),
+    ],
+)
 def test_bad_input_is_one_sentence_and_exit_2(capsys, option, value):
     argv = [a for a in EXAMPLE_A]
     if option in argv:
@@ -82,9 +114,13 @@ def test_batch_rates_good_rows_and_names_bad_ones(tmp_path, capsys):
     assert "row 2, column height" in err
     rows = list(csv.DictReader(out.open()))
     assert [r["tag"] for r in rows] == ["P1", "P2", "P3"]
-    assert float(rows[0]["allowable_load_lbf"]) == pytest.approx(4665.1, abs=0.05)  # worked example A
+    assert float(rows[0]["allowable_load_lbf"]) == pytest.approx(
+        4665.1, abs=0.05
+    )  # worked example A
     assert rows[1]["error"].startswith("height:") and rows[1]["allowable_load_lbf"] == ""
-    assert float(rows[2]["allowable_load_lbf"]) == pytest.approx(20918.2, abs=0.1)  # worked example B
+    assert float(rows[2]["allowable_load_lbf"]) == pytest.approx(
+        20918.2, abs=0.1
+    )  # worked example B
 
 
 def test_batch_output_is_the_same_in_engine_blocks(tmp_path, monkeypatch):
@@ -95,9 +131,27 @@ def test_batch_output_is_the_same_in_engine_blocks(tmp_path, monkeypatch):
     with src.open("w", newline="") as fh:
         w = csv.writer(fh)
         w.writerow(["tag", "size", "height", "species", "grade", "load", "top", "construction"])
-        for i, (size, h, top) in enumerate([("4x4", "10ft", "pinned"), ("6x6", "10 ft", "fixed"),
-                                            ("2x4", "12ft", "pinned"), ("4x6", "8ft", "guided")] * 3):
-            w.writerow([f"P{i}", size, h, "douglas-fir-larch", "no2", "4000lbf", top, "yes" if i % 2 else ""])
+        for i, (size, h, top) in enumerate(
+            [
+                ("4x4", "10ft", "pinned"),
+                ("6x6", "10 ft", "fixed"),
+                ("2x4", "12ft", "pinned"),
+                ("4x6", "8ft", "guided"),
+            ]
+            * 3
+        ):
+            w.writerow(
+                [
+                    f"P{i}",
+                    size,
+                    h,
+                    "douglas-fir-larch",
+                    "no2",
+                    "4000lbf",
+                    top,
+                    "yes" if i % 2 else "",
+                ]
+            )
     outs = []
     for block in (1 << 16, 3):
         monkeypatch.setattr(rating_mod, "BLOCK", block)

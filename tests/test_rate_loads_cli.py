@@ -7,7 +7,17 @@ import pytest
 from fieldcheck.cli import main
 
 LBF = 4.4482216152605
-POST = ["rate", "--size", "6x6", "--height", "8ft", "--species", "douglas-fir-larch", "--grade", "no1"]
+POST = [
+    "rate",
+    "--size",
+    "6x6",
+    "--height",
+    "8ft",
+    "--species",
+    "douglas-fir-larch",
+    "--grade",
+    "no1",
+]
 BAY = ["--tributary", "120 sq ft", "--dead", "10psf", "--live", "40psf", "--snow", "30psf"]
 
 
@@ -28,7 +38,9 @@ def test_tributary_example_governing_combination(capsys):
 
 def test_tributary_with_spacing_and_presets(capsys):
     # field-practice.md §5.1: 10 x 12 ft bay = 120 ft^2; floor-carpet 10 psf (HUD Table 3.2), residential 40 psf
-    out = _json(capsys, "--spacing", "10ft x 12ft", "--dead", "floor-carpet", "--occupancy", "residential")
+    out = _json(
+        capsys, "--spacing", "10ft x 12ft", "--dead", "floor-carpet", "--occupancy", "residential"
+    )
     assert out["load_combination"]["name"] == "D+L"
     assert out["demand_lbf"] == pytest.approx(6000.0, abs=0.05)
 
@@ -43,13 +55,27 @@ def test_lrfd_lambda(capsys):
 
 def test_direct_load_reports_as_given(capsys):
     out = _json(capsys, "--load", "4000lbf", "--duration", "two-months")
-    assert out["load_combination"]["name"] == "as given (--load)" and out["load_combination"]["factor"] == 1.15
+    assert (
+        out["load_combination"]["name"] == "as given (--load)"
+        and out["load_combination"]["factor"] == 1.15
+    )
 
 
 def test_failing_post_lists_remedies_json_and_text(capsys):
     # column-design.md worked example A at 10 ft: 4x4 No.2 carries 4,665 lb; 6,000 lb fails
-    args = ["rate", "--size", "4x4", "--height", "10ft", "--species", "douglas-fir-larch", "--grade", "no2",
-            "--load", "6000lbf"]
+    args = [
+        "rate",
+        "--size",
+        "4x4",
+        "--height",
+        "10ft",
+        "--species",
+        "douglas-fir-larch",
+        "--grade",
+        "no2",
+        "--load",
+        "6000lbf",
+    ]
     assert main([*args, "--json"]) == 0
     out = json.loads(capsys.readouterr().out)
     assert out["remedies"], out
@@ -64,23 +90,28 @@ def test_failing_post_lists_remedies_json_and_text(capsys):
 def test_ground_in_json(capsys):
     out = _json(capsys, "--load", "6000lbf", "--pad", "2ft x 2ft", "--soil", "clay")
     g = out["ground"]
-    assert g["allowable_psf"] == 1500 and g["capacity_lbf"] == pytest.approx(6000.0)  # IBC 2012 Table 1806.2
+    assert g["allowable_psf"] == 1500 and g["capacity_lbf"] == pytest.approx(
+        6000.0
+    )  # IBC 2012 Table 1806.2
     out = _json(capsys, "--load", "6000lbf", "--pad", "2ft x 2ft", "--soil", "unknown")
     assert out["ground"]["soil_check"] == "not verified" and out["action"] != "no-action"
 
 
-@pytest.mark.parametrize("args, word", [
-    (["--tributary=-120sqft", "--dead", "10psf"], "tributary"),
-    (["--load", "4000lbf", *BAY], "load"),
-    (["--tributary", "120sqft", "--occupancy", "dance-hall"], "occupancy"),
-    (["--tributary", "120sqft", "--rain", "5psf"], "rain_duration"),
-    (["--dead", "10psf"], "dead"),
-    (["--tributary", "120sqft"], "tributary"),
-    (["--tributary", "120sqft", "--live", "40psf", "--occupancy", "office"], "occupancy"),
-    (["--tributary", "120sqft", "--dead=-10psf"], "dead"),
-    (["--soil", "loam"], "soil"),
-    (["--lateral-rule", "cal-osha", "--load", "1kip"], "brace_edge"),
-])
+@pytest.mark.parametrize(
+    "args, word",
+    [
+        (["--tributary=-120sqft", "--dead", "10psf"], "tributary"),
+        (["--load", "4000lbf", *BAY], "load"),
+        (["--tributary", "120sqft", "--occupancy", "dance-hall"], "occupancy"),
+        (["--tributary", "120sqft", "--rain", "5psf"], "rain_duration"),
+        (["--dead", "10psf"], "dead"),
+        (["--tributary", "120sqft"], "tributary"),
+        (["--tributary", "120sqft", "--live", "40psf", "--occupancy", "office"], "occupancy"),
+        (["--tributary", "120sqft", "--dead=-10psf"], "dead"),
+        (["--soil", "loam"], "soil"),
+        (["--lateral-rule", "cal-osha", "--load", "1kip"], "brace_edge"),
+    ],
+)
 def test_bad_input_one_sentence_exit_2(capsys, args, word):
     assert main([*POST, *args]) == 2
     err = capsys.readouterr().err.strip()

@@ -89,9 +89,9 @@ def test_roundtrip_stress_and_area_load(x):
         assert u.parse_stress(u.format_stress(x, system, grouping=False)) == pytest.approx(
             x, rel=5e-3
         )
-        assert u.parse_area_load(
-            u.format_area_load(x, system, grouping=False)
-        ) == pytest.approx(x, rel=5e-3)
+        assert u.parse_area_load(u.format_area_load(x, system, grouping=False)) == pytest.approx(
+            x, rel=5e-3
+        )
 
 
 def test_grouped_output_is_refused_not_misread():

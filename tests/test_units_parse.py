@@ -412,8 +412,8 @@ def test_constants_against_pint(ureg):
     assert ureg.Quantity(1, "lbf").m_as("N") == approx(u.LBF_N)
     assert ureg.Quantity(1, "psi").m_as("MPa") == approx(u.PSI_MPA)
     assert ureg.Quantity(1, "lbf/ft**2").m_as("kPa") == approx(u.PSF_KPA)
-    assert u.PSI_MPA == pytest.approx(0.00689475729, rel=1e-9)  # value quoted in the brief
-    assert u.PSF_KPA == pytest.approx(0.0478802589, rel=1e-8)  # brief value is truncated
+    assert pytest.approx(0.00689475729, rel=1e-9) == u.PSI_MPA  # value quoted in the brief
+    assert pytest.approx(0.0478802589, rel=1e-8) == u.PSF_KPA  # brief value is truncated
 
 
 @pytest.mark.parametrize(
@@ -474,8 +474,12 @@ def test_property_mm(x):
     assert u.parse_length(f"{x!r} mm") == pytest.approx(x, rel=1e-12)
 
 
-@given(st.integers(0, 500), st.integers(0, 11), st.sampled_from([0, 1, 3, 5, 7, 15]),
-       st.sampled_from(["' ", "'-", "' ", " ft ", "ft"]))
+@given(
+    st.integers(0, 500),
+    st.integers(0, 11),
+    st.sampled_from([0, 1, 3, 5, 7, 15]),
+    st.sampled_from(["' ", "'-", "' ", " ft ", "ft"]),
+)
 def test_property_feet_inches(ft, inch, sixteenths, sep):
     if ft == inch == sixteenths == 0:
         return

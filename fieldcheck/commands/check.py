@@ -26,7 +26,9 @@ def run(args: argparse.Namespace) -> int:
 
     path = log_path(args)
     if not path.is_file():
-        raise UsageError(f"the survey log {path} does not exist; give an existing log with --db PATH")
+        raise UsageError(
+            f"the survey log {path} does not exist; give an existing log with --db PATH"
+        )
     try:
         with Log.open(path, readonly=True) as log:
             report = log.integrity()
@@ -37,9 +39,11 @@ def run(args: argparse.Namespace) -> int:
         print(f"fieldcheck: {damaged(path, exc)}")
         return 1
     problems = report.problems()
-    print(f"{path}: schema version {report.schema_version}, "
-          f"{'sound' if not problems else f'{len(problems)} problems'}"
-          + (f", {report.conflicts} posts with conflicting revisions" if report.conflicts else ""))
+    print(
+        f"{path}: schema version {report.schema_version}, "
+        f"{'sound' if not problems else f'{len(problems)} problems'}"
+        + (f", {report.conflicts} posts with conflicting revisions" if report.conflicts else "")
+    )
     for p in problems:
         print(f"  - {p}")
     return 0 if not problems else 1

@@ -15,8 +15,9 @@ DESCRIPTION = (
 
 def add_arguments(p: argparse.ArgumentParser) -> None:
     add_db_option(p)
-    p.add_argument("--force", action="store_true",
-                   help="add the demo even if the log already holds sites")
+    p.add_argument(
+        "--force", action="store_true", help="add the demo even if the log already holds sites"
+    )
 
 
 def run(args: argparse.Namespace) -> int:
@@ -31,8 +32,12 @@ def run(args: argparse.Namespace) -> int:
             )
         site, visits = seed_demo(log)
         counts = log.counts_by_action()
-        print(f"Demo survey written to {log.path}: site {site.name!r}, {len(visits)} visits, "
-              f"{len(log.posts(site_id=site.id))} posts.")
+        print(
+            f"Demo survey written to {log.path}: site {site.name!r}, {len(visits)} visits, "
+            f"{len(log.posts(site_id=site.id))} posts."
+        )
         print("  " + ", ".join(f"{k} {v}" for k, v in counts.items() if v))
-        print("Invented data for trying fieldcheck; it describes no real building.", file=sys.stderr)
+        print(
+            "Invented data for trying fieldcheck; it describes no real building.", file=sys.stderr
+        )
     return 0

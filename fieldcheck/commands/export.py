@@ -37,7 +37,9 @@ def run(args: argparse.Namespace) -> int:
         raise UsageError(f"export: cannot write {args.out} ({exc.strerror})") from None
     try:
         if args.format == "json":
-            json.dump({"columns": table.columns, "posts": table.rows}, out, ensure_ascii=False, indent=1)
+            json.dump(
+                {"columns": table.columns, "posts": table.rows}, out, ensure_ascii=False, indent=1
+            )
             out.write("\n")
         else:
             w = csv.DictWriter(out, fieldnames=table.columns, extrasaction="ignore")

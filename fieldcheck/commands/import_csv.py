@@ -21,7 +21,9 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
     p.add_argument("--site", help="site name (created if new), e.g. '14 Alder Row'")
     p.add_argument("--visit", help="visit name (created if new), e.g. 'Basement survey'")
     p.add_argument("--inspector", help="who inspected (default: your user name)")
-    p.add_argument("--bundle", metavar="IN", help="take a sync bundle (IN and IN.json) instead of a CSV")
+    p.add_argument(
+        "--bundle", metavar="IN", help="take a sync bundle (IN and IN.json) instead of a CSV"
+    )
 
 
 def run(args: argparse.Namespace) -> int:
@@ -51,9 +53,14 @@ def run(args: argparse.Namespace) -> int:
     with open_log(args) as log:
         result = log.import_rows(rows, args.site, args.visit, inspector=args.inspector)
         for err in result.errors:
-            print(f"fieldcheck: row {err.row + 1}, column {err.column}: {err.message}", file=sys.stderr)
+            print(
+                f"fieldcheck: row {err.row + 1}, column {err.column}: {err.message}",
+                file=sys.stderr,
+            )
         bad = len({e.row for e in result.errors})
-        print(f"Imported {result.imported} of {len(rows)} posts into {result.site.name!r}, visit "
-              f"{result.visit.name!r} ({log.path})"
-              + (f"; {bad} rows left out, correct them and import those rows again." if bad else "."))
+        print(
+            f"Imported {result.imported} of {len(rows)} posts into {result.site.name!r}, visit "
+            f"{result.visit.name!r} ({log.path})"
+            + (f"; {bad} rows left out, correct them and import those rows again." if bad else ".")
+        )
     return 0 if not result.errors else 1

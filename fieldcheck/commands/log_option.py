@@ -8,8 +8,12 @@ from pathlib import Path
 
 def add_db_option(p: argparse.ArgumentParser) -> None:
     # SUPPRESS: when not given here, the main parser's `fieldcheck --db PATH demo` value stands
-    p.add_argument("--db", metavar="PATH", default=argparse.SUPPRESS,
-                   help="survey log file (default: your data folder, or $FIELDCHECK_DB)")
+    p.add_argument(
+        "--db",
+        metavar="PATH",
+        default=argparse.SUPPRESS,
+        help="survey log file (default: your data folder, or $FIELDCHECK_DB)",
+    )
 
 
 def log_path(args: argparse.Namespace) -> Path:
@@ -26,5 +30,7 @@ def open_log(args: argparse.Namespace, *, readonly: bool = False, must_exist: bo
 
     path = log_path(args)
     if must_exist and not path.exists():
-        raise UsageError(f"the survey log {path} does not exist; give an existing log with --db PATH")
+        raise UsageError(
+            f"the survey log {path} does not exist; give an existing log with --db PATH"
+        )
     return Log.open(path, readonly=readonly)

@@ -15,9 +15,17 @@ DESCRIPTION = (
     "(without the dashes, - written _), one post per row. A screening aid for a competent person."
 )
 RESULT_COLUMNS = (
-    "allowable_load_lbf", "allowable_load_kN", "demand_capacity_ratio", "governing_check", "action",
-    "effective_length_factor", "slenderness_ratio", "stability_factor", "within_slenderness_limit",
-    "warnings", "error",
+    "allowable_load_lbf",
+    "allowable_load_kN",
+    "demand_capacity_ratio",
+    "governing_check",
+    "action",
+    "effective_length_factor",
+    "slenderness_ratio",
+    "stability_factor",
+    "within_slenderness_limit",
+    "warnings",
+    "error",
 )
 
 
@@ -25,14 +33,27 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
     groups: dict[str, argparse._ArgumentGroup] = {}
     for col in COLUMNS.values():
         g = groups.get(col.group) or groups.setdefault(col.group, p.add_argument_group(col.group))
-        extra = {"nargs": "?", "const": "yes", "metavar": "yes|no"} if col.flag else {"metavar": "VALUE"}
-        g.add_argument(col.option, dest=f"col_{col.name}", help=f"{col.help} (e.g. {col.example})".replace("%", "%%"),
-                       **extra)
+        extra = (
+            {"nargs": "?", "const": "yes", "metavar": "yes|no"}
+            if col.flag
+            else {"metavar": "VALUE"}
+        )
+        g.add_argument(
+            col.option,
+            dest=f"col_{col.name}",
+            help=f"{col.help} (e.g. {col.example})".replace("%", "%%"),
+            **extra,
+        )
     out = p.add_argument_group("output")
     out.add_argument("--json", action="store_true", help="print one JSON object")
     out.add_argument("--working", action="store_true", help="show the working step by step")
-    out.add_argument("--units", dest="units_here", choices=("us", "metric"), default=None,
-                     help="unit system for the text output (input is accepted in either)")
+    out.add_argument(
+        "--units",
+        dest="units_here",
+        choices=("us", "metric"),
+        default=None,
+        help="unit system for the text output (input is accepted in either)",
+    )
     out.add_argument("--batch", metavar="IN.csv", help="rate every row of a CSV file")
     out.add_argument("--out", metavar="OUT.csv", help="with --batch: where to write the results")
 
@@ -89,15 +110,21 @@ def _text(s: dict, system: str) -> str:
     lines.append(f"ACTION        {s['action_text']}")
     for c in s["checks"]:
         r = "" if c["ratio"] is None else f"  ratio {c['ratio']:.3f}"
-        lines.append(f"  - {c['label']}: {format_force(c['capacity_kN'] * 1000.0, system)}{r}  [{c['clause']}]")
+        lines.append(
+            f"  - {c['label']}: {format_force(c['capacity_kN'] * 1000.0, system)}{r}  [{c['clause']}]"
+        )
     for w in s["warnings"]:
         lines.append(f"  ! {w}")
     lc = s.get("load_combination")
     if lc and lc.get("key"):
-        lines.append(f"Load          {lc['name']} governs, {lc['factor_name']} {lc['factor']}  [{lc['clause']}]")
+        lines.append(
+            f"Load          {lc['name']} governs, {lc['factor_name']} {lc['factor']}  [{lc['clause']}]"
+        )
     if s.get("bracing") and s["bracing"]["total_kN"] is not None:
         br = s["bracing"]
-        lines.append(f"Bracing must carry {format_force(br['total_kN'] * 1000.0, system)}  [{br['clause']}]")
+        lines.append(
+            f"Bracing must carry {format_force(br['total_kN'] * 1000.0, system)}  [{br['clause']}]"
+        )
     if s.get("remedies"):
         lines.append("What would make it pass (cheapest first):")
         for k, rem in enumerate(s["remedies"], 1):
@@ -121,7 +148,10 @@ def _run_batch(args: argparse.Namespace) -> int:
     except OSError as exc:
         raise UsageError(f"batch: cannot read {args.batch} ({exc.strerror}).") from None
     if rows and (unknown := [c for c in rows[0] if c not in COLUMNS]):
-        print(f"fieldcheck: batch: columns not used for rating: {', '.join(unknown)}.", file=sys.stderr)
+        print(
+            f"fieldcheck: batch: columns not used for rating: {', '.join(unknown)}.",
+            file=sys.stderr,
+        )
     parsed = parse_records(rows)
     from fieldcheck.engine.rating import rate
 
@@ -149,7 +179,13 @@ def _run_batch(args: argparse.Namespace) -> int:
         if out is not sys.stdout:
             out.close()
     rated = int(parsed.ok.sum())
-    print(f"fieldcheck: rated {rated} of {len(rows)} posts"
-          + (f"; {len(rows) - rated} rows need correcting (see the error column)." if rated < len(rows) else "."),
-          file=sys.stderr)
+    print(
+        f"fieldcheck: rated {rated} of {len(rows)} posts"
+        + (
+            f"; {len(rows) - rated} rows need correcting (see the error column)."
+            if rated < len(rows)
+            else "."
+        ),
+        file=sys.stderr,
+    )
     return 0 if rated == len(rows) else 1

@@ -20,8 +20,12 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
     p.add_argument("--visit", metavar="NAME-or-id", help="only the posts seen on this visit")
     p.add_argument("--out", metavar="FILE.html", required=True, help="the HTML file to write")
     # SUPPRESS: `fieldcheck --units metric report ...` (the main option) stands when not given here
-    p.add_argument("--units", choices=("us", "metric"), default=argparse.SUPPRESS,
-                   help="unit system for the numbers (us)")
+    p.add_argument(
+        "--units",
+        choices=("us", "metric"),
+        default=argparse.SUPPRESS,
+        help="unit system for the numbers (us)",
+    )
 
 
 def _find_site(log, text: str):
@@ -41,8 +45,10 @@ def _find_visit(log, text: str, site_id: str | None):
     if len(found) == 1:
         return found[0]
     if len(found) > 1:
-        raise UsageError(f"--visit: {len(found)} visits are named {text!r}; give the site with "
-                         "--site or the visit's id")
+        raise UsageError(
+            f"--visit: {len(found)} visits are named {text!r}; give the site with "
+            "--site or the visit's id"
+        )
     names = ", ".join(repr(v.name) for v in log.visits(site_id)) or "none"
     raise UsageError(f"--visit: no visit named or numbered {text!r}; visits: {names}")
 
@@ -56,8 +62,9 @@ def run(args: argparse.Namespace) -> int:
         site = _find_site(log, args.site) if args.site else None
         visit = _find_visit(log, args.visit, site.id if site else None) if args.visit else None
         try:
-            path = write_report(log, args.out, site.id if site else None,
-                                visit.id if visit else None, units)
+            path = write_report(
+                log, args.out, site.id if site else None, visit.id if visit else None, units
+            )
         except OSError as exc:
             raise UsageError(f"report: cannot write {args.out} ({exc.strerror or exc})") from None
         n = len(log.posts(visit.id) if visit else log.posts(site_id=site.id if site else None))

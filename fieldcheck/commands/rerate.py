@@ -20,8 +20,14 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
 def run(args: argparse.Namespace) -> int:
     with open_log(args, must_exist=True) as log:
         res = log.rerate_all()
-        print(f"Re-rated {res.rated} posts in {log.path} with engine {res.engine_version}"
-              + (f"; {res.unrated} could not be rated (fix their fields in the interface)." if res.unrated else "."))
+        print(
+            f"Re-rated {res.rated} posts in {log.path} with engine {res.engine_version}"
+            + (
+                f"; {res.unrated} could not be rated (fix their fields in the interface)."
+                if res.unrated
+                else "."
+            )
+        )
         for err in res.errors[:20]:
             print(f"  {err}")
     return 0 if not res.unrated else 1

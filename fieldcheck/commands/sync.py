@@ -78,7 +78,9 @@ def run_export_bundle(args: argparse.Namespace) -> int:
 
     with open_log(args, readonly=True, must_exist=True) as log:
         out = export_bundle(log, args.bundle)
-    print(f"Wrote bundle {out} and its manifest {out.name}.json; carry both files.", file=sys.stderr)
+    print(
+        f"Wrote bundle {out} and its manifest {out.name}.json; carry both files.", file=sys.stderr
+    )
     return 0
 
 

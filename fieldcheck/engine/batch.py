@@ -36,15 +36,21 @@ RECT, ROUND, BUILT_UP = 0, 1, 2
 
 
 def _f(default: float = np.nan):
-    return field(default_factory=lambda: np.array([default], dtype=np.float64), metadata={"default": default})
+    return field(
+        default_factory=lambda: np.array([default], dtype=np.float64), metadata={"default": default}
+    )
 
 
 def _i(default: int = 0):
-    return field(default_factory=lambda: np.array([default], dtype=np.int8), metadata={"default": default})
+    return field(
+        default_factory=lambda: np.array([default], dtype=np.int8), metadata={"default": default}
+    )
 
 
 def _b(default: bool = False):
-    return field(default_factory=lambda: np.array([default], dtype=bool), metadata={"default": default})
+    return field(
+        default_factory=lambda: np.array([default], dtype=bool), metadata={"default": default}
+    )
 
 
 @dataclass
@@ -127,9 +133,15 @@ class PostBatch:
     pad_t_mm: np.ndarray = _f()  # pad or mudsill thickness (NaN: not given, rigid pad assumed)
     soil_kpa: np.ndarray = _f()  # presumptive allowable pressure, IBC 2012 Table 1806.2 (NaN: none)
     soil_flags: np.ndarray = _i(0)  # loads.SOIL_* bits: unknown / unprepared / assumed
-    plate_lb_mm: np.ndarray = _f()  # steel bearing plate length along the cap and sill grain (NaN: none)
-    combo: np.ndarray = _i(-1)  # governing combination: row of data/load_combinations.csv (-1: --load)
-    lateral_rule: np.ndarray = _i(-1)  # row of data/shore_lateral.csv (-1: bracing demand not asked)
+    plate_lb_mm: np.ndarray = (
+        _f()
+    )  # steel bearing plate length along the cap and sill grain (NaN: none)
+    combo: np.ndarray = _i(
+        -1
+    )  # governing combination: row of data/load_combinations.csv (-1: --load)
+    lateral_rule: np.ndarray = _i(
+        -1
+    )  # row of data/shore_lateral.csv (-1: bracing demand not asked)
     lateral_edge_mm: np.ndarray = _f()  # floor edge braced (cal-osha rule)
     lean_mm: np.ndarray = _f()  # out of plumb over the height, for the bracing thrust (NaN: plumb)
     species_code: np.ndarray = _i(-1)  # index into materials.SPECIES (-1 unknown): remedies' stock
@@ -162,7 +174,9 @@ class PostBatch:
     knot_mm: np.ndarray = _f(0.0)  # largest knot measured across its face
     knot_face: np.ndarray = _i(0)  # 0 on a wide face (width d1), 1 on a narrow face (width d2)
     slope_n: np.ndarray = _f(np.inf)  # slope of grain 1 in n (inf: straight)
-    slope_table: np.ndarray = _i(0)  # 0 grading (ASTM D245, memory), 1 clear-wood (Wood Handbook 5-12)
+    slope_table: np.ndarray = _i(
+        0
+    )  # 0 grading (ASTM D245, memory), 1 clear-wood (Wood Handbook 5-12)
     sr_applies: np.ndarray = _b(True)  # knots/slope reduce the values (ungraded, or beyond grade)
     split: np.ndarray = _i(0)  # 0 none, 1 check, 2 through, 3 opening
     split_faces: np.ndarray = _i(0)  # faces a through split shows on: 0 unknown, 1 wide, 2 narrow
@@ -175,7 +189,9 @@ class PostBatch:
     bow2_mm: np.ndarray = _f(0.0)
     plumb1_mm: np.ndarray = _f(0.0)  # top offset from the bottom over the height, in the d1 plane
     plumb2_mm: np.ndarray = _f(0.0)
-    offset1_mm: np.ndarray = _f(0.0)  # load resultant off the post centroid on the cap, d1 direction
+    offset1_mm: np.ndarray = _f(
+        0.0
+    )  # load resultant off the post centroid on the cap, d1 direction
     offset2_mm: np.ndarray = _f(0.0)
     sw_time_us: np.ndarray = _f()  # stress-wave transit time across the member
     sw_path_mm: np.ndarray = _f()  # its path length
@@ -220,7 +236,10 @@ class PostBatch:
     @staticmethod
     def concat(batches: list[PostBatch]) -> PostBatch:
         return PostBatch(
-            **{f.name: np.concatenate([getattr(b, f.name) for b in batches]) for f in fields(PostBatch)}
+            **{
+                f.name: np.concatenate([getattr(b, f.name) for b in batches])
+                for f in fields(PostBatch)
+            }
         )
 
 

@@ -36,10 +36,9 @@ import numpy as np
 from fieldcheck.engine import nds
 from fieldcheck.engine import rating as _r
 from fieldcheck.engine.batch import EC5, LRFD, PostBatch, distinct, filled
+from fieldcheck.engine.customary import IN
 from fieldcheck.engine.refdata import table
 from fieldcheck.engine.sections import second_moments
-from fieldcheck.engine.customary import IN
-
 
 # ---- codes used in PostBatch condition fields ----------------------------------------------
 ZONE_NAMES = ("full", "middle", "top", "bottom")  # where along the height a loss lies
@@ -49,7 +48,10 @@ WIDE, NARROW = 0, 1
 SPLIT_NAMES = ("none", "check", "through", "opening")
 SPLIT_NONE, SPLIT_CHECK, SPLIT_THROUGH, SPLIT_OPENING = 0, 1, 2, 3
 SPLIT_FACE_NAMES = ("unknown", "wide", "narrow")  # the faces a through split shows on
-SLOPE_TABLES = ("grading", "clear-wood")  # grading: ASTM D245 [M]; clear-wood: Wood Handbook 5-12 [V]
+SLOPE_TABLES = (
+    "grading",
+    "clear-wood",
+)  # grading: ASTM D245 [M]; clear-wood: Wood Handbook 5-12 [V]
 GRADING, CLEAR_WOOD = 0, 1
 CRUSHED_NAMES = ("none", "top", "bottom", "both")  # bit 1 top, bit 2 bottom
 DATA_LEVELS = ("default-values", "drawings", "usual", "comprehensive")  # ASCE 41 data collection
@@ -59,12 +61,20 @@ CONDITIONS = ("none recorded", "minor", "moderate", "severe")  # what was seen (
 CHAR_LAYER_MM = 7.0  # zero-strength layer beyond the char line, EN 1995-1-2 §4.2.2 d0 = 7 mm [M]
 CRUSHED_AREA = 0.5  # share of a crushed or broomed end taken as bearing (judgement)
 MIDDLE_FROM, MIDDLE_TO = 0.25, 0.75  # the buckling-critical middle half of the height (judgement)
-MC_DECAY_RISK = 20.0  # % MC at or above which most decay fungi grow (Smulski 1996 [S]; judgement flag)
-MC_SATURATED = 28.0  # % MC: near fibre saturation, meters unreliable (FPL-GTR-6 [V]; flag judgement)
+MC_DECAY_RISK = (
+    20.0  # % MC at or above which most decay fungi grow (Smulski 1996 [S]; judgement flag)
+)
+MC_SATURATED = (
+    28.0  # % MC: near fibre saturation, meters unreliable (FPL-GTR-6 [V]; flag judgement)
+)
 HANKINSON_Q_BENDING = 0.1  # Q/P for bending at an angle to grain (Wood Handbook ch. 5 range [M])
-LE_BENDING = 1.84  # le/lu for the bending check of a post with end moments (NDS 2018 Table 3.3.3 [M])
+LE_BENDING = (
+    1.84  # le/lu for the bending check of a post with end moments (NDS 2018 Table 3.3.3 [M])
+)
 ECC_ITERATIONS = 16  # most Illinois steps of the interaction solve
-ECC_RTOL = 1e-7  # stop once every bracket is this tight (relative); lo is returned, on the safe side
+ECC_RTOL = (
+    1e-7  # stop once every bracket is this tight (relative); lo is returned, on the safe side
+)
 DEPTH_FIELDS = ("1p", "1m", "2p", "2m")  # faces: 1p/1m the narrow faces (reduce d1), 2p/2m wide
 
 
@@ -81,8 +91,11 @@ def slope_rows(name: str, prop: str) -> tuple[np.ndarray, np.ndarray, str]:
     """(slope n ascending, ratio 0-1, status) for one table and property from data/slope_of_grain.csv."""
     rows = [r for r in table("slope_of_grain") if r["table"] == name and r["property"] == prop]
     rows.sort(key=lambda r: float(r["slope_n"]))
-    return (np.array([float(r["slope_n"]) for r in rows]), np.array([float(r["ratio_pct"]) / 100 for r in rows]),
-            rows[0]["status"])
+    return (
+        np.array([float(r["slope_n"]) for r in rows]),
+        np.array([float(r["ratio_pct"]) / 100 for r in rows]),
+        rows[0]["status"],
+    )
 
 
 def _hankinson(n: np.ndarray, q: np.ndarray) -> np.ndarray:
@@ -92,7 +105,9 @@ def _hankinson(n: np.ndarray, q: np.ndarray) -> np.ndarray:
     return q / (s2 + q * (1.0 - s2))
 
 
-def slope_ratio(n: np.ndarray, which: np.ndarray, prop: str, q: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+def slope_ratio(
+    n: np.ndarray, which: np.ndarray, prop: str, q: np.ndarray
+) -> tuple[np.ndarray, np.ndarray]:
     """(strength ratio, steeper-than-table mask) for slope 1 in n (inf: straight).
 
     A slope between rows takes the row at or steeper than it (conservative). Steeper than the
@@ -117,24 +132,42 @@ def slope_ratio(n: np.ndarray, which: np.ndarray, prop: str, q: np.ndarray) -> t
 
 def strength_ratios(b: PostBatch) -> dict[str, np.ndarray]:
     """Lowest strength ratio of the knot and the slope, for Fc and for Fb (D245: lowest, not product)."""
-    if not (np.any(b.knot_mm > 0) or np.any(np.isfinite(b.slope_n))):  # nothing recorded in this block
+    if not (
+        np.any(b.knot_mm > 0) or np.any(np.isfinite(b.slope_n))
+    ):  # nothing recorded in this block
         one, no = filled(1.0, b.n), filled(False, b.n)
-        return {"strength_ratio": one, "sr_bending": one, "sr_knot": one, "sr_slope": one,
-                "sr_slope_bending": one, "slope_beyond_table": no, "sr_recorded": no}
+        return {
+            "strength_ratio": one,
+            "sr_bending": one,
+            "sr_knot": one,
+            "sr_slope": one,
+            "sr_slope_bending": one,
+            "slope_beyond_table": no,
+            "sr_recorded": no,
+        }
     k = _nz(b.knot_mm)
     w = np.where(b.knot_face == NARROW, b.d2_mm, b.d1_mm)
     sr_knot = np.clip(1.0 - k / w, 0.0, 1.0)  # ASTM D245 principle, knot as a hole: 1 - k/w [M]
     q_c = np.clip(np.where(np.isnan(b.fc_perp_mpa), 0.1, b.fc_perp_mpa / b.fc_mpa), 0.02, 1.0)
     sr_slope_c, beyond = slope_ratio(b.slope_n, b.slope_table, "compression", q_c)
-    sr_slope_b, _ = slope_ratio(b.slope_n, b.slope_table, "bending", np.full_like(q_c, HANKINSON_Q_BENDING))
+    sr_slope_b, _ = slope_ratio(
+        b.slope_n, b.slope_table, "bending", np.full_like(q_c, HANKINSON_Q_BENDING)
+    )
     recorded = (k > 0) | np.isfinite(b.slope_n)
     apply = b.sr_applies & recorded
     sr_c = np.where(apply, np.minimum(sr_knot, sr_slope_c), 1.0)
     # bending: the compression knot form is used for Fb too (judgement; D245 bending rules for
     # edge and centre knots are more detailed and were not verified)
     sr_b = np.where(apply, np.minimum(sr_knot, sr_slope_b), 1.0)
-    return {"strength_ratio": sr_c, "sr_bending": sr_b, "sr_knot": sr_knot, "sr_slope": sr_slope_c,
-            "sr_slope_bending": sr_slope_b, "slope_beyond_table": beyond & apply, "sr_recorded": recorded}
+    return {
+        "strength_ratio": sr_c,
+        "sr_bending": sr_b,
+        "sr_knot": sr_knot,
+        "sr_slope": sr_slope_c,
+        "sr_slope_bending": sr_slope_b,
+        "slope_beyond_table": beyond & apply,
+        "sr_recorded": recorded,
+    }
 
 
 # =============================================================================================
@@ -155,8 +188,18 @@ def _cut_zones(z_mm: np.ndarray, h: np.ndarray, d1: np.ndarray):
     return mid, z >= h - d1, z <= d1
 
 
-def _section(b: PostBatch, dec: list, chr_: list, inc_dec, inc_chr, inc_hollow, inc_notch, inc_hole,
-             parts: dict, full: bool = True) -> dict[str, np.ndarray]:
+def _section(
+    b: PostBatch,
+    dec: list,
+    chr_: list,
+    inc_dec,
+    inc_chr,
+    inc_hollow,
+    inc_notch,
+    inc_hole,
+    parts: dict,
+    full: bool = True,
+) -> dict[str, np.ndarray]:
     """Residual section for the losses included (boolean masks). Coordinates from the original
     centre: x along d1, y along d2. Returns area and, if ``full``, I1, I2, centroid, S, sizes.
 
@@ -179,8 +222,9 @@ def _section(b: PostBatch, dec: list, chr_: list, inc_dec, inc_chr, inc_hollow, 
     tri = []
     if parts["has_wane"]:
         w = parts["wane"]
-        for j, (sx, sy, ax, ay) in enumerate(((1, 1, a1p, a2p), (-1, 1, a1m, a2p), (1, -1, a1p, a2m),
-                                              (-1, -1, a1m, a2m))):
+        for j, (sx, sy, ax, ay) in enumerate(
+            ((1, 1, a1p, a2p), (-1, 1, a1m, a2p), (1, -1, a1p, a2m), (-1, -1, a1m, a2m))
+        ):
             wc = np.maximum(w - ax - ay, 0.0) * parts["corner"][j]
             at = 0.5 * wc * wc
             area -= at
@@ -238,26 +282,60 @@ def _sections(b, dec, chr_, parts, h, d1):
     n_mid, n_top, n_bot = _cut_zones(b.notch_z_mm, h, d1)
     h_mid, h_top, h_bot = _cut_zones(b.hole_z_mm, h, d1)
     yes = np.ones(b.n, dtype=bool)
-    mid = _section(b, dec, chr_, _in_zone(b.decay_zone, MIDDLE), _in_zone(b.char_zone, MIDDLE),
-                   _in_zone(b.hollow_zone, MIDDLE), n_mid, h_mid, parts)
+    mid = _section(
+        b,
+        dec,
+        chr_,
+        _in_zone(b.decay_zone, MIDDLE),
+        _in_zone(b.char_zone, MIDDLE),
+        _in_zone(b.hollow_zone, MIDDLE),
+        n_mid,
+        h_mid,
+        parts,
+    )
     net = _section(b, dec, chr_, yes, yes, yes, yes, yes, parts)
-    top = _section(b, dec, chr_, _in_zone(b.decay_zone, TOP), _in_zone(b.char_zone, TOP),
-                   _in_zone(b.hollow_zone, TOP), n_top, h_top, parts, full=False)
-    bot = _section(b, dec, chr_, _in_zone(b.decay_zone, BOTTOM), _in_zone(b.char_zone, BOTTOM),
-                   _in_zone(b.hollow_zone, BOTTOM), n_bot, h_bot, parts, full=False)
+    top = _section(
+        b,
+        dec,
+        chr_,
+        _in_zone(b.decay_zone, TOP),
+        _in_zone(b.char_zone, TOP),
+        _in_zone(b.hollow_zone, TOP),
+        n_top,
+        h_top,
+        parts,
+        full=False,
+    )
+    bot = _section(
+        b,
+        dec,
+        chr_,
+        _in_zone(b.decay_zone, BOTTOM),
+        _in_zone(b.char_zone, BOTTOM),
+        _in_zone(b.hollow_zone, BOTTOM),
+        n_bot,
+        h_bot,
+        parts,
+        full=False,
+    )
     return mid, net, top, bot
 
 
 LOSS_FIELDS = tuple(f"{k}_{f}_mm" for k in ("decay", "char") for f in DEPTH_FIELDS) + (
-    "hollow_mm", "wane_mm", "notch_mm", "hole_mm")
+    "hollow_mm",
+    "wane_mm",
+    "notch_mm",
+    "hole_mm",
+)
 
 
 def _block_has_loss(b: PostBatch) -> bool:
     """Any section loss or through split in this block (NaN and 0 mean none); kept on the batch."""
     memo = b.__dict__.get("_has_loss")
     if memo is None:
-        memo = (any((distinct(getattr(b, f)) > 0).any() for f in LOSS_FIELDS)
-                or bool((distinct(b.split) >= SPLIT_THROUGH).any()))
+        memo = any((distinct(getattr(b, f)) > 0).any() for f in LOSS_FIELDS) or bool(
+            (distinct(b.split) >= SPLIT_THROUGH).any()
+        )
         b.__dict__["_has_loss"] = memo
     return memo
 
@@ -269,9 +347,20 @@ def _sound(b: PostBatch) -> dict[str, np.ndarray]:
     gross = d1 * d2
     zero, no = filled(0.0, b.n), filled(False, b.n)
     out = {
-        "area": gross, "area_gross": gross, "area_net": gross, "area_top": gross, "area_bottom": gross,
-        "d_eff1": d1, "d_eff2": d2, "least_d1": d1, "least_d2": d2, "shift1": zero, "shift2": zero,
-        "loss": no, "loss_mid": no, "split_axis": filled(np.int8(0), b.n),
+        "area": gross,
+        "area_gross": gross,
+        "area_net": gross,
+        "area_top": gross,
+        "area_bottom": gross,
+        "d_eff1": d1,
+        "d_eff2": d2,
+        "least_d1": d1,
+        "least_d2": d2,
+        "shift1": zero,
+        "shift2": zero,
+        "loss": no,
+        "loss_mid": no,
+        "split_axis": filled(np.int8(0), b.n),
     }
     out.update(strength_ratios(b))
     return out
@@ -284,11 +373,19 @@ def gross_bending_properties(b: PostBatch, v: dict) -> None:
         return
     d1, d2 = b.d1_mm, b.d2_mm
     i1, i2 = second_moments(d1, d2)
-    v.update(res_i1=i1, res_i2=i2, i_gyr1=d1 / np.sqrt(12.0), i_gyr2=d2 / np.sqrt(12.0),
-             s1=i1 / (0.5 * d1), s2=i2 / (0.5 * d2))
+    v.update(
+        res_i1=i1,
+        res_i2=i2,
+        i_gyr1=d1 / np.sqrt(12.0),
+        i_gyr2=d2 / np.sqrt(12.0),
+        s1=i1 / (0.5 * d1),
+        s2=i2 / (0.5 * d2),
+    )
 
 
-def residual(b: PostBatch, le1: np.ndarray | None = None, le2: np.ndarray | None = None) -> dict[str, np.ndarray]:
+def residual(
+    b: PostBatch, le1: np.ndarray | None = None, le2: np.ndarray | None = None
+) -> dict[str, np.ndarray]:
     """Every condition value the rating needs, as arrays (see the module docstring).
 
     Keys: area (middle section, used by the column check), area_gross, area_net (all losses
@@ -299,15 +396,30 @@ def residual(b: PostBatch, le1: np.ndarray | None = None, le2: np.ndarray | None
     (effective lengths) decide the axis of a through split whose faces were not recorded.
     """
     d1, d2, h = b.d1_mm, b.d2_mm, b.height_mm
-    if not _block_has_loss(b):  # a sound block: the gross section (same values as below, fewer steps)
+    if not _block_has_loss(
+        b
+    ):  # a sound block: the gross section (same values as below, fewer steps)
         return _sound(b)
     margin = _nz(b.decay_margin_mm)
-    dec = [np.where(_nz(getattr(b, f"decay_{f}_mm")) > 0, _nz(getattr(b, f"decay_{f}_mm")) + margin, 0.0)
-           for f in DEPTH_FIELDS]  # judgement margin past the probed boundary (field-practice.md §1.6)
-    chr_ = [np.where(_nz(getattr(b, f"char_{f}_mm")) > 0, _nz(getattr(b, f"char_{f}_mm")) + CHAR_LAYER_MM, 0.0)
-            for f in DEPTH_FIELDS]  # char + zero-strength layer d0 (EN 1995-1-2 §4.2.2, from memory)
+    dec = [
+        np.where(
+            _nz(getattr(b, f"decay_{f}_mm")) > 0, _nz(getattr(b, f"decay_{f}_mm")) + margin, 0.0
+        )
+        for f in DEPTH_FIELDS
+    ]  # judgement margin past the probed boundary (field-practice.md §1.6)
+    chr_ = [
+        np.where(
+            _nz(getattr(b, f"char_{f}_mm")) > 0,
+            _nz(getattr(b, f"char_{f}_mm")) + CHAR_LAYER_MM,
+            0.0,
+        )
+        for f in DEPTH_FIELDS
+    ]  # char + zero-strength layer d0 (EN 1995-1-2 §4.2.2, from memory)
     parts = {
-        "notch": _nz(b.notch_mm), "wane": _nz(b.wane_mm), "hollow": _nz(b.hollow_mm), "hole": _nz(b.hole_mm),
+        "notch": _nz(b.notch_mm),
+        "wane": _nz(b.wane_mm),
+        "hollow": _nz(b.hollow_mm),
+        "hole": _nz(b.hole_mm),
         "notch_narrow": (b.notch_face == NARROW).astype(np.float64),
         "notch_wide": (b.notch_face == WIDE).astype(np.float64),
         "hole_wide": (b.hole_face == WIDE).astype(np.float64),
@@ -316,12 +428,27 @@ def residual(b: PostBatch, le1: np.ndarray | None = None, le2: np.ndarray | None
     for k in ("notch", "wane", "hollow", "hole"):
         parts[f"has_{k}"] = bool(parts[k].any())
     gross = d1 * d2
-    loss_any = (sum(dec) + sum(chr_) + parts["hollow"] + parts["notch"] + parts["hole"]
-                + parts["wane"] * parts["corner"][0]) > 0
+    loss_any = (
+        sum(dec)
+        + sum(chr_)
+        + parts["hollow"]
+        + parts["notch"]
+        + parts["hole"]
+        + parts["wane"] * parts["corner"][0]
+    ) > 0
     if not loss_any.any():  # a sound block: the gross section, nothing to compute
         zero = np.zeros(b.n)
-        mid = net = {"area": gross, "i1": zero, "i2": zero, "xbar": zero, "ybar": zero, "c1": zero, "c2": zero,
-                     "b1": d1, "b2": d2}
+        mid = net = {
+            "area": gross,
+            "i1": zero,
+            "i2": zero,
+            "xbar": zero,
+            "ybar": zero,
+            "c1": zero,
+            "c2": zero,
+            "b1": d1,
+            "b2": d2,
+        }
         top = bot = mid
     else:
         mid, net, top, bot = _sections(b, dec, chr_, parts, h, d1)
@@ -331,7 +458,9 @@ def residual(b: PostBatch, le1: np.ndarray | None = None, le2: np.ndarray | None
     split_mid = (b.split >= SPLIT_THROUGH) & _in_zone(b.split_zone, MIDDLE)
     with np.errstate(divide="ignore", invalid="ignore"):
         a_m = np.where(loss_mid, mid["area"], gross)
-        de1 = np.where(loss_mid, np.sqrt(12.0 * mid["i1"] / np.maximum(a_m, 1e-9)), d1)  # d_eff = sqrt(12 I / A)
+        de1 = np.where(
+            loss_mid, np.sqrt(12.0 * mid["i1"] / np.maximum(a_m, 1e-9)), d1
+        )  # d_eff = sqrt(12 I / A)
         de2 = np.where(loss_mid, np.sqrt(12.0 * mid["i2"] / np.maximum(a_m, 1e-9)), d2)
     if le1 is None:
         le1, le2 = h, h
@@ -347,16 +476,33 @@ def residual(b: PostBatch, le1: np.ndarray | None = None, le2: np.ndarray | None
     de2 = np.where(s_axis2, 0.5 * de2, de2)
     c1 = np.where(loss_mid, mid["c1"], 0.5 * d1)
     c2 = np.where(loss_mid, mid["c2"], 0.5 * d2)
-    shift1 = np.where(loss_any, np.where(np.abs(net["xbar"]) > np.abs(mid["xbar"]), net["xbar"], mid["xbar"]), 0.0)
-    shift2 = np.where(loss_any, np.where(np.abs(net["ybar"]) > np.abs(mid["ybar"]), net["ybar"], mid["ybar"]), 0.0)
+    shift1 = np.where(
+        loss_any, np.where(np.abs(net["xbar"]) > np.abs(mid["xbar"]), net["xbar"], mid["xbar"]), 0.0
+    )
+    shift2 = np.where(
+        loss_any, np.where(np.abs(net["ybar"]) > np.abs(mid["ybar"]), net["ybar"], mid["ybar"]), 0.0
+    )
     out = {
-        "area": a_m, "area_gross": gross, "area_net": np.where(loss_any, net["area"], gross),
-        "area_top": np.where(loss_any, top["area"], gross), "area_bottom": np.where(loss_any, bot["area"], gross),
-        "res_i1": i1, "res_i2": i2, "d_eff1": de1, "d_eff2": de2,
-        "i_gyr1": de1 / np.sqrt(12.0), "i_gyr2": de2 / np.sqrt(12.0),
-        "s1": i1 / c1, "s2": i2 / c2, "least_d1": np.where(loss_mid, mid["b1"], d1),
-        "least_d2": np.where(loss_mid, mid["b2"], d2), "shift1": shift1, "shift2": shift2,
-        "loss": loss_any, "loss_mid": loss_mid, "split_axis": np.where(s_axis1, 1, np.where(s_axis2, 2, 0)).astype(np.int8),
+        "area": a_m,
+        "area_gross": gross,
+        "area_net": np.where(loss_any, net["area"], gross),
+        "area_top": np.where(loss_any, top["area"], gross),
+        "area_bottom": np.where(loss_any, bot["area"], gross),
+        "res_i1": i1,
+        "res_i2": i2,
+        "d_eff1": de1,
+        "d_eff2": de2,
+        "i_gyr1": de1 / np.sqrt(12.0),
+        "i_gyr2": de2 / np.sqrt(12.0),
+        "s1": i1 / c1,
+        "s2": i2 / c2,
+        "least_d1": np.where(loss_mid, mid["b1"], d1),
+        "least_d2": np.where(loss_mid, mid["b2"], d2),
+        "shift1": shift1,
+        "shift2": shift2,
+        "loss": loss_any,
+        "loss_mid": loss_mid,
+        "split_axis": np.where(s_axis1, 1, np.where(s_axis2, 2, 0)).astype(np.int8),
     }
     out.update(strength_ratios(b))
     return out
@@ -397,6 +543,7 @@ def eccentric_capacity(area, s1, s2, e1, e2, bow1, bow2, fc_prime, fb1p, fb2p, f
     h2 = 0.234 * u2 * e2 / s2
     k = np.where(np.isfinite(fbe), g1 / fbe, 0.0)  # (fb1 + fc 6e1/d1) / FbE = k P
     args = (a0, u1, u2, g1, h1, g2, h2, fb1p, fb2p, k)
+
     # bracket: without the amplifiers the equation is a quadratic whose root p0 is an upper bound;
     # with the amplifiers frozen at their p0 values (their largest below p0) its root p1 is a
     # lower bound. Also below the concentric capacity and the first pole (fc < FcE1; T2).
@@ -453,9 +600,12 @@ ECC_FIELDS = ("offset1_mm", "offset2_mm", "bow1_mm", "bow2_mm", "plumb1_mm", "pl
 
 def _block_has_eccentricity(b: PostBatch, v: dict) -> bool:
     """Any load offset, bow, lean, centroid shift or partial contact in this block."""
-    return (any((np.abs(distinct(getattr(b, f))) > 0).any() for f in ECC_FIELDS)  # NaN: none
-            or bool((distinct(b.end_contact) < 1.0).any()) or bool((distinct(v["shift1"]) != 0).any())
-            or bool((distinct(v["shift2"]) != 0).any()))
+    return (
+        any((np.abs(distinct(getattr(b, f))) > 0).any() for f in ECC_FIELDS)  # NaN: none
+        or bool((distinct(b.end_contact) < 1.0).any())
+        or bool((distinct(v["shift1"]) != 0).any())
+        or bool((distinct(v["shift2"]) != 0).any())
+    )
 
 
 def eccentricities(b: PostBatch, values: dict) -> tuple[np.ndarray, ...]:
@@ -469,9 +619,17 @@ def eccentricities(b: PostBatch, values: dict) -> tuple[np.ndarray, ...]:
     """
     sway = values["sway"]
     contact = np.clip(b.end_contact, 0.0, 1.0)
-    e1 = np.abs(_nz(b.offset1_mm)) + np.abs(values["shift1"]) + np.where(sway, np.abs(_nz(b.plumb1_mm)), 0.0)
-    e2 = (np.abs(_nz(b.offset2_mm)) + np.abs(values["shift2"]) + (1.0 - contact) * 0.5 * b.d2_mm
-          + np.where(sway, np.abs(_nz(b.plumb2_mm)), 0.0))
+    e1 = (
+        np.abs(_nz(b.offset1_mm))
+        + np.abs(values["shift1"])
+        + np.where(sway, np.abs(_nz(b.plumb1_mm)), 0.0)
+    )
+    e2 = (
+        np.abs(_nz(b.offset2_mm))
+        + np.abs(values["shift2"])
+        + (1.0 - contact) * 0.5 * b.d2_mm
+        + np.where(sway, np.abs(_nz(b.plumb2_mm)), 0.0)
+    )
     return e1, e2, np.abs(_nz(b.bow1_mm)), np.abs(_nz(b.bow2_mm))
 
 
@@ -488,16 +646,34 @@ def add_checks(b: PostBatch, checks: dict, values: dict) -> None:
     m_net = nds_m & (v["area_net"] < v["area"])
     p_net = np.where(m_net, v["fc_star"] * v["area_net"] * kappa, nan) if m_net.any() else nan
     checks["net_section"] = Check(
-        "net_section", "crushing of the net section (loss near an end)", "NDS 2018 §3.6.3, §3.7.1", p_net, load)
+        "net_section",
+        "crushing of the net section (loss near an end)",
+        "NDS 2018 §3.6.3, §3.7.1",
+        p_net,
+        load,
+    )
     # ---- eccentric load and bow (NDS 2018 §3.9.2, §15.4.1) ------------------------------------
     if not _block_has_eccentricity(b, v):  # centred, straight, full contact: no combined check
         zero = filled(0.0, n)
         no = filled(False, n)
         checks["eccentric"] = Check(
-            "eccentric", "combined axial load and bending (eccentricity, bow)", "NDS 2018 §3.9.2, §15.4.1",
-            nan, load)
-        v.update(ecc1=zero, ecc2=zero, bow1=zero, bow2=zero, fb_star=nan, fbe=nan, cl=nan,
-                 ecc_checked=no, ecc_wanted=no)
+            "eccentric",
+            "combined axial load and bending (eccentricity, bow)",
+            "NDS 2018 §3.9.2, §15.4.1",
+            nan,
+            load,
+        )
+        v.update(
+            ecc1=zero,
+            ecc2=zero,
+            bow1=zero,
+            bow2=zero,
+            fb_star=nan,
+            fbe=nan,
+            cl=nan,
+            ecc_checked=no,
+            ecc_wanted=no,
+        )
         return
     gross_bending_properties(b, v)
     e1, e2, bow1, bow2 = eccentricities(b, v)
@@ -519,65 +695,167 @@ def add_checks(b: PostBatch, checks: dict, values: dict) -> None:
     if idx.size:
         fc_prime = (v["cp"] * v["fc_star"] * kappa)[idx]
         p_ecc[idx] = eccentric_capacity(
-            v["area"][idx], v["s1"][idx], v["s2"][idx], e1[idx], e2[idx], bow1[idx], bow2[idx], fc_prime,
-            (fb_star * cl * kappa)[idx], (fb_star * kappa)[idx], v["fce1"][idx], v["fce2"][idx], fbe[idx])
+            v["area"][idx],
+            v["s1"][idx],
+            v["s2"][idx],
+            e1[idx],
+            e2[idx],
+            bow1[idx],
+            bow2[idx],
+            fc_prime,
+            (fb_star * cl * kappa)[idx],
+            (fb_star * kappa)[idx],
+            v["fce1"][idx],
+            v["fce2"][idx],
+            fbe[idx],
+        )
     checks["eccentric"] = Check(
-        "eccentric", "combined axial load and bending (eccentricity, bow)", "NDS 2018 §3.9.2, §15.4.1",
-        p_ecc, load)
-    v.update(ecc1=e1, ecc2=e2, bow1=bow1, bow2=bow2, fb_star=fb_star, fbe=fbe, cl=cl,
-             ecc_checked=m, ecc_wanted=want)
+        "eccentric",
+        "combined axial load and bending (eccentricity, bow)",
+        "NDS 2018 §3.9.2, §15.4.1",
+        p_ecc,
+        load,
+    )
+    v.update(
+        ecc1=e1,
+        ecc2=e2,
+        bow1=bow1,
+        bow2=bow2,
+        fb_star=fb_star,
+        fbe=fbe,
+        cl=cl,
+        ecc_checked=m,
+        ecc_wanted=want,
+    )
 
 
 # =============================================================================================
 # Flags, escalations, condition level
 # =============================================================================================
-F_DECAY_RISK = _r.new_flag(18, "Moisture 20 % or more: decay risk. Probe for decay and find the water source "
-                               "(judgement; most decay fungi need about 20 % MC).")
-F_SATURATED = _r.new_flag(19, "Moisture 28 % or more: near fibre saturation the meter reads unreliably; treat "
-                              "the post as wet and probe it thoroughly (judgement).")
-F_SECTION_LOSS = _r.new_flag(20, "Section loss deducted: the checks use the residual section (decayed, insect-"
-                                 "damaged and charred wood taken as having no strength).")
-F_DECAY_FOUND = _r.new_flag(21, "Decay or insect damage found: repair or brace before the due date and stop the "
-                                "water getting in; hidden decay may reach further than probed.")
-F_SR_APPLIED = _r.new_flag(22, "Knots or slope of grain reduce Fc and Fb by the lowest strength ratio "
-                               "(ASTM D245 principle, from memory).")
-F_SR_NOT_APPLIED = _r.new_flag(23, "Knots or slope recorded on a graded member but not deducted: the grade "
-                                   "allows for its own; give beyond_grade yes if they exceed the grade.")
-F_SLOPE_STEEP = _r.new_flag(24, "Slope of grain steeper than the table covers: ratio extended by Hankinson's "
-                                "formula; the member is outside structural grades, the engineer should assess it.")
-F_CHECKS = _r.new_flag(25, "Seasoning checks: little effect on crushing; probe the bottom of deep checks for decay.")
-F_SPLIT_THROUGH = _r.new_flag(26, "Through split in the middle part: the halves are taken as acting separately "
-                                  "(I / 4 about one axis). Clamp or bolt it.")
+F_DECAY_RISK = _r.new_flag(
+    18,
+    "Moisture 20 % or more: decay risk. Probe for decay and find the water source "
+    "(judgement; most decay fungi need about 20 % MC).",
+)
+F_SATURATED = _r.new_flag(
+    19,
+    "Moisture 28 % or more: near fibre saturation the meter reads unreliably; treat "
+    "the post as wet and probe it thoroughly (judgement).",
+)
+F_SECTION_LOSS = _r.new_flag(
+    20,
+    "Section loss deducted: the checks use the residual section (decayed, insect-"
+    "damaged and charred wood taken as having no strength).",
+)
+F_DECAY_FOUND = _r.new_flag(
+    21,
+    "Decay or insect damage found: repair or brace before the due date and stop the "
+    "water getting in; hidden decay may reach further than probed.",
+)
+F_SR_APPLIED = _r.new_flag(
+    22,
+    "Knots or slope of grain reduce Fc and Fb by the lowest strength ratio "
+    "(ASTM D245 principle, from memory).",
+)
+F_SR_NOT_APPLIED = _r.new_flag(
+    23,
+    "Knots or slope recorded on a graded member but not deducted: the grade "
+    "allows for its own; give beyond_grade yes if they exceed the grade.",
+)
+F_SLOPE_STEEP = _r.new_flag(
+    24,
+    "Slope of grain steeper than the table covers: ratio extended by Hankinson's "
+    "formula; the member is outside structural grades, the engineer should assess it.",
+)
+F_CHECKS = _r.new_flag(
+    25, "Seasoning checks: little effect on crushing; probe the bottom of deep checks for decay."
+)
+F_SPLIT_THROUGH = _r.new_flag(
+    26,
+    "Through split in the middle part: the halves are taken as acting separately "
+    "(I / 4 about one axis). Clamp or bolt it.",
+)
 F_SPLIT_OPENING = _r.new_flag(27, "Split opening under load: make safe now.")
-F_END_SPLIT = _r.new_flag(28, "Split at an end: the halves may act separately near the end; clamp it or "
-                              "replace the post.")
-F_CRUSHED_END = _r.new_flag(29, "Crushed or broomed end: half of that end's area taken as bearing (judgement); "
-                                "re-wedge or pack it to full contact.")
-F_CRUSHING = _r.new_flag(30, "Crushing in progress: make safe now (clear the area, call the engineer).")
-F_SETTLING = _r.new_flag(31, "Sill or pad settling: make safe now (clear the area, call the engineer).")
+F_END_SPLIT = _r.new_flag(
+    28, "Split at an end: the halves may act separately near the end; clamp it or replace the post."
+)
+F_CRUSHED_END = _r.new_flag(
+    29,
+    "Crushed or broomed end: half of that end's area taken as bearing (judgement); "
+    "re-wedge or pack it to full contact.",
+)
+F_CRUSHING = _r.new_flag(
+    30, "Crushing in progress: make safe now (clear the area, call the engineer)."
+)
+F_SETTLING = _r.new_flag(
+    31, "Sill or pad settling: make safe now (clear the area, call the engineer)."
+)
 F_MOVING = _r.new_flag(32, "Post leaning or moving more than before: make safe now.")
-F_ECCENTRIC = _r.new_flag(33, "Eccentric load or bow: combined axial load and bending checked "
-                              "(NDS 2018 §3.9.2, §15.4.1; EN 1995-1-1 §6.3.2(3) for EC5 ratings).")
-F_ECC_UNCHECKED = _r.new_flag(34, "Eccentricity or bow recorded but the combined check was not made (no "
-                                  "bending value Fb for this method): the capacity shown is for a centred load.")
-F_LEAN_THRUST = _r.new_flag(35, "Out of plumb with both ends held: no bending added, but the bracing and the "
-                                "end friction must carry H = P x lean / height.")
-F_SW_SUSPECT = _r.new_flag(36, "Stress-wave time 30 % or more above the sound reading: suspect decay; drill or "
-                               "probe there (threshold from memory).")
-F_SW_ADVANCED = _r.new_flag(37, "Stress-wave time 50 % or more above the sound reading: advanced decay likely "
-                                "(threshold from memory).")
-F_NO_SECTION = _r.new_flag(38, "No sound section left at some height: the post cannot be relied on.")
-F_DATA_LEVEL = _r.new_flag(39, "Knowledge factor set from the data-collection level given (ASCE 41, borrowed "
-                               "for gravity checks: judgement).")
+F_ECCENTRIC = _r.new_flag(
+    33,
+    "Eccentric load or bow: combined axial load and bending checked "
+    "(NDS 2018 §3.9.2, §15.4.1; EN 1995-1-1 §6.3.2(3) for EC5 ratings).",
+)
+F_ECC_UNCHECKED = _r.new_flag(
+    34,
+    "Eccentricity or bow recorded but the combined check was not made (no "
+    "bending value Fb for this method): the capacity shown is for a centred load.",
+)
+F_LEAN_THRUST = _r.new_flag(
+    35,
+    "Out of plumb with both ends held: no bending added, but the bracing and the "
+    "end friction must carry H = P x lean / height.",
+)
+F_SW_SUSPECT = _r.new_flag(
+    36,
+    "Stress-wave time 30 % or more above the sound reading: suspect decay; drill or "
+    "probe there (threshold from memory).",
+)
+F_SW_ADVANCED = _r.new_flag(
+    37,
+    "Stress-wave time 50 % or more above the sound reading: advanced decay likely "
+    "(threshold from memory).",
+)
+F_NO_SECTION = _r.new_flag(
+    38, "No sound section left at some height: the post cannot be relied on."
+)
+F_DATA_LEVEL = _r.new_flag(
+    39,
+    "Knowledge factor set from the data-collection level given (ASCE 41, borrowed "
+    "for gravity checks: judgement).",
+)
 
-_r.ESCALATIONS.extend([
-    (F_SPLIT_OPENING | F_CRUSHING | F_SETTLING | F_MOVING | F_NO_SECTION, 3),  # field-practice.md §6.2 D
-    (F_DECAY_FOUND | F_SW_ADVANCED, 2),  # field-practice.md §6.2 C: decay found
-    (F_DECAY_RISK | F_SATURATED | F_SW_SUSPECT | F_CRUSHED_END | F_SPLIT_THROUGH | F_END_SPLIT, 1),  # §6.2 B
-])
+_r.ESCALATIONS.extend(
+    [
+        (
+            F_SPLIT_OPENING | F_CRUSHING | F_SETTLING | F_MOVING | F_NO_SECTION,
+            3,
+        ),  # field-practice.md §6.2 D
+        (F_DECAY_FOUND | F_SW_ADVANCED, 2),  # field-practice.md §6.2 C: decay found
+        (
+            F_DECAY_RISK
+            | F_SATURATED
+            | F_SW_SUSPECT
+            | F_CRUSHED_END
+            | F_SPLIT_THROUGH
+            | F_END_SPLIT,
+            1,
+        ),  # §6.2 B
+    ]
+)
 SEVERE = F_SPLIT_OPENING | F_CRUSHING | F_SETTLING | F_MOVING | F_NO_SECTION
-MODERATE = (F_SECTION_LOSS | F_DECAY_FOUND | F_SW_ADVANCED | F_SR_APPLIED | F_SPLIT_THROUGH | F_END_SPLIT
-            | F_CRUSHED_END | F_ECCENTRIC | F_ECC_UNCHECKED | F_SLOPE_STEEP)
+MODERATE = (
+    F_SECTION_LOSS
+    | F_DECAY_FOUND
+    | F_SW_ADVANCED
+    | F_SR_APPLIED
+    | F_SPLIT_THROUGH
+    | F_END_SPLIT
+    | F_CRUSHED_END
+    | F_ECCENTRIC
+    | F_ECC_UNCHECKED
+    | F_SLOPE_STEEP
+)
 MINOR = F_DECAY_RISK | F_SATURATED | F_SW_SUSPECT | F_CHECKS | F_SR_NOT_APPLIED | F_LEAN_THRUST
 
 
@@ -607,8 +885,13 @@ def condition_flags(b: PostBatch, values: dict) -> np.ndarray:
     u = distinct
     flag(F_SECTION_LOSS, u(v["loss"]))
     if _block_has_loss(b):
-        decay = (_nz(b.decay_1p_mm) + _nz(b.decay_1m_mm) + _nz(b.decay_2p_mm) + _nz(b.decay_2m_mm)
-                 + _nz(b.hollow_mm)) > 0
+        decay = (
+            _nz(b.decay_1p_mm)
+            + _nz(b.decay_1m_mm)
+            + _nz(b.decay_2p_mm)
+            + _nz(b.decay_2m_mm)
+            + _nz(b.hollow_mm)
+        ) > 0
         flag(F_DECAY_FOUND, decay)
     flag(F_SR_APPLIED, u(v["strength_ratio"]) < 1.0)
     flag(F_SR_NOT_APPLIED, u(v["sr_recorded"]) & ~u(b.sr_applies))
@@ -640,7 +923,9 @@ def condition_flags(b: PostBatch, values: dict) -> np.ndarray:
     flag(F_SW_SUSPECT, (ratio >= u(b.sw_suspect)) & ~(ratio >= u(b.sw_advanced)))
     no_section = v["area"] <= 0  # a sound block: the areas are all the gross area
     if _block_has_loss(b):
-        no_section = no_section | (v["area_net"] <= 0) | (v["area_top"] <= 0) | (v["area_bottom"] <= 0)
+        no_section = (
+            no_section | (v["area_net"] <= 0) | (v["area_top"] <= 0) | (v["area_bottom"] <= 0)
+        )
     flag(F_NO_SECTION, no_section)
     flag(F_DATA_LEVEL, u(b.data_level) >= 0)
     level = np.zeros(b.n, dtype=np.int8)
@@ -673,50 +958,106 @@ def reductions(r, i: int) -> list[dict]:
     out: list[dict] = []
 
     def add(what: str, detail: str, factor: float | None, clause: str) -> None:
-        out.append({"reduction": what, "detail": detail,
-                    "factor": None if factor is None else round(float(factor), 6), "clause": clause})
+        out.append(
+            {
+                "reduction": what,
+                "detail": detail,
+                "factor": None if factor is None else round(float(factor), 6),
+                "clause": clause,
+            }
+        )
 
     gross = float(v["area_gross"][i])
     if bool(v["loss"][i]):
-        add("residual section, middle part",
+        add(
+            "residual section, middle part",
             f"area {v['area'][i] / gross:.3f} of gross; d_eff {_mm(v['d_eff1'][i])} x {_mm(v['d_eff2'][i])}; "
             f"centroid shift {_mm(v['shift1'][i])}, {_mm(v['shift2'][i])}; decay margin {_mm(b.decay_margin_mm[i])}"
-            " (judgement)", v["area"][i] / gross,
-            "common practice: decayed wood has no strength; char + 7 mm (EN 1995-1-2 §4.2.2, from memory); NDS 2018 §3.6.3 (from memory)")
-        add("net section (all losses together)", f"area {v['area_net'][i] / gross:.3f} of gross",
-            v["area_net"][i] / gross, "NDS 2018 §3.6.3 as remembered")
+            " (judgement)",
+            v["area"][i] / gross,
+            "common practice: decayed wood has no strength; char + 7 mm (EN 1995-1-2 §4.2.2, from memory); NDS 2018 §3.6.3 (from memory)",
+        )
+        add(
+            "net section (all losses together)",
+            f"area {v['area_net'][i] / gross:.3f} of gross",
+            v["area_net"][i] / gross,
+            "NDS 2018 §3.6.3 as remembered",
+        )
     for end, key in (("top", "a_top"), ("bottom", "a_bottom")):
         f = v[key][i] / gross
         if f < 1.0:
-            add(f"bearing area at the {end}", "residual end area x contact share"
-                + (" x 0.5 crushed end (judgement)" if b.crushed_end[i] & (1 if end == "top" else 2) else ""),
-                f, "NDS 2018 §3.10.1; judgement for partial contact")
+            add(
+                f"bearing area at the {end}",
+                "residual end area x contact share"
+                + (
+                    " x 0.5 crushed end (judgement)"
+                    if b.crushed_end[i] & (1 if end == "top" else 2)
+                    else ""
+                ),
+                f,
+                "NDS 2018 §3.10.1; judgement for partial contact",
+            )
     if int(v["split_axis"][i]):
-        add("through split", f"halves act separately: I about axis {int(v['split_axis'][i])} / 4", 0.25,
-            "mechanics: two halves acting separately, I / 4")
+        add(
+            "through split",
+            f"halves act separately: I about axis {int(v['split_axis'][i])} / 4",
+            0.25,
+            "mechanics: two halves acting separately, I / 4",
+        )
     if v["strength_ratio"][i] < 1.0 or v["sr_bending"][i] < 1.0:
         tname = SLOPE_TABLES[int(b.slope_table[i])]
-        src = "ASTM D245 grading table, from memory" if tname == "grading" else "Wood Handbook Table 5-12"
+        src = (
+            "ASTM D245 grading table, from memory"
+            if tname == "grading"
+            else "Wood Handbook Table 5-12"
+        )
         parts = []
-        if _nz(b.knot_mm[i:i + 1])[0] > 0:
-            parts.append(f"knot {_mm(b.knot_mm[i])} on a {FACE_NAMES[int(b.knot_face[i])]} face: {v['sr_knot'][i]:.3f}")
+        if _nz(b.knot_mm[i : i + 1])[0] > 0:
+            parts.append(
+                f"knot {_mm(b.knot_mm[i])} on a {FACE_NAMES[int(b.knot_face[i])]} face: {v['sr_knot'][i]:.3f}"
+            )
         if np.isfinite(b.slope_n[i]):
-            parts.append(f"slope 1 in {b.slope_n[i]:g} ({tname} table, {src}): {v['sr_slope'][i]:.3f}")
-        add("strength ratio on Fc (lowest, not the product)", "; ".join(parts), v["strength_ratio"][i],
-            "ASTM D245 principle (from memory); Wood Handbook Table 5-12")
-        add("strength ratio on Fb", "lowest of knot and slope (bending column)", v["sr_bending"][i],
-            "ASTM D245 principle (from memory)")
+            parts.append(
+                f"slope 1 in {b.slope_n[i]:g} ({tname} table, {src}): {v['sr_slope'][i]:.3f}"
+            )
+        add(
+            "strength ratio on Fc (lowest, not the product)",
+            "; ".join(parts),
+            v["strength_ratio"][i],
+            "ASTM D245 principle (from memory); Wood Handbook Table 5-12",
+        )
+        add(
+            "strength ratio on Fb",
+            "lowest of knot and slope (bending column)",
+            v["sr_bending"][i],
+            "ASTM D245 principle (from memory)",
+        )
     if v["cm_fc"][i] < 1.0:
-        add("wet service CM on Fc", f"moisture {b.moisture_pct[i]:.0f} %", v["cm_fc"][i], "NDS Supplement")
+        add(
+            "wet service CM on Fc",
+            f"moisture {b.moisture_pct[i]:.0f} %",
+            v["cm_fc"][i],
+            "NDS Supplement",
+        )
     if b.knowledge[i] < 1.0:
         lvl = int(b.data_level[i])
         basis = DATA_LEVELS[lvl] if lvl >= 0 else "default values (species or grade unknown)"
-        add("knowledge factor kappa", f"data collection: {basis}", b.knowledge[i], "ASCE 41 (secondary); judgement")
+        add(
+            "knowledge factor kappa",
+            f"data collection: {basis}",
+            b.knowledge[i],
+            "ASCE 41 (secondary); judgement",
+        )
     ecc = r.checks.get("eccentric")
     if ecc is not None and np.isfinite(ecc.capacity_n[i]):
         col = r.checks["column"].capacity_n[i]
-        add("eccentricity and bow", f"e1 {_mm(v['ecc1'][i])}, e2 {_mm(v['ecc2'][i])}, bow {_mm(v['bow1'][i])}, "
-            f"{_mm(v['bow2'][i])}", ecc.capacity_n[i] / col, "NDS 2018 §3.9.2, §15.4.1")
+        add(
+            "eccentricity and bow",
+            f"e1 {_mm(v['ecc1'][i])}, e2 {_mm(v['ecc2'][i])}, bow {_mm(v['bow1'][i])}, "
+            f"{_mm(v['bow2'][i])}",
+            ecc.capacity_n[i] / col,
+            "NDS 2018 §3.9.2, §15.4.1",
+        )
     return out
 
 
@@ -731,7 +1072,8 @@ def summary_keys(r, i: int, out: dict) -> None:
     if np.isfinite(v["sw_velocity"][i]):
         out["stress_wave"] = {
             "velocity_m_s": round(float(v["sw_velocity"][i]), 1),
-            "dynamic_e_mpa": _num(v["sw_ed_mpa"][i]), "time_ratio": _num(v["sw_ratio"][i]),
+            "dynamic_e_mpa": _num(v["sw_ed_mpa"][i]),
+            "time_ratio": _num(v["sw_ratio"][i]),
             "note": "E_d is an indicator, not a design value (common practice)",
         }
 
@@ -747,56 +1089,140 @@ def working_lines(r, i: int) -> list:
     b, v = r.batch, r.values
     s = []
     if bool(v["loss"][i]):
-        s.append(Step("Residual section (middle part): A, I1, I2",
-                      f"{v['area'][i]:,.0f} mm2, {v['res_i1'][i]:.4g} mm4, {v['res_i2'][i]:.4g} mm4",
-                      "common practice: decayed and charred wood has no strength"))
-        s.append(Step("d_eff = sqrt(12 I / A) per axis", f"{_mm(v['d_eff1'][i])}, {_mm(v['d_eff2'][i])}",
-                      "mechanics; NDS 2018 §3.6.3 net section in Cp [M]"))
-        s.append(Step("Net section (all losses), end areas top / bottom",
-                      f"{v['area_net'][i]:,.0f} / {v['area_top'][i]:,.0f} / {v['area_bottom'][i]:,.0f} mm2",
-                      "NDS 2018 §3.6.3 [M], §3.10.1"))
+        s.append(
+            Step(
+                "Residual section (middle part): A, I1, I2",
+                f"{v['area'][i]:,.0f} mm2, {v['res_i1'][i]:.4g} mm4, {v['res_i2'][i]:.4g} mm4",
+                "common practice: decayed and charred wood has no strength",
+            )
+        )
+        s.append(
+            Step(
+                "d_eff = sqrt(12 I / A) per axis",
+                f"{_mm(v['d_eff1'][i])}, {_mm(v['d_eff2'][i])}",
+                "mechanics; NDS 2018 §3.6.3 net section in Cp [M]",
+            )
+        )
+        s.append(
+            Step(
+                "Net section (all losses), end areas top / bottom",
+                f"{v['area_net'][i]:,.0f} / {v['area_top'][i]:,.0f} / {v['area_bottom'][i]:,.0f} mm2",
+                "NDS 2018 §3.6.3 [M], §3.10.1",
+            )
+        )
     if int(v["split_axis"][i]):
-        s.append(Step("Through split: I / 4", f"axis {int(v['split_axis'][i])}", "mechanics: two halves acting separately"))
+        s.append(
+            Step(
+                "Through split: I / 4",
+                f"axis {int(v['split_axis'][i])}",
+                "mechanics: two halves acting separately",
+            )
+        )
     if v["sr_recorded"][i]:
         tname = SLOPE_TABLES[int(b.slope_table[i])]
-        applied = "applied" if b.sr_applies[i] else "not applied (graded member; grade allows for it)"
-        s.append(Step(f"Strength ratio, lowest of knot and slope ({tname} table), {applied}",
-                      f"Fc x {v['strength_ratio'][i]:.4f}, Fb x {v['sr_bending'][i]:.4f}",
-                      "ASTM D245 principle (from memory); " + (
-                          "ASTM D245 slope table (from memory)" if tname == "grading" else "Wood Handbook Table 5-12")))
+        applied = (
+            "applied" if b.sr_applies[i] else "not applied (graded member; grade allows for it)"
+        )
+        s.append(
+            Step(
+                f"Strength ratio, lowest of knot and slope ({tname} table), {applied}",
+                f"Fc x {v['strength_ratio'][i]:.4f}, Fb x {v['sr_bending'][i]:.4f}",
+                "ASTM D245 principle (from memory); "
+                + (
+                    "ASTM D245 slope table (from memory)"
+                    if tname == "grading"
+                    else "Wood Handbook Table 5-12"
+                ),
+            )
+        )
     if b.material_assumed[i] or b.data_level[i] >= 0:
         lvl = int(b.data_level[i])
-        s.append(Step("Knowledge factor kappa" + (f" (data level {DATA_LEVELS[lvl]})" if lvl >= 0 else
-                                                  " (default values: species or grade unknown)"),
-                      f"{b.knowledge[i]:.2f}", "ASCE 41 data collection (secondary); judgement"))
+        s.append(
+            Step(
+                "Knowledge factor kappa"
+                + (
+                    f" (data level {DATA_LEVELS[lvl]})"
+                    if lvl >= 0
+                    else " (default values: species or grade unknown)"
+                ),
+                f"{b.knowledge[i]:.2f}",
+                "ASCE 41 data collection (secondary); judgement",
+            )
+        )
     if v["ecc_checked"][i]:
-        s.append(Step("Eccentricity e1, e2; bow at mid-height", f"{_mm(v['ecc1'][i])}, {_mm(v['ecc2'][i])}; "
-                      f"{_mm(v['bow1'][i])}, {_mm(v['bow2'][i])}", "initially curved bar (Timoshenko & Gere ch. 1); judgement"))
-        s.append(Step("Fb* (Fb x factors x strength ratio), CL, FbE",
-                      f"{v['fb_star'][i]:.3f} MPa, {v['cl'][i]:.4f}, {v['fbe'][i]:.4g} MPa", "NDS 2018 §3.3.3"))
+        s.append(
+            Step(
+                "Eccentricity e1, e2; bow at mid-height",
+                f"{_mm(v['ecc1'][i])}, {_mm(v['ecc2'][i])}; "
+                f"{_mm(v['bow1'][i])}, {_mm(v['bow2'][i])}",
+                "initially curved bar (Timoshenko & Gere ch. 1); judgement",
+            )
+        )
+        s.append(
+            Step(
+                "Fb* (Fb x factors x strength ratio), CL, FbE",
+                f"{v['fb_star'][i]:.3f} MPa, {v['cl'][i]:.4f}, {v['fbe'][i]:.4g} MPa",
+                "NDS 2018 §3.3.3",
+            )
+        )
     if np.isfinite(v["sw_velocity"][i]):
-        s.append(Step("Stress wave: v = path / time; E_d = rho v^2; time / sound time",
-                      f"{v['sw_velocity'][i]:,.0f} m/s; {v['sw_ed_mpa'][i]:,.0f} MPa; {v['sw_ratio'][i]:.2f}",
-                      "stress-wave timing practice (thresholds from memory)"))
-    s.append(Step("Condition (what was seen)", CONDITIONS[int(v["condition"][i])], "judgement: what was seen, kept apart from the action"))
+        s.append(
+            Step(
+                "Stress wave: v = path / time; E_d = rho v^2; time / sound time",
+                f"{v['sw_velocity'][i]:,.0f} m/s; {v['sw_ed_mpa'][i]:,.0f} MPa; {v['sw_ratio'][i]:.2f}",
+                "stress-wave timing practice (thresholds from memory)",
+            )
+        )
+    s.append(
+        Step(
+            "Condition (what was seen)",
+            CONDITIONS[int(v["condition"][i])],
+            "judgement: what was seen, kept apart from the action",
+        )
+    )
     return s
 
 
-def bench_fields(rng: np.random.Generator, n: int, d1: np.ndarray, d2: np.ndarray) -> dict[str, np.ndarray]:
+def bench_fields(
+    rng: np.random.Generator, n: int, d1: np.ndarray, d2: np.ndarray
+) -> dict[str, np.ndarray]:
     """Every condition input in use, for bench/engine.py --conditions."""
     u = rng.uniform
     return dict(
-        decay_1p_mm=u(0, 0.1, n) * d1, decay_2p_mm=u(0, 0.1, n) * d2, decay_2m_mm=u(0, 0.05, n) * d2,
-        decay_zone=rng.integers(0, 4, n), hollow_mm=u(0, 0.2, n) * d2, char_1m_mm=u(0, 10, n),
-        char_zone=rng.integers(0, 4, n), wane_mm=u(0, 10, n), wane_corners=rng.integers(0, 5, n),
-        notch_mm=u(0, 0.1, n) * d2, notch_face=rng.integers(0, 2, n), notch_z_mm=u(0, 2000, n),
-        hole_mm=u(0, 0.1, n) * d2, hole_face=rng.integers(0, 2, n), hole_z_mm=u(0, 2000, n),
-        knot_mm=u(0, 0.3, n) * d2, knot_face=rng.integers(0, 2, n), slope_n=u(4, 30, n),
-        slope_table=rng.integers(0, 2, n), split=rng.integers(0, 3, n), split_faces=rng.integers(0, 3, n),
-        crushed_end=rng.integers(0, 4, n), bow1_mm=u(0, 20, n), bow2_mm=u(0, 20, n),
-        plumb1_mm=u(0, 30, n), plumb2_mm=u(0, 30, n), offset1_mm=u(0, 15, n), offset2_mm=u(0, 15, n),
-        fb_mpa=u(5, 10, n), sw_time_us=u(300, 900, n), sw_path_mm=d2, sw_sound_us=np.full(n, 400.0),
-        density_kgm3=u(400, 600, n), end_contact=u(0.6, 1.0, n),
+        decay_1p_mm=u(0, 0.1, n) * d1,
+        decay_2p_mm=u(0, 0.1, n) * d2,
+        decay_2m_mm=u(0, 0.05, n) * d2,
+        decay_zone=rng.integers(0, 4, n),
+        hollow_mm=u(0, 0.2, n) * d2,
+        char_1m_mm=u(0, 10, n),
+        char_zone=rng.integers(0, 4, n),
+        wane_mm=u(0, 10, n),
+        wane_corners=rng.integers(0, 5, n),
+        notch_mm=u(0, 0.1, n) * d2,
+        notch_face=rng.integers(0, 2, n),
+        notch_z_mm=u(0, 2000, n),
+        hole_mm=u(0, 0.1, n) * d2,
+        hole_face=rng.integers(0, 2, n),
+        hole_z_mm=u(0, 2000, n),
+        knot_mm=u(0, 0.3, n) * d2,
+        knot_face=rng.integers(0, 2, n),
+        slope_n=u(4, 30, n),
+        slope_table=rng.integers(0, 2, n),
+        split=rng.integers(0, 3, n),
+        split_faces=rng.integers(0, 3, n),
+        crushed_end=rng.integers(0, 4, n),
+        bow1_mm=u(0, 20, n),
+        bow2_mm=u(0, 20, n),
+        plumb1_mm=u(0, 30, n),
+        plumb2_mm=u(0, 30, n),
+        offset1_mm=u(0, 15, n),
+        offset2_mm=u(0, 15, n),
+        fb_mpa=u(5, 10, n),
+        sw_time_us=u(300, 900, n),
+        sw_path_mm=d2,
+        sw_sound_us=np.full(n, 400.0),
+        density_kgm3=u(400, 600, n),
+        end_contact=u(0.6, 1.0, n),
     )
 
 
@@ -807,5 +1233,6 @@ def _register_steps() -> None:
     from fieldcheck.engine.working import register_steps
 
     register_steps(working_lines)
+
 
 _register_steps()

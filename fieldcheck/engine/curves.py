@@ -17,8 +17,17 @@ def capacity_vs_height(batch: PostBatch, heights_mm: np.ndarray) -> np.ndarray:
     h = np.asarray(heights_mm, dtype=np.float64)
     n, k = batch.n, h.size
     rep = batch.take(np.repeat(np.arange(n), k))
-    rep = rep.replace(height_mm=np.tile(h, n), lu1_mm=np.nan, lu2_mm=np.nan, braced1=False, braced2=False,
-                      brace1a_mm=np.nan, brace1b_mm=np.nan, brace2a_mm=np.nan, brace2b_mm=np.nan)
+    rep = rep.replace(
+        height_mm=np.tile(h, n),
+        lu1_mm=np.nan,
+        lu2_mm=np.nan,
+        braced1=False,
+        braced2=False,
+        brace1a_mm=np.nan,
+        brace1b_mm=np.nan,
+        brace2a_mm=np.nan,
+        brace2b_mm=np.nan,
+    )
     return rate(rep).capacity_n.reshape(n, k)
 
 
@@ -32,8 +41,14 @@ def capacity_vs_brace(batch: PostBatch, fractions: np.ndarray, axis: int = 2) ->
     rep = batch.take(np.repeat(np.arange(n), k))
     frac = np.tile(f, n)
     lu = rep.height_mm * np.maximum(frac, 1.0 - frac)
-    rep = rep.replace(**{f"lu{axis}_mm": lu, f"braced{axis}": True, f"brace{axis}a_mm": frac * rep.height_mm,
-                         f"brace{axis}b_mm": np.nan})
+    rep = rep.replace(
+        **{
+            f"lu{axis}_mm": lu,
+            f"braced{axis}": True,
+            f"brace{axis}a_mm": frac * rep.height_mm,
+            f"brace{axis}b_mm": np.nan,
+        }
+    )
     return rate(rep).capacity_n.reshape(n, k)
 
 

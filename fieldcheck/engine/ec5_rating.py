@@ -23,7 +23,9 @@ def apply_ec5(b: PostBatch, checks: dict, values: dict) -> None:
     i1 = v.get("i_gyr1", b.d1_mm / np.sqrt(12.0))  # rectangle: i = h / sqrt(12)
     i2 = v.get("i_gyr2", b.d2_mm / np.sqrt(12.0))
     fc0k = b.fc_mpa * v.get("strength_ratio", 1.0)
-    col = ec5.column_resistance(area, lef1, lef2, i1, i2, fc0k, b.emin_mpa, b.kmod, b.gamma_m, b.product)
+    col = ec5.column_resistance(
+        area, lef1, lef2, i1, i2, fc0k, b.emin_mpa, b.kmod, b.gamma_m, b.product
+    )
     kappa = b.knowledge
     # built-up posts: NDS 2018 §15.3 Kf on the axis across the plies (no EC5 rule held; judgement)
     n_rd2 = col.n_rd2 * b.kf
@@ -37,17 +39,32 @@ def apply_ec5(b: PostBatch, checks: dict, values: dict) -> None:
     checks["end_bearing"].capacity_n = np.where(m, end, checks["end_bearing"].capacity_n)
     checks["end_bearing"].clause = _mixed(m, checks["end_bearing"].clause, "EN 1995-1-1 §6.1.4")
     # bearing across the grain of the cap and sill (EN 1995-1-1 §6.1.5), k_c,90 = 1 (general)
-    for end_name, key, lb in (("top", "cap_bearing", "top_lb_mm"), ("bottom", "sill_bearing", "bottom_lb_mm")):
+    for end_name, key, lb in (
+        ("top", "cap_bearing", "top_lb_mm"),
+        ("bottom", "sill_bearing", "bottom_lb_mm"),
+    ):
         fc90k = getattr(b, f"{end_name}_fc_perp_mpa")
         length = np.where(np.isnan(getattr(b, lb)), b.d1_mm, getattr(b, lb))
-        br = ec5.bearing_perp_resistance(b.d2_mm * np.sqrt(b.end_contact), length * np.sqrt(b.end_contact),
-                                         fc90k, b.kmod, b.gamma_m, a_mm=np.nan, l1_mm=np.nan)
+        br = ec5.bearing_perp_resistance(
+            b.d2_mm * np.sqrt(b.end_contact),
+            length * np.sqrt(b.end_contact),
+            fc90k,
+            b.kmod,
+            b.gamma_m,
+            a_mm=np.nan,
+            l1_mm=np.nan,
+        )
         checks[key].capacity_n = np.where(m, br.n_rd, checks[key].capacity_n)
         checks[key].clause = _mixed(m, checks[key].clause, "EN 1995-1-1 §6.1.5")
     _combined(b, checks, values, m, col, kappa)
     values.update(
-        ec5_mask=m, ec5_lam_rel1=col.lam_rel1, ec5_lam_rel2=col.lam_rel2, ec5_kc1=col.kc1, ec5_kc2=col.kc2,
-        ec5_fc0d=col.fc0d, ec5_beta_c=col.beta_c,
+        ec5_mask=m,
+        ec5_lam_rel1=col.lam_rel1,
+        ec5_lam_rel2=col.lam_rel2,
+        ec5_kc1=col.kc1,
+        ec5_kc2=col.kc2,
+        ec5_fc0d=col.fc0d,
+        ec5_beta_c=col.beta_c,
     )
     v["cp"] = np.where(m, kc_gov, v["cp"])
     v["axis"] = np.where(m, np.where(axis2, 2, 1), v["axis"]).astype(np.int8)
@@ -68,8 +85,9 @@ def _combined(b: PostBatch, checks: dict, v: dict, m: np.ndarray, col, kappa: np
     e1 = (np.asarray(v["ecc1"]) + np.asarray(v["bow1"]))[idx]
     e2 = (np.asarray(v["ecc2"]) + np.asarray(v["bow2"]))[idx]
     area = v["area"][idx]
-    fmd = ec5.bending_design_strength(b.fb_mpa[idx] * v.get("sr_bending", np.ones(b.n))[idx], b.kmod[idx],
-                                      b.gamma_m[idx])  # EN 1995-1-1 §2.4.1, k_h = 1 (conservative)
+    fmd = ec5.bending_design_strength(
+        b.fb_mpa[idx] * v.get("sr_bending", np.ones(b.n))[idx], b.kmod[idx], b.gamma_m[idx]
+    )  # EN 1995-1-1 §2.4.1, k_h = 1 (conservative)
     km = ec5.km(b.shape[idx])  # EN 1995-1-1 §6.1.6(2)
     fc0d = col.fc0d[idx]
     b1 = e1 / (v["s1"][idx] * fmd)  # sigma_m,y / f_m,y,d per unit N
@@ -108,14 +126,44 @@ def ec5_steps(r: Rating, i: int) -> list[Step]:
     s = [
         Step("f_c,0,k (strength class)", f"{b.fc_mpa[i]:.2f} MPa", "EN 338"),
         Step("E_0,05", f"{b.emin_mpa[i]:,.0f} MPa", "EN 338"),
-        Step("k_mod, gamma_M", f"{b.kmod[i]:.2f}, {b.gamma_m[i]:.2f}", "EN 1995-1-1 Table 3.1, Table 2.3"),
-        Step("f_c,0,d = k_mod f_c,0,k / gamma_M", f"{v['ec5_fc0d'][i]:.3f} MPa", "EN 1995-1-1 §2.4.1 Eq. 2.17"),
+        Step(
+            "k_mod, gamma_M",
+            f"{b.kmod[i]:.2f}, {b.gamma_m[i]:.2f}",
+            "EN 1995-1-1 Table 3.1, Table 2.3",
+        ),
+        Step(
+            "f_c,0,d = k_mod f_c,0,k / gamma_M",
+            f"{v['ec5_fc0d'][i]:.3f} MPa",
+            "EN 1995-1-1 §2.4.1 Eq. 2.17",
+        ),
     ]
     for ax in (1, 2):
-        s.append(Step(f"Axis {ax}: L_ef = Ke x lu", f"{v[f'ke{ax}'][i] * v[f'lu{ax}'][i]:.0f} mm (Ke {v[f'ke{ax}'][i]:.3g}, NDS Table G1 values)",
-                      "EN 1995-1-1 §6.3.2; judgement"))
-        s.append(Step(f"Axis {ax}: lambda_rel", f"{v[f'ec5_lam_rel{ax}'][i]:.4f}", "EN 1995-1-1 Eq. 6.21/6.22"))
-        s.append(Step(f"Axis {ax}: k_c (beta_c {v['ec5_beta_c'][i]:.1f})", f"{v[f'ec5_kc{ax}'][i]:.6f}",
-                      "EN 1995-1-1 Eq. 6.25-6.29"))
-    s.append(Step("Governing axis, k_c", f"axis {int(v['axis'][i])}, k_c = {v['cp'][i]:.6f}", "EN 1995-1-1 §6.3.2"))
+        s.append(
+            Step(
+                f"Axis {ax}: L_ef = Ke x lu",
+                f"{v[f'ke{ax}'][i] * v[f'lu{ax}'][i]:.0f} mm (Ke {v[f'ke{ax}'][i]:.3g}, NDS Table G1 values)",
+                "EN 1995-1-1 §6.3.2; judgement",
+            )
+        )
+        s.append(
+            Step(
+                f"Axis {ax}: lambda_rel",
+                f"{v[f'ec5_lam_rel{ax}'][i]:.4f}",
+                "EN 1995-1-1 Eq. 6.21/6.22",
+            )
+        )
+        s.append(
+            Step(
+                f"Axis {ax}: k_c (beta_c {v['ec5_beta_c'][i]:.1f})",
+                f"{v[f'ec5_kc{ax}'][i]:.6f}",
+                "EN 1995-1-1 Eq. 6.25-6.29",
+            )
+        )
+    s.append(
+        Step(
+            "Governing axis, k_c",
+            f"axis {int(v['axis'][i])}, k_c = {v['cp'][i]:.6f}",
+            "EN 1995-1-1 §6.3.2",
+        )
+    )
     return s

@@ -35,40 +35,53 @@ import numpy as np
 
 from fieldcheck.engine import loads, nds
 from fieldcheck.engine.batch import EC5, LRFD, PostBatch, filled
+from fieldcheck.engine.customary import LBF
 from fieldcheck.engine.rating import (
-    ESCALATIONS, Check, Rating, Step, new_flag, register_check_hook, register_flag_hook,
+    ESCALATIONS,
+    Check,
+    Rating,
+    Step,
+    new_flag,
+    register_check_hook,
+    register_flag_hook,
     register_summary_hook,
 )
 from fieldcheck.engine.refdata import table
-from fieldcheck.engine.customary import LBF
 
 FT2 = 304.8**2  # mm^2 per ft^2
 PSF = loads.PSF_KPA  # kPa per psf
 
 G_SOIL_UNKNOWN = new_flag(
-    40, "Soil under the pad not classified: no presumptive bearing value, the ground is not verified "
+    40,
+    "Soil under the pad not classified: no presumptive bearing value, the ground is not verified "
     "(IBC 2012 §1806.2); classify it or accept the 1,500 psf default explicitly (soil_default yes), "
     "and watch for settlement.",
 )
 G_SOIL_UNPREPARED = new_flag(
-    41, "Mud, organic soil or unprepared fill under the pad: no presumptive bearing value (IBC 2012 "
+    41,
+    "Mud, organic soil or unprepared fill under the pad: no presumptive bearing value (IBC 2012 "
     "§1806.2); set the mudsill on firm, prepared ground before the due date.",
 )
 G_SOIL_ASSUMED = new_flag(
-    42, "Soil class not determined: the 1,500 psf default of 24 CFR 3285.202(e) is used, as you chose.",
+    42,
+    "Soil class not determined: the 1,500 psf default of 24 CFR 3285.202(e) is used, as you chose.",
 )
 G_PAD_MISSING = new_flag(
-    43, "Soil given but no pad or mudsill size: the ground is not verified; give the pad size.",
+    43,
+    "Soil given but no pad or mudsill size: the ground is not verified; give the pad size.",
 )
 G_PAD_RIGID = new_flag(
-    44, "Pad thickness not given: the whole pad area is taken as bearing on the soil (a rigid pad).",
+    44,
+    "Pad thickness not given: the whole pad area is taken as bearing on the soil (a rigid pad).",
 )
 G_PLATE = new_flag(
-    45, "Steel bearing plates: cap and sill bearing over the plate length along their grain and the "
+    45,
+    "Steel bearing plates: cap and sill bearing over the plate length along their grain and the "
     "post's thickness across; plates assumed stiff enough to spread the load (judgement).",
 )
 G_SHARED = new_flag(
-    46, "Load shared by posts side by side: each carries an equal share only under a stiff cap "
+    46,
+    "Load shared by posts side by side: each carries an equal share only under a stiff cap "
     "(judgement); check the cap.",
 )
 # judgement, see the module docstring: unknown class / no pad size -> monitor; unprepared -> repair
@@ -106,15 +119,28 @@ def effective_pad_area_mm2(b: PostBatch) -> np.ndarray:
 
 def _block_is_plain(b: PostBatch) -> bool:
     """No pad, soil, plate, lateral rule or shared load anywhere in this block."""
-    return (np.isnan(b.pad_area_mm2).all() and np.isnan(b.soil_kpa).all() and not b.soil_flags.any()
-            and np.isnan(b.plate_lb_mm).all() and not np.any(b.lateral_rule >= 0) and not np.any(b.shared_by > 1))
+    return (
+        np.isnan(b.pad_area_mm2).all()
+        and np.isnan(b.soil_kpa).all()
+        and not b.soil_flags.any()
+        and np.isnan(b.plate_lb_mm).all()
+        and not np.any(b.lateral_rule >= 0)
+        and not np.any(b.shared_by > 1)
+    )
 
 
 def _ground_checks(b: PostBatch, checks: dict, values: dict) -> None:
     if _block_is_plain(b):
         nan = filled(np.nan, b.n)
-        values.update(pad_area_eff=nan, soil_capacity=nan, soil_given=filled(False, b.n),
-                      lateral_n=nan, lateral_min_n=nan, lateral_thrust_n=nan, ground_plain=True)
+        values.update(
+            pad_area_eff=nan,
+            soil_capacity=nan,
+            soil_given=filled(False, b.n),
+            lateral_n=nan,
+            lateral_min_n=nan,
+            lateral_thrust_n=nan,
+            ground_plain=True,
+        )
         checks["soil_bearing"] = Check(
             "soil_bearing", "mudsill or pad on the soil", "IBC 2012 Table 1806.2", nan, b.load_n
         )
@@ -158,14 +184,22 @@ def _ground_checks(b: PostBatch, checks: dict, values: dict) -> None:
         edge = b.lateral_edge_mm[m]
         lean = np.nan_to_num(b.lean_mm[m], nan=0.0)
         d = loads.lateral_demand(
-            b.load_n[m], row["key"], offset_mm=lean, height_mm=b.height_mm[m], dead_n=b.load_n[m],
+            b.load_n[m],
+            row["key"],
+            offset_mm=lean,
+            height_mm=b.height_mm[m],
+            dead_n=b.load_n[m],
             floor_edge_mm=np.nan_to_num(edge, nan=0.0) if row["key"] == "cal-osha" else None,
         )
         bad = np.isnan(edge) if row["key"] == "cal-osha" else np.zeros(edge.shape, bool)
         lat[m] = np.where(bad, np.nan, d.total_n)
         lat_min[m] = np.where(bad, np.nan, d.minimum_n)
         lat_thrust[m] = d.thrust_n
-    values["lateral_n"], values["lateral_min_n"], values["lateral_thrust_n"] = lat, lat_min, lat_thrust
+    values["lateral_n"], values["lateral_min_n"], values["lateral_thrust_n"] = (
+        lat,
+        lat_min,
+        lat_thrust,
+    )
 
 
 def _ground_flags(b: PostBatch, values: dict) -> np.ndarray:
@@ -214,8 +248,13 @@ def load_combination(r: Rating, i: int) -> dict:
     fname = _factor_name(method)
     factor = float({LRFD: b.lam, EC5: b.kmod}.get(method, b.cd)[i])
     k = int(b.combo[i])
-    out = {"factor_name": fname, "factor": round(factor, 4), "load_lbf": _lbf(b.load_n[i]),
-           "load_kN": _kn(b.load_n[i]), "shared_by": int(b.shared_by[i])}
+    out = {
+        "factor_name": fname,
+        "factor": round(factor, 4),
+        "load_lbf": _lbf(b.load_n[i]),
+        "load_kN": _kn(b.load_n[i]),
+        "shared_by": int(b.shared_by[i]),
+    }
     if k < 0:
         out.update(name="as given (--load)", key=None, clause="")
     else:
@@ -239,7 +278,8 @@ def ground_summary(r: Rating, i: int) -> dict | None:
         "allowable_kPa": None if np.isnan(q) else round(q, 3),
         "pad_area_ft2": None if not has_pad else round(float(b.pad_area_mm2[i]) / FT2, 3),
         "effective_area_ft2": None if not has_pad else round(float(v["pad_area_eff"][i]) / FT2, 3),
-        "capacity_lbf": _lbf(cap), "capacity_kN": _kn(cap),
+        "capacity_lbf": _lbf(cap),
+        "capacity_kN": _kn(cap),
         "ratio": None if np.isnan(c.ratio[i]) else round(float(c.ratio[i]), 4),
         "clause": "IBC 2012 Table 1806.2",
     }
@@ -252,9 +292,12 @@ def bracing_summary(r: Rating, i: int) -> dict | None:
         return None
     row = lateral_rows()[k]
     return {
-        "rule": row["key"], "clause": row["source"],
-        "minimum_lbf": _lbf(v["lateral_min_n"][i]), "thrust_lbf": _lbf(v["lateral_thrust_n"][i]),
-        "total_lbf": _lbf(v["lateral_n"][i]), "total_kN": _kn(v["lateral_n"][i]),
+        "rule": row["key"],
+        "clause": row["source"],
+        "minimum_lbf": _lbf(v["lateral_min_n"][i]),
+        "thrust_lbf": _lbf(v["lateral_thrust_n"][i]),
+        "total_lbf": _lbf(v["lateral_n"][i]),
+        "total_kN": _kn(v["lateral_n"][i]),
         "note": "what the bracing must carry in each direction; not a capacity check",
     }
 
@@ -281,29 +324,56 @@ def ground_steps(r: Rating, i: int) -> list[Step]:
     s: list[Step] = []
     lc = load_combination(r, i)
     if lc["key"] is not None:
-        s.append(Step(f"Governing load combination (largest load / {lc['factor_name']})",
-                      f"{lc['name']}: {_n(b.load_n[i] * b.shared_by[i])}, {lc['factor_name']} = {lc['factor']}",
-                      lc["clause"]))
+        s.append(
+            Step(
+                f"Governing load combination (largest load / {lc['factor_name']})",
+                f"{lc['name']}: {_n(b.load_n[i] * b.shared_by[i])}, {lc['factor_name']} = {lc['factor']}",
+                lc["clause"],
+            )
+        )
     if b.shared_by[i] > 1:
-        s.append(Step("Load per post, shared equally under a stiff cap",
-                      f"1/{int(b.shared_by[i])}: {_n(b.load_n[i])}", "judgement"))
+        s.append(
+            Step(
+                "Load per post, shared equally under a stiff cap",
+                f"1/{int(b.shared_by[i])}: {_n(b.load_n[i])}",
+                "judgement",
+            )
+        )
     g = ground_summary(r, i)
     if g is not None:
         if g["pad_area_ft2"] is not None:
             t = b.pad_t_mm[i]
-            how = "rigid pad (thickness not given)" if np.isnan(t) else f"sides up to post + 2 x {t:.0f} mm"
-            s.append(Step("Pad on the soil: area, effective area",
-                          f"{g['pad_area_ft2']:.3f} ft2, {g['effective_area_ft2']:.3f} ft2 ({how})",
-                          "judgement: 1:1 spread through the pad"))
-        qtxt = "none (not verified)" if g["allowable_psf"] is None else f"{g['allowable_psf']:,.0f} psf"
+            how = (
+                "rigid pad (thickness not given)"
+                if np.isnan(t)
+                else f"sides up to post + 2 x {t:.0f} mm"
+            )
+            s.append(
+                Step(
+                    "Pad on the soil: area, effective area",
+                    f"{g['pad_area_ft2']:.3f} ft2, {g['effective_area_ft2']:.3f} ft2 ({how})",
+                    "judgement: 1:1 spread through the pad",
+                )
+            )
+        qtxt = (
+            "none (not verified)"
+            if g["allowable_psf"] is None
+            else f"{g['allowable_psf']:,.0f} psf"
+        )
         s.append(Step("Soil: presumptive allowable pressure", qtxt, "IBC 2012 Table 1806.2"))
         if g["capacity_lbf"] is not None:
-            s.append(Step("Soil capacity q x A_eff", _n(v["soil_capacity"][i]), "IBC 2012 Table 1806.2"))
+            s.append(
+                Step("Soil capacity q x A_eff", _n(v["soil_capacity"][i]), "IBC 2012 Table 1806.2")
+            )
     br = bracing_summary(r, i)
     if br is not None and br["total_lbf"] is not None:
-        s.append(Step("Bracing must carry (minimum + out-of-plumb thrust)",
-                      f"{_n(v['lateral_min_n'][i])} + {_n(v['lateral_thrust_n'][i])} = {_n(v['lateral_n'][i])}",
-                      br["clause"] + "; statics P x lean / h"))
+        s.append(
+            Step(
+                "Bracing must carry (minimum + out-of-plumb thrust)",
+                f"{_n(v['lateral_min_n'][i])} + {_n(v['lateral_thrust_n'][i])} = {_n(v['lateral_n'][i])}",
+                br["clause"] + "; statics P x lean / h",
+            )
+        )
     return s
 
 

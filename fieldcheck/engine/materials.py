@@ -11,26 +11,54 @@ from functools import cache
 
 import numpy as np
 
-from fieldcheck.engine.refdata import table
 from fieldcheck.engine.customary import PSI
-
+from fieldcheck.engine.refdata import table
 
 SPECIES = ("douglas-fir-larch", "hem-fir", "spruce-pine-fir", "southern-pine")
 SPECIES_ALIASES = {
-    "douglas-fir-larch": "douglas-fir-larch", "df-l": "douglas-fir-larch", "dfl": "douglas-fir-larch",
-    "douglas-fir": "douglas-fir-larch", "df": "douglas-fir-larch", "hem-fir": "hem-fir",
-    "hf": "hem-fir", "spruce-pine-fir": "spruce-pine-fir", "spf": "spruce-pine-fir",
-    "southern-pine": "southern-pine", "sp": "southern-pine", "syp": "southern-pine",
-    "southern-yellow-pine": "southern-pine", "unknown": "unknown", "?": "unknown",
+    "douglas-fir-larch": "douglas-fir-larch",
+    "df-l": "douglas-fir-larch",
+    "dfl": "douglas-fir-larch",
+    "douglas-fir": "douglas-fir-larch",
+    "df": "douglas-fir-larch",
+    "hem-fir": "hem-fir",
+    "hf": "hem-fir",
+    "spruce-pine-fir": "spruce-pine-fir",
+    "spf": "spruce-pine-fir",
+    "southern-pine": "southern-pine",
+    "sp": "southern-pine",
+    "syp": "southern-pine",
+    "southern-yellow-pine": "southern-pine",
+    "unknown": "unknown",
+    "?": "unknown",
 }
 GRADES = ("select-structural", "no1-btr", "no1", "no2", "no3", "stud", "construction", "standard")
 GRADE_ALIASES = {
-    "select-structural": "select-structural", "ss": "select-structural", "sel-str": "select-structural",
-    "no1-btr": "no1-btr", "no1&btr": "no1-btr", "no1-and-better": "no1-btr",
-    "no1": "no1", "no.1": "no1", "#1": "no1", "1": "no1", "no2": "no2", "no.2": "no2", "#2": "no2",
-    "2": "no2", "no3": "no3", "no.3": "no3", "#3": "no3", "3": "no3", "stud": "stud",
-    "construction": "construction", "const": "construction", "standard": "standard", "std": "standard",
-    "unknown": "unknown", "?": "unknown",
+    "select-structural": "select-structural",
+    "ss": "select-structural",
+    "sel-str": "select-structural",
+    "no1-btr": "no1-btr",
+    "no1&btr": "no1-btr",
+    "no1-and-better": "no1-btr",
+    "no1": "no1",
+    "no.1": "no1",
+    "#1": "no1",
+    "1": "no1",
+    "no2": "no2",
+    "no.2": "no2",
+    "#2": "no2",
+    "2": "no2",
+    "no3": "no3",
+    "no.3": "no3",
+    "#3": "no3",
+    "3": "no3",
+    "stud": "stud",
+    "construction": "construction",
+    "const": "construction",
+    "standard": "standard",
+    "std": "standard",
+    "unknown": "unknown",
+    "?": "unknown",
 }
 # Lowest structural grade assumed when the grade is unknown (field-practice.md §3.2; judgement).
 DEFAULT_GRADE = "no2"
@@ -52,7 +80,9 @@ def normalise_species(text: str) -> str:
 
 
 def normalise_grade(text: str) -> str:
-    key = GRADE_ALIASES.get(_key(text).replace(".", "") if _key(text) not in GRADE_ALIASES else _key(text))
+    key = GRADE_ALIASES.get(
+        _key(text).replace(".", "") if _key(text) not in GRADE_ALIASES else _key(text)
+    )
     if key is None:
         raise ValueError(
             f"grade: '{text}' is not a grade we hold; use one of {', '.join(GRADES)} (no2, ss, stud ...) or unknown."
@@ -79,12 +109,20 @@ def reference_values(species: str, grade: str, category: str) -> dict[str, float
         if species != "unknown":
             pool = [r for r in pool if r["species"] == species]
         if not pool:
-            raise ValueError(f"grade: no {category} values held for grade {g}; choose another grade.")
-        out = {p: min(float(r[f"{p}_psi"]) for r in pool) * PSI for p in ("fb", "fc", "fc_perp", "e", "emin")}
+            raise ValueError(
+                f"grade: no {category} values held for grade {g}; choose another grade."
+            )
+        out = {
+            p: min(float(r[f"{p}_psi"]) for r in pool) * PSI
+            for p in ("fb", "fc", "fc_perp", "e", "emin")
+        }
         out.update(
-            g=min(float(r["g"]) for r in pool), wet_tabulated=False, knowledge=KAPPA_DEFAULT_VALUES,
+            g=min(float(r["g"]) for r in pool),
+            wet_tabulated=False,
+            knowledge=KAPPA_DEFAULT_VALUES,
             table="lowest of " + ", ".join(sorted({r["table"] for r in pool})),
-            status="memory", assumed=True,
+            status="memory",
+            assumed=True,
         )
         return out
     row = _rows().get((species, grade, category))
@@ -95,14 +133,20 @@ def reference_values(species: str, grade: str, category: str) -> dict[str, float
         )
     out = {p: float(row[f"{p}_psi"]) * PSI for p in ("fb", "fc", "fc_perp", "e", "emin")}
     out.update(
-        g=float(row["g"]), wet_tabulated=row["wet_tabulated"] == "1", knowledge=1.0,
-        table=row["table"], status=row["status"], assumed=False,
+        g=float(row["g"]),
+        wet_tabulated=row["wet_tabulated"] == "1",
+        knowledge=1.0,
+        table=row["table"],
+        status=row["status"],
+        assumed=False,
     )
     return out
 
 
 @cache
-def size_factors(species: str, grade: str, nominal_width_in: int, thickness_in: int) -> tuple[float, float]:
+def size_factors(
+    species: str, grade: str, nominal_width_in: int, thickness_in: int
+) -> tuple[float, float]:
     """(CF for Fc, CF for Fb) for dimension lumber (NDS Supplement Table 4A size factors).
 
     Southern Pine (Table 4B) and timbers (Table 4D, Fc) take 1.0. Stud grade wider than 6 in takes
@@ -111,7 +155,9 @@ def size_factors(species: str, grade: str, nominal_width_in: int, thickness_in: 
     if species == "southern-pine" or thickness_in >= 5:
         return 1.0, 1.0
     g = grade if grade != "unknown" else DEFAULT_GRADE
-    group = {"stud": "stud", "construction": "construction", "standard": "construction"}.get(g, "structural")
+    group = {"stud": "stud", "construction": "construction", "standard": "construction"}.get(
+        g, "structural"
+    )
     if group == "stud" and nominal_width_in > 6:
         group = "structural"
     rows = [r for r in table("nds_size_factors") if r["grade_group"] == group]

@@ -11,7 +11,6 @@ import numpy as np
 from fieldcheck.engine.batch import DIMENSION, GLULAM, POLE, TIMBER
 from fieldcheck.engine.customary import IN, PSI
 
-
 # LRFD format conversion and resistance factors (NDS 2018 Table 4.3.1 and Appendix N; from memory
 # except KF = 2.16/phi for Fc, which column-design.md §1.2 supports).
 KF_FC, PHI_C = 2.40, 0.90

@@ -14,9 +14,8 @@ import numpy as np
 from fieldcheck.engine import nds
 from fieldcheck.engine.batch import EC5, LRFD, METHOD_NAMES, PostBatch, distinct, filled
 from fieldcheck.engine.cautions import CAUTIONS
+from fieldcheck.engine.customary import LBF
 from fieldcheck.engine.restraint import MODE_KEYS, MODES, end_pair, modes_of_pairs
-from fieldcheck.engine.customary import IN, LBF
-
 
 # Action categories (our own wording; ratio bands are judgement, field-practice.md §8 #120).
 ACTIONS = ("no-action", "monitor", "repair-or-brace", "make-safe-now")
@@ -38,29 +37,43 @@ def _flag(bit: int, text: str) -> int:
     return 1 << bit
 
 
-F_NO_LOAD = _flag(0, "No load given: the capacity is shown, but no decision can be made without the load.")
+F_NO_LOAD = _flag(
+    0, "No load given: the capacity is shown, but no decision can be made without the load."
+)
 F_SLENDER_CONSTRUCTION = _flag(
-    1, "le/d exceeds 50: admissible only as a construction-stage member (NDS 2018 §3.7.1.4 allows 75)."
+    1,
+    "le/d exceeds 50: admissible only as a construction-stage member (NDS 2018 §3.7.1.4 allows 75).",
 )
 F_SLENDER_LIMIT = _flag(
-    2, "le/d exceeds the NDS 2018 §3.7.1.4 limit (50, or 75 during construction): brace it or replace it."
+    2,
+    "le/d exceeds the NDS 2018 §3.7.1.4 limit (50, or 75 during construction): brace it or replace it.",
 )
 F_END_PLATE = _flag(
-    3, "End-grain bearing stress exceeds 0.75 Fc*: bear the end on a steel plate (NDS 2018 §3.10.1.3)."
+    3,
+    "End-grain bearing stress exceeds 0.75 Fc*: bear the end on a steel plate (NDS 2018 §3.10.1.3).",
 )
 F_DRY_ASSUMED = _flag(4, "Moisture not measured: dry service (19 % or less) assumed.")
-F_WET = _flag(5, "Wet service: moisture above 19 %, wet-service factors CM applied (NDS Supplement).")
+F_WET = _flag(
+    5, "Wet service: moisture above 19 %, wet-service factors CM applied (NDS Supplement)."
+)
 F_ASSUMED_MATERIAL = _flag(
     6, "Species or grade unknown: lowest plausible values and a knowledge factor applied (ASCE 41)."
 )
 F_CAP_UNCHECKED = _flag(7, "Bearing on the cap or beam above not checked: give what it is.")
 F_SILL_UNCHECKED = _flag(8, "Bearing on the sill or plate below not checked: give what it is.")
-F_THEORETICAL_K = _flag(9, "Theoretical K used instead of the NDS recommended design Ke, as you chose.")
-F_SWAY_BRACES = _flag(
-    10, "Braces ignored for a sway case (the ends can move sideways): full height used, conservative."
+F_THEORETICAL_K = _flag(
+    9, "Theoretical K used instead of the NDS recommended design Ke, as you chose."
 )
-F_MECHANISM = _flag(11, "The end conditions make a mechanism: the post cannot carry load as described.")
-F_BUILT_UP = _flag(12, "Built-up post: Kf applied about the axis across the plies (NDS 2018 §15.3).")
+F_SWAY_BRACES = _flag(
+    10,
+    "Braces ignored for a sway case (the ends can move sideways): full height used, conservative.",
+)
+F_MECHANISM = _flag(
+    11, "The end conditions make a mechanism: the post cannot carry load as described."
+)
+F_BUILT_UP = _flag(
+    12, "Built-up post: Kf applied about the axis across the plies (NDS 2018 §15.3)."
+)
 
 
 @dataclass
@@ -148,11 +161,17 @@ class Rating:
             if np.isnan(capn):
                 continue
             r = float(c.ratio[i])
-            checks.append({
-                "name": name, "label": c.label, "capacity_kN": round(capn / 1000.0, 4),
-                "capacity_lbf": round(capn / LBF, 1), "demand_kN": _num(c.demand_n[i] / 1000.0, 4),
-                "ratio": _num(r, 4), "clause": c.clause,
-            })
+            checks.append(
+                {
+                    "name": name,
+                    "label": c.label,
+                    "capacity_kN": round(capn / 1000.0, 4),
+                    "capacity_lbf": round(capn / LBF, 1),
+                    "demand_kN": _num(c.demand_n[i] / 1000.0, 4),
+                    "ratio": _num(r, 4),
+                    "clause": c.clause,
+                }
+            )
         act = int(self.action[i])
         out = {
             "method": METHOD_NAMES[int(self.batch.method[i])],
@@ -164,7 +183,10 @@ class Rating:
             "governing_check": self.governing_name(i),
             "governing_axis": ax,
             "effective_length_factor": round(float(v["ke1" if ax == 1 else "ke2"][i]), 4),
-            "effective_length_factors": [round(float(v["ke1"][i]), 4), round(float(v["ke2"][i]), 4)],
+            "effective_length_factors": [
+                round(float(v["ke1"][i]), 4),
+                round(float(v["ke2"][i]), 4),
+            ],
             "slenderness_ratio": round(float(v["le_d_max"][i]), 3),
             "slenderness_ratios": [round(float(v["le_d1"][i]), 3), round(float(v["le_d2"][i]), 3)],
             "slenderness_limit": float(v["le_d_limit"][i]),
@@ -236,8 +258,10 @@ def rate(b: PostBatch, keep: tuple[str, ...] = ()) -> Rating:
     load = b.load_n
     nan = filled(np.nan, n)
     out = {k: np.empty(n, dtype=np.asarray(first.values[k]).dtype) for k in keep}
-    core = {k: np.empty(n, dtype=getattr(first, k).dtype)
-            for k in ("capacity_n", "ratio", "governing", "action", "flags")}
+    core = {
+        k: np.empty(n, dtype=getattr(first, k).dtype)
+        for k in ("capacity_n", "ratio", "governing", "action", "flags")
+    }
     clauses = {k: c.clause for k, c in first.checks.items()}
     made: dict[tuple[str, str], np.ndarray] = {}
     lock = threading.Lock()
@@ -270,7 +294,13 @@ def rate(b: PostBatch, keep: tuple[str, ...] = ()) -> Rating:
     put(0, first)
     _share_blocks(put, starts[1:])
     checks = {
-        k: Check(c.name, c.label, clauses[k], made.get((k, "capacity"), nan), made.get((k, "demand"), load))
+        k: Check(
+            c.name,
+            c.label,
+            clauses[k],
+            made.get((k, "capacity"), nan),
+            made.get((k, "demand"), load),
+        )
         for k, c in first.checks.items()
     }
     demand = made.get(("", "demand"), load)
@@ -314,7 +344,9 @@ def _unbraced(lu: np.ndarray, h: np.ndarray, sway: np.ndarray) -> np.ndarray:
     return np.where(sway | np.isnan(lu), h, lu)
 
 
-def _axis_ke(ke_given: np.ndarray, braced: np.ndarray, sway: np.ndarray, k_ends: np.ndarray) -> np.ndarray:
+def _axis_ke(
+    ke_given: np.ndarray, braced: np.ndarray, sway: np.ndarray, k_ends: np.ndarray
+) -> np.ndarray:
     """Ke about one axis: as given; 1.0 between brace points of a no-sway post; else from the ends."""
     if np.isnan(ke_given).all() and not braced.any():
         return k_ends.copy()
@@ -344,7 +376,13 @@ def _rate_block(b: PostBatch) -> Rating:
     any_lrfd = bool(lrfd.any())
     time_fc = np.where(lrfd, nds.KF_FC * nds.PHI_C * b.lam, b.cd) if any_lrfd else b.cd
     fc_star = _prod(b.fc_mpa, cm_fc, ct_f, b.cf_fc, ci_f, time_fc)  # NDS 2018 §3.7.1: Fc*
-    emin_p = _prod(b.emin_mpa, cm_e, ct_e, ci_e, np.where(lrfd, nds.KF_EMIN * nds.PHI_S, 1.0) if any_lrfd else one)
+    emin_p = _prod(
+        b.emin_mpa,
+        cm_e,
+        ct_e,
+        ci_e,
+        np.where(lrfd, nds.KF_EMIN * nds.PHI_S, 1.0) if any_lrfd else one,
+    )
 
     # ---- effective lengths (NDS 2018 §3.7.1.2, Appendix G) ----------------------------------
     mode, sway, k_ends = modes_of_pairs(end_pair(b.bottom, b.top), b.theoretical_k)
@@ -400,15 +438,25 @@ def _rate_block(b: PostBatch) -> Rating:
     # ---- end-grain bearing on the post (NDS 2018 §3.10.1) ------------------------------------
     # each end's residual area x contact share; a crushed or broomed end bears on part of it
     crushed = b.crushed_end.any()
-    a_top = _prod(cond["area_top"], b.end_contact, np.where(b.crushed_end & 1, _condition.CRUSHED_AREA, 1.0) if crushed else one)
-    a_bot = _prod(cond["area_bottom"], b.end_contact, np.where(b.crushed_end & 2, _condition.CRUSHED_AREA, 1.0) if crushed else one)
+    a_top = _prod(
+        cond["area_top"],
+        b.end_contact,
+        np.where(b.crushed_end & 1, _condition.CRUSHED_AREA, 1.0) if crushed else one,
+    )
+    a_bot = _prod(
+        cond["area_bottom"],
+        b.end_contact,
+        np.where(b.crushed_end & 2, _condition.CRUSHED_AREA, 1.0) if crushed else one,
+    )
     a_contact = np.minimum(a_top, a_bot)
     p_end = fc_star * a_contact * kappa
 
     # ---- bearing perpendicular to grain on the cap and the sill (NDS 2018 §3.10.2, §3.10.4) --
     # CD does not apply to Fc-perp (NDS 2018 Table 2.3.2 footnote); LRFD KF phi (Appendix N);
     # lambda on Fc-perp applied only where it reduces (judgement: not verified).
-    perp_time = np.where(lrfd, nds.KF_FCP * nds.PHI_FCP * np.minimum(b.lam, 1.0), 1.0) if any_lrfd else one
+    perp_time = (
+        np.where(lrfd, nds.KF_FCP * nds.PHI_FCP * np.minimum(b.lam, 1.0), 1.0) if any_lrfd else one
+    )
     cm_bear = np.where(b.bearing_wet, 0.67, 1.0) if b.bearing_wet.any() else one
     lb_top = np.where(b.top_lb_mm > 0, b.top_lb_mm, b.d1_mm)  # NaN compares False: the post's width
     lb_bot = np.where(b.bottom_lb_mm > 0, b.bottom_lb_mm, b.d1_mm)
@@ -419,23 +467,62 @@ def _rate_block(b: PostBatch) -> Rating:
 
     load = b.load_n
     checks = {
-        "column": Check("column", "column buckling and crushing", "NDS 2018 §3.7.1", p_column, load),
-        "end_bearing": Check("end_bearing", "end-grain bearing of the post", "NDS 2018 §3.10.1", p_end, load),
+        "column": Check(
+            "column", "column buckling and crushing", "NDS 2018 §3.7.1", p_column, load
+        ),
+        "end_bearing": Check(
+            "end_bearing", "end-grain bearing of the post", "NDS 2018 §3.10.1", p_end, load
+        ),
         "cap_bearing": Check(
-            "cap_bearing", "bearing on the cap or beam above", "NDS 2018 §3.10.2, §3.10.4", p_cap, load
+            "cap_bearing",
+            "bearing on the cap or beam above",
+            "NDS 2018 §3.10.2, §3.10.4",
+            p_cap,
+            load,
         ),
         "sill_bearing": Check(
-            "sill_bearing", "bearing on the sill or plate below", "NDS 2018 §3.10.2, §3.10.4", p_sill, load
+            "sill_bearing",
+            "bearing on the sill or plate below",
+            "NDS 2018 §3.10.2, §3.10.4",
+            p_sill,
+            load,
         ),
     }
     values = {
-        "fc_star": fc_star, "emin_prime": emin_p, "cm_fc": cm_fc, "cm_e": cm_e, "ct_f": ct_f,
-        "ct_e": ct_e, "ci_f": ci_f, "ci_e": ci_e, "time_fc": time_fc, "mode": mode, "ke1": ke1,
-        "ke2": ke2, "lu1": lu1, "lu2": lu2, "le_d1": le_d1, "le_d2": le_d2, "fce1": fce1,
-        "k_solved": k_solved, "fce2": fce2, "cp1": cp1, "cp2": cp2, "cp": cp, "c": c, "area": area,
-        "axis": np.add(axis2, 1, dtype=np.int8), "cb_top": cb_top, "cb_bot": cb_bot,
-        "perp_time": perp_time, "cm_bear": cm_bear, "a_contact": a_contact, "a_top": a_top,
-        "a_bottom": a_bot, "wet": wet, "sway": sway,
+        "fc_star": fc_star,
+        "emin_prime": emin_p,
+        "cm_fc": cm_fc,
+        "cm_e": cm_e,
+        "ct_f": ct_f,
+        "ct_e": ct_e,
+        "ci_f": ci_f,
+        "ci_e": ci_e,
+        "time_fc": time_fc,
+        "mode": mode,
+        "ke1": ke1,
+        "ke2": ke2,
+        "lu1": lu1,
+        "lu2": lu2,
+        "le_d1": le_d1,
+        "le_d2": le_d2,
+        "fce1": fce1,
+        "k_solved": k_solved,
+        "fce2": fce2,
+        "cp1": cp1,
+        "cp2": cp2,
+        "cp": cp,
+        "c": c,
+        "area": area,
+        "axis": np.add(axis2, 1, dtype=np.int8),
+        "cb_top": cb_top,
+        "cb_bot": cb_bot,
+        "perp_time": perp_time,
+        "cm_bear": cm_bear,
+        "a_contact": a_contact,
+        "a_top": a_top,
+        "a_bottom": a_bot,
+        "wet": wet,
+        "sway": sway,
     }
     values.update(cond)
     values["area"] = area
@@ -485,8 +572,14 @@ def _rate_block(b: PostBatch) -> Rating:
         flags |= hook(b, values)
 
     rating = Rating(
-        batch=b, checks=checks, capacity_n=p_column, demand_n=load, ratio=p_column,
-        governing=np.zeros(n, dtype=np.int8), action=np.zeros(n, dtype=np.int8), flags=flags,
+        batch=b,
+        checks=checks,
+        capacity_n=p_column,
+        demand_n=load,
+        ratio=p_column,
+        governing=np.zeros(n, dtype=np.int8),
+        action=np.zeros(n, dtype=np.int8),
+        flags=flags,
         values=values,
     )
     return finish(rating)

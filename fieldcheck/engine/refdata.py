@@ -18,7 +18,9 @@ def data_dir() -> Path:
     for cand in (_PKG / "data", _PKG.parent / "data"):
         if cand.is_dir():
             return cand
-    raise FileNotFoundError("fieldcheck reference data folder not found (data/ is missing from the install)")
+    raise FileNotFoundError(
+        "fieldcheck reference data folder not found (data/ is missing from the install)"
+    )
 
 
 @cache

@@ -41,12 +41,19 @@ import numpy as np
 
 from fieldcheck.engine import materials, nds, sections
 from fieldcheck.engine.batch import DIMENSION, EC5, LRFD, RECT, TIMBER, PostBatch, make_batch
-from fieldcheck.engine.rating import ACTIONS, F_END_PLATE, Rating, rate, register_summary_hook
 from fieldcheck.engine.customary import IN, LBF
+from fieldcheck.engine.rating import ACTIONS, F_END_PLATE, Rating, rate, register_summary_hook
 
 FT = 304.8
 
-KINDS = ("brace-weak", "brace-both", "plate", "pad", "second-post", "replace")  # cost order, judgement
+KINDS = (
+    "brace-weak",
+    "brace-both",
+    "plate",
+    "pad",
+    "second-post",
+    "replace",
+)  # cost order, judgement
 BRACE_WEAK, BRACE_BOTH, PLATE, PAD, SECOND, REPLACE = range(6)
 STOCK_SIZES = ((4, 4), (4, 6), (6, 6), (6, 8), (8, 8), (8, 10), (10, 10), (10, 12), (12, 12))
 STOCK_GRADES = ("no2", "no1", "select-structural")  # cheapest first, judgement
@@ -58,11 +65,44 @@ MAX_SHARED = 4
 
 # fields a new post keeps from the one it replaces (everything else takes its default: sound wood)
 _KEEP_ON_REPLACE = (
-    "height_mm", "lu1_mm", "lu2_mm", "braced1", "braced2", "top", "bottom", "ke1", "ke2",
-    "theoretical_k", "method", "cd", "lam", "kmod", "gamma_m", "moisture_pct", "temp_c", "construction",
-    "load_n", "end_plate", "top_fc_perp_mpa", "top_cb", "bottom_fc_perp_mpa", "bottom_cb", "bearing_wet",
-    "pad_area_mm2", "pad_l1_mm", "pad_l2_mm", "pad_t_mm", "soil_kpa", "soil_flags", "plate_lb_mm", "combo",
-    "lateral_rule", "lateral_edge_mm", "lean_mm", "species_code", "shared_by",
+    "height_mm",
+    "lu1_mm",
+    "lu2_mm",
+    "braced1",
+    "braced2",
+    "top",
+    "bottom",
+    "ke1",
+    "ke2",
+    "theoretical_k",
+    "method",
+    "cd",
+    "lam",
+    "kmod",
+    "gamma_m",
+    "moisture_pct",
+    "temp_c",
+    "construction",
+    "load_n",
+    "end_plate",
+    "top_fc_perp_mpa",
+    "top_cb",
+    "bottom_fc_perp_mpa",
+    "bottom_cb",
+    "bearing_wet",
+    "pad_area_mm2",
+    "pad_l1_mm",
+    "pad_l2_mm",
+    "pad_t_mm",
+    "soil_kpa",
+    "soil_flags",
+    "plate_lb_mm",
+    "combo",
+    "lateral_rule",
+    "lateral_edge_mm",
+    "lean_mm",
+    "species_code",
+    "shared_by",
 )
 
 
@@ -79,9 +119,13 @@ class Remedy:
 
     def as_dict(self) -> dict:
         return {
-            "kind": self.kind, "description": self.description,
-            "capacity_lbf": round(self.capacity_n / LBF, 1), "capacity_kN": round(self.capacity_n / 1000, 4),
-            "ratio": round(self.ratio, 4), "action": self.action, "record_changes": dict(self.record_changes),
+            "kind": self.kind,
+            "description": self.description,
+            "capacity_lbf": round(self.capacity_n / LBF, 1),
+            "capacity_kN": round(self.capacity_n / 1000, 4),
+            "ratio": round(self.ratio, 4),
+            "action": self.action,
+            "record_changes": dict(self.record_changes),
             "resets_condition": self.resets_condition,
         }
 
@@ -90,8 +134,25 @@ class Remedy:
 def _stock(species: str) -> tuple[tuple, dict[str, np.ndarray]]:
     """Stock replacement posts of one species group, cheapest first: ((size, grade), ...) and
     their PostBatch material fields as arrays (NDS Supplement values via materials.py)."""
-    opts, cols = [], {k: [] for k in ("d1_mm", "d2_mm", "fc_mpa", "fc_perp_mpa", "fb_mpa", "e_mpa", "emin_mpa",
-                                       "cf_fc", "cf_fb", "product", "wet_tabulated")}
+    opts, cols = (
+        [],
+        {
+            k: []
+            for k in (
+                "d1_mm",
+                "d2_mm",
+                "fc_mpa",
+                "fc_perp_mpa",
+                "fb_mpa",
+                "e_mpa",
+                "emin_mpa",
+                "cf_fc",
+                "cf_fb",
+                "product",
+                "wet_tabulated",
+            )
+        },
+    )
     for a, b in STOCK_SIZES:
         d1, d2 = sections.nominal_dressed_mm(a, b)
         cat = "timber" if min(a, b) >= 5 else "dimension"  # NDS Supplement Table 4D scope
@@ -102,10 +163,19 @@ def _stock(species: str) -> tuple[tuple, dict[str, np.ndarray]]:
             except ValueError:
                 continue  # grade not held for this size
             opts.append((f"{a}x{b}", g))
-            for k, v in (("d1_mm", d1), ("d2_mm", d2), ("fc_mpa", rv["fc"]), ("fc_perp_mpa", rv["fc_perp"]),
-                         ("fb_mpa", rv["fb"]), ("e_mpa", rv["e"]), ("emin_mpa", rv["emin"]), ("cf_fc", cf_fc),
-                         ("cf_fb", cf_fb), ("product", TIMBER if cat == "timber" else DIMENSION),
-                         ("wet_tabulated", rv["wet_tabulated"])):
+            for k, v in (
+                ("d1_mm", d1),
+                ("d2_mm", d2),
+                ("fc_mpa", rv["fc"]),
+                ("fc_perp_mpa", rv["fc_perp"]),
+                ("fb_mpa", rv["fb"]),
+                ("e_mpa", rv["e"]),
+                ("emin_mpa", rv["emin"]),
+                ("cf_fc", cf_fc),
+                ("cf_fb", cf_fb),
+                ("product", TIMBER if cat == "timber" else DIMENSION),
+                ("wet_tabulated", rv["wet_tabulated"]),
+            ):
                 cols[k].append(v)
     return tuple(opts), {k: np.asarray(v) for k, v in cols.items()}
 
@@ -146,39 +216,70 @@ class Remedies:
         load = float(src.load_n[0])
         resets = False
         if k == BRACE_WEAK:
-            desc = (f"Brace at mid-height, {_mm(v1)} from the bottom, across the thin side; tie the brace to "
-                    f"something that cannot move (it must carry at least 2 % of the load, {_lbf(0.02 * load)}).")
+            desc = (
+                f"Brace at mid-height, {_mm(v1)} from the bottom, across the thin side; tie the brace to "
+                f"something that cannot move (it must carry at least 2 % of the load, {_lbf(0.02 * load)})."
+            )
             rec = {"brace_weak": f"{v1:.0f} mm"}
         elif k == BRACE_BOTH:
-            desc = (f"Brace at mid-height, {_mm(v1)} from the bottom, in both directions; each brace tied to "
-                    f"something that cannot move, carrying at least 2 % of the load ({_lbf(0.02 * load)}).")
+            desc = (
+                f"Brace at mid-height, {_mm(v1)} from the bottom, in both directions; each brace tied to "
+                f"something that cannot move, carrying at least 2 % of the load ({_lbf(0.02 * load)})."
+            )
             rec = {"brace_strong": f"{v1:.0f} mm"}
             if v2:
                 rec["brace_weak"] = f"{v1:.0f} mm"
         elif k == PLATE:
-            desc = (f"Steel bearing plates at the cap and the sill, {_mm(v1)} long along their grain, at least "
-                    "1/2 in thick (judgement: an engineer confirms the plate).")
+            desc = (
+                f"Steel bearing plates at the cap and the sill, {_mm(v1)} long along their grain, at least "
+                "1/2 in thick (judgement: an engineer confirms the plate)."
+            )
             rec = {"plate": f"{v1:.0f} mm", "end_plate": "yes"}
         elif k == PAD:
-            desc = (f"A pad or mudsill {_mm(v1)} square and at least {_mm(v2)} thick (the load spreads 1:1 "
-                    "through it, judgement) on the same soil, prepared and level.")
+            desc = (
+                f"A pad or mudsill {_mm(v1)} square and at least {_mm(v2)} thick (the load spreads 1:1 "
+                "through it, judgement) on the same soil, prepared and level."
+            )
             rec = {"pad": f"{v1:.0f} x {v1:.0f} mm", "pad_thickness": f"{v2:.0f} mm"}
         elif k == SECOND:
             n = int(v1)
-            desc = (f"A second post of the same size beside it, {n} posts sharing the load equally; true only "
-                    "under a cap stiff enough to share it (judgement): check the cap.")
+            desc = (
+                f"A second post of the same size beside it, {n} posts sharing the load equally; true only "
+                "under a cap stiff enough to share it (judgement): check the cap."
+            )
             rec = {"shared_by": str(n)}
         else:
             size, grade = _stock(self.species[j])[0][int(v1)]
             sp = self.species[j]
-            desc = (f"Replace with a new {size} {sp} {grade} post (sound, grade-stamped), same height, ends and "
-                    "bracing.")
-            rec = {"size": size, "section": "", "diameter": "", "plies": "", "ply": "", "fastening": "",
-                   "species": sp, "grade": grade, "cap_bearing": "", "sill_bearing": "", "end_contact": "",
-                   "incised": ""}
+            desc = (
+                f"Replace with a new {size} {sp} {grade} post (sound, grade-stamped), same height, ends and "
+                "bracing."
+            )
+            rec = {
+                "size": size,
+                "section": "",
+                "diameter": "",
+                "plies": "",
+                "ply": "",
+                "fastening": "",
+                "species": sp,
+                "grade": grade,
+                "cap_bearing": "",
+                "sill_bearing": "",
+                "end_contact": "",
+                "incised": "",
+            }
             resets = True
-        return Remedy(KINDS[k], desc, float(self.capacity_n[j]), float(self.ratio[j]),
-                      ACTIONS[int(self.action[j])], changes, rec, resets)
+        return Remedy(
+            KINDS[k],
+            desc,
+            float(self.capacity_n[j]),
+            float(self.ratio[j]),
+            ACTIONS[int(self.action[j])],
+            changes,
+            rec,
+            resets,
+        )
 
 
 def _mm(x: float) -> str:
@@ -197,24 +298,43 @@ def remedies(batch: PostBatch, rating: Rating | None = None) -> Remedies:
     k = sub.n
     loc = np.arange(k)
     parts: list[PostBatch] = []
-    tags: list[tuple[np.ndarray, int, np.ndarray, np.ndarray, np.ndarray, np.ndarray]] = []  # loc, kind, opt, v1, v2, sp
+    tags: list[
+        tuple[np.ndarray, int, np.ndarray, np.ndarray, np.ndarray, np.ndarray]
+    ] = []  # loc, kind, opt, v1, v2, sp
 
     def add(part, where, kind, opt, v1, v2, sp=None):
         if part.n:
             parts.append(part)
             n = part.n
-            tags.append((where, np.full(n, kind), opt, v1, np.broadcast_to(v2, (n,)).astype(float),
-                         sp if sp is not None else np.full(n, "", dtype=object)))
+            tags.append(
+                (
+                    where,
+                    np.full(n, kind),
+                    opt,
+                    v1,
+                    np.broadcast_to(v2, (n,)).astype(float),
+                    sp if sp is not None else np.full(n, "", dtype=object),
+                )
+            )
 
     h = sub.height_mm
     brace = np.round(h / 2.0)  # whole mm, so the record gives the same unbraced length
     lu = np.maximum(brace, h - brace)  # NDS 2018 §3.7.1.1: longest unbraced segment
     w = np.flatnonzero(~sub.braced2)
-    add(sub.take(w).replace(lu2_mm=lu[w], braced2=True), w, BRACE_WEAK, np.zeros(w.size), brace[w], 0.0)
+    add(
+        sub.take(w).replace(lu2_mm=lu[w], braced2=True),
+        w,
+        BRACE_WEAK,
+        np.zeros(w.size),
+        brace[w],
+        0.0,
+    )
     w = np.flatnonzero(~sub.braced1)
     part = sub.take(w)
     weak_too = ~part.braced2
-    part = part.replace(lu1_mm=lu[w], braced1=True, lu2_mm=np.where(weak_too, lu[w], part.lu2_mm), braced2=True)
+    part = part.replace(
+        lu1_mm=lu[w], braced1=True, lu2_mm=np.where(weak_too, lu[w], part.lu2_mm), braced2=True
+    )
     add(part, w, BRACE_BOTH, np.zeros(w.size), brace[w], weak_too.astype(float))
 
     # steel bearing plates where end bearing, the cap or the sill limits (not EC5)
@@ -228,7 +348,14 @@ def remedies(batch: PostBatch, rating: Rating | None = None) -> Remedies:
     w = w[sub.method[w] != EC5]
     for o, length_in in enumerate(PLATE_IN):
         lb = np.ceil(np.maximum(sub.d1_mm[w], length_in * IN))
-        add(sub.take(w).replace(plate_lb_mm=lb, end_plate=True), w, PLATE, np.full(w.size, o), lb, 0.0)
+        add(
+            sub.take(w).replace(plate_lb_mm=lb, end_plate=True),
+            w,
+            PLATE,
+            np.full(w.size, o),
+            lb,
+            0.0,
+        )
 
     # a larger pad where the soil check limits and the soil has a presumptive value
     soil = r.checks.get("soil_bearing")
@@ -237,19 +364,33 @@ def remedies(batch: PostBatch, rating: Rating | None = None) -> Remedies:
         w = np.flatnonzero(sr > 1.0)
         for o, ft in enumerate(PAD_FT):
             s = np.ceil(ft * FT)
-            t = np.ceil(np.maximum((s - sub.d2_mm[w]) / 2.0, np.nan_to_num(sub.pad_t_mm[w], nan=0.0)))
+            t = np.ceil(
+                np.maximum((s - sub.d2_mm[w]) / 2.0, np.nan_to_num(sub.pad_t_mm[w], nan=0.0))
+            )
             t = np.maximum(t, 1.0)
             ok = t <= PAD_T_MAX_MM
             ww, tt = w[ok], t[ok]
-            add(sub.take(ww).replace(pad_area_mm2=s * s, pad_l1_mm=s, pad_l2_mm=s, pad_t_mm=tt), ww, PAD,
-                np.full(ww.size, o), np.full(ww.size, s), tt)
+            add(
+                sub.take(ww).replace(pad_area_mm2=s * s, pad_l1_mm=s, pad_l2_mm=s, pad_t_mm=tt),
+                ww,
+                PAD,
+                np.full(ww.size, o),
+                np.full(ww.size, s),
+                tt,
+            )
 
     # a second post beside it
     w = np.flatnonzero(~np.isnan(sub.load_n) & (sub.shared_by < MAX_SHARED))
     part = sub.take(w)
     n_new = part.shared_by.astype(float) + 1.0
-    add(part.replace(load_n=part.load_n * part.shared_by / n_new, shared_by=n_new.astype(np.int8)), w, SECOND,
-        np.zeros(w.size), n_new, 0.0)
+    add(
+        part.replace(load_n=part.load_n * part.shared_by / n_new, shared_by=n_new.astype(np.int8)),
+        w,
+        SECOND,
+        np.zeros(w.size),
+        n_new,
+        0.0,
+    )
 
     # replacement with stock sections and grades of the same species
     not_ec5 = sub.method != EC5
@@ -279,7 +420,15 @@ def remedies(batch: PostBatch, rating: Rating | None = None) -> Remedies:
         if code < 0:
             keep["species_code"] = np.full(rep.size, materials.SPECIES.index(DEFAULT_SPECIES))
         part = make_batch(n=rep.size, shape=RECT, **keep, **new)
-        add(part, rep, REPLACE, o.astype(float), o.astype(float), 0.0, np.full(rep.size, sp, dtype=object))
+        add(
+            part,
+            rep,
+            REPLACE,
+            o.astype(float),
+            o.astype(float),
+            0.0,
+            np.full(rep.size, sp, dtype=object),
+        )
 
     if not parts:
         return _empty(batch, failing)
@@ -305,16 +454,35 @@ def remedies(batch: PostBatch, rating: Rating | None = None) -> Remedies:
     # rank: post, then cost order of the kind, then capacity (largest first)
     chosen = chosen[np.lexsort((-rr.capacity_n[chosen], kind[chosen], where[chosen]))]
     return Remedies(
-        source=batch, failing=failing, post=failing[where[chosen]], kind=kind[chosen],
-        capacity_n=rr.capacity_n[chosen], ratio=rr.ratio[chosen], action=rr.action[chosen], v1=v1[chosen],
-        v2=v2[chosen], candidates=cand.take(chosen), species=spc[chosen],
+        source=batch,
+        failing=failing,
+        post=failing[where[chosen]],
+        kind=kind[chosen],
+        capacity_n=rr.capacity_n[chosen],
+        ratio=rr.ratio[chosen],
+        action=rr.action[chosen],
+        v1=v1[chosen],
+        v2=v2[chosen],
+        candidates=cand.take(chosen),
+        species=spc[chosen],
     )
 
 
 def _empty(batch: PostBatch, failing: np.ndarray) -> Remedies:
     z = np.zeros(0)
-    return Remedies(batch, failing, z.astype(np.intp), z.astype(np.int8), z, z, z.astype(np.int8), z, z,
-                    batch.take(np.zeros(0, dtype=np.intp)), np.zeros(0, dtype=object))
+    return Remedies(
+        batch,
+        failing,
+        z.astype(np.intp),
+        z.astype(np.int8),
+        z,
+        z,
+        z.astype(np.int8),
+        z,
+        z,
+        batch.take(np.zeros(0, dtype=np.intp)),
+        np.zeros(0, dtype=object),
+    )
 
 
 def _summary(r: Rating, i: int, out: dict) -> None:
@@ -327,7 +495,9 @@ def _summary(r: Rating, i: int, out: dict) -> None:
     if not out["remedies"]:
         out["remedies_note"] = (
             "No single change we model makes this post pass (or it has no load): make it safe and ask the "
-            "engineer." if not np.isnan(r.batch.load_n[i]) else "Give the load to see what would make it pass."
+            "engineer."
+            if not np.isnan(r.batch.load_n[i])
+            else "Give the load to see what would make it pass."
         )
 
 

@@ -27,7 +27,12 @@ MECHANISM = -1
 _P, _F, _R, _G = PINNED, FIXED, FREE, GUIDED
 _LUT = np.full((4, 4), MECHANISM, dtype=np.int8)
 for (a, b), m in {
-    (_F, _F): "a", (_F, _P): "b", (_F, _G): "c", (_P, _P): "d", (_F, _R): "e", (_P, _G): "f",
+    (_F, _F): "a",
+    (_F, _P): "b",
+    (_F, _G): "c",
+    (_P, _P): "d",
+    (_F, _R): "e",
+    (_P, _G): "f",
 }.items():
     _LUT[a, b] = _LUT[b, a] = MODE_KEYS.index(m)
 THEORETICAL = np.array([MODES[k][1] for k in MODE_KEYS])

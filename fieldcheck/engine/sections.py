@@ -13,7 +13,6 @@ import numpy as np
 from fieldcheck.engine.customary import IN
 
 
-
 def dressed_in(nominal_in: np.ndarray, thickness_in: np.ndarray | None = None) -> np.ndarray:
     """Dressed (dry) size in inches of a nominal dimension (NDS Supplement Table 1A; PS 20).
 

@@ -51,12 +51,16 @@ def braced_ke(b: PostBatch, idx: np.ndarray, axis: int) -> tuple[np.ndarray, np.
     rt, rb = end_ratio(top, b.r_top[idx]), end_ratio(bot, b.r_bottom[idx])
     t_top, t_bot = translates(top), translates(bot)
     h = b.height_mm[idx]
-    braces = np.stack([getattr(b, f"brace{axis}a_mm")[idx], getattr(b, f"brace{axis}b_mm")[idx]], axis=1)
+    braces = np.stack(
+        [getattr(b, f"brace{axis}a_mm")[idx], getattr(b, f"brace{axis}b_mm")[idx]], axis=1
+    )
     klt, klb = np.where(t_top, 0.0, np.inf), np.where(t_bot, 0.0, np.inf)
     frac = braces / h[:, None]
 
     def solve(r_top, r_bot):
-        return stability.effective_length_factor(1.0, 1.0, r_top, r_bot, klt, klb, frac, on_mechanism="nan")
+        return stability.effective_length_factor(
+            1.0, 1.0, r_top, r_bot, klt, klb, frac, on_mechanism="nan"
+        )
 
     k = solve(rt, rb)
     if b.theoretical_k[idx].all():
@@ -70,7 +74,9 @@ def braced_ke(b: PostBatch, idx: np.ndarray, axis: int) -> tuple[np.ndarray, np.
     k_f = solve(np.where(spring_t, 0.0, rt), np.where(spring_b, 0.0, rb))
     m_s = _margin(_stiff_code(top, spring_t), _stiff_code(bot, spring_b))
     m_f = _margin(_flex_code(top, spring_t), _flex_code(bot, spring_b))
-    m_f = np.where(np.isnan(m_f) | np.isnan(k_f), m_s, m_f)  # flexible case a mechanism: stiff margin
+    m_f = np.where(
+        np.isnan(m_f) | np.isnan(k_f), m_s, m_f
+    )  # flexible case a mechanism: stiff margin
     k_f = np.where(np.isnan(k_f), k, k_f)
     lo_k, hi_k = k_s, np.maximum(k_f, k_s)
     with np.errstate(divide="ignore", invalid="ignore"):

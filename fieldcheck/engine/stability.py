@@ -91,7 +91,9 @@ def _as_float(name: str, value, n: int) -> np.ndarray:
     if arr.ndim == 0:
         return np.full(n, float(arr))
     if arr.shape != (n,):
-        raise ValueError(f"{name} has shape {arr.shape} but every post needs one value: give {n} values or one scalar.")
+        raise ValueError(
+            f"{name} has shape {arr.shape} but every post needs one value: give {n} values or one scalar."
+        )
     return arr
 
 
@@ -255,8 +257,8 @@ def _negative_count(K: np.ndarray) -> np.ndarray:
         if k + 1 < size:  # a tiny last pivot is only the root being near: its sign is the answer
             doubtful |= ~(np.abs(piv) > 1e-9 * scale)
             with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
-                col = A[:, k + 1:, k] / piv[:, None]
-                A[:, k + 1:, k + 1:] -= col[:, :, None] * A[:, k, None, k + 1:]
+                col = A[:, k + 1 :, k] / piv[:, None]
+                A[:, k + 1 :, k + 1 :] -= col[:, :, None] * A[:, k, None, k + 1 :]
     if doubtful.any():
         sub = K[doubtful]
         ok = np.isfinite(sub).all(axis=(1, 2))
@@ -312,7 +314,7 @@ def _solve_group(Rt, Rb, Tt, Tb, xb, Tbr) -> np.ndarray:
     spring[:, 2 * (nodes - 1)] = Tt
     spring[:, 2 * (nodes - 1) + 1] = Rt
     if m:
-        spring[:, 2:2 * (nodes - 1):2] = Tbr
+        spring[:, 2 : 2 * (nodes - 1) : 2] = Tbr
     # A finite spring 1e9 times stiffer than the stiffest segment is rigid to ~1e-9 in K, and
     # leaving it finite only spoils the conditioning of K(P): treat it as held (judgement).
     short = seg.min(axis=1)[:, None]
@@ -341,7 +343,14 @@ def _solve_group(Rt, Rb, Tt, Tb, xb, Tbr) -> np.ndarray:
             K[:, w2, w2] += a[:, s]
             K[:, t1, t1] += c[:, s]
             K[:, t2, t2] += c[:, s]
-            for r, q, v in ((w1, t1, b), (w1, t2, b), (t1, w2, -b), (w2, t2, -b), (w1, w2, -a), (t1, t2, d)):
+            for r, q, v in (
+                (w1, t1, b),
+                (w1, t2, b),
+                (t1, w2, -b),
+                (w2, t2, -b),
+                (w1, w2, -a),
+                (t1, t2, d),
+            ):
                 K[:, r, q] += v[:, s]
                 K[:, q, r] += v[:, s]
         K[:, diag_idx, diag_idx] += spring
@@ -356,7 +365,9 @@ def _solve_group(Rt, Rb, Tt, Tb, xb, Tbr) -> np.ndarray:
 def _solve_u(Rt, Rb, Tt, Tb, xb, Tbr, on_mechanism: str) -> np.ndarray:
     """Dimensionless critical u per post; NaN (or ValueError) for mechanisms."""
     if on_mechanism not in ("raise", "nan"):
-        raise ValueError(f"on_mechanism is {on_mechanism!r}: it must be 'raise' or 'nan', for example 'nan'.")
+        raise ValueError(
+            f"on_mechanism is {on_mechanism!r}: it must be 'raise' or 'nan', for example 'nan'."
+        )
     mech = _mechanism_mask(Rt, Rb, Tt, Tb, Tbr)
     if mech.any() and on_mechanism == "raise":
         raise ValueError(_mechanism_sentence(int(np.argmax(mech)), Rt, Rb, Tt, Tb, Tbr))
@@ -368,13 +379,17 @@ def _solve_u(Rt, Rb, Tt, Tb, xb, Tbr, on_mechanism: str) -> np.ndarray:
     return u
 
 
-def _dimensionless(EI_nmm2, L_mm, k_rot_top, k_rot_bottom, k_lat_top, k_lat_bottom, braces, brace_k):
+def _dimensionless(
+    EI_nmm2, L_mm, k_rot_top, k_rot_bottom, k_lat_top, k_lat_bottom, braces, brace_k
+):
     n = _post_count(EI_nmm2, L_mm, k_rot_top, k_rot_bottom, k_lat_top, k_lat_bottom)
     if braces is not None and np.ndim(braces) == 2:
         n = max(n, np.shape(braces)[0])
     EI = _as_float("EI_nmm2", EI_nmm2, n)
     L = _as_float("L_mm", L_mm, n)
-    _check_positive("EI_nmm2 (bending stiffness E I)", EI, "N mm^2", "5.7e10 (a 4x4, E = 11,000 MPa)")
+    _check_positive(
+        "EI_nmm2 (bending stiffness E I)", EI, "N mm^2", "5.7e10 (a 4x4, E = 11,000 MPa)"
+    )
     _check_positive("L_mm (post length)", L, "mm", "2440")
     ends = {
         "k_rot_top": ("N mm/rad", "5e8"),
@@ -388,7 +403,9 @@ def _dimensionless(EI_nmm2, L_mm, k_rot_top, k_rot_bottom, k_lat_top, k_lat_bott
         _check_stiffness(name, arr, *ends[name])
         vals[name] = arr
     h, kb = _prepare_braces(braces, brace_k, n, L)
-    with np.errstate(invalid="ignore"):  # inf * finite stays inf; 0 * inf does not occur (EI, L > 0)
+    with np.errstate(
+        invalid="ignore"
+    ):  # inf * finite stays inf; 0 * inf does not occur (EI, L > 0)
         Rt = vals["k_rot_top"] * L / EI
         Rb = vals["k_rot_bottom"] * L / EI
         Tt = vals["k_lat_top"] * L**3 / EI
@@ -470,7 +487,9 @@ def is_mechanism(
     return _mechanism_mask(Rt, Rb, Tt, Tb, Tbr)
 
 
-def k_from_ratios(R_top, R_bottom, sway=False, braces_frac=None, *, on_mechanism: str = "raise") -> np.ndarray:
+def k_from_ratios(
+    R_top, R_bottom, sway=False, braces_frac=None, *, on_mechanism: str = "raise"
+) -> np.ndarray:
     """K from dimensionless end stiffness ratios R = k L / (E I) (0 pin, inf fixed).
 
     sway: True where the top translates freely (lateral spring 0 at the top, bottom held);
@@ -507,7 +526,9 @@ def bracketing_cases(R_top, R_bottom, sway=False) -> tuple[np.ndarray, np.ndarra
         bad = np.isnan(arr) | (arr < 0)
         if bad.any():
             i = int(np.argmax(bad.ravel()))
-            raise ValueError(f"{name}{_of_post(i, arr.size)} is {_fmt(arr.ravel()[i])}: it must be 0 (pin) up to inf (fixed), for example 2.0.")
+            raise ValueError(
+                f"{name}{_of_post(i, arr.size)} is {_fmt(arr.ravel()[i])}: it must be 0 (pin) up to inf (fixed), for example 2.0."
+            )
 
     def case(top_fixed, bottom_fixed):
         braced = np.where(
@@ -551,15 +572,17 @@ def design_k(K_solved, R_top, R_bottom, sway=False, theoretical=False) -> np.nda
     Ks, Kes = _CASE_K[stiff], _CASE_KE[stiff]
     Kf, Kef = _CASE_K[flex], _CASE_KE[flex]
     with np.errstate(invalid="ignore", divide="ignore"):
-        margin_s = np.where(np.isfinite(Ks), Kes / Ks, 1.0)  # both cases mechanisms: no fixity relied on
+        margin_s = np.where(
+            np.isfinite(Ks), Kes / Ks, 1.0
+        )  # both cases mechanisms: no fixity relied on
         margin_f = np.where(np.isfinite(Kf), Kef / Kf, margin_s)
         span = Kf - Ks
-        inside = np.isfinite(Kf) & (span > 0) & (K >= Ks) & (K <= Kf)
+        inside = np.isfinite(Kf) & (span > 0) & (Ks <= K) & (Kf >= K)
         mapped = Kes + (K - Ks) * (Kef - Kes) / np.where(inside, span, 1.0)
         out = np.where(
             inside,
             mapped,
-            np.where(np.isfinite(Kf) & (K > Kf), K * margin_f, K * margin_s),
+            np.where(np.isfinite(Kf) & (Kf < K), K * margin_f, K * margin_s),
         )
     out = np.maximum(out, K)
     return np.where(theo, K, out)

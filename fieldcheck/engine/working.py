@@ -8,9 +8,8 @@ from __future__ import annotations
 import numpy as np
 
 from fieldcheck.engine.batch import EC5, LRFD, METHOD_NAMES, PRODUCT_NAMES
-from fieldcheck.engine.rating import ACTION_TEXT, Rating, Step, mode_label
 from fieldcheck.engine.customary import IN, LBF, PSI
-
+from fieldcheck.engine.rating import ACTION_TEXT, Rating, Step, mode_label
 
 
 def _mpa(x: float) -> str:
@@ -31,8 +30,20 @@ def working_steps(r: Rating, i: int) -> list[Step]:
     s: list[Step] = []
     add = s.append
     add(Step("Method", METHOD_NAMES[method].upper() + ("" if method == EC5 else " (NDS 2018)"), ""))
-    add(Step("Section d1 x d2 (measured or dressed)", f"{_mm(b.d1_mm[i])} x {_mm(b.d2_mm[i])}", "NDS 2018 §3.7.1.3"))
-    add(Step("Area A used by the column check", f"{v['area'][i]:,.0f} mm2 ({v['area'][i] / IN**2:.3f} in2)", ""))
+    add(
+        Step(
+            "Section d1 x d2 (measured or dressed)",
+            f"{_mm(b.d1_mm[i])} x {_mm(b.d2_mm[i])}",
+            "NDS 2018 §3.7.1.3",
+        )
+    )
+    add(
+        Step(
+            "Area A used by the column check",
+            f"{v['area'][i]:,.0f} mm2 ({v['area'][i] / IN**2:.3f} in2)",
+            "",
+        )
+    )
     add(Step("Product", PRODUCT_NAMES[int(b.product[i])], ""))
     if method == EC5:
         from fieldcheck.engine.ec5_rating import ec5_steps
@@ -43,33 +54,86 @@ def working_steps(r: Rating, i: int) -> list[Step]:
         add(Step("Reference Fc", _mpa(fc), "NDS Supplement"))
         add(Step("Reference Emin", _mpa(b.emin_mpa[i]), "NDS Supplement"))
         tf = "KF phi lambda" if method == LRFD else "CD"
-        add(Step(
-            f"Factors on Fc: {tf} x CM x Ct x CF x Ci",
-            f"{v['time_fc'][i]:.4g} x {v['cm_fc'][i]:.3g} x {v['ct_f'][i]:.3g} x {b.cf_fc[i]:.3g} x {v['ci_f'][i]:.3g}",
-            "NDS 2018 Table 4.3.1; §2.3.2; Supplement Table 4A",
-        ))
+        add(
+            Step(
+                f"Factors on Fc: {tf} x CM x Ct x CF x Ci",
+                f"{v['time_fc'][i]:.4g} x {v['cm_fc'][i]:.3g} x {v['ct_f'][i]:.3g} x {b.cf_fc[i]:.3g} x {v['ci_f'][i]:.3g}",
+                "NDS 2018 Table 4.3.1; §2.3.2; Supplement Table 4A",
+            )
+        )
         add(Step("Fc* (all factors but Cp)", _mpa(v["fc_star"][i]), "NDS 2018 §3.7.1"))
-        add(Step("Emin' = Emin x CM x Ct x Ci" + (" x KF phi" if method == LRFD else ""), _mpa(v["emin_prime"][i]),
-                 "NDS 2018 Table 4.3.1 (CD never applies to Emin)"))
+        add(
+            Step(
+                "Emin' = Emin x CM x Ct x Ci" + (" x KF phi" if method == LRFD else ""),
+                _mpa(v["emin_prime"][i]),
+                "NDS 2018 Table 4.3.1 (CD never applies to Emin)",
+            )
+        )
         add(Step("End conditions", mode_label(int(v["mode"][i])), "NDS 2018 Appendix G Table G1"))
         for ax in (1, 2):
-            add(Step(f"Axis {ax}: Ke, unbraced length lu", f"Ke = {v[f'ke{ax}'][i]:.4g}, lu = {_mm(v[f'lu{ax}'][i])}",
-                     "NDS 2018 §3.7.1.2, Appendix G"))
+            add(
+                Step(
+                    f"Axis {ax}: Ke, unbraced length lu",
+                    f"Ke = {v[f'ke{ax}'][i]:.4g}, lu = {_mm(v[f'lu{ax}'][i])}",
+                    "NDS 2018 §3.7.1.2, Appendix G",
+                )
+            )
             add(Step(f"Axis {ax}: le/d", f"{v[f'le_d{ax}'][i]:.3f}", "NDS 2018 §3.7.1.3"))
-            add(Step(f"Axis {ax}: FcE = 0.822 Emin' / (le/d)^2", _mpa(v[f"fce{ax}"][i]), "NDS 2018 §3.7.1"))
+            add(
+                Step(
+                    f"Axis {ax}: FcE = 0.822 Emin' / (le/d)^2",
+                    _mpa(v[f"fce{ax}"][i]),
+                    "NDS 2018 §3.7.1",
+                )
+            )
             kf = f" x Kf {b.kf[i]:.2f}" if ax == 2 and b.kf[i] < 1 else ""
-            add(Step(f"Axis {ax}: Cp (c = {v['c'][i]:.2f}){kf}", f"{v[f'cp{ax}'][i]:.6f}",
-                     "NDS 2018 Eq. 3.7-1" + (", §15.3" if kf else "")))
-        add(Step("Governing axis, Cp", f"axis {int(v['axis'][i])}, Cp = {v['cp'][i]:.6f}", "NDS 2018 §3.7.1"))
+            add(
+                Step(
+                    f"Axis {ax}: Cp (c = {v['c'][i]:.2f}){kf}",
+                    f"{v[f'cp{ax}'][i]:.6f}",
+                    "NDS 2018 Eq. 3.7-1" + (", §15.3" if kf else ""),
+                )
+            )
+        add(
+            Step(
+                "Governing axis, Cp",
+                f"axis {int(v['axis'][i])}, Cp = {v['cp'][i]:.6f}",
+                "NDS 2018 §3.7.1",
+            )
+        )
         add(Step("Fc' = Fc* x Cp", _mpa(v["fc_star"][i] * v["cp"][i]), "NDS 2018 §3.7.1"))
         if b.knowledge[i] < 1:
-            add(Step("Knowledge factor kappa (default values assumed)", f"{b.knowledge[i]:.2f}", "ASCE 41 data collection"))
-        add(Step("le/d, limit", f"{v['le_d_max'][i]:.2f} <= {v['le_d_limit'][i]:.0f}: "
-                 + ("within" if v["le_d_max"][i] <= v["le_d_limit"][i] else "EXCEEDED"), "NDS 2018 §3.7.1.4"))
+            add(
+                Step(
+                    "Knowledge factor kappa (default values assumed)",
+                    f"{b.knowledge[i]:.2f}",
+                    "ASCE 41 data collection",
+                )
+            )
+        add(
+            Step(
+                "le/d, limit",
+                f"{v['le_d_max'][i]:.2f} <= {v['le_d_limit'][i]:.0f}: "
+                + ("within" if v["le_d_max"][i] <= v["le_d_limit"][i] else "EXCEEDED"),
+                "NDS 2018 §3.7.1.4",
+            )
+        )
         if not np.isnan(b.top_fc_perp_mpa[i]):
-            add(Step("Cap: Fc-perp' = Fc-perp x CM x Ct x Cb", f"Cb = {v['cb_top'][i]:.4f}", "NDS 2018 §3.10.2, §3.10.4"))
+            add(
+                Step(
+                    "Cap: Fc-perp' = Fc-perp x CM x Ct x Cb",
+                    f"Cb = {v['cb_top'][i]:.4f}",
+                    "NDS 2018 §3.10.2, §3.10.4",
+                )
+            )
         if not np.isnan(b.bottom_fc_perp_mpa[i]):
-            add(Step("Sill: Fc-perp' = Fc-perp x CM x Ct x Cb", f"Cb = {v['cb_bot'][i]:.4f}", "NDS 2018 §3.10.2, §3.10.4"))
+            add(
+                Step(
+                    "Sill: Fc-perp' = Fc-perp x CM x Ct x Cb",
+                    f"Cb = {v['cb_bot'][i]:.4f}",
+                    "NDS 2018 §3.10.2, §3.10.4",
+                )
+            )
     for step in extra_steps(r, i):
         add(step)
     for name, c in r.checks.items():
@@ -81,8 +145,20 @@ def working_steps(r: Rating, i: int) -> list[Step]:
         add(Step(f"Check: {c.label}", f"capacity {_n(cap)}{rtxt}", c.clause))
     add(Step("Governing check", r.governing_name(i), ""))
     if not np.isnan(r.ratio[i]):
-        add(Step("Demand / capacity", f"{_n(r.demand_n[i])} / {_n(r.capacity_n[i])} = {r.ratio[i]:.3f}", ""))
-    add(Step("Action", ACTION_TEXT[int(r.action[i])], "judgement: ratio bands 0.8 / 1.0 / 1.25 and condition flags"))
+        add(
+            Step(
+                "Demand / capacity",
+                f"{_n(r.demand_n[i])} / {_n(r.capacity_n[i])} = {r.ratio[i]:.3f}",
+                "",
+            )
+        )
+    add(
+        Step(
+            "Action",
+            ACTION_TEXT[int(r.action[i])],
+            "judgement: ratio bands 0.8 / 1.0 / 1.25 and condition flags",
+        )
+    )
     return s
 
 

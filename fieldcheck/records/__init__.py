@@ -24,8 +24,17 @@ UNRATED_COLUMNS = ("tag", "location", "notes")  # kept in the log, not seen by t
 _UNRATED = frozenset(UNRATED_COLUMNS)
 from fieldcheck.records import load_columns as _load_columns  # noqa: F401,E402  (tributary loads, ground)
 
-__all__ = ["COLUMNS", "GROUPS", "UNRATED_COLUMNS", "Column", "FieldError", "Parsed", "parse_records",
-           "rate_records", "parse_row"]
+__all__ = [
+    "COLUMNS",
+    "GROUPS",
+    "UNRATED_COLUMNS",
+    "Column",
+    "FieldError",
+    "Parsed",
+    "parse_records",
+    "parse_row",
+    "rate_records",
+]
 
 
 @dataclass(frozen=True)
@@ -58,7 +67,9 @@ def _parse_cell(name: str, text: str) -> Any:
     return tuple(value) if isinstance(value, list) else value
 
 
-def parse_row(record: dict[str, str]) -> tuple[dict[str, Any], dict[str, Any], list[tuple[str, str]]]:
+def parse_row(
+    record: dict[str, str],
+) -> tuple[dict[str, Any], dict[str, Any], list[tuple[str, str]]]:
     """One record -> (PostBatch field values, meta, [(column, message), ...])."""
     values: dict[str, Any] = {}
     problems: list[tuple[str, str]] = []
@@ -125,9 +136,13 @@ def parse_records(rows: list[dict[str, str]]) -> Parsed:
     keys = set().union(*fields_u)
     from fieldcheck.engine.batch import _DEFAULTS, _DTYPES
 
-    per_u = {k: np.asarray([f.get(k, _DEFAULTS[k]) for f in fields_u], dtype=_DTYPES[k]) for k in keys}
+    per_u = {
+        k: np.asarray([f.get(k, _DEFAULTS[k]) for f in fields_u], dtype=_DTYPES[k]) for k in keys
+    }
     take = remap[good_rows]
-    return Parsed(make_batch(n=int(take.size), **{k: a[take] for k, a in per_u.items()}), errors, ok, metas)
+    return Parsed(
+        make_batch(n=int(take.size), **{k: a[take] for k, a in per_u.items()}), errors, ok, metas
+    )
 
 
 def rate_records(rows: list[dict[str, str]]):
@@ -141,6 +156,7 @@ def rate_records(rows: list[dict[str, str]]):
     parsed = parse_records(rows)
     return rate(parsed.batch), parsed.errors
 
+
+from fieldcheck.records import condition_columns as _condition_columns  # noqa: E402,F401  (the post as found)
 from fieldcheck.records import ec5_columns as _ec5_columns  # noqa: E402,F401  (registers columns)
 from fieldcheck.records import spring_columns as _spring_columns  # noqa: E402,F401  (spring ends)
-from fieldcheck.records import condition_columns as _condition_columns  # noqa: E402,F401  (the post as found)

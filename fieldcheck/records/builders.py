@@ -14,7 +14,15 @@ import numpy as np
 
 from fieldcheck.engine import materials, sections
 from fieldcheck.engine.batch import (
-    BUILT_UP, DIMENSION, END_NAMES, EC5, LRFD, METHOD_NAMES, RECT, ROUND, TIMBER,
+    BUILT_UP,
+    DIMENSION,
+    EC5,
+    END_NAMES,
+    LRFD,
+    METHOD_NAMES,
+    RECT,
+    ROUND,
+    TIMBER,
 )
 from fieldcheck.engine.customary import IN
 from fieldcheck.engine.restraint import mechanism_reason, unbraced_length
@@ -22,10 +30,22 @@ from fieldcheck.engine.restraint import mechanism_reason, unbraced_length
 Row = dict[str, Any]
 Builder = Callable[[Row, dict[str, Any]], dict[str, Any]]
 
-CD = {"permanent": 0.9, "ten-years": 1.0, "two-months": 1.15, "seven-days": 1.25, "ten-minutes": 1.6,
-      "impact": 2.0}  # NDS 2018 Table 2.3.2
-LAMBDA = {"permanent": 0.6, "ten-years": 0.8, "two-months": 0.8, "seven-days": 0.8, "ten-minutes": 1.0,
-          "impact": 1.25}  # NDS 2018 Appendix N Table N3 (from memory), by the shortest load
+CD = {
+    "permanent": 0.9,
+    "ten-years": 1.0,
+    "two-months": 1.15,
+    "seven-days": 1.25,
+    "ten-minutes": 1.6,
+    "impact": 2.0,
+}  # NDS 2018 Table 2.3.2
+LAMBDA = {
+    "permanent": 0.6,
+    "ten-years": 0.8,
+    "two-months": 0.8,
+    "seven-days": 0.8,
+    "ten-minutes": 1.0,
+    "impact": 1.25,
+}  # NDS 2018 Appendix N Table N3 (from memory), by the shortest load
 CB_MIN_END_DISTANCE_MM = 3.0 * IN  # NDS 2018 §3.10.4
 
 
@@ -43,7 +63,9 @@ def section_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
     if "plies" in row and row["plies"] > 1:
         ply = row.get("ply")
         if ply is None:
-            raise RowError("ply", "ply: a built-up post needs the nominal size of one ply, e.g. --ply 2x6.")
+            raise RowError(
+                "ply", "ply: a built-up post needs the nominal size of one ply, e.g. --ply 2x6."
+            )
         t_nom, w_nom = min(ply), max(ply)
         w_mm, t_mm = sections.nominal_dressed_mm(w_nom, t_nom)
         if "section" in row:  # measured overall size wins
@@ -54,7 +76,9 @@ def section_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
         f.update(shape=BUILT_UP, plies=row["plies"], kf=kf)
         thick_nom, width_nom = t_nom, w_nom
     elif "diameter" in row:
-        d1 = d2 = float(sections.round_equivalent_side(np.array([row["diameter"]]))[0])  # NDS 2018 §3.7.2
+        d1 = d2 = float(
+            sections.round_equivalent_side(np.array([row["diameter"]]))[0]
+        )  # NDS 2018 §3.7.2
         f.update(shape=ROUND)
     elif "section" in row:
         d1, d2 = max(row["section"]), min(row["section"])
@@ -64,7 +88,9 @@ def section_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
         thick_nom, width_nom = min(nominal), max(nominal)
         d1, d2 = sections.nominal_dressed_mm(width_nom, thick_nom)
     else:
-        raise RowError("size", "size: give a nominal size (e.g. 4x4), a measured --section or a --diameter.")
+        raise RowError(
+            "size", "size: give a nominal size (e.g. 4x4), a measured --section or a --diameter."
+        )
     if thick_nom is None:
         timber = bool(sections.is_timber(np.array([d2]))[0])
         thick_nom = 5 if timber else 4
@@ -79,7 +105,9 @@ def section_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
 
 def height_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
     if "height" not in row:
-        raise RowError("height", "height: the post's height is needed, e.g. --height 10ft or 8' 6\".")
+        raise RowError(
+            "height", "height: the post's height is needed, e.g. --height 10ft or 8' 6\"."
+        )
     h = row["height"]
     f: dict[str, Any] = {"height_mm": h}
     for col, axis in (("brace_strong", 1), ("brace_weak", 2)):
@@ -124,8 +152,15 @@ def material_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
     if "diameter" in row or row.get("plies", 1) > 1:
         cf_fc, cf_fb = (1.0, 1.0) if "diameter" in row else (cf_fc, cf_fb)
     f.update(
-        fc_mpa=rv["fc"], fc_perp_mpa=rv["fc_perp"], fb_mpa=rv["fb"], e_mpa=rv["e"], emin_mpa=rv["emin"],
-        cf_fc=cf_fc, cf_fb=cf_fb, wet_tabulated=rv["wet_tabulated"], knowledge=rv["knowledge"],
+        fc_mpa=rv["fc"],
+        fc_perp_mpa=rv["fc_perp"],
+        fb_mpa=rv["fb"],
+        e_mpa=rv["e"],
+        emin_mpa=rv["emin"],
+        cf_fc=cf_fc,
+        cf_fb=cf_fb,
+        wet_tabulated=rv["wet_tabulated"],
+        knowledge=rv["knowledge"],
     )
     out["_material"] = f"{species} {grade} ({rv['table']}, {rv['status']})"
     out["_e_mpa"] = rv["e"]
@@ -138,7 +173,9 @@ def service_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
     f: dict[str, Any] = {}
     if "moisture" in row:
         f["moisture_pct"] = row["moisture"]
-        f["bearing_wet"] = row["moisture"] > 19.0  # the cap and sill share the post's exposure (judgement)
+        f["bearing_wet"] = (
+            row["moisture"] > 19.0
+        )  # the cap and sill share the post's exposure (judgement)
     if "temperature" in row:
         f["temp_c"] = row["temperature"]
     f["incised"] = bool(row.get("incised", False))
@@ -164,8 +201,14 @@ def bearing_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
     return f
 
 
-BUILDERS: list[Builder] = [section_fields, height_fields, end_fields, material_fields, service_fields,
-                           bearing_fields]
+BUILDERS: list[Builder] = [
+    section_fields,
+    height_fields,
+    end_fields,
+    material_fields,
+    service_fields,
+    bearing_fields,
+]
 
 
 def register_builder(fn: Builder, after: Builder | None = None) -> None:

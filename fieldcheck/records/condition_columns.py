@@ -16,7 +16,7 @@ import numpy as np
 from fieldcheck import units
 from fieldcheck.engine import condition as cond
 from fieldcheck.engine.refdata import table
-from fieldcheck.records.builders import RowError, register_builder, section_fields
+from fieldcheck.records.builders import RowError, register_builder
 from fieldcheck.records.columns import Column, _choice, _yes_no, register
 
 IN = units.IN_MM  # mm per inch
@@ -37,10 +37,14 @@ def _slope(s: str) -> float:
         return float("inf")
     m = re.fullmatch(r"(?:1\s*(?:in|:|/)\s*)?(\d+(?:\.\d+)?)", t)
     if m is None:
-        raise ValueError(f"slope: '{s}' is not a slope of grain; write it as 1 in n, e.g. 1 in 12 (or straight).")
+        raise ValueError(
+            f"slope: '{s}' is not a slope of grain; write it as 1 in n, e.g. 1 in 12 (or straight)."
+        )
     n = float(m.group(1))
     if n < 1.0:
-        raise ValueError(f"slope: 1 in {n:g} is flatter than 1 in 1; give 1 in n with n of 1 or more, e.g. 1 in 12.")
+        raise ValueError(
+            f"slope: 1 in {n:g} is flatter than 1 in 1; give 1 in n with n of 1 or more, e.g. 1 in 12."
+        )
     return n
 
 
@@ -49,9 +53,13 @@ def _ratio(field: str):
         try:
             v = float(s.strip())
         except ValueError:
-            raise ValueError(f"{field}: '{s}' is not a number; give a time ratio such as 1.3.") from None
+            raise ValueError(
+                f"{field}: '{s}' is not a number; give a time ratio such as 1.3."
+            ) from None
         if not 1.0 < v <= 5.0:
-            raise ValueError(f"{field}: {v:g} is out of range; give a time ratio above 1 up to 5, e.g. 1.3.")
+            raise ValueError(
+                f"{field}: {v:g} is out of range; give a time ratio above 1 up to 5, e.g. 1.3."
+            )
         return v
 
     return parse
@@ -64,7 +72,9 @@ def _density(s: str) -> float:
         raise ValueError(f"density: '{s}' is not a density; give e.g. 500 kg/m3 or 31 pcf.")
     v = float(m.group(1)) * (1.0 if (m.group(2) or "kg").startswith("kg") else 16.01846337)
     if not 100.0 <= v <= 1400.0:
-        raise ValueError(f"density: {v:.0f} kg/m3 is out of range; give 100 to 1400 kg/m3, e.g. 500 kg/m3.")
+        raise ValueError(
+            f"density: {v:.0f} kg/m3 is out of range; give 100 to 1400 kg/m3, e.g. 500 kg/m3."
+        )
     return v
 
 
@@ -72,85 +82,319 @@ ZONE_HELP = "full (whole height), middle (middle half), top or bottom (at that e
 FACES = cond.FACE_NAMES
 _OWN: list[str] = []
 for _c in (
-    Column("decay_wide", "condition", "decay or insect loss: probed depth on one wide face", "1 in",
-           _depth("decay_wide")),
-    Column("decay_wide2", "condition", "decay or insect loss on the other wide face", "0", _depth("decay_wide2")),
-    Column("decay_narrow", "condition", "decay or insect loss on one narrow face", "1/2 in", _depth("decay_narrow")),
-    Column("decay_narrow2", "condition", "decay or insect loss on the other narrow face", "0",
-           _depth("decay_narrow2")),
-    Column("decay_at", "condition", f"where the decay is: {ZONE_HELP}", "full",
-           _choice("decay_at", cond.ZONE_NAMES), "full", cond.ZONE_NAMES),
-    Column("decay_margin", "condition", "added past the probed decay boundary (judgement; default 1/2 in)",
-           "1/2 in", _depth("decay_margin", 100.0), "1/2 in"),
-    Column("hollow", "condition", "diameter of a hollow or decayed core (drilling, shell gauge)", "1.5 in",
-           _depth("hollow")),
-    Column("hollow_at", "condition", f"where the hollow is: {ZONE_HELP}", "full",
-           _choice("hollow_at", cond.ZONE_NAMES), "full", cond.ZONE_NAMES),
-    Column("char_wide", "condition", "char depth on one wide face (7 mm zero-strength layer added)", "3/4 in",
-           _depth("char_wide")),
-    Column("char_wide2", "condition", "char depth on the other wide face", "0", _depth("char_wide2")),
+    Column(
+        "decay_wide",
+        "condition",
+        "decay or insect loss: probed depth on one wide face",
+        "1 in",
+        _depth("decay_wide"),
+    ),
+    Column(
+        "decay_wide2",
+        "condition",
+        "decay or insect loss on the other wide face",
+        "0",
+        _depth("decay_wide2"),
+    ),
+    Column(
+        "decay_narrow",
+        "condition",
+        "decay or insect loss on one narrow face",
+        "1/2 in",
+        _depth("decay_narrow"),
+    ),
+    Column(
+        "decay_narrow2",
+        "condition",
+        "decay or insect loss on the other narrow face",
+        "0",
+        _depth("decay_narrow2"),
+    ),
+    Column(
+        "decay_at",
+        "condition",
+        f"where the decay is: {ZONE_HELP}",
+        "full",
+        _choice("decay_at", cond.ZONE_NAMES),
+        "full",
+        cond.ZONE_NAMES,
+    ),
+    Column(
+        "decay_margin",
+        "condition",
+        "added past the probed decay boundary (judgement; default 1/2 in)",
+        "1/2 in",
+        _depth("decay_margin", 100.0),
+        "1/2 in",
+    ),
+    Column(
+        "hollow",
+        "condition",
+        "diameter of a hollow or decayed core (drilling, shell gauge)",
+        "1.5 in",
+        _depth("hollow"),
+    ),
+    Column(
+        "hollow_at",
+        "condition",
+        f"where the hollow is: {ZONE_HELP}",
+        "full",
+        _choice("hollow_at", cond.ZONE_NAMES),
+        "full",
+        cond.ZONE_NAMES,
+    ),
+    Column(
+        "char_wide",
+        "condition",
+        "char depth on one wide face (7 mm zero-strength layer added)",
+        "3/4 in",
+        _depth("char_wide"),
+    ),
+    Column(
+        "char_wide2", "condition", "char depth on the other wide face", "0", _depth("char_wide2")
+    ),
     Column("char_narrow", "condition", "char depth on one narrow face", "0", _depth("char_narrow")),
-    Column("char_narrow2", "condition", "char depth on the other narrow face", "0", _depth("char_narrow2")),
-    Column("char_at", "condition", f"where the char is: {ZONE_HELP}", "full",
-           _choice("char_at", cond.ZONE_NAMES), "full", cond.ZONE_NAMES),
-    Column("wane", "condition", "wane: width missing at a corner, on each face", "1/2 in", _depth("wane")),
-    Column("wane_corners", "condition", "how many corners have that wane (1 to 4)", "2",
-           _choice("wane_corners", ("1", "2", "3", "4")), "1", ("1", "2", "3", "4")),
+    Column(
+        "char_narrow2",
+        "condition",
+        "char depth on the other narrow face",
+        "0",
+        _depth("char_narrow2"),
+    ),
+    Column(
+        "char_at",
+        "condition",
+        f"where the char is: {ZONE_HELP}",
+        "full",
+        _choice("char_at", cond.ZONE_NAMES),
+        "full",
+        cond.ZONE_NAMES,
+    ),
+    Column(
+        "wane",
+        "condition",
+        "wane: width missing at a corner, on each face",
+        "1/2 in",
+        _depth("wane"),
+    ),
+    Column(
+        "wane_corners",
+        "condition",
+        "how many corners have that wane (1 to 4)",
+        "2",
+        _choice("wane_corners", ("1", "2", "3", "4")),
+        "1",
+        ("1", "2", "3", "4"),
+    ),
     Column("notch", "condition", "notch depth, cut across a whole face", "1 in", _depth("notch")),
-    Column("notch_face", "condition", "face the notch is cut into: wide or narrow", "wide",
-           _choice("notch_face", FACES), "wide", FACES),
-    Column("notch_height", "condition", "height of the notch above the bottom (default: mid-height)", "3 ft",
-           _depth("notch_height", 20_000.0)),
+    Column(
+        "notch_face",
+        "condition",
+        "face the notch is cut into: wide or narrow",
+        "wide",
+        _choice("notch_face", FACES),
+        "wide",
+        FACES,
+    ),
+    Column(
+        "notch_height",
+        "condition",
+        "height of the notch above the bottom (default: mid-height)",
+        "3 ft",
+        _depth("notch_height", 20_000.0),
+    ),
     Column("hole", "condition", "bored hole diameter, through the post", "1 in", _depth("hole")),
-    Column("hole_face", "condition", "faces the hole is bored through: wide or narrow", "wide",
-           _choice("hole_face", FACES), "wide", FACES),
-    Column("hole_height", "condition", "height of the hole above the bottom (default: mid-height)", "4 ft",
-           _depth("hole_height", 20_000.0)),
+    Column(
+        "hole_face",
+        "condition",
+        "faces the hole is bored through: wide or narrow",
+        "wide",
+        _choice("hole_face", FACES),
+        "wide",
+        FACES,
+    ),
+    Column(
+        "hole_height",
+        "condition",
+        "height of the hole above the bottom (default: mid-height)",
+        "4 ft",
+        _depth("hole_height", 20_000.0),
+    ),
     Column("knot", "condition", "largest knot, measured across its face", "1 in", _depth("knot")),
-    Column("knot_face", "condition", "face the knot is on: wide or narrow", "wide",
-           _choice("knot_face", FACES), "wide", FACES),
+    Column(
+        "knot_face",
+        "condition",
+        "face the knot is on: wide or narrow",
+        "wide",
+        _choice("knot_face", FACES),
+        "wide",
+        FACES,
+    ),
     Column("slope", "condition", "slope of grain, 1 in n", "1 in 12", _slope),
-    Column("slope_table", "condition", "strength-ratio table for slope: grading (ASTM D245, from memory; "
-           "the more severe) or clear-wood (Wood Handbook Table 5-12)", "grading",
-           _choice("slope_table", cond.SLOPE_TABLES), "grading", cond.SLOPE_TABLES),
-    Column("beyond_grade", "condition", "knots or slope exceed the stamped grade (default: yes if the grade is "
-           "unknown, no if stamped)", "no", _yes_no("beyond_grade")),
-    Column("split", "condition", "worst split: none, check (one face), through (two faces) or opening "
-           "(widening under load)", "check", _choice("split", cond.SPLIT_NAMES), "none", cond.SPLIT_NAMES),
-    Column("split_faces", "condition", "faces a through split shows on: wide, narrow or unknown", "unknown",
-           _choice("split_faces", cond.SPLIT_FACE_NAMES), "unknown", cond.SPLIT_FACE_NAMES),
-    Column("split_at", "condition", f"where the split is: {ZONE_HELP}", "middle",
-           _choice("split_at", cond.ZONE_NAMES), "full", cond.ZONE_NAMES),
-    Column("crushed_end", "condition", "crushed or broomed end: none, top, bottom or both", "none",
-           _choice("crushed_end", cond.CRUSHED_NAMES), "none", cond.CRUSHED_NAMES),
-    Column("crushing", "condition", "crushing in progress: fresh fibres, indentation growing (yes/no)", "no",
-           _yes_no("crushing"), "no"),
-    Column("settling_sill", "condition", "sill or pad settling, ground soft or undermined (yes/no)", "no",
-           _yes_no("settling_sill"), "no"),
-    Column("moving", "condition", "post leaning or moving more than before (yes/no)", "no", _yes_no("moving"), "no"),
-    Column("bow_weak", "condition", "bow across the thin side: largest string-line offset", "1/2 in",
-           _depth("bow_weak", 500.0)),
+    Column(
+        "slope_table",
+        "condition",
+        "strength-ratio table for slope: grading (ASTM D245, from memory; "
+        "the more severe) or clear-wood (Wood Handbook Table 5-12)",
+        "grading",
+        _choice("slope_table", cond.SLOPE_TABLES),
+        "grading",
+        cond.SLOPE_TABLES,
+    ),
+    Column(
+        "beyond_grade",
+        "condition",
+        "knots or slope exceed the stamped grade (default: yes if the grade is "
+        "unknown, no if stamped)",
+        "no",
+        _yes_no("beyond_grade"),
+    ),
+    Column(
+        "split",
+        "condition",
+        "worst split: none, check (one face), through (two faces) or opening (widening under load)",
+        "check",
+        _choice("split", cond.SPLIT_NAMES),
+        "none",
+        cond.SPLIT_NAMES,
+    ),
+    Column(
+        "split_faces",
+        "condition",
+        "faces a through split shows on: wide, narrow or unknown",
+        "unknown",
+        _choice("split_faces", cond.SPLIT_FACE_NAMES),
+        "unknown",
+        cond.SPLIT_FACE_NAMES,
+    ),
+    Column(
+        "split_at",
+        "condition",
+        f"where the split is: {ZONE_HELP}",
+        "middle",
+        _choice("split_at", cond.ZONE_NAMES),
+        "full",
+        cond.ZONE_NAMES,
+    ),
+    Column(
+        "crushed_end",
+        "condition",
+        "crushed or broomed end: none, top, bottom or both",
+        "none",
+        _choice("crushed_end", cond.CRUSHED_NAMES),
+        "none",
+        cond.CRUSHED_NAMES,
+    ),
+    Column(
+        "crushing",
+        "condition",
+        "crushing in progress: fresh fibres, indentation growing (yes/no)",
+        "no",
+        _yes_no("crushing"),
+        "no",
+    ),
+    Column(
+        "settling_sill",
+        "condition",
+        "sill or pad settling, ground soft or undermined (yes/no)",
+        "no",
+        _yes_no("settling_sill"),
+        "no",
+    ),
+    Column(
+        "moving",
+        "condition",
+        "post leaning or moving more than before (yes/no)",
+        "no",
+        _yes_no("moving"),
+        "no",
+    ),
+    Column(
+        "bow_weak",
+        "condition",
+        "bow across the thin side: largest string-line offset",
+        "1/2 in",
+        _depth("bow_weak", 500.0),
+    ),
     Column("bow_strong", "condition", "bow across the wide side", "0", _depth("bow_strong", 500.0)),
-    Column("plumb_weak", "condition", "out of plumb across the thin side: top offset over the height", "1 in",
-           _depth("plumb_weak", 1000.0)),
-    Column("plumb_strong", "condition", "out of plumb across the wide side", "0", _depth("plumb_strong", 1000.0)),
-    Column("offset_weak", "condition", "load off the post's centre on the cap, across the thin side", "1/2 in",
-           _depth("offset_weak", 500.0)),
-    Column("offset_strong", "condition", "load off centre across the wide side", "0", _depth("offset_strong", 500.0)),
-    Column("stress_wave", "condition", "stress-wave transit time across the post", "600 us",
-           lambda s: units.parse_time(s, "stress_wave", lo=1.0, hi=1e6)),
-    Column("stress_wave_path", "condition", "stress-wave path length (default: the thickness)", "5.5 in",
-           lambda s: units.parse_length(s, "stress_wave_path", lo=10.0, hi=2000.0)),
-    Column("stress_wave_sound", "condition", "transit time on sound wood of the same post, same path", "400 us",
-           lambda s: units.parse_time(s, "stress_wave_sound", lo=1.0, hi=1e6)),
-    Column("stress_wave_suspect", "condition", "time ratio for suspect decay (from memory; default 1.3)", "1.3",
-           _ratio("stress_wave_suspect"), "1.3"),
-    Column("stress_wave_advanced", "condition", "time ratio for advanced decay (from memory; default 1.5)", "1.5",
-           _ratio("stress_wave_advanced"), "1.5"),
-    Column("density", "condition", "density at the test moisture, for dynamic E", "500 kg/m3", _density),
-    Column("data_level", "material", "ASCE 41 data collection: default-values (0.75), drawings (0.90), usual "
-           "or comprehensive (1.0)", "default-values", _choice("data_level", cond.DATA_LEVELS), "",
-           cond.DATA_LEVELS),
+    Column(
+        "plumb_weak",
+        "condition",
+        "out of plumb across the thin side: top offset over the height",
+        "1 in",
+        _depth("plumb_weak", 1000.0),
+    ),
+    Column(
+        "plumb_strong",
+        "condition",
+        "out of plumb across the wide side",
+        "0",
+        _depth("plumb_strong", 1000.0),
+    ),
+    Column(
+        "offset_weak",
+        "condition",
+        "load off the post's centre on the cap, across the thin side",
+        "1/2 in",
+        _depth("offset_weak", 500.0),
+    ),
+    Column(
+        "offset_strong",
+        "condition",
+        "load off centre across the wide side",
+        "0",
+        _depth("offset_strong", 500.0),
+    ),
+    Column(
+        "stress_wave",
+        "condition",
+        "stress-wave transit time across the post",
+        "600 us",
+        lambda s: units.parse_time(s, "stress_wave", lo=1.0, hi=1e6),
+    ),
+    Column(
+        "stress_wave_path",
+        "condition",
+        "stress-wave path length (default: the thickness)",
+        "5.5 in",
+        lambda s: units.parse_length(s, "stress_wave_path", lo=10.0, hi=2000.0),
+    ),
+    Column(
+        "stress_wave_sound",
+        "condition",
+        "transit time on sound wood of the same post, same path",
+        "400 us",
+        lambda s: units.parse_time(s, "stress_wave_sound", lo=1.0, hi=1e6),
+    ),
+    Column(
+        "stress_wave_suspect",
+        "condition",
+        "time ratio for suspect decay (from memory; default 1.3)",
+        "1.3",
+        _ratio("stress_wave_suspect"),
+        "1.3",
+    ),
+    Column(
+        "stress_wave_advanced",
+        "condition",
+        "time ratio for advanced decay (from memory; default 1.5)",
+        "1.5",
+        _ratio("stress_wave_advanced"),
+        "1.5",
+    ),
+    Column(
+        "density", "condition", "density at the test moisture, for dynamic E", "500 kg/m3", _density
+    ),
+    Column(
+        "data_level",
+        "material",
+        "ASCE 41 data collection: default-values (0.75), drawings (0.90), usual "
+        "or comprehensive (1.0)",
+        "default-values",
+        _choice("data_level", cond.DATA_LEVELS),
+        "",
+        cond.DATA_LEVELS,
+    ),
 ):
     register(_c)
     _OWN.append(_c.name)
@@ -164,24 +408,39 @@ def condition_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]
     """Condition columns -> PostBatch fields, with one-sentence checks against the section."""
     unknown = row.get("species", "unknown") == "unknown" or row.get("grade", "unknown") == "unknown"
     if _CONDITION_NAMES.isdisjoint(row):  # nothing recorded about the condition: the defaults
-        return {"sr_applies": unknown, "material_assumed": unknown and row.get("method", "asd") != "ec5"}
+        return {
+            "sr_applies": unknown,
+            "material_assumed": unknown and row.get("method", "asd") != "ec5",
+        }
     g = lambda k, d=0.0: row.get(k, d)  # noqa: E731
     d1, d2 = out["_d1"], out["_d2"]  # set by builders.section_fields, which runs first
     h = row.get("height", np.nan)
     f: dict[str, Any] = {}
 
     def depth_pair(prefix: str, what: str) -> None:
-        for col, fld, across, dim in ((f"{prefix}_wide", "2p", "thickness", d2), (f"{prefix}_wide2", "2m", "thickness", d2),
-                                      (f"{prefix}_narrow", "1p", "width", d1), (f"{prefix}_narrow2", "1m", "width", d1)):
+        for col, fld, across, dim in (
+            (f"{prefix}_wide", "2p", "thickness", d2),
+            (f"{prefix}_wide2", "2m", "thickness", d2),
+            (f"{prefix}_narrow", "1p", "width", d1),
+            (f"{prefix}_narrow2", "1m", "width", d1),
+        ):
             v = g(col)
             if v > 0.5 * dim:
-                raise RowError(col, f"{col}: {v / IN:.3g} in of {what} is deeper than half the post's {across} "
-                                    f"({0.5 * dim / IN:.3g} in); give the depth from that face, e.g. 1 in.")
+                raise RowError(
+                    col,
+                    f"{col}: {v / IN:.3g} in of {what} is deeper than half the post's {across} "
+                    f"({0.5 * dim / IN:.3g} in); give the depth from that face, e.g. 1 in.",
+                )
             f[f"{prefix}_{fld}_mm"] = v
-        for a, b_, dim, across in ((f"{prefix}_wide", f"{prefix}_wide2", d2, "thickness"),
-                                   (f"{prefix}_narrow", f"{prefix}_narrow2", d1, "width")):
+        for a, b_, dim, across in (
+            (f"{prefix}_wide", f"{prefix}_wide2", d2, "thickness"),
+            (f"{prefix}_narrow", f"{prefix}_narrow2", d1, "width"),
+        ):
             if g(a) + g(b_) >= dim:
-                raise RowError(a, f"{a}: {what} from both faces leaves nothing of the {across}; check the depths.")
+                raise RowError(
+                    a,
+                    f"{a}: {what} from both faces leaves nothing of the {across}; check the depths.",
+                )
 
     depth_pair("decay", "decay")
     depth_pair("char", "char")
@@ -190,16 +449,24 @@ def condition_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]
     if "decay_margin" in row:
         f["decay_margin_mm"] = row["decay_margin"]
     if g("hollow") > 0:
-        shell = min(d1 - f["decay_1p_mm"] - f["decay_1m_mm"], d2 - f["decay_2p_mm"] - f["decay_2m_mm"])
+        shell = min(
+            d1 - f["decay_1p_mm"] - f["decay_1m_mm"], d2 - f["decay_2p_mm"] - f["decay_2m_mm"]
+        )
         if g("hollow") >= shell:
-            raise RowError("hollow", f"hollow: a {g('hollow') / IN:.3g} in core leaves no sound shell in this post "
-                                     f"({shell / IN:.3g} in left across); check the diameter, e.g. 1.5 in.")
+            raise RowError(
+                "hollow",
+                f"hollow: a {g('hollow') / IN:.3g} in core leaves no sound shell in this post "
+                f"({shell / IN:.3g} in left across); check the diameter, e.g. 1.5 in.",
+            )
         f["hollow_mm"] = g("hollow")
         f["hollow_zone"] = cond.ZONE_NAMES.index(row.get("hollow_at", "full"))
     if g("wane") > 0:
         if g("wane") >= min(d1, d2):
-            raise RowError("wane", f"wane: {g('wane') / IN:.3g} in is as wide as a face; give the width missing, "
-                                   "e.g. 1/2 in.")
+            raise RowError(
+                "wane",
+                f"wane: {g('wane') / IN:.3g} in is as wide as a face; give the width missing, "
+                "e.g. 1/2 in.",
+            )
         f["wane_mm"] = g("wane")
         f["wane_corners"] = int(row.get("wane_corners", "1"))
     for kind, depth_word in (("notch", "depth"), ("hole", "diameter")):
@@ -207,14 +474,24 @@ def condition_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]
         if v <= 0:
             continue
         face = FACES.index(row.get(f"{kind}_face", "wide"))
-        across = (d2 if face == cond.WIDE else d1) if kind == "notch" else (d1 if face == cond.WIDE else d2)
+        across = (
+            (d2 if face == cond.WIDE else d1)
+            if kind == "notch"
+            else (d1 if face == cond.WIDE else d2)
+        )
         if v > 0.5 * across:
-            raise RowError(kind, f"{kind}: a {depth_word} of {v / IN:.3g} in is more than half the post "
-                                 f"({0.5 * across / IN:.3g} in); check it, e.g. 1 in.")
+            raise RowError(
+                kind,
+                f"{kind}: a {depth_word} of {v / IN:.3g} in is more than half the post "
+                f"({0.5 * across / IN:.3g} in); check it, e.g. 1 in.",
+            )
         z = row.get(f"{kind}_height")
         if z is not None and not z < h:
-            raise RowError(f"{kind}_height", f"{kind}_height: {z / IN:.3g} in is not below the top of the post; "
-                                             "measure it up from the bottom.")
+            raise RowError(
+                f"{kind}_height",
+                f"{kind}_height: {z / IN:.3g} in is not below the top of the post; "
+                "measure it up from the bottom.",
+            )
         f[f"{kind}_mm"], f[f"{kind}_face"] = v, face
         if z is not None:
             f[f"{kind}_z_mm"] = z
@@ -222,8 +499,11 @@ def condition_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]
         face = FACES.index(row.get("knot_face", "wide"))
         w = d1 if face == cond.WIDE else d2
         if g("knot") >= w:
-            raise RowError("knot", f"knot: {g('knot') / IN:.3g} in is as wide as the {FACES[face]} face "
-                                   f"({w / IN:.3g} in); measure the knot across the face, e.g. 1 in.")
+            raise RowError(
+                "knot",
+                f"knot: {g('knot') / IN:.3g} in is as wide as the {FACES[face]} face "
+                f"({w / IN:.3g} in); measure the knot across the face, e.g. 1 in.",
+            )
         f["knot_mm"], f["knot_face"] = g("knot"), face
     if "slope" in row:
         f["slope_n"] = row["slope"]
@@ -242,19 +522,27 @@ def condition_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]
         f[f"plumb{axis}_mm"] = g(f"plumb_{side}")
         off = g(f"offset_{side}")
         if off > 0.5 * dim:
-            raise RowError(f"offset_{side}", f"offset_{side}: {off / IN:.3g} in puts the load outside the post "
-                                             f"({0.5 * dim / IN:.3g} in from the centre to the face); check it.")
+            raise RowError(
+                f"offset_{side}",
+                f"offset_{side}: {off / IN:.3g} in puts the load outside the post "
+                f"({0.5 * dim / IN:.3g} in from the centre to the face); check it.",
+            )
         f[f"offset{axis}_mm"] = off
     if "stress_wave" in row:
         f["sw_time_us"] = row["stress_wave"]
         f["sw_path_mm"] = row.get("stress_wave_path", d2)
         if "stress_wave_sound" in row:
             f["sw_sound_us"] = row["stress_wave_sound"]
-    for col, fld in (("stress_wave_suspect", "sw_suspect"), ("stress_wave_advanced", "sw_advanced")):
+    for col, fld in (
+        ("stress_wave_suspect", "sw_suspect"),
+        ("stress_wave_advanced", "sw_advanced"),
+    ):
         if col in row:
             f[fld] = row[col]
     if f.get("sw_advanced", 1.5) < f.get("sw_suspect", 1.3):
-        raise RowError("stress_wave_advanced", "stress_wave_advanced: must not be below stress_wave_suspect.")
+        raise RowError(
+            "stress_wave_advanced", "stress_wave_advanced: must not be below stress_wave_suspect."
+        )
     if "density" in row:
         f["density_kgm3"] = row["density"]
     if "data_level" in row:

@@ -11,8 +11,12 @@ from fieldcheck.records.columns import Column, register
 
 # NDS durations -> EN 1995-1-1 Table 2.1 load-duration classes (nearest; judgement)
 EC5_DURATION = {
-    "permanent": "permanent", "ten-years": "long-term", "two-months": "medium-term",
-    "seven-days": "short-term", "ten-minutes": "instantaneous", "impact": "instantaneous",
+    "permanent": "permanent",
+    "ten-years": "long-term",
+    "two-months": "medium-term",
+    "seven-days": "short-term",
+    "ten-minutes": "instantaneous",
+    "impact": "instantaneous",
 }
 
 
@@ -30,15 +34,32 @@ def _class(s: str) -> str:
 def _service(s: str) -> int:
     t = s.strip().upper().removeprefix("SC")
     if t not in ("1", "2", "3"):
-        raise ValueError(f"service_class: '{s}' is not a service class; use 1, 2 or 3 (EN 1995-1-1 §2.3.1.3).")
+        raise ValueError(
+            f"service_class: '{s}' is not a service class; use 1, 2 or 3 (EN 1995-1-1 §2.3.1.3)."
+        )
     return int(t)
 
 
 for _c in (
     Column("class", "material", "EN 338 strength class (method ec5)", "C24", _class),
-    Column("service_class", "material", "EN 1995-1-1 service class 1, 2 or 3 (method ec5)", "1", _service, "1"),
-    Column("cap_class", "bearing", "EN 338 class of the cap or beam above (method ec5)", "C24", _class),
-    Column("sill_class", "bearing", "EN 338 class of the sill or plate below (method ec5)", "C24", _class),
+    Column(
+        "service_class",
+        "material",
+        "EN 1995-1-1 service class 1, 2 or 3 (method ec5)",
+        "1",
+        _service,
+        "1",
+    ),
+    Column(
+        "cap_class", "bearing", "EN 338 class of the cap or beam above (method ec5)", "C24", _class
+    ),
+    Column(
+        "sill_class",
+        "bearing",
+        "EN 338 class of the sill or plate below (method ec5)",
+        "C24",
+        _class,
+    ),
 ):
     register(_c)
 
@@ -46,7 +67,10 @@ for _c in (
 def ec5_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
     if row.get("method", "asd") != METHOD_NAMES[EC5]:
         if "class" in row:
-            raise RowError("class", "class: a strength class needs --method ec5 (NDS ratings use --species and --grade).")
+            raise RowError(
+                "class",
+                "class: a strength class needs --method ec5 (NDS ratings use --species and --grade).",
+            )
         return {}
     if "class" not in row:
         raise RowError("class", "class: an EC5 rating needs a strength class, e.g. --class C24.")
@@ -55,13 +79,17 @@ def ec5_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
     out["_e_mpa"] = f["e_mpa"]
     duration = EC5_DURATION[row.get("duration", "ten-years")]
     product = "solid"
-    f["kmod"] = float(ec5.kmod(row.get("service_class", 1), duration, product))  # EN 1995-1-1 Table 3.1
+    f["kmod"] = float(
+        ec5.kmod(row.get("service_class", 1), duration, product)
+    )  # EN 1995-1-1 Table 3.1
     f["gamma_m"] = float(ec5.gamma_m(product))  # EN 1995-1-1 Table 2.3
     f["knowledge"] = 1.0
     for end, col in (("top", "cap_class"), ("bottom", "sill_class")):
         if col in row:
             f[f"{end}_fc_perp_mpa"] = en338.strength_class(row[col])["fc90k_mpa"]
-    out["_material"] = f"{name} ({en338.edition(name)}), k_mod {f['kmod']:.2f} ({duration}), gamma_M {f['gamma_m']}"
+    out["_material"] = (
+        f"{name} ({en338.edition(name)}), k_mod {f['kmod']:.2f} ({duration}), gamma_M {f['gamma_m']}"
+    )
     return f
 
 

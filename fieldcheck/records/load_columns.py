@@ -19,7 +19,15 @@ from fieldcheck.engine import loads, materials
 from fieldcheck.engine.batch import EC5, LRFD, METHOD_NAMES
 from fieldcheck.engine.ground import combination_rows, lateral_rows
 from fieldcheck.records.builders import RowError, register_builder
-from fieldcheck.records.columns import DURATION_ALIASES, DURATIONS, Column, _choice, _count, _yes_no, register
+from fieldcheck.records.columns import (
+    DURATION_ALIASES,
+    DURATIONS,
+    Column,
+    _choice,
+    _count,
+    _yes_no,
+    register,
+)
 
 AREA_LOADS = ("dead", "live", "occupancy", "snow", "roof_live", "rain")
 POINT_LOADS = ("point", "point_live")
@@ -89,57 +97,188 @@ def _duration(field: str):
         try:
             return _DUR(s)
         except ValueError:
-            raise ValueError(f"{field}: '{s}' is not a load duration; use one of {', '.join(DURATIONS)}.") from None
+            raise ValueError(
+                f"{field}: '{s}' is not a load duration; use one of {', '.join(DURATIONS)}."
+            ) from None
 
     return parse
 
 
 for _c in (
-    Column("tributary", "load", "tributary area of floor or roof the post carries (instead of --load)",
-           "120 sq ft", lambda s: units.parse_area(s, "tributary", lo=1e4, hi=1e10)),
-    Column("spacing", "load", "post spacing both ways, for the tributary area (instead of --tributary)",
-           "10ft x 12ft", lambda s: units.parse_section(s, "spacing", lo=100.0, hi=50_000.0)),
-    Column("position", "load", "with --spacing: interior, edge (half) or corner (quarter) post", "interior",
-           _choice("position", POSITIONS), "interior", POSITIONS),
-    Column("dead", "load", "dead load per floor: an area load or a preset, joined by +", "floor-carpet + 5 psf",
-           _dead),
-    Column("live", "load", "live load per floor, an area load (or give --occupancy)", "40 psf",
-           _area_load("live")),
-    Column("occupancy", "load", "occupancy preset for the live load (ASCE 7 Table 4.3-1)", "residential",
-           _choice("occupancy", loads.live_load_keys()), "", loads.live_load_keys()),
-    Column("snow", "load", "roof snow load, an area load (take it from the local authority)", "30 psf",
-           _area_load("snow")),
+    Column(
+        "tributary",
+        "load",
+        "tributary area of floor or roof the post carries (instead of --load)",
+        "120 sq ft",
+        lambda s: units.parse_area(s, "tributary", lo=1e4, hi=1e10),
+    ),
+    Column(
+        "spacing",
+        "load",
+        "post spacing both ways, for the tributary area (instead of --tributary)",
+        "10ft x 12ft",
+        lambda s: units.parse_section(s, "spacing", lo=100.0, hi=50_000.0),
+    ),
+    Column(
+        "position",
+        "load",
+        "with --spacing: interior, edge (half) or corner (quarter) post",
+        "interior",
+        _choice("position", POSITIONS),
+        "interior",
+        POSITIONS,
+    ),
+    Column(
+        "dead",
+        "load",
+        "dead load per floor: an area load or a preset, joined by +",
+        "floor-carpet + 5 psf",
+        _dead,
+    ),
+    Column(
+        "live",
+        "load",
+        "live load per floor, an area load (or give --occupancy)",
+        "40 psf",
+        _area_load("live"),
+    ),
+    Column(
+        "occupancy",
+        "load",
+        "occupancy preset for the live load (ASCE 7 Table 4.3-1)",
+        "residential",
+        _choice("occupancy", loads.live_load_keys()),
+        "",
+        loads.live_load_keys(),
+    ),
+    Column(
+        "snow",
+        "load",
+        "roof snow load, an area load (take it from the local authority)",
+        "30 psf",
+        _area_load("snow"),
+    ),
     Column("roof_live", "load", "roof live load, an area load", "20 psf", _area_load("roof_live")),
-    Column("rain", "load", "rain load, an area load (give --rain-duration too)", "5 psf", _area_load("rain")),
-    Column("rain_duration", "load", "duration of the rain load (NDS 2018 Table 2.3.2 has none)", "seven-days",
-           _duration("rain_duration"), "", DURATIONS),
-    Column("point", "load", "point load from above, counted as dead load", "2000 lbf",
-           lambda s: units.parse_force(s, "point", lo=0.0, hi=1e8)),
-    Column("point_live", "load", "live part of a point load from above", "1000 lbf",
-           lambda s: units.parse_force(s, "point_live", lo=0.0, hi=1e8)),
-    Column("floors", "load", "floors (of the same build-up) carried over the tributary area", "1",
-           _count("floors", 1, 20), "1"),
-    Column("live_duration", "load", "duration of the live load (seven-days for a construction load)",
-           "ten-years", _duration("live_duration"), "ten-years", DURATIONS),
-    Column("live_reduction", "load", "reduce the live load by ASCE 7 §4.7 (default no for shoring)", "no",
-           _yes_no("live_reduction"), "no"),
-    Column("shared_by", "load", "posts side by side under a stiff cap sharing the load equally", "1",
-           _count("shared_by", 1, 4), "1"),
-    Column("lateral_rule", "load", "report what the bracing must carry by this rule", "fema-minimum",
-           _lateral, "", tuple(r["key"] for r in lateral_rows())),
-    Column("brace_edge", "load", "with --lateral-rule cal-osha: length of floor edge braced", "20 ft",
-           lambda s: units.parse_length(s, "brace_edge", lo=100.0, hi=1e6)),
-    Column("lean", "load", "out of plumb over the height, for the bracing thrust", "1 in",
-           lambda s: units.parse_length(s, "lean", lo=0.1, hi=2000.0)),
-    Column("pad", "bearing", "mudsill or pad on the ground: both sides, or its area", "2ft x 2ft", _pad),
-    Column("pad_thickness", "bearing", "thickness of the mudsill or pad (the load spreads 1:1 through it)",
-           "3.5 in", lambda s: units.parse_length(s, "pad_thickness", lo=5.0, hi=3000.0)),
-    Column("soil", "bearing", "soil under the pad: IBC class 1-5 or a key, unknown, unprepared", "sand", _soil,
-           "", loads.soil_keys()),
-    Column("soil_default", "bearing", "soil class unknown: accept the 1,500 psf default (yes/no)", "no",
-           _yes_no("soil_default"), "no"),
-    Column("plate", "bearing", "steel bearing plates at cap and sill: length along their grain", "8 in",
-           lambda s: units.parse_length(s, "plate", lo=10.0, hi=2000.0)),
+    Column(
+        "rain",
+        "load",
+        "rain load, an area load (give --rain-duration too)",
+        "5 psf",
+        _area_load("rain"),
+    ),
+    Column(
+        "rain_duration",
+        "load",
+        "duration of the rain load (NDS 2018 Table 2.3.2 has none)",
+        "seven-days",
+        _duration("rain_duration"),
+        "",
+        DURATIONS,
+    ),
+    Column(
+        "point",
+        "load",
+        "point load from above, counted as dead load",
+        "2000 lbf",
+        lambda s: units.parse_force(s, "point", lo=0.0, hi=1e8),
+    ),
+    Column(
+        "point_live",
+        "load",
+        "live part of a point load from above",
+        "1000 lbf",
+        lambda s: units.parse_force(s, "point_live", lo=0.0, hi=1e8),
+    ),
+    Column(
+        "floors",
+        "load",
+        "floors (of the same build-up) carried over the tributary area",
+        "1",
+        _count("floors", 1, 20),
+        "1",
+    ),
+    Column(
+        "live_duration",
+        "load",
+        "duration of the live load (seven-days for a construction load)",
+        "ten-years",
+        _duration("live_duration"),
+        "ten-years",
+        DURATIONS,
+    ),
+    Column(
+        "live_reduction",
+        "load",
+        "reduce the live load by ASCE 7 §4.7 (default no for shoring)",
+        "no",
+        _yes_no("live_reduction"),
+        "no",
+    ),
+    Column(
+        "shared_by",
+        "load",
+        "posts side by side under a stiff cap sharing the load equally",
+        "1",
+        _count("shared_by", 1, 4),
+        "1",
+    ),
+    Column(
+        "lateral_rule",
+        "load",
+        "report what the bracing must carry by this rule",
+        "fema-minimum",
+        _lateral,
+        "",
+        tuple(r["key"] for r in lateral_rows()),
+    ),
+    Column(
+        "brace_edge",
+        "load",
+        "with --lateral-rule cal-osha: length of floor edge braced",
+        "20 ft",
+        lambda s: units.parse_length(s, "brace_edge", lo=100.0, hi=1e6),
+    ),
+    Column(
+        "lean",
+        "load",
+        "out of plumb over the height, for the bracing thrust",
+        "1 in",
+        lambda s: units.parse_length(s, "lean", lo=0.1, hi=2000.0),
+    ),
+    Column(
+        "pad", "bearing", "mudsill or pad on the ground: both sides, or its area", "2ft x 2ft", _pad
+    ),
+    Column(
+        "pad_thickness",
+        "bearing",
+        "thickness of the mudsill or pad (the load spreads 1:1 through it)",
+        "3.5 in",
+        lambda s: units.parse_length(s, "pad_thickness", lo=5.0, hi=3000.0),
+    ),
+    Column(
+        "soil",
+        "bearing",
+        "soil under the pad: IBC class 1-5 or a key, unknown, unprepared",
+        "sand",
+        _soil,
+        "",
+        loads.soil_keys(),
+    ),
+    Column(
+        "soil_default",
+        "bearing",
+        "soil class unknown: accept the 1,500 psf default (yes/no)",
+        "no",
+        _yes_no("soil_default"),
+        "no",
+    ),
+    Column(
+        "plate",
+        "bearing",
+        "steel bearing plates at cap and sill: length along their grain",
+        "8 in",
+        lambda s: units.parse_length(s, "plate", lo=10.0, hi=2000.0),
+    ),
 ):
     register(_c)
 
@@ -163,12 +302,18 @@ def load_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
     if len(area_given) == 2:
         raise RowError("spacing", "spacing: give the tributary area or the spacing, not both.")
     if computed and "load" in row:
-        raise RowError("load", "load: give either --load or a tributary area with area loads, not both "
-                               "(e.g. --tributary 120sqft --dead 10psf --live 40psf).")
+        raise RowError(
+            "load",
+            "load: give either --load or a tributary area with area loads, not both "
+            "(e.g. --tributary 120sqft --dead 10psf --live 40psf).",
+        )
     if area_loads and not area_given:
         c = area_loads[0]
-        raise RowError(c, f"{c}: an area load needs the tributary area; add --tributary (e.g. 120 sq ft) "
-                          "or --spacing (e.g. 10ft x 12ft).")
+        raise RowError(
+            c,
+            f"{c}: an area load needs the tributary area; add --tributary (e.g. 120 sq ft) "
+            "or --spacing (e.g. 10ft x 12ft).",
+        )
     if area_given and not area_loads:
         c = area_given[0]
         raise RowError(c, f"{c}: give the area loads on it too, e.g. --dead 10psf --live 40psf.")
@@ -176,32 +321,48 @@ def load_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
         raise RowError("occupancy", "occupancy: give the live load or the occupancy, not both.")
     if computed:
         if "duration" in row:
-            raise RowError("duration", "duration: with tributary loads the duration comes from the governing "
-                                       "combination; use --live-duration to change the live load's.")
+            raise RowError(
+                "duration",
+                "duration: with tributary loads the duration comes from the governing "
+                "combination; use --live-duration to change the live load's.",
+            )
         method = row.get("method", "asd")
         if METHOD_NAMES.index(method) == EC5:
-            raise RowError("method", "method: tributary loads use the ASCE 7 combinations (asd or lrfd); "
-                                     "for ec5 give the design load with --load.")
+            raise RowError(
+                "method",
+                "method: tributary loads use the ASCE 7 combinations (asd or lrfd); "
+                "for ec5 give the design load with --load.",
+            )
         if "spacing" in row:
             s1, s2 = row["spacing"]
             area = float(loads.tributary_area_grid_mm2(s1, s2, row.get("position", "interior"))[0])
         else:
             area = row.get("tributary", 0.0)
         nf = int(row.get("floors", 1))
-        q_live = row.get("live", loads.live_load_kpa(row["occupancy"]) if "occupancy" in row else 0.0)
+        q_live = row.get(
+            "live", loads.live_load_kpa(row["occupancy"]) if "occupancy" in row else 0.0
+        )
         k = loads.KPA_N_PER_MM2 * area
         D = row.get("dead", 0.0) * k * nf + row.get("point", 0.0)  # field-practice.md §5.1
         L = q_live * k * nf + row.get("point_live", 0.0)
         Lr, S, R = (row.get(c, 0.0) * k for c in ("roof_live", "snow", "rain"))
         if R > 0 and "rain_duration" not in row:
-            raise RowError("rain_duration", "rain_duration: a rain load has no duration in NDS 2018 Table 2.3.2; "
-                                            "state it, e.g. --rain-duration seven-days.")
-        reduce = {"live_reduction_area_mm2": area, "floors": nf} if row.get("live_reduction") else {}
+            raise RowError(
+                "rain_duration",
+                "rain_duration: a rain load has no duration in NDS 2018 Table 2.3.2; "
+                "state it, e.g. --rain-duration seven-days.",
+            )
+        reduce = (
+            {"live_reduction_area_mm2": area, "floors": nf} if row.get("live_reduction") else {}
+        )
         try:
             if method == "lrfd":
                 c = loads.lrfd_combinations(D, L, Lr, S, R, **reduce)
             else:
-                durations = {"L": row.get("live_duration", "ten-years"), "R": row.get("rain_duration")}
+                durations = {
+                    "L": row.get("live_duration", "ten-years"),
+                    "R": row.get("rain_duration"),
+                }
                 c = loads.asd_combinations(D, L, Lr, S, R, durations=durations, **reduce)
         except ValueError as exc:
             raise RowError("live_duration", f"live_duration: {exc}") from None
@@ -237,8 +398,11 @@ def load_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
         keys = [r["key"] for r in lateral_rows()]
         f["lateral_rule"] = keys.index(row["lateral_rule"])
         if row["lateral_rule"] == "cal-osha" and "brace_edge" not in row:
-            raise RowError("brace_edge", "brace_edge: the cal-osha rule needs the length of floor edge braced, "
-                                         "e.g. --brace-edge 20ft.")
+            raise RowError(
+                "brace_edge",
+                "brace_edge: the cal-osha rule needs the length of floor edge braced, "
+                "e.g. --brace-edge 20ft.",
+            )
     if "brace_edge" in row:
         f["lateral_edge_mm"] = row["brace_edge"]
     if "lean" in row:

@@ -27,9 +27,13 @@ def parse_ratio(text: str, field: str) -> float:
     try:
         v = float(t)
     except ValueError:
-        raise ValueError(f"{field}: '{text}' is not a number; give R = k L / (E I) from 0 (pin) to inf (fixed), e.g. 2.") from None
+        raise ValueError(
+            f"{field}: '{text}' is not a number; give R = k L / (E I) from 0 (pin) to inf (fixed), e.g. 2."
+        ) from None
     if math.isnan(v) or v < 0:
-        raise ValueError(f"{field}: {text} is negative; give R from 0 (pin) to inf (fixed), e.g. 2.")
+        raise ValueError(
+            f"{field}: {text} is negative; give R from 0 (pin) to inf (fixed), e.g. 2."
+        )
     return v
 
 
@@ -38,13 +42,34 @@ def _ratio(field: str):
 
 
 for _c in (
-    Column("top_spring", "ends", "rotational stiffness of the top connection (moment per radian)",
-           "400 kip-in/rad", lambda s: units.parse_stiffness(s, "top_spring")),
-    Column("bottom_spring", "ends", "rotational stiffness of the bottom connection", "400 kip-in/rad",
-           lambda s: units.parse_stiffness(s, "bottom_spring")),
-    Column("top_ratio", "ends", "top spring as R = k L / (E I): 0 pin, inf fixed", "2", _ratio("top_ratio")),
-    Column("bottom_ratio", "ends", "bottom spring as R = k L / (E I): 0 pin, inf fixed", "2",
-           _ratio("bottom_ratio")),
+    Column(
+        "top_spring",
+        "ends",
+        "rotational stiffness of the top connection (moment per radian)",
+        "400 kip-in/rad",
+        lambda s: units.parse_stiffness(s, "top_spring"),
+    ),
+    Column(
+        "bottom_spring",
+        "ends",
+        "rotational stiffness of the bottom connection",
+        "400 kip-in/rad",
+        lambda s: units.parse_stiffness(s, "bottom_spring"),
+    ),
+    Column(
+        "top_ratio",
+        "ends",
+        "top spring as R = k L / (E I): 0 pin, inf fixed",
+        "2",
+        _ratio("top_ratio"),
+    ),
+    Column(
+        "bottom_ratio",
+        "ends",
+        "bottom spring as R = k L / (E I): 0 pin, inf fixed",
+        "2",
+        _ratio("bottom_ratio"),
+    ),
 ):
     register(_c)
 
@@ -56,7 +81,10 @@ def spring_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
     f: dict[str, Any] = {}
     for end in ("top", "bottom"):
         if f"{end}_spring" in row and f"{end}_ratio" in row:
-            raise RowError(f"{end}_ratio", f"{end}_ratio: give the {end} spring as a stiffness or as a ratio, not both.")
+            raise RowError(
+                f"{end}_ratio",
+                f"{end}_ratio: give the {end} spring as a stiffness or as a ratio, not both.",
+            )
         if f"{end}_ratio" in row:
             f[f"r_{end}"] = row[f"{end}_ratio"]
         elif f"{end}_spring" in row:
@@ -71,7 +99,10 @@ def spring_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
     rt = end_ratio(top, np.array([f.get("r_top", np.nan)]))
     rb = end_ratio(bot, np.array([f.get("r_bottom", np.nan)]))
     if translates(top)[0] and translates(bot)[0]:
-        raise RowError("top", "ends: neither end is held sideways, so the post slides over as a whole; brace one end.")
+        raise RowError(
+            "top",
+            "ends: neither end is held sideways, so the post slides over as a whole; brace one end.",
+        )
     flip = translates(bot)[0] and not translates(top)[0]
     up, down = (rb, rt) if flip else (rt, rb)
     try:

@@ -4,10 +4,8 @@ from __future__ import annotations
 
 import numpy as np
 
-from fieldcheck.engine.rating import ACTIONS, FLAG_TEXT, Rating
 from fieldcheck.engine.customary import LBF
-
-
+from fieldcheck.engine.rating import ACTIONS, FLAG_TEXT, Rating
 
 # the engine's intermediate values these columns read (rate(batch, keep=KEEP) for a large batch)
 KEEP = ("ke1", "ke2", "le_d_max", "le_d_limit", "cp", "axis")
@@ -38,6 +36,8 @@ def result_columns(r: Rating) -> dict[str, list[str]]:
         "effective_length_factor": _fmt(np.where(ax2, v["ke2"], v["ke1"]), 4),
         "slenderness_ratio": _fmt(v["le_d_max"], 3),
         "stability_factor": _fmt(v["cp"], 6),
-        "within_slenderness_limit": np.where(v["le_d_max"] <= v["le_d_limit"], "true", "false").tolist(),
+        "within_slenderness_limit": np.where(
+            v["le_d_max"] <= v["le_d_limit"], "true", "false"
+        ).tolist(),
         "warnings": [warns(int(f)) for f in flags.tolist()],
     }

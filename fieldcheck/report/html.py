@@ -88,11 +88,14 @@ def cautions_box(compact: bool = False) -> str:
 
 
 def _cover(d: ReportData) -> str:
-    site_rows = "".join(
-        f"<tr><th>Site</th><td>{e(s.name)}<br><span class='muted'>{e(s.address)}</span>"
-        f"{'<br>' + e(s.notes) if s.notes else ''}</td></tr>"
-        for s in d.sites
-    ) or "<tr><th>Site</th><td>none in this log</td></tr>"
+    site_rows = (
+        "".join(
+            f"<tr><th>Site</th><td>{e(s.name)}<br><span class='muted'>{e(s.address)}</span>"
+            f"{'<br>' + e(s.notes) if s.notes else ''}</td></tr>"
+            for s in d.sites
+        )
+        or "<tr><th>Site</th><td>none in this log</td></tr>"
+    )
     vrows = "".join(
         f"<tr><td>{e(v.name)}</td><td>{e(date_text(visit_date(v)))}</td><td>{e(v.inspector)}</td>"
         f"<td>{e(LEVEL_TEXT.get(v.level, v.level))}</td><td>{e(', '.join(v.instruments))}</td></tr>"
@@ -101,11 +104,14 @@ def _cover(d: ReportData) -> str:
     counts: dict[int | None, int] = {}
     for p in d.posts:
         counts[p.action] = counts.get(p.action, 0) + 1
-    count_txt = ", ".join(f"{badge(a)} {n}" for a, n in sorted(counts.items(), key=lambda t: -1 if t[0] is None else t[0]))
+    count_txt = ", ".join(
+        f"{badge(a)} {n}"
+        for a, n in sorted(counts.items(), key=lambda t: -1 if t[0] is None else t[0])
+    )
     return (
         '<section id="cover"><h1>Survey report</h1>'
         f'<p class="muted">Scope: {e(d.scope)}. Written {e(d.created.strftime("%Y-%m-%d %H:%M %Z"))} '
-        f'by fieldcheck engine {e(d.engine_version)}; units: {e(d.units)}.</p>'
+        f"by fieldcheck engine {e(d.engine_version)}; units: {e(d.units)}.</p>"
         f'<table class="kv">{site_rows}'
         f"<tr><th>Posts in this report</th><td>{len(d.posts)}{': ' + count_txt if count_txt else ''}</td></tr>"
         "</table>"
@@ -124,7 +130,9 @@ def _cover(d: ReportData) -> str:
 def _signoff(d: ReportData) -> str:
     """Recorded sign-offs, and lines to sign on paper (field-practice.md §6.4: the inspector signs
     the visit, a licensed engineer signs any capacity used for decisions)."""
-    done = "".join(f"<li>\u2713 {e(r.author)}, {e(r.created_at)}: {e(r.text)}</li>" for r in d.signoffs)
+    done = "".join(
+        f"<li>\u2713 {e(r.author)}, {e(r.created_at)}: {e(r.text)}</li>" for r in d.signoffs
+    )
     return (
         "<h3>Sign-off</h3>"
         + (f"<ul>{done}</ul>" if done else "<p>Not signed off in the log yet.</p>")
@@ -142,41 +150,65 @@ def _client(d: ReportData) -> str:
     """Plain words for the client: safe, restricted, to do by when; no engineering terms."""
     out = ['<section id="client" class="page client"><h2>Client summary</h2>']
     if not d.posts:
-        out.append("<p>No posts were recorded in the scope of this report, so there is nothing "
-                   "to decide from it. Ask the inspector whether the survey is complete.</p>")
+        out.append(
+            "<p>No posts were recorded in the scope of this report, so there is nothing "
+            "to decide from it. Ask the inspector whether the survey is complete.</p>"
+        )
     groups: dict[int | None, list[PostEntry]] = {}
     for p in d.by_urgency():
         groups.setdefault(p.action, []).append(p)
     if groups.get(3):
-        out.append('<div class="alert"><h3>\u2716 Unsafe now: keep everyone out from under these '
-                   "and call the engineer</h3><ul>")
-        out += [f"<li>{_where(p)}: clear the area under the load now and put in emergency "
-                "support before anyone works there again.</li>" for p in groups[3]]
+        out.append(
+            '<div class="alert"><h3>\u2716 Unsafe now: keep everyone out from under these '
+            "and call the engineer</h3><ul>"
+        )
+        out += [
+            f"<li>{_where(p)}: clear the area under the load now and put in emergency "
+            "support before anyone works there again.</li>"
+            for p in groups[3]
+        ]
         out.append("</ul></div>")
     if groups.get(2):
-        out.append("<h3>\u25b2 Restricted: do not add load; repair or brace by the date shown</h3><ul>")
-        out += [f"<li>{_where(p)}: no storage or extra load near this post; it must be repaired, "
-                f"braced or supported by <b>{e(due_text(p))}</b>.</li>" for p in groups[2]]
+        out.append(
+            "<h3>\u25b2 Restricted: do not add load; repair or brace by the date shown</h3><ul>"
+        )
+        out += [
+            f"<li>{_where(p)}: no storage or extra load near this post; it must be repaired, "
+            f"braced or supported by <b>{e(due_text(p))}</b>.</li>"
+            for p in groups[2]
+        ]
         out.append("</ul>")
     if groups.get(1):
         out.append("<h3>\u25cb Safe to use, to be checked again</h3><ul>")
-        out += [f"<li>{_where(p)}: safe to use as it is now; to be looked at again by "
-                f"{e(due_text(p))}, and at once after any change, impact or movement.</li>"
-                for p in groups[1]]
+        out += [
+            f"<li>{_where(p)}: safe to use as it is now; to be looked at again by "
+            f"{e(due_text(p))}, and at once after any change, impact or movement.</li>"
+            for p in groups[1]
+        ]
         out.append("</ul>")
     if groups.get(0):
-        out.append("<h3>\u2713 Safe to use as found</h3><p>"
-                   + ", ".join(_where(p) for p in groups[0]) + ".</p>")
+        out.append(
+            "<h3>\u2713 Safe to use as found</h3><p>"
+            + ", ".join(_where(p) for p in groups[0])
+            + ".</p>"
+        )
     if groups.get(None):
-        out.append("<h3>? Not assessed</h3><p>These posts could not be assessed from what was "
-                   "recorded; treat them as unsafe until the inspector completes them: "
-                   + ", ".join(_where(p) for p in groups[None]) + ".</p>")
+        out.append(
+            "<h3>? Not assessed</h3><p>These posts could not be assessed from what was "
+            "recorded; treat them as unsafe until the inspector completes them: "
+            + ", ".join(_where(p) for p in groups[None])
+            + ".</p>"
+        )
     dated = [p for p in d.by_urgency() if p.action in (2, 3)]
     if dated:
-        out.append("<h3>What must happen by when</h3><table><tr><th>By</th><th>Post</th>"
-                   "<th>What</th></tr>")
-        out += [f"<tr><td>{e(due_text(p))}</td><td>{_where(p)}</td>"
-                f"<td>{e(ACTION_TEXT[p.action])}</td></tr>" for p in dated]
+        out.append(
+            "<h3>What must happen by when</h3><table><tr><th>By</th><th>Post</th><th>What</th></tr>"
+        )
+        out += [
+            f"<tr><td>{e(due_text(p))}</td><td>{_where(p)}</td>"
+            f"<td>{e(ACTION_TEXT[p.action])}</td></tr>"
+            for p in dated
+        ]
         out.append("</table>")
     levels = sorted({v.level for v in d.visits})
     out.append(
@@ -198,10 +230,12 @@ def _summary_table(d: ReportData) -> str:
     for p in d.posts:
         mid = e(p.view.member_id)
         if p.j is None:
-            rows.append(f"<tr><td><a href='#m-{mid}'>{e(p.tag)}</a></td><td>{e(p.view.location)}</td>"
-                        f"<td>{e(p.visit.name)}</td><td>{badge(None)}</td>"
-                        "<td colspan=4>not rated: the record has field errors</td>"
-                        "<td>assess first</td></tr>")
+            rows.append(
+                f"<tr><td><a href='#m-{mid}'>{e(p.tag)}</a></td><td>{e(p.view.location)}</td>"
+                f"<td>{e(p.visit.name)}</td><td>{badge(None)}</td>"
+                "<td colspan=4>not rated: the record has field errors</td>"
+                "<td>assess first</td></tr>"
+            )
             continue
         r = d.rating
         rows.append(
@@ -230,21 +264,31 @@ def _open_actions(d: ReportData) -> str:
     first = [p for p in open_ if p.action == 3]
     if first:
         out.append('<div class="alert"><h3>\u2716 Make safe first</h3><ol>')
-        out += [f"<li>{_where(p)}: ratio {e(ratio_text(p.summary.get('demand_capacity_ratio')))}; "
-                f"{e(ACTION_TEXT[3])}</li>" for p in first]
+        out += [
+            f"<li>{_where(p)}: ratio {e(ratio_text(p.summary.get('demand_capacity_ratio')))}; "
+            f"{e(ACTION_TEXT[3])}</li>"
+            for p in first
+        ]
         out.append("</ol></div>")
     if not open_:
         out.append("<p>No open actions: every post in this report is adequate as found.</p>")
     else:
-        out.append("<table><tr><th>Post</th><th>Action</th><th class='num'>Ratio</th><th>Due</th>"
-                   "<th>What to do</th></tr>")
+        out.append(
+            "<table><tr><th>Post</th><th>Action</th><th class='num'>Ratio</th><th>Due</th>"
+            "<th>What to do</th></tr>"
+        )
         for p in open_:
             ratio = p.summary.get("demand_capacity_ratio") if p.summary else None
-            what = ACTION_TEXT[p.action] if p.action is not None else (
-                "Complete the record: " + "; ".join(p.errors))
-            out.append(f"<tr><td>{_where(p)}</td><td>{badge(p.action)}</td>"
-                       f"<td class='num'>{e(ratio_text(ratio))}</td><td>{e(due_text(p))}</td>"
-                       f"<td>{e(what)}</td></tr>")
+            what = (
+                ACTION_TEXT[p.action]
+                if p.action is not None
+                else ("Complete the record: " + "; ".join(p.errors))
+            )
+            out.append(
+                f"<tr><td>{_where(p)}</td><td>{badge(p.action)}</td>"
+                f"<td class='num'>{e(ratio_text(ratio))}</td><td>{e(due_text(p))}</td>"
+                f"<td>{e(what)}</td></tr>"
+            )
         out.append("</table>")
     out.append("</section>")
     return "".join(out)
@@ -255,16 +299,27 @@ def _conflicts(d: ReportData) -> str:
     if not d.conflicts:
         out.append("<p>None: every post has one current revision.</p>")
     for tag, heads in d.conflicts:
-        keys = sorted({k for h in heads for k in h.record}
-                      - {k for k in heads[0].record if all(h.record.get(k) == heads[0].record[k] for h in heads)})
-        out.append(f"<h3>\u26a0 {e(tag)}: {len(heads)} revisions made without seeing each other</h3>"
-                   "<p>Both are kept; the office must choose one (nothing is resolved silently). "
-                   "This report rates the newest.</p><table><tr><th>Revision</th><th>By</th>"
-                   "<th>When</th><th>Device</th><th>Where they differ</th></tr>")
-        out += [f"<tr><td class='hash'>{e(h.id)}</td><td>{e(h.author)}</td><td>{e(h.created_at)}</td>"
-                f"<td class='hash'>{e(h.device_id)}</td><td>"
-                + "; ".join(f"{e(k)} = {e(h.record.get(k, '(not given)'))}" for k in keys)
-                + "</td></tr>" for h in heads]
+        keys = sorted(
+            {k for h in heads for k in h.record}
+            - {
+                k
+                for k in heads[0].record
+                if all(h.record.get(k) == heads[0].record[k] for h in heads)
+            }
+        )
+        out.append(
+            f"<h3>\u26a0 {e(tag)}: {len(heads)} revisions made without seeing each other</h3>"
+            "<p>Both are kept; the office must choose one (nothing is resolved silently). "
+            "This report rates the newest.</p><table><tr><th>Revision</th><th>By</th>"
+            "<th>When</th><th>Device</th><th>Where they differ</th></tr>"
+        )
+        out += [
+            f"<tr><td class='hash'>{e(h.id)}</td><td>{e(h.author)}</td><td>{e(h.created_at)}</td>"
+            f"<td class='hash'>{e(h.device_id)}</td><td>"
+            + "; ".join(f"{e(k)} = {e(h.record.get(k, '(not given)'))}" for k in keys)
+            + "</td></tr>"
+            for h in heads
+        ]
         out.append("</table>")
     out.append("</section>")
     return "".join(out)
@@ -297,8 +352,10 @@ def _assumptions(d: ReportData, p: PostEntry) -> str:
     rows = [
         ("Method", method.upper()),
         ("Material", p.meta.get("_material", rec.get("species", ""))),
-        ("Knowledge factor \u03ba", f"{float(b.knowledge[j]):g} (ASCE 41 data collection; visit level "
-         f"{p.visit.level})"),
+        (
+            "Knowledge factor \u03ba",
+            f"{float(b.knowledge[j]):g} (ASCE 41 data collection; visit level {p.visit.level})",
+        ),
         ("Load duration", f"{rec.get('duration', 'not given: default')}; {dur}"),
         ("Moisture", rec.get("moisture") or "not measured: dry service assumed"),
         ("Construction-stage member", "yes" if bool(b.construction[j]) else "no"),
@@ -311,9 +368,15 @@ def _assumptions(d: ReportData, p: PostEntry) -> str:
             continue
         kev = float(ke[jv])
         luv = float(lu[jv]) if lu is not None else float(b.height_mm[j])
-        rows.append((f"Axis {ax}: Ke, lu, le = Ke lu, le/d",
-                     f"Ke = {kev:.3g}, lu = {format_length(luv, u)}, le = {format_length(kev * luv, u)}, "
-                     f"le/d = {float(led[jv]):.2f}" if led is not None else ""))
+        rows.append(
+            (
+                f"Axis {ax}: Ke, lu, le = Ke lu, le/d",
+                f"Ke = {kev:.3g}, lu = {format_length(luv, u)}, le = {format_length(kev * luv, u)}, "
+                f"le/d = {float(led[jv]):.2f}"
+                if led is not None
+                else "",
+            )
+        )
     lc = s.get("load_combination")
     if isinstance(lc, dict) and lc.get("name"):
         rows.append(("Load", f"{lc.get('name')}{'; ' + lc['clause'] if lc.get('clause') else ''}"))
@@ -332,12 +395,16 @@ def _checks(d: ReportData, p: PostEntry) -> str:
             continue
         ratio = float(c.ratio[j])
         mark = " \u25c0 governs" if name == gov else ""
-        rows.append(f"<tr><td>{e(c.label)} <span class='muted'>({e(name)})</span>{mark}</td>"
-                    f"<td class='num'>{e(format_force(cap, u))}</td>"
-                    f"<td class='num'>{e(format_force(float(c.demand_n[j]), u))}</td>"
-                    f"<td class='num'>{e(ratio_text(ratio))}</td><td>{e(c.clause)}</td></tr>")
-    return ("<table><tr><th>Check</th><th class='num'>Capacity</th><th class='num'>Demand</th>"
-            f"<th class='num'>Ratio</th><th>Clause</th></tr>{''.join(rows)}</table>")
+        rows.append(
+            f"<tr><td>{e(c.label)} <span class='muted'>({e(name)})</span>{mark}</td>"
+            f"<td class='num'>{e(format_force(cap, u))}</td>"
+            f"<td class='num'>{e(format_force(float(c.demand_n[j]), u))}</td>"
+            f"<td class='num'>{e(ratio_text(ratio))}</td><td>{e(c.clause)}</td></tr>"
+        )
+    return (
+        "<table><tr><th>Check</th><th class='num'>Capacity</th><th class='num'>Demand</th>"
+        f"<th class='num'>Ratio</th><th>Clause</th></tr>{''.join(rows)}</table>"
+    )
 
 
 def _remedies(d: ReportData, p: PostEntry) -> str:
@@ -347,7 +414,11 @@ def _remedies(d: ReportData, p: PostEntry) -> str:
     items = []
     for x in rem:
         if isinstance(x, dict):
-            text = x.get("description") or x.get("text") or "; ".join(f"{k}: {v}" for k, v in x.items())
+            text = (
+                x.get("description")
+                or x.get("text")
+                or "; ".join(f"{k}: {v}" for k, v in x.items())
+            )
             after = []
             if x.get("capacity_kN") is not None:
                 after.append(f"capacity {format_force(1000.0 * float(x['capacity_kN']), d.units)}")
@@ -360,23 +431,31 @@ def _remedies(d: ReportData, p: PostEntry) -> str:
         else:
             text = str(x)
         items.append(f"<li>{e(text)}</li>")
-    return (f"<h3>Remedies</h3><p class='small muted'>Each option re-rated by the same engine; "
-            f"an engineer chooses and details the work.</p><ol>{''.join(items)}</ol>")
+    return (
+        f"<h3>Remedies</h3><p class='small muted'>Each option re-rated by the same engine; "
+        f"an engineer chooses and details the work.</p><ol>{''.join(items)}</ol>"
+    )
 
 
 def _notes_photos(p: PostEntry) -> str:
     out = []
     note = p.view.record.get("notes")
-    revs = "".join(f"<li>{e(rv.kind)} by {e(rv.author)}, {e(rv.created_at)}: {e(rv.text)}</li>"
-                   for rv in p.reviews)
+    revs = "".join(
+        f"<li>{e(rv.kind)} by {e(rv.author)}, {e(rv.created_at)}: {e(rv.text)}</li>"
+        for rv in p.reviews
+    )
     out.append(f"<h3>Notes</h3><p>{e(note) if note else 'none recorded'}</p>")
     if revs:
         out.append(f"<h3>Office reviews</h3><ul>{revs}</ul>")
     if p.attachments:
-        rows = "".join(f"<tr><td>{e(a.path)}</td><td>{e(a.caption)}</td><td class='hash'>{e(a.sha256)}</td></tr>"
-                       for a in p.attachments)
-        out.append("<h3>Photos</h3><table><tr><th>File</th><th>Caption</th><th>sha256</th></tr>"
-                   f"{rows}</table>")
+        rows = "".join(
+            f"<tr><td>{e(a.path)}</td><td>{e(a.caption)}</td><td class='hash'>{e(a.sha256)}</td></tr>"
+            for a in p.attachments
+        )
+        out.append(
+            "<h3>Photos</h3><table><tr><th>File</th><th>Caption</th><th>sha256</th></tr>"
+            f"{rows}</table>"
+        )
     else:
         out.append("<h3>Photos</h3><p>none attached</p>")
     return "".join(out)
@@ -387,27 +466,37 @@ def _stored(p: PostEntry, units: str) -> str:
     if s is None:
         head = "<p>No stored rating for this revision.</p>"
     else:
-        head = (f"<p>Stored rating: engine {e(s.engine_version)}, {e(s.created_at)}; "
-                f"{badge(s.action)} capacity {e(format_force(s.capacity_n if s.capacity_n is not None else float('nan'), units))}, "
-                f"ratio {e(ratio_text(s.ratio))}. Data editions: "
-                + "; ".join(f"{e(k)} {e(v)}" for k, v in sorted(s.data_editions.items())) + ".</p>")
+        head = (
+            f"<p>Stored rating: engine {e(s.engine_version)}, {e(s.created_at)}; "
+            f"{badge(s.action)} capacity {e(format_force(s.capacity_n if s.capacity_n is not None else float('nan'), units))}, "
+            f"ratio {e(ratio_text(s.ratio))}. Data editions: "
+            + "; ".join(f"{e(k)} {e(v)}" for k, v in sorted(s.data_editions.items()))
+            + ".</p>"
+        )
     if p.differs:
         items = "".join(f"<li>{e(x)}</li>" for x in p.differs)
-        return head + f'<div class="differs"><b>\u26a0 The stored rating differs from this re-rating:</b><ul>{items}</ul></div>'
+        return (
+            head
+            + f'<div class="differs"><b>\u26a0 The stored rating differs from this re-rating:</b><ul>{items}</ul></div>'
+        )
     return head + "<p>\u2713 The stored rating equals this re-rating.</p>"
 
 
 def _post(d: ReportData, p: PostEntry) -> str:
     mid = e(p.view.member_id)
-    head = (f'<section class="post" id="m-{mid}" data-post="{mid}"><h2>Post {e(p.tag)} '
-            f"{badge(p.action)}</h2><p class='muted'>{e(p.view.location)} &middot; visit "
-            f"{e(p.visit.name)} ({e(date_text(visit_date(p.visit)))}) &middot; revised "
-            f"{e(p.view.revised_at)} by {e(p.view.revised_by)} &middot; member {mid}</p>")
+    head = (
+        f'<section class="post" id="m-{mid}" data-post="{mid}"><h2>Post {e(p.tag)} '
+        f"{badge(p.action)}</h2><p class='muted'>{e(p.view.location)} &middot; visit "
+        f"{e(p.visit.name)} ({e(date_text(visit_date(p.visit)))}) &middot; revised "
+        f"{e(p.view.revised_at)} by {e(p.view.revised_by)} &middot; member {mid}</p>"
+    )
     if p.j is None:
         errs = "".join(f"<li>{e(x)}</li>" for x in p.errors)
-        return (head + f"<div class='alert'><b>Not rated:</b> the record as typed has errors."
-                f"<ul>{errs}</ul></div><h3>Inputs as measured</h3>{_record_table(p.view.record)}"
-                f"{_notes_photos(p)}{_stored(p, d.units)}</section>")
+        return (
+            head + f"<div class='alert'><b>Not rated:</b> the record as typed has errors."
+            f"<ul>{errs}</ul></div><h3>Inputs as measured</h3>{_record_table(p.view.record)}"
+            f"{_notes_photos(p)}{_stored(p, d.units)}</section>"
+        )
     r, j, u, s = d.rating, p.j, d.units, p.summary
     dem = float(r.demand_n[j])
     result = (
@@ -423,30 +512,46 @@ def _post(d: ReportData, p: PostEntry) -> str:
     )
     plot = ""
     if p.curve_h is not None:
-        plot = capacity_plot(p.curve_h, p.curve_cap, float(r.batch.height_mm[j]),
-                             float(r.capacity_n[j]), dem, u, p.tag)
-        if bool(r.batch.braced1[j] or r.batch.braced2[j]) or math.isfinite(float(r.batch.lu1_mm[j])) \
-                or math.isfinite(float(r.batch.lu2_mm[j])):
+        plot = capacity_plot(
+            p.curve_h,
+            p.curve_cap,
+            float(r.batch.height_mm[j]),
+            float(r.capacity_n[j]),
+            dem,
+            u,
+            p.tag,
+        )
+        if (
+            bool(r.batch.braced1[j] or r.batch.braced2[j])
+            or math.isfinite(float(r.batch.lu1_mm[j]))
+            or math.isfinite(float(r.batch.lu2_mm[j]))
+        ):
             plot += "<p class='small muted'>Curve: the same post unbraced over its full height.</p>"
-    steps = "".join(f"<tr><td>{k}</td><td>{e(st.label)}</td><td>{e(st.value)}</td>"
-                    f"<td class='small'>{e(st.clause)}</td></tr>"
-                    for k, st in enumerate(p.working, 1))
+    steps = "".join(
+        f"<tr><td>{k}</td><td>{e(st.label)}</td><td>{e(st.value)}</td>"
+        f"<td class='small'>{e(st.clause)}</td></tr>"
+        for k, st in enumerate(p.working, 1)
+    )
     return (
-        head + result + cautions_box(compact=True)
+        head
+        + result
+        + cautions_box(compact=True)
         + f"<h3>Inputs as measured</h3>{_record_table(p.view.record)}"
         + f"<h3>Assumptions</h3>{_assumptions(d, p)}"
         + f"<h3>Checks</h3>{_checks(d, p)}"
         + f"<h3>Capacity against height</h3>{plot}"
         + _remedies(d, p)
         + f"<h3>Working</h3><table class='steps'><tr><th>#</th><th>Step</th><th>Value</th>"
-          f"<th>Clause</th></tr>{steps}</table>"
+        f"<th>Clause</th></tr>{steps}</table>"
         + _notes_photos(p)
         + f"<h3>Stored rating</h3>{_stored(p, d.units)}</section>"
     )
 
 
 def _engine(d: ReportData) -> str:
-    rows = "".join(f"<tr><td>{e(k)}</td><td>{e(v)}</td></tr>" for k, v in sorted(d.editions.items()))
+    rows = "".join(
+        f"<tr><td>{e(k)}</td><td>{e(v)}</td></tr>" for k, v in sorted(d.editions.items())
+    )
     return (
         '<section id="engine" class="page"><h2>Engine and reference data</h2>'
         f"<p>fieldcheck engine version {e(d.engine_version)}. Reference-data editions used for "
@@ -459,9 +564,14 @@ def _engine(d: ReportData) -> str:
 def render(d: ReportData) -> str:
     title = "Survey report" + (f": {d.sites[0].name}" if len(d.sites) == 1 else "")
     parts = [
-        "<!DOCTYPE html>", '<html lang="en"><head><meta charset="utf-8">',
+        "<!DOCTYPE html>",
+        '<html lang="en"><head><meta charset="utf-8">',
         f"<title>{e(title)}</title><style>{CSS}</style></head><body>",
-        _cover(d), _client(d), _summary_table(d), _open_actions(d), _conflicts(d),
+        _cover(d),
+        _client(d),
+        _summary_table(d),
+        _open_actions(d),
+        _conflicts(d),
         '<section id="record" class="page"><h2>Technical record</h2>'
         "<p>One section per post: the inputs as typed, the assumptions, every check, the working, "
         "notes and photos, and the stored rating compared with this re-rating.</p>",
@@ -474,16 +584,18 @@ def render(d: ReportData) -> str:
     return "\n".join(parts)
 
 
-def render_report(log, site_id: str | None = None, visit_id: str | None = None,
-                  units: str = "us") -> str:
+def render_report(
+    log, site_id: str | None = None, visit_id: str | None = None, units: str = "us"
+) -> str:
     """The whole report as one HTML string (see the module docstring)."""
     if units not in ("us", "metric"):
         raise ValueError(f"units: '{units}' is not known; write us or metric, e.g. --units metric")
     return render(gather(log, site_id, visit_id, units))
 
 
-def write_report(log, path, site_id: str | None = None, visit_id: str | None = None,
-                 units: str = "us") -> Path:
+def write_report(
+    log, path, site_id: str | None = None, visit_id: str | None = None, units: str = "us"
+) -> Path:
     """Write the report to ``path`` atomically (a temporary file beside it, then a rename)."""
     path = Path(path).expanduser()
     text = render_report(log, site_id, visit_id, units)

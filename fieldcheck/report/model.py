@@ -109,7 +109,10 @@ def capacity_curves(batch, factors: np.ndarray = CURVE_FACTORS) -> tuple[np.ndar
         return np.zeros((0, k)), np.zeros((0, k))
     heights = batch.height_mm[:, None] * factors[None, :]
     big = batch.take(np.repeat(np.arange(n), k)).replace(
-        height_mm=heights.ravel(), lu1_mm=np.nan, lu2_mm=np.nan, braced1=False,
+        height_mm=heights.ravel(),
+        lu1_mm=np.nan,
+        lu2_mm=np.nan,
+        braced1=False,
         braced2=False,
     )
     cap = np.asarray(rate(big).capacity_n, dtype=np.float64).reshape(n, k)
@@ -166,31 +169,41 @@ def _close(a, b) -> bool:
 
 def _differences(stored, rating: Rating, j: int, eds: dict[str, str]) -> list[str]:
     if stored is None:
-        return ["No stored rating: this revision was saved unrated; the values shown are the "
-                "re-rating made for this report."]
+        return [
+            "No stored rating: this revision was saved unrated; the values shown are the "
+            "re-rating made for this report."
+        ]
     out: list[str] = []
     cur_action = int(rating.action[j])
     if stored.action is not None and stored.action != cur_action:
-        out.append(f"The stored action was {ACTIONS[stored.action]}; the re-rating gives "
-                   f"{ACTIONS[cur_action]}.")
+        out.append(
+            f"The stored action was {ACTIONS[stored.action]}; the re-rating gives "
+            f"{ACTIONS[cur_action]}."
+        )
     if not _close(stored.capacity_n, float(rating.capacity_n[j])):
         out.append("The stored capacity differs from the re-rating.")
     if not _close(stored.ratio, None if math.isnan(rating.ratio[j]) else float(rating.ratio[j])):
         out.append("The stored demand/capacity ratio differs from the re-rating.")
     if stored.governing and stored.governing != rating.governing_name(j):
-        out.append(f"The stored governing check was {stored.governing}; the re-rating gives "
-                   f"{rating.governing_name(j)}.")
+        out.append(
+            f"The stored governing check was {stored.governing}; the re-rating gives "
+            f"{rating.governing_name(j)}."
+        )
     if stored.engine_version != ENGINE_VERSION:
         out.append(f"Stored by engine {stored.engine_version}; this report uses {ENGINE_VERSION}.")
-    changed = sorted(k for k in set(stored.data_editions) | set(eds)
-                     if stored.data_editions.get(k) != eds.get(k))
+    changed = sorted(
+        k for k in set(stored.data_editions) | set(eds) if stored.data_editions.get(k) != eds.get(k)
+    )
     if changed:
-        out.append("Reference-data editions changed since it was stored: " + ", ".join(changed) + ".")
+        out.append(
+            "Reference-data editions changed since it was stored: " + ", ".join(changed) + "."
+        )
     return out
 
 
-def gather(log, site_id: str | None = None, visit_id: str | None = None,
-           units: str = "us") -> ReportData:
+def gather(
+    log, site_id: str | None = None, visit_id: str | None = None, units: str = "us"
+) -> ReportData:
     """Everything the report shows; the current records re-rated in one engine call."""
     from fieldcheck.records import parse_records
 
@@ -210,8 +223,11 @@ def gather(log, site_id: str | None = None, visit_id: str | None = None,
         views = log.posts()
         visits = list(all_visits.values())
         scope = "the whole log"
-    site_ids = [site_id] if site_id else list(dict.fromkeys(
-        [v.site_id for v in visits] + [p.site_id for p in views]))
+    site_ids = (
+        [site_id]
+        if site_id
+        else list(dict.fromkeys([v.site_id for v in visits] + [p.site_id for p in views]))
+    )
     sites = [all_sites[s] if s in all_sites else log.site(s) for s in site_ids]
     # visits the posts' current revisions were made on, besides the ones in scope
     for p in views:
@@ -248,25 +264,63 @@ def gather(log, site_id: str | None = None, visit_id: str | None = None,
         visit = all_visits[view.visit_id]
         stored = log.rating_for(view.observation_id)
         if j is None:
-            entries.append(PostEntry(view, visit, None, errs.get(i, []), {}, stored, None, [],
-                                     [], None, att.get(view.member_id, []),
-                                     rev.get(view.member_id, [])))
+            entries.append(
+                PostEntry(
+                    view,
+                    visit,
+                    None,
+                    errs.get(i, []),
+                    {},
+                    stored,
+                    None,
+                    [],
+                    [],
+                    None,
+                    att.get(view.member_id, []),
+                    rev.get(view.member_id, []),
+                )
+            )
             continue
         summary = post_summary(rating, j, rem)
-        entries.append(PostEntry(
-            view, visit, j, [], parsed.meta[j], stored, summary, rating.working(j),
-            _differences(stored, rating, j, eds),
-            due_date(visit, int(rating.action[j])),
-            att.get(view.member_id, []), rev.get(view.member_id, []),
-            heights[j], caps[j],
-        ))
+        entries.append(
+            PostEntry(
+                view,
+                visit,
+                j,
+                [],
+                parsed.meta[j],
+                stored,
+                summary,
+                rating.working(j),
+                _differences(stored, rating, j, eds),
+                due_date(visit, int(rating.action[j])),
+                att.get(view.member_id, []),
+                rev.get(view.member_id, []),
+                heights[j],
+                caps[j],
+            )
+        )
 
     conflicts = []
     tags = {p.member_id: p.tag for p in views}
     for mid in log.conflicts():
         if mid in members:
-            heads = [o for o in log.history(mid)
-                     if not any(c.supersedes == o.id for c in log.history(mid))]
+            heads = [
+                o
+                for o in log.history(mid)
+                if not any(c.supersedes == o.id for c in log.history(mid))
+            ]
             conflicts.append((tags.get(mid) or mid[:8], heads))
-    return ReportData(sites, visits, scope, entries, rating, conflicts, ENGINE_VERSION, eds,
-                      _dt.datetime.now().astimezone(), units, signoffs)
+    return ReportData(
+        sites,
+        visits,
+        scope,
+        entries,
+        rating,
+        conflicts,
+        ENGINE_VERSION,
+        eds,
+        _dt.datetime.now().astimezone(),
+        units,
+        signoffs,
+    )

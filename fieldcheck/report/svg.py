@@ -34,9 +34,15 @@ def _tick_text(v: float) -> str:
     return f"{v:,.0f}" if abs(v) >= 100 else f"{v:g}"
 
 
-def capacity_plot(heights_mm: np.ndarray, caps_n: np.ndarray, post_h_mm: float,
-                  post_cap_n: float, demand_n: float | None, units: str = "us",
-                  label: str = "") -> str:
+def capacity_plot(
+    heights_mm: np.ndarray,
+    caps_n: np.ndarray,
+    post_h_mm: float,
+    post_cap_n: float,
+    demand_n: float | None,
+    units: str = "us",
+    label: str = "",
+) -> str:
     """One SVG element: capacity (lbf or kN) against height (ft or m), this post ringed."""
     if units == "us":
         xs, xu = np.asarray(heights_mm) / FT_MM, "ft"
@@ -72,29 +78,50 @@ def capacity_plot(heights_mm: np.ndarray, caps_n: np.ndarray, post_h_mm: float,
     ]
     for v in xt:
         X = sx(v)
-        parts.append(f'<line x1="{X:.1f}" y1="{TOP + ph}" x2="{X:.1f}" y2="{TOP + ph + 4}" stroke="#444"/>')
-        parts.append(f'<text x="{X:.1f}" y="{TOP + ph + 15}" text-anchor="middle">{_tick_text(v)}</text>')
+        parts.append(
+            f'<line x1="{X:.1f}" y1="{TOP + ph}" x2="{X:.1f}" y2="{TOP + ph + 4}" stroke="#444"/>'
+        )
+        parts.append(
+            f'<text x="{X:.1f}" y="{TOP + ph + 15}" text-anchor="middle">{_tick_text(v)}</text>'
+        )
     for v in yt:
         Y = sy(v)
-        parts.append(f'<line x1="{LEFT - 4}" y1="{Y:.1f}" x2="{LEFT + pw}" y2="{Y:.1f}" stroke="#ddd"/>')
-        parts.append(f'<text x="{LEFT - 6}" y="{Y + 3:.1f}" text-anchor="end">{_tick_text(v)}</text>')
-    parts.append(f'<text x="{LEFT + pw / 2:.1f}" y="{H - 6}" text-anchor="middle">'
-                 f"height ({xu})</text>")
-    parts.append(f'<text x="12" y="{TOP + ph / 2:.1f}" text-anchor="middle" '
-                 f'transform="rotate(-90 12 {TOP + ph / 2:.1f})">capacity ({yu})</text>')
-    pts = " ".join(f"{sx(a):.1f},{sy(b):.1f}" for a, b in zip(xs.tolist(), ys.tolist(), strict=True))
+        parts.append(
+            f'<line x1="{LEFT - 4}" y1="{Y:.1f}" x2="{LEFT + pw}" y2="{Y:.1f}" stroke="#ddd"/>'
+        )
+        parts.append(
+            f'<text x="{LEFT - 6}" y="{Y + 3:.1f}" text-anchor="end">{_tick_text(v)}</text>'
+        )
+    parts.append(
+        f'<text x="{LEFT + pw / 2:.1f}" y="{H - 6}" text-anchor="middle">height ({xu})</text>'
+    )
+    parts.append(
+        f'<text x="12" y="{TOP + ph / 2:.1f}" text-anchor="middle" '
+        f'transform="rotate(-90 12 {TOP + ph / 2:.1f})">capacity ({yu})</text>'
+    )
+    pts = " ".join(
+        f"{sx(a):.1f},{sy(b):.1f}" for a, b in zip(xs.tolist(), ys.tolist(), strict=True)
+    )
     parts.append(f'<polyline points="{pts}" fill="none" stroke="#000" stroke-width="1.6"/>')
     if dy is not None and dy <= y1:
         Y = sy(dy)
-        parts.append(f'<line x1="{LEFT}" y1="{Y:.1f}" x2="{LEFT + pw}" y2="{Y:.1f}" stroke="#000" '
-                     f'stroke-dasharray="5 4"/>')
-        parts.append(f'<text x="{LEFT + pw - 4}" y="{Y - 4:.1f}" text-anchor="end">demand (dashed)</text>')
+        parts.append(
+            f'<line x1="{LEFT}" y1="{Y:.1f}" x2="{LEFT + pw}" y2="{Y:.1f}" stroke="#000" '
+            f'stroke-dasharray="5 4"/>'
+        )
+        parts.append(
+            f'<text x="{LEFT + pw - 4}" y="{Y - 4:.1f}" text-anchor="end">demand (dashed)</text>'
+        )
     X, Y = sx(px), sy(py)
-    parts.append(f'<circle cx="{X:.1f}" cy="{Y:.1f}" r="5" fill="#fff" stroke="#000" stroke-width="1.6"/>')
+    parts.append(
+        f'<circle cx="{X:.1f}" cy="{Y:.1f}" r="5" fill="#fff" stroke="#000" stroke-width="1.6"/>'
+    )
     parts.append(f'<circle cx="{X:.1f}" cy="{Y:.1f}" r="1.8" fill="#000"/>')
-    anchor = "start" if X < LEFT + pw * 0.6 else "end"
+    anchor = "start" if LEFT + pw * 0.6 > X else "end"
     dx = 8 if anchor == "start" else -8
-    parts.append(f'<text x="{X + dx:.1f}" y="{Y - 8:.1f}" text-anchor="{anchor}">'
-                 f"this post{escape(' (' + label + ')') if label else ''}</text>")
+    parts.append(
+        f'<text x="{X + dx:.1f}" y="{Y - 8:.1f}" text-anchor="{anchor}">'
+        f"this post{escape(' (' + label + ')') if label else ''}</text>"
+    )
     parts.append("</svg>")
     return "".join(parts)

@@ -66,9 +66,23 @@ from typing import Any
 from fieldcheck.store.paths import default_log_path
 
 __all__ = [
-    "Attachment", "AttachmentProblem", "ExportTable", "ImportResult", "IntegrityReport", "Log",
-    "LogError", "Observation", "PostView", "RerateResult", "Review", "RowError", "Site",
-    "StoredRating", "Visit", "default_log_path", "seed_demo",
+    "Attachment",
+    "AttachmentProblem",
+    "ExportTable",
+    "ImportResult",
+    "IntegrityReport",
+    "Log",
+    "LogError",
+    "Observation",
+    "PostView",
+    "RerateResult",
+    "Review",
+    "RowError",
+    "Site",
+    "StoredRating",
+    "Visit",
+    "default_log_path",
+    "seed_demo",
 ]
 
 

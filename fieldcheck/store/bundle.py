@@ -64,25 +64,35 @@ def manifest_path(path: Path) -> Path:
 
 def snapshot_path(path: Path) -> Path:
     """The snapshot named by ``path`` (either the snapshot itself or its manifest)."""
-    return path.with_name(path.name[: -len(".json")]) if path.name.endswith(SUFFIX + ".json") else path
+    return (
+        path.with_name(path.name[: -len(".json")]) if path.name.endswith(SUFFIX + ".json") else path
+    )
 
 
 def _uri(path: Path, mode: str) -> str:
     return f"file:{urllib.parse.quote(str(Path(path).resolve()))}?mode={mode}"
 
 
-def connect_ro(path: Path, *, immutable: bool = False, query_only: bool = True) -> sqlite3.Connection:
+def connect_ro(
+    path: Path, *, immutable: bool = False, query_only: bool = True
+) -> sqlite3.Connection:
     uri = _uri(path, "ro") + ("&immutable=1" if immutable else "")
-    conn = sqlite3.connect(uri, uri=True, timeout=BUSY_TIMEOUT_S, isolation_level=None,
-                           check_same_thread=False)
+    conn = sqlite3.connect(
+        uri, uri=True, timeout=BUSY_TIMEOUT_S, isolation_level=None, check_same_thread=False
+    )
     if query_only:
         conn.execute("PRAGMA query_only=ON")
     return conn
 
 
 def connect_rw(path: Path) -> sqlite3.Connection:
-    conn = sqlite3.connect(_uri(path, "rw"), uri=True, timeout=BUSY_TIMEOUT_S,
-                           isolation_level=None, check_same_thread=False)
+    conn = sqlite3.connect(
+        _uri(path, "rw"),
+        uri=True,
+        timeout=BUSY_TIMEOUT_S,
+        isolation_level=None,
+        check_same_thread=False,
+    )
     conn.execute("PRAGMA synchronous=FULL")
     conn.execute("PRAGMA foreign_keys=ON")
     conn.execute("PRAGMA cache_size=-65536")
@@ -90,7 +100,9 @@ def connect_rw(path: Path) -> sqlite3.Connection:
 
 
 def _tables(conn: sqlite3.Connection, schema: str = "main") -> set[str]:
-    return {r[0] for r in conn.execute(f"SELECT name FROM {schema}.sqlite_master WHERE type='table'")}
+    return {
+        r[0] for r in conn.execute(f"SELECT name FROM {schema}.sqlite_master WHERE type='table'")
+    }
 
 
 def _columns(conn: sqlite3.Connection, table: str, schema: str = "main") -> list[str]:
@@ -211,7 +223,9 @@ def write_bundle(
                 counts = [
                     conn.execute(
                         f"SELECT count(*) FROM main.{t.name} WHERE device_id = ? AND device_seq "
-                        "BETWEEN ? AND ?", [dev, lo, hi]).fetchone()[0]
+                        "BETWEEN ? AND ?",
+                        [dev, lo, hi],
+                    ).fetchone()[0]
                     for dev, (lo, hi) in ranges.items()
                 ]
                 totals[t.name] = sum(counts)
@@ -315,13 +329,22 @@ def read_manifest(path: Path) -> tuple[Path, dict]:
             "bundle, nothing was changed"
         ) from None
     except (OSError, UnicodeDecodeError) as exc:
-        raise TransferRefused(f"the manifest of bundle {name} cannot be read ({exc}); nothing was changed") from None
+        raise TransferRefused(
+            f"the manifest of bundle {name} cannot be read ({exc}); nothing was changed"
+        ) from None
     try:
         m = json.loads(text)
         if m.get("format") != FORMAT:
             raise ValueError("not a fieldcheck bundle manifest")
-        for key in ("sender_device", "schema_version", "snapshot_bytes", "snapshot_sha256",
-                    "tables", "ranges", "vector"):
+        for key in (
+            "sender_device",
+            "schema_version",
+            "snapshot_bytes",
+            "snapshot_sha256",
+            "tables",
+            "ranges",
+            "vector",
+        ):
             if key not in m:
                 raise ValueError(f"no {key}")
         int(m["schema_version"])
@@ -344,7 +367,9 @@ def read_bundle(path: Path) -> Bundle:
     name = snap.name
     check_schema(int(m["schema_version"]), SCHEMA_VERSION)
     if not snap.is_file():
-        raise TransferRefused(f"the bundle {name} is missing beside its manifest; nothing was changed")
+        raise TransferRefused(
+            f"the bundle {name} is missing beside its manifest; nothing was changed"
+        )
     size = snap.stat().st_size
     if size != int(m["snapshot_bytes"]):
         raise TransferRefused(
@@ -366,20 +391,30 @@ def verify_rows(bundle: Bundle) -> None:
     try:
         conn = connect_ro(bundle.snapshot, immutable=True)
     except sqlite3.Error as exc:
-        raise TransferRefused(f"the bundle {name} cannot be opened ({exc}); nothing was changed") from None
+        raise TransferRefused(
+            f"the bundle {name} cannot be opened ({exc}); nothing was changed"
+        ) from None
     try:
         found = _digests(conn, "main")
         for t in SYNC_TABLES:  # every row inside the seq ranges the manifest declares
             if t.origin and t.name in found:
-                found[t.name]["in_ranges"] = _in_ranges(conn, "main", t.name, bundle.manifest["ranges"])
+                found[t.name]["in_ranges"] = _in_ranges(
+                    conn, "main", t.name, bundle.manifest["ranges"]
+                )
     except sqlite3.Error as exc:
-        raise TransferRefused(f"the bundle {name} cannot be read ({exc}); nothing was changed") from None
+        raise TransferRefused(
+            f"the bundle {name} cannot be read ({exc}); nothing was changed"
+        ) from None
     finally:
         conn.close()
     origin = {t.name for t in SYNC_TABLES if t.origin}
     for table, want in bundle.manifest["tables"].items():
         got = found.get(table)
-        if got is None or got["rows"] != int(want["rows"]) or got["ids_sha256"] != want.get("ids_sha256"):
+        if (
+            got is None
+            or got["rows"] != int(want["rows"])
+            or got["ids_sha256"] != want.get("ids_sha256")
+        ):
             raise TransferRefused(
                 f"the bundle {name} does not match its manifest in table {table} (tampered or "
                 "damaged); copy it again from the sender, nothing was changed"
@@ -455,8 +490,9 @@ class SqliteTarget:
                 self.conn.execute("ROLLBACK")
             raise
 
-    def insert_missing(self, table: str, columns: Sequence[str], source,
-                       progress: Callable[[int], None]) -> int:
+    def insert_missing(
+        self, table: str, columns: Sequence[str], source, progress: Callable[[int], None]
+    ) -> int:
         cols = ",".join(columns)
         top = self.conn.execute(f"SELECT max(rowid) FROM {self.src}.{table}").fetchone()[0] or 0
         inserted = 0
@@ -472,7 +508,9 @@ class SqliteTarget:
         return inserted
 
     def set_firm(self, firm_id: str) -> None:
-        self.conn.execute("INSERT OR REPLACE INTO meta (key, value) VALUES ('firm_id', ?)", [firm_id])
+        self.conn.execute(
+            "INSERT OR REPLACE INTO meta (key, value) VALUES ('firm_id', ?)", [firm_id]
+        )
 
     def record_received(self, sender: str, ranges: Mapping[str, Sequence[int]]) -> None:
         stamp = time.strftime("%Y-%m-%dT%H:%M:%S%z")
@@ -544,8 +582,15 @@ def import_into(
         conn.execute("ATTACH DATABASE ? AS bundle", [snap_uri])
         try:
             have = vector(conn)
-            return merge(SqliteTarget(conn, office=office), header, AttachedSource(conn), have,
-                         progress, stage, prepared=(adopt,))
+            return merge(
+                SqliteTarget(conn, office=office),
+                header,
+                AttachedSource(conn),
+                have,
+                progress,
+                stage,
+                prepared=(adopt,),
+            )
         except sqlite3.IntegrityError as exc:
             text = str(exc)
             if "FOREIGN KEY" in text:

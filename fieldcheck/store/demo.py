@@ -38,8 +38,12 @@ def demo_rows() -> list[dict[str, str]]:
 
 def seed_demo(log: Log) -> tuple[Site, list[Visit]]:
     """Write the demo survey into ``log`` (one transaction per action, as a person would)."""
-    site = log.add_site(SITE_NAME, SITE_ADDRESS, notes="Invented demo: a bearing wall on the ground "
-                        "floor comes out; the header above it is shored until the new beam is in.")
+    site = log.add_site(
+        SITE_NAME,
+        SITE_ADDRESS,
+        notes="Invented demo: a bearing wall on the ground "
+        "floor comes out; the header above it is shored until the new beam is in.",
+    )
     visits: dict[str, Visit] = {}
     for key, (name, level, instruments) in VISITS.items():
         visits[key] = log.add_visit(site.id, INSPECTOR, level, name=name, instruments=instruments)
@@ -51,13 +55,29 @@ def seed_demo(log: Log) -> tuple[Site, list[Visit]]:
     # a correction: S3 was first measured to the top of the wedges, then re-measured
     s3 = log.head(members["S3"])
     if s3 is not None:
-        log.save_post(visits["shoring"].id, {**s3.record, "height": "8ft 1in",
-                      "notes": s3.record.get("notes", "") + "; height re-measured to the cap"},
-                      member_id=members["S3"])
+        log.save_post(
+            visits["shoring"].id,
+            {
+                **s3.record,
+                "height": "8ft 1in",
+                "notes": s3.record.get("notes", "") + "; height re-measured to the cap",
+            },
+            member_id=members["S3"],
+        )
     # a withdrawn post: a shore tagged twice by mistake
-    dup = log.save_post(visits["shoring"].id, {"tag": "S6", "location": "duplicate of S5",
-                        "size": "4x4", "height": "8ft 4in", "species": "douglas-fir-larch",
-                        "grade": "no2", "load": "2800lbf", "duration": "seven-days",
-                        "construction": "yes"})
+    dup = log.save_post(
+        visits["shoring"].id,
+        {
+            "tag": "S6",
+            "location": "duplicate of S5",
+            "size": "4x4",
+            "height": "8ft 4in",
+            "species": "douglas-fir-larch",
+            "grade": "no2",
+            "load": "2800lbf",
+            "duration": "seven-days",
+            "construction": "yes",
+        },
+    )
     log.withdraw(dup.member_id, visits["shoring"].id, "tagged twice: the same shore as S5")
     return site, list(visits.values())

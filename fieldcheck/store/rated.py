@@ -39,7 +39,13 @@ class RatedRows:
 
 
 RATING_COLUMNS = (
-    "capacity_n", "demand_n", "ratio", "action", "governing", "flags", "summary_json",
+    "capacity_n",
+    "demand_n",
+    "ratio",
+    "action",
+    "governing",
+    "flags",
+    "summary_json",
 )
 
 

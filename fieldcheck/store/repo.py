@@ -32,8 +32,18 @@ VISIT_LEVELS = ("minimum", "standard", "detailed")  # how much was measured (jud
 REVIEW_KINDS = ("note", "sign-off")
 # columns that export adds beside the record; import drops them so an export re-imports
 EXPORT_ONLY_COLUMNS = (
-    "site", "visit", "member_id", "observation_id", "revised_at", "revised_by",
-    "ratio", "action", "capacity_kN", "demand_kN", "governing", "engine_version",
+    "site",
+    "visit",
+    "member_id",
+    "observation_id",
+    "revised_at",
+    "revised_by",
+    "ratio",
+    "action",
+    "capacity_kN",
+    "demand_kN",
+    "governing",
+    "engine_version",
 )
 
 
@@ -72,9 +82,9 @@ def new_ids(n: int) -> list[str]:
     hexed[:, 1::2] = _HEX[raw & 15]
     txt = np.full((n, 36), ord("-"), dtype=np.uint8)
     for a, b, o in ((0, 8, 0), (8, 12, 9), (12, 16, 14), (16, 20, 19), (20, 32, 24)):
-        txt[:, o:o + b - a] = hexed[:, a:b]
+        txt[:, o : o + b - a] = hexed[:, a:b]
     flat = txt.tobytes().decode("ascii")
-    return [flat[k:k + 36] for k in range(0, 36 * n, 36)]
+    return [flat[k : k + 36] for k in range(0, 36 * n, 36)]
 
 
 def new_id() -> str:
@@ -208,7 +218,9 @@ class AttachmentProblem:
 
     def sentence(self) -> str:
         if self.problem == "missing":
-            return f"photo {self.attachment.path} is missing (recorded {self.attachment.created_at})"
+            return (
+                f"photo {self.attachment.path} is missing (recorded {self.attachment.created_at})"
+            )
         return (
             f"photo {self.attachment.path} has changed since it was attached "
             f"(sha256 no longer {self.attachment.sha256[:12]}...)"
@@ -306,7 +318,9 @@ class Log:
         newer or foreign file is refused with one sentence (LogError, a ValueError)."""
         path = Path(path) if path is not None else default_log_path()
         if path.exists() and path.is_dir():
-            raise LogError(f"the survey log {path} is a folder; give a file name such as {path}/survey.db")
+            raise LogError(
+                f"the survey log {path} is a folder; give a file name such as {path}/survey.db"
+            )
         found: dict[str, int] = {}
 
         def inspect(db: Database) -> None:
@@ -433,7 +447,8 @@ class Log:
             (seq,) = self._seqs(1)
             site = Site(new_id(), name, address, notes, self.device_id, self.author, now())
             self._insert(
-                "sites", _SITE_COLS,
+                "sites",
+                _SITE_COLS,
                 [(site.id, name, address, notes, *self._origin(seq, site.created_at))],
             )
         return site
@@ -474,13 +489,34 @@ class Log:
             self.site(site_id)
             (seq,) = self._seqs(1)
             v = Visit(
-                new_id(), site_id, name, inspector, started, level, tuple(instruments), notes,
-                self.device_id, self.author, now(),
+                new_id(),
+                site_id,
+                name,
+                inspector,
+                started,
+                level,
+                tuple(instruments),
+                notes,
+                self.device_id,
+                self.author,
+                now(),
             )
             self._insert(
-                "visits", _VISIT_COLS,
-                [(v.id, site_id, name, inspector, started, _dumps(list(v.instruments)), level,
-                  notes, *self._origin(seq, v.created_at))],
+                "visits",
+                _VISIT_COLS,
+                [
+                    (
+                        v.id,
+                        site_id,
+                        name,
+                        inspector,
+                        started,
+                        _dumps(list(v.instruments)),
+                        level,
+                        notes,
+                        *self._origin(seq, v.created_at),
+                    )
+                ],
             )
         return v
 
@@ -533,21 +569,39 @@ class Log:
             if member_id is None:
                 member_id = new_id()
                 self._insert(
-                    "members", _MEMBER_COLS,
-                    [(member_id, visit.site_id, rec.get("tag", ""), *self._origin(next(seqs), created))],
+                    "members",
+                    _MEMBER_COLS,
+                    [
+                        (
+                            member_id,
+                            visit.site_id,
+                            rec.get("tag", ""),
+                            *self._origin(next(seqs), created),
+                        )
+                    ],
                 )
             else:
                 head = self._head(member_id)
                 if head is None:
                     raise ValueError(f"post {member_id} is not in this log; save it as a new post")
             obs = Observation(
-                new_id(), member_id, visit_id, head.id if head else None, False, "", rec,
-                self.device_id, next(seqs), self.author, created,
+                new_id(),
+                member_id,
+                visit_id,
+                head.id if head else None,
+                False,
+                "",
+                rec,
+                self.device_id,
+                next(seqs),
+                self.author,
+                created,
             )
             self._insert("observations", _OBS_COLS, [_obs_row(obs)])
             if row is not None:
                 self._insert(
-                    "ratings", _RATING_COLS,
+                    "ratings",
+                    _RATING_COLS,
                     [(new_id(), obs.id, version, stamp, *row, *self._origin(next(seqs), created))],
                 )
         return obs
@@ -563,8 +617,17 @@ class Log:
                 raise ValueError("this post is already withdrawn; save it again to restore it")
             (seq,) = self._seqs(1)
             obs = Observation(
-                new_id(), member_id, visit_id, head.id, True, reason, head.record,
-                self.device_id, seq, self.author, now(),
+                new_id(),
+                member_id,
+                visit_id,
+                head.id,
+                True,
+                reason,
+                head.record,
+                self.device_id,
+                seq,
+                self.author,
+                now(),
             )
             self._insert("observations", _OBS_COLS, [_obs_row(obs)])
         return obs
@@ -687,7 +750,8 @@ class Log:
                 rids = new_ids(len(good))
                 origin = (self.device_id, self.author, created)
                 self._insert(
-                    "ratings", _RATING_COLS,
+                    "ratings",
+                    _RATING_COLS,
                     (
                         (rid, oid, version, stamp, *row, origin[0], seq, origin[1], origin[2])
                         for (oid, row), seq, rid in zip(good, seqs, rids, strict=True)
@@ -723,20 +787,39 @@ class Log:
             member_ids, obs_ids, rating_ids = ids[0::3], ids[1::3], iter(ids[2::3])
             dev, who = self.device_id, self.author
             self._insert(
-                "members", _MEMBER_COLS,
-                [(mid, s.id, records[i].get("tag", ""), dev, next(seqs), who, created)
-                 for mid, i in zip(member_ids, ok, strict=True)],
+                "members",
+                _MEMBER_COLS,
+                [
+                    (mid, s.id, records[i].get("tag", ""), dev, next(seqs), who, created)
+                    for mid, i in zip(member_ids, ok, strict=True)
+                ],
             )
             self._insert(
-                "observations", _OBS_COLS,
-                [(oid, mid, v.id, None, 0, "", _dumps(records[i]), dev, next(seqs), who, created)
-                 for oid, mid, i in zip(obs_ids, member_ids, ok, strict=True)],
+                "observations",
+                _OBS_COLS,
+                [
+                    (oid, mid, v.id, None, 0, "", _dumps(records[i]), dev, next(seqs), who, created)
+                    for oid, mid, i in zip(obs_ids, member_ids, ok, strict=True)
+                ],
             )
             rows_ = result.rows
             self._insert(
-                "ratings", _RATING_COLS,
-                [(next(rating_ids), oid, version, stamp, *rows_[i], dev, next(seqs), who, created)
-                 for oid, i in zip(obs_ids, ok, strict=True)],
+                "ratings",
+                _RATING_COLS,
+                [
+                    (
+                        next(rating_ids),
+                        oid,
+                        version,
+                        stamp,
+                        *rows_[i],
+                        dev,
+                        next(seqs),
+                        who,
+                        created,
+                    )
+                    for oid, i in zip(obs_ids, ok, strict=True)
+                ],
             )
         return ImportResult(len(ok), result.errors, s, v)
 
@@ -778,16 +861,31 @@ class Log:
         """Record a photo of a revision by path and sha256 (the file itself stays where it is)."""
         p = Path(photo_path).expanduser()
         if not p.is_file():
-            raise ValueError(f"photo {p} is not a file; give the path of a photo, e.g. ~/photos/P1.jpg")
+            raise ValueError(
+                f"photo {p} is not a file; give the path of a photo, e.g. ~/photos/P1.jpg"
+            )
         digest, size = _sha256(p)
         with self._write():
             obs = self.observation(observation_id)
             (seq,) = self._seqs(1)
-            a = Attachment(new_id(), obs.id, obs.member_id, str(p.resolve()), digest, size, caption, now())
+            a = Attachment(
+                new_id(), obs.id, obs.member_id, str(p.resolve()), digest, size, caption, now()
+            )
             self._insert(
-                "attachments", _ATT_COLS,
-                [(a.id, a.observation_id, a.member_id, a.path, digest, size, caption,
-                  *self._origin(seq, a.created_at))],
+                "attachments",
+                _ATT_COLS,
+                [
+                    (
+                        a.id,
+                        a.observation_id,
+                        a.member_id,
+                        a.path,
+                        digest,
+                        size,
+                        caption,
+                        *self._origin(seq, a.created_at),
+                    )
+                ],
             )
         return a
 
@@ -826,11 +924,23 @@ class Log:
             raise ValueError(f"review kind {kind!r} is not known; use note or sign-off")
         with self._write():
             (seq,) = self._seqs(1)
-            r = Review(new_id(), kind, text, member_id, observation_id, visit_id, self.author, now())
+            r = Review(
+                new_id(), kind, text, member_id, observation_id, visit_id, self.author, now()
+            )
             self._insert(
-                "reviews", _REVIEW_COLS,
-                [(r.id, member_id, observation_id, visit_id, kind, text,
-                  *self._origin(seq, r.created_at))],
+                "reviews",
+                _REVIEW_COLS,
+                [
+                    (
+                        r.id,
+                        member_id,
+                        observation_id,
+                        visit_id,
+                        kind,
+                        text,
+                        *self._origin(seq, r.created_at),
+                    )
+                ],
             )
         return r
 
@@ -838,7 +948,9 @@ class Log:
         if member_id is None:
             rows = self.db.query("SELECT * FROM reviews ORDER BY rowid")
         else:
-            rows = self.db.query("SELECT * FROM reviews WHERE member_id = ? ORDER BY rowid", [member_id])
+            rows = self.db.query(
+                "SELECT * FROM reviews WHERE member_id = ? ORDER BY rowid", [member_id]
+            )
         return [_review(r) for r in rows]
 
     # ---- integrity
@@ -865,12 +977,25 @@ class Log:
 _ORIGIN_COLS = ("device_id", "device_seq", "author", "created_at")
 _SITE_COLS = ("id", "name", "address", "notes", *_ORIGIN_COLS)
 _VISIT_COLS = (
-    "id", "site_id", "name", "inspector", "started_at", "instruments", "level", "notes",
+    "id",
+    "site_id",
+    "name",
+    "inspector",
+    "started_at",
+    "instruments",
+    "level",
+    "notes",
     *_ORIGIN_COLS,
 )
 _MEMBER_COLS = ("id", "site_id", "tag", *_ORIGIN_COLS)
 _OBS_COLS = (
-    "id", "member_id", "visit_id", "supersedes", "withdrawn", "reason", "record_json",
+    "id",
+    "member_id",
+    "visit_id",
+    "supersedes",
+    "withdrawn",
+    "reason",
+    "record_json",
     *_ORIGIN_COLS,
 )
 
@@ -882,16 +1007,31 @@ def _spread_errors(errors: list[RowError], which: list[int]) -> list[RowError]:
     by_record: dict[int, list[RowError]] = {}
     for e in errors:
         by_record.setdefault(e.row, []).append(e)
-    return [RowError(i, e.column, e.message)
-            for i, u in enumerate(which) if u in by_record for e in by_record[u]]
+    return [
+        RowError(i, e.column, e.message)
+        for i, u in enumerate(which)
+        if u in by_record
+        for e in by_record[u]
+    ]
 
 
 _RATING_COLS = (
-    "id", "observation_id", "engine_version", "stamp_id", *rated.RATING_COLUMNS,
+    "id",
+    "observation_id",
+    "engine_version",
+    "stamp_id",
+    *rated.RATING_COLUMNS,
     *_ORIGIN_COLS,
 )
 _ATT_COLS = (
-    "id", "observation_id", "member_id", "path", "sha256", "size_bytes", "caption", *_ORIGIN_COLS,
+    "id",
+    "observation_id",
+    "member_id",
+    "path",
+    "sha256",
+    "size_bytes",
+    "caption",
+    *_ORIGIN_COLS,
 )
 _REVIEW_COLS = ("id", "member_id", "observation_id", "visit_id", "kind", "text", *_ORIGIN_COLS)
 _EXPORT_ONLY = frozenset(EXPORT_ONLY_COLUMNS)
@@ -920,58 +1060,122 @@ ORDER BY m.rowid
 
 def _obs_row(o: Observation) -> tuple:
     return (
-        o.id, o.member_id, o.visit_id, o.supersedes, int(o.withdrawn), o.reason, _dumps(o.record),
-        o.device_id, o.device_seq, o.author, o.created_at,
+        o.id,
+        o.member_id,
+        o.visit_id,
+        o.supersedes,
+        int(o.withdrawn),
+        o.reason,
+        _dumps(o.record),
+        o.device_id,
+        o.device_seq,
+        o.author,
+        o.created_at,
     )
 
 
 def _site(r: dict) -> Site:
-    return Site(r["id"], r["name"], r["address"], r["notes"], r["device_id"], r["author"], r["created_at"])
+    return Site(
+        r["id"], r["name"], r["address"], r["notes"], r["device_id"], r["author"], r["created_at"]
+    )
 
 
 def _visit(r: dict) -> Visit:
     return Visit(
-        r["id"], r["site_id"], r["name"], r["inspector"], r["started_at"], r["level"],
-        tuple(json.loads(r["instruments"])), r["notes"], r["device_id"], r["author"], r["created_at"],
+        r["id"],
+        r["site_id"],
+        r["name"],
+        r["inspector"],
+        r["started_at"],
+        r["level"],
+        tuple(json.loads(r["instruments"])),
+        r["notes"],
+        r["device_id"],
+        r["author"],
+        r["created_at"],
     )
 
 
 def _observation(r: dict) -> Observation:
     return Observation(
-        r["id"], r["member_id"], r["visit_id"], r["supersedes"], bool(r["withdrawn"]), r["reason"],
-        json.loads(r["record_json"]), r["device_id"], r["device_seq"], r["author"], r["created_at"],
+        r["id"],
+        r["member_id"],
+        r["visit_id"],
+        r["supersedes"],
+        bool(r["withdrawn"]),
+        r["reason"],
+        json.loads(r["record_json"]),
+        r["device_id"],
+        r["device_seq"],
+        r["author"],
+        r["created_at"],
     )
 
 
 def _rating(r: dict) -> StoredRating:
     return StoredRating(
-        r["id"], r["observation_id"], r["engine_version"], json.loads(r["data_editions"] or "{}"),
-        r["capacity_n"], r["demand_n"], r["ratio"], r["action"], action_label(r["action"]),
-        r["governing"], r["flags"], _loads(r["summary_json"]), r["created_at"],
+        r["id"],
+        r["observation_id"],
+        r["engine_version"],
+        json.loads(r["data_editions"] or "{}"),
+        r["capacity_n"],
+        r["demand_n"],
+        r["ratio"],
+        r["action"],
+        action_label(r["action"]),
+        r["governing"],
+        r["flags"],
+        _loads(r["summary_json"]),
+        r["created_at"],
     )
 
 
 def _post_view(r: dict) -> PostView:
     rec = json.loads(r["record_json"])
     return PostView(
-        r["member_id"], r["id"], r["visit_id"], r["site_id"], rec.get("tag", ""),
-        rec.get("location", ""), rec, r["ratio"], r["action"], action_label(r["action"]),
-        r["capacity_n"], r["demand_n"], r["governing"] or "", r["engine_version"],
-        r["created_at"], r["author"], r["nheads"] > 1,
+        r["member_id"],
+        r["id"],
+        r["visit_id"],
+        r["site_id"],
+        rec.get("tag", ""),
+        rec.get("location", ""),
+        rec,
+        r["ratio"],
+        r["action"],
+        action_label(r["action"]),
+        r["capacity_n"],
+        r["demand_n"],
+        r["governing"] or "",
+        r["engine_version"],
+        r["created_at"],
+        r["author"],
+        r["nheads"] > 1,
     )
 
 
 def _attachment(r: dict) -> Attachment:
     return Attachment(
-        r["id"], r["observation_id"], r["member_id"], r["path"], r["sha256"], r["size_bytes"],
-        r["caption"], r["created_at"],
+        r["id"],
+        r["observation_id"],
+        r["member_id"],
+        r["path"],
+        r["sha256"],
+        r["size_bytes"],
+        r["caption"],
+        r["created_at"],
     )
 
 
 def _review(r: dict) -> Review:
     return Review(
-        r["id"], r["kind"], r["text"], r["member_id"], r["observation_id"], r["visit_id"],
-        r["author"], r["created_at"],
+        r["id"],
+        r["kind"],
+        r["text"],
+        r["member_id"],
+        r["observation_id"],
+        r["visit_id"],
+        r["author"],
+        r["created_at"],
     )
 
 
@@ -1012,8 +1216,23 @@ def _registry_columns() -> list[str]:
 
 
 _FALLBACK_ORDER = (
-    "tag", "location", "size", "section", "diameter", "height", "brace1", "brace2", "top",
-    "bottom", "species", "grade", "method", "duration", "moisture", "load", "notes",
+    "tag",
+    "location",
+    "size",
+    "section",
+    "diameter",
+    "height",
+    "brace1",
+    "brace2",
+    "top",
+    "bottom",
+    "species",
+    "grade",
+    "method",
+    "duration",
+    "moisture",
+    "load",
+    "notes",
 )
 
 
@@ -1032,7 +1251,9 @@ def _ensure_meta(db: Database) -> dict[str, str]:
             db.execute("INSERT OR IGNORE INTO meta VALUES ('created_at', ?)", [now()])
         meta = _read_meta(db)
     if meta.get("schema_version") != str(SCHEMA_VERSION):
-        db.execute("INSERT OR REPLACE INTO meta VALUES ('schema_version', ?)", [str(SCHEMA_VERSION)])
+        db.execute(
+            "INSERT OR REPLACE INTO meta VALUES ('schema_version', ?)", [str(SCHEMA_VERSION)]
+        )
         meta["schema_version"] = str(SCHEMA_VERSION)
     return meta
 

@@ -34,7 +34,13 @@ _ORIGIN = """
     UNIQUE (device_id, device_seq)"""
 
 APPEND_ONLY_V1 = (
-    "sites", "visits", "members", "observations", "engine_stamps", "ratings", "attachments",
+    "sites",
+    "visits",
+    "members",
+    "observations",
+    "engine_stamps",
+    "ratings",
+    "attachments",
 )
 APPEND_ONLY_V2 = ("reviews",)
 APPEND_ONLY = APPEND_ONLY_V1 + APPEND_ONLY_V2

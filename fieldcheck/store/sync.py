@@ -43,8 +43,14 @@ from fieldcheck.store.merge import (
 )
 
 __all__ = [
-    "Conflict", "ImportSummary", "SyncSummary", "TransferRefused", "export_bundle",
-    "import_bundle", "open_conflicts", "sync",
+    "Conflict",
+    "ImportSummary",
+    "SyncSummary",
+    "TransferRefused",
+    "export_bundle",
+    "import_bundle",
+    "open_conflicts",
+    "sync",
 ]
 
 
@@ -83,7 +89,9 @@ class SyncSummary:
     mode: str  # "file" or "folder"
     sent: dict[str, int] = field(default_factory=dict)
     received: dict[str, int] = field(default_factory=dict)
-    conflicts: list[str] = field(default_factory=list)  # open, in the office (file) or here (folder)
+    conflicts: list[str] = field(
+        default_factory=list
+    )  # open, in the office (file) or here (folder)
     new_conflicts: list[str] = field(default_factory=list)
     refused: list[str] = field(default_factory=list)
     firm_id: str = ""
@@ -113,8 +121,10 @@ class SyncSummary:
             if self.received:
                 s += f" ({_fmt_tables(self.received)})"
         if self.conflicts:
-            s += (f"; {len(self.conflicts)} posts revised in two places without seeing each other "
-                  f"await review ({len(self.new_conflicts)} new)")
+            s += (
+                f"; {len(self.conflicts)} posts revised in two places without seeing each other "
+                f"await review ({len(self.new_conflicts)} new)"
+            )
         if self.refused:
             s += f"; {len(self.refused)} bundles refused"
         return s + "."
@@ -144,8 +154,9 @@ def open_conflicts(log) -> list[Conflict]:
 # ----------------------------------------------------------------------------- by hand
 
 
-def export_bundle(log, out_path, since: dict[str, int] | None = None,
-                  progress: Progress | None = None) -> Path:
+def export_bundle(
+    log, out_path, since: dict[str, int] | None = None, progress: Progress | None = None
+) -> Path:
     """Write the rows of ``log`` a receiver holding ``since`` lacks (None: all) as a bundle."""
     out = Path(out_path)
     if out.is_dir():
@@ -158,7 +169,9 @@ def export_bundle(log, out_path, since: dict[str, int] | None = None,
 def import_bundle(log, bundle_path, progress: Progress | None = None) -> ImportSummary:
     """Verify a bundle, then take the rows ``log`` lacks in one transaction."""
     if getattr(log, "readonly", False):
-        raise TransferRefused(f"the survey log {log.path} was opened read-only; nothing was changed")
+        raise TransferRefused(
+            f"the survey log {log.path} was opened read-only; nothing was changed"
+        )
     b = bf.read_bundle(Path(bundle_path))
     with _locked(log):
         res = bf.import_into(Path(log.path), b, office=_is_office(log), progress=progress)
@@ -167,8 +180,14 @@ def import_bundle(log, bundle_path, progress: Progress | None = None) -> ImportS
 
 def _import_summary(b: bf.Bundle, res: MergeResult) -> ImportSummary:
     return ImportSummary(
-        b.snapshot.name, b.header.sender_device, b.rows, res.inserted, res.conflicts,
-        res.new_conflicts, res.adopted_firm, res.gaps,
+        b.snapshot.name,
+        b.header.sender_device,
+        b.rows,
+        res.inserted,
+        res.conflicts,
+        res.new_conflicts,
+        res.adopted_firm,
+        res.gaps,
     )
 
 
@@ -214,7 +233,9 @@ def _stage(progress: Progress | None, prefix: str) -> Progress | None:
 def sync(log, office_path, progress: Progress | None = None) -> SyncSummary:
     """Sync ``log`` (a field log) with an office log file or a shared folder (see module doc)."""
     if getattr(log, "readonly", False):
-        raise TransferRefused(f"the survey log {log.path} was opened read-only; open it for writing to sync")
+        raise TransferRefused(
+            f"the survey log {log.path} was opened read-only; open it for writing to sync"
+        )
     office = Path(office_path).expanduser()
     t0 = time.perf_counter()
     if office.is_dir():
@@ -229,7 +250,9 @@ def _sync_file(log, office: Path, progress: Progress | None) -> SyncSummary:
     from fieldcheck.store import Log
 
     if Path(log.path).resolve() == office.resolve():
-        raise TransferRefused("the field log and the office log are the same file; give the office log")
+        raise TransferRefused(
+            "the field log and the office log are the same file; give the office log"
+        )
     if not office.exists():
         Log.open(office, author="office").close()  # a new, empty office log
     # the office as it stands: refuses a newer, foreign or damaged file before anything else
@@ -245,8 +268,9 @@ def _sync_file(log, office: Path, progress: Progress | None) -> SyncSummary:
         office_vec, _ = _vector_of(office)
         out = Path(tmp) / f"to-office{bf.SUFFIX}"
         with _locked(log):
-            m = bf.write_bundle(field_path, out, base=office_vec, skip_empty=True,
-                                progress=_stage(progress, "send"))
+            m = bf.write_bundle(
+                field_path, out, base=office_vec, skip_empty=True, progress=_stage(progress, "send")
+            )
         if m is not None:
             b = bf.read_bundle(out)
             res = bf.import_into(office, b, office=True, progress=_stage(progress, "send"))
@@ -255,13 +279,15 @@ def _sync_file(log, office: Path, progress: Progress | None) -> SyncSummary:
         # 2. office -> field: every row the field lacks (reviews, assignments, other inspectors)
         field_vec, _ = _vector_of(field_path)
         back = Path(tmp) / f"from-office{bf.SUFFIX}"
-        m = bf.write_bundle(office, back, base=field_vec, skip_empty=True,
-                            progress=_stage(progress, "receive"))
+        m = bf.write_bundle(
+            office, back, base=field_vec, skip_empty=True, progress=_stage(progress, "receive")
+        )
         if m is not None:
             b = bf.read_bundle(back)
             with _locked(log):
-                res = bf.import_into(field_path, b, office=False,
-                                     progress=_stage(progress, "receive"))
+                res = bf.import_into(
+                    field_path, b, office=False, progress=_stage(progress, "receive")
+                )
             summary.received = res.inserted
     conn = bf.connect_ro(office)
     try:
@@ -297,8 +323,9 @@ def _sync_folder(log, folder: Path, progress: Progress | None) -> SyncSummary:
         try:
             b = bf.read_bundle(snap)
             with _locked(log):
-                res = bf.import_into(field_path, b, office=False,
-                                     progress=_stage(progress, "receive"))
+                res = bf.import_into(
+                    field_path, b, office=False, progress=_stage(progress, "receive")
+                )
         except TransferRefused as exc:
             summary.refused.append(str(exc))
             continue
@@ -317,7 +344,8 @@ def _sync_folder(log, folder: Path, progress: Progress | None) -> SyncSummary:
     ranges = delta(ours, base)
     prev = max(own, key=lambda sm: sum(sm[1]["vector"].values()), default=None)
     already = prev is not None and all(
-        d in prev[1]["ranges"] and int(prev[1]["ranges"][d][0]) <= lo
+        d in prev[1]["ranges"]
+        and int(prev[1]["ranges"][d][0]) <= lo
         and int(prev[1]["ranges"][d][1]) >= hi
         for d, (lo, hi) in ranges.items()
     )
@@ -339,8 +367,15 @@ def _sync_folder(log, folder: Path, progress: Progress | None) -> SyncSummary:
 
 
 def summary_json(s: SyncSummary) -> str:
-    return json.dumps({
-        "office": s.office, "mode": s.mode, "sent": s.sent, "received": s.received,
-        "conflicts": s.conflicts, "new_conflicts": s.new_conflicts, "refused": s.refused,
-        "seconds": round(s.seconds, 3),
-    })
+    return json.dumps(
+        {
+            "office": s.office,
+            "mode": s.mode,
+            "sent": s.sent,
+            "received": s.received,
+            "conflicts": s.conflicts,
+            "new_conflicts": s.new_conflicts,
+            "refused": s.refused,
+            "seconds": round(s.seconds, 3),
+        }
+    )

@@ -57,8 +57,9 @@ class FieldcheckApp(App[None]):
         Binding("f10", "report", "Report", id="report"),
     ]
 
-    def __init__(self, db: str | Path | None = None, units: str | None = None,
-                 *, seed_if_empty: bool = True) -> None:
+    def __init__(
+        self, db: str | Path | None = None, units: str | None = None, *, seed_if_empty: bool = True
+    ) -> None:
         super().__init__()
         self.units = units if units in UNIT_SYSTEMS else "us"
         self.store = LogThread(db, seed_if_empty=seed_if_empty)
@@ -101,8 +102,13 @@ class FieldcheckApp(App[None]):
     def _drafts_due(self) -> None:
         self._drafts_timer = None
         text = json.dumps(self.drafts, indent=1) if self.drafts else None
-        self.run_worker(partial(self._write_drafts, text, self._drafts_seq), thread=True,
-                        group="drafts", exit_on_error=False, description="write drafts")
+        self.run_worker(
+            partial(self._write_drafts, text, self._drafts_seq),
+            thread=True,
+            group="drafts",
+            exit_on_error=False,
+            description="write drafts",
+        )
 
     def _write_drafts(self, text: str | None, seq: int) -> None:
         f = self.drafts_file()
@@ -115,8 +121,12 @@ class FieldcheckApp(App[None]):
             try:
                 replace_file(f, text)
             except OSError as exc:
-                self.call_from_thread(self.notify, f"Could not keep drafts in {f}: {exc}",
-                                      severity="warning", markup=False)
+                self.call_from_thread(
+                    self.notify,
+                    f"Could not keep drafts in {f}: {exc}",
+                    severity="warning",
+                    markup=False,
+                )
 
     def save_drafts(self) -> None:
         """Write the drafts file now (leaving a post, quitting)."""
@@ -184,7 +194,8 @@ class FieldcheckApp(App[None]):
             seen.add(b.action)
             label = b.key_display or key
             yield SystemCommand(
-                b.description, f"{b.tooltip or b.description} (key: {label})",
+                b.description,
+                f"{b.tooltip or b.description} (key: {label})",
                 partial(self.call_later, active.node.run_action, b.action),
             )
 

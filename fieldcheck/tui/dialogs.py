@@ -100,7 +100,9 @@ class WithdrawDialog(ModalScreen[str | None]):
 
     def compose(self) -> ComposeResult:
         with Vertical(classes="dialog"):
-            yield Static(f"Withdraw post {escape(self.tag)}? It stays in its history.", classes="title")
+            yield Static(
+                f"Withdraw post {escape(self.tag)}? It stays in its history.", classes="title"
+            )
             yield Label("Reason (Enter withdraws, Esc cancels):")
             yield Input(placeholder="e.g. removed: beam in", id="reason")
 
@@ -121,7 +123,9 @@ class NewVisitDialog(ModalScreen[str | None]):
 
     def compose(self) -> ComposeResult:
         with Vertical(classes="dialog"):
-            yield Static("New visit (Enter on the last field makes it, Esc cancels)", classes="title")
+            yield Static(
+                "New visit (Enter on the last field makes it, Esc cancels)", classes="title"
+            )
             yield Label("Site (an existing name or a new one):")
             yield Input(placeholder="e.g. 14 Alder Row", id="site")
             yield Label("Visit:")
@@ -182,7 +186,9 @@ class ProgressDialog(ModalScreen[None]):
     def _progress(self, done: int, total: int | None, stage: str) -> None:
         bar = self.query_one("#bar", ProgressBar)
         bar.update(total=total if total else None, progress=done)
-        self.query_one("#stage", Static).update(f"{stage}: {done}" + (f" of {total}" if total else ""))
+        self.query_one("#stage", Static).update(
+            f"{stage}: {done}" + (f" of {total}" if total else "")
+        )
 
     def finish(self, summary: str, ok: bool = True) -> None:
         self.running = False
@@ -190,7 +196,9 @@ class ProgressDialog(ModalScreen[None]):
         bar = self.query_one("#bar", ProgressBar)
         if ok:
             bar.update(total=1, progress=1)
-        self.query_one("#summary", Static).update(("✓ " if ok else "✖ ") + summary + "\n(Esc closes)")
+        self.query_one("#summary", Static).update(
+            ("✓ " if ok else "✖ ") + summary + "\n(Esc closes)"
+        )
         self.app.last_summary = summary  # type: ignore[attr-defined]
         self.notify(summary, severity="information" if ok else "error", markup=False)
 
@@ -237,8 +245,9 @@ class SyncDialog(ProgressDialog):
         t0 = time.perf_counter()
         try:
             result = await self.app.store.call(  # type: ignore[attr-defined]
-                lambda log: sync(log, Path(path), progress=self.progress))
-        except Exception as exc:  # noqa: BLE001 - a sentence, never a traceback
+                lambda log: sync(log, Path(path), progress=self.progress)
+            )
+        except Exception as exc:
             self.finish(f"Sync failed: {exc}", ok=False)
             return
         text = result.sentence() if hasattr(result, "sentence") else str(result)
@@ -261,7 +270,9 @@ class ReportDialog(ProgressDialog):
     def on_mount(self) -> None:
         path = self.app.store.path  # type: ignore[attr-defined]
         suffix = f"-{self.visit_id[:8]}" if self.visit_id else ""
-        default = (path.parent / f"{path.stem}-report{suffix}.html") if path else Path("report.html")
+        default = (
+            (path.parent / f"{path.stem}-report{suffix}.html") if path else Path("report.html")
+        )
         self.query_one("#report-path", Input).value = str(default)
         try:
             import fieldcheck.report.html  # noqa: F401
@@ -286,9 +297,11 @@ class ReportDialog(ProgressDialog):
         t0 = time.perf_counter()
         try:
             out = await self.app.store.call(  # type: ignore[attr-defined]
-                lambda log: write_report(log, Path(path), site_id=self.site_id,
-                                         visit_id=self.visit_id, units=units))
-        except Exception as exc:  # noqa: BLE001
+                lambda log: write_report(
+                    log, Path(path), site_id=self.site_id, visit_id=self.visit_id, units=units
+                )
+            )
+        except Exception as exc:
             self.finish(f"Report failed: {exc}", ok=False)
             return
         self.finish(f"Report written to {out} ({time.perf_counter() - t0:.1f} s)")
@@ -321,11 +334,15 @@ class ConflictsScreen(ModalScreen[None]):
         if not rows:
             text = "✓ No open conflicts."
         else:
-            lines = [f"⚡ {len(rows)} post{'s' if len(rows) != 1 else ''} with two revisions made "
-                     "apart (open the post and save the right values to resolve):"]
+            lines = [
+                f"⚡ {len(rows)} post{'s' if len(rows) != 1 else ''} with two revisions made "
+                "apart (open the post and save the right values to resolve):"
+            ]
             for member, tag, hist in rows:
-                lines.append(f"  {escape(tag or member[:8])}: {len(hist)} revisions, latest by "
-                             f"{escape(hist[-1].author)} {hist[-1].created_at[:16]}")
+                lines.append(
+                    f"  {escape(tag or member[:8])}: {len(hist)} revisions, latest by "
+                    f"{escape(hist[-1].author)} {hist[-1].created_at[:16]}"
+                )
             text = "\n".join(lines)
         self.query_one("#conflicts-list", Static).update(text)
 

@@ -32,15 +32,39 @@ def _shape(bottom: str, top: str) -> tuple[callable, str] | None:
     s = math.sin
     table = {
         ("pinned", "pinned"): (lambda t: s(math.pi * t), "bows in one half-wave"),
-        ("fixed", "fixed"): (lambda t: (1 - math.cos(2 * math.pi * t)) / 2, "bows between the fixed ends"),
+        ("fixed", "fixed"): (
+            lambda t: (1 - math.cos(2 * math.pi * t)) / 2,
+            "bows between the fixed ends",
+        ),
         ("fixed", "pinned"): (lambda t: s(math.pi * t) * t / 0.62, "bows nearer the pinned top"),
-        ("pinned", "fixed"): (lambda t: s(math.pi * t) * (1 - t) / 0.62, "bows nearer the pinned bottom"),
-        ("fixed", "free"): (lambda t: 1 - math.cos(math.pi * t / 2), "flagpole: the free top sways"),
-        ("free", "fixed"): (lambda t: 1 - math.cos(math.pi * (1 - t) / 2), "flagpole: the free bottom sways"),
-        ("fixed", "guided"): (lambda t: (1 - math.cos(math.pi * t)) / 2, "the guided top sways, held square"),
-        ("guided", "fixed"): (lambda t: (1 + math.cos(math.pi * t)) / 2, "the guided bottom sways, held square"),
-        ("pinned", "guided"): (lambda t: s(math.pi * t / 2), "the guided top sways; the bottom turns"),
-        ("guided", "pinned"): (lambda t: s(math.pi * (1 - t) / 2), "the guided bottom sways; the top turns"),
+        ("pinned", "fixed"): (
+            lambda t: s(math.pi * t) * (1 - t) / 0.62,
+            "bows nearer the pinned bottom",
+        ),
+        ("fixed", "free"): (
+            lambda t: 1 - math.cos(math.pi * t / 2),
+            "flagpole: the free top sways",
+        ),
+        ("free", "fixed"): (
+            lambda t: 1 - math.cos(math.pi * (1 - t) / 2),
+            "flagpole: the free bottom sways",
+        ),
+        ("fixed", "guided"): (
+            lambda t: (1 - math.cos(math.pi * t)) / 2,
+            "the guided top sways, held square",
+        ),
+        ("guided", "fixed"): (
+            lambda t: (1 + math.cos(math.pi * t)) / 2,
+            "the guided bottom sways, held square",
+        ),
+        ("pinned", "guided"): (
+            lambda t: s(math.pi * t / 2),
+            "the guided top sways; the bottom turns",
+        ),
+        ("guided", "pinned"): (
+            lambda t: s(math.pi * (1 - t) / 2),
+            "the guided bottom sways; the top turns",
+        ),
     }
     return table.get(pair)
 

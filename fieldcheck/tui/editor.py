@@ -24,10 +24,17 @@ from textual import on, work
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, VerticalScroll
-from textual.screen import Screen
 from textual.css.query import NoMatches
+from textual.screen import Screen
 from textual.widgets import (
-    Collapsible, Footer, Header, Input, OptionList, Static, TabbedContent, TabPane,
+    Collapsible,
+    Footer,
+    Header,
+    Input,
+    OptionList,
+    Static,
+    TabbedContent,
+    TabPane,
 )
 from textual.widgets.option_list import Option
 
@@ -55,8 +62,15 @@ def quick_summary(rating: Any) -> dict[str, Any]:
     for name, c in rating.checks.items():
         if math.isnan(float(c.capacity_n[0])):
             continue
-        checks.append({"name": name, "label": c.label, "clause": c.clause,
-                       "ratio": num(c.ratio[0]), "capacity_kN": num(c.capacity_n[0], 1000.0)})
+        checks.append(
+            {
+                "name": name,
+                "label": c.label,
+                "clause": c.clause,
+                "ratio": num(c.ratio[0]),
+                "capacity_kN": num(c.capacity_n[0], 1000.0),
+            }
+        )
     act = int(rating.action[0])
     v = rating.values
     ax = int(v["axis"][0]) if "axis" in v else 1
@@ -66,8 +80,11 @@ def quick_summary(rating: Any) -> dict[str, Any]:
         "demand_kN": num(rating.demand_n[0], 1000.0),
         "demand_capacity_ratio": num(rating.ratio[0]),
         "governing_check": rating.governing_name(0),
-        "action": ACTIONS[act], "action_text": ACTION_TEXT[act], "due_days": DUE_DAYS[act],
-        "checks": checks, "warnings": rating.warnings(0),
+        "action": ACTIONS[act],
+        "action_text": ACTION_TEXT[act],
+        "due_days": DUE_DAYS[act],
+        "checks": checks,
+        "warnings": rating.warnings(0),
         "effective_length_factor": None if ke is None else float(ke[0]),
         "quick": True,
     }
@@ -83,8 +100,9 @@ def capacity_curve(batch: Any, heights_mm: np.ndarray) -> np.ndarray:
         from fieldcheck.engine.curves import capacity_vs_height
     except ImportError:
         k = len(heights_mm)
-        many = batch.take(np.zeros(k, int)).replace(height_mm=heights_mm, lu1_mm=np.nan,
-                                                    lu2_mm=np.nan)
+        many = batch.take(np.zeros(k, int)).replace(
+            height_mm=heights_mm, lu1_mm=np.nan, lu2_mm=np.nan
+        )
         return np.asarray(rate(many).capacity_n, dtype=float)
     return np.asarray(capacity_vs_height(batch, heights_mm), dtype=float).reshape(-1)
 
@@ -120,8 +138,9 @@ class PostEditor(Screen[None]):
         Binding("ctrl+down", "next_field", "Next field", show=False, id="next_field"),
     ]
 
-    def __init__(self, visit_id: str, member_id: str | None, record: dict[str, str],
-                 tag: str = "") -> None:
+    def __init__(
+        self, visit_id: str, member_id: str | None, record: dict[str, str], tag: str = ""
+    ) -> None:
         super().__init__()
         self.visit_id = visit_id
         self.site_id: str | None = None
@@ -168,19 +187,16 @@ class PostEditor(Screen[None]):
                         yield Static("", id="rating-checks")
                         yield Static("", id="rating-panel")
                         yield Static("", id="cautions", classes="cautions")
-                with TabPane("Work", id="working"):
-                    with VerticalScroll():
-                        yield Static("", id="working-panel")
-                with TabPane("Shape", id="shape"):
-                    with VerticalScroll():
-                        yield Static("", id="ends-panel", markup=False)
-                        yield Static("", id="plot-panel", markup=False)
+                with TabPane("Work", id="working"), VerticalScroll():
+                    yield Static("", id="working-panel")
+                with TabPane("Shape", id="shape"), VerticalScroll():
+                    yield Static("", id="ends-panel", markup=False)
+                    yield Static("", id="plot-panel", markup=False)
                 with TabPane("Fixes", id="remedies"):
                     yield Static("", id="remedy-help")
                     yield OptionList(id="remedy-list")
-                with TabPane("History", id="history"):
-                    with VerticalScroll():
-                        yield Static("", id="history-panel")
+                with TabPane("History", id="history"), VerticalScroll():
+                    yield Static("", id="history-panel")
         yield Footer()
 
     def on_mount(self) -> None:
@@ -195,8 +211,9 @@ class PostEditor(Screen[None]):
         else:
             self.query_one("#history-panel", Static).update("A new post: no revisions yet.")
         if self.draft_restored:
-            self.notify("Your unsaved draft of this post was restored (ctrl+s saves it).",
-                        markup=False)
+            self.notify(
+                "Your unsaved draft of this post was restored (ctrl+s saves it).", markup=False
+            )
 
     def units_changed(self) -> None:
         self.render_rating()
@@ -365,8 +382,13 @@ class PostEditor(Screen[None]):
 
     # a description of our own: Textual would otherwise build one from repr(rating), which
     # prints every array of the rating (~15 ms on the UI thread)
-    @work(thread=True, exclusive=True, group="summary", exit_on_error=False,
-          description="full summary")
+    @work(
+        thread=True,
+        exclusive=True,
+        group="summary",
+        exit_on_error=False,
+        description="full summary",
+    )
     def full_summary(self, rating: Any, generation: int) -> None:
         summary = rating.summary(0)
         self.app.call_from_thread(self._full_done, summary, generation)
@@ -403,8 +425,10 @@ class PostEditor(Screen[None]):
                 self._render_working()
             elif active == "shape":
                 self._render_shape()
-        except Exception as exc:  # noqa: BLE001 - a drawing problem must never lose the form
-            self.notify(f"Could not draw the {active} pane: {exc}", severity="warning", markup=False)
+        except Exception as exc:
+            self.notify(
+                f"Could not draw the {active} pane: {exc}", severity="warning", markup=False
+            )
 
     def _render_rating_pane(self, detail: bool) -> None:
         units = self.app.units  # type: ignore[attr-defined]
@@ -453,7 +477,9 @@ class PostEditor(Screen[None]):
             out.append("[b]Working (last good rating)[/b]" if self.stale else "[b]Working[/b]")
             for step in self.rating.working(0):
                 clause = f"  [dim]{present.escape(step.clause)}[/dim]" if step.clause else ""
-                out.append(f"{present.escape(step.label)}: [b]{present.escape(step.value)}[/b]{clause}")
+                out.append(
+                    f"{present.escape(step.label)}: [b]{present.escape(step.value)}[/b]{clause}"
+                )
         else:
             out.append("No rating yet.")
         self._update_static(self.query_one("#working-panel", Static), "\n".join(out))
@@ -461,8 +487,10 @@ class PostEditor(Screen[None]):
     def _render_shape(self) -> None:
         rec = self.record
         ke = self.summary.get("effective_length_factor") if self.summary else None
-        self._update_static(self.query_one("#ends-panel", Static), ends_drawing(
-            rec.get("top") or "pinned", rec.get("bottom") or "pinned", ke, height=7))
+        self._update_static(
+            self.query_one("#ends-panel", Static),
+            ends_drawing(rec.get("top") or "pinned", rec.get("bottom") or "pinned", ke, height=7),
+        )
         plot = self.query_one("#plot-panel", Static)
         if self.batch is None or self.rating is None:
             self._update_static(plot, "No plot until the post is rated.")
@@ -475,19 +503,34 @@ class PostEditor(Screen[None]):
         cap = float(self.rating.capacity_n[0])
         dem = float(self.rating.demand_n[0])
         text = braille_plot(
-            heights, caps, width=width, height=8, mark=(h, cap),
+            heights,
+            caps,
+            width=width,
+            height=8,
+            mark=(h, cap),
             hline=dem if math.isfinite(dem) and dem > 0 else None,
-            xfmt=lambda v: present.length(v, units), yfmt=lambda v: present.force(v, units),
+            xfmt=lambda v: present.length(v, units),
+            yfmt=lambda v: present.force(v, units),
         )
-        self._update_static(plot, "Capacity against height\n" + text
-                    + f"\n◆ this post: {present.length(h, units)}, {present.force(cap, units)}"
-                    + ("\n╌ D demand " + present.force(dem, units) if math.isfinite(dem) and dem > 0 else ""))
+        self._update_static(
+            plot,
+            "Capacity against height\n"
+            + text
+            + f"\n◆ this post: {present.length(h, units)}, {present.force(cap, units)}"
+            + (
+                "\n╌ D demand " + present.force(dem, units)
+                if math.isfinite(dem) and dem > 0
+                else ""
+            ),
+        )
 
     def _render_remedies(self) -> None:
         if self.query_one("#side", TabbedContent).active != "remedies":
             return  # drawn when its pane is shown: a hidden widget's update costs a full layout
         rems = list((self.summary or {}).get("remedies") or [])
-        if rems == self.remedies and self.query_one("#remedy-list", OptionList).option_count == len(rems):
+        if rems == self.remedies and self.query_one("#remedy-list", OptionList).option_count == len(
+            rems
+        ):
             return
         self.remedies = rems
         box = self.query_one("#remedy-list", OptionList)
@@ -517,7 +560,11 @@ class PostEditor(Screen[None]):
     # -- title, history ----------------------------------------------------------------------
     def _title(self) -> None:
         tag = self.record.get("tag") or self.tag or "new post"
-        state = "new, not saved" if self.member_id is None else ("unsaved changes" if self.dirty else "saved")
+        state = (
+            "new, not saved"
+            if self.member_id is None
+            else ("unsaved changes" if self.dirty else "saved")
+        )
         mark = "✎ " if self.dirty or self.member_id is None else "✓ "
         title = f"Post {present.escape(tag)} — {mark}{state}   (ctrl+s save, Esc back)"
         widget = self.query_one("#editor-title", Static)
@@ -532,8 +579,12 @@ class PostEditor(Screen[None]):
         prev: dict[str, str] = {}
         for k, obs in enumerate(hist, 1):
             what = "withdrawn: " + present.escape(obs.reason) if obs.withdrawn else ""
-            changed = [c for c in sorted(set(prev) | set(obs.record)) if prev.get(c) != obs.record.get(c)]
-            detail = ", ".join(f"{c} = {present.escape(obs.record.get(c, '(cleared)'))}" for c in changed[:8])
+            changed = [
+                c for c in sorted(set(prev) | set(obs.record)) if prev.get(c) != obs.record.get(c)
+            ]
+            detail = ", ".join(
+                f"{c} = {present.escape(obs.record.get(c, '(cleared)'))}" for c in changed[:8]
+            )
             if len(changed) > 8:
                 detail += f", … {len(changed) - 8} more"
             lines.append(f"{k}. {obs.created_at[:16]} by {present.escape(obs.author)} {what}")
@@ -547,8 +598,9 @@ class PostEditor(Screen[None]):
         member = self.member_id
         try:
             obs = await self.app.store.call(  # type: ignore[attr-defined]
-                lambda log: log.save_post(self.visit_id, record, member, allow_errors=True))
-        except Exception as exc:  # noqa: BLE001 - shown, never a traceback
+                lambda log: log.save_post(self.visit_id, record, member, allow_errors=True)
+            )
+        except Exception as exc:
             self.notify(f"Not saved: {exc}", severity="error", markup=False)
             return False
         self.app.drafts.pop(self.draft_key, None)  # type: ignore[attr-defined]
@@ -560,9 +612,12 @@ class PostEditor(Screen[None]):
         self.load_history()
         tag = record.get("tag", "post")
         if self.stale:
-            self.notify(f"Saved {tag} as a new revision, not rated: "
-                        + "; ".join(self.errors.values() or ["see the form"]),
-                        severity="warning", markup=False)
+            self.notify(
+                f"Saved {tag} as a new revision, not rated: "
+                + "; ".join(self.errors.values() or ["see the form"]),
+                severity="warning",
+                markup=False,
+            )
         else:
             self.notify(f"Saved {tag} as a new revision.", markup=False)
         return True
@@ -596,14 +651,22 @@ class PostEditor(Screen[None]):
         self._after_change()
 
     def action_apply_remedy(self) -> None:
-        if self.summary is not None and self.summary.get("quick") and self.rating is not None \
-                and not self.stale:
+        if (
+            self.summary is not None
+            and self.summary.get("quick")
+            and self.rating is not None
+            and not self.stale
+        ):
             self.summary = self.rating.summary(0)  # typed since the last full summary
             self.render_rating()
         rems = list((self.summary or {}).get("remedies") or [])
         if not rems or self.stale:
-            self.notify("No remedy to apply." if not self.stale else
-                        "Fix the form first: remedies follow from a good rating.", markup=False)
+            self.notify(
+                "No remedy to apply."
+                if not self.stale
+                else "Fix the form first: remedies follow from a good rating.",
+                markup=False,
+            )
             return
         index = 0  # the first (the engine's preferred) unless one is highlighted in its pane
         box = self.query_one("#remedy-list", OptionList)

@@ -20,18 +20,46 @@ from textual.widget import Widget
 from textual.widgets import Collapsible, Input, Label
 
 GROUP_TITLES = {
-    "post": "Post", "section": "Section", "height": "Height and bracing", "ends": "Ends",
-    "material": "Material", "condition": "Condition", "bearing": "Bearing and ground",
+    "post": "Post",
+    "section": "Section",
+    "height": "Height and bracing",
+    "ends": "Ends",
+    "material": "Material",
+    "condition": "Condition",
+    "bearing": "Bearing and ground",
     "load": "Load",
 }
 OPEN_GROUPS = ("post", "section", "height", "ends", "material", "load")
 # shown at the top of their group; every other column goes under "more…" (judgement: the ones
 # an inspector fills on most posts)
 COMMON = {
-    "tag", "location", "notes", "size", "section", "diameter", "height", "brace_weak",
-    "brace_strong", "top", "bottom", "species", "grade", "method", "class", "moisture",
-    "load", "duration", "construction", "tributary", "dead", "live", "cap_species",
-    "sill_species", "end_contact", "soil", "pad",
+    "tag",
+    "location",
+    "notes",
+    "size",
+    "section",
+    "diameter",
+    "height",
+    "brace_weak",
+    "brace_strong",
+    "top",
+    "bottom",
+    "species",
+    "grade",
+    "method",
+    "class",
+    "moisture",
+    "load",
+    "duration",
+    "construction",
+    "tributary",
+    "dead",
+    "live",
+    "cap_species",
+    "sill_species",
+    "end_contact",
+    "soil",
+    "pad",
 }
 
 
@@ -85,8 +113,15 @@ def field_row(col: Any, value: str) -> Horizontal:
         suggester = None
     return Horizontal(
         Label(col.name.replace("_", " "), classes="field-name"),
-        FieldInput(value=value, placeholder=hint, id=fid, compact=True, tooltip=tip,
-                   suggester=suggester, select_on_focus=False),
+        FieldInput(
+            value=value,
+            placeholder=hint,
+            id=fid,
+            compact=True,
+            tooltip=tip,
+            suggester=suggester,
+            select_on_focus=False,
+        ),
         classes="field",
     )
 
@@ -94,16 +129,30 @@ def field_row(col: Any, value: str) -> Horizontal:
 class FieldGroup(Collapsible):
     """A group of fields (or its "more…" part) whose widgets are made when first opened."""
 
-    def __init__(self, columns: list[Any], record: dict[str, str], *, title: str,
-                 collapsed: bool, id: str, classes: str, more: list[Any] | None = None,
-                 more_title: str = "") -> None:
+    def __init__(
+        self,
+        columns: list[Any],
+        record: dict[str, str],
+        *,
+        title: str,
+        collapsed: bool,
+        id: str,
+        classes: str,
+        more: list[Any] | None = None,
+        more_title: str = "",
+    ) -> None:
         self.columns = columns
         self.more = more or []
         self.more_title = more_title
         self.group = id.split("-", 1)[1]
         self.built = not collapsed
-        super().__init__(*(self.children_for(record) if self.built else ()), title=title,
-                         collapsed=collapsed, id=id, classes=classes)
+        super().__init__(
+            *(self.children_for(record) if self.built else ()),
+            title=title,
+            collapsed=collapsed,
+            id=id,
+            classes=classes,
+        )
 
     @property
     def names(self) -> list[str]:
@@ -113,9 +162,16 @@ class FieldGroup(Collapsible):
     def children_for(self, record: dict[str, str]) -> list[Widget]:
         out: list[Widget] = [field_row(c, record.get(c.name, "")) for c in self.columns]
         if self.more:
-            out.append(FieldGroup(self.more, record, title=self.more_title,
-                                  collapsed=not any(record.get(c.name) for c in self.more),
-                                  id=f"more-{self.group}", classes="more"))
+            out.append(
+                FieldGroup(
+                    self.more,
+                    record,
+                    title=self.more_title,
+                    collapsed=not any(record.get(c.name) for c in self.more),
+                    id=f"more-{self.group}",
+                    classes="more",
+                )
+            )
         return out
 
     async def build(self, record: dict[str, str]) -> bool:
@@ -127,8 +183,9 @@ class FieldGroup(Collapsible):
         return True
 
 
-def compose_form(columns: dict[str, Any], groups: tuple[str, ...],
-                 record: dict[str, str]) -> Iterable[FieldGroup]:
+def compose_form(
+    columns: dict[str, Any], groups: tuple[str, ...], record: dict[str, str]
+) -> Iterable[FieldGroup]:
     by_group: dict[str, list[Any]] = {}
     for col in columns.values():
         by_group.setdefault(col.group, []).append(col)
@@ -143,10 +200,16 @@ def compose_form(columns: dict[str, Any], groups: tuple[str, ...],
             common, more = more, []
         has_value = any(record.get(c.name) for c in cols)
         title = GROUP_TITLES.get(group, group.title())
-        yield FieldGroup(common, record, title=title,
-                         collapsed=not (group in OPEN_GROUPS or has_value),
-                         id=f"g-{group}", classes="group", more=more,
-                         more_title=f"more {title.lower()} ({len(more)})")
+        yield FieldGroup(
+            common,
+            record,
+            title=title,
+            collapsed=not (group in OPEN_GROUPS or has_value),
+            id=f"g-{group}",
+            classes="group",
+            more=more,
+            more_title=f"more {title.lower()} ({len(more)})",
+        )
 
 
 def group_path(columns: dict[str, Any], name: str) -> list[str]:

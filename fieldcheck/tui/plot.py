@@ -24,8 +24,11 @@ def braille_plot(
     yfmt: Callable[[float], str] = lambda v: f"{v:g}",
 ) -> str:
     """Plain text: a y-axis label column, the plot area (width x height cells) and an x-axis."""
-    pts = [(float(x), float(y)) for x, y in zip(xs, ys, strict=False)
-           if math.isfinite(x) and math.isfinite(y)]
+    pts = [
+        (float(x), float(y))
+        for x, y in zip(xs, ys, strict=False)
+        if math.isfinite(x) and math.isfinite(y)
+    ]
     if not pts:
         return "(nothing to plot)"
     x0, x1 = min(p[0] for p in pts), max(p[0] for p in pts)
@@ -50,8 +53,10 @@ def braille_plot(
         if prev is not None:  # join the points so steep parts stay continuous
             steps = max(abs(cur[0] - prev[0]), abs(cur[1] - prev[1]), 1)
             for k in range(steps + 1):
-                dot(round(prev[0] + (cur[0] - prev[0]) * k / steps),
-                    round(prev[1] + (cur[1] - prev[1]) * k / steps))
+                dot(
+                    round(prev[0] + (cur[0] - prev[0]) * k / steps),
+                    round(prev[1] + (cur[1] - prev[1]) * k / steps),
+                )
         else:
             dot(*cur)
         prev = cur
@@ -67,7 +72,15 @@ def braille_plot(
     lw = max(len(s) for s in ylab)
     out = []
     for r in range(height):
-        label = ylab[0] if r == 0 else ylab[1] if r == height // 2 else ylab[2] if r == height - 1 else ""
+        label = (
+            ylab[0]
+            if r == 0
+            else ylab[1]
+            if r == height // 2
+            else ylab[2]
+            if r == height - 1
+            else ""
+        )
         cells = "".join(text.get((r, c), chr(0x2800 + grid[r][c])) for c in range(width))
         out.append(f"{label:>{lw}} ┤{cells}")
     out.append(" " * lw + " └" + "─" * width)

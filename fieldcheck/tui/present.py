@@ -113,8 +113,15 @@ def head_lines(summary: dict[str, Any] | None, system: str, width: int, status: 
     """Seven lines, always: status, action, capacity, demand, ratio bar, governing check, due.
     A fixed height lets a keystroke repaint them without a layout pass."""
     if summary is None:
-        return [status, "Action    —", "Capacity  —", "Demand    —", "Ratio     —", "Governs   —",
-                "Due       —"]
+        return [
+            status,
+            "Action    —",
+            "Capacity  —",
+            "Demand    —",
+            "Ratio     —",
+            "Governs   —",
+            "Due       —",
+        ]
     kn = 1000.0
     cap = summary.get("allowable_load_kN")
     dem = summary.get("demand_kN")
@@ -138,8 +145,10 @@ def check_lines(summary: dict[str, Any] | None) -> list[str]:
     for c in (summary or {}).get("checks") or []:
         r = c.get("ratio")
         mark = "✖" if (r is not None and r > 1.0) else "✓"
-        out.append(f" {mark} {ratio_text(r)} {escape(c.get('label', c.get('name', '')))} "
-                   f"({escape(c.get('clause', ''))})")
+        out.append(
+            f" {mark} {ratio_text(r)} {escape(c.get('label', c.get('name', '')))} "
+            f"({escape(c.get('clause', ''))})"
+        )
     return out
 
 

@@ -12,10 +12,14 @@ from textual.widgets import DataTable, Footer, Header, Static
 
 from fieldcheck.tui.present import ACTION_ORDER, escape
 
-
 # short headers so the counts fit at 80 columns; the help screen spells out each symbol
-SHORT = {"make-safe-now": "✖ now", "repair-or-brace": "▲ fix", "monitor": "◔ mon",
-         "no-action": "✓ ok", "not rated": "? n/r"}
+SHORT = {
+    "make-safe-now": "✖ now",
+    "repair-or-brace": "▲ fix",
+    "monitor": "◔ mon",
+    "no-action": "✓ ok",
+    "not rated": "? n/r",
+}
 
 
 def _cut(text: str, n: int) -> str:
@@ -44,7 +48,9 @@ class SitesScreen(Screen[None]):
 
     def compose(self) -> ComposeResult:
         yield Header()
-        yield Static("Sites and visits — opening the survey log…", id="sites-title", classes="title")
+        yield Static(
+            "Sites and visits — opening the survey log…", id="sites-title", classes="title"
+        )
         table: DataTable[Any] = DataTable(id="visits", cursor_type="row", zebra_stripes=True)
         yield table
         yield Static("", id="sites-status", classes="status")
@@ -71,8 +77,11 @@ class SitesScreen(Screen[None]):
             app.load_drafts()
         self._fill(data)
         if app.store.seeded and first:
-            self.notify("A new survey log with the invented demo survey was made: open a visit "
-                        "with Enter.", title="Demo survey", markup=False)
+            self.notify(
+                "A new survey log with the invented demo survey was made: open a visit with Enter.",
+                title="Demo survey",
+                markup=False,
+            )
 
     def _fill(self, data: dict[str, Any]) -> None:
         table = self.query_one("#visits", DataTable)
@@ -87,7 +96,8 @@ class SitesScreen(Screen[None]):
             table.move_cursor(row=min(keep, table.row_count - 1))
         n = table.row_count
         self.query_one("#sites-title", Static).update(
-            f"Sites and visits: {n} visit{'s' if n != 1 else ''} — Enter opens one")
+            f"Sites and visits: {n} visit{'s' if n != 1 else ''} — Enter opens one"
+        )
         conflicts = data["conflicts"]
         status = f"Log: {escape(data['path'])}"
         if conflicts:

@@ -13,12 +13,25 @@ from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Header, Input, Static
 
 from fieldcheck.tui.present import (
-    ACTION_ORDER, action_word, ends_text, escape, force, material_text, ratio_text, section_text,
+    ACTION_ORDER,
+    action_word,
+    ends_text,
+    escape,
+    force,
+    material_text,
+    ratio_text,
+    section_text,
 )
 
 COLUMNS = (  # key, title
-    ("tag", "Tag"), ("ratio", "Ratio"), ("action", "Action"), ("location", "Location"),
-    ("section", "Section"), ("height", "Height"), ("material", "Material"), ("ends", "Ends"),
+    ("tag", "Tag"),
+    ("ratio", "Ratio"),
+    ("action", "Action"),
+    ("location", "Location"),
+    ("section", "Section"),
+    ("height", "Height"),
+    ("material", "Material"),
+    ("ends", "Ends"),
     ("load", "Load"),
 )
 SORTS = ("worst", "tag", "location", "action", "height")
@@ -75,8 +88,9 @@ class VisitScreen(Screen[None]):
     def compose(self) -> ComposeResult:
         yield Header()
         yield Static("Loading the visit…", id="visit-title", classes="title")
-        yield Input(placeholder="Filter (/): tag, location, material, action…", id="filter",
-                    compact=True)
+        yield Input(
+            placeholder="Filter (/): tag, location, material, action…", id="filter", compact=True
+        )
         yield DataTable(id="posts", cursor_type="row", zebra_stripes=True)
         yield Static("", id="visit-status", classes="status")
         yield Footer()
@@ -101,7 +115,8 @@ class VisitScreen(Screen[None]):
         self.site_id = self.visit.site_id
         self.posts = data["posts"]
         self.query_one("#visit-title", Static).update(
-            f"{escape(data['site'].name)} — {escape(self.visit.name)} ({self.visit.started_at[:10]})")
+            f"{escape(data['site'].name)} — {escape(self.visit.name)} ({self.visit.started_at[:10]})"
+        )
         self._fill(select)
 
     # -- the table --------------------------------------------------------------------------
@@ -112,9 +127,18 @@ class VisitScreen(Screen[None]):
             words = text.split()
 
             def hay(p: Any) -> str:
-                return " ".join([p.tag, p.location, section_text(p.record), material_text(p.record),
-                                 ends_text(p.record), p.action_label, action_word(p.action_label),
-                                 " ".join(p.record.values())]).lower()
+                return " ".join(
+                    [
+                        p.tag,
+                        p.location,
+                        section_text(p.record),
+                        material_text(p.record),
+                        ends_text(p.record),
+                        p.action_label,
+                        action_word(p.action_label),
+                        " ".join(p.record.values()),
+                    ]
+                ).lower()
 
             rows = [p for p in rows if all(w in hay(p) for w in words)]
         if self.sort_by == "worst":
@@ -145,23 +169,30 @@ class VisitScreen(Screen[None]):
             if len(loc) > 24:
                 loc = loc[:23] + "…"
             table.add_row(
-                escape(tag), ratio_text(p.ratio), action, escape(loc), escape(section_text(p.record)),
-                escape(p.record.get("height", "—")), escape(material_text(p.record)),
-                escape(ends_text(p.record)), force(p.demand_n, units),
+                escape(tag),
+                ratio_text(p.ratio),
+                action,
+                escape(loc),
+                escape(section_text(p.record)),
+                escape(p.record.get("height", "—")),
+                escape(material_text(p.record)),
+                escape(ends_text(p.record)),
+                force(p.demand_n, units),
                 key=p.member_id,
             )
         if select is not None:
             try:
                 table.move_cursor(row=table.get_row_index(select))
-            except Exception:  # noqa: BLE001 - the row was filtered out or withdrawn
+            except Exception:
                 pass
         counts: dict[str, int] = {}
         for p in self.posts:
             counts[p.action_label] = counts.get(p.action_label, 0) + 1
         summary = "  ".join(f"{action_word(a)} {counts[a]}" for a in ACTION_ORDER if counts.get(a))
-        new_draft = f"  ✎ unsaved new post (ctrl+n)" if f"new:{self.visit_id}" in drafts else ""
+        new_draft = "  ✎ unsaved new post (ctrl+n)" if f"new:{self.visit_id}" in drafts else ""
         self.query_one("#visit-status", Static).update(
-            f"{len(shown)} of {len(self.posts)} posts, sorted by {self.sort_by}.  {summary}{new_draft}")
+            f"{len(shown)} of {len(self.posts)} posts, sorted by {self.sort_by}.  {summary}{new_draft}"
+        )
 
     @on(Input.Changed, "#filter")
     def _filter(self) -> None:
@@ -234,9 +265,11 @@ class VisitScreen(Screen[None]):
         record = dict(p.record)
         record["tag"] = next_tag(p.tag, {q.tag for q in self.posts})
         obs = await self.app.store.call(  # type: ignore[attr-defined]
-            lambda log: log.save_post(self.visit_id, record, allow_errors=True))
-        self.notify(f"Copied {p.tag} as {record['tag']} (a new post with the same record).",
-                    markup=False)
+            lambda log: log.save_post(self.visit_id, record, allow_errors=True)
+        )
+        self.notify(
+            f"Copied {p.tag} as {record['tag']} (a new post with the same record).", markup=False
+        )
         self.reload(select=obs.member_id)
 
     def action_withdraw_post(self) -> None:
@@ -254,6 +287,7 @@ class VisitScreen(Screen[None]):
     @work(group="write", exit_on_error=False)
     async def _withdraw(self, member_id: str, tag: str, reason: str) -> None:
         await self.app.store.call(  # type: ignore[attr-defined]
-            lambda log: log.withdraw(member_id, self.visit_id, reason))
+            lambda log: log.withdraw(member_id, self.visit_id, reason)
+        )
         self.notify(f"Withdrew {tag}: kept in its history.", markup=False)
         self.reload()

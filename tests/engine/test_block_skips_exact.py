@@ -9,21 +9,56 @@ through the skipped path. Both must agree to the last bit (computed from the for
 import numpy as np
 import pytest
 
-from fieldcheck.records import parse_records
 from fieldcheck.engine.rating import rate
+from fieldcheck.records import parse_records
 
 SOUND = [
-    {"size": "4x4", "height": "8ft", "species": "douglas-fir-larch", "grade": "no2", "load": "4000lbf"},
-    {"size": "6x6", "height": "10ft", "species": "hem-fir", "grade": "no1", "load": "9 kip", "top": "fixed"},
-    {"section": "3.5inx5.5in", "height": "2.4 m", "species": "southern-pine", "grade": "no2", "load": "12 kN",
-     "method": "lrfd"},
+    {
+        "size": "4x4",
+        "height": "8ft",
+        "species": "douglas-fir-larch",
+        "grade": "no2",
+        "load": "4000lbf",
+    },
+    {
+        "size": "6x6",
+        "height": "10ft",
+        "species": "hem-fir",
+        "grade": "no1",
+        "load": "9 kip",
+        "top": "fixed",
+    },
+    {
+        "section": "3.5inx5.5in",
+        "height": "2.4 m",
+        "species": "southern-pine",
+        "grade": "no2",
+        "load": "12 kN",
+        "method": "lrfd",
+    },
 ]
 EVERYTHING = {
-    "size": "6x6", "height": "9ft", "species": "unknown", "grade": "unknown", "load": "6 kip",
-    "moisture": "26%", "temperature": "110 F", "incised": "yes", "decay_wide": "1in", "hollow": "1 in",
-    "knot": "1in", "slope": "1 in 10", "bow_weak": "1/2 in", "offset_strong": "1/2 in", "end_contact": "80%",
-    "stress_wave": "900 us", "stress_wave_sound": "500 us", "pad": "2ftx2ft", "soil": "clay",
-    "crushed_end": "top", "sill_species": "douglas-fir-larch",
+    "size": "6x6",
+    "height": "9ft",
+    "species": "unknown",
+    "grade": "unknown",
+    "load": "6 kip",
+    "moisture": "26%",
+    "temperature": "110 F",
+    "incised": "yes",
+    "decay_wide": "1in",
+    "hollow": "1 in",
+    "knot": "1in",
+    "slope": "1 in 10",
+    "bow_weak": "1/2 in",
+    "offset_strong": "1/2 in",
+    "end_contact": "80%",
+    "stress_wave": "900 us",
+    "stress_wave_sound": "500 us",
+    "pad": "2ftx2ft",
+    "soil": "clay",
+    "crushed_end": "top",
+    "sill_species": "douglas-fir-larch",
 }
 
 
@@ -51,7 +86,11 @@ def test_damaged_post_rates_the_same_in_any_company():
 def test_large_batches_in_blocks_match_one_pass(monkeypatch):
     from fieldcheck.engine import rating as rating_mod
 
-    rows = [dict(SOUND[i % 3]) for i in range(50)] + [EVERYTHING] * 3 + [dict(SOUND[1]) for _ in range(30)]
+    rows = (
+        [dict(SOUND[i % 3]) for i in range(50)]
+        + [EVERYTHING] * 3
+        + [dict(SOUND[1]) for _ in range(30)]
+    )
     batch = parse_records(rows).batch
     whole = rating_mod.rate(batch)
     monkeypatch.setattr(rating_mod, "BLOCK", 16)  # 83 posts in blocks of 16 on two threads

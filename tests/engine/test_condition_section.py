@@ -17,8 +17,17 @@ LBF = 4.4482216152605
 
 
 def _post(**kw):
-    base = dict(d1_mm=5.5 * IN, d2_mm=5.5 * IN, height_mm=120 * IN, fc_mpa=1000 * PSI, emin_mpa=580000 * PSI,
-                fb_mpa=1200 * PSI, fc_perp_mpa=625 * PSI, product=1, load_n=12000 * LBF)
+    base = dict(
+        d1_mm=5.5 * IN,
+        d2_mm=5.5 * IN,
+        height_mm=120 * IN,
+        fc_mpa=1000 * PSI,
+        emin_mpa=580000 * PSI,
+        fb_mpa=1200 * PSI,
+        fc_perp_mpa=625 * PSI,
+        product=1,
+        load_n=12000 * LBF,
+    )
     base.update(kw)
     return make_batch(**base)
 
@@ -86,8 +95,10 @@ def test_through_split_quarter_of_i():
     assert v["d_eff2"][0] == pytest.approx(5.5 * IN / 2)
 
 
-@pytest.mark.parametrize("kw", [dict(split=3), dict(crushing_active=True), dict(settling_sill=True),
-                                dict(post_moving=True)])
+@pytest.mark.parametrize(
+    "kw",
+    [dict(split=3), dict(crushing_active=True), dict(settling_sill=True), dict(post_moving=True)],
+)
 def test_make_safe_now_conditions(kw):
     # field-practice.md §6.2 category D (judgement): always the last level, whatever the ratio
     r = rate(_post(load_n=100.0, **kw))
@@ -106,7 +117,14 @@ def test_moisture_flags():
 
 def test_stress_wave():
     # E_d = rho v^2 (physics): 500 kg/m3 at 5000 m/s -> 12,500 MPa (field-practice.md §2)
-    r = rate(_post(sw_time_us=[200.0, 130.0, 150.0], sw_path_mm=1000.0, sw_sound_us=100.0, density_kgm3=500.0))
+    r = rate(
+        _post(
+            sw_time_us=[200.0, 130.0, 150.0],
+            sw_path_mm=1000.0,
+            sw_sound_us=100.0,
+            density_kgm3=500.0,
+        )
+    )
     assert r.values["sw_ed_mpa"][0] == pytest.approx(12500.0)
     w = [" ".join(r.warnings(i)) for i in range(3)]
     assert "advanced" in w[0] and "suspect" in w[1] and "advanced" in w[2]  # 1.3 / 1.5 from memory
@@ -120,14 +138,28 @@ def test_kappa_from_data_level_and_flag_wording():
 
 
 # ---- properties -----------------------------------------------------------------------------
-defects = st.fixed_dictionaries({}, optional={
-    "decay_2p_mm": st.floats(0, 30), "decay_1m_mm": st.floats(0, 30), "hollow_mm": st.floats(0, 40),
-    "char_2m_mm": st.floats(0, 20), "wane_mm": st.floats(0, 20), "wane_corners": st.integers(0, 4),
-    "notch_mm": st.floats(0, 30), "hole_mm": st.floats(0, 25), "knot_mm": st.floats(0, 60),
-    "slope_n": st.floats(1, 40), "split": st.integers(0, 3), "crushed_end": st.integers(0, 3),
-    "bow1_mm": st.floats(0, 30), "bow2_mm": st.floats(0, 30), "offset2_mm": st.floats(0, 40),
-    "plumb2_mm": st.floats(0, 40), "decay_zone": st.integers(0, 3),
-})
+defects = st.fixed_dictionaries(
+    {},
+    optional={
+        "decay_2p_mm": st.floats(0, 30),
+        "decay_1m_mm": st.floats(0, 30),
+        "hollow_mm": st.floats(0, 40),
+        "char_2m_mm": st.floats(0, 20),
+        "wane_mm": st.floats(0, 20),
+        "wane_corners": st.integers(0, 4),
+        "notch_mm": st.floats(0, 30),
+        "hole_mm": st.floats(0, 25),
+        "knot_mm": st.floats(0, 60),
+        "slope_n": st.floats(1, 40),
+        "split": st.integers(0, 3),
+        "crushed_end": st.integers(0, 3),
+        "bow1_mm": st.floats(0, 30),
+        "bow2_mm": st.floats(0, 30),
+        "offset2_mm": st.floats(0, 40),
+        "plumb2_mm": st.floats(0, 40),
+        "decay_zone": st.integers(0, 3),
+    },
+)
 
 
 @settings(max_examples=150, deadline=None)
@@ -146,7 +178,9 @@ def test_any_defect_never_raises_capacity(d, ends, height):
 @given(st.floats(1500, 5000), st.floats(1e3, 2e5), st.sampled_from([0, 1]))
 def test_sound_centred_post_is_exactly_the_plain_column(height, load, method):
     r = rate(_post(height_mm=height, load_n=load, method=method))
-    assert np.isnan(r.checks["eccentric"].capacity_n[0]) and np.isnan(r.checks["net_section"].capacity_n[0])
+    assert np.isnan(r.checks["eccentric"].capacity_n[0]) and np.isnan(
+        r.checks["net_section"].capacity_n[0]
+    )
     # the plain NDS column formula, computed here
     from fieldcheck.engine import nds
 
@@ -171,17 +205,20 @@ def test_removing_all_defects_returns_the_sound_result(d):
 
 
 # ---- bad input: one sentence naming the column ----------------------------------------------
-@pytest.mark.parametrize(("row", "column", "words"), [
-    ({"decay_wide": "3 in"}, "decay_wide", "deeper than half"),
-    ({"decay_narrow": "2.75 in", "decay_narrow2": "2.75 in"}, "decay_narrow", "leaves nothing"),
-    ({"knot": "6 in"}, "knot", "as wide as"),
-    ({"slope": "1 in 0.5"}, "slope", "flatter than 1 in 1"),
-    ({"bow_weak": "-1 in"}, "bow_weak", ""),
-    ({"moisture": "-5%"}, "moisture", ""),
-    ({"stress_wave": "-100 us"}, "stress_wave", ""),
-    ({"hollow": "5.5 in"}, "hollow", "no sound shell"),
-    ({"offset_weak": "4 in"}, "offset_weak", "outside the post"),
-])
+@pytest.mark.parametrize(
+    ("row", "column", "words"),
+    [
+        ({"decay_wide": "3 in"}, "decay_wide", "deeper than half"),
+        ({"decay_narrow": "2.75 in", "decay_narrow2": "2.75 in"}, "decay_narrow", "leaves nothing"),
+        ({"knot": "6 in"}, "knot", "as wide as"),
+        ({"slope": "1 in 0.5"}, "slope", "flatter than 1 in 1"),
+        ({"bow_weak": "-1 in"}, "bow_weak", ""),
+        ({"moisture": "-5%"}, "moisture", ""),
+        ({"stress_wave": "-100 us"}, "stress_wave", ""),
+        ({"hollow": "5.5 in"}, "hollow", "no sound shell"),
+        ({"offset_weak": "4 in"}, "offset_weak", "outside the post"),
+    ],
+)
 def test_bad_input_one_sentence(row, column, words):
     rec = {"size": "6x6", "height": "10 ft", **row}
     parsed = parse_records([rec])

@@ -22,10 +22,19 @@ def _one(**cols):
     return rating
 
 
-@pytest.mark.parametrize("soil, psf", [
-    ("crystalline-bedrock", 12000), ("sedimentary-rock", 4000), ("sandy-gravel", 3000), ("sand", 2000),
-    ("clay", 1500), ("1", 12000), ("4", 2000), ("5", 1500),
-])
+@pytest.mark.parametrize(
+    "soil, psf",
+    [
+        ("crystalline-bedrock", 12000),
+        ("sedimentary-rock", 4000),
+        ("sandy-gravel", 3000),
+        ("sand", 2000),
+        ("clay", 1500),
+        ("1", 12000),
+        ("4", 2000),
+        ("5", 1500),
+    ],
+)
 def test_soil_capacity_is_presumptive_value_times_pad_area(soil, psf):
     # IBC 2012 Table 1806.2 (secondary, field-practice.md §4.7): capacity = q_allow x A, 2 ft x 2 ft pad
     r = _one(load="1000lbf", pad="2ft x 2ft", soil=soil)
@@ -44,11 +53,14 @@ def test_6000_lb_on_clay_needs_4_ft2():
     assert r.governing_name(0) == "soil_bearing" and r.action[0] == 3  # 1.5 > 1.25: make safe now
 
 
-@pytest.mark.parametrize("cols, flag, level", [
-    (dict(soil="unknown"), ground.G_SOIL_UNKNOWN, 1),
-    (dict(), ground.G_SOIL_UNKNOWN, 1),  # a pad with no soil stated is unknown soil
-    (dict(soil="unprepared"), ground.G_SOIL_UNPREPARED, 2),
-])
+@pytest.mark.parametrize(
+    "cols, flag, level",
+    [
+        (dict(soil="unknown"), ground.G_SOIL_UNKNOWN, 1),
+        (dict(), ground.G_SOIL_UNKNOWN, 1),  # a pad with no soil stated is unknown soil
+        (dict(soil="unprepared"), ground.G_SOIL_UNPREPARED, 2),
+    ],
+)
 def test_unknown_and_unprepared_soil_never_pass_silently(cols, flag, level):
     # IBC 2012 §1806.2: no presumptive value for unclassified, mud, organic or unprepared ground
     # judgement (ground.py docstring): unknown -> at least monitor, unprepared -> repair-or-brace
@@ -93,12 +105,20 @@ def test_pad_spread_through_thickness():
 
 def test_bearing_plate_spreads_on_the_sill():
     # NDS 2018 §3.10.2, §3.10.4: Fc-perp x Cb x A; 4x4 on a DF-L sill (625 psi, from memory), 8 in plate
-    base = dict(size="4x4", height="8ft", species="douglas-fir-larch", grade="no2", load="1000lbf",
-                sill_species="douglas-fir-larch")
+    base = dict(
+        size="4x4",
+        height="8ft",
+        species="douglas-fir-larch",
+        grade="no2",
+        load="1000lbf",
+        sill_species="douglas-fir-larch",
+    )
     r0, _ = rate_records([base])
     r1, _ = rate_records([{**base, "plate": "8in"}])
     assert r0.checks["sill_bearing"].capacity_n[0] / LBF == pytest.approx(625 * 12.25, rel=1e-6)
-    assert r1.checks["sill_bearing"].capacity_n[0] / LBF == pytest.approx(625 * 8 * 3.5, rel=1e-6)  # lb >= 6 in: Cb 1
+    assert r1.checks["sill_bearing"].capacity_n[0] / LBF == pytest.approx(
+        625 * 8 * 3.5, rel=1e-6
+    )  # lb >= 6 in: Cb 1
     assert r1.batch.end_plate[0] and r1.flags[0] & ground.G_PLATE
 
 
@@ -122,15 +142,28 @@ def test_vectorised_soil_matches_loads_soil_check():
     A = rng.uniform(1e5, 2e6, n)
     key = rng.choice(["sand", "clay", "sandy-gravel"], n)
     q = loads.soil_allowable_kpa(list(key))
-    b = make_batch(n=n, d1_mm=140, d2_mm=140, height_mm=2400, fc_mpa=1000 * PSI, emin_mpa=580000 * PSI,
-                   load_n=P, pad_area_mm2=A, soil_kpa=q)
+    b = make_batch(
+        n=n,
+        d1_mm=140,
+        d2_mm=140,
+        height_mm=2400,
+        fc_mpa=1000 * PSI,
+        emin_mpa=580000 * PSI,
+        load_n=P,
+        pad_area_mm2=A,
+        soil_kpa=q,
+    )
     r = rate(b)
     s = loads.soil_check(P, A, list(key))
     assert np.allclose(r.checks["soil_bearing"].ratio, s.ratio)
 
 
 def test_bad_ground_input_one_sentence():
-    for cols, col in ((dict(soil="loam"), "soil"), (dict(pad="big"), "pad"), (dict(pad="-2 ft2"), "pad")):
+    for cols, col in (
+        (dict(soil="loam"), "soil"),
+        (dict(pad="big"), "pad"),
+        (dict(pad="-2 ft2"), "pad"),
+    ):
         p = parse_records([{**POST, **cols}])
         assert p.errors and p.errors[0].column == col
         msg = p.errors[0].message

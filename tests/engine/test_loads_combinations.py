@@ -25,7 +25,9 @@ def _bay_loads():
 def test_example_d_plus_l_6000_lb():
     D, L, _ = _bay_loads()
     c = loads.asd_combinations(D, L)
-    assert c.load_n[c.keys.index("2"), 0] / LBF == pytest.approx(6000, rel=1e-6)  # field-practice.md §5.1 / #84
+    assert c.load_n[c.keys.index("2"), 0] / LBF == pytest.approx(
+        6000, rel=1e-6
+    )  # field-practice.md §5.1 / #84
 
 
 def test_example_combinations_and_cd():
@@ -125,6 +127,8 @@ def test_negative_load_refused():
 def test_governing_is_max_of_load_over_cd(d, l, lr, s, w):
     # NDS 2018 §2.3.2: the governing combination has the largest load / CD
     c = loads.asd_combinations(d, l, lr, s, W=w)
-    assert c.governing_load_n[0] / c.governing_factor[0] == pytest.approx(np.max(c.equivalent_n[:, 0]))
+    assert c.governing_load_n[0] / c.governing_factor[0] == pytest.approx(
+        np.max(c.equivalent_n[:, 0])
+    )
     assert c.governing_load_n[0] >= d - 1e-9  # never less than the dead load alone
     assert 0.9 <= c.governing_factor[0] <= 1.6

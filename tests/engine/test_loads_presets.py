@@ -9,7 +9,15 @@ from fieldcheck.engine.refdata import table
 FT = 304.8  # mm
 PSF = 0.0478802589  # kPa
 
-TABLES = ("live_loads", "dead_loads", "soil_bearing", "shore_lateral", "load_durations", "load_types", "load_combinations")
+TABLES = (
+    "live_loads",
+    "dead_loads",
+    "soil_bearing",
+    "shore_lateral",
+    "load_durations",
+    "load_types",
+    "load_combinations",
+)
 
 
 @pytest.mark.parametrize("name", TABLES)
@@ -33,11 +41,24 @@ def test_kpa_column_matches_psf(name):
 def test_live_loads_table_4_3_1():
     # ASCE 7 Table 4.3-1 / IRC R301.5 via field-practice.md §5.3 and §8 #69-#73, #110 (secondary)
     expect = {
-        "residential": 40, "residential-sleeping": 30, "attic-limited-storage": 20,
-        "attic-no-storage": 10, "office": 50, "office-lobby": 100, "corridor-above-first": 80,
-        "assembly-fixed": 60, "assembly-movable": 100, "classroom": 40, "restaurant": 100,
-        "retail-first": 100, "retail-upper": 75, "storage-light": 125, "storage-heavy": 250,
-        "garage-passenger": 40, "roof-ordinary": 20, "partition-allowance": 15,
+        "residential": 40,
+        "residential-sleeping": 30,
+        "attic-limited-storage": 20,
+        "attic-no-storage": 10,
+        "office": 50,
+        "office-lobby": 100,
+        "corridor-above-first": 80,
+        "assembly-fixed": 60,
+        "assembly-movable": 100,
+        "classroom": 40,
+        "restaurant": 100,
+        "retail-first": 100,
+        "retail-upper": 75,
+        "storage-light": 125,
+        "storage-heavy": 250,
+        "garage-passenger": 40,
+        "roof-ordinary": 20,
+        "partition-allowance": 15,
     }
     for key, psf in expect.items():
         assert loads.live_load_kpa(key) / PSF == pytest.approx(psf)
@@ -47,20 +68,39 @@ def test_live_loads_table_4_3_1():
 
 def test_dead_loads_hud_and_fema():
     # HUD RSDG Table 3.2 via field-practice.md §5.2 / #78, #79, #106-#108 (secondary)
-    expect = {"roof-asphalt": 15, "floor-carpet": 10, "floor-tile": 15, "wall-2x4": 6,
-              "wall-brick-veneer": 45, "partition-2x4": 6, "roof-clay-tile": 27, "roof-light-tile": 21,
-              "roof-metal": 14, "roof-shakes": 15, "roof-tar-gravel": 18, "floor-wood": 12,
-              "floor-slate": 19, "adjust-no-ceiling": -2, "wall-vinyl": 7, "wall-lap-wood": 8,
-              "wall-stucco": 15, "adjust-2x6-wall": 1}
+    expect = {
+        "roof-asphalt": 15,
+        "floor-carpet": 10,
+        "floor-tile": 15,
+        "wall-2x4": 6,
+        "wall-brick-veneer": 45,
+        "partition-2x4": 6,
+        "roof-clay-tile": 27,
+        "roof-light-tile": 21,
+        "roof-metal": 14,
+        "roof-shakes": 15,
+        "roof-tar-gravel": 18,
+        "floor-wood": 12,
+        "floor-slate": 19,
+        "adjust-no-ceiling": -2,
+        "wall-vinyl": 7,
+        "wall-lap-wood": 8,
+        "wall-stucco": 15,
+        "adjust-2x6-wall": 1,
+    }
     for key, psf in expect.items():
         assert loads.dead_load_kpa(key) / PSF == pytest.approx(psf)
     # FEMA US&R Rescue Specialist manual via #80, #81: rubble 10 psf per inch; concrete floor 90-100
     assert loads.rubble_kpa(6 * 25.4)[0] / PSF == pytest.approx(60)
-    assert loads.dead_load_kpa("concrete-floor") / PSF == pytest.approx(100)  # upper end of 90-100, judgement
+    assert loads.dead_load_kpa("concrete-floor") / PSF == pytest.approx(
+        100
+    )  # upper end of 90-100, judgement
 
 
 def test_unknown_keys_one_sentence():
-    with pytest.raises(ValueError, match=r"occupancy 'disco' is not known; use one of .*residential") as e:
+    with pytest.raises(
+        ValueError, match=r"occupancy 'disco' is not known; use one of .*residential"
+    ) as e:
         loads.live_load_kpa("disco")
     assert str(e.value).endswith(".") and str(e.value).count(". ") == 0
     with pytest.raises(ValueError, match="dead-load preset 'rubble-per-inch' is not known"):
@@ -95,5 +135,7 @@ def test_live_load_reduction_example():
     assert loads.live_reduction_factor(1e5 * FT**2, 4, 1)[0] == pytest.approx(0.5)
     assert loads.live_reduction_factor(1e5 * FT**2, 4, 2)[0] == pytest.approx(0.4)
     # assembly and heavy storage not reduced (ASCE 7 §4.7.3-4.7.4, secondary)
-    assert loads.reduced_live_kpa(100 * PSF, 1000 * FT**2, occupancy="assembly-movable")[0] / PSF == pytest.approx(100)
+    assert loads.reduced_live_kpa(100 * PSF, 1000 * FT**2, occupancy="assembly-movable")[
+        0
+    ] / PSF == pytest.approx(100)
     assert loads.reduced_live_kpa(125 * PSF, 1000 * FT**2)[0] / PSF == pytest.approx(125)

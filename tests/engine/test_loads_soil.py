@@ -31,7 +31,9 @@ def test_presumptive_values_table_1806_2():
         assert r["status"] == "secondary"
     got = loads.soil_allowable_kpa(list(expect)) / PSF
     assert np.allclose(got, [12000, 4000, 3000, 2000, 1500])
-    assert np.allclose(loads.soil_allowable_kpa(["1", "2", "3", "4", "5"]) / PSF, got)  # class numbers
+    assert np.allclose(
+        loads.soil_allowable_kpa(["1", "2", "3", "4", "5"]) / PSF, got
+    )  # class numbers
 
 
 def test_pad_area_6000_lb_on_1500_psf():

@@ -41,14 +41,20 @@ def test_temporary_shores_each_side():
     # 50 psf x 6 ft = 300 plf; a shore every 4 ft carries 1,200 lb (computed by hand)
     assert w.total("shore_line_n_per_mm")[0] / PLF == pytest.approx(300, rel=1e-6)
     assert w.total("shore_n")[0] / LBF == pytest.approx(1200, rel=1e-6)
-    one = loads.wall_removal(12 * FT, 12 * FT, 10 * PSF, 40 * PSF, 12 * FT, 4 * FT, temporary_lines=1)
+    one = loads.wall_removal(
+        12 * FT, 12 * FT, 10 * PSF, 40 * PSF, 12 * FT, 4 * FT, temporary_lines=1
+    )
     # one line at the wall carries the whole 600 plf -> 2,400 lb per shore (by hand)
     assert one.total("shore_n")[0] / LBF == pytest.approx(2400, rel=1e-6)
 
 
 def test_unequal_spans_and_wall_above_vectorised():
     w = loads.wall_removal(
-        np.array([10.0, 14.0]) * FT, np.array([14.0, 10.0]) * FT, 10 * PSF, 40 * PSF, 12 * FT,
+        np.array([10.0, 14.0]) * FT,
+        np.array([14.0, 10.0]) * FT,
+        10 * PSF,
+        40 * PSF,
+        12 * FT,
         wall_above_dead_n_per_mm=60 * PLF,
     )
     # (10/2 + 14/2) x 50 + 60 = 660 plf (field-practice.md §5.6 with wall weight above)

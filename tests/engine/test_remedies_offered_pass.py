@@ -68,8 +68,12 @@ def test_ranked_by_cost_then_capacity():
     p = parse_records([_rec(load="6000lbf")])
     rem = remedies(p.batch)
     kinds = [x.kind for x in rem.for_post(0)]
-    assert kinds == sorted(kinds, key=KINDS.index)  # judgement: brace < plate < pad < second post < replace
-    assert "brace-both" in kinds and "brace-weak" not in kinds  # a square post needs both axes braced
+    assert kinds == sorted(
+        kinds, key=KINDS.index
+    )  # judgement: brace < plate < pad < second post < replace
+    assert (
+        "brace-both" in kinds and "brace-weak" not in kinds
+    )  # a square post needs both axes braced
     assert kinds[-1] == "replace"
     rep = rem.for_post(0)[-1]
     assert rep.record_changes["size"] in ("4x6", "6x6") and rep.resets_condition
@@ -85,7 +89,9 @@ def test_weak_axis_brace_on_a_4x6():
 
 def test_pad_remedy_for_soil():
     # IBC 2012 Table 1806.2: 5,000 lb on clay (1,500 psf) needs 3.33 ft^2; a 1 ft x 1 ft pad fails
-    p = parse_records([_rec(height="4ft", load="5000lbf", pad="1ft x 1ft", pad_thickness="6in", soil="clay")])
+    p = parse_records(
+        [_rec(height="4ft", load="5000lbf", pad="1ft x 1ft", pad_thickness="6in", soil="clay")]
+    )
     r = rate(p.batch)
     assert r.governing_name(0) == "soil_bearing"
     pads = [x for x in remedies(p.batch, r).for_post(0) if x.kind == "pad"]
@@ -105,10 +111,14 @@ def test_plate_lifts_end_bearing_limit():
 
 def test_nothing_offered_when_nothing_passes_or_no_load():
     p = parse_records([_rec(load="6000lbf", pad="2ft x 2ft", soil="unprepared")])
-    assert remedies(p.batch).for_post(0) == []  # unprepared ground: repair-or-brace whatever we change
+    assert (
+        remedies(p.batch).for_post(0) == []
+    )  # unprepared ground: repair-or-brace whatever we change
     s = rate(p.batch).summary(0)
     assert s["remedies"] == [] and "remedies_note" in s
-    p = parse_records([_rec(height="20ft")])  # le/d over 50 with no load: nothing can be shown to pass
+    p = parse_records(
+        [_rec(height="20ft")]
+    )  # le/d over 50 with no load: nothing can be shown to pass
     assert remedies(p.batch).for_post(0) == []
 
 

@@ -37,8 +37,12 @@ def test_spring_end_with_sway_between_flagpole_and_fixed_guided():
 
 
 def test_theoretical_k_only_when_asked():
-    r, _ = rate_records([dict(BASE, top_ratio="2", bottom_ratio="2"),
-                         dict(BASE, top_ratio="2", bottom_ratio="2", k_theoretical="yes")])
+    r, _ = rate_records(
+        [
+            dict(BASE, top_ratio="2", bottom_ratio="2"),
+            dict(BASE, top_ratio="2", bottom_ratio="2", k_theoretical="yes"),
+        ]
+    )
     # AISC 360 Commentary App. 7 braced chart with G = 1 (R = 2/G = 2): K = 0.774265 (column-design.md §7.4)
     assert r.values["k_solved"][1] == pytest.approx(0.774265, abs=1e-4)
     assert r.ke1[1] == pytest.approx(0.774265, abs=1e-4)
@@ -47,10 +51,15 @@ def test_theoretical_k_only_when_asked():
     assert any("spring-restrained" in s.value for s in r.working(0))
 
 
-@pytest.mark.parametrize(("kw", "column"), [
-    ({"top_ratio": "-1"}, "top_ratio"), ({"top": "free", "bottom_ratio": "0"}, "bottom_ratio"),
-    ({"top_spring": "-5 kip-in/rad"}, "top_spring"), ({"top_ratio": "2", "top_spring": "1 kN*m/rad"}, "top_ratio"),
-])
+@pytest.mark.parametrize(
+    ("kw", "column"),
+    [
+        ({"top_ratio": "-1"}, "top_ratio"),
+        ({"top": "free", "bottom_ratio": "0"}, "bottom_ratio"),
+        ({"top_spring": "-5 kip-in/rad"}, "top_spring"),
+        ({"top_ratio": "2", "top_spring": "1 kN*m/rad"}, "top_ratio"),
+    ],
+)
 def test_bad_spring_input_one_sentence(kw, column):
     parsed = parse_records([dict(BASE, **kw)])
     assert not parsed.ok[0]
@@ -67,16 +76,26 @@ def test_k_factor_json_alignment_chart(capsys):
 
 def test_k_factor_mid_brace_halves_one_axis(capsys):
     # a mid-height brace halves the effective length about that axis only (mechanics; NDS 2018 §3.7.1.1)
-    assert main(["k-factor", "--height", "10ft", "--brace-at", "5ft", "--brace-axis", "weak", "--json"]) == 0
+    assert (
+        main(
+            ["k-factor", "--height", "10ft", "--brace-at", "5ft", "--brace-axis", "weak", "--json"]
+        )
+        == 0
+    )
     out = json.loads(capsys.readouterr().out)
     assert out["K_axis2"] == pytest.approx(0.5, abs=1e-4)
     assert out["K_axis1"] == pytest.approx(1.0, abs=1e-4)
 
 
-@pytest.mark.parametrize("argv", [
-    ["k-factor", "--top-ratio=-2"], ["k-factor", "--sway"], ["k-factor", "--height", "8ft", "--brace-at", "9ft"],
-    ["k-factor", "--brace-at", "4ft"],
-])
+@pytest.mark.parametrize(
+    "argv",
+    [
+        ["k-factor", "--top-ratio=-2"],
+        ["k-factor", "--sway"],
+        ["k-factor", "--height", "8ft", "--brace-at", "9ft"],
+        ["k-factor", "--brace-at", "4ft"],
+    ],
+)
 def test_k_factor_errors_exit_2(capsys, argv):
     assert main(argv) == 2
     err = capsys.readouterr().err.strip()
@@ -105,7 +124,9 @@ def test_braces_on_a_swaying_post_feed_the_solver():
     flag = cap(bottom="fixed", top="free")
     braced = cap(bottom="fixed", top="free", brace_weak="4ft", brace_strong="4ft")
     assert flag < braced < cap(bottom="fixed", top="pinned")
-    r, _ = rate_records([dict(BASE, bottom="fixed", top="free", brace_weak="4ft", brace_strong="4ft")])
+    r, _ = rate_records(
+        [dict(BASE, bottom="fixed", top="free", brace_weak="4ft", brace_strong="4ft")]
+    )
     assert not any("Braces ignored" in w for w in r.warnings(0))
     # braced in one axis only: the other axis keeps the flagpole value (NDS 2018 §3.7.1.1)
     r, _ = rate_records([dict(BASE, bottom="fixed", top="free", brace_weak="4ft")])
@@ -127,7 +148,7 @@ def test_brace_curve_for_a_flagpole_uses_the_solver():
     parsed = parse_records([dict(BASE, bottom="fixed", top="free")])
     c = capacity_vs_brace(parsed.batch, np.array([0.3, 0.6, 0.9]), axis=2)[0]
     one_axis = cap(bottom="fixed", top="free")  # the unbraced axis still governs a square post
-    assert (c == pytest.approx([one_axis] * 3))
+    assert c == pytest.approx([one_axis] * 3)
     parsed = parse_records([dict(BASE, bottom="fixed", top="free", brace_strong="7ft 6in")])
     c = capacity_vs_brace(parsed.batch, np.array([0.2, 0.5, 0.9]), axis=2)[0]
     assert c[0] <= c[1] <= c[2] and c[0] < c[2]

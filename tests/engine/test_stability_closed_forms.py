@@ -59,7 +59,7 @@ def test_dimensional_call_matches_euler():
     assert P[0] == pytest.approx(math.pi**2 * EI / L**2, rel=1e-9)
     # flagpole: P = pi^2 EI / (2L)^2
     P = critical_load([EI, EI], [L, L], 0.0, INF, 0.0, INF)
-    assert P == pytest.approx(math.pi**2 * EI / (2 * L) ** 2, rel=1e-9)
+    assert pytest.approx(math.pi**2 * EI / (2 * L) ** 2, rel=1e-9) == P
 
 
 # --- AISC 360 Commentary Appendix 7 alignment-chart equations ---------------------------------
@@ -211,7 +211,16 @@ def test_ideal_brace_stiffness_at_mid_height():
     # its stiffness reaches 16 pi^2 EI / L^3 (= 4 P / L with P the half-length Euler load)
     EI, L = 1.0, 1.0
     k_ideal = 16 * math.pi**2 * EI / L**3
-    K = effective_length_factor(EI, L, 0.0, 0.0, INF, INF, braces=[[0.5], [0.5]], brace_k=[[1.01 * k_ideal], [0.9 * k_ideal]])
+    K = effective_length_factor(
+        EI,
+        L,
+        0.0,
+        0.0,
+        INF,
+        INF,
+        braces=[[0.5], [0.5]],
+        brace_k=[[1.01 * k_ideal], [0.9 * k_ideal]],
+    )
     assert K[0] == pytest.approx(0.5, abs=TOL)
     assert K[1] > 0.5 + 1e-3
 
@@ -222,17 +231,38 @@ def _fe_critical(EI, L, k_rt, k_rb, k_lt, k_lb, braces=(), brace_k=(), per_segme
     Przemieniecki 1968 beam element and geometric stiffness (from memory); infinite springs by removing DOFs.
     """
     cuts = [0.0, *sorted(braces), L]
-    x = np.concatenate([np.linspace(a, b, per_segment + 1)[:-1] for a, b in zip(cuts[:-1], cuts[1:], strict=True)] + [[L]])
+    x = np.concatenate(
+        [np.linspace(a, b, per_segment + 1)[:-1] for a, b in zip(cuts[:-1], cuts[1:], strict=True)]
+        + [[L]]
+    )
     nn = len(x)
     K = np.zeros((2 * nn, 2 * nn))
     G = np.zeros_like(K)
     for e in range(nn - 1):
         h = x[e + 1] - x[e]
-        ke = EI / h**3 * np.array(
-            [[12, 6 * h, -12, 6 * h], [6 * h, 4 * h * h, -6 * h, 2 * h * h], [-12, -6 * h, 12, -6 * h], [6 * h, 2 * h * h, -6 * h, 4 * h * h]]
+        ke = (
+            EI
+            / h**3
+            * np.array(
+                [
+                    [12, 6 * h, -12, 6 * h],
+                    [6 * h, 4 * h * h, -6 * h, 2 * h * h],
+                    [-12, -6 * h, 12, -6 * h],
+                    [6 * h, 2 * h * h, -6 * h, 4 * h * h],
+                ]
+            )
         )
-        ge = 1 / (30 * h) * np.array(
-            [[36, 3 * h, -36, 3 * h], [3 * h, 4 * h * h, -3 * h, -h * h], [-36, -3 * h, 36, -3 * h], [3 * h, -h * h, -3 * h, 4 * h * h]]
+        ge = (
+            1
+            / (30 * h)
+            * np.array(
+                [
+                    [36, 3 * h, -36, 3 * h],
+                    [3 * h, 4 * h * h, -3 * h, -h * h],
+                    [-36, -3 * h, 36, -3 * h],
+                    [3 * h, -h * h, -3 * h, 4 * h * h],
+                ]
+            )
         )
         idx = np.arange(2 * e, 2 * e + 4)
         K[np.ix_(idx, idx)] += ke
@@ -252,7 +282,11 @@ def _fe_critical(EI, L, k_rt, k_rb, k_lt, k_lb, braces=(), brace_k=(), per_segme
 @pytest.mark.parametrize(
     ("case", "braces", "brace_k"),
     [
-        ((3.0e8, 1.0e8, INF, INF), (0.3,), (INF,)),  # braced post, spring ends, rigid brace off-centre
+        (
+            (3.0e8, 1.0e8, INF, INF),
+            (0.3,),
+            (INF,),
+        ),  # braced post, spring ends, rigid brace off-centre
         ((0.0, 5.0e8, 0.0, INF), (0.6,), (200.0,)),  # sway post, spring base, elastic brace
         ((2.0e8, INF, 50.0, INF), (0.25, 0.7), (INF, 80.0)),  # lateral spring top, two braces
         ((0.0, 0.0, 30.0, 0.0), (0.5,), (INF,)),  # pinned ends on lateral springs, rigid mid brace
@@ -266,7 +300,7 @@ def test_braced_and_spring_cases_against_scipy_finite_elements(case, braces, bra
     p = critical_load(EI, L, *case, braces=[hb], brace_k=[list(brace_k)])[0]
     K_fe = math.pi / L * math.sqrt(EI / p_fe)
     K = math.pi / L * math.sqrt(EI / p)
-    assert K == pytest.approx(K_fe, abs=TOL)
+    assert pytest.approx(K_fe, abs=TOL) == K
 
 
 def test_batch_with_mixed_brace_counts_matches_one_at_a_time():
@@ -309,7 +343,14 @@ def _one_sentence(msg: str) -> None:
 )
 def test_bad_input_is_one_sentence_naming_the_field(kwargs, field):
     # DEVELOPERS.md: bad input is a ValueError naming the field, the range and an example
-    args = {"EI_nmm2": 1e11, "L_mm": 3000.0, "k_rot_top": 0.0, "k_rot_bottom": 0.0, "k_lat_top": INF, "k_lat_bottom": INF}
+    args = {
+        "EI_nmm2": 1e11,
+        "L_mm": 3000.0,
+        "k_rot_top": 0.0,
+        "k_rot_bottom": 0.0,
+        "k_lat_top": INF,
+        "k_lat_bottom": INF,
+    }
     args.update(kwargs)
     with pytest.raises(ValueError) as exc:
         critical_load(**args)
@@ -320,7 +361,10 @@ def test_bad_input_is_one_sentence_naming_the_field(kwargs, field):
 @pytest.mark.parametrize(
     ("ends", "words"),
     [
-        ((0.0, 0.0, 0.0, INF), "tips over"),  # pinned base, free top (column-design.md §7.3: R = 0, 0)
+        (
+            (0.0, 0.0, 0.0, INF),
+            "tips over",
+        ),  # pinned base, free top (column-design.md §7.3: R = 0, 0)
         ((0.0, INF, 0.0, 0.0), "slides sideways"),  # fixed base on rollers, free top
         ((0.0, 0.0, 0.0, 0.0), "slides sideways"),  # nothing at all
     ],
@@ -339,7 +383,9 @@ def test_mechanism_mask_is_vectorised_and_braces_rescue():
     # common practice, no source: a brace is a second lateral restraint
     mask = is_mechanism(1e11, 3000.0, 0.0, 0.0, [0.0, 0.0], INF, braces=[[np.nan], [1500.0]])
     assert mask.tolist() == [True, False]
-    P = critical_load(1e11, 3000.0, 0.0, 0.0, [0.0, 0.0], INF, braces=[[np.nan], [1500.0]], on_mechanism="nan")
+    P = critical_load(
+        1e11, 3000.0, 0.0, 0.0, [0.0, 0.0], INF, braces=[[np.nan], [1500.0]], on_mechanism="nan"
+    )
     assert np.isnan(P[0]) and P[1] > 0
 
 
@@ -419,4 +465,7 @@ def test_design_k_grows_with_flexibility(r, factor, sway):
     # judgement rule of design_k: monotone in the end stiffness
     k_stiff = k_from_ratios(r * factor, r * factor, sway)
     k_soft = k_from_ratios(r, r, sway)
-    assert design_k(k_stiff, r * factor, r * factor, sway)[0] <= design_k(k_soft, r, r, sway)[0] + 1e-12
+    assert (
+        design_k(k_stiff, r * factor, r * factor, sway)[0]
+        <= design_k(k_soft, r, r, sway)[0] + 1e-12
+    )

@@ -56,8 +56,13 @@ def test_prints_a_page_per_post_and_never_colour_alone(demo_log):
     assert "@media print" in out and "break-before: page" in out
     badges = re.findall(r'<span class="badge (a[0-3n])">([^<]*)</span>', out)
     assert badges
-    words = {"a0": "NO ACTION", "a1": "MONITOR", "a2": "REPAIR OR BRACE", "a3": "MAKE SAFE NOW",
-             "an": "NOT RATED"}
+    words = {
+        "a0": "NO ACTION",
+        "a1": "MONITOR",
+        "a2": "REPAIR OR BRACE",
+        "a3": "MAKE SAFE NOW",
+        "an": "NOT RATED",
+    }
     for cls, label in badges:
         assert words[cls] in label  # a word beside every colour
         assert label.split()[0] != words[cls].split()[0]  # and a symbol before it
@@ -74,10 +79,19 @@ def test_one_inline_svg_plot_per_rated_post_with_axis_labels(demo_log):
 
 def test_user_text_is_escaped(empty_log, parse_html):
     site = empty_log.add_site("Site <b>&</b>")
-    v = empty_log.add_visit(site.id, "A & B <i>", name="visit \"one\" <x>")
-    empty_log.save_post(v.id, {"tag": "<script>alert(1)</script>", "size": "4x4", "height": "8ft",
-                               "species": "douglas-fir-larch", "grade": "no2", "load": "2000lbf",
-                               "notes": "wedge <loose> & 'split'"})
+    v = empty_log.add_visit(site.id, "A & B <i>", name='visit "one" <x>')
+    empty_log.save_post(
+        v.id,
+        {
+            "tag": "<script>alert(1)</script>",
+            "size": "4x4",
+            "height": "8ft",
+            "species": "douglas-fir-larch",
+            "grade": "no2",
+            "load": "2000lbf",
+            "notes": "wedge <loose> & 'split'",
+        },
+    )
     out = render_report(empty_log)
     assert "<script" not in out and "<loose>" not in out and "<x>" not in out and "<b>&" not in out
     assert "&lt;script&gt;alert(1)&lt;/script&gt;" in out
@@ -129,7 +143,7 @@ def test_visit_and_site_scopes(demo_log):
 
 def test_client_summary_is_separate_and_plain(demo_log, parse_html):
     out = render_report(demo_log)
-    client = out[out.index('id="client"'):out.index('id="summary"')]
+    client = out[out.index('id="client"') : out.index('id="summary"')]
     assert "Unsafe now" in client and "S4" in client  # the overloaded shore (demo)
     assert "Safe to use as found" in client
     assert "What must happen by when" in client
@@ -142,21 +156,35 @@ def test_open_sync_conflicts_are_listed_with_their_differences(empty_log):
 
     site = empty_log.add_site("Site")
     v = empty_log.add_visit(site.id, "tester")
-    first = empty_log.save_post(v.id, {"tag": "S1", "size": "4x4", "height": "8ft",
-                                       "species": "douglas-fir-larch", "grade": "no2",
-                                       "load": "3000lbf"})
+    first = empty_log.save_post(
+        v.id,
+        {
+            "tag": "S1",
+            "size": "4x4",
+            "height": "8ft",
+            "species": "douglas-fir-larch",
+            "grade": "no2",
+            "load": "3000lbf",
+        },
+    )
     # two revisions made apart (as a sync brings them): both supersede the same parent
     with empty_log.db.atomic():
         for dev, h in (("device-B", "9ft"), ("device-C", "10ft")):
             empty_log.db.execute(
                 "INSERT INTO observations (id, member_id, visit_id, supersedes, record_json, device_id,"
                 " device_seq, author, created_at) VALUES (?, ?, ?, ?, ?, ?, 1, 'x', ?)",
-                [str(uuid.uuid4()), first.member_id, v.id, first.id,
-                 '{"tag": "S1", "size": "4x4", "height": "%s", "load": "3000lbf"}' % h, dev,
-                 "2026-01-01T00:00:00+00:00"],
+                [
+                    str(uuid.uuid4()),
+                    first.member_id,
+                    v.id,
+                    first.id,
+                    '{"tag": "S1", "size": "4x4", "height": "%s", "load": "3000lbf"}' % h,
+                    dev,
+                    "2026-01-01T00:00:00+00:00",
+                ],
             )
     out = render_report(empty_log)
-    sec = out[out.index('id="conflicts"'):out.index('id="record"')]
+    sec = out[out.index('id="conflicts"') : out.index('id="record"')]
     assert "S1: 2 revisions made without seeing each other" in sec
     assert "height = 9ft" in sec and "height = 10ft" in sec
     assert "device-B" in sec and "device-C" in sec
@@ -166,7 +194,7 @@ def test_sign_offs_are_on_the_cover(demo_log):
     v = demo_log.visits()[0]
     demo_log.add_review("sign-off", "Basement posts reviewed", visit_id=v.id)
     out = render_report(demo_log)
-    cover = out[:out.index('id="client"')]
+    cover = out[: out.index('id="client"')]
     assert "Basement posts reviewed" in cover and "Reviewing engineer" in cover
 
 

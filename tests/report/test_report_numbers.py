@@ -13,7 +13,7 @@ from fieldcheck.engine.curves import capacity_vs_height
 from fieldcheck.engine.rating import ACTIONS, DUE_DAYS, rate
 from fieldcheck.records import parse_records
 from fieldcheck.report import model
-from fieldcheck.report.html import render_report, ratio_text
+from fieldcheck.report.html import ratio_text, render_report
 from fieldcheck.units import format_force
 
 
@@ -40,8 +40,8 @@ def test_every_check_row_is_the_engines(demo_log):
     posts, r = _engine(demo_log)
     out = render_report(demo_log)
     j = [p.tag for p in posts].index("S4")
-    sec = out[out.index(f'id="m-{posts[j].member_id}"'):]
-    sec = sec[:sec.index("</section>")]
+    sec = out[out.index(f'id="m-{posts[j].member_id}"') :]
+    sec = sec[: sec.index("</section>")]
     for name, c in r.checks.items():
         cap = float(c.capacity_n[j])
         if np.isnan(cap):
@@ -79,8 +79,9 @@ def test_changed_numbers_are_reported_as_a_difference(demo_log, monkeypatch):
 def test_unrated_record_is_shown_with_its_errors(empty_log, parse_html):
     site = empty_log.add_site("Site")
     v = empty_log.add_visit(site.id, "tester")
-    empty_log.save_post(v.id, {"tag": "P1", "size": "4x4", "height": "eight feet"},
-                        allow_errors=True)
+    empty_log.save_post(
+        v.id, {"tag": "P1", "size": "4x4", "height": "eight feet"}, allow_errors=True
+    )
     out = render_report(empty_log)
     p = parse_html(out)
     assert p.problems == [] and p.stack == []
@@ -90,8 +91,8 @@ def test_unrated_record_is_shown_with_its_errors(empty_log, parse_html):
 
 def test_open_actions_sorted_by_urgency_then_ratio(demo_log):
     out = render_report(demo_log)
-    sec = out[out.index('id="actions"'):out.index('id="conflicts"')]
-    table = sec[sec.index("<table>"):]
+    sec = out[out.index('id="actions"') : out.index('id="conflicts"')]
+    table = sec[sec.index("<table>") :]
     order = re.findall(r"<tr><td>([A-Z]\d)", table)
     posts, r = _engine(demo_log)
     expect = sorted(
@@ -145,7 +146,15 @@ def test_report_summary_equals_rating_summary(demo_log):
     data = model.gather(demo_log)
     for p in data.posts:
         full = r.summary(p.j)
-        for key in ("method", "demand_capacity_ratio", "governing_check", "action", "due_days",
-                    "warnings", "load_combination", "remedies"):
+        for key in (
+            "method",
+            "demand_capacity_ratio",
+            "governing_check",
+            "action",
+            "due_days",
+            "warnings",
+            "load_combination",
+            "remedies",
+        ):
             assert p.summary.get(key) == full.get(key), (p.tag, key)
     assert any(p.summary["remedies"] for p in data.posts)  # S4 (demo) has options

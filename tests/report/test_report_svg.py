@@ -11,8 +11,12 @@ from hypothesis import strategies as st
 from fieldcheck.report import svg
 
 
-@given(st.floats(300, 12_000), st.floats(100, 2e6), st.floats(0.01, 3.0),
-       st.sampled_from(["us", "metric"]))
+@given(
+    st.floats(300, 12_000),
+    st.floats(100, 2e6),
+    st.floats(0.01, 3.0),
+    st.sampled_from(["us", "metric"]),
+)
 @settings(max_examples=60, deadline=None)
 def test_curve_marker_and_demand_stay_inside_the_frame(h, cap, dem_ratio, units):
     # common practice, no source: a falling curve like Euler's, capacity ~ 1 / height^2 past a plateau
@@ -28,7 +32,9 @@ def test_curve_marker_and_demand_stay_inside_the_frame(h, cap, dem_ratio, units)
     cx, cy = map(float, re.search(r'<circle cx="([\d.]+)" cy="([\d.]+)"', out).groups())
     assert x0 - 0.1 <= cx <= x1 + 0.1 and y0 - 0.1 <= cy <= y1 + 0.1
     assert "this post (P1)" in out
-    assert ("height (ft)" in out) == (units == "us") and ("capacity (kN)" in out) == (units == "metric")
+    assert ("height (ft)" in out) == (units == "us") and ("capacity (kN)" in out) == (
+        units == "metric"
+    )
 
 
 def test_ticks_cover_the_data():

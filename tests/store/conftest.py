@@ -6,6 +6,7 @@ import pytest
 
 from fieldcheck.store import Log
 
+
 @pytest.fixture
 def log(tmp_path):
     lg = Log.open(tmp_path / "survey.db", author="tester", device="device-A")

@@ -21,8 +21,14 @@ import time
 
 from fieldcheck.store import Log, rated  # imported before any fork, no connection open
 
-POST = {"tag": "K", "size": "4x4", "height": "8ft", "species": "douglas-fir-larch", "grade": "no2",
-        "load": "3000lbf"}
+POST = {
+    "tag": "K",
+    "size": "4x4",
+    "height": "8ft",
+    "species": "douglas-fir-larch",
+    "grade": "no2",
+    "load": "3000lbf",
+}
 
 
 def worker(path: str, fd: int, cycle: int) -> None:
@@ -40,8 +46,9 @@ def worker(path: str, fd: int, cycle: int) -> None:
             out.write(f"post {obs.id}\n")
         else:
             name = f"batch {cycle}-{k}"
-            res = log.import_rows([{**POST, "tag": f"B{cycle}-{k}-{j}"} for j in range(5)],
-                                  "Kill site", name)
+            res = log.import_rows(
+                [{**POST, "tag": f"B{cycle}-{k}-{j}"} for j in range(5)], "Kill site", name
+            )
             out.write(f"batch {name} {res.imported}\n")
 
 
@@ -56,7 +63,11 @@ def verify(path: str, acks: list[str]) -> list[str]:
         if fk:
             bad.append(f"foreign keys: {fk[:3]}")
         if not con.execute("SELECT 1 FROM sqlite_master WHERE name = 'observations'").fetchone():
-            return bad if not any(a.startswith(("post", "batch")) for a in acks) else bad + ["schema lost"]
+            return (
+                bad
+                if not any(a.startswith(("post", "batch")) for a in acks)
+                else bad + ["schema lost"]
+            )
         obs = {r[0] for r in con.execute("SELECT id FROM observations")}
         rated = {r[0] for r in con.execute("SELECT observation_id FROM ratings")}
         visits = {r[0]: r[1] for r in con.execute("SELECT name, id FROM visits")}
@@ -74,17 +85,21 @@ def verify(path: str, acks: list[str]) -> list[str]:
             bad.append(f"{len(obs - rated)} observations without their rating")
         orphans = con.execute(
             "SELECT count(*) FROM observations o LEFT JOIN members m ON m.id = o.member_id "
-            "WHERE m.id IS NULL").fetchone()[0]
+            "WHERE m.id IS NULL"
+        ).fetchone()[0]
         if orphans:
             bad.append(f"{orphans} observations without a member")
         for name, vid in visits.items():
             if name.startswith("batch "):
-                n = con.execute("SELECT count(*) FROM observations WHERE visit_id = ?", [vid]).fetchone()[0]
+                n = con.execute(
+                    "SELECT count(*) FROM observations WHERE visit_id = ?", [vid]
+                ).fetchone()[0]
                 if n != 5:
                     bad.append(f"import {name} half-applied: {n} of 5 posts")
         # the sequence counter moved in the same transactions as the rows: gap-free, no overlap
         seqs = sorted(
-            r[0] for t in ("sites", "visits", "members", "observations", "ratings")
+            r[0]
+            for t in ("sites", "visits", "members", "observations", "ratings")
             for r in con.execute(f"SELECT device_seq FROM {t} WHERE device_id = 'dev-kill'")
         )
         last = con.execute("SELECT value FROM meta WHERE key = 'seq:dev-kill'").fetchone()
@@ -138,7 +153,9 @@ def main() -> None:
             n_posts = len(log.posts())
     except Exception as exc:
         failures.append(f"final open: {exc!r}")
-    print(json.dumps({"cycles": cycles, "acked": total_acks, "posts": n_posts, "failures": failures}))
+    print(
+        json.dumps({"cycles": cycles, "acked": total_acks, "posts": n_posts, "failures": failures})
+    )
 
 
 if __name__ == "__main__":

@@ -13,8 +13,11 @@ from fieldcheck.store import Log
 
 HEIGHTS = ("7ft", "8ft", "9ft", "2.4 m")
 ops = st.lists(
-    st.tuples(st.sampled_from(("new", "fix", "withdraw")), st.integers(0, 5), st.sampled_from(HEIGHTS)),
-    min_size=1, max_size=12,
+    st.tuples(
+        st.sampled_from(("new", "fix", "withdraw")), st.integers(0, 5), st.sampled_from(HEIGHTS)
+    ),
+    min_size=1,
+    max_size=12,
 )
 
 

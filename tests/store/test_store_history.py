@@ -84,8 +84,15 @@ def test_two_heads_are_flagged_as_a_conflict_not_resolved(log, visit, shore):
             log.db.execute(
                 "INSERT INTO observations (id, member_id, visit_id, supersedes, record_json, device_id,"
                 " device_seq, author, created_at) VALUES (?, ?, ?, ?, ?, ?, 1, 'x', ?)",
-                [str(uuid.uuid4()), first.member_id, visit.id, first.id,
-                 '{"tag": "S1", "height": "%s"}' % h, dev, "2026-01-01T00:00:00+00:00"],
+                [
+                    str(uuid.uuid4()),
+                    first.member_id,
+                    visit.id,
+                    first.id,
+                    '{"tag": "S1", "height": "%s"}' % h,
+                    dev,
+                    "2026-01-01T00:00:00+00:00",
+                ],
             )
     assert log.conflicts() == [first.member_id]
     (post,) = log.posts(visit.id)
@@ -118,10 +125,14 @@ def test_rerate_all_adds_new_ratings_and_keeps_the_old(log, visit, shore):
 def test_rerate_all_rates_repeated_records_once_each_row_its_own(log, visit, shore):
     # a run of identical shores (only tag and location differ), a different post, and two rows
     # the engine refuses: every good row gets its own rating, each bad row its own error
-    same = [log.save_post(visit.id, {**shore, "tag": f"R{i}", "location": f"bay {i}"}) for i in range(3)]
+    same = [
+        log.save_post(visit.id, {**shore, "tag": f"R{i}", "location": f"bay {i}"}) for i in range(3)
+    ]
     tall = log.save_post(visit.id, {**shore, "tag": "T", "height": "9ft"})
-    bad = [log.save_post(visit.id, {**shore, "tag": f"B{i}", "height": "tall"}, allow_errors=True)
-           for i in range(2)]
+    bad = [
+        log.save_post(visit.id, {**shore, "tag": f"B{i}", "height": "tall"}, allow_errors=True)
+        for i in range(2)
+    ]
     res = log.rerate_all()
     assert (res.rated, res.unrated) == (4, 2)
     assert sorted(e.row for e in res.errors) == [4, 5]  # rows in log order, one error each
@@ -154,8 +165,10 @@ def test_device_seq_is_per_device_and_gap_free(tmp_path, shore):
         o = lg.save_post(v.id, shore)
         lg.save_post(v.id, {**shore, "height": "tall"}, member_id=o.member_id, allow_errors=True)
         lg.import_rows([shore, {**shore, "load": "heavy"}], "s", "v2")
-        seqs = sorted(r[0] for t in ("sites", "visits", "members", "observations", "ratings")
-                      
-                      for r in lg.db.conn.execute(f"SELECT device_seq FROM {t}"))
+        seqs = sorted(
+            r[0]
+            for t in ("sites", "visits", "members", "observations", "ratings")
+            for r in lg.db.conn.execute(f"SELECT device_seq FROM {t}")
+        )
     # gap-free: a gap would tell the office that a transfer is missing (ecosystem-and-style §2.5)
     assert seqs == list(range(1, len(seqs) + 1))

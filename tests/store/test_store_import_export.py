@@ -39,10 +39,23 @@ def test_export_round_trip_through_csv(log, shore, tmp_path):
         assert res.errors == [] and res.imported == len(table.rows)
         again = other.export_rows()
     numeric = ("ratio", "capacity_kN", "demand_kN")
-    same = [c for c in table.columns if c not in ("site", "visit", "member_id", "observation_id",
-                                                  "revised_at", "revised_by", *numeric)]
+    same = [
+        c
+        for c in table.columns
+        if c
+        not in (
+            "site",
+            "visit",
+            "member_id",
+            "observation_id",
+            "revised_at",
+            "revised_by",
+            *numeric,
+        )
+    ]
     assert [{k: str(r[k] or "") for k in same} for r in again.rows] == [
-        {k: str(r[k] or "") for k in same} for r in table.rows]
+        {k: str(r[k] or "") for k in same} for r in table.rows
+    ]
     # the engine's iterative solves may differ in the last digits between batches
     for a, b in zip(again.rows, table.rows, strict=True):
         for k in numeric:
@@ -78,7 +91,9 @@ def test_commands_demo_import_export(tmp_path, capsys):
         "P2,4x4,eight feet,douglas-fir-larch,no2,3000lbf\n"
         "P3,6x6,9ft,southern-pine,no1,6000lbf\n"
     )
-    rc = main(["import", "--db", db, str(src), "--site", "Yard", "--visit", "Day 1", "--inspector", "K"])
+    rc = main(
+        ["import", "--db", db, str(src), "--site", "Yard", "--visit", "Day 1", "--inspector", "K"]
+    )
     err = capsys.readouterr().err
     assert rc == 1 and "row 2, column height" in err
     out = tmp_path / "out.json"

@@ -27,7 +27,7 @@ def _make_v1(path):
         db.execute(f"INSERT INTO members VALUES ('m1', 's1', 'P1', {origin.format(seq=3)})")
         db.execute(
             "INSERT INTO observations VALUES ('o1', 'm1', 'v1', NULL, 0, '', "
-            "'{\"tag\": \"P1\", \"size\": \"4x4\", \"height\": \"8ft\", \"load\": \"2000lbf\"}', "
+            '\'{"tag": "P1", "size": "4x4", "height": "8ft", "load": "2000lbf"}\', '
             f"{origin.format(seq=4)})"
         )
     assert pragma(db, "user_version") == 1
@@ -38,9 +38,21 @@ def test_every_connection_gets_the_field_pragmas(log):
     assert pragma(log.db, "journal_mode") == "wal"
     assert pragma(log.db, "synchronous") == 2  # FULL
     assert pragma(log.db, "foreign_keys") == 1
-    strict = [r[0] for r in log.db.conn.execute(
-        "SELECT name FROM sqlite_master WHERE type = 'table' AND sql LIKE '%STRICT'")]
-    assert {"sites", "visits", "members", "observations", "ratings", "attachments", "reviews"} <= set(strict)
+    strict = [
+        r[0]
+        for r in log.db.conn.execute(
+            "SELECT name FROM sqlite_master WHERE type = 'table' AND sql LIKE '%STRICT'"
+        )
+    ]
+    assert {
+        "sites",
+        "visits",
+        "members",
+        "observations",
+        "ratings",
+        "attachments",
+        "reviews",
+    } <= set(strict)
     assert log.schema_version == SCHEMA_VERSION
 
 
@@ -56,7 +68,9 @@ def test_upgrade_from_version_1_keeps_data_and_leaves_a_backup(tmp_path):
     _make_v1(path)
     with Log.open(path) as log:
         assert log.schema_version == SCHEMA_VERSION
-        assert log.backup_path is not None and log.backup_path.name.startswith("survey.db.v1-backup-")
+        assert log.backup_path is not None and log.backup_path.name.startswith(
+            "survey.db.v1-backup-"
+        )
         (post,) = log.posts()
         assert post.tag == "P1" and post.record["load"] == "2000lbf" and post.ratio is None
         assert log.device_id == "dev-old"
@@ -83,7 +97,9 @@ def test_newer_schema_is_refused_and_the_file_left_unchanged(tmp_path):
     con.commit()
     con.close()
     before = path.read_bytes()
-    with pytest.raises(LogError, match=r"newer fieldcheck \(schema version 3, this one reads up to 2\)"):
+    with pytest.raises(
+        LogError, match=r"newer fieldcheck \(schema version 3, this one reads up to 2\)"
+    ):
         Log.open(path)
     assert path.read_bytes() == before
 
@@ -102,7 +118,8 @@ def test_unknown_migration_is_refused(tmp_path):
     path = tmp_path / "s.db"
     with Log.open(path) as log:
         log.db.table("_sqlite_migrations").insert(
-            {"migration_set": "fieldcheck", "name": "0099_future", "applied_at": "x"})
+            {"migration_set": "fieldcheck", "name": "0099_future", "applied_at": "x"}
+        )
     with pytest.raises(LogError, match="0099_future"):
         Log.open(path)
 
@@ -115,7 +132,9 @@ def test_damaged_file_is_reported_in_one_sentence(tmp_path, damage, shore):
         v = log.add_visit(s.id, "x")
         for i in range(3):
             log.save_post(v.id, {**shore, "tag": f"P{i}", "notes": "x" * 200})
-        log.import_rows([{**shore, "tag": f"Q{i}", "notes": "y" * 300} for i in range(400)], "s", "v")
+        log.import_rows(
+            [{**shore, "tag": f"Q{i}", "notes": "y" * 300} for i in range(400)], "s", "v"
+        )
     data = path.read_bytes()
     if damage == "garbage":
         path.write_bytes(b"this is not a database at all" * 100)
@@ -123,7 +142,7 @@ def test_damaged_file_is_reported_in_one_sentence(tmp_path, damage, shore):
         path.write_bytes(data[: len(data) // 3])
     else:
         page = 4096
-        path.write_bytes(data[: 2 * page] + b"\xff" * (len(data) - 4 * page) + data[-2 * page:])
+        path.write_bytes(data[: 2 * page] + b"\xff" * (len(data) - 4 * page) + data[-2 * page :])
     try:
         with Log.open(path) as log:
             report = log.integrity()

@@ -12,6 +12,7 @@ import pytest
 from fieldcheck.store import Log
 from fieldcheck.store.merge import TABLE_NAMES
 
+
 @pytest.fixture
 def make_log(tmp_path):
     opened: list[Log] = []

@@ -27,7 +27,9 @@ def _posts(shore, n, prefix):
 def _cli_sync(field: Path, office: Path) -> subprocess.Popen:
     return subprocess.Popen(
         [sys.executable, "-m", "fieldcheck", "sync", "--db", str(field), str(office), "--quiet"],
-        cwd=ROOT, stdout=subprocess.PIPE, stderr=subprocess.PIPE,
+        cwd=ROOT,
+        stdout=subprocess.PIPE,
+        stderr=subprocess.PIPE,
         env={**os.environ, "PYTHONPATH": str(ROOT)},
     )
 
@@ -63,8 +65,9 @@ def test_killed_sync_rerun_loses_and_duplicates_nothing(tmp_path, shore, canon):
     # caught mid-way rather than after the sync has finished.
     t0 = time.monotonic()
     env = {**os.environ, "PYTHONPATH": str(ROOT)}
-    subprocess.run([sys.executable, "-c", _IMPORTS], cwd=ROOT, env=env, capture_output=True,
-                   check=True)
+    subprocess.run(
+        [sys.executable, "-c", _IMPORTS], cwd=ROOT, env=env, capture_output=True, check=True
+    )
     startup = time.monotonic() - t0
     with Log.open(field, author="ann", device="dev-ann") as lg:
         lg.import_rows(_posts(shore, VISIT, "C0-"), "Alder Row", "visit 0")

@@ -17,7 +17,9 @@ def three_fields(tmp_path, shore):
     base = tmp_path / "base"
     base.mkdir()
     office = base / "office.db"
-    logs = {n: Log.open(base / f"{n}.db", author=n, device=f"dev-{n}") for n in ("ann", "bob", "cy")}
+    logs = {
+        n: Log.open(base / f"{n}.db", author=n, device=f"dev-{n}") for n in ("ann", "bob", "cy")
+    }
     a = logs["ann"]
     site = a.add_site("Alder Row")
     visit = a.add_visit(site.id, "ann")

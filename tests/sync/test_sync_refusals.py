@@ -46,7 +46,7 @@ def test_tampered_snapshot(setup, state):
     _, office, bundle = setup
     data = bytearray(bundle.read_bytes())
     i = data.find(b"S2")
-    data[i:i + 2] = b"S9"
+    data[i : i + 2] = b"S9"
     bundle.write_bytes(bytes(data))
     _refused(office, bundle, state, "checksum")
 
@@ -55,11 +55,14 @@ def test_tampered_rows_with_checksum_rewritten(setup, state, tmp_path):
     # a row added to the snapshot and the file checksum recomputed: the ids digest catches it
     _, office, bundle = setup
     conn = sqlite3.connect(bundle)
-    conn.execute("INSERT INTO sites SELECT 'forged-' || id, name, address, notes, device_id, "
-                 "device_seq + 1000, author, created_at FROM sites LIMIT 1")
+    conn.execute(
+        "INSERT INTO sites SELECT 'forged-' || id, name, address, notes, device_id, "
+        "device_seq + 1000, author, created_at FROM sites LIMIT 1"
+    )
     conn.commit()
     conn.close()
     import hashlib
+
     m = json.loads((tmp_path / "a.fcbundle.json").read_text())
     m["snapshot_sha256"] = hashlib.sha256(bundle.read_bytes()).hexdigest()
     m["snapshot_bytes"] = bundle.stat().st_size
@@ -77,6 +80,7 @@ def test_same_id_other_content(setup, state, tmp_path):
     conn.commit()
     conn.close()
     import hashlib
+
     mp = tmp_path / "full.fcbundle.json"
     m = json.loads(mp.read_text())
     m["snapshot_sha256"] = hashlib.sha256(full.read_bytes()).hexdigest()
@@ -130,6 +134,7 @@ def test_bundle_out_of_order_refused(make_log, shore, state, tmp_path):
     visit = a.add_visit(site.id, "ann")
     first = export_bundle(a, tmp_path / "1.fcbundle")
     from fieldcheck.store import bundle as bf
+
     have = json.loads((tmp_path / "1.fcbundle.json").read_text())["vector"]
     a.save_post(visit.id, shore)
     second = tmp_path / "2.fcbundle"

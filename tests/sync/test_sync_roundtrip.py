@@ -2,13 +2,9 @@
 
 from __future__ import annotations
 
-
 from fieldcheck.store import Log
 from fieldcheck.store.merge import conflicted, covered, delta, firm_after, floor
 from fieldcheck.store.sync import export_bundle, import_bundle, open_conflicts, sync
-
-
-
 
 
 def test_first_sync_sends_everything_and_repeat_moves_nothing(make_log, shore, tmp_path):
@@ -105,5 +101,6 @@ def test_merge_rules_without_sqlite():
     import pytest
 
     from fieldcheck.store.merge import TransferRefused
+
     with pytest.raises(TransferRefused, match="another firm"):
         firm_after("F", "G", office=True)

@@ -74,8 +74,9 @@ async def test_ctrl_r_applies_a_remedy_as_a_new_revision_and_the_post_then_passe
         member = editor.member_id
         hist = await app.store.call(lambda log: log.history(member))
         assert len(hist) == 2  # a new revision; the first kept
-        post = next(p for p in await app.store.call(lambda log: log.posts())
-                    if p.member_id == member)
+        post = next(
+            p for p in await app.store.call(lambda log: log.posts()) if p.member_id == member
+        )
         assert post.ratio is not None and post.ratio <= 1.0
         # the remedy's changed field is on the form, even if its section was closed
         for name, value in first.items():
@@ -105,7 +106,9 @@ async def test_f8_switches_the_displayed_units(db: Path) -> None:
         assert any("lbf" in s for s in loads)
 
 
-async def test_conflicts_screen_lists_a_post_revised_in_two_places(db: Path, tmp_path: Path) -> None:
+async def test_conflicts_screen_lists_a_post_revised_in_two_places(
+    db: Path, tmp_path: Path
+) -> None:
     pytest.importorskip("fieldcheck.store.sync")
     from fieldcheck.store import Log, seed_demo
     from fieldcheck.store.sync import sync
@@ -117,12 +120,20 @@ async def test_conflicts_screen_lists_a_post_revised_in_two_places(db: Path, tmp
     post = next(p for p in field.posts(visit.id) if p.tag == "B1")
     sync(field, office)
     other = Log.open(office)  # the office revises B1 ...
-    other.save_post(visit.id, {**post.record, "notes": "office: re-measured 7ft 1in"},
-                    post.member_id, allow_errors=True)
+    other.save_post(
+        visit.id,
+        {**post.record, "notes": "office: re-measured 7ft 1in"},
+        post.member_id,
+        allow_errors=True,
+    )
     other.close()
     # ... and so does the field, without seeing it; the next sync brings both together
-    field.save_post(visit.id, {**post.record, "notes": "field: shimmed at the top"},
-                    post.member_id, allow_errors=True)
+    field.save_post(
+        visit.id,
+        {**post.record, "notes": "field: shimmed at the top"},
+        post.member_id,
+        allow_errors=True,
+    )
     sync(field, office)
     assert field.conflicts() == [post.member_id]  # store/sync.py: kept, never resolved silently
     field.close()
@@ -204,8 +215,11 @@ def footer_keys(app) -> dict[str, str]:
     keys = list(footer.query("FooterKey"))
     palette = [k for k in keys if k.action == "command_palette"]
     limit = min([k.region.x for k in palette] + [app.size.width])
-    return {k.description: k.key_display or k.key for k in keys
-            if k.region.width > 0 and k.region.right <= limit}
+    return {
+        k.description: k.key_display or k.key
+        for k in keys
+        if k.region.width > 0 and k.region.right <= limit
+    }
 
 
 async def test_footer_at_80_by_24_shows_the_main_keys_of_each_screen(db: Path) -> None:
@@ -229,8 +243,17 @@ async def test_footer_at_80_by_24_shows_the_main_keys_of_each_screen(db: Path) -
         await pilot.press("f1")
         await settle(app, pilot)
         helptext = "\n".join(str(w.content) for w in app.screen.query(Static))
-        for word in ("Copy", "Withdraw", "Sort", "Worst", "Filter", "Sync", "Report", "Units",
-                     "Conflicts"):
+        for word in (
+            "Copy",
+            "Withdraw",
+            "Sort",
+            "Worst",
+            "Filter",
+            "Sync",
+            "Report",
+            "Units",
+            "Conflicts",
+        ):
             assert word in helptext, word
 
 
@@ -247,8 +270,13 @@ async def test_closed_sections_are_built_when_opened_and_validate_like_the_rest(
         await pilot.press("ctrl+n")
         await settle(app, pilot)
         editor = app.screen
-        for name, value in (("size", "4x4"), ("height", "8ft"), ("species", "spf"),
-                            ("grade", "no2"), ("load", "2000 lbf")):
+        for name, value in (
+            ("size", "4x4"),
+            ("height", "8ft"),
+            ("species", "spf"),
+            ("grade", "no2"),
+            ("load", "2000 lbf"),
+        ):
             inp = editor.query_one(f"#f-{name}", Input)
             inp.focus()
             await pilot.pause()

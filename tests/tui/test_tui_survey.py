@@ -210,7 +210,14 @@ async def test_usable_at_80_by_24(db: Path) -> None:
         await pilot.press("o")
         await settle(app, pilot)
         editor = app.screen
-        for sel in ("#form", "#side", "#editor-title", "#f-tag", "#rating-panel-scroll", "#rating-head"):
+        for sel in (
+            "#form",
+            "#side",
+            "#editor-title",
+            "#f-tag",
+            "#rating-panel-scroll",
+            "#rating-head",
+        ):
             assert inside(editor.query_one(sel)), sel
         panel = editor.query_one("#rating-head")
         # the head of the rating (action, capacity, demand, ratio, governing) is on screen
@@ -234,8 +241,19 @@ async def test_every_bound_action_is_in_the_command_palette(db: Path) -> None:
         await pilot.press("enter")
         await settle(app, pilot)
         titles = {c.title for c in app.get_system_commands(app.screen)}
-        for needed in ("Open", "Add", "Copy", "Withdraw", "Sort", "Worst", "Filter", "Help",
-                       "Sync", "Report", "Conflicts"):
+        for needed in (
+            "Open",
+            "Add",
+            "Copy",
+            "Withdraw",
+            "Sort",
+            "Worst",
+            "Filter",
+            "Help",
+            "Sync",
+            "Report",
+            "Conflicts",
+        ):
             assert needed in titles, needed
 
 

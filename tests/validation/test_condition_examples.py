@@ -16,8 +16,16 @@ LBF = 4.4482216152605
 
 def _b_6x6(**kw):
     # column-design.md worked example B: 6x6 No.1 DF-L P&T, 10 ft, Ke 1.0; Fb' 1200 psi (example E)
-    return make_batch(d1_mm=5.5 * IN, d2_mm=5.5 * IN, height_mm=120 * IN, fc_mpa=1000 * PSI,
-                      emin_mpa=580000 * PSI, fb_mpa=1200 * PSI, product=TIMBER, **kw)
+    return make_batch(
+        d1_mm=5.5 * IN,
+        d2_mm=5.5 * IN,
+        height_mm=120 * IN,
+        fc_mpa=1000 * PSI,
+        emin_mpa=580000 * PSI,
+        fb_mpa=1200 * PSI,
+        product=TIMBER,
+        **kw,
+    )
 
 
 def test_example_e_eccentric_capacity():
@@ -35,34 +43,74 @@ def test_example_e_interaction_value_at_12000_lb():
     v = r.values
     a = v["area"][0]
     fc_p = v["cp"][0] * v["fc_star"][0]
-    args = (1 / (a * fc_p) ** 2, 1 / (a * v["fce1"][0]), 1 / (a * v["fce2"][0]), 1.0 * IN / v["s1"][0],
-            0.234 / (a * v["fce1"][0]) * IN / v["s1"][0], 0.0, 0.0, v["fb_star"][0], v["fb_star"][0], 0.0)
+    args = (
+        1 / (a * fc_p) ** 2,
+        1 / (a * v["fce1"][0]),
+        1 / (a * v["fce2"][0]),
+        1.0 * IN / v["s1"][0],
+        0.234 / (a * v["fce1"][0]) * IN / v["s1"][0],
+        0.0,
+        0.0,
+        v["fb_star"][0],
+        v["fb_star"][0],
+        0.0,
+    )
     x = np.array([12000 * LBF])
-    den = (1 - args[1] * x) * (1 - args[2] * x)  # the solver's function is f times both denominators
+    den = (1 - args[1] * x) * (
+        1 - args[2] * x
+    )  # the solver's function is f times both denominators
     total = condition._interaction(x, *args) / den + 1.0
     assert total[0] == pytest.approx(0.981598, abs=1e-6)
 
 
 def test_example_f_built_up_nailed_and_bolted():
     # column-design.md worked example F: 3-ply 2x6 No.2 DF-L, 8 ft, Kf 0.6 -> 12,383.9 lb; bolted 15,479.9 lb
-    kw = dict(d1_mm=5.5 * IN, d2_mm=4.5 * IN, height_mm=96 * IN, fc_mpa=1350 * PSI, cf_fc=1.1,
-              emin_mpa=580000 * PSI, shape=2, plies=3)
+    kw = dict(
+        d1_mm=5.5 * IN,
+        d2_mm=4.5 * IN,
+        height_mm=96 * IN,
+        fc_mpa=1350 * PSI,
+        cf_fc=1.1,
+        emin_mpa=580000 * PSI,
+        shape=2,
+        plies=3,
+    )
     assert rate(make_batch(kf=0.6, **kw)).capacity_n[0] / LBF == pytest.approx(12383.9, abs=0.1)
     assert rate(make_batch(kf=0.75, **kw)).capacity_n[0] / LBF == pytest.approx(15479.9, abs=0.1)
 
 
 def test_example_g_bowed_post():
     # column-design.md worked example G: 4x4 No.2 DF-L, 8 ft, P 4,000 lb, bow 0.5 in -> ratio 0.758028
-    b = make_batch(d1_mm=3.5 * IN, d2_mm=3.5 * IN, height_mm=96 * IN, fc_mpa=1350 * PSI, cf_fc=1.15,
-                   emin_mpa=580000 * PSI, fb_mpa=900 * PSI, cf_fb=1.5, load_n=4000 * LBF, bow2_mm=0.5 * IN)
+    b = make_batch(
+        d1_mm=3.5 * IN,
+        d2_mm=3.5 * IN,
+        height_mm=96 * IN,
+        fc_mpa=1350 * PSI,
+        cf_fc=1.15,
+        emin_mpa=580000 * PSI,
+        fb_mpa=900 * PSI,
+        cf_fb=1.5,
+        load_n=4000 * LBF,
+        bow2_mm=0.5 * IN,
+    )
     r = rate(b)
     v = r.values
     a = v["area"][0]
     fc_p = v["cp"][0] * v["fc_star"][0]
     assert fc_p / PSI == pytest.approx(568.1337, abs=1e-3)
     assert v["fb_star"][0] / PSI == pytest.approx(1350.0)
-    args = (1 / (a * fc_p) ** 2, 1 / (a * v["fce1"][0]), 1 / (a * v["fce2"][0]), 0.0, 0.0,
-            0.5 * IN / v["s2"][0], 0.0, v["fb_star"][0], v["fb_star"][0], 0.0)
+    args = (
+        1 / (a * fc_p) ** 2,
+        1 / (a * v["fce1"][0]),
+        1 / (a * v["fce2"][0]),
+        0.0,
+        0.0,
+        0.5 * IN / v["s2"][0],
+        0.0,
+        v["fb_star"][0],
+        v["fb_star"][0],
+        0.0,
+    )
     x = np.array([4000 * LBF])
     den = (1 - args[1] * x) * (1 - args[2] * x)
     assert (condition._interaction(x, *args) / den + 1.0)[0] == pytest.approx(0.758028, abs=1e-6)
@@ -102,20 +150,37 @@ def test_slope_between_rows_takes_the_steeper_row():
 
 def test_slope_steeper_than_table_is_continuous_and_lower():
     q = np.full(3, 0.46)
-    sr, beyond = condition.slope_ratio(np.array([6.0, 5.999, 3.0]), np.zeros(3, dtype=np.int8), "compression", q)
+    sr, beyond = condition.slope_ratio(
+        np.array([6.0, 5.999, 3.0]), np.zeros(3, dtype=np.int8), "compression", q
+    )
     assert beyond.tolist() == [False, True, True]
     assert sr[1] == pytest.approx(0.56, rel=1e-3) and sr[2] < sr[1] <= 0.56
 
 
 def test_knot_strength_ratio():
     # field-practice.md §1.2: 1 in knot on a 3.5 in face -> 1 - 1/3.5 = 0.714 (formula from memory)
-    b = make_batch(d1_mm=3.5 * IN, d2_mm=3.5 * IN, height_mm=96 * IN, fc_mpa=1350 * PSI, emin_mpa=580000 * PSI,
-                   knot_mm=1.0 * IN)
+    b = make_batch(
+        d1_mm=3.5 * IN,
+        d2_mm=3.5 * IN,
+        height_mm=96 * IN,
+        fc_mpa=1350 * PSI,
+        emin_mpa=580000 * PSI,
+        knot_mm=1.0 * IN,
+    )
     assert condition.strength_ratios(b)["strength_ratio"][0] == pytest.approx(0.714286, abs=1e-6)
 
 
 def test_lowest_ratio_not_product():
     # D245: several characteristics take the lowest ratio (from memory)
-    b = make_batch(d1_mm=3.5 * IN, d2_mm=3.5 * IN, height_mm=96 * IN, fc_mpa=1350 * PSI, emin_mpa=580000 * PSI,
-                   knot_mm=1.0 * IN, slope_n=10.0)
-    assert condition.strength_ratios(b)["strength_ratio"][0] == pytest.approx(min(0.714286, 0.74), abs=1e-6)
+    b = make_batch(
+        d1_mm=3.5 * IN,
+        d2_mm=3.5 * IN,
+        height_mm=96 * IN,
+        fc_mpa=1350 * PSI,
+        emin_mpa=580000 * PSI,
+        knot_mm=1.0 * IN,
+        slope_n=10.0,
+    )
+    assert condition.strength_ratios(b)["strength_ratio"][0] == pytest.approx(
+        min(0.714286, 0.74), abs=1e-6
+    )

@@ -4,8 +4,14 @@ import pytest
 
 from fieldcheck.records import rate_records
 
-BASE = {"method": "ec5", "class": "C24", "service_class": "1", "duration": "medium-term",
-        "section": "100x100mm", "height": "3 m"}
+BASE = {
+    "method": "ec5",
+    "class": "C24",
+    "service_class": "1",
+    "duration": "medium-term",
+    "section": "100x100mm",
+    "height": "3 m",
+}
 
 
 def test_bow_checked_by_eq_6_24_by_hand():

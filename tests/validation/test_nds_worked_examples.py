@@ -22,9 +22,18 @@ IN = 25.4
 
 
 def dfl_no2_4x4(height_in, **kw):
-    base = dict(d1_mm=3.5 * IN, d2_mm=3.5 * IN, height_mm=height_in * IN, fc_mpa=1350 * PSI,
-                emin_mpa=580_000 * PSI, e_mpa=1_600_000 * PSI, fb_mpa=900 * PSI, fc_perp_mpa=625 * PSI,
-                cf_fc=1.15, cf_fb=1.5)
+    base = dict(
+        d1_mm=3.5 * IN,
+        d2_mm=3.5 * IN,
+        height_mm=height_in * IN,
+        fc_mpa=1350 * PSI,
+        emin_mpa=580_000 * PSI,
+        e_mpa=1_600_000 * PSI,
+        fb_mpa=900 * PSI,
+        fc_perp_mpa=625 * PSI,
+        cf_fc=1.15,
+        cf_fb=1.5,
+    )
     base.update(kw)
     return make_batch(**base)
 
@@ -32,10 +41,20 @@ def dfl_no2_4x4(height_in, **kw):
 @pytest.mark.parametrize(
     ("ratio", "c", "expected"),
     [  # column-design.md §1.1 Cp unit-test table, computed from NDS 2018 Eq. 3.7-1
-        (0.10, 0.8, 0.097876), (0.25, 0.8, 0.235492), (0.50, 0.8, 0.433609), (1.00, 0.8, 0.690983),
-        (2.00, 0.8, 0.867218), (5.00, 0.8, 0.954915), (0.10, 0.85, 0.098389), (0.50, 0.85, 0.446106),
-        (1.00, 0.85, 0.720825), (5.00, 0.85, 0.965354), (0.25, 0.9, 0.242255), (1.00, 0.9, 0.759747),
-        (2.00, 0.9, 0.921311), (5.00, 0.9, 0.976311),
+        (0.10, 0.8, 0.097876),
+        (0.25, 0.8, 0.235492),
+        (0.50, 0.8, 0.433609),
+        (1.00, 0.8, 0.690983),
+        (2.00, 0.8, 0.867218),
+        (5.00, 0.8, 0.954915),
+        (0.10, 0.85, 0.098389),
+        (0.50, 0.85, 0.446106),
+        (1.00, 0.85, 0.720825),
+        (5.00, 0.85, 0.965354),
+        (0.25, 0.9, 0.242255),
+        (1.00, 0.9, 0.759747),
+        (2.00, 0.9, 0.921311),
+        (5.00, 0.9, 0.976311),
     ],
 )
 def test_cp_table(ratio, c, expected):
@@ -84,8 +103,14 @@ def test_example_a4_lrfd():
 
 
 def test_example_b_6x6_posts_and_timbers():
-    b = make_batch(d1_mm=5.5 * IN, d2_mm=5.5 * IN, height_mm=120 * IN, fc_mpa=1000 * PSI,
-                   emin_mpa=580_000 * PSI, product=TIMBER)
+    b = make_batch(
+        d1_mm=5.5 * IN,
+        d2_mm=5.5 * IN,
+        height_mm=120 * IN,
+        fc_mpa=1000 * PSI,
+        emin_mpa=580_000 * PSI,
+        product=TIMBER,
+    )
     r = rate(b)  # column-design.md worked example B
     assert r.le_d1[0] == pytest.approx(21.81818, rel=1e-6)
     assert r.fce1[0] / PSI == pytest.approx(1001.527, rel=1e-6)
@@ -94,8 +119,12 @@ def test_example_b_6x6_posts_and_timbers():
 
 
 def test_example_c_flagpole_recommended_and_theoretical():
-    b = dfl_no2_4x4(np.array([96.0, 96.0, 72.0]), bottom=FIXED, top=FREE,
-                    theoretical_k=np.array([False, True, False]))
+    b = dfl_no2_4x4(
+        np.array([96.0, 96.0, 72.0]),
+        bottom=FIXED,
+        top=FREE,
+        theoretical_k=np.array([False, True, False]),
+    )
     r = rate(b)  # column-design.md worked example C; NDS 2018 Appendix G case (e)
     assert r.ke1 == pytest.approx([2.10, 2.0, 2.10])
     assert r.le_d1 == pytest.approx([57.6, 54.857, 43.2], rel=1e-4)
@@ -117,8 +146,15 @@ def test_example_c_construction_stage_allows_75():
 
 def test_example_f_built_up_nailed_and_bolted():
     # column-design.md worked example F: 3-ply 2x6 No.2 DF-L, 8 ft; NDS 2018 §15.3 (Kf from memory)
-    base = dict(d1_mm=5.5 * IN, d2_mm=4.5 * IN, height_mm=96 * IN, fc_mpa=1350 * PSI,
-                emin_mpa=580_000 * PSI, cf_fc=1.1, plies=3)
+    base = dict(
+        d1_mm=5.5 * IN,
+        d2_mm=4.5 * IN,
+        height_mm=96 * IN,
+        fc_mpa=1350 * PSI,
+        emin_mpa=580_000 * PSI,
+        cf_fc=1.1,
+        plies=3,
+    )
     r = rate(make_batch(kf=np.array([0.6, 0.75]), **base))
     assert r.cp2 == pytest.approx([0.336943, 0.421179], abs=2e-6)
     assert r.cp1[0] == pytest.approx(0.708782, abs=2e-6)
@@ -127,15 +163,30 @@ def test_example_f_built_up_nailed_and_bolted():
 
 def test_example_h_bearing_on_sill():
     # column-design.md worked example H; NDS 2018 §3.10.2, §3.10.4 (Fc-perp 625 psi from memory)
-    b = dfl_no2_4x4(np.array([12.0, 12.0]), bottom_fc_perp_mpa=625 * PSI, bottom_lb_mm=3.5 * IN,
-                    bottom_cb=np.array([False, True]))
+    b = dfl_no2_4x4(
+        np.array([12.0, 12.0]),
+        bottom_fc_perp_mpa=625 * PSI,
+        bottom_lb_mm=3.5 * IN,
+        bottom_cb=np.array([False, True]),
+    )
     r = rate(b)
     assert r.checks["sill_bearing"].capacity_n / LBF == pytest.approx([7656.25, 8476.56], rel=1e-6)
     assert r.cb_bot[1] == pytest.approx(1.107143, abs=1e-6)
 
 
-@pytest.mark.parametrize(("lb_in", "cb"), [(0.5, 1.75), (1.0, 1.375), (1.5, 1.25), (2.0, 1.1875),
-                                           (3.0, 1.125), (4.0, 1.09375), (5.5, 1.068182), (6.0, 1.0)])
+@pytest.mark.parametrize(
+    ("lb_in", "cb"),
+    [
+        (0.5, 1.75),
+        (1.0, 1.375),
+        (1.5, 1.25),
+        (2.0, 1.1875),
+        (3.0, 1.125),
+        (4.0, 1.09375),
+        (5.5, 1.068182),
+        (6.0, 1.0),
+    ],
+)
 def test_bearing_area_factor_table(lb_in, cb):
     # column-design.md §3.1 Cb table, computed from NDS 2018 §3.10.4
     got = nds.bearing_area_factor(np.array([lb_in * IN]), np.array([True]))
@@ -143,8 +194,18 @@ def test_bearing_area_factor_table(lb_in, cb):
 
 
 def test_example_a_through_records_matches_engine():
-    r, errors = rate_records([{"size": "4x4", "height": "10ft", "species": "douglas-fir-larch",
-                               "grade": "no2", "top": "pinned", "bottom": "pinned"}])
+    r, errors = rate_records(
+        [
+            {
+                "size": "4x4",
+                "height": "10ft",
+                "species": "douglas-fir-larch",
+                "grade": "no2",
+                "top": "pinned",
+                "bottom": "pinned",
+            }
+        ]
+    )
     assert errors == []
     assert r.capacity_n[0] / LBF == pytest.approx(4665.07, rel=1e-5)  # worked example A, 10 ft
 
