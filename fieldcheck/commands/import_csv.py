@@ -1,11 +1,11 @@
-"""`fieldcheck import`: add posts from a CSV file (the `rate --batch` column set) to a survey log."""
+"""`fieldcheck import`: add posts from a CSV file (the `rate --batch` columns) to a survey log."""
 
 from __future__ import annotations
 
 import argparse
-import csv
 import sys
 
+from fieldcheck.commands.csv_option import add_csv_options, open_posts, read_all
 from fieldcheck.commands.log_option import add_db_option, open_log
 
 DESCRIPTION = (
@@ -24,6 +24,7 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
     p.add_argument(
         "--bundle", metavar="IN", help="take a sync bundle (IN and IN.json) instead of a CSV"
     )
+    add_csv_options(p)
 
 
 def run(args: argparse.Namespace) -> int:
@@ -43,13 +44,8 @@ def run(args: argparse.Namespace) -> int:
             "import: give --site NAME and --visit NAME for the imported posts, e.g. "
             "--site '14 Alder Row' --visit 'Basement survey'"
         )
-    try:
-        with open(args.csv, newline="", encoding="utf-8-sig") as fh:
-            rows = list(csv.DictReader(ln for ln in fh if not ln.startswith("#")))
-    except OSError as exc:
-        raise UsageError(f"import: cannot read {args.csv} ({exc.strerror})") from None
-    except (csv.Error, UnicodeDecodeError) as exc:
-        raise UsageError(f"import: {args.csv} is not a readable CSV file ({exc})") from None
+    with open_posts(args, args.csv) as table:
+        rows = read_all(table)
     with open_log(args) as log:
         result = log.import_rows(rows, args.site, args.visit, inspector=args.inspector)
         for err in result.errors:

@@ -10,9 +10,10 @@ import sys
 from fieldcheck.records.columns import COLUMNS
 
 DESCRIPTION = (
-    "Rate a timber post or shore. Values take units in your own notation (3-1/2 in, 8' 6\", 2.44 m, "
-    "89 mm, 4 kip, 17.8 kN, 24%). With --batch, every CSV column is one of the options below "
-    "(without the dashes, - written _), one post per row. A screening aid for a competent person."
+    "Rate a timber post or shore. Values take units in your own notation (3-1/2 in, 8' 6\", "
+    "2.44 m, 89 mm, 4 kip, 17.8 kN, 24%). With --batch, every CSV column is one of the options "
+    "below (without the dashes, - written _, any letter case), one post per row. A screening aid "
+    "for a competent person."
 )
 RESULT_COLUMNS = (
     "allowable_load_lbf",
@@ -56,6 +57,9 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
     )
     out.add_argument("--batch", metavar="IN.csv", help="rate every row of a CSV file")
     out.add_argument("--out", metavar="OUT.csv", help="with --batch: where to write the results")
+    from fieldcheck.commands.csv_option import add_csv_options
+
+    add_csv_options(out)
 
 
 def _record(args: argparse.Namespace) -> dict[str, str]:
@@ -65,6 +69,12 @@ def _record(args: argparse.Namespace) -> dict[str, str]:
 def run(args: argparse.Namespace) -> int:
     if args.batch:
         return _run_batch(args)
+    from fieldcheck.cli import UsageError
+
+    if args.out:
+        raise UsageError("--out is the results file of --batch; give --batch IN.csv too")
+    if getattr(args, "ignore_unknown_columns", False):
+        raise UsageError("--ignore-unknown-columns applies to --batch IN.csv; give --batch too")
     from fieldcheck.records import parse_records
 
     rec = _record(args)
@@ -110,15 +120,15 @@ def _text(s: dict, system: str) -> str:
     lines.append(f"ACTION        {s['action_text']}")
     for c in s["checks"]:
         r = "" if c["ratio"] is None else f"  ratio {c['ratio']:.3f}"
-        lines.append(
-            f"  - {c['label']}: {format_force(c['capacity_kN'] * 1000.0, system)}{r}  [{c['clause']}]"
-        )
+        cap_text = format_force(c["capacity_kN"] * 1000.0, system)
+        lines.append(f"  - {c['label']}: {cap_text}{r}  [{c['clause']}]")
     for w in s["warnings"]:
         lines.append(f"  ! {w}")
     lc = s.get("load_combination")
     if lc and lc.get("key"):
         lines.append(
-            f"Load          {lc['name']} governs, {lc['factor_name']} {lc['factor']}  [{lc['clause']}]"
+            f"Load          {lc['name']} governs, {lc['factor_name']} {lc['factor']}  "
+            f"[{lc['clause']}]"
         )
     if s.get("bracing") and s["bracing"]["total_kN"] is not None:
         br = s["bracing"]
@@ -138,20 +148,14 @@ def _text(s: dict, system: str) -> str:
 
 
 def _run_batch(args: argparse.Namespace) -> int:
-    from fieldcheck.cli import UsageError
+    from fieldcheck.commands.csv_option import open_posts, read_all
+    from fieldcheck.commands.out_file import write_atomically
     from fieldcheck.records import parse_records
     from fieldcheck.report.batch_csv import KEEP, result_columns
 
-    try:
-        with open(args.batch, newline="", encoding="utf-8-sig") as fh:
-            rows = list(csv.DictReader(fh))
-    except OSError as exc:
-        raise UsageError(f"batch: cannot read {args.batch} ({exc.strerror}).") from None
-    if rows and (unknown := [c for c in rows[0] if c not in COLUMNS]):
-        print(
-            f"fieldcheck: batch: columns not used for rating: {', '.join(unknown)}.",
-            file=sys.stderr,
-        )
+    with open_posts(args, args.batch) as table:
+        rows = read_all(table)
+        fieldnames = table.columns
     parsed = parse_records(rows)
     from fieldcheck.engine.rating import rate
 
@@ -162,9 +166,8 @@ def _run_batch(args: argparse.Namespace) -> int:
     errors_by_row: dict[int, list[str]] = {}
     for err in parsed.errors:
         errors_by_row.setdefault(err.row, []).append(f"{err.column}: {err.message}")
-    out = open(args.out, "w", newline="", encoding="utf-8") if args.out else sys.stdout
-    try:
-        fieldnames = list(rows[0].keys()) if rows else []
+
+    def write(out) -> None:
         w = csv.writer(out)
         w.writerow(fieldnames + list(RESULT_COLUMNS))
         j = 0
@@ -175,9 +178,11 @@ def _run_batch(args: argparse.Namespace) -> int:
                 j += 1
             else:
                 w.writerow(base + [""] * (len(RESULT_COLUMNS) - 1) + ["; ".join(errors_by_row[i])])
-    finally:
-        if out is not sys.stdout:
-            out.close()
+
+    if args.out:
+        write_atomically(args.out, write)
+    else:
+        write(sys.stdout)
     rated = int(parsed.ok.sum())
     print(
         f"fieldcheck: rated {rated} of {len(rows)} posts"

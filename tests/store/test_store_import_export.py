@@ -85,7 +85,6 @@ def test_commands_demo_import_export(tmp_path, capsys):
     capsys.readouterr()
     src = tmp_path / "in.csv"
     src.write_text(
-        "# posts from the tablet\n"
         "tag,size,height,species,grade,load\n"
         "P1,4x4,8ft,douglas-fir-larch,no2,3000lbf\n"
         "P2,4x4,eight feet,douglas-fir-larch,no2,3000lbf\n"

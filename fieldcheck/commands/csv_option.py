@@ -1,0 +1,77 @@
+"""The CSV input shared by `rate --batch` and `import`: one reader, one option, one message."""
+
+from __future__ import annotations
+
+import argparse
+import sys
+
+# columns an export or a rated batch file adds beside the record: known, never rated, so a file
+# fieldcheck wrote reads back without --ignore-unknown-columns
+WRITTEN_BY_FIELDCHECK = (
+    # fieldcheck.store.repo.EXPORT_ONLY_COLUMNS
+    "site",
+    "visit",
+    "member_id",
+    "observation_id",
+    "revised_at",
+    "revised_by",
+    "ratio",
+    "action",
+    "capacity_kN",
+    "demand_kN",
+    "governing",
+    "engine_version",
+    # fieldcheck.commands.rate.RESULT_COLUMNS
+    "allowable_load_lbf",
+    "allowable_load_kN",
+    "demand_capacity_ratio",
+    "governing_check",
+    "effective_length_factor",
+    "slenderness_ratio",
+    "stability_factor",
+    "within_slenderness_limit",
+    "warnings",
+    "error",
+)
+
+
+def add_csv_options(p: argparse.ArgumentParser) -> None:
+    p.add_argument(
+        "--ignore-unknown-columns",
+        action="store_true",
+        help="leave out CSV columns fieldcheck does not know (refused otherwise)",
+    )
+
+
+def open_posts(args: argparse.Namespace, path: str):
+    """The CSV file of posts, header checked (a problem is a UsageError: one sentence, exit 2)."""
+    from fieldcheck.cli import UsageError
+    from fieldcheck.records.csv_file import CsvProblem
+    from fieldcheck.records.csv_file import open_posts as _open
+
+    try:
+        table = _open(
+            path,
+            also=WRITTEN_BY_FIELDCHECK,
+            ignore_unknown=getattr(args, "ignore_unknown_columns", False),
+        )
+    except CsvProblem as exc:
+        raise UsageError(str(exc)) from None
+    if table.ignored:
+        print(
+            f"fieldcheck: left out the columns {', '.join(table.ignored)} of {path} "
+            "(--ignore-unknown-columns).",
+            file=sys.stderr,
+        )
+    return table
+
+
+def read_all(table) -> list[dict[str, str]]:
+    """Every row (a CsvProblem on a later line is a UsageError too)."""
+    from fieldcheck.cli import UsageError
+    from fieldcheck.records.csv_file import CsvProblem
+
+    try:
+        return list(table)
+    except CsvProblem as exc:
+        raise UsageError(str(exc)) from None

@@ -1,0 +1,174 @@
+"""The one CSV reader of `rate --batch` and `import`: every line read, one sentence per problem
+naming the file and the line, headers in any spelling, unknown and duplicated headers refused."""
+
+from __future__ import annotations
+
+import csv
+import json
+import os
+
+import pytest
+
+from fieldcheck.cli import main
+from fieldcheck.records.csv_file import CsvProblem, open_posts
+from fieldcheck.store import Log
+
+HEADER = "tag,size,height,species,grade,load,duration,construction"
+ROW = "{tag},4x4,8ft,douglas-fir-larch,no2,3000lbf,seven-days,yes"
+
+
+def _write(path, text: str, encoding: str = "utf-8") -> str:
+    path.write_bytes(text.encode(encoding))
+    return str(path)
+
+
+def _one_sentence(err: str) -> None:
+    assert "Traceback" not in err
+    lines = [ln for ln in err.strip().splitlines() if ln.strip()]
+    assert len(lines) == 1, err
+
+
+def test_a_tag_starting_with_hash_is_a_post(tmp_path, capsys):
+    src = _write(tmp_path / "p.csv", f"{HEADER}\n{ROW.format(tag='#4')}\n{ROW.format(tag='P5')}\n")
+    db = tmp_path / "s.db"
+    assert main(["import", "--db", str(db), src, "--site", "A", "--visit", "V"]) == 0
+    assert "Imported 2 of 2 posts" in capsys.readouterr().out
+    with Log.open(db, readonly=True) as lg:
+        assert sorted(p.tag for p in lg.posts()) == ["#4", "P5"]
+
+
+def test_export_import_round_trip_keeps_hash_tags(tmp_path, capsys):
+    src = _write(tmp_path / "p.csv", f"{HEADER}\n{ROW.format(tag='#4')}\n")
+    a, b, out = tmp_path / "a.db", tmp_path / "b.db", tmp_path / "out.csv"
+    assert main(["import", "--db", str(a), src, "--site", "A", "--visit", "V"]) == 0
+    assert main(["export", "--db", str(a), "--out", str(out)]) == 0
+    assert main(["import", "--db", str(b), str(out), "--site", "B", "--visit", "V"]) == 0
+    with Log.open(b, readonly=True) as lg:
+        assert [p.tag for p in lg.posts()] == ["#4"]
+
+
+def test_rate_batch_and_import_read_alike(tmp_path, capsys):
+    src = _write(tmp_path / "p.csv", f"{HEADER}\n{ROW.format(tag='#1')}\n{ROW.format(tag='2')}\n")
+    out = tmp_path / "out.csv"
+    assert main(["rate", "--batch", src, "--out", str(out)]) == 0
+    with out.open(newline="") as fh:
+        assert [r["tag"] for r in csv.DictReader(fh)] == ["#1", "2"]
+
+
+@pytest.mark.parametrize("sep", [";", "\t"])
+def test_semicolon_and_tab_separated(tmp_path, sep):
+    text = f"{HEADER}\n{ROW.format(tag='A')}\n".replace(",", sep)
+    with open_posts(_write(tmp_path / "p.csv", text)) as t:
+        rows = list(t)
+    assert rows[0]["tag"] == "A" and rows[0]["species"] == "douglas-fir-larch"
+
+
+def test_header_spellings_any_case_and_hyphen(tmp_path):
+    text = "TAG,Size,height,species,grade,load,Decay-Wide\nA,4x4,8ft,spf,no2,1kip,1in\n"
+    with open_posts(_write(tmp_path / "p.csv", text)) as t:
+        assert t.columns[-1] == "decay_wide"
+        assert next(iter(t))["decay_wide"] == "1in"
+
+
+def _refused(tmp_path, capsys, text: bytes | str, *words: str, extra=()) -> str:
+    path = tmp_path / "bad.csv"
+    path.write_bytes(text if isinstance(text, bytes) else text.encode())
+    db = tmp_path / "s.db"
+    for argv in (
+        ["rate", "--batch", str(path), *extra],
+        ["import", "--db", str(db), str(path), "--site", "A", "--visit", "V", *extra],
+    ):
+        assert main(argv) == 2
+        err = capsys.readouterr().err
+        _one_sentence(err)
+        assert "bad.csv" in err
+        for w in words:
+            assert w in err, err
+    return err
+
+
+def test_unknown_column_refused_unless_ignored(tmp_path, capsys):
+    text = f"{HEADER},decay wide\n{ROW.format(tag='A')},1in\n"
+    _refused(tmp_path, capsys, text, "line 1", "decay wide", "--ignore-unknown-columns")
+    db = tmp_path / "ok.db"
+    path = tmp_path / "bad.csv"
+    argv = ["import", "--db", str(db), str(path), "--site", "A", "--visit", "V"]
+    assert main([*argv, "--ignore-unknown-columns"]) == 0
+    assert "left out the columns decay wide" in capsys.readouterr().err
+
+
+def test_duplicated_header_refused(tmp_path, capsys):
+    text = f"{HEADER},Size\n{ROW.format(tag='A')},6x6\n"
+    _refused(tmp_path, capsys, text, "line 1", "twice")
+
+
+def test_ragged_row_refused_with_its_line(tmp_path, capsys):
+    text = f"{HEADER}\n{ROW.format(tag='A')}\n{ROW.format(tag='B')},extra\n"
+    _refused(tmp_path, capsys, text, "line 3", "9 cells")
+
+
+def test_oversized_cell_refused_with_its_line(tmp_path, capsys):
+    text = f"{HEADER}\n{ROW.format(tag='A')}\n{ROW.format(tag='x' * 200_000)}\n"
+    _refused(tmp_path, capsys, text, "line 3", "longer than")
+
+
+def test_latin1_refused_with_a_hint(tmp_path, capsys):
+    text = f"{HEADER},location\n{ROW.format(tag='A')},cave\n{ROW.format(tag='B')},café\n"
+    _refused(tmp_path, capsys, text.encode("latin-1"), "line 3", "UTF-8")
+
+
+def test_utf16_refused_with_a_hint(tmp_path, capsys):
+    text = f"{HEADER}\n{ROW.format(tag='A')}\n"
+    _refused(tmp_path, capsys, text.encode("utf-16"), "line 1", "UTF-8")
+
+
+def test_utf8_with_bom_is_read(tmp_path):
+    text = f"{HEADER}\n{ROW.format(tag='A')}\n"
+    with open_posts(_write(tmp_path / "p.csv", text, "utf-8-sig")) as t:
+        assert next(iter(t))["tag"] == "A"
+
+
+def test_reader_streams_in_chunks(tmp_path):
+    text = HEADER + "\n" + "".join(ROW.format(tag=i) + "\n" for i in range(25))
+    with open_posts(_write(tmp_path / "p.csv", text)) as t:
+        assert [len(c) for c in t.chunks(10)] == [10, 10, 5]
+
+
+def test_problem_is_a_value_error(tmp_path):
+    with pytest.raises(CsvProblem, match="twice"):
+        open_posts(_write(tmp_path / "p.csv", "tag,TAG\n1,2\n"))
+    assert issubclass(CsvProblem, ValueError)
+    json.dumps(str(CsvProblem("x")))
+
+
+def test_batch_out_on_a_full_disk_is_one_sentence(tmp_path, capsys, monkeypatch):
+    # /dev/full answers every write with ENOSPC (Linux)
+    src = _write(tmp_path / "p.csv", f"{HEADER}\n{ROW.format(tag='A')}\n")
+    if not os.path.exists("/dev/full"):
+        pytest.skip("no /dev/full here")
+    from fieldcheck.commands import out_file
+
+    monkeypatch.setattr(
+        out_file,
+        "open",
+        lambda p, *a, **k: open("/dev/full", *a, **k),  # noqa: SIM115
+        raising=False,
+    )
+    assert main(["rate", "--batch", src, "--out", str(tmp_path / "o.csv")]) == 2
+    err = capsys.readouterr().err
+    _one_sentence(err)
+    assert "disk is full" in err and "o.csv" in err
+    assert not list(tmp_path.glob(".o.csv.*"))
+
+
+def test_batch_out_in_a_missing_folder_is_one_sentence(tmp_path, capsys):
+    src = _write(tmp_path / "p.csv", f"{HEADER}\n{ROW.format(tag='A')}\n")
+    assert main(["rate", "--batch", src, "--out", str(tmp_path / "no" / "o.csv")]) == 2
+    err = capsys.readouterr().err
+    _one_sentence(err)
+    assert "does not exist" in err
+
+
+def test_out_without_batch_is_refused(capsys):
+    assert main(["rate", "--size", "4x4", "--height", "8ft", "--out", "x.csv"]) == 2
+    assert "--batch" in capsys.readouterr().err
