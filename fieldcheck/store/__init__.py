@@ -22,7 +22,8 @@ dataclasses from ``fieldcheck.store.repo``)::
         # (empty cells dropped). member_id None: a new post; else a new revision superseding the
         # current head. Rated in the same transaction. Field errors raise ValueError (first error)
         # unless allow_errors=True (then stored unrated).
-    log.withdraw(member_id, visit_id, reason) -> Observation   # hidden from posts(), kept in history
+    log.withdraw(member_id, visit_id, reason) -> Observation
+        # hidden from posts(), kept in history
     log.head(member_id) -> Observation | None;  log.history(member_id) -> list[Observation]
     log.observation(id) -> Observation
     log.posts(visit_id=None, *, site_id=None, include_withdrawn=False) -> list[PostView]
@@ -39,16 +40,27 @@ dataclasses from ``fieldcheck.store.repo``)::
     log.rerate_all() -> RerateResult(rated, unrated, engine_version, errors)  # one engine call
     log.conflicts() -> list[member_id]                      # members with more than one head
 
-    log.import_rows(rows, site, visit, inspector=None) -> ImportResult(imported, errors, site, visit)
+    log.import_rows(rows, site, visit, inspector=None)
+        -> ImportResult(imported, errors, site, visit)
         # rows: iterable of dict[str, str] (the `rate --batch` column set); one transaction, one
         # engine call; bad rows are left out and reported as RowError(row, column, message)
     log.export_rows(visit_id=None) -> ExportTable(columns, rows)   # record columns + rating columns
 
     log.attach(observation_id, photo_path, caption="") -> Attachment   # path + sha256 + size
     log.attachments(member_id=None) -> list[Attachment]
-    log.check_attachments() -> list[AttachmentProblem]   # .problem "missing" | "changed", .sentence()
+    log.check_attachments() -> list[AttachmentProblem]
+        # .problem "missing" | "changed", .sentence()
     log.add_review(kind, text, *, member_id=None, observation_id=None, visit_id=None) -> Review
     log.reviews(member_id=None) -> list[Review]           # kind "note" | "sign-off"
+    log.propose_remedy(observation_id, kind=, description=, changes=, ratio=None) -> Proposal
+        # a remedy as a proposal linked to that revision (the post as found); the post itself
+        # is not changed and stays rated as found
+    log.proposals(member_id=None, open_only=False) -> list[Proposal]   # .done_on None while open
+    log.record_remedied(member_id, visit_id, proposal_id=None, record=None, done_on=None)
+        -> Observation                                    # a new revision: the post as remedied
+    log.remedy_states(visit_id=None) -> {member_id: RemedyState}  # .state "as found" |
+        # "proposed" | "as remedied" (.done_on), .proposals (open ones)
+    log.counts_by_remedy(visit_id=None) -> {"as found": n, "proposed": n, "as remedied": n}
     log.integrity() -> IntegrityReport                    # .ok, .problems() -> list[str]
 
     seed_demo(log) -> (Site, list[Visit])                 # the invented demo survey

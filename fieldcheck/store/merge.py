@@ -58,6 +58,8 @@ SYNC_TABLES: tuple[TableSpec, ...] = (
     TableSpec("ratings", True),
     TableSpec("attachments", True),
     TableSpec("reviews", True),
+    TableSpec("proposals", True),
+    TableSpec("remedied", True),
 )
 TABLE_NAMES = tuple(t.name for t in SYNC_TABLES)
 
@@ -238,7 +240,8 @@ def prepare(target: MergeTarget, header: TransferHeader, source: RowSource) -> s
         if bad:
             raise TransferRefused(
                 f"this transfer holds {bad} {t.name} rows whose ids this log already has with "
-                "other content (tampered or from a damaged log); it was refused and nothing was changed"
+                "other content (tampered or from a damaged log); it was refused and nothing was "
+                "changed"
             )
     return adopt
 

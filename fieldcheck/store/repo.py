@@ -341,8 +341,8 @@ class Log:
             if found["version"] > SCHEMA_VERSION:
                 raise LogError(
                     f"the survey log {path} was written by a newer fieldcheck (schema version "
-                    f"{found['version']}, this one reads up to {SCHEMA_VERSION}); update fieldcheck "
-                    "to open it, the file is left unchanged"
+                    f"{found['version']}, this one reads up to {SCHEMA_VERSION}); update "
+                    "fieldcheck to open it, the file is left unchanged"
                 )
 
         db = connect(path, readonly=readonly, inspect=inspect)
@@ -952,6 +952,36 @@ class Log:
                 "SELECT * FROM reviews WHERE member_id = ? ORDER BY rowid", [member_id]
             )
         return [_review(r) for r in rows]
+
+    # ---- remedies as proposals (fieldcheck.store.proposals holds the rules)
+
+    def propose_remedy(self, observation_id: str, **kw):
+        """A remedy proposed for the revision ``observation_id``; the post is not changed."""
+        from fieldcheck.store import proposals
+
+        return proposals.propose(self, observation_id, **kw)
+
+    def proposals(self, member_id: str | None = None, *, open_only: bool = False):
+        from fieldcheck.store import proposals
+
+        return proposals.proposals(self, member_id, open_only=open_only)
+
+    def record_remedied(self, member_id: str, visit_id: str, **kw) -> Observation:
+        """A new revision recording the post as remedied on a date (see store.proposals)."""
+        from fieldcheck.store import proposals
+
+        return proposals.record_remedied(self, member_id, visit_id, **kw)
+
+    def remedy_states(self, visit_id: str | None = None):
+        """member id -> RemedyState (as found, proposed, as remedied) of the current posts."""
+        from fieldcheck.store import proposals
+
+        return proposals.states(self, visit_id)
+
+    def counts_by_remedy(self, visit_id: str | None = None) -> dict[str, int]:
+        from fieldcheck.store import proposals
+
+        return proposals.counts(self, visit_id)
 
     # ---- integrity
 

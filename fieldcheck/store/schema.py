@@ -13,6 +13,8 @@ author and the time with its zone. ``meta`` and ``sync_state`` are bookkeeping a
 Version history
   1  sites, visits, members, observations, engine_stamps, ratings, attachments, meta
   2  reviews (office notes and sign-offs, synced back to the field), sync_state
+  3  proposals (a remedy proposed for one revision of a post, never applied to it) and remedied
+     (the revision that records a post as remedied, with the date the work was done)
 """
 
 from __future__ import annotations
@@ -21,7 +23,7 @@ from sqlite_utils import Database, Migrations
 
 from fieldcheck.store.connection import APPLICATION_ID
 
-SCHEMA_VERSION = 2
+SCHEMA_VERSION = 3
 MIGRATION_SET = "fieldcheck"
 migrations = Migrations(MIGRATION_SET)
 
@@ -43,14 +45,16 @@ APPEND_ONLY_V1 = (
     "attachments",
 )
 APPEND_ONLY_V2 = ("reviews",)
-APPEND_ONLY = APPEND_ONLY_V1 + APPEND_ONLY_V2
+APPEND_ONLY_V3 = ("proposals", "remedied")
+APPEND_ONLY = APPEND_ONLY_V1 + APPEND_ONLY_V2 + APPEND_ONLY_V3
 
 
 def _append_only(db: Database, table: str) -> None:
     for op in ("UPDATE", "DELETE"):
         db.execute(
             f"CREATE TRIGGER IF NOT EXISTS {table}_no_{op.lower()} BEFORE {op} ON {table} "
-            f"BEGIN SELECT RAISE(ABORT, '{table} is append-only: record a new revision instead'); END"
+            f"BEGIN SELECT RAISE(ABORT, '{table} is append-only: record a new revision "
+            "instead'); END"
         )
 
 
@@ -102,7 +106,8 @@ def _v1(db: Database) -> None:
             action INTEGER,
             governing TEXT NOT NULL DEFAULT '',
             flags INTEGER NOT NULL DEFAULT 0,
-            summary_json TEXT CHECK (summary_json IS NULL OR json_valid(summary_json)),{_ORIGIN}) STRICT""",
+            summary_json TEXT CHECK (summary_json IS NULL
+                OR json_valid(summary_json)),{_ORIGIN}) STRICT""",
         f"""CREATE TABLE attachments (
             id TEXT PRIMARY KEY,
             observation_id TEXT REFERENCES observations(id),
@@ -156,4 +161,41 @@ def _v2(db: Database) -> None:
     db.execute("PRAGMA user_version = 2")
 
 
-MIGRATION_NAMES = ("0001_initial", "0002_reviews_sync")  # index + 1 = the version it makes
+@migrations(name="0003_remedies")
+def _v3(db: Database) -> None:
+    # A remedy is a proposal linked to the revision it was proposed for (the post as found); the
+    # post stays rated as found. When the work is done, a new revision records the post as
+    # remedied and a ``remedied`` row ties it to the date (and the proposal it carried out).
+    db.execute(
+        f"""CREATE TABLE proposals (
+            id TEXT PRIMARY KEY,
+            member_id TEXT NOT NULL REFERENCES members(id),
+            observation_id TEXT NOT NULL REFERENCES observations(id),
+            visit_id TEXT NOT NULL REFERENCES visits(id),
+            kind TEXT NOT NULL CHECK (length(kind) > 0),
+            description TEXT NOT NULL CHECK (length(description) > 0),
+            changes_json TEXT NOT NULL CHECK (json_valid(changes_json)),
+            ratio REAL,{_ORIGIN}) STRICT"""
+    )
+    db.execute(
+        f"""CREATE TABLE remedied (
+            id TEXT PRIMARY KEY,
+            member_id TEXT NOT NULL REFERENCES members(id),
+            observation_id TEXT NOT NULL REFERENCES observations(id),
+            proposal_id TEXT REFERENCES proposals(id),
+            done_on TEXT NOT NULL CHECK (done_on LIKE '____-__-__'),{_ORIGIN}) STRICT"""
+    )
+    db.execute("CREATE INDEX proposals_member ON proposals(member_id)")
+    db.execute("CREATE INDEX proposals_observation ON proposals(observation_id)")
+    db.execute("CREATE INDEX remedied_member ON remedied(member_id)")
+    db.execute("CREATE INDEX remedied_observation ON remedied(observation_id)")
+    for table in APPEND_ONLY_V3:
+        _append_only(db, table)
+    db.execute("PRAGMA user_version = 3")
+
+
+MIGRATION_NAMES = (
+    "0001_initial",
+    "0002_reviews_sync",
+    "0003_remedies",
+)  # index + 1 = the version it makes

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import json
 import sqlite3
 import uuid
 
@@ -32,6 +33,8 @@ def test_revision_tables_refuse_update_and_delete(log, visit, shore, table, tmp_
     photo.write_bytes(b"jpeg")
     log.attach(obs.id, photo)
     log.add_review("note", "looks fine", member_id=obs.member_id)
+    prop = log.propose_remedy(obs.id, kind="brace-weak", description="brace it", changes={})
+    log.record_remedied(obs.member_id, visit.id, proposal_id=prop.id)
     for sql in (f"UPDATE {table} SET created_at = created_at", f"DELETE FROM {table}"):
         with pytest.raises(sqlite3.IntegrityError, match="append-only"):
             log.db.execute(sql)
@@ -82,14 +85,14 @@ def test_two_heads_are_flagged_as_a_conflict_not_resolved(log, visit, shore):
     with log.db.atomic():
         for dev, h in (("device-B", "9ft"), ("device-C", "10ft")):
             log.db.execute(
-                "INSERT INTO observations (id, member_id, visit_id, supersedes, record_json, device_id,"
-                " device_seq, author, created_at) VALUES (?, ?, ?, ?, ?, ?, 1, 'x', ?)",
+                "INSERT INTO observations (id, member_id, visit_id, supersedes, record_json, "
+                "device_id, device_seq, author, created_at) VALUES (?, ?, ?, ?, ?, ?, 1, 'x', ?)",
                 [
                     str(uuid.uuid4()),
                     first.member_id,
                     visit.id,
                     first.id,
-                    '{"tag": "S1", "height": "%s"}' % h,
+                    json.dumps({"tag": "S1", "height": h}),
                     dev,
                     "2026-01-01T00:00:00+00:00",
                 ],

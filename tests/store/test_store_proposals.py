@@ -1,0 +1,77 @@
+"""Remedies as proposals: the post as found stays what it is rated as; a proposal is linked to
+that revision; recording the post as remedied is a new revision with a date; the three states
+are told apart and travel with sync."""
+
+from __future__ import annotations
+
+import pytest
+
+from fieldcheck.store import Log
+from fieldcheck.store.sync import sync
+
+SIX_BY_SIX = {  # an invented post, over-loaded as found
+    "tag": "B3",
+    "size": "6x6",
+    "height": "12ft",
+    "species": "douglas-fir-larch",
+    "grade": "no2",
+    "load": "30000 lbf",
+}
+
+
+def test_a_proposal_leaves_the_post_as_found_and_rated_as_found(log, visit):
+    found = log.save_post(visit.id, SIX_BY_SIX)
+    before = log.posts(visit.id)[0]
+    p = log.propose_remedy(
+        found.id,
+        kind="replace",
+        description="replace it with a new 8x8 douglas-fir-larch No.2",
+        changes={"size": "8x8"},
+        ratio=0.7,
+    )
+    after = log.posts(visit.id)[0]
+    assert after.observation_id == found.id  # no revision was made by proposing
+    assert after.record["size"] == "6x6" and after.ratio == before.ratio
+    assert len(log.history(found.member_id)) == 1
+    state = log.remedy_states(visit.id)[found.member_id]
+    assert state.state == "proposed" and state.proposals[0].id == p.id
+    assert log.counts_by_remedy(visit.id) == {"as found": 0, "proposed": 1, "as remedied": 0}
+    assert log.proposals(found.member_id)[0].observation_id == found.id
+
+
+def test_recording_the_post_as_remedied_is_a_new_dated_revision(log, visit):
+    found = log.save_post(visit.id, SIX_BY_SIX)
+    p = log.propose_remedy(
+        found.id, kind="replace", description="replace it with an 8x8", changes={"size": "8x8"}
+    )
+    done = log.record_remedied(found.member_id, visit.id, proposal_id=p.id, done_on="2026-03-14")
+    hist = log.history(found.member_id)
+    assert [o.record["size"] for o in hist] == ["6x6", "8x8"]  # the as-found revision is kept
+    state = log.remedy_states()[found.member_id]
+    assert state.state == "as remedied" and state.done_on == "2026-03-14"
+    assert state.remedy == "replace it with an 8x8"
+    assert log.posts()[0].observation_id == done.id
+    assert log.proposals(found.member_id, open_only=True) == []
+    with pytest.raises(ValueError, match="already recorded"):
+        log.record_remedied(found.member_id, visit.id, proposal_id=p.id)
+    with pytest.raises(ValueError, match="year-month-day"):
+        log.record_remedied(found.member_id, visit.id, done_on="last Tuesday")
+
+
+def test_a_later_revision_as_found_after_a_remedy_is_as_found_again(log, visit):
+    found = log.save_post(visit.id, SIX_BY_SIX)
+    log.record_remedied(found.member_id, visit.id, record={**SIX_BY_SIX, "size": "8x8"})
+    log.save_post(visit.id, {**SIX_BY_SIX, "size": "8x8", "notes": "split seen"}, found.member_id)
+    assert log.remedy_states()[found.member_id].state == "as found"
+
+
+def test_proposals_and_remedies_travel_with_sync(log, visit, tmp_path):
+    found = log.save_post(visit.id, SIX_BY_SIX)
+    p = log.propose_remedy(found.id, kind="brace-weak", description="brace it", changes={})
+    log.record_remedied(found.member_id, visit.id, proposal_id=p.id, done_on="2026-03-14")
+    first = sync(log, tmp_path / "office.db")
+    assert first.sent["proposals"] == 1 and first.sent["remedied"] == 1
+    with Log.open(tmp_path / "office.db", readonly=True) as office:
+        state = office.remedy_states()[found.member_id]
+        assert state.state == "as remedied" and state.remedy == "brace it"
+    assert sync(log, tmp_path / "office.db").moved == 0
