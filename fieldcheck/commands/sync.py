@@ -9,8 +9,9 @@ import time
 from fieldcheck.commands.log_option import add_db_option, open_log
 
 DESCRIPTION = (
-    "Sync a survey log with the office. OFFICE is the office's survey log file (merged directly) "
-    "or a shared folder (bundles are dropped there and the office's are taken). Every row the "
+    "Sync a survey log with the office. OFFICE is the office's survey log file (merged directly), "
+    "a shared folder (bundles are dropped there and the office's are taken) or a PostgreSQL hub "
+    "(postgresql://user@host/db; the password from PGPASSWORD or ~/.pgpass). Every row the "
     "other side lacks moves once; a repeated sync moves nothing. Posts revised in two places "
     "without seeing each other are kept both ways and listed for review."
 )
@@ -18,7 +19,11 @@ DESCRIPTION = (
 
 def add_arguments(p: argparse.ArgumentParser) -> None:
     add_db_option(p)
-    p.add_argument("office", metavar="OFFICE", help="office survey log file or shared folder")
+    p.add_argument(
+        "office",
+        metavar="OFFICE",
+        help="office survey log file, shared folder, or postgresql:// URL of the office hub",
+    )
     p.add_argument("--quiet", action="store_true", help="no progress bar")
 
 

@@ -5,7 +5,8 @@
     summary = sync(log, office, progress=None) -> SyncSummary
         # office: an office log FILE (merged directly, through bundles in a temporary folder;
         # created when missing) or a shared FOLDER (bundles are dropped there as files and the
-        # bundles other logs dropped are taken). The field log sends every row the office lacks
+        # bundles other logs dropped are taken) or a PostgreSQL hub URL (postgresql://... or
+        # postgres://..., see fieldcheck.store.hub). The field log sends every row the office lacks
         # and takes back every row it lacks (the office's review notes and sign-offs, sites and
         # visits assigned, other inspectors' posts). Repeating a sync moves nothing.
         # progress(done, total, stage) is called from the thread that runs sync().
@@ -86,7 +87,7 @@ class ImportSummary:
 @dataclass
 class SyncSummary:
     office: str
-    mode: str  # "file" or "folder"
+    mode: str  # "file", "folder" or "hub"
     sent: dict[str, int] = field(default_factory=dict)
     received: dict[str, int] = field(default_factory=dict)
     conflicts: list[str] = field(
@@ -232,6 +233,17 @@ def _stage(progress: Progress | None, prefix: str) -> Progress | None:
 
 def sync(log, office_path, progress: Progress | None = None) -> SyncSummary:
     """Sync ``log`` (a field log) with an office log file or a shared folder (see module doc)."""
+    from fieldcheck.store.hub.url import is_hub_url, is_other_url, redact
+
+    if is_hub_url(office_path):  # a PostgreSQL hub: never a folder named "postgresql:"
+        from fieldcheck.store.hub.sync import sync_hub
+
+        return sync_hub(log, str(office_path), progress)
+    if is_other_url(office_path):
+        raise TransferRefused(
+            f"{redact(str(office_path))} is a URL fieldcheck cannot sync with; give an office log "
+            "file, a shared folder or a postgresql:// URL"
+        )
     if getattr(log, "readonly", False):
         raise TransferRefused(
             f"the survey log {log.path} was opened read-only; open it for writing to sync"

@@ -1,0 +1,446 @@
+"""Sync a field log with the hub: the hub side of ``fieldcheck.store.merge``.
+
+1. Send: the field log's rows the hub lacks (``merge.delta`` of the two vectors) are copied into
+   temporary tables on the server (COPY), then ``merge.merge`` takes them through ``PgTarget``:
+   the same checks as a bundle (schema, firm, ids held with other content), then
+   ``INSERT ... SELECT ... ON CONFLICT (id) DO NOTHING`` table by table, parents first, all in
+   ONE server transaction. Conflicts are looked for only among the posts this sync touched
+   (indexed lookups), so the cost follows what is new, not the size of the hub.
+   Engine stamps (content-addressed, shared by every inspector) go first in a short transaction
+   of their own, so concurrent syncs do not queue behind one another on the same stamp row.
+   A deadlock or serialization failure rolls back and the send is retried.
+2. Receive: the hub's rows the field log lacks are read in one REPEATABLE READ snapshot into a
+   temporary SQLite file shaped like the log, which the log takes through the SQLite side of the
+   same merge (``bundle.SqliteTarget``) in one transaction.
+
+A sync cut off anywhere leaves each side with whole transactions only; the rerun moves the rest.
+"""
+
+from __future__ import annotations
+
+import contextlib
+import random
+import sqlite3
+import tempfile
+import time
+from collections.abc import Iterator, Mapping, Sequence
+from pathlib import Path
+
+import psycopg
+from psycopg import errors as pgerr
+
+from fieldcheck.store import bundle as bf
+from fieldcheck.store.hub.schema import SCHEMA
+from fieldcheck.store.hub.server import HubInfo, connect, ensure_hub, explain
+from fieldcheck.store.hub.url import HubError, redact
+from fieldcheck.store.merge import (
+    SYNC_TABLES,
+    Progress,
+    TransferHeader,
+    TransferRefused,
+    Vector,
+    delta,
+    merge,
+)
+from fieldcheck.store.schema import SCHEMA_VERSION
+
+RETRIES = 30
+CLASH_RETRIES = 3  # a unique (device_id, device_seq) race between two syncs of the same rows
+_RETRY = (pgerr.SerializationFailure, pgerr.DeadlockDetected)
+
+
+class _Again(Exception):
+    """Another sync changed what this one was based on: roll back and start over."""
+
+
+def hub_vector(conn: psycopg.Connection) -> Vector:
+    """Per device, the highest device_seq the hub holds: a skip scan of UNIQUE(device_id,
+    device_seq) per table, a few index lookups per device whatever the row count."""
+    out: Vector = {}
+    for t in SYNC_TABLES:
+        if not t.origin:
+            continue
+        tbl = f"{SCHEMA}.{t.name}"
+        sql = (
+            f"WITH RECURSIVE d(x) AS (SELECT min(device_id) FROM {tbl} UNION ALL "
+            f"SELECT (SELECT min(device_id) FROM {tbl} WHERE device_id > d.x) FROM d "
+            "WHERE d.x IS NOT NULL) "
+            f"SELECT x, (SELECT max(device_seq) FROM {tbl} WHERE device_id = d.x) FROM d "
+            "WHERE x IS NOT NULL"
+        )
+        for dev, seq in conn.execute(sql):
+            if seq is not None and seq > out.get(dev, 0):
+                out[dev] = int(seq)
+    return out
+
+
+def _sqlite_columns(conn: sqlite3.Connection, table: str, schema: str = "main") -> list[str]:
+    return [r[1] for r in conn.execute(f"PRAGMA {schema}.table_info({table})")]
+
+
+def _hub_columns(conn: psycopg.Connection) -> dict[str, list[str]]:
+    out: dict[str, list[str]] = {}
+    for table, col in conn.execute(
+        "SELECT table_name, column_name FROM information_schema.columns WHERE table_schema = %s "
+        "ORDER BY table_name, ordinal_position",
+        [SCHEMA],
+    ):
+        out.setdefault(table, []).append(col)
+    return out
+
+
+# ----------------------------------------------------------------------------- send
+
+
+class PgTarget:
+    """``merge.MergeTarget`` over the hub: rows were staged in ``stage_<table>`` temp tables."""
+
+    office = True
+
+    def __init__(self, conn: psycopg.Connection, staged: Mapping[str, list[str]]):
+        self.conn = conn
+        self.staged = staged  # table -> columns staged
+        self.schema_version = SCHEMA_VERSION
+        self._hub_cols = _hub_columns(conn)
+
+    def firm_id(self) -> str:
+        row = self.conn.execute(
+            f"SELECT value FROM {SCHEMA}.hub_meta WHERE key = 'firm_id'"
+        ).fetchone()
+        return row[0] if row else ""
+
+    def columns(self, table: str) -> list[str] | None:
+        if table not in self._hub_cols:
+            return None
+        cols = self.staged[table]
+        missing = [c for c in cols if c not in self._hub_cols[table]]
+        if missing:
+            raise TransferRefused(
+                f"the hub's {table} table lacks columns this log has ({', '.join(missing)}): "
+                "this fieldcheck is newer than the hub schema; nothing was changed"
+            )
+        return cols
+
+    def mismatched(self, table: str, columns: Sequence[str], source) -> int:
+        same = " AND ".join(f"m.{c} IS NOT DISTINCT FROM s.{c}" for c in columns)
+        return self.conn.execute(
+            f"SELECT count(*) FROM stage_{table} s JOIN {SCHEMA}.{table} m ON m.id = s.id "
+            f"WHERE NOT ({same})"
+        ).fetchone()[0]
+
+    @contextlib.contextmanager
+    def transaction(self) -> Iterator[None]:
+        yield  # the caller holds the one server transaction
+
+    def insert_missing(self, table: str, columns: Sequence[str], source, progress) -> int:
+        cols = ",".join(columns)
+        cur = self.conn.execute(
+            f"INSERT INTO {SCHEMA}.{table} ({cols}) SELECT {cols} FROM stage_{table} "
+            "ORDER BY id ON CONFLICT (id) DO NOTHING"
+        )
+        n = self.conn.execute(f"SELECT count(*) FROM stage_{table}").fetchone()[0]
+        progress(n)
+        return max(cur.rowcount, 0)
+
+    def set_firm(self, firm_id: str) -> None:
+        held = self.conn.execute(f"SELECT {SCHEMA}.adopt_firm(%s)", [firm_id]).fetchone()[0]
+        if held != firm_id:
+            raise _Again  # another first sync set the firm meanwhile: check again against it
+
+    def record_received(self, sender: str, ranges: Mapping[str, Sequence[int]]) -> None:
+        pass  # the hub's holdings are its rows (``hub_vector``): no bookkeeping to keep
+
+    def conflicts(self) -> list[str]:
+        """Members touched by this sync with more than one head (index lookups per member)."""
+        if "observations" not in self.staged:
+            return []
+        obs = f"{SCHEMA}.observations"
+        return [
+            r[0]
+            for r in self.conn.execute(
+                f"SELECT o.member_id FROM {obs} o "
+                "WHERE o.member_id IN (SELECT DISTINCT member_id FROM stage_observations) "
+                f"AND NOT EXISTS (SELECT 1 FROM {obs} c WHERE c.supersedes = o.id) "
+                f"AND NOT EXISTS (SELECT 1 FROM {obs} c WHERE c.merges = o.id) "
+                "GROUP BY o.member_id HAVING count(*) > 1 ORDER BY o.member_id"
+            )
+        ]
+
+
+def _field_rows(
+    src: sqlite3.Connection, table: str, cols: Sequence[str], ranges: Mapping
+) -> Iterator[tuple]:
+    sel = ",".join(cols)
+    for dev, (lo, hi) in sorted(ranges.items()):
+        cur = src.execute(
+            f"SELECT {sel} FROM main.{table} WHERE device_id = ? AND device_seq BETWEEN ? AND ? "
+            "ORDER BY device_seq",
+            [dev, lo, hi],
+        )
+        while batch := cur.fetchmany(10_000):
+            yield from batch
+
+
+def _stage(conn: psycopg.Connection, table: str, cols: Sequence[str], rows, on_row=None) -> int:
+    conn.execute(
+        f"CREATE TEMP TABLE stage_{table} (LIKE {SCHEMA}.{table} INCLUDING DEFAULTS) ON COMMIT DROP"
+    )
+    n = 0
+    with conn.cursor().copy(f"COPY stage_{table} ({','.join(cols)}) FROM STDIN") as cp:
+        for row in rows:
+            cp.write_row(row)
+            n += 1
+    if n:
+        conn.execute(f"CREATE INDEX ON stage_{table} (id)")
+        conn.execute(f"ANALYZE stage_{table}")
+    return n
+
+
+def _send_stamps(conn: psycopg.Connection, src: sqlite3.Connection, ranges: Mapping) -> None:
+    """The engine stamps the sent ratings name, in a short transaction of their own."""
+    if "ratings" not in {r[0] for r in src.execute("SELECT name FROM sqlite_master")}:
+        return
+    ids = set()
+    for dev, (lo, hi) in ranges.items():
+        ids.update(
+            r[0]
+            for r in src.execute(
+                "SELECT DISTINCT stamp_id FROM ratings WHERE device_id = ? AND device_seq "
+                "BETWEEN ? AND ?",
+                [dev, lo, hi],
+            )
+        )
+    if not ids:
+        return
+    marks = ",".join("?" * len(ids))
+    rows = src.execute(
+        "SELECT id, engine_version, data_editions, created_at FROM engine_stamps "
+        f"WHERE id IN ({marks}) ORDER BY id",
+        sorted(ids),
+    ).fetchall()
+    for attempt in range(RETRIES):
+        try:
+            with conn.transaction(), conn.cursor() as cur:
+                cur.executemany(
+                    f"INSERT INTO {SCHEMA}.engine_stamps (id, engine_version, data_editions, "
+                    "created_at) VALUES (%s, %s, %s, %s) ON CONFLICT (id) DO NOTHING",
+                    rows,
+                )
+            return
+        except _RETRY:
+            _backoff(attempt)
+
+
+def _backoff(attempt: int) -> None:
+    time.sleep(min(2.0, 0.02 * (2**attempt)) * (0.5 + random.random()))
+
+
+def _send(log, conn: psycopg.Connection, progress: Progress | None):
+    """Field -> hub in one server transaction; returns the MergeResult (None: nothing to send)."""
+    src = bf.connect_ro(Path(log.path))
+    try:
+        src.execute("BEGIN")  # one read snapshot of the field log for the whole send
+        tables = {r[0] for r in src.execute("SELECT name FROM sqlite_master WHERE type='table'")}
+        meta = bf.read_meta(src)
+        ours = bf.vector(src)
+        clashes = 0
+        for attempt in range(RETRIES):
+            try:
+                return _send_once(conn, src, tables, meta, ours, progress)
+            except (_Again, *_RETRY):
+                _backoff(attempt)
+            except pgerr.UniqueViolation:
+                clashes += 1
+                if clashes > CLASH_RETRIES:
+                    raise TransferRefused(
+                        "this log's rows clash with rows the hub holds under the same device "
+                        "and sequence number but another id (two logs use one device id); "
+                        "nothing was changed"
+                    ) from None
+                _backoff(attempt)
+        raise HubError(
+            "the hub stayed too busy with other syncs to take this one; nothing was changed, "
+            "run the sync again"
+        )
+    finally:
+        with contextlib.suppress(sqlite3.Error):
+            src.execute("ROLLBACK")
+        src.close()
+
+
+def _send_once(conn, src, tables, meta, ours, progress):
+    theirs = hub_vector(conn)
+    ranges = delta(ours, theirs)
+    if not ranges:
+        return None
+    _send_stamps(conn, src, ranges)
+    with conn.transaction():
+        staged: dict[str, list[str]] = {}
+        counts: dict[str, int] = {}
+        for t in SYNC_TABLES:
+            if not t.origin or t.name not in tables:
+                continue
+            cols = _sqlite_columns(src, t.name)
+            n = _stage(conn, t.name, cols, _field_rows(src, t.name, cols, ranges))
+            if n:
+                staged[t.name], counts[t.name] = cols, n
+        header = TransferHeader(
+            firm_id=meta.get("firm_id", ""),
+            sender_device=meta.get("device_id", ""),
+            schema_version=SCHEMA_VERSION,
+            ranges=dict(ranges),
+            row_counts=counts,
+        )
+        return merge(PgTarget(conn, staged), header, None, theirs, progress, "send to hub")
+
+
+# ----------------------------------------------------------------------------- receive
+
+
+def _receive(log, conn: psycopg.Connection, hub: HubInfo, progress: Progress | None):
+    """Hub -> field: the hub's rows the log lacks, in one SQLite transaction."""
+    field_path = Path(log.path)
+    ro = bf.connect_ro(field_path)
+    try:
+        have = bf.vector(ro)
+        tables = {
+            r[0]: r[1] for r in ro.execute("SELECT name, sql FROM sqlite_master WHERE type='table'")
+        }
+        cols = {t.name: _sqlite_columns(ro, t.name) for t in SYNC_TABLES if t.name in tables}
+    finally:
+        ro.close()
+    with tempfile.TemporaryDirectory(prefix="fieldcheck-hub-") as tmp:
+        snap = Path(tmp) / "from-hub.sqlite"
+        out = sqlite3.connect(str(snap), isolation_level=None)
+        try:
+            out.execute("PRAGMA journal_mode=OFF")
+            out.execute("PRAGMA synchronous=OFF")
+            out.execute("BEGIN")
+            with conn.transaction():
+                conn.execute("SET TRANSACTION ISOLATION LEVEL REPEATABLE READ, READ ONLY")
+                ranges = delta(hub_vector(conn), have)
+                if not ranges:
+                    return None
+                counts = _pull(conn, out, tables, cols, ranges)
+            out.execute("COMMIT")
+        finally:
+            out.close()
+        header = TransferHeader(
+            firm_id=_hub_firm(conn),  # adopted by this sync's send, perhaps
+            sender_device=f"hub:{hub.hub_id}",
+            schema_version=SCHEMA_VERSION,
+            ranges=dict(ranges),
+            row_counts=counts,
+        )
+        with _locked(log):
+            rw = bf.connect_rw(field_path)
+            try:
+                rw.execute("ATTACH DATABASE ? AS bundle", [bf._uri(snap, "ro")])
+                try:
+                    return merge(
+                        bf.SqliteTarget(rw, office=False),
+                        header,
+                        bf.AttachedSource(rw),
+                        bf.vector(rw),
+                        progress,
+                        "take from hub",
+                    )
+                finally:
+                    with contextlib.suppress(sqlite3.Error):
+                        rw.execute("DETACH DATABASE bundle")
+            finally:
+                rw.close()
+
+
+def _hub_firm(conn: psycopg.Connection) -> str:
+    row = conn.execute(f"SELECT value FROM {SCHEMA}.hub_meta WHERE key = 'firm_id'").fetchone()
+    return row[0] if row else ""
+
+
+def _pull(conn, out: sqlite3.Connection, tables, cols, ranges) -> dict[str, int]:
+    counts: dict[str, int] = {}
+    for t in SYNC_TABLES:
+        if t.name not in tables:
+            continue
+        out.execute(tables[t.name])  # the log's own table, so the SQLite merge sees its shape
+        if not t.origin:
+            continue
+        sel = ",".join(cols[t.name])
+        ins = f"INSERT INTO {t.name} ({sel}) VALUES ({','.join('?' * len(cols[t.name]))})"
+        n = 0
+        for dev, (lo, hi) in sorted(ranges.items()):
+            with conn.cursor() as cur:
+                cur.execute(
+                    f"SELECT {sel} FROM {SCHEMA}.{t.name} WHERE device_id = %s AND device_seq "
+                    "BETWEEN %s AND %s ORDER BY device_seq",
+                    [dev, lo, hi],
+                )
+                while batch := cur.fetchmany(10_000):
+                    out.executemany(ins, batch)
+                    n += len(batch)
+        if n:
+            counts[t.name] = n
+    if "engine_stamps" in tables and counts.get("ratings"):
+        ids = [r[0] for r in out.execute("SELECT DISTINCT stamp_id FROM ratings")]
+        ec = ",".join(cols["engine_stamps"])
+        rows = conn.execute(
+            f"SELECT {ec} FROM {SCHEMA}.engine_stamps WHERE id = ANY(%s)", [ids]
+        ).fetchall()
+        marks = ",".join("?" * len(cols["engine_stamps"]))
+        out.executemany(f"INSERT INTO engine_stamps ({ec}) VALUES ({marks})", rows)
+        counts["engine_stamps"] = len(rows)
+    return counts
+
+
+@contextlib.contextmanager
+def _locked(log):
+    lock = getattr(log, "_lock", None)
+    if lock is None:
+        yield
+    else:
+        with lock:
+            yield
+
+
+# ----------------------------------------------------------------------------- sync
+
+
+def sync_hub(log, url: str, progress: Progress | None = None):
+    """Send the field log's new rows to the hub, then take the hub's new rows back."""
+    from fieldcheck.store.sync import SyncSummary, _checkpoint
+
+    if getattr(log, "readonly", False):
+        raise TransferRefused(
+            f"the survey log {log.path} was opened read-only; open it for writing to sync"
+        )
+    t0 = time.perf_counter()
+    summary = SyncSummary(redact(url), "hub")
+    before = set(log.conflicts())
+    _checkpoint(log)
+    conn = connect(url)
+    stage = "connecting"
+    try:
+        stage = "checking the hub"
+        hub = ensure_hub(conn, url)
+        stage = "sending to the hub"
+        sent = _send(log, conn, progress)
+        if sent is not None:
+            summary.sent = {k: v for k, v in sent.inserted.items() if v}
+            summary.new_conflicts = list(sent.new_conflicts)
+        stage = "taking rows back from the hub"
+        got = _receive(log, conn, hub, progress)
+        if got is not None:
+            summary.received = {k: v for k, v in got.inserted.items() if v}
+        firm = _hub_firm(conn)
+        if firm and not log.meta().get("firm_id"):  # nothing came back, but the firm must
+            log.set_firm(firm)
+    except psycopg.Error as exc:
+        raise explain(exc, url, stage) from None
+    finally:
+        with contextlib.suppress(Exception):
+            conn.close()
+    summary.conflicts = log.conflicts()
+    summary.new_conflicts = sorted(set(summary.new_conflicts) | (set(summary.conflicts) - before))
+    summary.firm_id = log.meta().get("firm_id", "")
+    summary.seconds = time.perf_counter() - t0
+    return summary
