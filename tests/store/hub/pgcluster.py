@@ -144,7 +144,7 @@ class Cluster:
             return cur.fetchall() if cur.description else []
 
     def new_database(self, name: str) -> str:
-        self.sql(f'CREATE DATABASE "{name}"')
+        self.sql(f'CREATE DATABASE "{name}" STRATEGY FILE_COPY')
         return name
 
     def close(self) -> None:

@@ -11,6 +11,8 @@ from fieldcheck.cli import main
 from fieldcheck.store import Log
 from fieldcheck.store.hub.schema import HUB_SCHEMA_VERSION
 
+pytestmark = pytest.mark.slow  # a real server (tests/store/hub/test_hub_sync.py keeps quick ones)
+
 
 @pytest.fixture
 def field_db(tmp_path, shore):

@@ -47,6 +47,7 @@ def test_first_sync_creates_hub_then_repeat_moves_nothing(tmp_path, shore, hub_u
     log.close()
 
 
+@pytest.mark.slow
 def test_two_inspectors_meet_through_the_hub(tmp_path, shore, hub_url):
     ann, _ = _field(tmp_path, "ann", shore, 2)
     ben, _ = _field(tmp_path, "ben", shore, 3)
@@ -60,6 +61,7 @@ def test_two_inspectors_meet_through_the_hub(tmp_path, shore, hub_url):
         lg.close()
 
 
+@pytest.mark.slow
 def test_conflicting_edits_kept_both_ways(tmp_path, shore, hub_url):
     ann, visit = _field(tmp_path, "ann", shore, 1)
     sync(ann, hub_url)
@@ -78,6 +80,7 @@ def test_conflicting_edits_kept_both_ways(tmp_path, shore, hub_url):
         lg.close()
 
 
+@pytest.mark.slow
 def test_hub_rows_cannot_be_rewritten(tmp_path, shore, hub_url, pg_cluster):
     import psycopg
 
