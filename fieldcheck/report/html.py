@@ -23,8 +23,9 @@ from pathlib import Path
 
 from fieldcheck.engine.cautions import CAUTIONS
 from fieldcheck.engine.rating import ACTION_TEXT, ACTIONS, DUE_DAYS
-from fieldcheck.report.model import PostEntry, ReportData, gather, visit_date
-from fieldcheck.report.style import CSS
+from fieldcheck.report.model import PostEntry, ReportData, ReportInfo, gather, visit_date
+from fieldcheck.report.notation import notation, sig, symbols
+from fieldcheck.report.style import stylesheet
 from fieldcheck.report.svg import capacity_plot
 from fieldcheck.units import format_force, format_length
 
@@ -76,18 +77,60 @@ def due_text(p: PostEntry) -> str:
     return date_text(p.due) or f"within {DUE_DAYS[a]} days"
 
 
+def table(head: list[str], body: str, cls: str = "") -> str:
+    """A table whose header row repeats on every printed page, in a box that scrolls sideways on a
+    narrow screen. ``head``: header cells as HTML (``<th>`` added; "num:" prefix right-aligns)."""
+    cells = "".join(
+        f'<th class="num">{h[4:]}</th>' if h.startswith("num:") else f"<th>{h}</th>" for h in head
+    )
+    c = f' class="{cls}"' if cls else ""
+    return (
+        f'<div class="tw"><table{c}><thead><tr>{cells}</tr></thead>'
+        f"<tbody>{body}</tbody></table></div>"
+    )
+
+
+def kv(rows: str) -> str:
+    return f'<div class="tw"><table class="kv"><tbody>{rows}</tbody></table></div>'
+
+
+def check_label(d: ReportData, name: str) -> str:
+    """A check's name in words (the engine's label), never its key."""
+    c = d.rating.checks.get(name) if d.rating is not None else None
+    return c.label if c is not None else name.replace("_", " ")
+
+
+def header_text(d: ReportData) -> tuple[str, str]:
+    """Running header: (site, report number and revision) for every printed page."""
+    site = "; ".join(s.name for s in d.sites) or "no site"
+    i = d.info
+    number = f"Report {i.number}" if i.number else "Report (not numbered)"
+    left = site + (f" \u2014 {i.client}" if i.client else "")
+    right = f"{number}, revision {i.revision}" + (f" \u2014 job {i.job}" if i.job else "")
+    return left, right
+
+
 # ----------------------------------------------------------------------------- sections
 
 
 @cache
-def cautions_box(compact: bool = False) -> str:
+def cautions_box() -> str:
+    """The cautions in full: once, on the cover (each printed page carries one line of them)."""
     items = "".join(f"<li>{e(c)}</li>" for c in CAUTIONS)
-    cls = "cautions compact" if compact else "cautions"
-    head = "" if compact else "<h3>Read this first</h3>"
-    return f'<div class="{cls}">{head}<ul>{items}</ul></div>'
+    return f'<div class="cautions" id="cautions"><h3>Read this first</h3><ul>{items}</ul></div>'
 
 
 def _cover(d: ReportData) -> str:
+    i = d.info
+    title_rows = [
+        ("Prepared by", i.firm),
+        ("Engineer", i.engineer),
+        ("Client", i.client),
+        ("Job number", i.job),
+        ("Report number", i.number or "not numbered"),
+        ("Revision", str(i.revision)),
+        ("Issued", d.created.strftime("%Y-%m-%d")),
+    ]
     site_rows = (
         "".join(
             f"<tr><th>Site</th><td>{e(s.name)}<br><span class='muted'>{e(s.address)}</span>"
@@ -96,6 +139,7 @@ def _cover(d: ReportData) -> str:
         )
         or "<tr><th>Site</th><td>none in this log</td></tr>"
     )
+    block = "".join(f"<tr><th>{e(k)}</th><td>{e(v)}</td></tr>" for k, v in title_rows if v)
     vrows = "".join(
         f"<tr><td>{e(v.name)}</td><td>{e(date_text(visit_date(v)))}</td><td>{e(v.inspector)}</td>"
         f"<td>{e(LEVEL_TEXT.get(v.level, v.level))}</td><td>{e(', '.join(v.instruments))}</td></tr>"
@@ -110,34 +154,39 @@ def _cover(d: ReportData) -> str:
     )
     return (
         '<section id="cover"><h1>Survey report</h1>'
-        f'<p class="muted">Scope: {e(d.scope)}. Written {e(d.created.strftime("%Y-%m-%d %H:%M %Z"))} '
-        f"by fieldcheck engine {e(d.engine_version)}; units: {e(d.units)}.</p>"
-        f'<table class="kv">{site_rows}'
-        f"<tr><th>Posts in this report</th><td>{len(d.posts)}{': ' + count_txt if count_txt else ''}</td></tr>"
-        "</table>"
-        "<h3>Visits</h3><table><tr><th>Visit</th><th>Date</th><th>Inspector</th>"
-        "<th>Data-collection level</th><th>Instruments</th></tr>"
-        f"{vrows or '<tr><td colspan=5>no visits</td></tr>'}</table>"
-        f"{_signoff(d)}{cautions_box()}"
+        f'<table class="titleblock"><tbody>{block}</tbody></table>'
+        + kv(
+            site_rows + f"<tr><th>Posts in this report</th><td>{len(d.posts)}"
+            f"{': ' + count_txt if count_txt else ''}</td></tr>"
+            f"<tr><th>Scope</th><td>{e(d.scope)}</td></tr>"
+        )
+        + "<h3>Visits</h3>"
+        + table(
+            ["Visit", "Date", "Inspector", "Data-collection level", "Instruments"],
+            vrows or "<tr><td colspan=5>no visits</td></tr>",
+        )
+        + f"{_signoff(d)}{cautions_box()}"
         '<nav><h3>Contents</h3><ol><li><a href="#client">Client summary</a></li>'
         '<li><a href="#summary">Every post</a></li><li><a href="#actions">Open actions</a></li>'
         '<li><a href="#conflicts">Open sync conflicts</a></li>'
-        '<li><a href="#record">Technical record</a></li><li><a href="#engine">Engine and reference data</a></li>'
-        "</ol></nav></section>"
+        '<li><a href="#record">Technical record</a></li>'
+        '<li><a href="#engine">Engine and reference data</a></li></ol></nav></section>'
     )
 
 
 def _signoff(d: ReportData) -> str:
-    """Recorded sign-offs, and lines to sign on paper (field-practice.md §6.4: the inspector signs
-    the visit, a licensed engineer signs any capacity used for decisions)."""
+    """Recorded sign-offs, and lines to sign on paper: the inspector signs the visit, a licensed
+    engineer signs any capacity used for decisions (common practice, no source)."""
     done = "".join(
         f"<li>\u2713 {e(r.author)}, {e(r.created_at)}: {e(r.text)}</li>" for r in d.signoffs
     )
     return (
         "<h3>Sign-off</h3>"
         + (f"<ul>{done}</ul>" if done else "<p>Not signed off in the log yet.</p>")
-        + "<table class='kv'><tr><th>Inspector (signature, date)</th><td>&nbsp;</td></tr>"
-        "<tr><th>Reviewing engineer (signature, licence, date)</th><td>&nbsp;</td></tr></table>"
+        + kv(
+            "<tr><th>Inspector (signature, date)</th><td>&nbsp;</td></tr>"
+            "<tr><th>Reviewing engineer (signature, licence, date)</th><td>&nbsp;</td></tr>"
+        )
     )
 
 
@@ -146,9 +195,19 @@ def _where(p: PostEntry) -> str:
     return f"{e(p.tag)}{' (' + e(loc) + ')' if loc else ''}"
 
 
+def client_group(p: PostEntry) -> int | None:
+    """The client summary's group of a post: its action, but None (not assessed) for a post with
+    no load (a capacity without a demand decides nothing) or no rating at all."""
+    if p.action is None or p.summary is None:
+        return None
+    if p.summary.get("demand_capacity_ratio") is None:
+        return None
+    return p.action
+
+
 def _client(d: ReportData) -> str:
     """Plain words for the client: safe, restricted, to do by when; no engineering terms."""
-    out = ['<section id="client" class="page client"><h2>Client summary</h2>']
+    out = ['<section id="client" class="client"><h2>Client summary</h2>']
     if not d.posts:
         out.append(
             "<p>No posts were recorded in the scope of this report, so there is nothing "
@@ -156,7 +215,7 @@ def _client(d: ReportData) -> str:
         )
     groups: dict[int | None, list[PostEntry]] = {}
     for p in d.by_urgency():
-        groups.setdefault(p.action, []).append(p)
+        groups.setdefault(client_group(p), []).append(p)
     if groups.get(3):
         out.append(
             '<div class="alert"><h3>\u2716 Unsafe now: keep everyone out from under these '
@@ -168,6 +227,14 @@ def _client(d: ReportData) -> str:
             for p in groups[3]
         ]
         out.append("</ul></div>")
+    if groups.get(None):
+        out.append(
+            "<h3>? Not assessed: treat as unsafe</h3><p>These posts could not be assessed from "
+            "what was recorded (a measurement or the load on them is missing); keep load off them "
+            "and treat them as unsafe until the inspector completes them: "
+            + ", ".join(_where(p) for p in groups[None])
+            + ".</p>"
+        )
     if groups.get(2):
         out.append(
             "<h3>\u25b2 Restricted: do not add load; repair or brace by the date shown</h3><ul>"
@@ -192,42 +259,39 @@ def _client(d: ReportData) -> str:
             + ", ".join(_where(p) for p in groups[0])
             + ".</p>"
         )
-    if groups.get(None):
-        out.append(
-            "<h3>? Not assessed</h3><p>These posts could not be assessed from what was "
-            "recorded; treat them as unsafe until the inspector completes them: "
-            + ", ".join(_where(p) for p in groups[None])
-            + ".</p>"
-        )
     dated = [p for p in d.by_urgency() if p.action in (2, 3)]
     if dated:
+        out.append("<h3>What must happen by when</h3>")
         out.append(
-            "<h3>What must happen by when</h3><table><tr><th>By</th><th>Post</th><th>What</th></tr>"
+            table(
+                ["By", "Post", "What"],
+                "".join(
+                    f"<tr><td>{e(due_text(p))}</td><td>{_where(p)}</td>"
+                    f"<td>{e(ACTION_TEXT[p.action])}</td></tr>"
+                    for p in dated
+                ),
+            )
         )
-        out += [
-            f"<tr><td>{e(due_text(p))}</td><td>{_where(p)}</td>"
-            f"<td>{e(ACTION_TEXT[p.action])}</td></tr>"
-            for p in dated
-        ]
-        out.append("</table>")
     levels = sorted({v.level for v in d.visits})
+    who = d.info.engineer or "the engineer responsible for the works"
+    firm = f" ({d.info.firm})" if d.info.firm else ""
     out.append(
         "<h3>Limits of this survey</h3><p>The posts were assessed from what could be seen and "
         f"measured on the day (data-collection level: {e(', '.join(levels) or 'not recorded')}). "
         "Hidden decay, hidden joints or loads nobody knew about can make a post weaker than shown. "
         "Where the wood species or grade was unknown, the lowest likely values were used.</p>"
-        "<h3>Who to call</h3><p>The engineer responsible for the works. If you see or hear "
-        "anything on the list below, first get everyone out from under the load, then call.</p>"
+        f"<h3>Who to call</h3><p>{e(who)}{e(firm)}. If you see or hear any of the warning signs "
+        "listed under \u201cRead this first\u201d on the first page (crushing, a split opening, a "
+        "post moving, a settling sill, new cracks, creaking), first get everyone out from under "
+        "the load, then call.</p></section>"
     )
-    out.append(cautions_box(compact=True))
-    out.append("</section>")
     return "".join(out)
 
 
-def _summary_table(d: ReportData) -> str:
+def _summary_rows(d: ReportData, posts) -> str:
     u = d.units
     rows = []
-    for p in d.posts:
+    for p in posts:
         mid = e(p.view.member_id)
         if p.j is None:
             rows.append(
@@ -241,20 +305,38 @@ def _summary_table(d: ReportData) -> str:
         rows.append(
             f"<tr><td><a href='#m-{mid}'>{e(p.tag)}</a></td><td>{e(p.view.location)}</td>"
             f"<td>{e(p.visit.name)}</td><td>{badge(p.action)}</td>"
-            f'<td class="num" data-k="capacity" data-post="{mid}">{e(format_force(r.capacity_n[p.j], u))}</td>'
+            f'<td class="num" data-k="capacity" data-post="{mid}">'
+            f"{e(format_force(r.capacity_n[p.j], u))}</td>"
             f'<td class="num">{e(format_force(r.demand_n[p.j], u))}</td>'
-            f'<td class="num" data-k="ratio" data-post="{mid}">{e(ratio_text(float(r.ratio[p.j])))}</td>'
-            f"<td>{e(r.governing_name(p.j))}</td><td>{e(due_text(p))}</td></tr>"
+            f'<td class="num" data-k="ratio" data-post="{mid}">'
+            f"{e(ratio_text(float(r.ratio[p.j])))}</td>"
+            f"<td>{e(check_label(d, r.governing_name(p.j)))}</td><td>{e(due_text(p))}</td></tr>"
         )
-    body = "".join(rows) or "<tr><td colspan=9>No posts are recorded in this scope.</td></tr>"
+    return "".join(rows)
+
+
+SUMMARY_HEAD = [
+    "Tag",
+    "Location",
+    "Visit",
+    "Action",
+    "num:Capacity",
+    "num:Demand",
+    "num:Ratio",
+    "Governs",
+    "Due",
+]
+
+
+def _summary_table(d: ReportData) -> str:
+    body = _summary_rows(d, d.posts) or (
+        "<tr><td colspan=9>No posts are recorded in this scope.</td></tr>"
+    )
     return (
-        '<section id="summary" class="page"><h2>Every post</h2>'
+        '<section id="summary"><h2>Every post</h2>'
         "<p class='small muted'>Re-rated for this report in one engine run; due date = visit date "
         "+ the action's interval (judgement defaults: monitor 90 days, repair or brace 14 days, "
-        "make safe: now).</p>"
-        "<table><tr><th>Tag</th><th>Location</th><th>Visit</th><th>Action</th>"
-        '<th class="num">Capacity</th><th class="num">Demand</th><th class="num">Ratio</th>'
-        f"<th>Governs</th><th>Due</th></tr>{body}</table>{cautions_box(compact=True)}</section>"
+        "make safe: now).</p>" + table(SUMMARY_HEAD, body) + "</section>"
     )
 
 
@@ -273,10 +355,7 @@ def _open_actions(d: ReportData) -> str:
     if not open_:
         out.append("<p>No open actions: every post in this report is adequate as found.</p>")
     else:
-        out.append(
-            "<table><tr><th>Post</th><th>Action</th><th class='num'>Ratio</th><th>Due</th>"
-            "<th>What to do</th></tr>"
-        )
+        rows = []
         for p in open_:
             ratio = p.summary.get("demand_capacity_ratio") if p.summary else None
             what = (
@@ -284,12 +363,12 @@ def _open_actions(d: ReportData) -> str:
                 if p.action is not None
                 else ("Complete the record: " + "; ".join(p.errors))
             )
-            out.append(
+            rows.append(
                 f"<tr><td>{_where(p)}</td><td>{badge(p.action)}</td>"
                 f"<td class='num'>{e(ratio_text(ratio))}</td><td>{e(due_text(p))}</td>"
                 f"<td>{e(what)}</td></tr>"
             )
-        out.append("</table>")
+        out.append(table(["Post", "Action", "num:Ratio", "Due", "What to do"], "".join(rows)))
     out.append("</section>")
     return "".join(out)
 
@@ -310,31 +389,42 @@ def _conflicts(d: ReportData) -> str:
         out.append(
             f"<h3>\u26a0 {e(tag)}: {len(heads)} revisions made without seeing each other</h3>"
             "<p>Both are kept; the office must choose one (nothing is resolved silently). "
-            "This report rates the newest.</p><table><tr><th>Revision</th><th>By</th>"
-            "<th>When</th><th>Device</th><th>Where they differ</th></tr>"
+            "This report rates the newest.</p>"
         )
-        out += [
-            f"<tr><td class='hash'>{e(h.id)}</td><td>{e(h.author)}</td><td>{e(h.created_at)}</td>"
-            f"<td class='hash'>{e(h.device_id)}</td><td>"
-            + "; ".join(f"{e(k)} = {e(h.record.get(k, '(not given)'))}" for k in keys)
-            + "</td></tr>"
-            for h in heads
-        ]
-        out.append("</table>")
+        out.append(
+            table(
+                ["Revision", "When", "Device", "Where they differ"],
+                "".join(
+                    f"<tr><td>{k}</td><td>{e(h.created_at)}</td><td>{e(h.device_id)}</td><td>"
+                    + "; ".join(f"{e(c)} = {e(h.record.get(c, '(not given)'))}" for c in keys)
+                    + "</td></tr>"
+                    for k, h in enumerate(heads, 1)
+                ),
+            )
+        )
     out.append("</section>")
     return "".join(out)
 
 
 def _record_table(record: dict[str, str]) -> str:
+    """The inputs as typed, two to a row, each named in words."""
     from fieldcheck.records import COLUMNS
 
     order = [c for c in COLUMNS if c in record] + [c for c in record if c not in COLUMNS]
-    rows = "".join(
-        f"<tr><th>{e(c)}</th><td>{e(record[c])}</td>"
-        f"<td class='small muted'>{e(COLUMNS[c].help) if c in COLUMNS else 'not an engine input'}</td></tr>"
+    order = [c for c in order if c not in ("tag", "location", "notes")]
+    cells = [
+        f"<th>{e(c.replace('_', ' '))}</th><td>{e(record[c])}"
+        f"{'' if c in COLUMNS else ' <span class=muted>(not an engine input)</span>'}</td>"
         for c in order
+    ]
+    rows = "".join(
+        "<tr>"
+        + "".join(cells[k : k + 2])
+        + ("<td></td><td></td>" if k + 1 == len(cells) else "")
+        + "</tr>"
+        for k in range(0, len(cells), 2)
     )
-    return f'<table class="kv">{rows}</table>'
+    return f'<div class="tw"><table class="kv inputs"><tbody>{rows}</tbody></table></div>'
 
 
 def _assumptions(d: ReportData, p: PostEntry) -> str:
@@ -347,19 +437,20 @@ def _assumptions(d: ReportData, p: PostEntry) -> str:
     elif method == "lrfd":
         dur = f"time effect factor \u03bb = {float(b.lam[j]):g} (NDS 2018 Appendix N)"
     else:
-        dur = f"C_D = {float(b.cd[j]):g} (NDS 2018 Table 2.3.2)"
+        dur = f"CD = {float(b.cd[j]):g} (NDS 2018 Table 2.3.2)"
     rec = p.view.record
     rows = [
         ("Method", method.upper()),
         ("Material", p.meta.get("_material", rec.get("species", ""))),
         (
-            "Knowledge factor \u03ba",
+            "Knowledge factor kappa",
             f"{float(b.knowledge[j]):g} (ASCE 41 data collection; visit level {p.visit.level})",
         ),
         ("Load duration", f"{rec.get('duration', 'not given: default')}; {dur}"),
         ("Moisture", rec.get("moisture") or "not measured: dry service assumed"),
         ("Construction-stage member", "yes" if bool(b.construction[j]) else "no"),
     ]
+    axes = []
     for ax in (1, 2):
         ke = v.get(f"ke{ax}")
         lu = v.get(f"lu{ax}")
@@ -368,21 +459,26 @@ def _assumptions(d: ReportData, p: PostEntry) -> str:
             continue
         kev = float(ke[jv])
         luv = float(lu[jv]) if lu is not None else float(b.height_mm[j])
-        rows.append(
-            (
-                f"Axis {ax}: Ke, lu, le = Ke lu, le/d",
-                f"Ke = {kev:.3g}, lu = {format_length(luv, u)}, le = {format_length(kev * luv, u)}, "
-                f"le/d = {float(led[jv]):.2f}"
-                if led is not None
-                else "",
-            )
+        axes.append(
+            f"Ke = {sig(kev, 3)}, lu = {format_length(luv, u)}, "
+            f"le = {format_length(kev * luv, u)}, le/d = {sig(float(led[jv]), 4)}"
+            if led is not None
+            else ""
         )
+    if len(axes) == 2 and axes[0] == axes[1]:
+        rows.append(("Axes 1 and 2: Ke, lu, le = Ke lu, le/d", axes[0]))
+    else:
+        rows += [(f"Axis {k}: Ke, lu, le = Ke lu, le/d", a) for k, a in enumerate(axes, 1)]
     lc = s.get("load_combination")
     if isinstance(lc, dict) and lc.get("name"):
         rows.append(("Load", f"{lc.get('name')}{'; ' + lc['clause'] if lc.get('clause') else ''}"))
-    body = "".join(f"<tr><th>{e(k)}</th><td>{e(val)}</td></tr>" for k, val in rows)
-    warn = "".join(f"<li>\u26a0 {e(w)}</li>" for w in s.get("warnings", []))
-    return f'<table class="kv">{body}</table>' + (f"<ul>{warn}</ul>" if warn else "")
+    body = "".join(f"<tr><th>{symbols(k)}</th><td>{symbols(val)}</td></tr>" for k, val in rows)
+    return kv(body)
+
+
+def _warnings(p: PostEntry) -> str:
+    warn = "".join(f"<li>\u26a0 {e(w)}</li>" for w in p.summary.get("warnings", []))
+    return f"<ul class='small warnings'>{warn}</ul>" if warn else ""
 
 
 def _checks(d: ReportData, p: PostEntry) -> str:
@@ -396,15 +492,12 @@ def _checks(d: ReportData, p: PostEntry) -> str:
         ratio = float(c.ratio[j])
         mark = " \u25c0 governs" if name == gov else ""
         rows.append(
-            f"<tr><td>{e(c.label)} <span class='muted'>({e(name)})</span>{mark}</td>"
+            f"<tr><td>{e(c.label)}{mark}</td>"
             f"<td class='num'>{e(format_force(cap, u))}</td>"
             f"<td class='num'>{e(format_force(float(c.demand_n[j]), u))}</td>"
             f"<td class='num'>{e(ratio_text(ratio))}</td><td>{e(c.clause)}</td></tr>"
         )
-    return (
-        "<table><tr><th>Check</th><th class='num'>Capacity</th><th class='num'>Demand</th>"
-        f"<th class='num'>Ratio</th><th>Clause</th></tr>{''.join(rows)}</table>"
-    )
+    return table(["Check", "num:Capacity", "num:Demand", "num:Ratio", "Clause"], "".join(rows))
 
 
 def _remedies(d: ReportData, p: PostEntry) -> str:
@@ -440,75 +533,101 @@ def _remedies(d: ReportData, p: PostEntry) -> str:
 def _notes_photos(p: PostEntry) -> str:
     out = []
     note = p.view.record.get("notes")
+    out.append(f"<p><b>Notes:</b> {e(note) if note else 'none recorded'}</p>")
     revs = "".join(
-        f"<li>{e(rv.kind)} by {e(rv.author)}, {e(rv.created_at)}: {e(rv.text)}</li>"
-        for rv in p.reviews
+        f"<li>{e(rv.kind)}, {e(rv.created_at[:10])}: {e(rv.text)}</li>" for rv in p.reviews
     )
-    out.append(f"<h3>Notes</h3><p>{e(note) if note else 'none recorded'}</p>")
     if revs:
         out.append(f"<h3>Office reviews</h3><ul>{revs}</ul>")
     if p.attachments:
         rows = "".join(
-            f"<tr><td>{e(a.path)}</td><td>{e(a.caption)}</td><td class='hash'>{e(a.sha256)}</td></tr>"
+            f"<tr><td>{e(Path(a.path).name)}</td><td>{e(a.caption)}</td>"
+            f"<td class='hash'>{e(a.sha256)}</td></tr>"
             for a in p.attachments
         )
-        out.append(
-            "<h3>Photos</h3><table><tr><th>File</th><th>Caption</th><th>sha256</th></tr>"
-            f"{rows}</table>"
-        )
+        out.append("<h3>Photos</h3>" + table(["File", "Caption", "sha256"], rows))
     else:
-        out.append("<h3>Photos</h3><p>none attached</p>")
+        out.append("<p><b>Photos:</b> none attached</p>")
     return "".join(out)
 
 
 def _stored(p: PostEntry, units: str) -> str:
     s = p.stored
     if s is None:
-        head = "<p>No stored rating for this revision.</p>"
+        head = "<p><b>Stored rating:</b> none for this revision."
     else:
+        cap = s.capacity_n if s.capacity_n is not None else float("nan")
         head = (
-            f"<p>Stored rating: engine {e(s.engine_version)}, {e(s.created_at)}; "
-            f"{badge(s.action)} capacity {e(format_force(s.capacity_n if s.capacity_n is not None else float('nan'), units))}, "
-            f"ratio {e(ratio_text(s.ratio))}. Data editions: "
-            + "; ".join(f"{e(k)} {e(v)}" for k, v in sorted(s.data_editions.items()))
-            + ".</p>"
+            f"<p><b>Stored rating:</b> engine {e(s.engine_version)}, {e(s.created_at[:10])}; "
+            f"{badge(s.action)} capacity {e(format_force(cap, units))}, "
+            f"ratio {e(ratio_text(s.ratio))}."
         )
     if p.differs:
         items = "".join(f"<li>{e(x)}</li>" for x in p.differs)
         return (
-            head
-            + f'<div class="differs"><b>\u26a0 The stored rating differs from this re-rating:</b><ul>{items}</ul></div>'
+            head + '</p><div class="differs"><b>\u26a0 The stored rating differs from this '
+            f"re-rating:</b><ul>{items}</ul></div>"
         )
-    return head + "<p>\u2713 The stored rating equals this re-rating.</p>"
+    return head + " \u2713 The stored rating equals this re-rating.</p>"
+
+
+# working steps the post's result and checks tables already show (the report prints them once)
+SHOWN_ABOVE = ("Governing check", "Demand / capacity", "Action")
+
+
+def working_rows(steps) -> list[tuple[str, str, str]]:
+    """The working as the report prints it: (label, value, clause). Steps the result and checks
+    tables above already show are left out; the two axes' steps are written once when they are
+    equal (a square post); a step repeated with the same value is written once."""
+    rows = [
+        (st.label, st.value, st.clause)
+        for st in steps
+        if not st.label.startswith("Check:") and st.label not in SHOWN_ABOVE
+    ]
+    by_label = {lb: (v, c) for lb, v, c in rows}
+    out: list[tuple[str, str, str]] = []
+    seen: set[tuple[str, str]] = set()
+    for lb, v, c in rows:
+        if lb.startswith("Axis 2: ") and by_label.get("Axis 1: " + lb[8:]) == (v, c):
+            continue
+        if lb.startswith("Axis 1: ") and by_label.get("Axis 2: " + lb[8:]) == (v, c):
+            lb = "Axes 1 and 2: " + lb[8:]
+        key = (lb.split(" (")[0], v)
+        if key in seen:
+            continue
+        seen.add(key)
+        out.append((lb, v, c))
+    return out
 
 
 def _post(d: ReportData, p: PostEntry) -> str:
     mid = e(p.view.member_id)
     head = (
-        f'<section class="post" id="m-{mid}" data-post="{mid}"><h2>Post {e(p.tag)} '
+        f'<section class="post" id="m-{mid}" data-post="{mid}"><div class="keep">'
+        f"<h2>Post {e(p.tag)} "
         f"{badge(p.action)}</h2><p class='muted'>{e(p.view.location)} &middot; visit "
         f"{e(p.visit.name)} ({e(date_text(visit_date(p.visit)))}) &middot; revised "
-        f"{e(p.view.revised_at)} by {e(p.view.revised_by)} &middot; member {mid}</p>"
+        f"{e(p.view.revised_at[:10])}</p>"
     )
     if p.j is None:
         errs = "".join(f"<li>{e(x)}</li>" for x in p.errors)
         return (
-            head + f"<div class='alert'><b>Not rated:</b> the record as typed has errors."
+            head + "</div><div class='alert'><b>Not rated:</b> the record as typed has errors."
             f"<ul>{errs}</ul></div><h3>Inputs as measured</h3>{_record_table(p.view.record)}"
             f"{_notes_photos(p)}{_stored(p, d.units)}</section>"
         )
-    r, j, u, s = d.rating, p.j, d.units, p.summary
+    r, j, u = d.rating, p.j, d.units
     dem = float(r.demand_n[j])
-    result = (
-        '<table class="kv">'
+    result = kv(
         f'<tr><th>Capacity (governing)</th><td data-k="capacity" data-post="{mid}">'
         f"{e(format_force(r.capacity_n[j], u))}</td></tr>"
-        f"<tr><th>Demand</th><td>{e(format_force(dem, u)) if math.isfinite(dem) else 'no load given'}</td></tr>"
+        f"<tr><th>Demand</th><td>"
+        f"{e(format_force(dem, u)) if math.isfinite(dem) else 'no load given'}</td></tr>"
         f'<tr><th>Demand / capacity</th><td data-k="ratio" data-post="{mid}">'
         f"{e(ratio_text(float(r.ratio[j])))}</td></tr>"
-        f"<tr><th>Governing check</th><td>{e(r.governing_name(j))}</td></tr>"
+        f"<tr><th>Governing check</th><td>{e(check_label(d, r.governing_name(j)))}</td></tr>"
         f"<tr><th>Action</th><td>{badge(p.action)} {e(ACTION_TEXT[p.action])}</td></tr>"
-        f"<tr><th>Due</th><td>{e(due_text(p))}</td></tr></table>"
+        f"<tr><th>Due</th><td>{e(due_text(p))}</td></tr>"
     )
     plot = ""
     if p.curve_h is not None:
@@ -528,23 +647,22 @@ def _post(d: ReportData, p: PostEntry) -> str:
         ):
             plot += "<p class='small muted'>Curve: the same post unbraced over its full height.</p>"
     steps = "".join(
-        f"<tr><td>{k}</td><td>{e(st.label)}</td><td>{e(st.value)}</td>"
-        f"<td class='small'>{e(st.clause)}</td></tr>"
-        for k, st in enumerate(p.working, 1)
+        f"<tr><td>{k}</td><td>{symbols(lb)}</td><td>{notation(v, u)}</td><td>{e(c)}</td></tr>"
+        for k, (lb, v, c) in enumerate(working_rows(p.working), 1)
     )
     return (
         head
-        + result
-        + cautions_box(compact=True)
-        + f"<h3>Inputs as measured</h3>{_record_table(p.view.record)}"
-        + f"<h3>Assumptions</h3>{_assumptions(d, p)}"
+        + f'<div class="duo"><div>{result}</div><figure>{plot}</figure></div></div>'
+        + '<div class="duo even"><div><h3>Inputs as measured</h3>'
+        + _record_table(p.view.record)
+        + f"</div><div><h3>Assumptions</h3>{_assumptions(d, p)}</div></div>"
+        + _warnings(p)
         + f"<h3>Checks</h3>{_checks(d, p)}"
-        + f"<h3>Capacity against height</h3>{plot}"
         + _remedies(d, p)
-        + f"<h3>Working</h3><table class='steps'><tr><th>#</th><th>Step</th><th>Value</th>"
-        f"<th>Clause</th></tr>{steps}</table>"
+        + "<h3>Working</h3>"
+        + table(["#", "Step", "Value", "Clause"], steps, "steps")
         + _notes_photos(p)
-        + f"<h3>Stored rating</h3>{_stored(p, d.units)}</section>"
+        + f"{_stored(p, d.units)}</section>"
     )
 
 
@@ -553,54 +671,78 @@ def _engine(d: ReportData) -> str:
         f"<tr><td>{e(k)}</td><td>{e(v)}</td></tr>" for k, v in sorted(d.editions.items())
     )
     return (
-        '<section id="engine" class="page"><h2>Engine and reference data</h2>'
+        '<section id="engine"><h2>Engine and reference data</h2>'
         f"<p>fieldcheck engine version {e(d.engine_version)}. Reference-data editions used for "
-        "every re-rating in this report:</p>"
-        f"<table><tr><th>Table</th><th>Edition</th></tr>{rows}</table>"
-        f"{cautions_box()}</section>"
+        "every re-rating in this report:</p>" + table(["Table", "Edition"], rows) + "</section>"
     )
 
 
-def render(d: ReportData) -> str:
+def render_parts(d: ReportData):
+    """The document in pieces, in order (a writer can stream them to a file)."""
     title = "Survey report" + (f": {d.sites[0].name}" if len(d.sites) == 1 else "")
-    parts = [
-        "<!DOCTYPE html>",
-        '<html lang="en"><head><meta charset="utf-8">',
-        f"<title>{e(title)}</title><style>{CSS}</style></head><body>",
-        _cover(d),
-        _client(d),
-        _summary_table(d),
-        _open_actions(d),
-        _conflicts(d),
-        '<section id="record" class="page"><h2>Technical record</h2>'
+    left, right = header_text(d)
+    yield "<!DOCTYPE html>\n"
+    yield (
+        '<html lang="en"><head><meta charset="utf-8">'
+        '<meta name="viewport" content="width=device-width, initial-scale=1">'
+        f"<title>{e(title)}</title><style>{stylesheet(left, right)}</style></head><body>\n"
+    )
+    yield _cover(d) + "\n"
+    yield _client(d) + "\n"
+    yield _summary_table(d) + "\n"
+    yield _open_actions(d) + "\n"
+    yield _conflicts(d) + "\n"
+    yield (
+        '<section id="record"><h2>Technical record</h2>'
         "<p>One section per post: the inputs as typed, the assumptions, every check, the working, "
-        "notes and photos, and the stored rating compared with this re-rating.</p>",
-    ]
-    if not d.posts:
-        parts.append("<p>No posts are recorded in this scope (an empty visit or site).</p>")
-    parts.append("</section>")
-    parts += [_post(d, p) for p in d.posts]
-    parts += [_engine(d), "</body></html>\n"]
-    return "\n".join(parts)
+        "notes and photos, and the stored rating compared with this re-rating.</p>"
+        + (
+            ""
+            if d.posts
+            else "<p>No posts are recorded in this scope (an empty visit or site).</p>"
+        )
+        + "</section>\n"
+    )
+    for p in d.posts:
+        yield _post(d, p) + "\n"
+    yield _engine(d) + "\n</body></html>\n"
+
+
+def render(d: ReportData) -> str:
+    return "".join(render_parts(d))
 
 
 def render_report(
-    log, site_id: str | None = None, visit_id: str | None = None, units: str = "us"
+    log,
+    site_id: str | None = None,
+    visit_id: str | None = None,
+    units: str = "us",
+    info: ReportInfo | None = None,
 ) -> str:
     """The whole report as one HTML string (see the module docstring)."""
     if units not in ("us", "metric"):
         raise ValueError(f"units: '{units}' is not known; write us or metric, e.g. --units metric")
-    return render(gather(log, site_id, visit_id, units))
+    d = gather(log, site_id, visit_id, units)
+    if info is not None:
+        d.info = info
+    return render(d)
 
 
 def write_report(
-    log, path, site_id: str | None = None, visit_id: str | None = None, units: str = "us"
+    log,
+    path,
+    site_id: str | None = None,
+    visit_id: str | None = None,
+    units: str = "us",
+    info: ReportInfo | None = None,
 ) -> Path:
-    """Write the report to ``path`` atomically (a temporary file beside it, then a rename)."""
+    """Write the report to ``path`` atomically (a temporary file beside it, then a rename), with
+    the permissions the user's umask gives a new file."""
     path = Path(path).expanduser()
-    text = render_report(log, site_id, visit_id, units)
+    text = render_report(log, site_id, visit_id, units, info)
     fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".part", dir=path.parent or ".")
     try:
+        os.chmod(tmp, 0o666 & ~_umask())
         with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as fh:
             fh.write(text)
             fh.flush()
@@ -610,6 +752,12 @@ def write_report(
         Path(tmp).unlink(missing_ok=True)
         raise
     return path
+
+
+def _umask() -> int:
+    mask = os.umask(0)
+    os.umask(mask)
+    return mask
 
 
 __all__ = ["ACTIONS", "render_report", "write_report"]

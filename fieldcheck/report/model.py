@@ -63,6 +63,19 @@ class PostEntry:
         return (-a, -(r if r is not None else -1.0), self.tag)
 
 
+@dataclass(frozen=True)
+class ReportInfo:
+    """Who issues the report and which one it is: from the config file or the command's options.
+    ``revision`` counts up each time the same scope's report is reissued (kept in the log)."""
+
+    firm: str = ""
+    engineer: str = ""
+    client: str = ""
+    job: str = ""
+    number: str = ""
+    revision: int = 0
+
+
 @dataclass
 class ReportData:
     sites: list[Any]
@@ -76,6 +89,7 @@ class ReportData:
     created: _dt.datetime
     units: str
     signoffs: list[Any] = field(default_factory=list)  # sign-off reviews of the report's visits
+    info: ReportInfo = field(default_factory=ReportInfo)
 
     @property
     def rated(self) -> list[PostEntry]:

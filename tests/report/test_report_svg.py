@@ -19,7 +19,8 @@ from fieldcheck.report import svg
 )
 @settings(max_examples=60, deadline=None)
 def test_curve_marker_and_demand_stay_inside_the_frame(h, cap, dem_ratio, units):
-    # common practice, no source: a falling curve like Euler's, capacity ~ 1 / height^2 past a plateau
+    # common practice, no source: a falling curve like Euler's, capacity ~ 1 / height^2 past a
+    # plateau
     heights = h * np.linspace(0.25, 2.0, 20)
     caps = np.minimum(cap * 1.3, cap * (h / heights) ** 2)
     out = svg.capacity_plot(heights, caps, h, cap, cap * dem_ratio, units, "P1")
