@@ -54,7 +54,8 @@ PSF = loads.PSF_KPA  # kPa per psf
 G_SOIL_UNKNOWN = new_flag(
     40,
     "Soil under the pad not classified: no presumptive bearing value, the ground is not verified "
-    "(IBC 2012 §1806.2); classify it or accept the 1,500 psf default explicitly (soil_default yes), "
+    "(IBC 2012 §1806.2); classify it or accept the 1,500 psf default explicitly (soil_default "
+    "yes), "
     "and watch for settlement.",
 )
 G_SOIL_UNPREPARED = new_flag(
@@ -72,7 +73,9 @@ G_PAD_MISSING = new_flag(
 )
 G_PAD_RIGID = new_flag(
     44,
-    "Pad thickness not given: the whole pad area is taken as bearing on the soil (a rigid pad).",
+    "Pad thickness not given: the whole pad area is taken as bearing on the soil (a rigid pad), "
+    "which a thin pad does not give; the soil check is not relied on (repair level) until the "
+    "thickness is measured.",
 )
 G_PLATE = new_flag(
     45,
@@ -85,7 +88,9 @@ G_SHARED = new_flag(
     "(judgement); check the cap.",
 )
 # judgement, see the module docstring: unknown class / no pad size -> monitor; unprepared -> repair
-ESCALATIONS.extend([(G_SOIL_UNKNOWN | G_PAD_MISSING, 1), (G_SOIL_UNPREPARED, 2)])
+# a pad of unknown thickness is taken as rigid, which may overstate the area on the soil: the
+# soil check cannot be relied on until the thickness is measured (judgement), so repair level
+ESCALATIONS.extend([(G_SOIL_UNKNOWN | G_PAD_MISSING, 1), (G_SOIL_UNPREPARED | G_PAD_RIGID, 2)])
 
 
 @cache
@@ -327,7 +332,8 @@ def ground_steps(r: Rating, i: int) -> list[Step]:
         s.append(
             Step(
                 f"Governing load combination (largest load / {lc['factor_name']})",
-                f"{lc['name']}: {_n(b.load_n[i] * b.shared_by[i])}, {lc['factor_name']} = {lc['factor']}",
+                f"{lc['name']}: {_n(b.load_n[i] * b.shared_by[i])}, {lc['factor_name']} = "
+                f"{lc['factor']}",
                 lc["clause"],
             )
         )
@@ -370,7 +376,8 @@ def ground_steps(r: Rating, i: int) -> list[Step]:
         s.append(
             Step(
                 "Bracing must carry (minimum + out-of-plumb thrust)",
-                f"{_n(v['lateral_min_n'][i])} + {_n(v['lateral_thrust_n'][i])} = {_n(v['lateral_n'][i])}",
+                f"{_n(v['lateral_min_n'][i])} + {_n(v['lateral_thrust_n'][i])} = "
+                f"{_n(v['lateral_n'][i])}",
                 br["clause"] + "; statics P x lean / h",
             )
         )

@@ -17,15 +17,24 @@ from fieldcheck.engine.cautions import CAUTIONS
 from fieldcheck.engine.customary import LBF
 from fieldcheck.engine.restraint import MODE_KEYS, MODES, end_pair, modes_of_pairs
 
-# Action categories (our own wording; ratio bands are judgement, field-practice.md §8 #120).
-ACTIONS = ("no-action", "monitor", "repair-or-brace", "make-safe-now")
+# Action categories (our own wording; ratio bands are judgement, common practice, no source).
+# Code 4, NOT_RATED, is a state of its own: a decision input (the load) is missing, so no
+# decision is made. It is never no-action or monitor and carries no due date. It sits after
+# make-safe-now in the tuples so that ACTIONS[code] works; compare with NOT_RATED, never with >=.
+ACTIONS = ("no-action", "monitor", "repair-or-brace", "make-safe-now", "not-rated")
 ACTION_TEXT = (
     "No action: adequate as found.",
     "Monitor: re-inspect at the next visit and after any change; read the warnings.",
     "Repair or brace before the due date; restrict the load until then.",
     "Make safe now: clear the area under the load and call the engineer.",
+    "Not rated: load missing. No decision can be made: give the load on the post (or the "
+    "tributary area and the loads on it) and rate it again; until then treat it as unrated.",
 )
-DUE_DAYS = (None, 90, 14, 0)  # judgement defaults, editable later
+DUE_DAYS = (None, 90, 14, 0, None)  # judgement defaults, editable later
+NOT_RATED = 4
+# Why a post is not rated (the state key of the --json output); one reason today.
+STATE_RATED = "rated"
+STATE_LOAD_MISSING = "not rated: load missing"
 RATIO_BANDS = (0.8, 1.0, 1.25)  # <= 0.8 none, <= 1.0 monitor, <= 1.25 repair, above: make safe
 
 # Warning flags (bit positions). Condition, load and ground modules add theirs after these.
@@ -42,15 +51,18 @@ F_NO_LOAD = _flag(
 )
 F_SLENDER_CONSTRUCTION = _flag(
     1,
-    "le/d exceeds 50: admissible only as a construction-stage member (NDS 2018 §3.7.1.4 allows 75).",
+    "le/d exceeds 50: admissible only as a construction-stage member (NDS 2018 §3.7.1.4 allows "
+    "75).",
 )
 F_SLENDER_LIMIT = _flag(
     2,
-    "le/d exceeds the NDS 2018 §3.7.1.4 limit (50, or 75 during construction): brace it or replace it.",
+    "le/d exceeds the NDS 2018 §3.7.1.4 limit (50, or 75 during construction): brace it or "
+    "replace it.",
 )
 F_END_PLATE = _flag(
     3,
-    "End-grain bearing stress exceeds 0.75 Fc*: bear the end on a steel plate (NDS 2018 §3.10.1.3).",
+    "End-grain bearing stress exceeds 0.75 Fc*: bear the end on a steel plate (NDS 2018 "
+    "§3.10.1.3).",
 )
 F_DRY_ASSUMED = _flag(4, "Moisture not measured: dry service (19 % or less) assumed.")
 F_WET = _flag(
@@ -73,6 +85,12 @@ F_MECHANISM = _flag(
 )
 F_BUILT_UP = _flag(
     12, "Built-up post: Kf applied about the axis across the plies (NDS 2018 §15.3)."
+)
+F_BASE_FIXITY = _flag(
+    13,
+    "Sway case (flagpole or an end free to move sideways): the rating rests on the fixed end "
+    "being truly fixed against rotation (NDS 2018 Appendix G); a base that can rotate makes the "
+    "post a mechanism. Confirm the fixity (embedment, bolted base, moment connection) on site.",
 )
 
 
@@ -134,6 +152,14 @@ class Rating:
     def governing_name(self, i: int) -> str:
         return self.check_names[int(self.governing[i])]
 
+    def state(self, i: int) -> str:
+        """ "rated", or "not rated: load missing" (a decision input is missing: no decision)."""
+        return STATE_LOAD_MISSING if int(self.action[i]) == NOT_RATED else STATE_RATED
+
+    def rated(self) -> np.ndarray:
+        """Boolean array: True where a decision was made (False: not rated, load missing)."""
+        return self.action != NOT_RATED
+
     def warnings(self, i: int) -> list[str]:
         if self.partial:
             return self.detail(i).warnings(0)
@@ -165,8 +191,8 @@ class Rating:
                 {
                     "name": name,
                     "label": c.label,
-                    "capacity_kN": round(capn / 1000.0, 4),
-                    "capacity_lbf": round(capn / LBF, 1),
+                    "capacity_kN": _num(capn / 1000.0, 4),
+                    "capacity_lbf": _num(capn / LBF, 1),
                     "demand_kN": _num(c.demand_n[i] / 1000.0, 4),
                     "ratio": _num(r, 4),
                     "clause": c.clause,
@@ -175,8 +201,9 @@ class Rating:
         act = int(self.action[i])
         out = {
             "method": METHOD_NAMES[int(self.batch.method[i])],
-            "allowable_load_lbf": round(cap / LBF, 1),
-            "allowable_load_kN": round(cap / 1000.0, 4),
+            "state": self.state(i),
+            "allowable_load_lbf": _num(cap / LBF, 1),
+            "allowable_load_kN": _num(cap / 1000.0, 4),
             "demand_lbf": _num(self.demand_n[i] / LBF, 1),
             "demand_kN": _num(self.demand_n[i] / 1000.0, 4),
             "demand_capacity_ratio": _num(ratio, 4),
@@ -201,7 +228,7 @@ class Rating:
         }
         for hook in SUMMARY_HOOKS:  # other engine modules add their keys (loads, ground, remedies)
             hook(self, i, out)
-        return out
+        return finite(out)
 
 
 def _prod(first: np.ndarray, *factors: np.ndarray) -> np.ndarray:
@@ -224,8 +251,21 @@ def set_flag(flags: np.ndarray, bit: int, where: np.ndarray) -> None:
 
 
 def _num(x: float, nd: int) -> float | None:
+    """Rounded, or None for NaN and infinities (JSON has neither)."""
     x = float(x)
-    return None if np.isnan(x) else round(x, nd)
+    return round(x, nd) if np.isfinite(x) else None
+
+
+def finite(obj):
+    """obj with every NaN or infinite float replaced by None, through dicts and lists: the JSON
+    of a rating never holds NaN or Infinity (an unrated or impossible value is null)."""
+    if isinstance(obj, float | np.floating):
+        return float(obj) if np.isfinite(obj) else None
+    if isinstance(obj, dict):
+        return {k: finite(v) for k, v in obj.items()}
+    if isinstance(obj, list | tuple):
+        return [finite(v) for v in obj]
+    return obj
 
 
 # Large batches are rated in blocks that stay in the CPU cache, on this thread and one helper
@@ -347,7 +387,7 @@ def _unbraced(lu: np.ndarray, h: np.ndarray, sway: np.ndarray) -> np.ndarray:
 def _axis_ke(
     ke_given: np.ndarray, braced: np.ndarray, sway: np.ndarray, k_ends: np.ndarray
 ) -> np.ndarray:
-    """Ke about one axis: as given; 1.0 between brace points of a no-sway post; else from the ends."""
+    """Ke about one axis: as given; 1.0 between brace points of a no-sway post; else the ends."""
     if np.isnan(ke_given).all() and not braced.any():
         return k_ends.copy()
     return np.where(np.isnan(ke_given), np.where(braced & ~sway, 1.0, k_ends), ke_given)
@@ -567,6 +607,7 @@ def _rate_block(b: PostBatch) -> Rating:
     if (u(b.braced1) | u(b.braced2)).any():
         flag(F_SWAY_BRACES, sway & (b.braced1 | b.braced2) & ~braced_solved)
     flag(F_MECHANISM, mode == -1)
+    flag(F_BASE_FIXITY, sway & (mode != -1))  # judgement: the K of a sway case needs the fixity
     flag(F_BUILT_UP, u(b.kf) < 1.0)
     for hook in FLAG_HOOKS:
         flags |= hook(b, values)
@@ -640,7 +681,6 @@ def action_from(ratio, flags, le_d_max=None, limit=None) -> np.ndarray:
     act = (ratio > lo).astype(np.int8)  # NaN compares False
     act += ratio > mid
     act += ratio > hi
-    np.maximum(act, np.isnan(ratio), out=act)  # no load: at least monitor
     if le_d_max is not None:
         _at_least(act, 2, le_d_max > limit)
     present = int(np.bitwise_or.reduce(flags)) if flags.size else 0  # every flag raised anywhere
@@ -648,6 +688,11 @@ def action_from(ratio, flags, le_d_max=None, limit=None) -> np.ndarray:
         bits = _escalation_bits(level) & present
         if bits:
             _at_least(act, level, (flags & bits) != 0)
+    # no ratio (the load is missing): not rated, a state of its own, unless the condition alone
+    # already calls for repair or making safe (those need no load); never no-action or monitor
+    unrated = np.isnan(ratio)
+    if unrated.any():
+        act[unrated & (act < 2)] = NOT_RATED
     return act
 
 
@@ -661,7 +706,7 @@ def _escalation_bits(level: int) -> int:
 
 
 def _at_least(act: np.ndarray, level: int, where: np.ndarray) -> None:
-    """act = max(act, level) where ``where`` holds (int8, in place; a product, not a masked loop)."""
+    """act = max(act, level) where ``where`` holds (int8, in place; a product, no masked loop)."""
     if np.any(where):
         np.maximum(act, np.multiply(where, level, dtype=np.int8), out=act)
 
@@ -700,7 +745,10 @@ def new_flag(bit: int, text: str) -> int:
 
 def mode_label(i_mode: int) -> str:
     if i_mode == -2:
-        return "spring-restrained ends: K solved numerically (stability.py), design value per NDS 2018 Appendix G margins"
+        return (
+            "spring-restrained ends: K solved numerically (stability.py), design value per "
+            "NDS 2018 Appendix G margins"
+        )
     if i_mode < 0:
         return "mechanism"
     key = MODE_KEYS[i_mode]

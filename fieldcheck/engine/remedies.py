@@ -42,7 +42,14 @@ import numpy as np
 from fieldcheck.engine import materials, nds, sections
 from fieldcheck.engine.batch import DIMENSION, EC5, LRFD, RECT, TIMBER, PostBatch, make_batch
 from fieldcheck.engine.customary import IN, LBF
-from fieldcheck.engine.rating import ACTIONS, F_END_PLATE, Rating, rate, register_summary_hook
+from fieldcheck.engine.rating import (
+    ACTIONS,
+    F_END_PLATE,
+    NOT_RATED,
+    Rating,
+    rate,
+    register_summary_hook,
+)
 
 FT = 304.8
 
@@ -217,34 +224,41 @@ class Remedies:
         resets = False
         if k == BRACE_WEAK:
             desc = (
-                f"Brace at mid-height, {_mm(v1)} from the bottom, across the thin side; tie the brace to "
-                f"something that cannot move (it must carry at least 2 % of the load, {_lbf(0.02 * load)})."
+                f"Brace at mid-height, {_mm(v1)} from the bottom, across the thin side; tie the "
+                "brace to "
+                "something that cannot move (it must carry at least 2 % of the load, "
+                f"{_lbf(0.02 * load)})."
             )
             rec = {"brace_weak": f"{v1:.0f} mm"}
         elif k == BRACE_BOTH:
             desc = (
-                f"Brace at mid-height, {_mm(v1)} from the bottom, in both directions; each brace tied to "
-                f"something that cannot move, carrying at least 2 % of the load ({_lbf(0.02 * load)})."
+                f"Brace at mid-height, {_mm(v1)} from the bottom, in both directions; each brace "
+                "tied to "
+                "something that cannot move, carrying at least 2 % of the load "
+                f"({_lbf(0.02 * load)})."
             )
             rec = {"brace_strong": f"{v1:.0f} mm"}
             if v2:
                 rec["brace_weak"] = f"{v1:.0f} mm"
         elif k == PLATE:
             desc = (
-                f"Steel bearing plates at the cap and the sill, {_mm(v1)} long along their grain, at least "
+                f"Steel bearing plates at the cap and the sill, {_mm(v1)} long along their "
+                "grain, at least "
                 "1/2 in thick (judgement: an engineer confirms the plate)."
             )
             rec = {"plate": f"{v1:.0f} mm", "end_plate": "yes"}
         elif k == PAD:
             desc = (
-                f"A pad or mudsill {_mm(v1)} square and at least {_mm(v2)} thick (the load spreads 1:1 "
+                f"A pad or mudsill {_mm(v1)} square and at least {_mm(v2)} thick (the load "
+                "spreads 1:1 "
                 "through it, judgement) on the same soil, prepared and level."
             )
             rec = {"pad": f"{v1:.0f} x {v1:.0f} mm", "pad_thickness": f"{v2:.0f} mm"}
         elif k == SECOND:
             n = int(v1)
             desc = (
-                f"A second post of the same size beside it, {n} posts sharing the load equally; true only "
+                f"A second post of the same size beside it, {n} posts sharing the load equally; "
+                "true only "
                 "under a cap stiff enough to share it (judgement): check the cap."
             )
             rec = {"shared_by": str(n)}
@@ -252,7 +266,8 @@ class Remedies:
             size, grade = _stock(self.species[j])[0][int(v1)]
             sp = self.species[j]
             desc = (
-                f"Replace with a new {size} {sp} {grade} post (sound, grade-stamped), same height, ends and "
+                f"Replace with a new {size} {sp} {grade} post (sound, grade-stamped), same "
+                "height, ends and "
                 "bracing."
             )
             rec = {
@@ -293,10 +308,11 @@ def _lbf(x: float) -> str:
 def remedies(batch: PostBatch, rating: Rating | None = None) -> Remedies:
     """Ranked options that make each failing post pass, all rated in one engine call."""
     r = rating if rating is not None else rate(batch)
-    failing = np.flatnonzero((r.ratio > 1.0) | (r.action >= 2))
+    # a post not rated (load missing) has no decision to remedy: it is left out
+    failing = np.flatnonzero((r.ratio > 1.0) | ((r.action >= 2) & (r.action != NOT_RATED)))
     sub = batch.take(failing)
     k = sub.n
-    loc = np.arange(k)
+    np.arange(k)
     parts: list[PostBatch] = []
     tags: list[
         tuple[np.ndarray, int, np.ndarray, np.ndarray, np.ndarray, np.ndarray]
@@ -486,7 +502,7 @@ def _empty(batch: PostBatch, failing: np.ndarray) -> Remedies:
 
 
 def _summary(r: Rating, i: int, out: dict) -> None:
-    if not (r.ratio[i] > 1.0 or r.action[i] >= 2):
+    if not (r.ratio[i] > 1.0 or 2 <= r.action[i] < NOT_RATED):
         out["remedies"] = []
         return
     one = r.batch.take(np.array([i]))
@@ -494,7 +510,8 @@ def _summary(r: Rating, i: int, out: dict) -> None:
     out["remedies"] = [x.as_dict() for x in rem.for_post(0)]
     if not out["remedies"]:
         out["remedies_note"] = (
-            "No single change we model makes this post pass (or it has no load): make it safe and ask the "
+            "No single change we model makes this post pass (or it has no load): make it safe "
+            "and ask the "
             "engineer."
             if not np.isnan(r.batch.load_n[i])
             else "Give the load to see what would make it pass."

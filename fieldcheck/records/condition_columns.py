@@ -43,7 +43,8 @@ def _slope(s: str) -> float:
     n = float(m.group(1))
     if n < 1.0:
         raise ValueError(
-            f"slope: 1 in {n:g} is flatter than 1 in 1; give 1 in n with n of 1 or more, e.g. 1 in 12."
+            f"slope: 1 in {n:g} is flatter than 1 in 1; give 1 in n with n of 1 or more, e.g. 1 "
+            "in 12."
         )
     return n
 
@@ -439,7 +440,8 @@ def condition_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]
             if g(a) + g(b_) >= dim:
                 raise RowError(
                     a,
-                    f"{a}: {what} from both faces leaves nothing of the {across}; check the depths.",
+                    f"{a}: {what} from both faces leaves nothing of the {across}; check the "
+                    "depths.",
                 )
 
     depth_pair("decay", "decay")
@@ -467,8 +469,20 @@ def condition_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]
                 f"wane: {g('wane') / IN:.3g} in is as wide as a face; give the width missing, "
                 "e.g. 1/2 in.",
             )
+        corners = int(row.get("wane_corners", "1"))
+        # the corner triangles (45 degrees, leg w) must not meet: two corners share the face
+        # along d1 (corners 1, 2), three or four also the face along d2 (geometry)
+        room = min(d1, d2) if corners == 1 else min(0.5 * d1, d2) if corners == 2 else 0.5 * d2
+        if g("wane") > room:
+            raise RowError(
+                "wane",
+                f"wane: {g('wane') / IN:.3g} in at {corners} corners overlaps across the "
+                f"{d2 / IN:.3g} x {d1 / IN:.3g} in section and leaves no section that can be "
+                f"rated (at most {room / IN:.3g} in at {corners} corners); measure the width "
+                "missing on one face at one corner, e.g. 1/2 in.",
+            )
         f["wane_mm"] = g("wane")
-        f["wane_corners"] = int(row.get("wane_corners", "1"))
+        f["wane_corners"] = corners
     for kind, depth_word in (("notch", "depth"), ("hole", "diameter")):
         v = g(kind)
         if v <= 0:

@@ -1,0 +1,115 @@
+"""A missing decision input is never read as safe: not rated, refused, or raised.
+
+Policy, not a published table: a screening aid must not call a post fine when it could not
+decide (common practice, no source). JSON (RFC 8259) has no NaN or Infinity.
+"""
+
+from __future__ import annotations
+
+import json
+
+import numpy as np
+import pytest
+
+from fieldcheck.cli import main
+from fieldcheck.engine.batch import FIXED, FREE, PINNED, make_batch
+from fieldcheck.engine.rating import (
+    ACTIONS,
+    DUE_DAYS,
+    F_BASE_FIXITY,
+    NOT_RATED,
+    STATE_LOAD_MISSING,
+    rate,
+)
+from fieldcheck.records import rate_records
+
+PSI = 0.006894757293168361
+POST = ["rate", "--size", "4x4", "--height", "8ft", "--species", "dfl", "--grade", "no2"]
+
+
+def _batch(**kw):
+    base = {
+        "d1_mm": 88.9,
+        "d2_mm": 88.9,
+        "height_mm": 2438.4,
+        "fc_mpa": 1350 * PSI,
+        "emin_mpa": 580e3 * PSI,
+    }
+    base.update(kw)
+    return make_batch(**base)
+
+
+def test_no_load_is_not_rated_never_no_action_or_monitor():
+    r = rate(_batch(load_n=np.array([np.nan, 1000.0])))
+    assert int(r.action[0]) == NOT_RATED
+    assert ACTIONS[NOT_RATED] == "not-rated" and DUE_DAYS[NOT_RATED] is None  # no due date
+    assert int(r.action[1]) == 0  # a light load on a sound post: rated, no action
+    assert r.state(0) == STATE_LOAD_MISSING and r.state(1) == "rated"
+    assert r.rated().tolist() == [False, True]
+
+
+def test_condition_that_needs_no_load_still_raises_the_action():
+    # a post moving more than before is make-safe-now with or without a load (judgement)
+    r = rate(_batch(post_moving=np.array([True])))
+    assert int(r.action[0]) == 3
+
+
+def test_cli_json_not_rated(capsys):
+    assert main([*POST, "--json"]) == 0
+    out = json.loads(capsys.readouterr().out)
+    assert out["state"] == "not rated: load missing"
+    assert out["action"] == "not-rated" and out["due_days"] is None
+    assert out["demand_capacity_ratio"] is None
+    assert out["allowable_load_lbf"] > 0  # the capacity is still shown
+
+
+def test_cli_text_not_rated(capsys):
+    assert main(POST) == 0
+    assert "Not rated: load missing" in capsys.readouterr().out
+
+
+def test_batch_records_not_rated():
+    rows = [
+        {"size": "4x4", "height": "8ft", "species": "dfl", "grade": "no2"},
+        {"size": "4x4", "height": "8ft", "species": "dfl", "grade": "no2", "load": "1000lbf"},
+    ]
+    r = rate_records(rows)
+    rating, errors = r
+    assert not errors
+    assert int(rating.action[0]) == NOT_RATED and int(rating.action[1]) != NOT_RATED
+
+
+def test_wane_leaving_no_section_is_refused(capsys):
+    # geometry: four 45-degree corner triangles of leg 3 in overlap on a 3.5 in face
+    code = main([*POST, "--load", "1000lbf", "--wane", "3in", "--wane-corners", "4", "--json"])
+    assert code == 2
+    err = capsys.readouterr().err
+    assert "wane" in err and err.count("\n") <= 1 and "Traceback" not in err
+
+
+def test_json_never_holds_nan_or_infinity():
+    # a mechanism (free-free ends) has no capacity: the JSON says null, never NaN
+    r = rate(_batch(load_n=1000.0, top=FREE, bottom=FREE))
+    json.dumps(r.summary(0), allow_nan=False)
+    # a zero area (engine API, no refusal in front of it): ratio infinite, JSON null
+    r = rate(_batch(load_n=1000.0, end_contact=0.0))
+    json.dumps(r.summary(0), allow_nan=False)
+
+
+@pytest.mark.parametrize(
+    ("bottom", "top", "flagged"), [(FIXED, FREE, True), (PINNED, PINNED, False)]
+)
+def test_flagpole_warns_of_base_fixity(bottom, top, flagged):
+    # NDS 2018 Appendix G case (e): the sway K of a flagpole needs a truly fixed base
+    r = rate(_batch(load_n=1000.0, bottom=bottom, top=top))
+    assert bool(int(r.flags[0]) & F_BASE_FIXITY) is flagged
+    assert any("fixity" in w for w in r.warnings(0)) is flagged
+
+
+def test_pad_without_thickness_raises_the_action():
+    base = {"size": "6x6", "height": "8ft", "species": "dfl", "grade": "no2", "load": "500lbf"}
+    base.update(soil="4", pad="24in x 24in")
+    thin = rate_records([base])
+    thick = rate_records([{**base, "pad_thickness": "3in"}])
+    get = lambda r: r[0]  # noqa: E731
+    assert int(get(thin).action[0]) >= 2 > int(get(thick).action[0])
