@@ -11,7 +11,7 @@ migrations applied. A fieldcheck that finds a newer ``schema_version`` refuses t
 Version history
   1  sites, visits, members, observations (with ``merges``: the second parent of a revision that
      settles a conflict), engine_stamps, ratings, attachments, reviews (with ``action``: the
-     action an override sets), hub_meta, hub_migrations, adopt_firm()
+     action an override sets), proposals, remedied, hub_meta, hub_migrations, adopt_firm()
 """
 
 from __future__ import annotations
@@ -37,6 +37,8 @@ APPEND_ONLY = (
     "ratings",
     "attachments",
     "reviews",
+    "proposals",
+    "remedied",
 )
 
 REVIEW_KINDS = ("note", "sign-off", "accept", "override", "require-remedy", "settle")
@@ -118,6 +120,23 @@ CREATE TABLE reviews (
     kind TEXT NOT NULL CHECK (kind IN ({_KINDS})),
     text TEXT NOT NULL DEFAULT '',
     action BIGINT CHECK (action IS NULL OR action BETWEEN 0 AND 3),{_ORIGIN});
+CREATE TABLE proposals (
+    id TEXT PRIMARY KEY,
+    member_id TEXT NOT NULL REFERENCES members(id),
+    observation_id TEXT NOT NULL REFERENCES observations(id),
+    visit_id TEXT NOT NULL REFERENCES visits(id),
+    kind TEXT NOT NULL CHECK (length(kind) > 0),
+    description TEXT NOT NULL CHECK (length(description) > 0),
+    changes_json TEXT NOT NULL,
+    ratio DOUBLE PRECISION,{_ORIGIN});
+CREATE TABLE remedied (
+    id TEXT PRIMARY KEY,
+    member_id TEXT NOT NULL REFERENCES members(id),
+    observation_id TEXT NOT NULL REFERENCES observations(id),
+    proposal_id TEXT REFERENCES proposals(id),
+    done_on TEXT NOT NULL,{_ORIGIN});
+CREATE INDEX proposals_member ON proposals(member_id);
+CREATE INDEX remedied_member ON remedied(member_id);
 CREATE INDEX visits_site ON visits(site_id);
 CREATE INDEX members_site ON members(site_id);
 CREATE INDEX observations_member ON observations(member_id);
@@ -189,8 +208,8 @@ REVOKE ALL ON SCHEMA {SCHEMA} FROM PUBLIC;
 GRANT USAGE ON SCHEMA {SCHEMA} TO fieldcheck_inspector;
 GRANT SELECT ON ALL TABLES IN SCHEMA {SCHEMA} TO fieldcheck_inspector;
 GRANT INSERT ON {SCHEMA}.sites, {SCHEMA}.visits, {SCHEMA}.members, {SCHEMA}.observations,
-    {SCHEMA}.engine_stamps, {SCHEMA}.ratings, {SCHEMA}.attachments, {SCHEMA}.reviews
-    TO fieldcheck_inspector;
+    {SCHEMA}.engine_stamps, {SCHEMA}.ratings, {SCHEMA}.attachments, {SCHEMA}.reviews,
+    {SCHEMA}.proposals, {SCHEMA}.remedied TO fieldcheck_inspector;
 GRANT EXECUTE ON FUNCTION {SCHEMA}.adopt_firm(TEXT) TO fieldcheck_inspector;
 -- reviews: an inspector's rows may only be notes; a reviewer's may be any kind
 ALTER TABLE {SCHEMA}.reviews ENABLE ROW LEVEL SECURITY;

@@ -57,8 +57,9 @@ def hub_vector(conn: psycopg.Connection) -> Vector:
     """Per device, the highest device_seq the hub holds: a skip scan of UNIQUE(device_id,
     device_seq) per table, a few index lookups per device whatever the row count."""
     out: Vector = {}
+    have = _hub_columns(conn)
     for t in SYNC_TABLES:
-        if not t.origin:
+        if not t.origin or t.name not in have:
             continue
         tbl = f"{SCHEMA}.{t.name}"
         sql = (
@@ -309,6 +310,8 @@ def _receive(log, conn: psycopg.Connection, hub: HubInfo, progress: Progress | N
         cols = {t.name: _sqlite_columns(ro, t.name) for t in SYNC_TABLES if t.name in tables}
     finally:
         ro.close()
+    on_hub = _hub_columns(conn)
+    tables = {t: sql for t, sql in tables.items() if t in on_hub}
     with tempfile.TemporaryDirectory(prefix="fieldcheck-hub-") as tmp:
         snap = Path(tmp) / "from-hub.sqlite"
         out = sqlite3.connect(str(snap), isolation_level=None)

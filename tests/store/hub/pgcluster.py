@@ -69,6 +69,7 @@ class Cluster:
         self.user = "fcadmin"
         self.password = secrets.token_hex(8)
         self.runas: list[str] = []
+        self._made = 0
         if os.geteuid() == 0:
             name = "postgres"
             try:
@@ -144,6 +145,9 @@ class Cluster:
             return cur.fetchall() if cur.description else []
 
     def new_database(self, name: str) -> str:
+        """A fresh database (the name gets a number: each call makes a new one)."""
+        self._made += 1
+        name = f"{name}_{self._made}"
         self.sql(f'CREATE DATABASE "{name}" STRATEGY FILE_COPY')
         return name
 
