@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import argparse
 import importlib
+import sqlite3
 import sys
 
 from fieldcheck import __version__
@@ -72,11 +73,35 @@ def main(argv: list[str] | None = None) -> int:
         return 2
     except KeyboardInterrupt:
         return 130
-    except BrokenPipeError:  # output piped into `head` and friends: stop quietly
-        import os
+    except sqlite3.Error as exc:  # named for what it is: busy, full disk, read-only, damaged
+        from fieldcheck.store.faults import sqlite_sentence
 
-        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
-        return 0
+        print(f"fieldcheck: {sqlite_sentence(exc, _db_path(args))}", file=sys.stderr)
+        return 2
+    except OSError as exc:
+        if isinstance(exc, BrokenPipeError):
+            return _broken_pipe()
+        from fieldcheck.store.faults import os_sentence
+
+        print(f"fieldcheck: {os_sentence(exc, exc.filename or 'a file')}", file=sys.stderr)
+        return 2
+
+
+def _broken_pipe() -> int:
+    """Output piped into `head` and friends: stop quietly."""
+    import os
+
+    os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+    return 0
+
+
+def _db_path(args: argparse.Namespace) -> str:
+    from fieldcheck.commands.log_option import log_path
+
+    try:
+        return str(log_path(args))
+    except Exception:
+        return "the survey log"
 
 
 def _open_interface(args: argparse.Namespace) -> int:

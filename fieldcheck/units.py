@@ -319,8 +319,30 @@ def registry() -> Any:
             if _REGISTRY is None:
                 import pint  # lazy: start-up speed
 
-                _REGISTRY = pint.UnitRegistry(cache_folder=":auto:")
+                folder = _cache_folder()
+                try:
+                    _REGISTRY = pint.UnitRegistry(cache_folder=folder)
+                except OSError:  # a cache folder that cannot be written: no cache, same units
+                    _REGISTRY = pint.UnitRegistry(cache_folder=None)
     return _REGISTRY
+
+
+def _cache_folder() -> Any:
+    """pint's definitions cache in the user's cache folder (platformdirs), or None (no cache)
+    when that folder cannot be made or written, e.g. an unwritable home folder."""
+    import os
+    from pathlib import Path
+
+    try:
+        import platformdirs
+
+        folder = Path(platformdirs.user_cache_dir("fieldcheck", appauthor=False)) / "pint"
+        folder.mkdir(parents=True, exist_ok=True)
+        if not os.access(folder, os.W_OK):
+            return None
+        return folder
+    except (OSError, ImportError):
+        return None
 
 
 def _factors() -> dict[tuple[str, str], tuple[float, float]]:
@@ -370,8 +392,8 @@ _FTIN = re.compile(
     rf"(?P<sign>[-+])?\s*(?P<ft>{_NUM})\s*{_FT}\s*(?:-\s*)?{_mag('b')}\s*{_IN}?",
     re.ASCII | re.IGNORECASE,
 )
-_NOMINAL = re.compile(r"\s*(\d{1,2})\s*[xX×]\s*(\d{1,2})\s*")
-_SECTION_SPLIT = re.compile(r"\s*[xX×]\s*")
+_NOMINAL = re.compile(r"\s*(\d{1,2})\s*[xX×]\s*(\d{1,2})\s*")  # noqa: RUF001 (the look-alikes we replace)
+_SECTION_SPLIT = re.compile(r"\s*[xX×]\s*")  # noqa: RUF001 (the look-alikes we replace)
 
 _FRACTIONS = {
     "½": "1/2",
@@ -391,15 +413,15 @@ _FRACTIONS = {
     "⅞": "7/8",
 }
 _CHARS = {
-    "′": "'",
-    "’": "'",
-    "‘": "'",
+    "′": "'",  # noqa: RUF001 (the look-alikes we replace)
+    "’": "'",  # noqa: RUF001 (the look-alikes we replace)
+    "‘": "'",  # noqa: RUF001 (the look-alikes we replace)
     "″": '"',
     "“": '"',
     "”": '"',
-    "−": "-",
-    "–": "-",
-    "⁄": "/",
+    "−": "-",  # noqa: RUF001 (the look-alikes we replace)
+    "–": "-",  # noqa: RUF001 (the look-alikes we replace)
+    "⁄": "/",  # noqa: RUF001 (the look-alikes we replace)
     "μ": "µ",
     "º": "°",
     "\u00a0": " ",
@@ -543,7 +565,10 @@ def _in_range_example(kind: _Kind, lo: float | None, hi: float | None) -> str | 
 
     if kind.name == "length":
         us = snap(FT_MM) if mid >= 2 * FT_MM else snap(IN_MM)
-        return f"a value in that range, e.g. {format_length(us, 'us')} or {format_length(sig2(mid), 'metric')}"
+        return (
+            f"a value in that range, e.g. {format_length(us, 'us')} or "
+            f"{format_length(sig2(mid), 'metric')}"
+        )
     us = snap(1000 * LBF_N) if mid >= 1000 * LBF_N else snap(100 * LBF_N)
     return (
         f"a value in that range, e.g. {format_force(us, 'us', grouping=False)} or "

@@ -23,19 +23,14 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
-    from fieldcheck.cli import UsageError
-
     if args.bundle:
         from fieldcheck.commands.sync import run_export_bundle
 
         return run_export_bundle(args)
     with open_log(args, readonly=True, must_exist=True) as log:
         table = log.export_rows()
-    try:
-        out = open(args.out, "w", newline="", encoding="utf-8") if args.out else sys.stdout
-    except OSError as exc:
-        raise UsageError(f"export: cannot write {args.out} ({exc.strerror})") from None
-    try:
+
+    def write(out) -> None:
         if args.format == "json":
             json.dump(
                 {"columns": table.columns, "posts": table.rows}, out, ensure_ascii=False, indent=1
@@ -46,9 +41,13 @@ def run(args: argparse.Namespace) -> int:
             w.writeheader()
             for row in table.rows:
                 w.writerow({k: "" if v is None else v for k, v in row.items()})
-    finally:
-        if out is not sys.stdout:
-            out.close()
+
+    if args.out:
+        from fieldcheck.commands.out_file import write_atomically
+
+        write_atomically(args.out, write)
+    else:
+        write(sys.stdout)
     if args.out:
         print(f"Exported {len(table.rows)} posts to {args.out}.", file=sys.stderr)
     return 0

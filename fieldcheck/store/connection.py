@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import sqlite3
 from pathlib import Path
+from urllib.parse import quote
 
 from sqlite_utils import Database
 
@@ -23,11 +24,45 @@ class LogError(ValueError):
 
 
 def damaged(path: Path | str, exc: BaseException) -> LogError:
-    """The one sentence for a file SQLite cannot read."""
+    """The one sentence for an SQLite error on the log, named for what it is: only a file SQLite
+    cannot read as a database is called damaged (see ``faults``)."""
+    from fieldcheck.store.faults import sqlite_sentence
+
+    if isinstance(exc, sqlite3.Error):
+        return LogError(sqlite_sentence(exc, path))
     return LogError(
         f"the survey log {path} cannot be read ({exc}); it may be truncated or corrupted: keep "
-        "the file and any -wal file beside it untouched, and restore from a backup or the office copy"
+        "the file and any -wal file beside it untouched, and restore from a backup or the "
+        "office copy"
     )
+
+
+def _wal_empty(path: Path) -> bool:
+    wal = Path(str(path) + "-wal")
+    try:
+        return not wal.exists() or wal.stat().st_size == 0
+    except OSError:
+        return False
+
+
+def _connect_ro(path: Path) -> sqlite3.Connection:
+    """Read-only: ``mode=ro``; a log on a read-only disk or in a folder the user cannot write
+    (SQLite cannot make the -shm file beside it) is opened ``immutable`` when no -wal content is
+    waiting (Log.close checkpoints it away), so check, export and report still read it."""
+    uri = f"file:{quote(path.resolve().as_posix())}?mode=ro"
+    conn = sqlite3.connect(uri, uri=True, timeout=BUSY_TIMEOUT_S, check_same_thread=False)
+    try:
+        conn.execute("PRAGMA schema_version").fetchone()
+        return conn
+    except sqlite3.OperationalError as exc:
+        conn.close()
+        text = str(exc).lower()
+        if not ("unable to open" in text or "readonly" in text) or not _wal_empty(path):
+            raise
+    conn = sqlite3.connect(
+        uri + "&immutable=1", uri=True, timeout=BUSY_TIMEOUT_S, check_same_thread=False
+    )
+    return conn
 
 
 def connect(path: Path | str, *, readonly: bool = False, inspect=None) -> Database:
@@ -36,15 +71,23 @@ def connect(path: Path | str, *, readonly: bool = False, inspect=None) -> Databa
     ``inspect(db)`` runs after the file is known to be SQLite and before anything is written
     (journal mode included), so a foreign or newer file can be refused untouched.
     """
+    from fieldcheck.store.faults import os_sentence
+
     path = Path(path)
-    if readonly:
-        if not path.exists():
-            raise LogError(f"the survey log {path} does not exist; give an existing file with --db")
-        uri = f"file:{path.resolve().as_posix()}?mode=ro"
-        conn = sqlite3.connect(uri, uri=True, timeout=BUSY_TIMEOUT_S, check_same_thread=False)
-    else:
-        path.parent.mkdir(parents=True, exist_ok=True)
-        conn = sqlite3.connect(str(path), timeout=BUSY_TIMEOUT_S, check_same_thread=False)
+    try:
+        if readonly:
+            if not path.exists():
+                raise LogError(
+                    f"the survey log {path} does not exist; give an existing file with --db"
+                )
+            conn = _connect_ro(path)
+        else:
+            path.parent.mkdir(parents=True, exist_ok=True)
+            conn = sqlite3.connect(str(path), timeout=BUSY_TIMEOUT_S, check_same_thread=False)
+    except OSError as exc:
+        raise LogError(os_sentence(exc, exc.filename or path, "open")) from None
+    except sqlite3.Error as exc:
+        raise damaged(path, exc) from None
     try:
         db = Database(conn)
         # a file that is not SQLite at all fails on the first read

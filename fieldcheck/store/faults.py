@@ -10,7 +10,7 @@ import os
 import sqlite3
 from pathlib import Path
 
-LOCK_WAIT_S = 10.0  # how long a command waits for another program's write on the same log
+LOCK_WAIT_S = 60.0  # how long a write waits for another program writing the same log
 
 
 def _writable_dir(path: Path) -> bool:
@@ -69,6 +69,7 @@ def holders(path: Path | str) -> list[str]:
             cmd = (d / "cmdline").read_bytes().replace(b"\0", b" ").decode(errors="replace")
         except OSError:
             cmd = ""
+        cmd = " ".join(cmd.split())  # no newlines or tabs from a program's arguments
         words = cmd.split()
         if "fieldcheck" in cmd:
             i = next((k for k, w in enumerate(words) if w.endswith("fieldcheck")), 0)
@@ -82,7 +83,7 @@ def locked_sentence(path: Path | str, waited_s: float) -> str:
     by = f" by {', '.join(who[:3])}" if who else " by another program"
     return (
         f"the survey log {path} is busy: it has been held for writing{by} for more than "
-        f"{waited_s:.0f} s; wait for that to finish (or close it) and run the command again, "
+        f"{waited_s:.3g} s; wait for that to finish (or close it) and run the command again, "
         "nothing was changed"
     )
 

@@ -47,6 +47,17 @@ EXPORT_ONLY_COLUMNS = (
 )
 
 
+def lock_wait_s() -> float:
+    """How long a write waits for another program holding the log: $FIELDCHECK_LOCK_WAIT_S,
+    else ``faults.LOCK_WAIT_S``."""
+    from fieldcheck.store.faults import LOCK_WAIT_S
+
+    try:
+        return max(0.0, float(os.environ.get("FIELDCHECK_LOCK_WAIT_S", LOCK_WAIT_S)))
+    except ValueError:
+        return LOCK_WAIT_S
+
+
 def now() -> str:
     """Wall time with its zone, ISO-8601 (for people only: order comes from device_seq)."""
     return _dt.datetime.now().astimezone().isoformat(timespec="milliseconds")
@@ -302,6 +313,7 @@ class Log:
         self.readonly = readonly
         self._lock = threading.RLock()
         self.backup_path: Path | None = None  # set when open() upgraded the file
+        self.lock_wait_s = lock_wait_s()
 
     # ---- opening
 
@@ -320,6 +332,17 @@ class Log:
         if path.exists() and path.is_dir():
             raise LogError(
                 f"the survey log {path} is a folder; give a file name such as {path}/survey.db"
+            )
+        if not readonly and path.is_file() and not os.access(path, os.W_OK):
+            raise LogError(
+                f"the survey log {path} is read-only for you: check, export and report read it as "
+                "it is; to change it, make it writable (e.g. chmod u+w) or work on a copy"
+            )
+        if not readonly and path.is_file() and not os.access(path.parent, os.W_OK):
+            raise LogError(
+                f"the folder of the survey log {path} is read-only for you (SQLite writes a -wal "
+                "file beside the log): check, export and report read it as it is; to change it, "
+                "make the folder writable or move the log"
             )
         found: dict[str, int] = {}
 
@@ -372,7 +395,8 @@ class Log:
     def close(self) -> None:
         with self._lock:
             with contextlib.suppress(sqlite3.Error):
-                if not self.readonly:
+                if not self.readonly:  # best effort: never wait on another writer to close
+                    self.db.execute("PRAGMA busy_timeout = 0")
                     self.db.execute("PRAGMA wal_checkpoint(TRUNCATE)")
             self.db.close()
 
@@ -397,11 +421,47 @@ class Log:
 
     @contextlib.contextmanager
     def _write(self) -> Iterator[None]:
-        """One user action = one transaction (and one thread at a time)."""
+        """One user action = one transaction (and one thread at a time). The write lock is
+        taken at the start (BEGIN IMMEDIATE), waiting up to ``lock_wait_s`` for another program
+        writing the same log; SQLite errors leave as LogError sentences named for what they are
+        (busy, full disk, read-only), never as "damaged" unless the file is."""
         if self.readonly:
             raise LogError(f"the survey log {self.path} was opened read-only")
-        with self._lock, self.db.atomic():
-            yield
+        with self._lock:
+            conn = self.db.conn
+            if conn.in_transaction:  # nested: a savepoint inside the caller's transaction
+                with self.db.atomic():
+                    yield
+                return
+            self._begin()
+            try:
+                yield
+                conn.execute("COMMIT")
+            except BaseException as exc:
+                if conn.in_transaction:
+                    with contextlib.suppress(sqlite3.Error):
+                        conn.execute("ROLLBACK")
+                if isinstance(exc, sqlite3.Error) and not isinstance(exc, sqlite3.IntegrityError):
+                    raise damaged(self.path, exc) from exc
+                raise
+
+    def _begin(self) -> None:
+        """BEGIN IMMEDIATE, SQLite's busy handler waiting up to ``lock_wait_s`` for another
+        writer; then one sentence saying who holds the log."""
+        from fieldcheck.store.connection import BUSY_TIMEOUT_S
+        from fieldcheck.store.faults import locked_sentence
+
+        conn = self.db.conn
+        conn.execute(f"PRAGMA busy_timeout = {int(self.lock_wait_s * 1000)}")
+        try:
+            conn.execute("BEGIN IMMEDIATE")
+        except sqlite3.OperationalError as exc:
+            text = str(exc).lower()
+            if "locked" in text or "busy" in text:
+                raise LogError(locked_sentence(self.path, self.lock_wait_s)) from None
+            raise damaged(self.path, exc) from exc
+        finally:
+            conn.execute(f"PRAGMA busy_timeout = {int(BUSY_TIMEOUT_S * 1000)}")
 
     def _seqs(self, n: int) -> range:
         """Allocate n per-device sequence numbers inside the current transaction."""
@@ -697,7 +757,10 @@ class Log:
             filter=("AND " + " AND ".join(where)) if where else "",
             withdrawn="" if include_withdrawn else "AND h.withdrawn = 0",
         )
-        return [_post_view(r) for r in self.db.query(sql, params)]
+        try:
+            return [_post_view(r) for r in self.db.query(sql, params)]
+        except BadRecord as exc:
+            raise exc.in_log(self.path) from None
 
     def conflicts(self) -> list[str]:
         """Members with more than one head (revisions made without seeing each other)."""
@@ -729,15 +792,22 @@ class Log:
         # keys in C, and the rows are plain tuples, no dict per row.
         strip = ", ".join(f"'$.{c}'" for c in UNRATED_COLUMNS)
         with self._lock:
-            heads = self.db.conn.execute(
-                f"SELECT id, json_remove(record_json, {strip}) "
-                "FROM observations o WHERE withdrawn = 0 AND NOT EXISTS "
-                "(SELECT 1 FROM observations c WHERE c.supersedes = o.id) ORDER BY rowid"
-            ).fetchall()
-            ids = [h[0] for h in heads]
-            first: dict[str, int] = {}
-            which = [first.setdefault(h[1], len(first)) for h in heads]
-            records = json.loads("[" + ",".join(first) + "]")  # one decode of one array
+            try:
+                heads = self.db.conn.execute(
+                    f"SELECT id, json_remove(record_json, {strip}) "
+                    "FROM observations o WHERE withdrawn = 0 AND NOT EXISTS "
+                    "(SELECT 1 FROM observations c WHERE c.supersedes = o.id) ORDER BY rowid"
+                ).fetchall()
+                ids = [h[0] for h in heads]
+                first: dict[str, int] = {}
+                which = [first.setdefault(h[1], len(first)) for h in heads]
+                records = json.loads("[" + ",".join(first) + "]")  # one decode of one array
+                if not all(isinstance(r, dict) for r in records):
+                    raise ValueError("a record is not an object")
+            except (sqlite3.OperationalError, ValueError, TypeError) as exc:
+                if isinstance(exc, sqlite3.OperationalError) and "json" not in str(exc).lower():
+                    raise
+                raise self._bad_record() from None
             result = rated.rate(records, summaries=False)
             stamp, version, _ = rated.engine_stamp()
             rows = [result.rows[u] for u in which]
@@ -758,6 +828,17 @@ class Log:
                     ),
                 )
         return RerateResult(len(good), len(ids) - len(good), version, errors)
+
+    def _bad_record(self) -> LogError:
+        """The first stored record that is not a JSON object of text, as a sentence (slow scan:
+        only after a bulk read failed on one)."""
+        cur = self.db.conn.execute("SELECT id, member_id, record_json FROM observations")
+        for oid, mid, text in cur:
+            try:
+                _record({"id": oid, "member_id": mid, "record_json": text})
+            except BadRecord as exc:
+                return exc.in_log(self.path)
+        return LogError(f"the survey log {self.path} holds a record that cannot be read")
 
     # ---- bulk import and export
 
@@ -1104,6 +1185,34 @@ def _obs_row(o: Observation) -> tuple:
     )
 
 
+class BadRecord(LogError):
+    """A stored record that is not a JSON object of strings (edited by hand, or damaged)."""
+
+    def __init__(self, observation_id: str, member_id: str, why: str):
+        self.observation_id, self.member_id, self.why = observation_id, member_id, why
+        super().__init__(
+            f"post {member_id} (revision {observation_id}) holds a damaged record ({why}); "
+            "restore that post from the office copy or save it again in the interface"
+        )
+
+    def in_log(self, path) -> LogError:
+        return LogError(f"the survey log {path}: {self}")
+
+
+def _record(r: Mapping) -> dict[str, str]:
+    """The record of an observation row, checked: a JSON object whose values are strings."""
+    text = r["record_json"]
+    try:
+        rec = json.loads(text)
+    except (TypeError, ValueError):
+        raise BadRecord(r["id"], r["member_id"], "not JSON") from None
+    if not isinstance(rec, dict):
+        raise BadRecord(r["id"], r["member_id"], f"a JSON {type(rec).__name__}, not an object")
+    if not all(isinstance(v, str) for v in rec.values()):
+        raise BadRecord(r["id"], r["member_id"], "a value that is not text")
+    return rec
+
+
 def _site(r: dict) -> Site:
     return Site(
         r["id"], r["name"], r["address"], r["notes"], r["device_id"], r["author"], r["created_at"]
@@ -1134,7 +1243,7 @@ def _observation(r: dict) -> Observation:
         r["supersedes"],
         bool(r["withdrawn"]),
         r["reason"],
-        json.loads(r["record_json"]),
+        _record(r),
         r["device_id"],
         r["device_seq"],
         r["author"],
@@ -1161,7 +1270,7 @@ def _rating(r: dict) -> StoredRating:
 
 
 def _post_view(r: dict) -> PostView:
-    rec = json.loads(r["record_json"])
+    rec = _record(r)
     return PostView(
         r["member_id"],
         r["id"],
