@@ -14,6 +14,7 @@ COMMANDS: dict[str, tuple[str, str]] = {
     "export": ("export", "write a survey log as CSV or JSON (or a sync bundle)"),
     "report": ("report", "write the survey report as one self-contained HTML file"),
     "sync": ("sync", "send this log to the office and take back what is new"),
+    "review": ("review", "record the office engineer's review of a post, or sign off a visit"),
     "hub-sql": ("hub_sql", "print the office hub's one-time SQL for the database administrator"),
     "check": ("check", "integrity check of a survey log"),
     "rerate": ("rerate", "re-rate every current post of a log with this engine, in one pass"),

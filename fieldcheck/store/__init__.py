@@ -50,8 +50,20 @@ dataclasses from ``fieldcheck.store.repo``)::
     log.attachments(member_id=None) -> list[Attachment]
     log.check_attachments() -> list[AttachmentProblem]
         # .problem "missing" | "changed", .sentence()
-    log.add_review(kind, text, *, member_id=None, observation_id=None, visit_id=None) -> Review
-    log.reviews(member_id=None) -> list[Review]           # kind "note" | "sign-off"
+    log.add_review(kind, text, *, member_id=None, observation_id=None, visit_id=None,
+                   action=None) -> Review                 # the raw record; prefer these:
+    log.review_post(member_id, kind, text="", action=None) -> Review
+        # kind "accept" | "override" (action 0-3 or label, text = reason, both required) |
+        # "require-remedy" (text = the remedy required) | "note"; about the current revision
+    log.settle(member_id, keep, reason, visit_id=None) -> Review   # a revision with both
+        # parents (supersedes the kept head, merges the other); conflicts() no longer lists it
+    log.sign_off(visit_id, text="") -> Review
+    log.review_states(visit_id=None) -> {member_id: ReviewState}   # fieldcheck.store.reviews:
+        # .state "awaiting review" | "accepted" | "action overridden" | "remedy required" |
+        # "conflict settled"; .by, .on, .instruction, .action, .action_label, .awaiting,
+        # .line() -> "accepted: reviewed by ben, on 2026-12-02; ..."
+    log.sign_offs(visit_id=None) -> list[Review]
+    log.reviews(member_id=None) -> list[Review]           # every kind, oldest first
     log.propose_remedy(observation_id, kind=, description=, changes=, ratio=None) -> Proposal
         # a remedy as a proposal linked to that revision (the post as found); the post itself
         # is not changed and stays rated as found

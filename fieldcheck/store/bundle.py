@@ -173,7 +173,8 @@ def _in_ranges(conn: sqlite3.Connection, schema: str, table: str, ranges: Mappin
     """Rows of ``table`` inside the seq ranges (UNIQUE(device_id, device_seq) index)."""
     return sum(
         conn.execute(
-            f"SELECT count(*) FROM {schema}.{table} WHERE device_id = ? AND device_seq BETWEEN ? AND ?",
+            f"SELECT count(*) FROM {schema}.{table} WHERE device_id = ? "
+            "AND device_seq BETWEEN ? AND ?",
             [dev, int(r[0]), int(r[1])],
         ).fetchone()[0]
         for dev, r in ranges.items()
@@ -350,8 +351,8 @@ def read_manifest(path: Path) -> tuple[Path, dict]:
         int(m["schema_version"])
     except (ValueError, TypeError, AttributeError) as exc:
         raise TransferRefused(
-            f"the manifest of bundle {name} is damaged or truncated ({exc}); copy the bundle again, "
-            "nothing was changed"
+            f"the manifest of bundle {name} is damaged or truncated ({exc}); copy the bundle "
+            "again, nothing was changed"
         ) from None
     if int(m.get("format_version", 0)) > FORMAT_VERSION:
         raise TransferRefused(
@@ -460,6 +461,15 @@ class SqliteTarget:
         if table not in self._cols:
             mine = _columns(self.conn, table)
             theirs = set(_columns(self.conn, table, self.src))
+            # a column a later schema added with no value required (observations.merges,
+            # reviews.action) is simply absent from an older sender's rows: it stays NULL
+            optional = {
+                r[1]
+                for r in self.conn.execute(f"PRAGMA main.table_info({table})")
+                if not r[3] and r[4] is None and not r[5]
+            }
+            if mine and set(mine) - theirs and set(mine) - theirs <= optional:
+                mine = [c for c in mine if c in theirs]
             if not mine:
                 self._cols[table] = None
             elif not set(mine) <= theirs:
@@ -527,7 +537,8 @@ class SqliteTarget:
             r[0]
             for r in self.conn.execute(
                 "SELECT member_id FROM main.observations o WHERE NOT EXISTS "
-                "(SELECT 1 FROM main.observations c WHERE c.supersedes = o.id) "
+                "(SELECT 1 FROM main.observations c WHERE c.supersedes = o.id) AND NOT EXISTS "
+                "(SELECT 1 FROM main.observations c WHERE c.merges = o.id) "
                 "GROUP BY member_id HAVING count(*) > 1 ORDER BY member_id"
             )
         ]
@@ -600,8 +611,8 @@ def import_into(
                     "was changed"
                 ) from None
             raise TransferRefused(
-                f"the bundle {bundle.snapshot.name} clashes with this log ({text}: two logs use one "
-                "device id); nothing was changed"
+                f"the bundle {bundle.snapshot.name} clashes with this log ({text}: two logs use "
+                "one device id); nothing was changed"
             ) from None
         finally:
             with contextlib.suppress(sqlite3.Error):

@@ -26,10 +26,15 @@ from fieldcheck.store import rated
 from fieldcheck.store.connection import APPLICATION_ID, LogError, connect, damaged, pragma
 from fieldcheck.store.paths import default_log_path
 from fieldcheck.store.rated import RowError, action_label
-from fieldcheck.store.schema import MIGRATION_NAMES, MIGRATION_SET, SCHEMA_VERSION, migrations
+from fieldcheck.store.schema import (
+    MIGRATION_NAMES,
+    MIGRATION_SET,
+    REVIEW_KINDS,
+    SCHEMA_VERSION,
+    migrations,
+)
 
 VISIT_LEVELS = ("minimum", "standard", "detailed")  # how much was measured (judgement)
-REVIEW_KINDS = ("note", "sign-off")
 # columns that export adds beside the record; import drops them so an export re-imports
 EXPORT_ONLY_COLUMNS = (
     "site",
@@ -166,6 +171,7 @@ class Observation:
     device_seq: int
     author: str
     created_at: str
+    merges: str | None = None  # second parent: a revision that settles a conflict
 
 
 @dataclass(frozen=True)
@@ -248,6 +254,7 @@ class Review:
     visit_id: str | None
     author: str
     created_at: str
+    action: int | None = None  # the action an override sets (0-3), else None
 
 
 @dataclass(frozen=True)
@@ -694,8 +701,7 @@ class Log:
 
     def _head(self, member_id: str) -> Observation | None:
         r = self._one(
-            "SELECT * FROM observations o WHERE member_id = ? AND NOT EXISTS "
-            "(SELECT 1 FROM observations c WHERE c.supersedes = o.id) "
+            "SELECT * FROM observations o WHERE member_id = ? AND " + HEAD + " "
             "ORDER BY device_seq DESC, id DESC LIMIT 1",
             [member_id],
         )
@@ -754,6 +760,7 @@ class Log:
             where.append("o.member_id IN (SELECT id FROM members WHERE site_id = ?)")
             params.append(site_id)
         sql = _POSTS_SQL.format(
+            head=HEAD,
             filter=("AND " + " AND ".join(where)) if where else "",
             withdrawn="" if include_withdrawn else "AND h.withdrawn = 0",
         )
@@ -767,8 +774,7 @@ class Log:
         return [
             r["member_id"]
             for r in self.db.query(
-                "SELECT member_id FROM observations o WHERE NOT EXISTS "
-                "(SELECT 1 FROM observations c WHERE c.supersedes = o.id) "
+                "SELECT member_id FROM observations o WHERE " + HEAD + " "
                 "GROUP BY member_id HAVING count(*) > 1"
             )
         ]
@@ -795,8 +801,7 @@ class Log:
             try:
                 heads = self.db.conn.execute(
                     f"SELECT id, json_remove(record_json, {strip}) "
-                    "FROM observations o WHERE withdrawn = 0 AND NOT EXISTS "
-                    "(SELECT 1 FROM observations c WHERE c.supersedes = o.id) ORDER BY rowid"
+                    "FROM observations o WHERE withdrawn = 0 AND " + HEAD + " ORDER BY rowid"
                 ).fetchall()
                 ids = [h[0] for h in heads]
                 first: dict[str, int] = {}
@@ -1000,13 +1005,26 @@ class Log:
         member_id: str | None = None,
         observation_id: str | None = None,
         visit_id: str | None = None,
+        action: int | None = None,
     ) -> Review:
+        """Record one review (append-only, attributed, timed); ``fieldcheck.store.reviews``
+        holds the rules of each kind and calls this."""
         if kind not in REVIEW_KINDS:
-            raise ValueError(f"review kind {kind!r} is not known; use note or sign-off")
+            raise ValueError(
+                f"review kind {kind!r} is not known; use one of {', '.join(REVIEW_KINDS)}"
+            )
         with self._write():
             (seq,) = self._seqs(1)
             r = Review(
-                new_id(), kind, text, member_id, observation_id, visit_id, self.author, now()
+                new_id(),
+                kind,
+                text,
+                member_id,
+                observation_id,
+                visit_id,
+                self.author,
+                now(),
+                action,
             )
             self._insert(
                 "reviews",
@@ -1019,6 +1037,7 @@ class Log:
                         visit_id,
                         kind,
                         text,
+                        action,
                         *self._origin(seq, r.created_at),
                     )
                 ],
@@ -1033,6 +1052,39 @@ class Log:
                 "SELECT * FROM reviews WHERE member_id = ? ORDER BY rowid", [member_id]
             )
         return [_review(r) for r in rows]
+
+    # ---- the office engineer's review (fieldcheck.store.reviews holds the rules)
+
+    def review_post(
+        self, member_id: str, kind: str, text: str = "", action: int | str | None = None
+    ) -> Review:
+        """accept | override (action, reason) | require-remedy (text) | note, about the post's
+        current revision."""
+        from fieldcheck.store import reviews
+
+        return reviews.review_post(self, member_id, kind, text, action)
+
+    def settle(self, member_id: str, keep: str, reason: str, visit_id: str | None = None):
+        """Settle a conflict: a revision with both parents keeping head ``keep``'s record."""
+        from fieldcheck.store import reviews
+
+        return reviews.settle(self, member_id, keep, reason, visit_id)
+
+    def sign_off(self, visit_id: str, text: str = "") -> Review:
+        from fieldcheck.store import reviews
+
+        return reviews.sign_off(self, visit_id, text)
+
+    def review_states(self, visit_id: str | None = None):
+        """member id -> ReviewState (.state, .by, .on, .instruction, .action, .line())."""
+        from fieldcheck.store import reviews
+
+        return reviews.states(self, visit_id)
+
+    def sign_offs(self, visit_id: str | None = None) -> list[Review]:
+        from fieldcheck.store import reviews
+
+        return reviews.sign_offs(self, visit_id)
 
     # ---- remedies as proposals (fieldcheck.store.proposals holds the rules)
 
@@ -1084,6 +1136,12 @@ class Log:
 
 
 # ----------------------------------------------------------------------------- helpers
+
+# a head: a revision of ``o`` that no other revision supersedes or merges (settles)
+HEAD = (
+    "NOT EXISTS (SELECT 1 FROM observations c WHERE c.supersedes = o.id) "
+    "AND NOT EXISTS (SELECT 1 FROM observations c WHERE c.merges = o.id)"
+)
 
 _ORIGIN_COLS = ("device_id", "device_seq", "author", "created_at")
 _SITE_COLS = ("id", "name", "address", "notes", *_ORIGIN_COLS)
@@ -1144,7 +1202,16 @@ _ATT_COLS = (
     "caption",
     *_ORIGIN_COLS,
 )
-_REVIEW_COLS = ("id", "member_id", "observation_id", "visit_id", "kind", "text", *_ORIGIN_COLS)
+_REVIEW_COLS = (
+    "id",
+    "member_id",
+    "observation_id",
+    "visit_id",
+    "kind",
+    "text",
+    "action",
+    *_ORIGIN_COLS,
+)
 _EXPORT_ONLY = frozenset(EXPORT_ONLY_COLUMNS)
 _RATING_SQL = (
     "SELECT r.*, s.data_editions FROM ratings r LEFT JOIN engine_stamps s ON s.id = r.stamp_id"
@@ -1157,7 +1224,7 @@ WITH heads AS (
         row_number() OVER (PARTITION BY o.member_id ORDER BY o.device_seq DESC, o.id DESC) AS rn,
         count(*) OVER (PARTITION BY o.member_id) AS nheads
     FROM observations o
-    WHERE NOT EXISTS (SELECT 1 FROM observations c WHERE c.supersedes = o.id) {filter}
+    WHERE {head} {filter}
 )
 SELECT h.id, h.member_id, h.visit_id, h.record_json, h.nheads, h.created_at, h.author,
     m.site_id, r.capacity_n, r.demand_n, r.ratio, r.action, r.governing, r.engine_version
@@ -1248,6 +1315,7 @@ def _observation(r: dict) -> Observation:
         r["device_seq"],
         r["author"],
         r["created_at"],
+        r.get("merges"),
     )
 
 
@@ -1315,6 +1383,7 @@ def _review(r: dict) -> Review:
         r["visit_id"],
         r["author"],
         r["created_at"],
+        r.get("action"),
     )
 
 

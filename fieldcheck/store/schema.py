@@ -15,6 +15,9 @@ Version history
   2  reviews (office notes and sign-offs, synced back to the field), sync_state
   3  proposals (a remedy proposed for one revision of a post, never applied to it) and remedied
      (the revision that records a post as remedied, with the date the work was done)
+  4  review records: reviews gain the kinds accept, override (with ``action``, the action set),
+     require-remedy and settle; observations gain ``merges``, the second parent of a revision
+     that settles a conflict (a head is a revision nobody supersedes or merges)
 """
 
 from __future__ import annotations
@@ -23,7 +26,7 @@ from sqlite_utils import Database, Migrations
 
 from fieldcheck.store.connection import APPLICATION_ID
 
-SCHEMA_VERSION = 3
+SCHEMA_VERSION = 4
 MIGRATION_SET = "fieldcheck"
 migrations = Migrations(MIGRATION_SET)
 
@@ -47,6 +50,7 @@ APPEND_ONLY_V1 = (
 APPEND_ONLY_V2 = ("reviews",)
 APPEND_ONLY_V3 = ("proposals", "remedied")
 APPEND_ONLY = APPEND_ONLY_V1 + APPEND_ONLY_V2 + APPEND_ONLY_V3
+REVIEW_KINDS = ("note", "sign-off", "accept", "override", "require-remedy", "settle")
 
 
 def _append_only(db: Database, table: str) -> None:
@@ -194,8 +198,39 @@ def _v3(db: Database) -> None:
     db.execute("PRAGMA user_version = 3")
 
 
+@migrations(name="0004_review_records")
+def _v4(db: Database) -> None:
+    # a revision that settles a conflict supersedes one head and merges the other
+    db.execute("ALTER TABLE observations ADD COLUMN merges TEXT REFERENCES observations(id)")
+    db.execute("CREATE INDEX observations_merges ON observations(merges) WHERE merges IS NOT NULL")
+    # reviews: wider kinds and the action an override sets (SQLite cannot change a CHECK in
+    # place: a new table, the rows copied, the old one dropped; nothing refers to reviews)
+    kinds = ", ".join(f"'{k}'" for k in REVIEW_KINDS)
+    db.execute(
+        f"""CREATE TABLE reviews_v4 (
+            id TEXT PRIMARY KEY,
+            member_id TEXT REFERENCES members(id),
+            observation_id TEXT REFERENCES observations(id),
+            visit_id TEXT REFERENCES visits(id),
+            kind TEXT NOT NULL CHECK (kind IN ({kinds})),
+            text TEXT NOT NULL DEFAULT '',
+            action INTEGER CHECK (action IS NULL OR action BETWEEN 0 AND 3),{_ORIGIN}) STRICT"""
+    )
+    cols = "id, member_id, observation_id, visit_id, kind, text, device_id, device_seq, author, "
+    cols += "created_at"
+    db.execute(f"INSERT INTO reviews_v4 ({cols}) SELECT {cols} FROM reviews ORDER BY rowid")
+    db.execute("DROP TABLE reviews")
+    db.execute("ALTER TABLE reviews_v4 RENAME TO reviews")
+    db.execute("CREATE INDEX reviews_member ON reviews(member_id)")
+    db.execute("CREATE INDEX reviews_observation ON reviews(observation_id)")
+    db.execute("CREATE INDEX reviews_visit ON reviews(visit_id)")
+    _append_only(db, "reviews")
+    db.execute("PRAGMA user_version = 4")
+
+
 MIGRATION_NAMES = (
     "0001_initial",
     "0002_reviews_sync",
     "0003_remedies",
+    "0004_review_records",
 )  # index + 1 = the version it makes
