@@ -21,3 +21,10 @@ SHORE = {
 @pytest.fixture
 def shore() -> dict[str, str]:
     return dict(SHORE)
+
+
+@pytest.fixture(autouse=True)
+def _no_user_config(tmp_path_factory, monkeypatch):
+    """Tests never read the developer's own config file or FIELDCHECK_UNITS."""
+    monkeypatch.setenv("FIELDCHECK_CONFIG", str(tmp_path_factory.getbasetemp() / "no-config.toml"))
+    monkeypatch.delenv("FIELDCHECK_UNITS", raising=False)

@@ -19,6 +19,20 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
     p.add_argument("--site", metavar="NAME-or-id", help="only this site (name or id)")
     p.add_argument("--visit", metavar="NAME-or-id", help="only the posts seen on this visit")
     p.add_argument("--out", metavar="FILE.html", required=True, help="the HTML file to write")
+    t = p.add_argument_group(
+        "title block (each defaults to the config file: see `fieldcheck config`)"
+    )
+    t.add_argument("--firm", help="the firm issuing the report")
+    t.add_argument("--engineer", help="the engineer responsible")
+    t.add_argument("--client", help="who the report is for")
+    t.add_argument("--job", metavar="NUMBER", help="the job number")
+    t.add_argument("--number", metavar="REPORT-NO", help="the report number")
+    t.add_argument(
+        "--draft",
+        action="store_true",
+        help="a draft: the revision is not counted up (otherwise each report written for the "
+        "same visit, site or log is the next revision)",
+    )
     # SUPPRESS: `fieldcheck --units metric report ...` (the main option) stands when not given here
     p.add_argument(
         "--units",
@@ -55,18 +69,33 @@ def _find_visit(log, text: str, site_id: str | None):
 
 def run(args: argparse.Namespace) -> int:
     from fieldcheck.cli import UsageError
+    from fieldcheck.config import load
     from fieldcheck.report.html import write_report
+    from fieldcheck.report.model import issue_info
 
-    units = getattr(args, "units", None) or "us"
-    with open_log(args, readonly=True, must_exist=True) as log:
+    cfg = load()
+    units = getattr(args, "units", None) or cfg.units
+    with open_log(args, readonly=args.draft, must_exist=True) as log:
         site = _find_site(log, args.site) if args.site else None
         visit = _find_visit(log, args.visit, site.id if site else None) if args.visit else None
+        sid, vid = (site.id if site else None), (visit.id if visit else None)
+        info = issue_info(
+            log,
+            sid,
+            vid,
+            issue=not args.draft,
+            config=cfg,
+            firm=args.firm,
+            engineer=args.engineer,
+            client=args.client,
+            job=args.job,
+            number=args.number,
+        )
         try:
-            path = write_report(
-                log, args.out, site.id if site else None, visit.id if visit else None, units
-            )
+            path = write_report(log, args.out, sid, vid, units, info)
         except OSError as exc:
             raise UsageError(f"report: cannot write {args.out} ({exc.strerror or exc})") from None
         n = len(log.posts(visit.id) if visit else log.posts(site_id=site.id if site else None))
-    print(f"Wrote the report of {n} posts to {path}.", file=sys.stderr)
+    rev = "draft, revision not counted" if args.draft else f"revision {info.revision}"
+    print(f"Wrote the report of {n} posts to {path} ({rev}).", file=sys.stderr)
     return 0

@@ -26,7 +26,7 @@ from fieldcheck.engine.rating import ACTION_TEXT, ACTIONS, DUE_DAYS
 from fieldcheck.report.model import PostEntry, ReportData, ReportInfo, gather, visit_date
 from fieldcheck.report.notation import notation, sig, symbols
 from fieldcheck.report.style import stylesheet
-from fieldcheck.report.svg import capacity_plot
+from fieldcheck.report.svg import capacity_plot, end_sketch
 from fieldcheck.units import format_force, format_length
 
 # a word and a symbol beside every colour (never colour alone)
@@ -106,7 +106,11 @@ def header_text(d: ReportData) -> tuple[str, str]:
     i = d.info
     number = f"Report {i.number}" if i.number else "Report (not numbered)"
     left = site + (f" \u2014 {i.client}" if i.client else "")
-    right = f"{number}, revision {i.revision}" + (f" \u2014 job {i.job}" if i.job else "")
+    right = (
+        f"{number}, revision {i.revision}"
+        + (" DRAFT" if i.draft else "")
+        + (f" \u2014 job {i.job}" if i.job else "")
+    )
     return left, right
 
 
@@ -128,7 +132,7 @@ def _cover(d: ReportData) -> str:
         ("Client", i.client),
         ("Job number", i.job),
         ("Report number", i.number or "not numbered"),
-        ("Revision", str(i.revision)),
+        ("Revision", f"{i.revision}{' (DRAFT: not issued)' if i.draft else ''}"),
         ("Issued", d.created.strftime("%Y-%m-%d")),
     ]
     site_rows = (
@@ -177,9 +181,7 @@ def _cover(d: ReportData) -> str:
 def _signoff(d: ReportData) -> str:
     """Recorded sign-offs, and lines to sign on paper: the inspector signs the visit, a licensed
     engineer signs any capacity used for decisions (common practice, no source)."""
-    done = "".join(
-        f"<li>\u2713 {e(r.author)}, {e(r.created_at)}: {e(r.text)}</li>" for r in d.signoffs
-    )
+    done = "".join(f"<li>\u2713 {e(r.created_at[:10])}: {e(r.text)}</li>" for r in d.signoffs)
     return (
         "<h3>Sign-off</h3>"
         + (f"<ul>{done}</ul>" if done else "<p>Not signed off in the log yet.</p>")
@@ -393,9 +395,9 @@ def _conflicts(d: ReportData) -> str:
         )
         out.append(
             table(
-                ["Revision", "When", "Device", "Where they differ"],
+                ["Revision", "When", "Where they differ"],
                 "".join(
-                    f"<tr><td>{k}</td><td>{e(h.created_at)}</td><td>{e(h.device_id)}</td><td>"
+                    f"<tr><td>{k}</td><td>{e(h.created_at[:16].replace('T', ' '))}</td><td>"
                     + "; ".join(f"{e(c)} = {e(h.record.get(c, '(not given)'))}" for c in keys)
                     + "</td></tr>"
                     for k, h in enumerate(heads, 1)
@@ -477,8 +479,8 @@ def _assumptions(d: ReportData, p: PostEntry) -> str:
 
 
 def _warnings(p: PostEntry) -> str:
-    warn = "".join(f"<li>\u26a0 {e(w)}</li>" for w in p.summary.get("warnings", []))
-    return f"<ul class='small warnings'>{warn}</ul>" if warn else ""
+    warn = " ".join(f"\u26a0 {e(w)}" for w in p.summary.get("warnings", []))
+    return f"<p class='small warnings'>{warn}</p>" if warn else ""
 
 
 def _checks(d: ReportData, p: PostEntry) -> str:
@@ -531,9 +533,12 @@ def _remedies(d: ReportData, p: PostEntry) -> str:
 
 
 def _notes_photos(p: PostEntry) -> str:
-    out = []
     note = p.view.record.get("notes")
-    out.append(f"<p><b>Notes:</b> {e(note) if note else 'none recorded'}</p>")
+    out = [
+        f"<p><b>Notes:</b> {e(note) if note else 'none recorded'}."
+        + ("" if p.attachments else " <b>Photos:</b> none attached.")
+        + "</p>"
+    ]
     revs = "".join(
         f"<li>{e(rv.kind)}, {e(rv.created_at[:10])}: {e(rv.text)}</li>" for rv in p.reviews
     )
@@ -546,8 +551,6 @@ def _notes_photos(p: PostEntry) -> str:
             for a in p.attachments
         )
         out.append("<h3>Photos</h3>" + table(["File", "Caption", "sha256"], rows))
-    else:
-        out.append("<p><b>Photos:</b> none attached</p>")
     return "".join(out)
 
 
@@ -598,6 +601,18 @@ def working_rows(steps) -> list[tuple[str, str, str]]:
         seen.add(key)
         out.append((lb, v, c))
     return out
+
+
+def _sketch(d: ReportData, p: PostEntry) -> str:
+    r, j = d.rating, p.j
+    v, jv = (r.detail(j).values, 0) if r.partial else (r.values, j)
+    ke = None
+    if "ke1" in v and "axis" in v:
+        ke = float(v["ke2"][jv] if int(v["axis"][jv]) == 2 else v["ke1"][jv])
+    elif "ke1" in v:
+        ke = float(v["ke1"][jv])
+    rec = p.view.record
+    return end_sketch(rec.get("top"), rec.get("bottom"), ke)
 
 
 def _post(d: ReportData, p: PostEntry) -> str:
@@ -652,7 +667,7 @@ def _post(d: ReportData, p: PostEntry) -> str:
     )
     return (
         head
-        + f'<div class="duo"><div>{result}</div><figure>{plot}</figure></div></div>'
+        + f'<div class="trio"><div>{result}</div>{_sketch(d, p)}<figure>{plot}</figure></div></div>'
         + '<div class="duo even"><div><h3>Inputs as measured</h3>'
         + _record_table(p.view.record)
         + f"</div><div><h3>Assumptions</h3>{_assumptions(d, p)}</div></div>"
@@ -667,13 +682,13 @@ def _post(d: ReportData, p: PostEntry) -> str:
 
 
 def _engine(d: ReportData) -> str:
-    rows = "".join(
-        f"<tr><td>{e(k)}</td><td>{e(v)}</td></tr>" for k, v in sorted(d.editions.items())
+    items = "".join(
+        f"<li><b>{e(k.replace('_', ' '))}</b>: {e(v)}</li>" for k, v in sorted(d.editions.items())
     )
     return (
         '<section id="engine"><h2>Engine and reference data</h2>'
         f"<p>fieldcheck engine version {e(d.engine_version)}. Reference-data editions used for "
-        "every re-rating in this report:</p>" + table(["Table", "Edition"], rows) + "</section>"
+        f'every re-rating in this report:</p><ul class="editions small">{items}</ul></section>'
     )
 
 
@@ -737,8 +752,13 @@ def write_report(
     info: ReportInfo | None = None,
 ) -> Path:
     """Write the report to ``path`` atomically (a temporary file beside it, then a rename), with
-    the permissions the user's umask gives a new file."""
+    the permissions the user's umask gives a new file. Without ``info``, the title block comes
+    from the config file and the revision is counted up in the log (a writable one)."""
     path = Path(path).expanduser()
+    if info is None:
+        from fieldcheck.report.model import issue_info
+
+        info = issue_info(log, site_id, visit_id)
     text = render_report(log, site_id, visit_id, units, info)
     fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".part", dir=path.parent or ".")
     try:

@@ -74,6 +74,45 @@ class ReportInfo:
     job: str = ""
     number: str = ""
     revision: int = 0
+    draft: bool = False  # not an issue: the revision shown is the last one issued
+
+
+def scope_key(site_id: str | None, visit_id: str | None) -> str:
+    """What a report covers, as the key its revision count is kept under."""
+    if visit_id:
+        return f"visit:{visit_id}"
+    return f"site:{site_id}" if site_id else "log"
+
+
+def issue_info(
+    log,
+    site_id: str | None = None,
+    visit_id: str | None = None,
+    *,
+    issue: bool = True,
+    config=None,
+    **given: str | None,
+) -> ReportInfo:
+    """The title block of a report: firm, engineer, client, job and number from ``given`` (the
+    command's options) over the config file; the revision from the log, counted up when
+    ``issue`` (a report written for sending) and the log is writable."""
+    if config is None:
+        from fieldcheck.config import load
+
+        config = load()
+    fields = {
+        "firm": config.firm,
+        "engineer": config.engineer,
+        "client": config.client,
+        "job": config.job,
+        "number": config.report_number,
+    }
+    fields.update({k: v for k, v in given.items() if v is not None and k in fields})
+    key = scope_key(site_id, visit_id)
+    if issue and not getattr(log, "readonly", True):
+        return ReportInfo(**fields, revision=log.next_report_revision(key))
+    last = log.meta().get(f"report_revision:{key}")
+    return ReportInfo(**fields, revision=int(last) if last else 0, draft=True)
 
 
 @dataclass

@@ -43,9 +43,8 @@ def _round_match(m: re.Match[str]) -> str:
     s = m.group(1)
     if "." not in s:
         return s  # whole numbers (counts, 400,000) stand as written
-    return sig(
-        float(s.replace(",", "")), SIG, grouping="," in s or abs(float(s.replace(",", ""))) >= 10000
-    )
+    x = float(s.replace(",", ""))
+    return sig(x, SIG, grouping="," in s or abs(x) >= 9999.5)
 
 
 def round_text(text: str) -> str:

@@ -44,16 +44,20 @@ th { background: #eee; } td.num, th.num { text-align: right; font-variant-numeri
 .duo { display: grid; grid-template-columns: minmax(0, 1fr) minmax(0, 1.25fr); gap: 0 1.2em;
        align-items: start; }
 .duo.even { grid-template-columns: minmax(0, 1fr) minmax(0, 1fr); }
+.trio { display: grid; gap: 0 1em; align-items: start;
+        grid-template-columns: minmax(0, 1fr) 7.5em minmax(0, 1.3fr); }
+.sketchbox { margin: 0; } .sketchbox svg { width: 100%; height: auto; }
+.sketchbox figcaption { font-size: 8pt; color: #333; }
 .plot { width: 100%; height: auto; max-width: 34em; }
-.plot text { font: 12px sans-serif; fill: #111; }
-.sketch { width: 9em; height: auto; float: right; margin: 0 0 0.4em 0.8em; }
-.sketch text { font: 11px sans-serif; fill: #111; }
+.plot text { font: 13px sans-serif; fill: #111; }
+.sketch text { font: 15px sans-serif; fill: #111; }
 .steps td:first-child { width: 2.2em; text-align: right; }
 .steps { font-size: 9pt; }
 .hash { font-family: monospace; font-size: 8.5pt; word-break: break-all; }
 .titleblock td, .titleblock th { border: none; padding: 1px 8px 1px 0; }
 .titleblock th { font-weight: normal; color: #444; width: 10em; background: none; }
 nav ol { columns: 2; }
+.editions { columns: 2; margin: 0.3em 0; } .editions li { break-inside: avoid; }
 .client p, .client li { font-size: 11.5pt; }
 .photo { display: inline-block; margin: 0 0.8em 0.6em 0; vertical-align: top; max-width: 100%; }
 .photo img { max-width: 100%; height: auto; border: 1px solid #999; }
@@ -61,10 +65,12 @@ nav ol { columns: 2; }
 @media (max-width: 700px) {
   body { padding: 0.6em; font-size: 10pt; }
   .duo, .duo.even { display: block; }
+  .trio { grid-template-columns: minmax(0, 1fr) 8em; }
+  .trio figure:last-child { grid-column: 1 / span 2; }
   .kv th { width: 40%; }
 }
 @media print {
-  body { max-width: none; padding: 0; font-size: 9pt; line-height: 1.25; }
+  body { max-width: none; padding: 0; font-size: 9pt; line-height: 1.2; }
   h1 { font-size: 17pt; } h2 { font-size: 12.5pt; margin-top: 1em; } h3 { font-size: 10pt; }
   th, td { padding: 1px 4px; }
   .post { font-size: 8.5pt; }
@@ -80,7 +86,7 @@ nav ol { columns: 2; }
   .badge, th, .a0, .a1, .a2, .a3, .an { -webkit-print-color-adjust: exact;
        print-color-adjust: exact; }
   .post { margin-top: 1.2em; }
-  .plot { max-width: 26em; }
+  .plot { max-width: 30em; }
   figure { margin: 0; }
 }
 """
@@ -94,7 +100,7 @@ def css_string(text: str) -> str:
         if ch.isascii() and ch.isprintable() and ch not in '"\\<>&':
             out.append(ch)
         else:
-            out.append(f"\\{ord(ch):06x}")
+            out.append(f"\\{ord(ch):06x} ")  # the space ends the escape (and is eaten by it)
     return '"' + "".join(out) + '"'
 
 
@@ -102,7 +108,7 @@ def page_css(header_left: str, header_right: str, footer: str = FOOTER_CAUTION) 
     """The @page rule: running header and footer in the margin boxes, page n of m."""
     box = "font: 7.5pt sans-serif; color: #333;"
     return (
-        "@page { margin: 14mm 12mm 13mm 12mm;"
+        "@page { margin: 13mm 11mm 12mm 11mm;"
         f" @top-left {{ content: {css_string(header_left)}; {box} }}"
         f" @top-right {{ content: {css_string(header_right)}; {box} }}"
         f" @bottom-left {{ content: {css_string(footer)}; {box} font-size: 6.5pt; width: 75%; }}"

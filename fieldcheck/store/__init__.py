@@ -10,6 +10,7 @@ dataclasses from ``fieldcheck.store.repo``)::
         # (log.backup_path); refuses a newer, foreign or damaged file with LogError (a ValueError,
         # one sentence). Use as a context manager or call log.close().
     log.path, log.device_id, log.author, log.schema_version, log.meta(), log.is_empty()
+    log.next_report_revision(scope) -> int   # 0 at a report's first issue, +1 at each reissue
 
     site  = log.add_site(name, address="", notes="")                  -> Site
     log.sites() -> list[Site];  log.site(id);  log.find_site(name) -> Site | None

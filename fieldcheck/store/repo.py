@@ -420,6 +420,16 @@ class Log:
     def meta(self) -> dict[str, str]:
         return _read_meta(self.db)
 
+    def next_report_revision(self, scope: str) -> int:
+        """The revision of the report of ``scope`` (a visit, site or whole-log key) issued now: 0
+        the first time, one more each time it is reissued. Kept in this log's meta table."""
+        key = f"report_revision:{scope}"
+        with self._write():
+            row = self._one("SELECT value FROM meta WHERE key = ?", [key])
+            rev = 0 if row is None else int(row["value"]) + 1
+            self.db.execute("INSERT OR REPLACE INTO meta VALUES (?, ?)", [key, str(rev)])
+        return rev
+
     def set_firm(self, firm_id: str) -> None:
         with self._write():
             self.db.execute("INSERT OR REPLACE INTO meta VALUES ('firm_id', ?)", [firm_id])

@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import math
 
-ENDS = ("pinned", "fixed", "free", "guided")
+from fieldcheck.report.endshape import ENDS, buckled_shape
 
 # end symbol drawn at the top / bottom of the post (7 characters, centred on the post)
 TOP_ART = {
@@ -19,54 +19,16 @@ TOP_ART = {
     "guided": "═╤═»═",  # held square but free to slide sideways
 }
 BOTTOM_ART = {
-    "pinned": " ╱○╲ ",
+    "pinned": " ╱○╲ ",  # noqa: RUF001 (box-drawing art)
     "fixed": "▄▄█▄▄",
     "free": "  ·  ",
     "guided": "═╧═»═",
 }
 
 
-def _shape(bottom: str, top: str) -> tuple[callable, str] | None:
+def _shape(bottom: str, top: str):
     """Deflection along the height t in [0, 1] (bottom to top), normalised to a peak of 1."""
-    pair = (bottom, top)
-    s = math.sin
-    table = {
-        ("pinned", "pinned"): (lambda t: s(math.pi * t), "bows in one half-wave"),
-        ("fixed", "fixed"): (
-            lambda t: (1 - math.cos(2 * math.pi * t)) / 2,
-            "bows between the fixed ends",
-        ),
-        ("fixed", "pinned"): (lambda t: s(math.pi * t) * t / 0.62, "bows nearer the pinned top"),
-        ("pinned", "fixed"): (
-            lambda t: s(math.pi * t) * (1 - t) / 0.62,
-            "bows nearer the pinned bottom",
-        ),
-        ("fixed", "free"): (
-            lambda t: 1 - math.cos(math.pi * t / 2),
-            "flagpole: the free top sways",
-        ),
-        ("free", "fixed"): (
-            lambda t: 1 - math.cos(math.pi * (1 - t) / 2),
-            "flagpole: the free bottom sways",
-        ),
-        ("fixed", "guided"): (
-            lambda t: (1 - math.cos(math.pi * t)) / 2,
-            "the guided top sways, held square",
-        ),
-        ("guided", "fixed"): (
-            lambda t: (1 + math.cos(math.pi * t)) / 2,
-            "the guided bottom sways, held square",
-        ),
-        ("pinned", "guided"): (
-            lambda t: s(math.pi * t / 2),
-            "the guided top sways; the bottom turns",
-        ),
-        ("guided", "pinned"): (
-            lambda t: s(math.pi * (1 - t) / 2),
-            "the guided bottom sways; the top turns",
-        ),
-    }
-    return table.get(pair)
+    return buckled_shape(bottom, top)
 
 
 def ends_drawing(top: str, bottom: str, ke: float | None = None, height: int = 9) -> str:

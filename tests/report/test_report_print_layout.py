@@ -30,7 +30,9 @@ def test_header_text_cannot_break_out_of_the_stylesheet(empty_log):
     empty_log.add_site('Site "x" </style><script>alert(1)</script> \\ ; }')
     out = render_report(empty_log)
     assert out.count("</style>") == 1 and "<script" not in out
-    assert css_string('x"}') == '"x\\000022}"'
+    # the space after a CSS escape ends it (and is consumed by it: CSS Syntax 3 §4.3.7)
+    assert css_string('x"}') == '"x\\000022 }"'
+    assert css_string("a \u2014 b") == '"a \\002014  b"'
 
 
 def test_long_tables_repeat_their_header_and_rows_do_not_split(demo_log):
