@@ -3,9 +3,10 @@
 from __future__ import annotations
 
 import argparse
+import os
 import sys
 
-from fieldcheck.commands.log_option import add_db_option, open_log
+from fieldcheck.commands.log_option import add_db_option, log_path, open_log
 
 DESCRIPTION = (
     "Write the survey report (a client summary in plain words and the technical record: inputs, "
@@ -75,7 +76,10 @@ def run(args: argparse.Namespace) -> int:
 
     cfg = load()
     units = getattr(args, "units", None) or cfg.units
-    with open_log(args, readonly=args.draft, must_exist=True) as log:
+    path = log_path(args)
+    # an issued report counts its revision in the log; a read-only log can only give a draft
+    draft = args.draft or not (os.access(path, os.W_OK) and os.access(path.parent, os.W_OK))
+    with open_log(args, readonly=draft, must_exist=True) as log:
         site = _find_site(log, args.site) if args.site else None
         visit = _find_visit(log, args.visit, site.id if site else None) if args.visit else None
         sid, vid = (site.id if site else None), (visit.id if visit else None)
@@ -83,7 +87,7 @@ def run(args: argparse.Namespace) -> int:
             log,
             sid,
             vid,
-            issue=not args.draft,
+            issue=not draft,
             config=cfg,
             firm=args.firm,
             engineer=args.engineer,
@@ -96,6 +100,9 @@ def run(args: argparse.Namespace) -> int:
         except OSError as exc:
             raise UsageError(f"report: cannot write {args.out} ({exc.strerror or exc})") from None
         n = len(log.posts(visit.id) if visit else log.posts(site_id=site.id if site else None))
-    rev = "draft, revision not counted" if args.draft else f"revision {info.revision}"
+    rev = f"revision {info.revision}"
+    if draft:
+        why = "" if args.draft else "; the log is read-only"
+        rev = f"a draft of revision {info.revision}, not counted{why}"
     print(f"Wrote the report of {n} posts to {path} ({rev}).", file=sys.stderr)
     return 0

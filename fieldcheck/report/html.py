@@ -68,7 +68,7 @@ def date_text(d) -> str:
 
 def due_text(p: PostEntry) -> str:
     a = p.action
-    if a is None:
+    if not p.rated:
         return "assess first"
     if DUE_DAYS[a] is None:
         return "none"
@@ -200,9 +200,7 @@ def _where(p: PostEntry) -> str:
 def client_group(p: PostEntry) -> int | None:
     """The client summary's group of a post: its action, but None (not assessed) for a post with
     no load (a capacity without a demand decides nothing) or no rating at all."""
-    if p.action is None or p.summary is None:
-        return None
-    if p.summary.get("demand_capacity_ratio") is None:
+    if not p.rated or p.summary is None or p.summary.get("demand_capacity_ratio") is None:
         return None
     return p.action
 
@@ -343,7 +341,7 @@ def _summary_table(d: ReportData) -> str:
 
 
 def _open_actions(d: ReportData) -> str:
-    open_ = [p for p in d.by_urgency() if p.action is None or p.action >= 1]
+    open_ = [p for p in d.by_urgency() if not p.rated or p.action in (1, 2, 3)]
     out = ['<section id="actions"><h2>Open actions</h2>']
     first = [p for p in open_ if p.action == 3]
     if first:

@@ -18,7 +18,7 @@ import numpy as np
 from fieldcheck import ENGINE_VERSION
 from fieldcheck.engine import rating as _rating
 from fieldcheck.engine.batch import METHOD_NAMES
-from fieldcheck.engine.rating import ACTION_TEXT, ACTIONS, DUE_DAYS, Rating, rate
+from fieldcheck.engine.rating import ACTION_TEXT, ACTIONS, DUE_DAYS, NOT_RATED, Rating, rate
 from fieldcheck.engine.refdata import editions
 
 # heights of a capacity curve as multiples of the post's own height: a quarter to twice it, as
@@ -57,8 +57,15 @@ class PostEntry:
         return None if self.summary is None else ACTIONS.index(self.summary["action"])
 
     @property
+    def rated(self) -> bool:
+        """A decision was made (False: field errors, or not rated because the load is missing)."""
+        return self.action is not None and self.action != NOT_RATED
+
+    @property
     def urgency_key(self) -> tuple:
-        a = -1 if self.action is None else self.action
+        # not rated (no record, or no load): treated as unsafe until assessed, listed after the
+        # posts to make safe now and before those to repair (compare with NOT_RATED, never >=)
+        a = 2.5 if not self.rated else self.action
         r = self.summary.get("demand_capacity_ratio") if self.summary else None
         return (-a, -(r if r is not None else -1.0), self.tag)
 

@@ -158,3 +158,18 @@ def test_scope_keys_are_distinct():
         len({model.scope_key(None, None), model.scope_key("s", None), model.scope_key("s", "v")})
         == 3
     )
+
+
+def test_a_post_without_its_load_is_never_called_safe(empty_log, parse_html):
+    site = empty_log.add_site("Site")
+    v = empty_log.add_visit(site.id, "R. Okafor")
+    base = {"size": "6x6", "height": "8ft", "species": "douglas-fir-larch", "grade": "no1"}
+    empty_log.save_post(v.id, {"tag": "N1", **base})  # no load: not rated, load missing
+    empty_log.save_post(v.id, {"tag": "L1", **base, "load": "2000lbf"})
+    out = render_report(empty_log)
+    client = out[out.index('id="client"') : out.index('id="summary"')]
+    safe = client[client.index("Safe to use as found") :]
+    assert "L1" in safe and "N1" not in safe
+    assert "Not assessed: treat as unsafe" in client and "N1" in client
+    actions = out[out.index('id="actions"') : out.index('id="conflicts"')]
+    assert "N1" in actions and "assess first" in actions
