@@ -601,6 +601,33 @@ def working_rows(steps) -> list[tuple[str, str, str]]:
     return out
 
 
+def _states_rows(d: ReportData, p: PostEntry) -> str:
+    """Office review and remedy state of a post (rows of its result table)."""
+    out = ""
+    rv = d.review_states.get(p.view.member_id)
+    if rv is not None:
+        if rv.review is None:
+            text = "awaiting office review"
+        else:
+            text = f"{rv.state}, {rv.on[:10]}"
+            if rv.action is not None:
+                text += f"; action set to {rv.action_label}"
+            if rv.instruction:
+                text += f"; {rv.instruction}"
+        out += f"<tr><th>Office review</th><td>{e(text)}</td></tr>"
+    rm = d.remedy_states.get(p.view.member_id)
+    if rm is not None:
+        text = rm.state
+        if rm.done_on:
+            text += f" on {rm.done_on}"
+        if rm.remedy:
+            text += f": {rm.remedy}"
+        elif rm.proposals:
+            text += f": {rm.proposals[0].description}"
+        out += f"<tr><th>Remedy</th><td>{e(text)}</td></tr>"
+    return out
+
+
 def _sketch(d: ReportData, p: PostEntry) -> str:
     r, j = d.rating, p.j
     v, jv = (r.detail(j).values, 0) if r.partial else (r.values, j)
@@ -640,7 +667,7 @@ def _post(d: ReportData, p: PostEntry) -> str:
         f"{e(ratio_text(float(r.ratio[j])))}</td></tr>"
         f"<tr><th>Governing check</th><td>{e(check_label(d, r.governing_name(j)))}</td></tr>"
         f"<tr><th>Action</th><td>{badge(p.action)} {e(ACTION_TEXT[p.action])}</td></tr>"
-        f"<tr><th>Due</th><td>{e(due_text(p))}</td></tr>"
+        f"<tr><th>Due</th><td>{e(due_text(p))}</td></tr>" + _states_rows(d, p)
     )
     plot = ""
     if p.curve_h is not None:

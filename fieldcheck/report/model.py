@@ -136,6 +136,8 @@ class ReportData:
     units: str
     signoffs: list[Any] = field(default_factory=list)  # sign-off reviews of the report's visits
     info: ReportInfo = field(default_factory=ReportInfo)
+    review_states: dict[str, Any] = field(default_factory=dict)  # member id -> ReviewState
+    remedy_states: dict[str, Any] = field(default_factory=dict)  # member id -> RemedyState
 
     @property
     def rated(self) -> list[PostEntry]:
@@ -383,4 +385,15 @@ def gather(
         _dt.datetime.now().astimezone(),
         units,
         signoffs,
+        review_states=_states(log, "review_states", members),
+        remedy_states=_states(log, "remedy_states", members),
     )
+
+
+def _states(log, method: str, members: set[str]) -> dict[str, Any]:
+    """A store's per-post states (review, remedy) for the report's posts; {} from a store
+    without them."""
+    fn = getattr(log, method, None)
+    if fn is None:
+        return {}
+    return {m: st for m, st in fn().items() if m in members}

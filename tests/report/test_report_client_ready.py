@@ -173,3 +173,21 @@ def test_a_post_without_its_load_is_never_called_safe(empty_log, parse_html):
     assert "Not assessed: treat as unsafe" in client and "N1" in client
     actions = out[out.index('id="actions"') : out.index('id="conflicts"')]
     assert "N1" in actions and "assess first" in actions
+
+
+def test_review_and_remedy_states_are_shown(demo_log):
+    posts = {p.tag: p for p in demo_log.posts()}
+    demo_log.review_post(posts["B1"].member_id, "accept", "checked against the drawings")
+    demo_log.propose_remedy(
+        posts["S4"].observation_id,
+        kind="add-post",
+        description="add a second shore beside it",
+        changes={"load": "5500lbf"},
+    )
+    out = render_report(demo_log)
+    b1 = out[out.index(f'id="m-{posts["B1"].member_id}"') :]
+    assert "Office review" in b1[: b1.index("</table>")]
+    assert "checked against the drawings" in b1[: b1.index("</section>")]
+    s4 = out[out.index(f'id="m-{posts["S4"].member_id}"') :]
+    assert "proposed: add a second shore beside it" in s4[: s4.index("</table>")]
+    assert "tester" not in out[out.index("</style>") :]  # the reviewer's login is not shown
