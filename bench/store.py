@@ -1,105 +1,248 @@
-"""Survey-log speed: import 100,000 synthetic posts, then re-rate the whole log.
+"""Survey-log speed against floors taken in the same run: import, re-rate and export.
 
-Prints one JSON object on its last line: {"posts", "import_seconds", "rerate_seconds", ...}.
-Targets (issue 7): import under 10 s, re-rate under 2 s.
+Every figure runs in a fresh subprocess (the machine is shared: CPU seconds of that process,
+user + system, and its peak resident memory from ``wait4``), alternating ours and the floor.
+The posts are realistic: nearly every record distinct (heights, loads and moisture vary), so the
+distinct-record parse cache does not carry the figure.
+
+- import: ``fieldcheck import`` of a CSV file; floor: ``csv.reader`` + one ``executemany`` of the
+  same rows into one table in one transaction (``import_1e5_ratio``, target <= 4).
+- re-rate: ``fieldcheck rerate``; floor: the bare engine on the already decoded rows (a prepared
+  PostBatch) plus one insert per rating into one table in one transaction (target <= 4).
+- export: ``fieldcheck export`` as CSV and as JSON; floor: a plain SELECT of the stored record
+  text and its rating, each record decoded and written with the csv or json module (the larger
+  ratio of the two is ``export_*_ratio``, target <= 1.5).
+- peak memory: the largest peak resident set of import, re-rate and export (target < 300 MB at
+  1,000,000 posts).
+
+By default N = 100,000 (``*_1e5`` keys); ``--big`` adds the 1,000,000-post run (several
+minutes) with ``rerate_1e6_ratio``, ``export_1e6_ratio`` and ``peak_mb_1e6``. Prints one JSON
+object on its last line.
 """
 
 from __future__ import annotations
 
 import argparse
+import csv
 import json
+import os
+import statistics
+import subprocess
 import sys
 import tempfile
+import threading
 import time
 from pathlib import Path
 
-sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
+ROOT = Path(__file__).resolve().parent.parent
+sys.path.insert(0, str(ROOT))
 
-from fieldcheck.store import Log
+SIZES = ("4x4", "4x6", "6x6", "6x8", "8x8", "4x8", "10x10")
+SPECIES = ("douglas-fir-larch", "southern-pine", "hem-fir", "unknown")
+GRADES = ("no1", "no2", "select-structural", "unknown")
+ENDS = ("pinned", "pinned", "fixed")
 
 
-def synthetic(n: int) -> list[dict[str, str]]:
-    """Posts as an inspector would type them: a few sizes, heights, species and loads repeated."""
-    sizes = ("4x4", "4x6", "6x6", "6x8", "8x8")
-    heights = ("7ft", "7ft 6in", "8ft", "8ft 4in", "9ft", "10ft", "2.4 m", "2700 mm")
-    species = ("douglas-fir-larch", "southern-pine", "hem-fir", "unknown")
-    grades = ("no1", "no2", "select-structural", "unknown")
-    ends = ("pinned", "pinned", "fixed")
-    loads = ("2000lbf", "3000lbf", "4500lbf", "6000lbf", "12 kN", "25 kN", "8000lbf")
-    rows = []
-    for i in range(n):
-        rows.append(
-            {
-                "tag": f"P{i + 1}",
-                "location": f"grid {chr(65 + i % 8)}/{i % 13 + 1}",
-                "size": sizes[i % 5],
-                "height": heights[i % 8],
-                "top": ends[i % 3],
-                "bottom": "pinned",
-                "species": species[(i // 5) % 4],
-                "grade": grades[(i // 3) % 4],
-                "load": loads[i % 7],
-                "moisture": ("12%", "19%", "24%")[i % 3],
-                "notes": "",
-            }
+def synthetic(n: int, start: int = 0):
+    """Posts as inspectors type them, nearly every one distinct: a measured height (feet and
+    inches or millimetres), a load (lbf or kN) and a moisture reading per post."""
+    for i in range(start, start + n):
+        h = 1800 + (i * 7919) % 1700
+        k = (i * 104729) % 9973
+        yield {
+            "tag": f"P{i + 1}",
+            "location": f"grid {chr(65 + i % 8)}/{i % 13 + 1}",
+            "size": SIZES[i % 7],
+            "height": f"{h} mm" if i % 2 else f"{h // 305}ft {(h % 305) // 26}in",
+            "top": ENDS[i % 3],
+            "bottom": "pinned",
+            "species": SPECIES[(i // 5) % 4],
+            "grade": GRADES[(i // 3) % 4],
+            "load": f"{1000 + k} lbf" if i % 2 else f"{(500 + k) / 100:.2f} kN",
+            "moisture": f"{8 + i % 20}%",
+            "notes": "",
+        }
+
+
+def write_csv(path: Path, n: int) -> None:
+    rows = synthetic(n)
+    first = next(rows)
+    with path.open("w", newline="", encoding="utf-8") as fh:
+        w = csv.DictWriter(fh, fieldnames=list(first))
+        w.writeheader()
+        w.writerow(first)
+        w.writerows(rows)
+
+
+# ----------------------------------------------------------------------------- floors
+
+FLOOR_IMPORT = """
+import csv, sqlite3, sys, time
+con = sqlite3.connect(sys.argv[2])
+with open(sys.argv[1], newline="", encoding="utf-8") as fh:
+    r = csv.reader(fh)
+    head = next(r)
+    con.execute(f"CREATE TABLE posts ({','.join(h + ' TEXT' for h in head)})")
+    con.executemany(f"INSERT INTO posts VALUES ({','.join('?' * len(head))})", r)
+con.commit()
+"""
+
+FLOOR_RERATE = """
+import json, sqlite3, sys, time
+from fieldcheck.records import parse_records
+from fieldcheck.engine.rating import rate
+src = sqlite3.connect(sys.argv[1])
+recs = [json.loads(t) for (t,) in src.execute("SELECT record_json FROM observations")]
+batch = parse_records(recs).batch  # the decoded rows (not timed)
+del recs
+con = sqlite3.connect(sys.argv[2])
+con.execute("CREATE TABLE ratings (i INTEGER, capacity_n REAL, demand_n REAL, ratio REAL, "
+            "action INTEGER, flags INTEGER)")
+t0 = time.process_time()
+r = rate(batch)
+rows = zip(range(batch.n), r.capacity_n.tolist(), r.demand_n.tolist(), r.ratio.tolist(),
+           r.action.tolist(), r.flags.tolist())
+con.executemany("INSERT INTO ratings VALUES (?, ?, ?, ?, ?, ?)", rows)
+con.commit()
+print("CPU", time.process_time() - t0)
+"""
+
+FLOOR_EXPORT = """
+import csv, json, sqlite3, sys
+con = sqlite3.connect(sys.argv[1])
+cur = con.execute(
+    "SELECT o.record_json, o.member_id, o.id, o.created_at, o.author, r.ratio, r.action, "
+    "r.capacity_n, r.demand_n, r.governing, r.engine_version "
+    "FROM observations o JOIN ratings r ON r.observation_id = o.id")
+tail = ("member_id", "observation_id", "revised_at", "revised_by", "ratio", "action",
+        "capacity_n", "demand_n", "governing", "engine_version")
+with open(sys.argv[2], "w", newline="", encoding="utf-8") as out:
+    first = True
+    for row in cur:
+        rec = json.loads(row[0])
+        rec.update(zip(tail, row[1:]))
+        if sys.argv[3] == "csv":
+            if first:
+                w = csv.DictWriter(out, fieldnames=list(rec))
+                w.writeheader()
+            w.writerow(rec)
+        else:
+            out.write(("[" if first else ",\\n") + json.dumps(rec))
+        first = False
+    if sys.argv[3] == "json":
+        out.write("]\\n")
+"""
+
+
+def run(argv: list[str]) -> dict:
+    """Run argv: its CPU seconds (user + system, or the part the floor timed itself), wall
+    seconds and peak resident MB (the child's own rusage, from wait4)."""
+    env = {**os.environ, "PYTHONPATH": str(ROOT)}
+    t = time.perf_counter()
+    p = subprocess.Popen(argv, cwd=ROOT, env=env, stdout=subprocess.PIPE, stderr=subprocess.PIPE)
+    outs: list[bytes] = []
+
+    # read the pipes without waiting on the child (wait4 must reap it to get its rusage)
+    def drain(stream, into):
+        into.append(stream.read())
+
+    eo: list[bytes] = []
+    th = [
+        threading.Thread(target=drain, args=(p.stdout, outs)),
+        threading.Thread(target=drain, args=(p.stderr, eo)),
+    ]
+    for x in th:
+        x.start()
+    _, status, ru = os.wait4(p.pid, 0)
+    wall = time.perf_counter() - t
+    for x in th:
+        x.join()
+    p.returncode = os.waitstatus_to_exitcode(status)
+    out = outs[0].decode()
+    if p.returncode not in (0, 1):
+        raise RuntimeError(f"{argv[:5]} failed ({p.returncode}): {eo[0].decode()[-2000:]}")
+    cpu = ru.ru_utime + ru.ru_stime
+    for line in out.splitlines():  # a floor that times only its own part prints it
+        if line.startswith("CPU "):
+            cpu = float(line.split()[1])
+    return {"cpu": cpu, "wall": wall, "peak_mb": ru.ru_maxrss / 1024.0}
+
+
+PY = sys.executable
+CLI = [PY, "-m", "fieldcheck"]
+
+
+def bench(n: int, tmp: Path, repeats: int) -> dict:
+    src = tmp / f"posts-{n}.csv"
+    write_csv(src, n)
+    imp, imp_floor = [], []
+    db = tmp / f"log-{n}.db"
+    for k in range(repeats):
+        fl = tmp / f"floor-{n}-{k}.db"
+        imp_floor.append(run([PY, "-c", FLOOR_IMPORT, str(src), str(fl)]))
+        fl.unlink()
+        if db.exists():
+            for p in tmp.glob(db.name + "*"):
+                p.unlink()
+        imp.append(
+            run([*CLI, "import", "--db", str(db), str(src), "--site", "Bench", "--visit", "One"])
         )
-    return rows
+    rr = run([*CLI, "rerate", "--db", str(db)])
+    rr_floor = run([PY, "-c", FLOOR_RERATE, str(db), str(tmp / f"rr-floor-{n}.db")])
+    exp: dict[str, dict] = {}
+    exp_floor: dict[str, dict] = {}
+    for fmt in ("csv", "json"):
+        out = tmp / f"export-{n}.{fmt}"
+        exp[fmt] = run([*CLI, "export", "--db", str(db), "--format", fmt, "--out", str(out)])
+        exp_floor[fmt] = run([PY, "-c", FLOOR_EXPORT, str(db), str(out), fmt])
+        out.unlink()
+    ratio_imp = statistics.median(a["cpu"] / b["cpu"] for a, b in zip(imp, imp_floor, strict=True))
+    exp_ratio = {f: exp[f]["cpu"] / exp_floor[f]["cpu"] for f in exp}
+    peaks = [max(r["peak_mb"] for r in imp), rr["peak_mb"], *(r["peak_mb"] for r in exp.values())]
+    return {
+        "import_ratio": round(ratio_imp, 2),
+        "import_cpu_s": round(statistics.median(r["cpu"] for r in imp), 2),
+        "import_floor_cpu_s": round(statistics.median(r["cpu"] for r in imp_floor), 2),
+        "import_peak_mb": round(max(r["peak_mb"] for r in imp)),
+        "import_floor_peak_mb": round(max(r["peak_mb"] for r in imp_floor)),
+        "rerate_ratio": round(rr["cpu"] / rr_floor["cpu"], 2),
+        "rerate_cpu_s": round(rr["cpu"], 2),
+        "rerate_floor_cpu_s": round(rr_floor["cpu"], 2),
+        "rerate_peak_mb": round(rr["peak_mb"]),
+        "export_ratio": round(max(exp_ratio.values()), 2),
+        "export_csv_ratio": round(exp_ratio["csv"], 2),
+        "export_json_ratio": round(exp_ratio["json"], 2),
+        "export_csv_cpu_s": round(exp["csv"]["cpu"], 2),
+        "export_csv_floor_cpu_s": round(exp_floor["csv"]["cpu"], 2),
+        "export_json_cpu_s": round(exp["json"]["cpu"], 2),
+        "export_json_floor_cpu_s": round(exp_floor["json"]["cpu"], 2),
+        "export_peak_mb": round(max(r["peak_mb"] for r in exp.values())),
+        "peak_mb": round(max(peaks)),
+    }
+
+
+def _tagged(figures: dict, tag: str) -> dict:
+    """import_ratio -> import_1e5_ratio; peak_mb -> peak_mb_1e5."""
+    out = {}
+    for k, v in figures.items():
+        head, _, rest = k.partition("_")
+        out[f"peak_mb_{tag}" if k == "peak_mb" else f"{head}_{tag}_{rest}"] = v
+    return out
 
 
 def main() -> None:
     ap = argparse.ArgumentParser()
     ap.add_argument("--posts", type=int, default=100_000)
+    ap.add_argument("--big", action="store_true", help="also run 1,000,000 posts (minutes)")
+    ap.add_argument("--repeats", type=int, default=3, help="import runs (alternated with floor)")
     a = ap.parse_args()
-    rows = synthetic(a.posts)
-    from fieldcheck.records import parse_records
-
-    t = time.perf_counter()
-    parse_records(rows)  # the records layer alone, for the split (it is inside both figures)
-    parse_s = time.perf_counter() - t
-    # time spent inside the records layer + engine (rate_records), to split the figures
-    import fieldcheck.records as records
-
-    inner = [0.0]
-    real_rate_records = records.rate_records
-
-    def timed_rate_records(rs):
-        t = time.perf_counter()
-        try:
-            return real_rate_records(rs)
-        finally:
-            inner[0] += time.perf_counter() - t
-
-    records.rate_records = timed_rate_records
+    out: dict[str, object] = {"posts": a.posts}
     with tempfile.TemporaryDirectory() as tmp:
-        with Log.open(Path(tmp) / "bench.db", author="bench") as log:
-            t0 = time.perf_counter()
-            res = log.import_rows(rows, "Bench site", "Bench visit")
-            t1 = time.perf_counter()
-            import_engine, inner[0] = inner[0], 0.0
-            rr = log.rerate_all()
-            t2 = time.perf_counter()
-            rerate_engine = inner[0]
-            posts = log.posts()
-            t3 = time.perf_counter()
-        size_mb = (Path(tmp) / "bench.db").stat().st_size / 1e6
-    assert res.imported == a.posts and not res.errors, res.errors[:3]
-    assert rr.rated == a.posts
-    print(
-        json.dumps(
-            {
-                "posts": a.posts,
-                "import_seconds": round(t1 - t0, 3),
-                "rerate_seconds": round(t2 - t1, 3),
-                "import_store_seconds": round(t1 - t0 - import_engine, 3),
-                "rerate_store_seconds": round(t2 - t1 - rerate_engine, 3),
-                "rate_records_seconds": round(rerate_engine, 3),
-                "records_parse_seconds": round(parse_s, 3),
-                "posts_view_seconds": round(t3 - t2, 3),
-                "current_posts": len(posts),
-                "file_mb": round(size_mb, 1),
-            }
-        )
-    )
+        small = bench(a.posts, Path(tmp), a.repeats)
+        out.update(_tagged(small, "1e5"))
+        if a.big:
+            out.update(_tagged(bench(1_000_000, Path(tmp), 1), "1e6"))
+    print(json.dumps(out))
 
 
 if __name__ == "__main__":

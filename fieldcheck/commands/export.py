@@ -28,26 +28,41 @@ def run(args: argparse.Namespace) -> int:
 
         return run_export_bundle(args)
     with open_log(args, readonly=True, must_exist=True) as log:
-        table = log.export_rows()
+        columns, rows = log.export_iter()
+        written = []
 
-    def write(out) -> None:
-        if args.format == "json":
-            json.dump(
-                {"columns": table.columns, "posts": table.rows}, out, ensure_ascii=False, indent=1
-            )
-            out.write("\n")
+        def write(out) -> None:
+            written.append((write_json if args.format == "json" else write_csv)(out, columns, rows))
+
+        if args.out:
+            from fieldcheck.commands.out_file import write_atomically
+
+            write_atomically(args.out, write)
         else:
-            w = csv.DictWriter(out, fieldnames=table.columns, extrasaction="ignore")
-            w.writeheader()
-            for row in table.rows:
-                w.writerow({k: "" if v is None else v for k, v in row.items()})
-
+            write(sys.stdout)
+        n = written[0]
     if args.out:
-        from fieldcheck.commands.out_file import write_atomically
-
-        write_atomically(args.out, write)
-    else:
-        write(sys.stdout)
-    if args.out:
-        print(f"Exported {len(table.rows)} posts to {args.out}.", file=sys.stderr)
+        print(f"Exported {n} posts to {args.out}.", file=sys.stderr)
     return 0
+
+
+def write_csv(out, columns: list[str], rows) -> int:
+    """The rows (dicts in column order) as CSV, streamed; an empty value for None."""
+    w = csv.writer(out)
+    w.writerow(columns)
+    n = 0
+    for row in rows:
+        w.writerow(["" if v is None else v for v in row.values()])
+        n += 1
+    return n
+
+
+def write_json(out, columns: list[str], rows) -> int:
+    """{"columns": [...], "posts": [{...}, ...]}, one post per line, streamed."""
+    out.write('{"columns": ' + json.dumps(columns, ensure_ascii=False) + ',\n "posts": [')
+    n = 0
+    for row in rows:
+        out.write(("\n  " if n == 0 else ",\n  ") + json.dumps(row, ensure_ascii=False))
+        n += 1
+    out.write("\n ]\n}\n")
+    return n

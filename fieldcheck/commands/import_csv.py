@@ -5,7 +5,7 @@ from __future__ import annotations
 import argparse
 import sys
 
-from fieldcheck.commands.csv_option import add_csv_options, open_posts, read_all
+from fieldcheck.commands.csv_option import add_csv_options, open_posts
 from fieldcheck.commands.log_option import add_db_option, open_log
 
 DESCRIPTION = (
@@ -44,10 +44,15 @@ def run(args: argparse.Namespace) -> int:
             "import: give --site NAME and --visit NAME for the imported posts, e.g. "
             "--site '14 Alder Row' --visit 'Basement survey'"
         )
-    with open_posts(args, args.csv) as table:
-        rows = read_all(table)
-    with open_log(args) as log:
-        result = log.import_rows(rows, args.site, args.visit, inspector=args.inspector)
+    from fieldcheck.records.csv_file import CsvProblem
+
+    with open_posts(args, args.csv) as table, open_log(args) as log:
+        # streamed: the rows go to the log as they are read (memory flat in the file size); a
+        # problem found on a later line leaves the log as it was (one transaction)
+        try:
+            result = log.import_rows(table, args.site, args.visit, inspector=args.inspector)
+        except CsvProblem as exc:
+            raise UsageError(str(exc)) from None
         for err in result.errors:
             print(
                 f"fieldcheck: row {err.row + 1}, column {err.column}: {err.message}",
@@ -55,7 +60,7 @@ def run(args: argparse.Namespace) -> int:
             )
         bad = len({e.row for e in result.errors})
         print(
-            f"Imported {result.imported} of {len(rows)} posts into {result.site.name!r}, visit "
+            f"Imported {result.imported} of {result.read} posts into {result.site.name!r}, visit "
             f"{result.visit.name!r} ({log.path})"
             + (f"; {bad} rows left out, correct them and import those rows again." if bad else ".")
         )

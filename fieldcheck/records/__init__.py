@@ -101,23 +101,39 @@ def parse_row(
 
 def _rated_key(rec: dict[str, str]) -> tuple:
     """What the engine sees of a record: every rated column's text (tags and notes left out)."""
-    # in the record's own order: rows from one file or log share it; another order only costs a parse
+    # in the record's own order: rows from one file or log share it; another order only costs
+    # a parse
     return tuple([(k, v) for k, v in rec.items() if v and k not in _UNRATED])
 
 
-def parse_records(rows: list[dict[str, str]]) -> Parsed:
+PARSE_CACHE_LIMIT = 1 << 14  # distinct records a caller's cache keeps across chunks
+
+
+def parse_records(rows: list[dict[str, str]], cache: dict | None = None) -> Parsed:
     """Rows -> one PostBatch. Identical records (a row of identical shores, a re-rated log) are
-    parsed once: the builders run per distinct record, the arrays are gathered by index."""
+    parsed once: the builders run per distinct record, the arrays are gathered by index.
+
+    ``cache`` (a dict the caller keeps) carries the distinct records' parses from one call to
+    the next, so a file read in chunks parses each distinct record once; it is emptied when it
+    holds PARSE_CACHE_LIMIT records (memory stays flat)."""
     errors: list[FieldError] = []
     uid_of: dict[tuple, int] = {}
     uniq: list[tuple[dict[str, Any], dict[str, Any], list[tuple[str, str]]]] = []
     row_uid = np.empty(len(rows), dtype=np.intp)
+    if cache is not None and len(cache) > PARSE_CACHE_LIMIT:
+        cache.clear()
     for i, rec in enumerate(rows):
         key = _rated_key(rec)
         u = uid_of.get(key)
         if u is None:
             u = uid_of[key] = len(uniq)
-            uniq.append(parse_row(rec))
+            if cache is None:
+                uniq.append(parse_row(rec))
+            else:
+                got = cache.get(key)
+                if got is None:
+                    got = cache[key] = parse_row(rec)
+                uniq.append(got)
         row_uid[i] = u
         problems = uniq[u][2]
         if problems:
@@ -145,7 +161,7 @@ def parse_records(rows: list[dict[str, str]]) -> Parsed:
     )
 
 
-def rate_records(rows: list[dict[str, str]]):
+def rate_records(rows: list[dict[str, str]], cache: dict | None = None):
     """Parse and rate in one engine pass: (Rating of the rows without errors, errors).
 
     Rating post j is input row ``np.flatnonzero(ok)[j]`` where ok excludes the rows named in
@@ -153,7 +169,7 @@ def rate_records(rows: list[dict[str, str]]):
     """
     from fieldcheck.engine.rating import rate
 
-    parsed = parse_records(rows)
+    parsed = parse_records(rows, cache)
     return rate(parsed.batch), parsed.errors
 
 

@@ -104,14 +104,17 @@ def summary_json(rating, i: int) -> str:
     return json.dumps(_clean(s), default=_json_default, separators=(",", ":"))
 
 
-def rate(records: list[dict[str, str]], *, summaries: bool = True) -> RatedRows:
-    """Rate every record in ONE engine call; rows with field errors get None and their errors."""
+def rate(
+    records: list[dict[str, str]], *, summaries: bool = True, cache: dict | None = None
+) -> RatedRows:
+    """Rate every record in ONE engine call; rows with field errors get None and their errors.
+    ``cache``: the records layer's distinct-record parses, kept by the caller across chunks."""
     from fieldcheck.records import rate_records
 
     n = len(records)
     if n == 0:
         return RatedRows([], [])
-    rating, errors = rate_records(records)
+    rating, errors = rate_records(records, cache)
     errs = [RowError(int(e.row), str(e.column), str(e.message)) for e in errors]
     bad = {e.row for e in errs}
     ok_rows = [i for i in range(n) if i not in bad]
@@ -128,10 +131,7 @@ def rate(records: list[dict[str, str]], *, summaries: bool = True) -> RatedRows:
     flags = np.asarray(rating.flags).astype(np.int64).tolist()
     if len(cap) != m:
         raise RuntimeError(f"the engine returned {len(cap)} ratings for {m} valid records")
-    if summaries:
-        summ = [summary_json(rating, j) for j in range(m)]
-    else:
-        summ = [None] * m
+    summ = [summary_json(rating, j) for j in range(m)] if summaries else [None] * m
     for j, i in enumerate(ok_rows):
         out[i] = (cap[j], dem[j], ratio[j], action[j], gov[j], flags[j], summ[j])
     return RatedRows(out, errs)

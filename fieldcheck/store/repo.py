@@ -9,6 +9,7 @@ import contextlib
 import datetime as _dt
 import getpass
 import hashlib
+import itertools
 import json
 import os
 import shutil
@@ -34,6 +35,7 @@ from fieldcheck.store.schema import (
     migrations,
 )
 
+STORE_CHUNK = 16_384  # rows per chunk of the bulk paths (import, re-rate, export)
 VISIT_LEVELS = ("minimum", "standard", "detailed")  # how much was measured (judgement)
 # columns that export adds beside the record; import drops them so an export re-imports
 EXPORT_ONLY_COLUMNS = (
@@ -113,6 +115,28 @@ def _loads(text: str | None):
 
 def _dumps(obj) -> str:
     return json.dumps(obj, ensure_ascii=False, separators=(",", ":"))
+
+
+def _dumps_many(objs: list) -> list[str]:
+    """Compact JSON text of each object, as ``_dumps`` writes it."""
+    return [_dumps(o) for o in objs]
+
+
+def _loads_many(texts: list[str]) -> list:
+    """Decode many JSON texts in one call (one array)."""
+    return json.loads("[" + ",".join(texts) + "]")
+
+
+def _import_record(r: Mapping[str, object]) -> dict[str, str]:
+    """A row to import as its record: the export-only columns dropped, empty cells left out."""
+    out: dict[str, str] = {}
+    for k, v in r.items():
+        if v is None or k in _EXPORT_ONLY:
+            continue
+        t = v if isinstance(v, str) else str(v)
+        if t.strip():
+            out[str(k)] = t
+    return out
 
 
 def clean_record(record: Mapping[str, object]) -> dict[str, str]:
@@ -271,6 +295,7 @@ class ImportResult:
     errors: list[RowError]
     site: Site
     visit: Visit
+    read: int = 0  # rows read (imported + left out)
 
 
 @dataclass(frozen=True)
@@ -762,17 +787,9 @@ class Log:
     ) -> list[PostView]:
         """Current revision of each member (seen on ``visit_id`` / at ``site_id`` / all), in the
         order the members were first recorded, with the latest rating of that revision."""
-        where, params = [], []
-        if visit_id is not None:
-            where.append("o.member_id IN (SELECT member_id FROM observations WHERE visit_id = ?)")
-            params.append(visit_id)
-        if site_id is not None:
-            where.append("o.member_id IN (SELECT id FROM members WHERE site_id = ?)")
-            params.append(site_id)
+        where, params = _member_filter(visit_id, site_id)
         sql = _POSTS_SQL.format(
-            head=HEAD,
-            filter=("AND " + " AND ".join(where)) if where else "",
-            withdrawn="" if include_withdrawn else "AND h.withdrawn = 0",
+            filter=where, withdrawn="" if include_withdrawn else "AND o.withdrawn = 0"
         )
         try:
             return [_post_view(r) for r in self.db.query(sql, params)]
@@ -797,52 +814,77 @@ class Log:
             out[p.action_label] = out.get(p.action_label, 0) + 1
         return out
 
-    def rerate_all(self) -> RerateResult:
-        """Re-rate every current revision in ONE engine call and store the new ratings (with
-        this engine's version and data editions) in one transaction; old ratings are kept."""
-        from fieldcheck.records import UNRATED_COLUMNS
+    def rerate_all(self, *, chunk: int = STORE_CHUNK) -> RerateResult:
+        """Re-rate every current revision and store the new ratings (with this engine's version
+        and data editions) in ONE transaction; old ratings are kept. The heads stream from
+        SQLite in chunks of ``chunk`` (memory flat in the size of the log), each chunk one
+        engine call."""
+        from fieldcheck.records import PARSE_CACHE_LIMIT, UNRATED_COLUMNS
 
         # What the engine sees of each record: its JSON without the columns the records layer
         # leaves out (tag, location, notes). A log repeats such records (a run of identical
-        # shores), so each distinct one is decoded, parsed and rated once; SQLite strips the
-        # keys in C, and the rows are plain tuples, no dict per row.
+        # shores), so each distinct one is decoded, parsed and rated once, and its rating row
+        # kept across chunks; SQLite strips the keys in C.
         strip = ", ".join(f"'$.{c}'" for c in UNRATED_COLUMNS)
-        with self._lock:
-            try:
-                heads = self.db.conn.execute(
-                    f"SELECT id, json_remove(record_json, {strip}) "
-                    "FROM observations o WHERE withdrawn = 0 AND " + HEAD + " ORDER BY rowid"
-                ).fetchall()
-                ids = [h[0] for h in heads]
-                first: dict[str, int] = {}
-                which = [first.setdefault(h[1], len(first)) for h in heads]
-                records = json.loads("[" + ",".join(first) + "]")  # one decode of one array
-                if not all(isinstance(r, dict) for r in records):
-                    raise ValueError("a record is not an object")
-            except (sqlite3.OperationalError, ValueError, TypeError) as exc:
-                if isinstance(exc, sqlite3.OperationalError) and "json" not in str(exc).lower():
-                    raise
-                raise self._bad_record() from None
-            result = rated.rate(records, summaries=False)
-            stamp, version, _ = rated.engine_stamp()
-            rows = [result.rows[u] for u in which]
-            good = [(i, row) for i, row in zip(ids, rows, strict=True) if row is not None]
-            errors = _spread_errors(result.errors, which)
+        stamp, version, _ = rated.engine_stamp()
+        done: dict[str, tuple[tuple | None, list[tuple[str, str]]]] = {}
+        errors: list[RowError] = []
+        n = good_n = 0
+        with self._write():
+            self._ensure_stamp()
             created = now()
-            with self._write():
-                self._ensure_stamp()
+            dev, who = self.device_id, self.author
+            cur = self.db.conn.execute(
+                f"SELECT id, json_remove(record_json, {strip}) "
+                "FROM observations o WHERE withdrawn = 0 AND " + HEAD + " ORDER BY rowid"
+            )
+            while heads := self._fetch_records(cur, chunk):
+                if len(done) > PARSE_CACHE_LIMIT:
+                    done.clear()
+                fresh = list(dict.fromkeys(t for _, t in heads if t not in done))
+                if fresh:
+                    try:
+                        records = _loads_many(fresh)
+                        if not all(isinstance(r, dict) for r in records):
+                            raise ValueError("a record is not an object")
+                    except (ValueError, TypeError):
+                        raise self._bad_record() from None
+                    result = rated.rate(records, summaries=False)
+                    errs: dict[int, list[tuple[str, str]]] = {}
+                    for e in result.errors:
+                        errs.setdefault(e.row, []).append((e.column, e.message))
+                    for u, text in enumerate(fresh):
+                        done[text] = (result.rows[u], errs.get(u, []))
+                got = [done[t] for _, t in heads]
+                good = []
+                for k, ((oid, _), (row, errs_k)) in enumerate(zip(heads, got, strict=True)):
+                    if row is not None:
+                        good.append((oid, row))
+                    elif errs_k:
+                        errors.extend(RowError(n + k, c, m) for c, m in errs_k)
                 seqs = self._seqs(len(good))
                 rids = new_ids(len(good))
-                origin = (self.device_id, self.author, created)
                 self._insert(
                     "ratings",
                     _RATING_COLS,
-                    (
-                        (rid, oid, version, stamp, *row, origin[0], seq, origin[1], origin[2])
+                    [
+                        (rid, oid, version, stamp, *row, dev, seq, who, created)
                         for (oid, row), seq, rid in zip(good, seqs, rids, strict=True)
-                    ),
+                    ],
                 )
-        return RerateResult(len(good), len(ids) - len(good), version, errors)
+                n += len(heads)
+                good_n += len(good)
+        return RerateResult(good_n, n - good_n, version, errors)
+
+    def _fetch_records(self, cur: sqlite3.Cursor, n: int) -> list:
+        """The next rows of a cursor reading record JSON in SQLite; a record SQLite cannot read
+        as JSON is named as a sentence."""
+        try:
+            return cur.fetchall() if n < 0 else cur.fetchmany(n)
+        except sqlite3.OperationalError as exc:
+            if "json" not in str(exc).lower():
+                raise
+            raise self._bad_record() from None
 
     def _bad_record(self) -> LogError:
         """The first stored record that is not a JSON object of text, as a sentence (slow scan:
@@ -863,93 +905,120 @@ class Log:
         site: str,
         visit: str,
         inspector: str | None = None,
+        *,
+        chunk: int = STORE_CHUNK,
     ) -> ImportResult:
-        """Add many posts in ONE transaction and ONE engine call: the site and visit are found by
-        name (or created); rows the records layer refuses are reported (0-based row, column,
-        message) and left out, the others imported as new members."""
-        records = [
-            clean_record({k: v for k, v in r.items() if k not in _EXPORT_ONLY}) for r in rows
-        ]
-        result = rated.rate(records, summaries=False)
+        """Add many posts in ONE transaction: the site and visit are found by name (or created);
+        rows the records layer refuses are reported (0-based row, column, message) and left
+        out, the others imported as new members. ``rows`` may be any iterable (a file read as
+        it goes): it is taken ``chunk`` rows at a time, one engine call each, the distinct
+        records' parses kept from chunk to chunk, so memory stays flat in the number of rows."""
         stamp, version, _ = rated.engine_stamp()
-        ok = [i for i, row in enumerate(result.rows) if row is not None]
+        source = iter(rows)
+        cache: dict = {}
+        errors: list[RowError] = []
+        read = imported = 0
         with self._write():
             self._ensure_stamp()
             s = self.find_site(site) or self.add_site(site)
             v = self.find_visit(s.id, visit) or self.add_visit(s.id, inspector, name=visit)
             created = now()
-            seqs = iter(self._seqs(3 * len(ok)))
-            ids = new_ids(3 * len(ok))
-            member_ids, obs_ids, rating_ids = ids[0::3], ids[1::3], iter(ids[2::3])
             dev, who = self.device_id, self.author
-            self._insert(
-                "members",
-                _MEMBER_COLS,
-                [
-                    (mid, s.id, records[i].get("tag", ""), dev, next(seqs), who, created)
-                    for mid, i in zip(member_ids, ok, strict=True)
-                ],
-            )
-            self._insert(
-                "observations",
-                _OBS_COLS,
-                [
-                    (oid, mid, v.id, None, 0, "", _dumps(records[i]), dev, next(seqs), who, created)
-                    for oid, mid, i in zip(obs_ids, member_ids, ok, strict=True)
-                ],
-            )
-            rows_ = result.rows
-            self._insert(
-                "ratings",
-                _RATING_COLS,
-                [
-                    (
-                        next(rating_ids),
-                        oid,
-                        version,
-                        stamp,
-                        *rows_[i],
-                        dev,
-                        next(seqs),
-                        who,
-                        created,
-                    )
-                    for oid, i in zip(obs_ids, ok, strict=True)
-                ],
-            )
-        return ImportResult(len(ok), result.errors, s, v)
+            while batch := list(itertools.islice(source, chunk)):
+                records = [_import_record(r) for r in batch]
+                del batch
+                result = rated.rate(records, summaries=False, cache=cache)
+                errors.extend(RowError(read + e.row, e.column, e.message) for e in result.errors)
+                ok = [i for i, row in enumerate(result.rows) if row is not None]
+                seqs = iter(self._seqs(3 * len(ok)))
+                ids = new_ids(3 * len(ok))
+                member_ids, obs_ids, rating_ids = ids[0::3], ids[1::3], ids[2::3]
+                self._insert(
+                    "members",
+                    _MEMBER_COLS,
+                    [
+                        (mid, s.id, records[i].get("tag", ""), dev, next(seqs), who, created)
+                        for mid, i in zip(member_ids, ok, strict=True)
+                    ],
+                )
+                texts = _dumps_many([records[i] for i in ok])
+                self._insert(
+                    "observations",
+                    _OBS_COLS,
+                    [
+                        (oid, mid, v.id, None, 0, "", text, dev, next(seqs), who, created)
+                        for oid, mid, text in zip(obs_ids, member_ids, texts, strict=True)
+                    ],
+                )
+                rows_ = result.rows
+                self._insert(
+                    "ratings",
+                    _RATING_COLS,
+                    [
+                        (rid, oid, version, stamp, *rows_[i], dev, next(seqs), who, created)
+                        for rid, oid, i in zip(rating_ids, obs_ids, ok, strict=True)
+                    ],
+                )
+                read += len(records)
+                imported += len(ok)
+        return ImportResult(imported, errors, s, v, read)
 
     def export_rows(self, visit_id: str | None = None) -> ExportTable:
-        """Current posts as flat rows: the record columns (registry order, then any others) and
-        the rating columns (EXPORT_ONLY_COLUMNS); an exported CSV imports again."""
-        posts = self.posts(visit_id)
-        sites = {s.id: s.name for s in self.sites()}
-        visits = {v.id: v.name for v in self.visits()}
-        seen: dict[str, None] = {}
-        for p in posts:
-            for k in p.record:
-                seen.setdefault(k, None)
+        """Current posts as flat rows, all in memory (see ``export_iter`` for a large log)."""
+        columns, rows = self.export_iter(visit_id)
+        return ExportTable(columns, list(rows))
+
+    def export_iter(
+        self, visit_id: str | None = None, *, chunk: int = STORE_CHUNK
+    ) -> tuple[list[str], Iterator[dict[str, object]]]:
+        """Current posts as flat rows, streamed: (columns, iterator of one dict per post, keys in
+        column order). The record columns (registry order, then any others) and the rating
+        columns (EXPORT_ONLY_COLUMNS); an exported CSV imports again. The rows come from SQLite
+        ``chunk`` at a time: consume them before closing the log."""
+        where, params = _member_filter(visit_id, None)
+        seen = self._record_keys(where, params)
         order = [c for c in _registry_columns() if c in seen]
-        cols = order + [c for c in seen if c not in set(order)]
-        out = []
-        for p in posts:
-            row: dict[str, object] = {c: p.record.get(c, "") for c in cols}
-            row.update(
-                site=sites.get(p.site_id, ""),
-                visit=visits.get(p.visit_id, ""),
-                member_id=p.member_id,
-                observation_id=p.observation_id,
-                revised_at=p.revised_at,
-                revised_by=p.revised_by,
-                ratio=p.ratio,
-                action=p.action_label,
-                capacity_kN=None if p.capacity_n is None else p.capacity_n / 1000.0,
-                demand_kN=None if p.demand_n is None else p.demand_n / 1000.0,
-                governing=p.governing,
-                engine_version=p.engine_version,
-            )
-            out.append(row)
-        return ExportTable(cols + list(EXPORT_ONLY_COLUMNS), out)
+        known = set(order)
+        cols = order + [c for c in seen if c not in known]
+        return cols + list(EXPORT_ONLY_COLUMNS), self._export_rows(cols, where, params, chunk)
+
+    def _record_keys(self, where: str, params: list) -> dict[str, None]:
+        """Every key of the current records (in order of first appearance), found in SQLite."""
+        sql = _EXPORT_SQL.format(filter=where)
+        cur = self.db.conn.execute(
+            f"SELECT DISTINCT j.key FROM ({sql}) e, json_each(e.record_json) j", params
+        )
+        return dict.fromkeys(k for (k,) in self._fetch_records(cur, -1))
+
+    def _export_rows(
+        self, cols: list[str], where: str, params: list, chunk: int
+    ) -> Iterator[dict[str, object]]:
+        cur = self.db.conn.execute(_EXPORT_SQL.format(filter=where), params)
+        blank = dict.fromkeys(cols, "")
+        while rows := cur.fetchmany(chunk):
+            try:
+                recs = _loads_many([r[0] for r in rows])
+                if not all(isinstance(r, dict) for r in recs):
+                    raise ValueError("a record is not an object")
+            except (ValueError, TypeError):
+                raise self._bad_record() from None
+            for rec, (_, site, visit, mid, oid, at, by, ratio, act, cap, dem, gov, ev) in zip(
+                recs, rows, strict=True
+            ):
+                row: dict[str, object] = {**blank, **rec}  # column order, blanks filled
+                row["site"] = site or ""
+                row["visit"] = visit or ""
+                row["member_id"] = mid
+                row["observation_id"] = oid
+                row["revised_at"] = at
+                row["revised_by"] = by
+                row["ratio"] = ratio
+                row["action"] = action_label(act)
+                row["capacity_kN"] = None if cap is None else cap / 1000.0
+                row["demand_kN"] = None if dem is None else dem / 1000.0
+                row["governing"] = gov or ""
+                row["engine_version"] = ev
+                yield row
 
     # ---- attachments
 
@@ -1179,21 +1248,6 @@ _OBS_COLS = (
 )
 
 
-def _spread_errors(errors: list[RowError], which: list[int]) -> list[RowError]:
-    """Errors found on distinct records, given for every row holding that record, in row order."""
-    if not errors:
-        return []
-    by_record: dict[int, list[RowError]] = {}
-    for e in errors:
-        by_record.setdefault(e.row, []).append(e)
-    return [
-        RowError(i, e.column, e.message)
-        for i, u in enumerate(which)
-        if u in by_record
-        for e in by_record[u]
-    ]
-
-
 _RATING_COLS = (
     "id",
     "observation_id",
@@ -1227,23 +1281,48 @@ _RATING_SQL = (
     "SELECT r.*, s.data_editions FROM ratings r LEFT JOIN engine_stamps s ON s.id = r.stamp_id"
 )
 
-# heads: revisions nobody supersedes; the newest head per member (by device_seq, never by clock)
-_POSTS_SQL = """
-WITH heads AS (
-    SELECT o.*,
-        row_number() OVER (PARTITION BY o.member_id ORDER BY o.device_seq DESC, o.id DESC) AS rn,
-        count(*) OVER (PARTITION BY o.member_id) AS nheads
-    FROM observations o
-    WHERE {head} {filter}
-)
-SELECT h.id, h.member_id, h.visit_id, h.record_json, h.nheads, h.created_at, h.author,
-    m.site_id, r.capacity_n, r.demand_n, r.ratio, r.action, r.governing, r.engine_version
-FROM heads h
-JOIN members m ON m.id = h.member_id
-LEFT JOIN ratings r ON r.rowid = (SELECT max(rowid) FROM ratings WHERE observation_id = h.id)
-WHERE h.rn = 1 {withdrawn}
+# heads: revisions nobody supersedes; the newest head per member (by device_seq, never by clock).
+# Members are walked in rowid order and each one's head found through the member and supersedes
+# indexes, so the rows stream (no sort, no window over the whole log) and a page or a visit
+# costs what it returns.
+_HEAD_H = HEAD.replace("= o.id", "= h.id")
+_HEAD_OF = f"""(SELECT h.id FROM observations h WHERE h.member_id = m.id AND {_HEAD_H}
+    ORDER BY h.device_seq DESC, h.id DESC LIMIT 1)"""
+_NHEADS = f"""(SELECT count(*) FROM observations h WHERE h.member_id = m.id AND {_HEAD_H})"""
+_POSTS_SQL = f"""
+SELECT o.id, o.member_id, o.visit_id, o.record_json, {_NHEADS} AS nheads, o.created_at,
+    o.author, m.site_id, r.capacity_n, r.demand_n, r.ratio, r.action, r.governing,
+    r.engine_version
+FROM members m
+JOIN observations o ON o.id = {_HEAD_OF}
+LEFT JOIN ratings r ON r.rowid = (SELECT max(rowid) FROM ratings WHERE observation_id = o.id)
+WHERE 1 {{filter}} {{withdrawn}}
 ORDER BY m.rowid
 """
+# the export's rows: as _POSTS_SQL, with the site and visit names and without the head count
+_EXPORT_SQL = f"""
+SELECT o.record_json, s.name, v.name, o.member_id, o.id, o.created_at, o.author,
+    r.ratio, r.action, r.capacity_n, r.demand_n, r.governing, r.engine_version
+FROM members m
+JOIN observations o ON o.id = {_HEAD_OF}
+LEFT JOIN sites s ON s.id = m.site_id
+LEFT JOIN visits v ON v.id = o.visit_id
+LEFT JOIN ratings r ON r.rowid = (SELECT max(rowid) FROM ratings WHERE observation_id = o.id)
+WHERE o.withdrawn = 0 {{filter}}
+ORDER BY m.rowid
+"""
+
+
+def _member_filter(visit_id: str | None, site_id: str | None) -> tuple[str, list]:
+    """SQL (``AND ...``) and parameters keeping the members seen on a visit / at a site."""
+    where, params = "", []
+    if visit_id is not None:
+        where += " AND m.id IN (SELECT member_id FROM observations WHERE visit_id = ?)"
+        params.append(visit_id)
+    if site_id is not None:
+        where += " AND m.site_id = ?"
+        params.append(site_id)
+    return where, params
 
 
 def _obs_row(o: Observation) -> tuple:
