@@ -834,10 +834,11 @@ class Log:
             self._ensure_stamp()
             created = now()
             dev, who = self.device_id, self.author
-            cur = self.db.conn.execute(
-                f"SELECT id, json_remove(record_json, {strip}) "
-                "FROM observations o WHERE withdrawn = 0 AND " + HEAD + " ORDER BY rowid"
-            )
+            with self._reading_records():
+                cur = self.db.conn.execute(
+                    f"SELECT id, json_remove(record_json, {strip}) "
+                    "FROM observations o WHERE withdrawn = 0 AND " + HEAD + " ORDER BY rowid"
+                )
             while heads := self._fetch_records(cur, chunk):
                 if len(done) > PARSE_CACHE_LIMIT:
                     done.clear()
@@ -877,10 +878,15 @@ class Log:
         return RerateResult(good_n, n - good_n, version, errors)
 
     def _fetch_records(self, cur: sqlite3.Cursor, n: int) -> list:
-        """The next rows of a cursor reading record JSON in SQLite; a record SQLite cannot read
-        as JSON is named as a sentence."""
+        """The next rows of a cursor reading record JSON in SQLite (see ``_reading_records``)."""
+        with self._reading_records():
+            return cur.fetchmany(n)
+
+    @contextlib.contextmanager
+    def _reading_records(self) -> Iterator[None]:
+        """A record SQLite cannot read as JSON is named as a sentence (BadRecord)."""
         try:
-            return cur.fetchall() if n < 0 else cur.fetchmany(n)
+            yield
         except sqlite3.OperationalError as exc:
             if "json" not in str(exc).lower():
                 raise
@@ -985,10 +991,11 @@ class Log:
     def _record_keys(self, where: str, params: list) -> dict[str, None]:
         """Every key of the current records (in order of first appearance), found in SQLite."""
         sql = _EXPORT_SQL.format(filter=where)
-        cur = self.db.conn.execute(
-            f"SELECT DISTINCT j.key FROM ({sql}) e, json_each(e.record_json) j", params
-        )
-        return dict.fromkeys(k for (k,) in self._fetch_records(cur, -1))
+        with self._reading_records():
+            keys = self.db.conn.execute(
+                f"SELECT DISTINCT j.key FROM ({sql}) e, json_each(e.record_json) j", params
+            ).fetchall()
+        return dict.fromkeys(k for (k,) in keys)
 
     def _export_rows(
         self, cols: list[str], where: str, params: list, chunk: int
