@@ -17,9 +17,15 @@ def add_db_option(p: argparse.ArgumentParser) -> None:
 
 
 def log_path(args: argparse.Namespace) -> Path:
+    """The log file --db names (a hub URL: its mirror file, see fieldcheck.store.hub.mirror)."""
+    from fieldcheck.store.hub.url import is_hub_url
     from fieldcheck.store.paths import default_log_path
 
     db = getattr(args, "db", None)
+    if is_hub_url(db):
+        from fieldcheck.store.hub.mirror import mirror_path
+
+        return mirror_path(db)
     return Path(db).expanduser() if db else default_log_path()
 
 
@@ -27,7 +33,13 @@ def open_log(args: argparse.Namespace, *, readonly: bool = False, must_exist: bo
     """Open the log named by --db; a missing file is a usage error when it must exist."""
     from fieldcheck.cli import UsageError
     from fieldcheck.store import Log
+    from fieldcheck.store.hub.url import is_hub_url
 
+    db = getattr(args, "db", None)
+    if is_hub_url(db):  # the office hub: its mirror, synced on open (and on close when written)
+        from fieldcheck.store.hub.mirror import open_hub_log
+
+        return open_hub_log(db, readonly=readonly)
     path = log_path(args)
     if must_exist and not path.exists():
         raise UsageError(

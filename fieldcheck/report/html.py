@@ -537,8 +537,17 @@ def _notes_photos(p: PostEntry) -> str:
         + ("" if p.attachments else " <b>Photos:</b> none attached.")
         + "</p>"
     ]
+    if p.review_state is not None:  # where the engineer's review of this revision stands
+        out.append(f"<p class='review'><b>Office review:</b> {e(p.review_state.line())}</p>")
     revs = "".join(
-        f"<li>{e(rv.kind)}, {e(rv.created_at[:10])}: {e(rv.text)}</li>" for rv in p.reviews
+        f"<li>{e(rv.kind)}, {e(rv.author)}, {e(rv.created_at[:10])}"
+        + (
+            f", action set to {e(ACTIONS[rv.action])}"
+            if getattr(rv, "action", None) is not None
+            else ""
+        )
+        + f": {e(rv.text)}</li>"
+        for rv in p.reviews
     )
     if revs:
         out.append(f"<h3>Office reviews</h3><ul>{revs}</ul>")

@@ -46,6 +46,7 @@ class PostEntry:
     reviews: list[Any] = field(default_factory=list)
     curve_h: np.ndarray | None = None  # mm
     curve_cap: np.ndarray | None = None  # N
+    review_state: Any = None  # store ReviewState: awaiting review, accepted, overridden, ...
 
     @property
     def tag(self) -> str:
@@ -362,6 +363,10 @@ def gather(
                 caps[j],
             )
         )
+
+    states = log.review_states() if hasattr(log, "review_states") else {}
+    for en in entries:
+        en.review_state = states.get(en.view.member_id)
 
     conflicts = []
     tags = {p.member_id: p.tag for p in views}

@@ -63,6 +63,7 @@ dataclasses from ``fieldcheck.store.repo``)::
         # .state "awaiting review" | "accepted" | "action overridden" | "remedy required" |
         # "conflict settled"; .by, .on, .instruction, .action, .action_label, .awaiting,
         # .line() -> "accepted: reviewed by ben, on 2026-12-02; ..."
+    log.review_state(member_id) -> ReviewState             # one post (indexed lookups)
     log.sign_offs(visit_id=None) -> list[Review]
     log.reviews(member_id=None) -> list[Review]           # every kind, oldest first
     log.propose_remedy(observation_id, kind=, description=, changes=, ratio=None) -> Proposal

@@ -1167,6 +1167,12 @@ class Log:
 
         return reviews.states(self, visit_id)
 
+    def review_state(self, member_id: str):
+        """The ReviewState of one post (see review_states)."""
+        from fieldcheck.store import reviews
+
+        return reviews.state(self, member_id)
+
     def sign_offs(self, visit_id: str | None = None) -> list[Review]:
         from fieldcheck.store import reviews
 

@@ -252,6 +252,30 @@ def states(log: Log, visit_id: str | None = None) -> dict[str, ReviewState]:
     return out
 
 
+def state(log: Log, member_id: str) -> ReviewState:
+    """The review state of one post (a few indexed lookups: for the post view)."""
+    head = log.head(member_id)
+    latest = None
+    for r in log.reviews(member_id):
+        if r.kind in _STATE_OF_KIND:
+            latest = r
+    if head is None or latest is None or latest.observation_id != head.id:
+        return ReviewState(member_id, AWAITING)
+    if member_id in _conflicted(log, member_id):
+        return ReviewState(member_id, AWAITING)
+    k = latest
+    return ReviewState(
+        member_id, _STATE_OF_KIND[k.kind], k.author, k.created_at, k.text, k.action, k
+    )
+
+
+def _conflicted(log: Log, member_id: str) -> set[str]:
+    hist = log.history(member_id)
+    parents = {o.supersedes for o in hist if o.supersedes} | {o.merges for o in hist if o.merges}
+    heads = [o for o in hist if o.id not in parents]
+    return {member_id} if len(heads) > 1 else set()
+
+
 def sign_offs(log: Log, visit_id: str | None = None) -> list[Review]:
     return [
         r

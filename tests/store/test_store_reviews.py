@@ -100,3 +100,12 @@ def test_review_command(tmp_path, shore, capsys):
     assert main(["review", "--db", str(db), "--sign-off", "first visit"]) == 0
     with Log.open(db, readonly=True) as lg:
         assert [r.kind for r in lg.reviews()] == ["require-remedy", "sign-off"]
+
+
+def test_one_post_state_matches_the_list(log, visit, shore):
+    a = log.save_post(visit.id, dict(shore, tag="A"))
+    b = log.save_post(visit.id, dict(shore, tag="B"))
+    log.review_post(a.member_id, "override", "braced since", "no-action")
+    every = log.review_states()
+    for m in (a.member_id, b.member_id):
+        assert log.review_state(m) == every[m]
