@@ -28,3 +28,16 @@ def _no_user_config(tmp_path_factory, monkeypatch):
     """Tests never read the developer's own config file or FIELDCHECK_UNITS."""
     monkeypatch.setenv("FIELDCHECK_CONFIG", str(tmp_path_factory.getbasetemp() / "no-config.toml"))
     monkeypatch.delenv("FIELDCHECK_UNITS", raising=False)
+
+
+@pytest.fixture(autouse=True)
+def office_key(tmp_path_factory, monkeypatch):
+    """Every test signs and checks bundles with one office key of its own, and keeps this
+    computer's record of devices in a folder of its own (never the user's)."""
+    from fieldcheck.store import signing
+
+    folder = tmp_path_factory.mktemp("office-key")
+    path = signing.write_keys([signing.new_key_line()], folder / "office.key")
+    monkeypatch.setenv("FIELDCHECK_OFFICE_KEY_FILE", str(path))
+    monkeypatch.setenv("FIELDCHECK_STATE_DIR", str(folder / "state"))
+    return path

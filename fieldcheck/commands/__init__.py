@@ -16,6 +16,7 @@ COMMANDS: dict[str, tuple[str, str]] = {
     "sync": ("sync", "send this log to the office and take back what is new"),
     "review": ("review", "record the office engineer's review of a post, or sign off a visit"),
     "hub-sql": ("hub_sql", "print the office hub's one-time SQL for the database administrator"),
+    "office-key": ("office_key", "make, show, add or rotate the office key that signs bundles"),
     "check": ("check", "integrity check of a survey log"),
     "rerate": ("rerate", "re-rate every current post of a log with this engine, in one pass"),
 }

@@ -45,4 +45,9 @@ def open_log(args: argparse.Namespace, *, readonly: bool = False, must_exist: bo
         raise UsageError(
             f"the survey log {path} does not exist; give an existing log with --db PATH"
         )
-    return Log.open(path, readonly=readonly)
+    import sys
+
+    log = Log.open(path, readonly=readonly)
+    for notice in log.notices:
+        print(f"fieldcheck: {notice}.", file=sys.stderr)
+    return log

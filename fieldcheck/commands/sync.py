@@ -72,6 +72,8 @@ def run(args: argparse.Namespace) -> int:
         print(f"  took back {table:<14} {n:>9,}")
     for c in summary.conflicts:
         print(f"  conflict: post {c} has two revisions made apart; review it in the office")
+    for r in summary.skipped:
+        print(f"fieldcheck: warning: {r}", file=sys.stderr)
     for r in summary.refused:
         print(f"fieldcheck: {r}", file=sys.stderr)
     return 1 if summary.refused else 0

@@ -35,6 +35,7 @@ from collections.abc import Callable, Iterator, Mapping, Sequence
 from dataclasses import dataclass
 from pathlib import Path
 
+from fieldcheck.store import signing
 from fieldcheck.store.merge import (
     SYNC_TABLES,
     MergeResult,
@@ -49,6 +50,7 @@ from fieldcheck.store.merge import (
     prepare,
 )
 from fieldcheck.store.schema import SCHEMA_VERSION
+from fieldcheck.store.signing import Keyring
 
 FORMAT = "fieldcheck-bundle"
 FORMAT_VERSION = 1
@@ -192,11 +194,14 @@ def write_bundle(
     progress: Progress | None = None,
     stage: str = "packing",
     skip_empty: bool = False,
+    ring: Keyring | None = None,
 ) -> dict | None:
     """Snapshot of the rows of the log at ``src`` that a receiver holding ``base`` lacks (all of
     them when ``base`` is None), plus its manifest, written atomically. Returns the manifest, or
-    None when ``skip_empty`` and there is nothing to send. Reads ``src`` read-only."""
+    None when ``skip_empty`` and there is nothing to send. Reads ``src`` read-only. The manifest
+    is signed with ``ring`` (default: this computer's office key, ``signing.required()``)."""
     src, out = Path(src), Path(out)
+    ring = ring or signing.required()
     conn = connect_ro(src, query_only=False)  # read-only file; only the attached output is written
     tmp = out.with_name(f".{out.name}.{os.getpid()}.part")
     tmp.unlink(missing_ok=True)
@@ -278,6 +283,7 @@ def write_bundle(
         "base": dict(sorted((base or {}).items())),
         "vector": dict(sorted(ours.items())),
     }
+    manifest = signing.sign(manifest, ring)
     mtmp = manifest_path(tmp)
     with mtmp.open("w", encoding="utf-8") as fh:
         json.dump(manifest, fh, indent=1, sort_keys=True)
@@ -333,39 +339,99 @@ def read_manifest(path: Path) -> tuple[Path, dict]:
         raise TransferRefused(
             f"the manifest of bundle {name} cannot be read ({exc}); nothing was changed"
         ) from None
+    m = parse_manifest(text, name)
+    return snap, m
+
+
+MANIFEST_MAX_BYTES = 16 << 20  # a manifest lists tables and devices: kilobytes, never megabytes
+_HEX64 = re.compile(r"^[0-9a-f]{64}$")
+
+
+def _is_int(v: object) -> bool:
+    return isinstance(v, int) and not isinstance(v, bool)
+
+
+def _manifest_problem(m: object) -> str | None:
+    """What is wrong with a manifest's shape (every field and type), or None."""
+    if not isinstance(m, dict):
+        return "not a JSON object"
+    if m.get("format") != FORMAT:
+        return "not a fieldcheck bundle manifest"
+    if not _is_int(m.get("format_version", 0)):
+        return "format_version is not a whole number"
+    for key in ("sender_device", "snapshot_sha256", "tables", "ranges", "vector"):
+        if key not in m:
+            return f"no {key}"
+    for key in ("schema_version", "snapshot_bytes"):
+        if not _is_int(m.get(key)) or m[key] < 0:
+            return f"{key} is not a whole number"
+    for key in ("sender_device", "firm_id", "created_at", "snapshot"):
+        if key in m and not isinstance(m[key], str):
+            return f"{key} is not text"
+    if not isinstance(m["snapshot_sha256"], str) or not _HEX64.match(m["snapshot_sha256"]):
+        return "snapshot_sha256 is not a sha256"
+    known = {t.name for t in SYNC_TABLES}
+    tables = m["tables"]
+    if not isinstance(tables, dict):
+        return "tables is not an object"
+    for t, v in tables.items():
+        if t not in known:
+            return f"tables names an unknown table {t[:40]!r}"
+        if not isinstance(v, dict) or not _is_int(v.get("rows")) or v["rows"] < 0:
+            return f"tables.{t} has no whole row count"
+        if not isinstance(v.get("ids_sha256"), str):
+            return f"tables.{t} has no ids digest"
+    ranges = m["ranges"]
+    if not isinstance(ranges, dict):
+        return "ranges is not an object"
+    for r in ranges.values():
+        if not (isinstance(r, list) and len(r) == 2 and all(_is_int(x) for x in r)):
+            return "a range is not two whole numbers"
+        if not 1 <= r[0] <= r[1] < 2**63:
+            return "a range is empty or out of bounds"
+    for key in ("vector", "base"):
+        v = m.get(key, {})
+        if not isinstance(v, dict) or not all(_is_int(x) and 0 <= x < 2**63 for x in v.values()):
+            return f"{key} is not an object of whole numbers"
+    if "signature" in m and not isinstance(m["signature"], dict):
+        return "signature is not an object"
+    return None
+
+
+def parse_manifest(text: str, name: str) -> dict:
+    """A manifest's JSON, checked field by field (TransferRefused, one sentence)."""
+    if len(text) > MANIFEST_MAX_BYTES:
+        raise TransferRefused(
+            f"the manifest of bundle {name} is {len(text):,} bytes, far larger than any "
+            "fieldcheck writes; it was refused, nothing was changed"
+        )
     try:
         m = json.loads(text)
-        if m.get("format") != FORMAT:
-            raise ValueError("not a fieldcheck bundle manifest")
-        for key in (
-            "sender_device",
-            "schema_version",
-            "snapshot_bytes",
-            "snapshot_sha256",
-            "tables",
-            "ranges",
-            "vector",
-        ):
-            if key not in m:
-                raise ValueError(f"no {key}")
-        int(m["schema_version"])
-    except (ValueError, TypeError, AttributeError) as exc:
+    except RecursionError:
+        problem = "nested too deeply"
+    except ValueError as exc:
+        problem = f"not JSON: {str(exc)[:60]}"
+    else:
+        problem = _manifest_problem(m)
+    if problem is not None:
         raise TransferRefused(
-            f"the manifest of bundle {name} is damaged or truncated ({exc}); copy the bundle "
+            f"the manifest of bundle {name} is damaged or truncated ({problem}); copy the bundle "
             "again, nothing was changed"
-        ) from None
-    if int(m.get("format_version", 0)) > FORMAT_VERSION:
+        )
+    if m.get("format_version", 0) > FORMAT_VERSION:
         raise TransferRefused(
             f"the bundle {name} was written by a newer fieldcheck (bundle format "
             f"{m['format_version']}); update fieldcheck and sync again, nothing was changed"
         )
-    return snap, m
+    return m
 
 
-def read_bundle(path: Path) -> Bundle:
-    """Check manifest, schema version, size and sha256 (refuse with TransferRefused)."""
+def read_bundle(path: Path, ring: Keyring | None = None) -> Bundle:
+    """Check manifest, office-key signature (``ring``, default this computer's office key),
+    schema version, size and sha256 (refuse with TransferRefused)."""
     snap, m = read_manifest(path)
     name = snap.name
+    signing.verify(m, ring or signing.required(), name)
     check_schema(int(m["schema_version"]), SCHEMA_VERSION)
     if not snap.is_file():
         raise TransferRefused(
@@ -504,18 +570,36 @@ class SqliteTarget:
         self, table: str, columns: Sequence[str], source, progress: Callable[[int], None]
     ) -> int:
         cols = ",".join(columns)
-        top = self.conn.execute(f"SELECT max(rowid) FROM {self.src}.{table}").fetchone()[0] or 0
+        src = f"{self.src}.{table}"
         inserted = 0
-        for lo in range(1, top + 1, CHUNK):
+        last = None  # chunks by the rowids present (keyset): work follows the rows, not the range
+        while True:
+            after = "" if last is None else "WHERE rowid > ? "
+            args = [] if last is None else [last]
+            row = self.conn.execute(
+                f"SELECT rowid FROM {src} {after}ORDER BY rowid LIMIT 1 OFFSET {CHUNK - 1}", args
+            ).fetchone()
+            hi = row[0] if row else None
+            where = ["rowid > ?"] * (last is not None) + ["rowid <= ?"] * (hi is not None)
+            params = [x for x in (last, hi) if x is not None]
             before = self.conn.total_changes
-            self.conn.execute(
-                f"INSERT INTO main.{table} ({cols}) SELECT {cols} FROM {self.src}.{table} "
-                "WHERE rowid BETWEEN ? AND ? ORDER BY rowid ON CONFLICT(id) DO NOTHING",
-                [lo, lo + CHUNK - 1],
+            self.conn.execute(  # upsert after SELECT needs a WHERE (SQLite's parsing rule)
+                f"INSERT INTO main.{table} ({cols}) SELECT {cols} FROM {src} "
+                f"WHERE {' AND '.join(where) or 'true'} ORDER BY rowid ON CONFLICT(id) DO NOTHING",
+                params,
             )
             inserted += self.conn.total_changes - before
-            progress(min(CHUNK, top - lo + 1))
-        return inserted
+            if hi is None:
+                progress(
+                    self.conn.execute(
+                        f"SELECT count(*) FROM {src}"
+                        + (" WHERE rowid > ?" if last is not None else ""),
+                        [last] if last is not None else [],
+                    ).fetchone()[0]
+                )
+                return inserted
+            progress(CHUNK)
+            last = hi
 
     def set_firm(self, firm_id: str) -> None:
         self.conn.execute(
@@ -560,6 +644,22 @@ def begin_immediate(conn: sqlite3.Connection, wait_s: float = LOCK_WAIT_S) -> No
             delay = min(delay * 2, 1.0)
 
 
+def _refuse_own_device(db_path: Path, bundle: Bundle, own_device: str | None) -> None:
+    """A bundle may not carry rows of the receiver's own device: only the receiver writes them
+    (a restored or copied log takes a new device id before it writes)."""
+    conn = connect_ro(db_path)
+    try:
+        mine = {own_device, read_meta(conn).get("device_id")} - {None, ""}
+    finally:
+        conn.close()
+    claimed = sorted(mine & set(bundle.manifest["ranges"]))
+    if claimed:
+        raise TransferRefused(
+            f"the bundle {bundle.snapshot.name} carries rows in the name of this log's own device "
+            f"({claimed[0][:36]}), which only this log writes; it was refused, nothing was changed"
+        )
+
+
 def import_into(
     db_path: Path,
     bundle: Bundle,
@@ -567,11 +667,13 @@ def import_into(
     office: bool,
     progress: Progress | None = None,
     stage: str = "merging",
+    own_device: str | None = None,
 ) -> MergeResult:
     """Take a bundle (``read_bundle`` done) into the log file at ``db_path``: rows verified and
     merge checks made on read-only connections, then one write transaction."""
     verify_rows(bundle)
     header = bundle.header
+    _refuse_own_device(db_path, bundle, own_device)
     snap_uri = _uri(bundle.snapshot, "ro")
     # 1. checks that need the log: read-only connection, snapshot attached read-only
     ro = connect_ro(db_path)

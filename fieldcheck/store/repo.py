@@ -346,6 +346,7 @@ class Log:
         self._lock = threading.RLock()
         self.backup_path: Path | None = None  # set when open() upgraded the file
         self.lock_wait_s = lock_wait_s()
+        self.notices: list[str] = []  # sentences for the user from opening (e.g. a new device)
 
     # ---- opening
 
@@ -414,6 +415,9 @@ class Log:
                 meta = _read_meta(db)
             dev = device or meta.get("device_id") or "unknown-device"
             who = author or meta.get("author") or _default_author()
+            notices: list[str] = []
+            if not readonly and device is None:
+                dev = _own_device(db, path, dev, notices)
         except sqlite3.DatabaseError as exc:
             db.close()
             raise damaged(path, exc) from exc
@@ -422,10 +426,16 @@ class Log:
             raise
         log = cls(db, path, dev, who, readonly)
         log.backup_path = backup
+        log.notices = notices if not readonly else []
         return log
 
     def close(self) -> None:
         with self._lock:
+            if not self.readonly:
+                with contextlib.suppress(Exception):
+                    from fieldcheck.store import devices
+
+                    devices.remember(self.device_id, self.path, self._seq_now())
             with contextlib.suppress(sqlite3.Error):
                 if not self.readonly:  # best effort: never wait on another writer to close
                     self.db.execute("PRAGMA busy_timeout = 0")
@@ -504,6 +514,12 @@ class Log:
             raise damaged(self.path, exc) from exc
         finally:
             conn.execute(f"PRAGMA busy_timeout = {int(BUSY_TIMEOUT_S * 1000)}")
+
+    def _seq_now(self) -> int:
+        row = self.db.conn.execute(
+            "SELECT value FROM meta WHERE key = ?", [f"seq:{self.device_id}"]
+        ).fetchone()
+        return int(row[0]) if row else 0
 
     def _seqs(self, n: int) -> range:
         """Allocate n per-device sequence numbers inside the current transaction."""
@@ -1566,6 +1582,34 @@ def _ensure_meta(db: Database) -> dict[str, str]:
         )
         meta["schema_version"] = str(SCHEMA_VERSION)
     return meta
+
+
+def _own_device(db: Database, path: Path, dev: str, notices: list[str]) -> str:
+    """The device id this log writes as: a new one when it was restored or copied (see
+    ``fieldcheck.store.devices``), with one sentence in ``notices``."""
+    from fieldcheck.store import devices
+
+    row = db.conn.execute("SELECT value FROM meta WHERE key = ?", [f"seq:{dev}"]).fetchone()
+    seq = int(row[0]) if row else 0
+    why = devices.why_new_device(dev, path, seq)
+    if why is None:
+        devices.remember(dev, path, seq)
+        return dev
+    new = new_id()
+    former = json.loads(_read_meta(db).get("former_device_ids", "[]"))
+    with db.atomic():
+        db.execute("INSERT OR REPLACE INTO meta VALUES ('device_id', ?)", [new])
+        db.execute(
+            "INSERT OR REPLACE INTO meta VALUES ('former_device_ids', ?)",
+            [json.dumps([*former, dev])],
+        )
+    devices.remember(new, path, 0)
+    notices.append(
+        f"the survey log {path} writes as a new device from now on ({new[:8]}..., was "
+        f"{dev[:8]}...) because {why}; its earlier posts keep their place and nothing clashes "
+        "when it syncs"
+    )
+    return new
 
 
 def _check_migrations(db: Database, path: Path) -> None:

@@ -27,12 +27,13 @@ from __future__ import annotations
 import contextlib
 import json
 import os
-import tempfile
+import shutil
 import time
 from dataclasses import dataclass, field
 from pathlib import Path
 
 from fieldcheck.store import bundle as bf
+from fieldcheck.store import signing
 from fieldcheck.store.merge import (
     MergeResult,
     Progress,
@@ -95,6 +96,7 @@ class SyncSummary:
     )  # open, in the office (file) or here (folder)
     new_conflicts: list[str] = field(default_factory=list)
     refused: list[str] = field(default_factory=list)
+    skipped: list[str] = field(default_factory=list)  # files in a shared folder left alone
     firm_id: str = ""
     seconds: float = 0.0
     bundles_written: list[str] = field(default_factory=list)
@@ -128,6 +130,8 @@ class SyncSummary:
             )
         if self.refused:
             s += f"; {len(self.refused)} bundles refused"
+        if self.skipped:
+            s += f"; {len(self.skipped)} files in the folder skipped (see the warnings)"
         return s + "."
 
 
@@ -163,7 +167,7 @@ def export_bundle(
     if out.is_dir():
         out = out / f"{log.device_id}-{int(time.time())}{bf.SUFFIX}"
     _checkpoint(log)
-    bf.write_bundle(Path(log.path), out, base=since, progress=progress)
+    bf.write_bundle(Path(log.path), out, base=since, progress=progress, ring=signing.required())
     return out
 
 
@@ -173,9 +177,11 @@ def import_bundle(log, bundle_path, progress: Progress | None = None) -> ImportS
         raise TransferRefused(
             f"the survey log {log.path} was opened read-only; nothing was changed"
         )
-    b = bf.read_bundle(Path(bundle_path))
+    b = bf.read_bundle(Path(bundle_path), signing.required())
     with _locked(log):
-        res = bf.import_into(Path(log.path), b, office=_is_office(log), progress=progress)
+        res = bf.import_into(
+            Path(log.path), b, office=_is_office(log), progress=progress, own_device=log.device_id
+        )
     return _import_summary(b, res)
 
 
@@ -212,6 +218,46 @@ def _checkpoint(log) -> None:
     with contextlib.suppress(Exception), _locked(log):
         if not getattr(log, "readonly", False):
             log.db.execute("PRAGMA wal_checkpoint(PASSIVE)")
+
+
+WORK_PREFIX = ".fieldcheck-sync-"
+
+
+def _pid_alive(pid: int) -> bool:
+    try:
+        os.kill(pid, 0)
+    except ProcessLookupError:
+        return False
+    except OSError:
+        return True  # another user's process: alive
+    return True
+
+
+@contextlib.contextmanager
+def _work_folder(field_path: Path):
+    """The temporary folder of one sync, beside the field log (never in $TMPDIR): a killed sync
+    leaves it there, and the next sync of that log removes it (its process is gone)."""
+    parent = Path(field_path).resolve().parent
+    for old in parent.glob(f"{WORK_PREFIX}*"):
+        pid = old.name.removeprefix(WORK_PREFIX)
+        if pid.isdigit() and not _pid_alive(int(pid)):
+            shutil.rmtree(old, ignore_errors=True)
+    work = parent / f"{WORK_PREFIX}{os.getpid()}"
+    shutil.rmtree(work, ignore_errors=True)
+    work.mkdir()
+    try:
+        yield work
+    finally:
+        shutil.rmtree(work, ignore_errors=True)
+
+
+def _remove_stale_parts(folder: Path, mine: str) -> None:
+    """Half-written bundles of this device (``.NAME.PID.part``) whose process is gone."""
+    for part in folder.glob(f".{mine}-*.part*"):
+        pid = part.name.removesuffix(".json").removesuffix(".part").rsplit(".", 1)[-1]
+        if pid.isdigit() and not _pid_alive(int(pid)):
+            with contextlib.suppress(OSError):
+                part.unlink()
 
 
 def _vector_of(path: Path) -> tuple[Vector, dict[str, str]]:
@@ -275,16 +321,22 @@ def _sync_file(log, office: Path, progress: Progress | None) -> SyncSummary:
     summary = SyncSummary(str(office), "file")
     field_path = Path(log.path)
     _checkpoint(log)
-    with tempfile.TemporaryDirectory(prefix="fieldcheck-sync-") as tmp:
+    ring = signing.Keyring.ephemeral()  # these bundles never leave this process
+    with _work_folder(field_path) as tmp:
         # 1. field -> office: every row the office lacks
         office_vec, _ = _vector_of(office)
         out = Path(tmp) / f"to-office{bf.SUFFIX}"
         with _locked(log):
             m = bf.write_bundle(
-                field_path, out, base=office_vec, skip_empty=True, progress=_stage(progress, "send")
+                field_path,
+                out,
+                base=office_vec,
+                skip_empty=True,
+                progress=_stage(progress, "send"),
+                ring=ring,
             )
         if m is not None:
-            b = bf.read_bundle(out)
+            b = bf.read_bundle(out, ring)
             res = bf.import_into(office, b, office=True, progress=_stage(progress, "send"))
             summary.sent = res.inserted
             summary.new_conflicts = res.new_conflicts
@@ -292,13 +344,22 @@ def _sync_file(log, office: Path, progress: Progress | None) -> SyncSummary:
         field_vec, _ = _vector_of(field_path)
         back = Path(tmp) / f"from-office{bf.SUFFIX}"
         m = bf.write_bundle(
-            office, back, base=field_vec, skip_empty=True, progress=_stage(progress, "receive")
+            office,
+            back,
+            base=field_vec,
+            skip_empty=True,
+            progress=_stage(progress, "receive"),
+            ring=ring,
         )
         if m is not None:
-            b = bf.read_bundle(back)
+            b = bf.read_bundle(back, ring)
             with _locked(log):
                 res = bf.import_into(
-                    field_path, b, office=False, progress=_stage(progress, "receive")
+                    field_path,
+                    b,
+                    office=False,
+                    progress=_stage(progress, "receive"),
+                    own_device=log.device_id,
                 )
             summary.received = res.inserted
     conn = bf.connect_ro(office)
@@ -317,26 +378,41 @@ def _sync_folder(log, folder: Path, progress: Progress | None) -> SyncSummary:
     summary = SyncSummary(str(folder), "folder")
     mine = log.device_id
     field_path = Path(log.path)
+    ring = signing.required()
+    _remove_stale_parts(folder, mine)
     own: list[tuple[Path, dict]] = []
     peers: list[tuple[Path, dict]] = []
+    have, _ = _vector_of(field_path)
     for mpath in sorted(folder.glob(f"*{bf.SUFFIX}.json")):
-        try:
+        try:  # a junk, unsigned or forged file is skipped with a warning, never stops the sync
             snap, m = bf.read_manifest(mpath)
+            signing.verify(m, ring, snap.name)
         except TransferRefused as exc:
-            summary.refused.append(str(exc))
+            summary.skipped.append(str(exc))
             continue
-        (own if m.get("sender_device") == mine else peers).append((snap, m))
+        if m["sender_device"] == mine:
+            own.append((snap, m))
+        elif int(m["vector"].get(mine, 0)) > int(have.get(mine, 0)):
+            summary.skipped.append(
+                f"the bundle {snap.name} says its sender holds rows of this log's device that "
+                "this log never wrote (a log restored or copied under this device id); skipped"
+            )
+        else:
+            peers.append((snap, m))
     peers.sort(key=lambda sm: (str(sm[1].get("created_at", "")), sum(sm[1]["vector"].values())))
     before_conflicts = set(log.conflicts())
-    have, _ = _vector_of(field_path)
     for snap, m in peers:
         if covered(have, m["ranges"]):
             continue
         try:
-            b = bf.read_bundle(snap)
+            b = bf.read_bundle(snap, ring)
             with _locked(log):
                 res = bf.import_into(
-                    field_path, b, office=False, progress=_stage(progress, "receive")
+                    field_path,
+                    b,
+                    office=False,
+                    progress=_stage(progress, "receive"),
+                    own_device=log.device_id,
                 )
         except TransferRefused as exc:
             summary.refused.append(str(exc))
@@ -365,7 +441,9 @@ def _sync_folder(log, folder: Path, progress: Progress | None) -> SyncSummary:
         name = f"{mine}-{sum(ours.values()):012d}-{os.getpid()}{bf.SUFFIX}"
         out = folder / name
         with _locked(log):
-            m = bf.write_bundle(field_path, out, base=base, progress=_stage(progress, "send"))
+            m = bf.write_bundle(
+                field_path, out, base=base, progress=_stage(progress, "send"), ring=ring
+            )
         summary.sent = {t: int(v["rows"]) for t, v in m["tables"].items() if int(v["rows"])}
         summary.bundles_written.append(name)
         for snap, _ in own:  # our older bundles: the new one carries everything they did

@@ -3,6 +3,7 @@ and a canonical dump of the rows a log holds (sorted by id, bookkeeping left out
 
 from __future__ import annotations
 
+import contextlib
 import hashlib
 import sqlite3
 from pathlib import Path
@@ -24,10 +25,8 @@ def make_log(tmp_path):
 
     yield make
     for lg in opened:
-        try:
+        with contextlib.suppress(Exception):
             lg.close()
-        except Exception:
-            pass
 
 
 def dump(path: Path, skip_devices: tuple[str, ...] = ()) -> list[tuple]:

@@ -55,8 +55,11 @@ def _timed_sync(field: Path, office: Path) -> float:
 
 
 @pytest.mark.slow
-def test_killed_sync_rerun_loses_and_duplicates_nothing(tmp_path, shore, canon):
+def test_killed_sync_rerun_loses_and_duplicates_nothing(tmp_path, shore, canon, monkeypatch):
     rng = random.Random(8)  # fixed seed: the same fractions on every run
+    tmpdir = tmp_path / "tmpdir"  # the syncs' own $TMPDIR, to see what they leave there
+    tmpdir.mkdir()
+    monkeypatch.setenv("TMPDIR", str(tmpdir))
     field, office = tmp_path / "field.db", tmp_path / "office.db"
     with Log.open(office, author="office", device="dev-office") as off:
         off.add_site("Office yard")  # something to send back, too
@@ -90,6 +93,9 @@ def test_killed_sync_rerun_loses_and_duplicates_nothing(tmp_path, shore, canon):
             assert sync(lg, office).moved == 0
         # both logs hold exactly the same rows: nothing lost, nothing twice (ids are keys)
         assert canon(field) == canon(office)
+        # the killed sync's temporaries were removed by the rerun, none went to $TMPDIR
+        assert not list(tmp_path.glob(".fieldcheck-sync-*"))
+        assert not list(tmpdir.glob("fieldcheck-*"))
         assert time.monotonic() - t0 < 120
     with Log.open(office, readonly=True) as off:
         n = off.db.conn.execute("SELECT count(*) FROM observations").fetchone()[0]

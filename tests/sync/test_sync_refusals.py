@@ -27,6 +27,14 @@ def setup(make_log, shore, tmp_path):
     return a, office, bundle
 
 
+def _resigned(m: dict) -> dict:
+    """Signed again with the office key: what only someone holding the key can do, so the
+    checks behind the signature are tested too."""
+    from fieldcheck.store import signing
+
+    return signing.sign(m, signing.required())
+
+
 def _refused(office, bundle, state, match):
     before = state(office)
     with Log.open(office) as off, pytest.raises(TransferRefused, match=match) as exc:
@@ -66,7 +74,7 @@ def test_tampered_rows_with_checksum_rewritten(setup, state, tmp_path):
     m = json.loads((tmp_path / "a.fcbundle.json").read_text())
     m["snapshot_sha256"] = hashlib.sha256(bundle.read_bytes()).hexdigest()
     m["snapshot_bytes"] = bundle.stat().st_size
-    (tmp_path / "a.fcbundle.json").write_text(json.dumps(m))
+    (tmp_path / "a.fcbundle.json").write_text(json.dumps(_resigned(m)))
     _refused(office, bundle, state, "does not match its manifest|outside the device ranges")
 
 
@@ -85,7 +93,7 @@ def test_same_id_other_content(setup, state, tmp_path):
     m = json.loads(mp.read_text())
     m["snapshot_sha256"] = hashlib.sha256(full.read_bytes()).hexdigest()
     m["snapshot_bytes"] = full.stat().st_size
-    mp.write_text(json.dumps(m))
+    mp.write_text(json.dumps(_resigned(m)))
     _refused(office, full, state, "other content")
 
 
@@ -114,7 +122,7 @@ def test_newer_schema(setup, state, tmp_path):
     mp = tmp_path / "a.fcbundle.json"
     m = json.loads(mp.read_text())
     m["schema_version"] = 99
-    mp.write_text(json.dumps(m))
+    mp.write_text(json.dumps(_resigned(m)))
     _refused(office, bundle, state, "newer fieldcheck")
 
 
