@@ -14,6 +14,10 @@ COMMANDS: dict[str, tuple[str, str]] = {
     "export": ("export", "write a survey log as CSV or JSON (or a sync bundle)"),
     "report": ("report", "write the survey report as one self-contained HTML file"),
     "sync": ("sync", "send this log to the office and take back what is new"),
+    "attach": (
+        "attach",
+        "attach a photo with a caption to a post (carried by sync, shown in reports)",
+    ),
     "review": ("review", "record the office engineer's review of a post, or sign off a visit"),
     "hub-sql": ("hub_sql", "print the office hub's one-time SQL for the database administrator"),
     "office-key": ("office_key", "make, show, add or rotate the office key that signs bundles"),

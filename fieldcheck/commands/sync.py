@@ -56,16 +56,22 @@ class ProgressBar:
 
 
 def run(args: argparse.Namespace) -> int:
+    from fieldcheck.store.photos import sync_photos
     from fieldcheck.store.sync import sync
 
     bar = None if args.quiet or not sys.stderr.isatty() else ProgressBar()
     with open_log(args, must_exist=True) as log:
         try:
             summary = sync(log, args.office, progress=bar)
+            photos = sync_photos(log, args.office, progress=bar)
         finally:
             if bar is not None:
                 bar.close()
     print(summary.sentence())
+    if photos.sent or photos.received or photos.refused:
+        print(photos.sentence())
+    for r in photos.refused:
+        print(f"fieldcheck: {r}", file=sys.stderr)
     for table, n in summary.sent.items():
         print(f"  sent      {table:<14} {n:>9,}")
     for table, n in summary.received.items():
@@ -76,7 +82,7 @@ def run(args: argparse.Namespace) -> int:
         print(f"fieldcheck: warning: {r}", file=sys.stderr)
     for r in summary.refused:
         print(f"fieldcheck: {r}", file=sys.stderr)
-    return 1 if summary.refused else 0
+    return 1 if summary.refused or photos.refused else 0
 
 
 def run_export_bundle(args: argparse.Namespace) -> int:

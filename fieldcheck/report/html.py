@@ -25,6 +25,7 @@ from fieldcheck.engine.cautions import CAUTIONS
 from fieldcheck.engine.rating import ACTION_TEXT, ACTIONS, DUE_DAYS
 from fieldcheck.report.model import PostEntry, ReportData, ReportInfo, gather, visit_date
 from fieldcheck.report.notation import notation, sig, symbols
+from fieldcheck.report.photos import data_uri
 from fieldcheck.report.style import stylesheet
 from fieldcheck.report.svg import capacity_plot, end_sketch
 from fieldcheck.units import format_force, format_length
@@ -530,7 +531,27 @@ def _remedies(d: ReportData, p: PostEntry) -> str:
     )
 
 
-def _notes_photos(p: PostEntry) -> str:
+def _photo(d: ReportData, a) -> str:
+    """One attached photo: a reduced copy when its file is there and its sha256 is the recorded
+    one, else a sentence saying why not; the caption and the sha256 either way."""
+    f = d.photo_files.get(a.id)
+    uri = data_uri(f) if f is not None else None
+    if uri is not None:
+        img = f'<img src="{uri}" alt="{e(a.caption or "photo")}">'
+    elif f is None:
+        img = (
+            "<p class='small'>\u26a0 Not shown: the file is not with this log, or it changed "
+            "since it was attached (its sha256 differs).</p>"
+        )
+    else:
+        img = "<p class='small'>\u26a0 Not shown: not an image this report can read.</p>"
+    return (
+        f'<figure class="photo">{img}<figcaption>{e(a.caption) or "no caption"}'
+        f'<br><span class="hash">sha256 {e(a.sha256)}</span></figcaption></figure>'
+    )
+
+
+def _notes_photos(d: ReportData, p: PostEntry) -> str:
     note = p.view.record.get("notes")
     out = [
         f"<p><b>Notes:</b> {e(note) if note else 'none recorded'}."
@@ -552,12 +573,7 @@ def _notes_photos(p: PostEntry) -> str:
     if revs:
         out.append(f"<h3>Office reviews</h3><ul>{revs}</ul>")
     if p.attachments:
-        rows = "".join(
-            f"<tr><td>{e(Path(a.path).name)}</td><td>{e(a.caption)}</td>"
-            f"<td class='hash'>{e(a.sha256)}</td></tr>"
-            for a in p.attachments
-        )
-        out.append("<h3>Photos</h3>" + table(["File", "Caption", "sha256"], rows))
+        out.append("<h3>Photos</h3><div>" + "".join(_photo(d, a) for a in p.attachments) + "</div>")
     return "".join(out)
 
 
@@ -663,7 +679,7 @@ def _post(d: ReportData, p: PostEntry) -> str:
         return (
             head + "</div><div class='alert'><b>Not rated:</b> the record as typed has errors."
             f"<ul>{errs}</ul></div><h3>Inputs as measured</h3>{_record_table(p.view.record)}"
-            f"{_notes_photos(p)}{_stored(p, d.units)}</section>"
+            f"{_notes_photos(d, p)}{_stored(p, d.units)}</section>"
         )
     r, j, u = d.rating, p.j, d.units
     dem = float(r.demand_n[j])
@@ -710,7 +726,7 @@ def _post(d: ReportData, p: PostEntry) -> str:
         + _remedies(d, p)
         + "<h3>Working</h3>"
         + table(["#", "Step", "Value", "Clause"], steps, "steps")
-        + _notes_photos(p)
+        + _notes_photos(d, p)
         + f"{_stored(p, d.units)}</section>"
     )
 

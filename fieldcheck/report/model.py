@@ -139,6 +139,7 @@ class ReportData:
     info: ReportInfo = field(default_factory=ReportInfo)
     review_states: dict[str, Any] = field(default_factory=dict)  # member id -> ReviewState
     remedy_states: dict[str, Any] = field(default_factory=dict)  # member id -> RemedyState
+    photo_files: dict[str, Any] = field(default_factory=dict)  # attachment id -> Path | None
 
     @property
     def rated(self) -> list[PostEntry]:
@@ -312,6 +313,8 @@ def gather(
     for a in log.attachments():
         if a.member_id in members:
             att.setdefault(a.member_id, []).append(a)
+    find = getattr(log, "photo_file", None)
+    files = {a.id: (find(a) if find is not None else None) for lst in att.values() for a in lst}
     rev: dict[str, list] = {}
     visit_ids = {v.id for v in visits}
     signoffs = []
@@ -392,6 +395,7 @@ def gather(
         signoffs,
         review_states=_states(log, "review_states", members),
         remedy_states=_states(log, "remedy_states", members),
+        photo_files=files,
     )
 
 

@@ -59,9 +59,10 @@ th { background: #eee; } td.num, th.num { text-align: right; font-variant-numeri
 nav ol { columns: 2; }
 .editions { columns: 2; margin: 0.3em 0; } .editions li { break-inside: avoid; }
 .client p, .client li { font-size: 11.5pt; }
-.photo { display: inline-block; margin: 0 0.8em 0.6em 0; vertical-align: top; max-width: 100%; }
-.photo img { max-width: 100%; height: auto; border: 1px solid #999; }
-.photo figcaption { font-size: 9pt; max-width: 20em; }
+.photo { display: inline-block; margin: 0 0.8em 0.6em 0; vertical-align: top; width: 22em;
+         max-width: 100%; }
+.photo img { width: 100%; height: auto; border: 1px solid #999; }
+.photo figcaption { font-size: 9pt; }
 @media (max-width: 700px) {
   body { padding: 0.6em; font-size: 10pt; }
   .duo, .duo.even { display: block; }

@@ -48,6 +48,9 @@ dataclasses from ``fieldcheck.store.repo``)::
     log.export_rows(visit_id=None) -> ExportTable(columns, rows)   # record columns + rating columns
 
     log.attach(observation_id, photo_path, caption="") -> Attachment   # path + sha256 + size
+    log.attach_photo(observation_id, photo, caption="") -> Attachment  # copied into the log's
+        # photo folder (<stem>-photos/<sha256>.<ext>) first, so sync carries it (store/photos.py)
+    log.photo_file(attachment) -> Path | None   # the file, only when its sha256 is the recorded one
     log.attachments(member_id=None) -> list[Attachment]
     log.check_attachments() -> list[AttachmentProblem]
         # .problem "missing" | "changed", .sentence()

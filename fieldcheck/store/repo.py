@@ -1077,6 +1077,19 @@ class Log:
             )
         return a
 
+    def attach_photo(self, observation_id: str, photo: Path | str, caption: str = "") -> Attachment:
+        """Copy a photo into this log's photo folder (named by its sha256) and record it; the
+        interface and `fieldcheck attach` call this (fieldcheck.store.photos)."""
+        from fieldcheck.store.photos import attach_photo
+
+        return attach_photo(self, observation_id, photo, caption)
+
+    def photo_file(self, attachment: Attachment) -> Path | None:
+        """The photo's file if its sha256 is the recorded one (photo folder, else its path)."""
+        from fieldcheck.store.photos import photo_file
+
+        return photo_file(self, attachment)
+
     def attachments(self, member_id: str | None = None) -> list[Attachment]:
         if member_id is None:
             rows = self.db.query("SELECT * FROM attachments ORDER BY rowid")
