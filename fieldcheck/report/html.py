@@ -558,10 +558,8 @@ def _notes_photos(d: ReportData, p: PostEntry) -> str:
         + ("" if p.attachments else " <b>Photos:</b> none attached.")
         + "</p>"
     ]
-    if p.review_state is not None:  # where the engineer's review of this revision stands
-        out.append(f"<p class='review'><b>Office review:</b> {e(p.review_state.line())}</p>")
     revs = "".join(
-        f"<li>{e(rv.kind)}, {e(rv.author)}, {e(rv.created_at[:10])}"
+        f"<li>{e(rv.kind)}, {e(rv.created_at[:10])}"
         + (
             f", action set to {e(ACTIONS[rv.action])}"
             if getattr(rv, "action", None) is not None
