@@ -10,7 +10,6 @@ import time
 
 import numpy as np
 
-import fieldcheck.engine  # noqa: F401  (registers the ground and remedies hooks)
 from fieldcheck.engine.batch import make_batch
 from fieldcheck.engine.rating import rate
 from fieldcheck.engine.remedies import remedies

@@ -7,6 +7,7 @@ import csv
 import json
 import sys
 
+from fieldcheck.engine import explain
 from fieldcheck.records.columns import COLUMNS
 
 DESCRIPTION = (
@@ -87,17 +88,17 @@ def run(args: argparse.Namespace) -> int:
     from fieldcheck.engine.rating import rate
 
     rating = rate(parsed.batch)
-    summary = rating.summary(0)
+    summary = explain.summary(rating, 0)
     summary["material"] = parsed.meta[0].get("_material", "")
     if args.json:
         if args.working:
-            summary["working"] = [s.__dict__ for s in rating.working(0)]
+            summary["working"] = [s.__dict__ for s in explain.working(rating, 0)]
         print(json.dumps(summary, indent=2, ensure_ascii=False))
         return 0
     print(_text(summary, args.units_here or args.units or "us"))
     if args.working:
         print("\nWorking:")
-        for s in rating.working(0):
+        for s in explain.working(rating, 0):
             clause = f"   [{s.clause}]" if s.clause else ""
             print(f"  {s.label}: {s.value}{clause}")
     return 0

@@ -19,6 +19,8 @@ from dataclasses import dataclass, field, fields
 
 import numpy as np
 
+from fieldcheck.engine.blocks import broadcast, constant
+
 # End conditions, per end (NDS 2018 Appendix G, Table G1 cases).
 PINNED, FIXED, FREE, GUIDED = 0, 1, 2, 3
 END_NAMES = ("pinned", "fixed", "free", "guided")
@@ -217,10 +219,10 @@ class PostBatch:
         m = None  # the new length, found from the first field holding one value
         for name in FIELD_NAMES:
             a = getattr(self, name)
-            if a.strides == (0,) and a.size:
+            if broadcast(a):
                 if m is None:
                     m = len(range(*idx.indices(a.size))) if isinstance(idx, slice) else len(a[idx])
-                out[name] = _constant(a[0], m)
+                out[name] = constant(a[0], m)
             else:
                 out[name] = a[idx]
         return PostBatch(**out)
@@ -243,52 +245,9 @@ class PostBatch:
         )
 
 
-_SHARED: dict[tuple, np.ndarray] = {}  # read-only arrays of one value, by (value, n, kind)
-_SHARED_IDS: set[int] = set()  # their ids (kept alive by the dict, so the ids are stable)
-
-
-def _shared(value, n: int, contiguous: bool) -> np.ndarray:
-    """n copies of one value, read-only and cached: blocks of one size reuse them."""
-    v = np.asarray(value)
-    key = (v.dtype.str, v.tobytes(), n, contiguous)
-    arr = _SHARED.get(key)
-    if arr is None:
-        if len(_SHARED) > 4096:  # many odd lengths: start again rather than grow
-            _SHARED.clear()
-            _SHARED_IDS.clear()
-        if contiguous:
-            arr = np.full(n, v, dtype=v.dtype)
-            arr.flags.writeable = False
-        else:
-            arr = np.broadcast_to(v, (n,))
-        arr = _SHARED.setdefault(key, arr)
-        _SHARED_IDS.add(id(arr))
-    return arr
-
-
-def _constant(value: np.generic, n: int) -> np.ndarray:
-    """A block's part of a field holding one value: contiguous (numpy's fast loops want it)."""
-    return _shared(value, n, contiguous=True)
-
-
-def filled(value, n: int) -> np.ndarray:
-    """n copies of one value as a broadcast view (np.broadcast_to is slow to call for every
-    block). For results that do not apply anywhere in a block (NaN, 0, False, a factor 1.0)."""
-    return _shared(value, n, contiguous=False)
-
-
-def distinct(a: np.ndarray) -> np.ndarray:
-    """``a``, or just its first element when every element is known to be the same (a field
-    nobody gave, or a filled result): block-level tests such as ``distinct(a).any()`` then
-    look at one value instead of a block of them."""
-    if a.size and (a.strides == (0,) or id(a) in _SHARED_IDS):
-        return a[:1]
-    return a
-
-
 FIELD_NAMES = tuple(f.name for f in fields(PostBatch))
-_DEFAULTS = {f.name: f.metadata["default"] for f in fields(PostBatch)}
-_DTYPES = {f.name: f.default_factory().dtype for f in fields(PostBatch)}  # type: ignore[misc]
+DEFAULTS = {f.name: f.metadata["default"] for f in fields(PostBatch)}
+DTYPES = {f.name: f.default_factory().dtype for f in fields(PostBatch)}  # type: ignore[misc]
 
 
 def make_batch(n: int | None = None, **values) -> PostBatch:
@@ -304,8 +263,8 @@ def make_batch(n: int | None = None, **values) -> PostBatch:
         n = max(sizes) if sizes else 1
     out = {}
     for name in FIELD_NAMES:
-        v = values.get(name, _DEFAULTS[name])
-        arr = np.asarray(v, dtype=_DTYPES[name])
+        v = values.get(name, DEFAULTS[name])
+        arr = np.asarray(v, dtype=DTYPES[name])
         if arr.ndim == 0:
             # one value for every post: a read-only broadcast view, not n copies. It costs no
             # memory, and a block reading a field nobody gave reads one cached value.

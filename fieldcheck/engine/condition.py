@@ -1,9 +1,9 @@
 """The post as found: defects and damage -> residual section, strength ratios, eccentricity, flags.
 
-Pure numpy on PostBatch arrays (SI: mm, N, MPa), no per-post loops. rating.rate() calls
-:func:`residual` before its column checks and :func:`add_checks` after them; the flags, the
-escalations of the action and the working lines register themselves when this module is imported
-(rating.py imports it).
+Pure numpy on PostBatch arrays (SI: mm, N, MPa), no per-post loops. The column stage calls
+:func:`residual` for the section it checks; the ``CONDITION`` stage adds the eccentric and
+net-section checks (:func:`add_checks`), raises the condition's flags (:func:`condition_flags`)
+and explains them (:func:`summary_keys`, :func:`working_lines`).
 
 Model (field-practice.md §1.1, §1.13; column-design.md §4):
 
@@ -34,11 +34,13 @@ from __future__ import annotations
 import numpy as np
 
 from fieldcheck.engine import nds
-from fieldcheck.engine import rating as _r
-from fieldcheck.engine.batch import EC5, LRFD, PostBatch, distinct, filled
+from fieldcheck.engine.batch import EC5, LRFD, PostBatch
+from fieldcheck.engine.blocks import at_least, distinct, filled, memo
 from fieldcheck.engine.customary import IN
 from fieldcheck.engine.refdata import table
+from fieldcheck.engine.result import Check, Step
 from fieldcheck.engine.sections import second_moments
+from fieldcheck.engine.stage import Flag, FlagSet, Stage
 
 # ---- codes used in PostBatch condition fields ----------------------------------------------
 ZONE_NAMES = ("full", "middle", "top", "bottom")  # where along the height a loss lies
@@ -331,13 +333,14 @@ LOSS_FIELDS = tuple(f"{k}_{f}_mm" for k in ("decay", "char") for f in DEPTH_FIEL
 
 def _block_has_loss(b: PostBatch) -> bool:
     """Any section loss or through split in this block (NaN and 0 mean none); kept on the batch."""
-    memo = b.__dict__.get("_has_loss")
-    if memo is None:
-        memo = any((distinct(getattr(b, f)) > 0).any() for f in LOSS_FIELDS) or bool(
-            (distinct(b.split) >= SPLIT_THROUGH).any()
-        )
-        b.__dict__["_has_loss"] = memo
-    return memo
+    return memo(
+        b,
+        "_has_loss",
+        lambda: (
+            any((distinct(getattr(b, f)) > 0).any() for f in LOSS_FIELDS)
+            or bool((distinct(b.split) >= SPLIT_THROUGH).any())
+        ),
+    )
 
 
 def _sound(b: PostBatch) -> dict[str, np.ndarray]:
@@ -732,131 +735,143 @@ def add_checks(b: PostBatch, checks: dict, values: dict) -> None:
 # =============================================================================================
 # Flags, escalations, condition level
 # =============================================================================================
-F_DECAY_RISK = _r.new_flag(
-    18,
-    "Moisture 20 % or more: decay risk. Probe for decay and find the water source "
-    "(judgement; most decay fungi need about 20 % MC).",
+# =============================================================================================
+# Flags (in this order in the flag table), escalations, condition level
+# =============================================================================================
+# escalations: make safe now for what moves or has no section left; repair for decay found;
+# monitor for a decay risk or a split (judgement, common practice, no source)
+FLAGS = (
+    Flag(
+        "decay_risk",
+        "Moisture 20 % or more: decay risk. Probe for decay and find the water source "
+        "(judgement; most decay fungi need about 20 % MC).",
+        escalates_to=1,
+    ),
+    Flag(
+        "saturated",
+        "Moisture 28 % or more: near fibre saturation the meter reads unreliably; treat "
+        "the post as wet and probe it thoroughly (judgement).",
+        escalates_to=1,
+    ),
+    Flag(
+        "section_loss",
+        "Section loss deducted: the checks use the residual section (decayed, insect-"
+        "damaged and charred wood taken as having no strength).",
+    ),
+    Flag(
+        "decay_found",
+        "Decay or insect damage found: repair or brace before the due date and stop the "
+        "water getting in; hidden decay may reach further than probed.",
+        escalates_to=2,
+    ),
+    Flag(
+        "sr_applied",
+        "Knots or slope of grain reduce Fc and Fb by the lowest strength ratio "
+        "(ASTM D245 principle, from memory).",
+    ),
+    Flag(
+        "sr_not_applied",
+        "Knots or slope recorded on a graded member but not deducted: the grade "
+        "allows for its own; give beyond_grade yes if they exceed the grade.",
+    ),
+    Flag(
+        "slope_steep",
+        "Slope of grain steeper than the table covers: ratio extended by Hankinson's "
+        "formula; the member is outside structural grades, the engineer should assess it.",
+    ),
+    Flag(
+        "checks",
+        "Seasoning checks: little effect on crushing; probe the bottom of deep checks for decay.",
+    ),
+    Flag(
+        "split_through",
+        "Through split in the middle part: the halves are taken as acting separately "
+        "(I / 4 about one axis). Clamp or bolt it.",
+        escalates_to=1,
+    ),
+    Flag(
+        "split_opening",
+        "Split opening under load: make safe now.",
+        escalates_to=3,
+    ),
+    Flag(
+        "end_split",
+        "Split at an end: the halves may act separately near the end; clamp it or replace the post.",
+        escalates_to=1,
+    ),
+    Flag(
+        "crushed_end",
+        "Crushed or broomed end: half of that end's area taken as bearing (judgement); "
+        "re-wedge or pack it to full contact.",
+        escalates_to=1,
+    ),
+    Flag(
+        "crushing",
+        "Crushing in progress: make safe now (clear the area, call the engineer).",
+        escalates_to=3,
+    ),
+    Flag(
+        "settling",
+        "Sill or pad settling: make safe now (clear the area, call the engineer).",
+        escalates_to=3,
+    ),
+    Flag(
+        "moving",
+        "Post leaning or moving more than before: make safe now.",
+        escalates_to=3,
+    ),
+    Flag(
+        "eccentric",
+        "Eccentric load or bow: combined axial load and bending checked "
+        "(NDS 2018 §3.9.2, §15.4.1; EN 1995-1-1 §6.3.2(3) for EC5 ratings).",
+    ),
+    Flag(
+        "ecc_unchecked",
+        "Eccentricity or bow recorded but the combined check was not made (no "
+        "bending value Fb for this method): the capacity shown is for a centred load.",
+    ),
+    Flag(
+        "lean_thrust",
+        "Out of plumb with both ends held: no bending added, but the bracing and the "
+        "end friction must carry H = P x lean / height.",
+    ),
+    Flag(
+        "sw_suspect",
+        "Stress-wave time 30 % or more above the sound reading: suspect decay; drill or "
+        "probe there (threshold from memory).",
+        escalates_to=1,
+    ),
+    Flag(
+        "sw_advanced",
+        "Stress-wave time 50 % or more above the sound reading: advanced decay likely "
+        "(threshold from memory).",
+        escalates_to=2,
+    ),
+    Flag(
+        "no_section",
+        "No sound section left at some height: the post cannot be relied on.",
+        escalates_to=3,
+    ),
+    Flag(
+        "data_level",
+        "Knowledge factor set from the data-collection level given (ASCE 41, borrowed "
+        "for gravity checks: judgement).",
+    ),
 )
-F_SATURATED = _r.new_flag(
-    19,
-    "Moisture 28 % or more: near fibre saturation the meter reads unreliably; treat "
-    "the post as wet and probe it thoroughly (judgement).",
-)
-F_SECTION_LOSS = _r.new_flag(
-    20,
-    "Section loss deducted: the checks use the residual section (decayed, insect-"
-    "damaged and charred wood taken as having no strength).",
-)
-F_DECAY_FOUND = _r.new_flag(
-    21,
-    "Decay or insect damage found: repair or brace before the due date and stop the "
-    "water getting in; hidden decay may reach further than probed.",
-)
-F_SR_APPLIED = _r.new_flag(
-    22,
-    "Knots or slope of grain reduce Fc and Fb by the lowest strength ratio "
-    "(ASTM D245 principle, from memory).",
-)
-F_SR_NOT_APPLIED = _r.new_flag(
-    23,
-    "Knots or slope recorded on a graded member but not deducted: the grade "
-    "allows for its own; give beyond_grade yes if they exceed the grade.",
-)
-F_SLOPE_STEEP = _r.new_flag(
-    24,
-    "Slope of grain steeper than the table covers: ratio extended by Hankinson's "
-    "formula; the member is outside structural grades, the engineer should assess it.",
-)
-F_CHECKS = _r.new_flag(
-    25, "Seasoning checks: little effect on crushing; probe the bottom of deep checks for decay."
-)
-F_SPLIT_THROUGH = _r.new_flag(
-    26,
-    "Through split in the middle part: the halves are taken as acting separately "
-    "(I / 4 about one axis). Clamp or bolt it.",
-)
-F_SPLIT_OPENING = _r.new_flag(27, "Split opening under load: make safe now.")
-F_END_SPLIT = _r.new_flag(
-    28, "Split at an end: the halves may act separately near the end; clamp it or replace the post."
-)
-F_CRUSHED_END = _r.new_flag(
-    29,
-    "Crushed or broomed end: half of that end's area taken as bearing (judgement); "
-    "re-wedge or pack it to full contact.",
-)
-F_CRUSHING = _r.new_flag(
-    30, "Crushing in progress: make safe now (clear the area, call the engineer)."
-)
-F_SETTLING = _r.new_flag(
-    31, "Sill or pad settling: make safe now (clear the area, call the engineer)."
-)
-F_MOVING = _r.new_flag(32, "Post leaning or moving more than before: make safe now.")
-F_ECCENTRIC = _r.new_flag(
-    33,
-    "Eccentric load or bow: combined axial load and bending checked "
-    "(NDS 2018 §3.9.2, §15.4.1; EN 1995-1-1 §6.3.2(3) for EC5 ratings).",
-)
-F_ECC_UNCHECKED = _r.new_flag(
-    34,
-    "Eccentricity or bow recorded but the combined check was not made (no "
-    "bending value Fb for this method): the capacity shown is for a centred load.",
-)
-F_LEAN_THRUST = _r.new_flag(
-    35,
-    "Out of plumb with both ends held: no bending added, but the bracing and the "
-    "end friction must carry H = P x lean / height.",
-)
-F_SW_SUSPECT = _r.new_flag(
-    36,
-    "Stress-wave time 30 % or more above the sound reading: suspect decay; drill or "
-    "probe there (threshold from memory).",
-)
-F_SW_ADVANCED = _r.new_flag(
-    37,
-    "Stress-wave time 50 % or more above the sound reading: advanced decay likely "
-    "(threshold from memory).",
-)
-F_NO_SECTION = _r.new_flag(
-    38, "No sound section left at some height: the post cannot be relied on."
-)
-F_DATA_LEVEL = _r.new_flag(
-    39,
-    "Knowledge factor set from the data-collection level given (ASCE 41, borrowed "
-    "for gravity checks: judgement).",
-)
-
-_r.ESCALATIONS.extend(
-    [
-        (
-            F_SPLIT_OPENING | F_CRUSHING | F_SETTLING | F_MOVING | F_NO_SECTION,
-            3,
-        ),  # field-practice.md §6.2 D
-        (F_DECAY_FOUND | F_SW_ADVANCED, 2),  # field-practice.md §6.2 C: decay found
-        (
-            F_DECAY_RISK
-            | F_SATURATED
-            | F_SW_SUSPECT
-            | F_CRUSHED_END
-            | F_SPLIT_THROUGH
-            | F_END_SPLIT,
-            1,
-        ),  # §6.2 B
-    ]
-)
-SEVERE = F_SPLIT_OPENING | F_CRUSHING | F_SETTLING | F_MOVING | F_NO_SECTION
+SEVERE = ("split_opening", "crushing", "settling", "moving", "no_section")
 MODERATE = (
-    F_SECTION_LOSS
-    | F_DECAY_FOUND
-    | F_SW_ADVANCED
-    | F_SR_APPLIED
-    | F_SPLIT_THROUGH
-    | F_END_SPLIT
-    | F_CRUSHED_END
-    | F_ECCENTRIC
-    | F_ECC_UNCHECKED
-    | F_SLOPE_STEEP
+    "section_loss",
+    "decay_found",
+    "sw_advanced",
+    "sr_applied",
+    "split_through",
+    "end_split",
+    "crushed_end",
+    "eccentric",
+    "ecc_unchecked",
+    "slope_steep",
 )
-MINOR = F_DECAY_RISK | F_SATURATED | F_SW_SUSPECT | F_CHECKS | F_SR_NOT_APPLIED | F_LEAN_THRUST
+MINOR = ("decay_risk", "saturated", "sw_suspect", "checks", "sr_not_applied", "lean_thrust")
 
 
 def stress_wave(b: PostBatch) -> dict[str, np.ndarray]:
@@ -869,21 +884,17 @@ def stress_wave(b: PostBatch) -> dict[str, np.ndarray]:
     return {"sw_velocity": v, "sw_ed_mpa": ed, "sw_ratio": ratio}
 
 
-def condition_flags(b: PostBatch, values: dict) -> np.ndarray:
-    """Flag hook: condition flags (int64) and values['condition'] (0-3, what was seen)."""
+def condition_flags(b: PostBatch, values: dict, flag: FlagSet) -> None:
+    """The condition's flags, and values['condition'] (0-3, what was seen)."""
     v = values
-    flags = np.zeros(b.n, dtype=np.int64)
-
-    def flag(bit: int, where) -> None:
-        _r.set_flag(flags, bit, where)
 
     mc = b.moisture_pct  # NaN compares False
-    flag(F_DECAY_RISK, mc >= MC_DECAY_RISK)
-    flag(F_SATURATED, mc >= MC_SATURATED)
+    flag("decay_risk", mc >= MC_DECAY_RISK)
+    flag("saturated", mc >= MC_SATURATED)
     # fields nobody gave hold one value for the whole block: distinct() tests that one value
     # (a mask of length one stands for the block), so the flags of a plain block cost little
     u = distinct
-    flag(F_SECTION_LOSS, u(v["loss"]))
+    flag("section_loss", u(v["loss"]))
     if _block_has_loss(b):
         decay = (
             _nz(b.decay_1p_mm)
@@ -892,26 +903,26 @@ def condition_flags(b: PostBatch, values: dict) -> np.ndarray:
             + _nz(b.decay_2m_mm)
             + _nz(b.hollow_mm)
         ) > 0
-        flag(F_DECAY_FOUND, decay)
-    flag(F_SR_APPLIED, u(v["strength_ratio"]) < 1.0)
-    flag(F_SR_NOT_APPLIED, u(v["sr_recorded"]) & ~u(b.sr_applies))
-    flag(F_SLOPE_STEEP, u(v["slope_beyond_table"]))
+        flag("decay_found", decay)
+    flag("sr_applied", u(v["strength_ratio"]) < 1.0)
+    flag("sr_not_applied", u(v["sr_recorded"]) & ~u(b.sr_applies))
+    flag("slope_steep", u(v["slope_beyond_table"]))
     split = u(b.split)
-    flag(F_CHECKS, split == SPLIT_CHECK)
+    flag("checks", split == SPLIT_CHECK)
     if (split >= SPLIT_THROUGH).any():
         at_end = (b.split_zone == TOP) | (b.split_zone == BOTTOM)
-        flag(F_SPLIT_THROUGH, (b.split >= SPLIT_THROUGH) & ~at_end)
-        flag(F_END_SPLIT, (b.split >= SPLIT_THROUGH) & at_end)
-    flag(F_SPLIT_OPENING, split == SPLIT_OPENING)
-    flag(F_CRUSHED_END, u(b.crushed_end) > 0)
-    flag(F_CRUSHING, u(b.crushing_active))
-    flag(F_SETTLING, u(b.settling_sill))
-    flag(F_MOVING, u(b.post_moving))
-    flag(F_ECCENTRIC, u(v["ecc_checked"]))
-    flag(F_ECC_UNCHECKED, u(v["ecc_wanted"]) & ~u(v["ecc_checked"]))
+        flag("split_through", (b.split >= SPLIT_THROUGH) & ~at_end)
+        flag("end_split", (b.split >= SPLIT_THROUGH) & at_end)
+    flag("split_opening", split == SPLIT_OPENING)
+    flag("crushed_end", u(b.crushed_end) > 0)
+    flag("crushing", u(b.crushing_active))
+    flag("settling", u(b.settling_sill))
+    flag("moving", u(b.post_moving))
+    flag("eccentric", u(v["ecc_checked"]))
+    flag("ecc_unchecked", u(v["ecc_wanted"]) & ~u(v["ecc_checked"]))
     leaning = (np.abs(u(b.plumb1_mm)) > 0) | (np.abs(u(b.plumb2_mm)) > 0)  # NaN: none
     if leaning.any():
-        flag(F_LEAN_THRUST, ~v["sway"] & leaning)
+        flag("lean_thrust", ~v["sway"] & leaning)
     if np.isnan(b.sw_time_us).all():  # no stress-wave readings in this block
         nan = filled(np.nan, b.n)
         sw = {"sw_velocity": nan, "sw_ed_mpa": nan, "sw_ratio": nan}
@@ -919,30 +930,26 @@ def condition_flags(b: PostBatch, values: dict) -> np.ndarray:
         sw = stress_wave(b)
     v.update(sw)
     ratio = u(sw["sw_ratio"])
-    flag(F_SW_ADVANCED, ratio >= u(b.sw_advanced))
-    flag(F_SW_SUSPECT, (ratio >= u(b.sw_suspect)) & ~(ratio >= u(b.sw_advanced)))
+    flag("sw_advanced", ratio >= u(b.sw_advanced))
+    flag("sw_suspect", (ratio >= u(b.sw_suspect)) & ~(ratio >= u(b.sw_advanced)))
     no_section = v["area"] <= 0  # a sound block: the areas are all the gross area
     if _block_has_loss(b):
         no_section = (
             no_section | (v["area_net"] <= 0) | (v["area_top"] <= 0) | (v["area_bottom"] <= 0)
         )
-    flag(F_NO_SECTION, no_section)
-    flag(F_DATA_LEVEL, u(b.data_level) >= 0)
+    flag("no_section", no_section)
+    flag("data_level", u(b.data_level) >= 0)
     level = np.zeros(b.n, dtype=np.int8)
+    flags = flag.flags
     if not flags.any():
         v["condition"] = level
-        return flags
+        return
     present = int(np.bitwise_or.reduce(flags))  # every flag raised in the block
-    for lv, bits in ((1, MINOR), (2, MODERATE), (3, SEVERE)):
+    for lv, names in ((1, MINOR), (2, MODERATE), (3, SEVERE)):
+        bits = flag.mask(*names)
         if bits & present:
-            _r._at_least(level, lv, (flags & bits) != 0)
+            at_least(level, lv, (flags & bits) != 0)
     v["condition"] = level
-    return flags
-
-
-_r.register_flag_hook(condition_flags)
-
-Check = _r.Check
 
 
 # =============================================================================================
@@ -1084,8 +1091,7 @@ def _num(x) -> float | None:
 
 
 def working_lines(r, i: int) -> list:
-    """Working steps for the condition of post i (registered with working.py)."""
-    Step = _r.Step
+    """Working steps for the condition of post i."""
     b, v = r.batch, r.values
     s = []
     if bool(v["loss"][i]):
@@ -1226,13 +1232,31 @@ def bench_fields(
     )
 
 
-_r.register_summary_hook(summary_keys)
-
-
-def _register_steps() -> None:
-    from fieldcheck.engine.working import register_steps
-
-    register_steps(working_lines)
-
-
-_register_steps()
+CONDITION = Stage(
+    name="condition",
+    inputs=(
+        *LOSS_FIELDS,
+        *ECC_FIELDS,
+        "split",
+        "split_zone",
+        "crushed_end",
+        "crushing_active",
+        "settling_sill",
+        "post_moving",
+        "moisture_pct",
+        "sr_applies",
+        "sw_time_us",
+        "sw_path_mm",
+        "sw_sound_us",
+        "density_kgm3",
+        "sw_suspect",
+        "sw_advanced",
+        "data_level",
+    ),
+    checks=("eccentric", "net_section"),
+    flags=FLAGS,
+    run=add_checks,
+    raise_flags=condition_flags,
+    summary=summary_keys,
+    steps=working_lines,
+)

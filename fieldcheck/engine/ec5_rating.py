@@ -11,7 +11,8 @@ import numpy as np
 
 from fieldcheck.engine import ec5
 from fieldcheck.engine.batch import EC5, PostBatch
-from fieldcheck.engine.rating import Rating, Step
+from fieldcheck.engine.result import Rating, Step
+from fieldcheck.engine.stage import Stage
 
 
 def apply_ec5(b: PostBatch, checks: dict, values: dict) -> None:
@@ -167,3 +168,39 @@ def ec5_steps(r: Rating, i: int) -> list[Step]:
         )
     )
     return s
+
+
+def run_ec5(b: PostBatch, checks: dict, values: dict) -> None:
+    """EN 1995-1-1 capacities in place of the NDS ones, for the EC5 posts of the block."""
+    if np.any(b.method == EC5):
+        apply_ec5(b, checks, values)
+
+
+# the EC5 posts of a block: the column, end-grain, cap and sill checks by EN 1995-1-1, and the
+# combined check of the condition's eccentricity and bow (its working: ec5_steps, in place of
+# the NDS factors)
+EC5_STAGE = Stage(
+    name="ec5",
+    inputs=(
+        "method",
+        "fc_mpa",
+        "emin_mpa",
+        "fb_mpa",
+        "kmod",
+        "gamma_m",
+        "product",
+        "shape",
+        "kf",
+        "knowledge",
+        "end_contact",
+        "d1_mm",
+        "d2_mm",
+        "top_lb_mm",
+        "bottom_lb_mm",
+        "top_fc_perp_mpa",
+        "bottom_fc_perp_mpa",
+    ),
+    checks=("column", "end_bearing", "cap_bearing", "sill_bearing", "eccentric"),
+    flags=(),
+    run=run_ec5,
+)

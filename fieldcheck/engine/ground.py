@@ -1,7 +1,6 @@
 """The ground under a post, bearing plates, the governing load combination and bracing demand.
 
-Hooked into :func:`fieldcheck.engine.rating.rate` (imported at the end of rating.py), so these
-are part of the same rating:
+The ``GROUND`` stage of the rating (rating.STAGES), so these are part of the same rating:
 
 - ``soil_bearing`` check: a mudsill or pad on soil, capacity = q_allow x A_eff
   (IBC 2012 Table 1806.2 presumptive values, secondary). Unknown or unprepared soil and a pad
@@ -34,63 +33,61 @@ from functools import cache
 import numpy as np
 
 from fieldcheck.engine import loads, nds
-from fieldcheck.engine.batch import EC5, LRFD, PostBatch, filled
+from fieldcheck.engine.batch import EC5, LRFD, PostBatch
+from fieldcheck.engine.blocks import filled
 from fieldcheck.engine.customary import LBF
-from fieldcheck.engine.rating import (
-    ESCALATIONS,
-    Check,
-    Rating,
-    Step,
-    new_flag,
-    register_check_hook,
-    register_flag_hook,
-    register_summary_hook,
-)
 from fieldcheck.engine.refdata import table
+from fieldcheck.engine.result import Check, Rating, Step
+from fieldcheck.engine.stage import Flag, FlagSet, Stage
 
 FT2 = 304.8**2  # mm^2 per ft^2
 PSF = loads.PSF_KPA  # kPa per psf
 
-G_SOIL_UNKNOWN = new_flag(
-    40,
-    "Soil under the pad not classified: no presumptive bearing value, the ground is not verified "
-    "(IBC 2012 §1806.2); classify it or accept the 1,500 psf default explicitly (soil_default "
-    "yes), "
-    "and watch for settlement.",
-)
-G_SOIL_UNPREPARED = new_flag(
-    41,
-    "Mud, organic soil or unprepared fill under the pad: no presumptive bearing value (IBC 2012 "
-    "§1806.2); set the mudsill on firm, prepared ground before the due date.",
-)
-G_SOIL_ASSUMED = new_flag(
-    42,
-    "Soil class not determined: the 1,500 psf default of 24 CFR 3285.202(e) is used, as you chose.",
-)
-G_PAD_MISSING = new_flag(
-    43,
-    "Soil given but no pad or mudsill size: the ground is not verified; give the pad size.",
-)
-G_PAD_RIGID = new_flag(
-    44,
-    "Pad thickness not given: the whole pad area is taken as bearing on the soil (a rigid pad), "
-    "which a thin pad does not give; the soil check is not relied on (repair level) until the "
-    "thickness is measured.",
-)
-G_PLATE = new_flag(
-    45,
-    "Steel bearing plates: cap and sill bearing over the plate length along their grain and the "
-    "post's thickness across; plates assumed stiff enough to spread the load (judgement).",
-)
-G_SHARED = new_flag(
-    46,
-    "Load shared by posts side by side: each carries an equal share only under a stiff cap "
-    "(judgement); check the cap.",
-)
 # judgement, see the module docstring: unknown class / no pad size -> monitor; unprepared -> repair
 # a pad of unknown thickness is taken as rigid, which may overstate the area on the soil: the
 # soil check cannot be relied on until the thickness is measured (judgement), so repair level
-ESCALATIONS.extend([(G_SOIL_UNKNOWN | G_PAD_MISSING, 1), (G_SOIL_UNPREPARED | G_PAD_RIGID, 2)])
+FLAGS = (
+    Flag(
+        "soil_unknown",
+        "Soil under the pad not classified: no presumptive bearing value, the ground is not verified "
+        "(IBC 2012 §1806.2); classify it or accept the 1,500 psf default explicitly (soil_default "
+        "yes), "
+        "and watch for settlement.",
+        escalates_to=1,
+    ),
+    Flag(
+        "soil_unprepared",
+        "Mud, organic soil or unprepared fill under the pad: no presumptive bearing value (IBC 2012 "
+        "§1806.2); set the mudsill on firm, prepared ground before the due date.",
+        escalates_to=2,
+    ),
+    Flag(
+        "soil_assumed",
+        "Soil class not determined: the 1,500 psf default of 24 CFR 3285.202(e) is used, as you chose.",
+    ),
+    Flag(
+        "pad_missing",
+        "Soil given but no pad or mudsill size: the ground is not verified; give the pad size.",
+        escalates_to=1,
+    ),
+    Flag(
+        "pad_rigid",
+        "Pad thickness not given: the whole pad area is taken as bearing on the soil (a rigid pad), "
+        "which a thin pad does not give; the soil check is not relied on (repair level) until the "
+        "thickness is measured.",
+        escalates_to=2,
+    ),
+    Flag(
+        "plate",
+        "Steel bearing plates: cap and sill bearing over the plate length along their grain and the "
+        "post's thickness across; plates assumed stiff enough to spread the load (judgement).",
+    ),
+    Flag(
+        "shared",
+        "Load shared by posts side by side: each carries an equal share only under a stiff cap "
+        "(judgement); check the cap.",
+    ),
+)
 
 
 @cache
@@ -207,28 +204,22 @@ def _ground_checks(b: PostBatch, checks: dict, values: dict) -> None:
     )
 
 
-def _ground_flags(b: PostBatch, values: dict) -> np.ndarray:
+def _ground_flags(b: PostBatch, values: dict, flag: FlagSet) -> None:
     if values.get("ground_plain"):
-        return np.zeros(b.n, dtype=np.int64)
+        return
     sf = b.soil_flags.astype(np.int64)
     has_pad = ~np.isnan(b.pad_area_mm2)
     soil_given = values["soil_given"]
     involved = has_pad | soil_given
     # a pad with no soil stated is unknown soil: never assumed good
     unknown = involved & (((sf & loads.SOIL_UNKNOWN) != 0) | (has_pad & ~soil_given))
-    f = np.zeros(b.n, dtype=np.int64)
-    f |= np.where(unknown, G_SOIL_UNKNOWN, 0)
-    f |= np.where(involved & ((sf & loads.SOIL_UNPREPARED) != 0), G_SOIL_UNPREPARED, 0)
-    f |= np.where(involved & ((sf & loads.SOIL_ASSUMED) != 0), G_SOIL_ASSUMED, 0)
-    f |= np.where(soil_given & ~np.isnan(b.soil_kpa) & ~has_pad, G_PAD_MISSING, 0)
-    f |= np.where(has_pad & np.isnan(b.pad_t_mm), G_PAD_RIGID, 0)
-    f |= np.where(~np.isnan(b.plate_lb_mm) & (b.method != EC5), G_PLATE, 0)
-    f |= np.where(b.shared_by > 1, G_SHARED, 0)
-    return f
-
-
-register_check_hook(_ground_checks)
-register_flag_hook(_ground_flags)
+    flag("soil_unknown", unknown)
+    flag("soil_unprepared", involved & ((sf & loads.SOIL_UNPREPARED) != 0))
+    flag("soil_assumed", involved & ((sf & loads.SOIL_ASSUMED) != 0))
+    flag("pad_missing", soil_given & ~np.isnan(b.soil_kpa) & ~has_pad)
+    flag("pad_rigid", has_pad & np.isnan(b.pad_t_mm))
+    flag("plate", ~np.isnan(b.plate_lb_mm) & (b.method != EC5))
+    flag("shared", b.shared_by > 1)
 
 
 # ---- per post, on demand: working and summary ------------------------------------------------
@@ -317,9 +308,6 @@ def _summary(r: Rating, i: int, out: dict) -> None:
         out["bracing"] = br
 
 
-register_summary_hook(_summary)
-
-
 def _n(x: float) -> str:
     return f"{x / 1000:.3f} kN ({x / LBF:,.0f} lbf)"
 
@@ -384,10 +372,31 @@ def ground_steps(r: Rating, i: int) -> list[Step]:
     return s
 
 
-def _register_steps() -> None:
-    from fieldcheck.engine.working import register_steps
-
-    register_steps(ground_steps)
-
-
-_register_steps()
+# the ground under the post, and the loads it carries: the governing combination, a load shared
+# under a stiff cap, and what the bracing must carry
+GROUND = Stage(
+    name="ground",
+    inputs=(
+        "pad_area_mm2",
+        "pad_l1_mm",
+        "pad_l2_mm",
+        "pad_t_mm",
+        "soil_kpa",
+        "soil_flags",
+        "plate_lb_mm",
+        "lateral_rule",
+        "lateral_edge_mm",
+        "lean_mm",
+        "shared_by",
+        "combo",
+        "load_n",
+        "height_mm",
+        "method",
+    ),
+    checks=("soil_bearing",),
+    flags=FLAGS,
+    run=_ground_checks,
+    raise_flags=_ground_flags,
+    summary=_summary,
+    steps=ground_steps,
+)

@@ -42,14 +42,8 @@ import numpy as np
 from fieldcheck.engine import materials, nds, sections
 from fieldcheck.engine.batch import DIMENSION, EC5, LRFD, RECT, TIMBER, PostBatch, make_batch
 from fieldcheck.engine.customary import IN, LBF
-from fieldcheck.engine.rating import (
-    ACTIONS,
-    F_END_PLATE,
-    NOT_RATED,
-    Rating,
-    rate,
-    register_summary_hook,
-)
+from fieldcheck.engine.rating import FLAGS, rate
+from fieldcheck.engine.result import ACTIONS, NOT_RATED, Rating
 
 FT = 304.8
 
@@ -360,7 +354,7 @@ def remedies(batch: PostBatch, rating: Rating | None = None) -> Remedies:
         c = r.checks.get(name)
         if c is not None:
             bearing_ratio = np.fmax(bearing_ratio, c.ratio[failing])
-    w = np.flatnonzero(((sub_flags & F_END_PLATE) != 0) | (bearing_ratio > 1.0))
+    w = np.flatnonzero(((sub_flags & FLAGS.bit["end_plate"]) != 0) | (bearing_ratio > 1.0))
     w = w[sub.method[w] != EC5]
     for o, length_in in enumerate(PLATE_IN):
         lb = np.ceil(np.maximum(sub.d1_mm[w], length_in * IN))
@@ -499,23 +493,3 @@ def _empty(batch: PostBatch, failing: np.ndarray) -> Remedies:
         batch.take(np.zeros(0, dtype=np.intp)),
         np.zeros(0, dtype=object),
     )
-
-
-def _summary(r: Rating, i: int, out: dict) -> None:
-    if not (r.ratio[i] > 1.0 or 2 <= r.action[i] < NOT_RATED):
-        out["remedies"] = []
-        return
-    one = r.batch.take(np.array([i]))
-    rem = remedies(one)
-    out["remedies"] = [x.as_dict() for x in rem.for_post(0)]
-    if not out["remedies"]:
-        out["remedies_note"] = (
-            "No single change we model makes this post pass (or it has no load): make it safe "
-            "and ask the "
-            "engineer."
-            if not np.isnan(r.batch.load_n[i])
-            else "Give the load to see what would make it pass."
-        )
-
-
-register_summary_hook(_summary)

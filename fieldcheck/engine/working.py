@@ -1,4 +1,6 @@
-"""The working of one rating, step by step, each step with its clause.
+"""The column's working for one post, step by step, each step with its clause, and the closing
+steps (the checks, the governing check, the action). explain.working puts each stage's steps
+between them.
 
 Built on demand from the arrays a Rating keeps, for the one post a person is looking at.
 """
@@ -9,7 +11,23 @@ import numpy as np
 
 from fieldcheck.engine.batch import EC5, LRFD, METHOD_NAMES, PRODUCT_NAMES
 from fieldcheck.engine.customary import IN, LBF, PSI
-from fieldcheck.engine.rating import ACTION_TEXT, Rating, Step, mode_label
+from fieldcheck.engine.ec5_rating import ec5_steps
+from fieldcheck.engine.restraint import MODE_KEYS, MODES
+from fieldcheck.engine.result import ACTION_TEXT, Rating, Step
+from fieldcheck.engine.spring_ends import SPRING_MODE
+
+
+def mode_label(i_mode: int) -> str:
+    """The end conditions of a post in words (restraint.modes_of_pairs and spring_ends codes)."""
+    if i_mode == SPRING_MODE:
+        return (
+            "spring-restrained ends: K solved numerically (stability.py), design value per "
+            "NDS 2018 Appendix G margins"
+        )
+    if i_mode < 0:
+        return "mechanism"
+    key = MODE_KEYS[i_mode]
+    return f"NDS case ({key}) {MODES[key][0]}"
 
 
 def _mpa(x: float) -> str:
@@ -24,7 +42,8 @@ def _mm(x: float) -> str:
     return f"{x:.1f} mm ({x / IN:.3f} in)"
 
 
-def working_steps(r: Rating, i: int) -> list[Step]:
+def column_steps(r: Rating, i: int) -> list[Step]:
+    """The method, the section, the material and the column's own steps (NDS or EC5)."""
     b, v = r.batch, r.values
     method = int(b.method[i])
     s: list[Step] = []
@@ -46,8 +65,6 @@ def working_steps(r: Rating, i: int) -> list[Step]:
     )
     add(Step("Product", PRODUCT_NAMES[int(b.product[i])], ""))
     if method == EC5:
-        from fieldcheck.engine.ec5_rating import ec5_steps
-
         s.extend(ec5_steps(r, i))
     else:
         fc = b.fc_mpa[i]
@@ -134,9 +151,14 @@ def working_steps(r: Rating, i: int) -> list[Step]:
                     "NDS 2018 §3.10.2, §3.10.4",
                 )
             )
-    for step in extra_steps(r, i):
-        add(step)
-    for name, c in r.checks.items():
+    return s
+
+
+def closing_steps(r: Rating, i: int) -> list[Step]:
+    """Every check made, the governing check, demand over capacity and the action."""
+    s: list[Step] = []
+    add = s.append
+    for c in r.checks.values():
         cap = c.capacity_n[i]
         if np.isnan(cap):
             continue
@@ -160,20 +182,3 @@ def working_steps(r: Rating, i: int) -> list[Step]:
         )
     )
     return s
-
-
-# Hooks for other engine modules (condition, ground) to add their lines to the working.
-_EXTRA: list = []
-
-
-def extra_steps(r: Rating, i: int) -> list[Step]:
-    out: list[Step] = []
-    for fn in _EXTRA:
-        out.extend(fn(r, i))
-    return out
-
-
-def register_steps(fn) -> None:
-    """Register fn(rating, i) -> list[Step], called after the method's own steps."""
-    if fn not in _EXTRA:
-        _EXTRA.append(fn)

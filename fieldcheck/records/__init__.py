@@ -17,12 +17,11 @@ from typing import Any
 import numpy as np
 
 from fieldcheck.engine.batch import PostBatch, make_batch
-from fieldcheck.records.builders import BUILDERS, RowError
-from fieldcheck.records.columns import COLUMNS, GROUPS, Column
+from fieldcheck.records.builders import RowError
+from fieldcheck.records.columns import BUILDERS, COLUMNS, GROUPS, Column
 
 UNRATED_COLUMNS = ("tag", "location", "notes")  # kept in the log, not seen by the engine
 _UNRATED = frozenset(UNRATED_COLUMNS)
-from fieldcheck.records import load_columns as _load_columns  # noqa: F401,E402  (tributary loads, ground)
 
 __all__ = [
     "COLUMNS",
@@ -150,10 +149,10 @@ def parse_records(rows: list[dict[str, str]], cache: dict | None = None) -> Pars
     remap[good_u] = np.arange(good_u.size)
     fields_u = [uniq[u][0] for u in good_u.tolist()]
     keys = set().union(*fields_u)
-    from fieldcheck.engine.batch import _DEFAULTS, _DTYPES
+    from fieldcheck.engine.batch import DEFAULTS, DTYPES
 
     per_u = {
-        k: np.asarray([f.get(k, _DEFAULTS[k]) for f in fields_u], dtype=_DTYPES[k]) for k in keys
+        k: np.asarray([f.get(k, DEFAULTS[k]) for f in fields_u], dtype=DTYPES[k]) for k in keys
     }
     take = remap[good_rows]
     return Parsed(
@@ -171,8 +170,3 @@ def rate_records(rows: list[dict[str, str]], cache: dict | None = None):
 
     parsed = parse_records(rows, cache)
     return rate(parsed.batch), parsed.errors
-
-
-from fieldcheck.records import condition_columns as _condition_columns  # noqa: E402,F401  (the post as found)
-from fieldcheck.records import ec5_columns as _ec5_columns  # noqa: E402,F401  (registers columns)
-from fieldcheck.records import spring_columns as _spring_columns  # noqa: E402,F401  (spring ends)

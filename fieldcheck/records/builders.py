@@ -1,8 +1,8 @@
 """Builders: one row of parsed column values -> PostBatch fields (SI scalars).
 
 Each builder takes the parsed row (column name -> value; absent columns are missing) and returns
-a dict of PostBatch field values, or raises ValueError naming the column. Other modules add
-builders with :func:`register_builder` (condition, loads, ground).
+a dict of PostBatch field values, or raises ValueError naming the column. These are the core
+builders; the registry (columns.py) lists every builder in the order they run.
 """
 
 from __future__ import annotations
@@ -199,23 +199,3 @@ def bearing_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
         f["end_contact"] = row["end_contact"] / 100.0
     f["end_plate"] = bool(row.get("end_plate", False))
     return f
-
-
-BUILDERS: list[Builder] = [
-    section_fields,
-    height_fields,
-    end_fields,
-    material_fields,
-    service_fields,
-    bearing_fields,
-]
-
-
-def register_builder(fn: Builder, after: Builder | None = None) -> None:
-    """Add a builder (runs after the core ones, or right after ``after``)."""
-    if fn in BUILDERS:
-        return
-    if after is None:
-        BUILDERS.append(fn)
-    else:
-        BUILDERS.insert(BUILDERS.index(after) + 1, fn)

@@ -16,8 +16,8 @@ import numpy as np
 from fieldcheck import units
 from fieldcheck.engine import condition as cond
 from fieldcheck.engine.refdata import table
-from fieldcheck.records.builders import RowError, register_builder
-from fieldcheck.records.columns import Column, _choice, _yes_no, register
+from fieldcheck.records.builders import RowError
+from fieldcheck.records.core_columns import Column, choice, yes_no
 
 IN = units.IN_MM  # mm per inch
 
@@ -81,8 +81,8 @@ def _density(s: str) -> float:
 
 ZONE_HELP = "full (whole height), middle (middle half), top or bottom (at that end)"
 FACES = cond.FACE_NAMES
-_OWN: list[str] = []
-for _c in (
+
+COLUMNS: tuple[Column, ...] = (
     Column(
         "decay_wide",
         "condition",
@@ -116,7 +116,7 @@ for _c in (
         "condition",
         f"where the decay is: {ZONE_HELP}",
         "full",
-        _choice("decay_at", cond.ZONE_NAMES),
+        choice("decay_at", cond.ZONE_NAMES),
         "full",
         cond.ZONE_NAMES,
     ),
@@ -140,7 +140,7 @@ for _c in (
         "condition",
         f"where the hollow is: {ZONE_HELP}",
         "full",
-        _choice("hollow_at", cond.ZONE_NAMES),
+        choice("hollow_at", cond.ZONE_NAMES),
         "full",
         cond.ZONE_NAMES,
     ),
@@ -167,7 +167,7 @@ for _c in (
         "condition",
         f"where the char is: {ZONE_HELP}",
         "full",
-        _choice("char_at", cond.ZONE_NAMES),
+        choice("char_at", cond.ZONE_NAMES),
         "full",
         cond.ZONE_NAMES,
     ),
@@ -183,7 +183,7 @@ for _c in (
         "condition",
         "how many corners have that wane (1 to 4)",
         "2",
-        _choice("wane_corners", ("1", "2", "3", "4")),
+        choice("wane_corners", ("1", "2", "3", "4")),
         "1",
         ("1", "2", "3", "4"),
     ),
@@ -193,7 +193,7 @@ for _c in (
         "condition",
         "face the notch is cut into: wide or narrow",
         "wide",
-        _choice("notch_face", FACES),
+        choice("notch_face", FACES),
         "wide",
         FACES,
     ),
@@ -210,7 +210,7 @@ for _c in (
         "condition",
         "faces the hole is bored through: wide or narrow",
         "wide",
-        _choice("hole_face", FACES),
+        choice("hole_face", FACES),
         "wide",
         FACES,
     ),
@@ -227,7 +227,7 @@ for _c in (
         "condition",
         "face the knot is on: wide or narrow",
         "wide",
-        _choice("knot_face", FACES),
+        choice("knot_face", FACES),
         "wide",
         FACES,
     ),
@@ -238,7 +238,7 @@ for _c in (
         "strength-ratio table for slope: grading (ASTM D245, from memory; "
         "the more severe) or clear-wood (Wood Handbook Table 5-12)",
         "grading",
-        _choice("slope_table", cond.SLOPE_TABLES),
+        choice("slope_table", cond.SLOPE_TABLES),
         "grading",
         cond.SLOPE_TABLES,
     ),
@@ -248,14 +248,14 @@ for _c in (
         "knots or slope exceed the stamped grade (default: yes if the grade is "
         "unknown, no if stamped)",
         "no",
-        _yes_no("beyond_grade"),
+        yes_no("beyond_grade"),
     ),
     Column(
         "split",
         "condition",
         "worst split: none, check (one face), through (two faces) or opening (widening under load)",
         "check",
-        _choice("split", cond.SPLIT_NAMES),
+        choice("split", cond.SPLIT_NAMES),
         "none",
         cond.SPLIT_NAMES,
     ),
@@ -264,7 +264,7 @@ for _c in (
         "condition",
         "faces a through split shows on: wide, narrow or unknown",
         "unknown",
-        _choice("split_faces", cond.SPLIT_FACE_NAMES),
+        choice("split_faces", cond.SPLIT_FACE_NAMES),
         "unknown",
         cond.SPLIT_FACE_NAMES,
     ),
@@ -273,7 +273,7 @@ for _c in (
         "condition",
         f"where the split is: {ZONE_HELP}",
         "middle",
-        _choice("split_at", cond.ZONE_NAMES),
+        choice("split_at", cond.ZONE_NAMES),
         "full",
         cond.ZONE_NAMES,
     ),
@@ -282,7 +282,7 @@ for _c in (
         "condition",
         "crushed or broomed end: none, top, bottom or both",
         "none",
-        _choice("crushed_end", cond.CRUSHED_NAMES),
+        choice("crushed_end", cond.CRUSHED_NAMES),
         "none",
         cond.CRUSHED_NAMES,
     ),
@@ -291,7 +291,7 @@ for _c in (
         "condition",
         "crushing in progress: fresh fibres, indentation growing (yes/no)",
         "no",
-        _yes_no("crushing"),
+        yes_no("crushing"),
         "no",
     ),
     Column(
@@ -299,7 +299,7 @@ for _c in (
         "condition",
         "sill or pad settling, ground soft or undermined (yes/no)",
         "no",
-        _yes_no("settling_sill"),
+        yes_no("settling_sill"),
         "no",
     ),
     Column(
@@ -307,7 +307,7 @@ for _c in (
         "condition",
         "post leaning or moving more than before (yes/no)",
         "no",
-        _yes_no("moving"),
+        yes_no("moving"),
         "no",
     ),
     Column(
@@ -392,13 +392,11 @@ for _c in (
         "ASCE 41 data collection: default-values (0.75), drawings (0.90), usual "
         "or comprehensive (1.0)",
         "default-values",
-        _choice("data_level", cond.DATA_LEVELS),
+        choice("data_level", cond.DATA_LEVELS),
         "",
         cond.DATA_LEVELS,
     ),
-):
-    register(_c)
-    _OWN.append(_c.name)
+)
 
 
 def _kappa(level: str) -> float:
@@ -566,5 +564,4 @@ def condition_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]
 
 
 condition_fields.column = "condition"  # type: ignore[attr-defined]
-_CONDITION_NAMES = frozenset(_OWN)  # every column this module registers
-register_builder(condition_fields)
+_CONDITION_NAMES = frozenset(c.name for c in COLUMNS)  # every column of this module

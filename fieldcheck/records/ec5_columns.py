@@ -6,8 +6,8 @@ from typing import Any
 
 from fieldcheck.engine import ec5, en338
 from fieldcheck.engine.batch import EC5, METHOD_NAMES
-from fieldcheck.records.builders import RowError, material_fields, register_builder
-from fieldcheck.records.columns import Column, register
+from fieldcheck.records.builders import RowError
+from fieldcheck.records.core_columns import Column
 
 # NDS durations -> EN 1995-1-1 Table 2.1 load-duration classes (nearest; judgement)
 EC5_DURATION = {
@@ -40,7 +40,7 @@ def _service(s: str) -> int:
     return int(t)
 
 
-for _c in (
+COLUMNS: tuple[Column, ...] = (
     Column("class", "material", "EN 338 strength class (method ec5)", "C24", _class),
     Column(
         "service_class",
@@ -60,8 +60,7 @@ for _c in (
         "C24",
         _class,
     ),
-):
-    register(_c)
+)
 
 
 def ec5_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
@@ -91,6 +90,3 @@ def ec5_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
         f"{name} ({en338.edition(name)}), k_mod {f['kmod']:.2f} ({duration}), gamma_M {f['gamma_m']}"
     )
     return f
-
-
-register_builder(ec5_fields, after=material_fields)

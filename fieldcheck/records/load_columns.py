@@ -18,15 +18,14 @@ from fieldcheck import units
 from fieldcheck.engine import loads, materials
 from fieldcheck.engine.batch import EC5, LRFD, METHOD_NAMES
 from fieldcheck.engine.ground import combination_rows, lateral_rows
-from fieldcheck.records.builders import RowError, register_builder
-from fieldcheck.records.columns import (
+from fieldcheck.records.builders import RowError
+from fieldcheck.records.core_columns import (
     DURATION_ALIASES,
     DURATIONS,
     Column,
-    _choice,
-    _count,
-    _yes_no,
-    register,
+    choice,
+    count,
+    yes_no,
 )
 
 AREA_LOADS = ("dead", "live", "occupancy", "snow", "roof_live", "rain")
@@ -86,10 +85,10 @@ def _soil(s: str) -> str:
 
 def _lateral(s: str) -> str:
     keys = tuple(r["key"] for r in lateral_rows())
-    return _choice("lateral_rule", keys)(s)
+    return choice("lateral_rule", keys)(s)
 
 
-_DUR = _choice("duration", DURATIONS, DURATION_ALIASES)
+_DUR = choice("duration", DURATIONS, DURATION_ALIASES)
 
 
 def _duration(field: str):
@@ -104,7 +103,7 @@ def _duration(field: str):
     return parse
 
 
-for _c in (
+COLUMNS: tuple[Column, ...] = (
     Column(
         "tributary",
         "load",
@@ -124,7 +123,7 @@ for _c in (
         "load",
         "with --spacing: interior, edge (half) or corner (quarter) post",
         "interior",
-        _choice("position", POSITIONS),
+        choice("position", POSITIONS),
         "interior",
         POSITIONS,
     ),
@@ -147,7 +146,7 @@ for _c in (
         "load",
         "occupancy preset for the live load (ASCE 7 Table 4.3-1)",
         "residential",
-        _choice("occupancy", loads.live_load_keys()),
+        choice("occupancy", loads.live_load_keys()),
         "",
         loads.live_load_keys(),
     ),
@@ -194,7 +193,7 @@ for _c in (
         "load",
         "floors (of the same build-up) carried over the tributary area",
         "1",
-        _count("floors", 1, 20),
+        count("floors", 1, 20),
         "1",
     ),
     Column(
@@ -211,7 +210,7 @@ for _c in (
         "load",
         "reduce the live load by ASCE 7 §4.7 (default no for shoring)",
         "no",
-        _yes_no("live_reduction"),
+        yes_no("live_reduction"),
         "no",
     ),
     Column(
@@ -219,7 +218,7 @@ for _c in (
         "load",
         "posts side by side under a stiff cap sharing the load equally",
         "1",
-        _count("shared_by", 1, 4),
+        count("shared_by", 1, 4),
         "1",
     ),
     Column(
@@ -269,7 +268,7 @@ for _c in (
         "bearing",
         "soil class unknown: accept the 1,500 psf default (yes/no)",
         "no",
-        _yes_no("soil_default"),
+        yes_no("soil_default"),
         "no",
     ),
     Column(
@@ -279,8 +278,7 @@ for _c in (
         "8 in",
         lambda s: units.parse_length(s, "plate", lo=10.0, hi=2000.0),
     ),
-):
-    register(_c)
+)
 
 
 def _combo_index(method: str, key: str) -> int:
@@ -413,4 +411,3 @@ def load_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
 
 
 load_fields.column = "load"  # type: ignore[attr-defined]
-register_builder(load_fields)

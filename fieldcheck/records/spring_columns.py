@@ -15,8 +15,8 @@ import numpy as np
 from fieldcheck import units
 from fieldcheck.engine import stability
 from fieldcheck.engine.spring_ends import end_ratio, translates
-from fieldcheck.records.builders import RowError, register_builder
-from fieldcheck.records.columns import Column, register
+from fieldcheck.records.builders import RowError
+from fieldcheck.records.core_columns import Column
 
 
 def parse_ratio(text: str, field: str) -> float:
@@ -41,7 +41,7 @@ def _ratio(field: str):
     return lambda s: parse_ratio(s, field)
 
 
-for _c in (
+COLUMNS: tuple[Column, ...] = (
     Column(
         "top_spring",
         "ends",
@@ -70,8 +70,7 @@ for _c in (
         "2",
         _ratio("bottom_ratio"),
     ),
-):
-    register(_c)
+)
 
 
 def spring_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
@@ -111,6 +110,3 @@ def spring_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
         col = next(k for k in keys if k in row)
         raise RowError(col, f"{col}: {exc}") from None
     return f
-
-
-register_builder(spring_fields)

@@ -5,7 +5,8 @@ from __future__ import annotations
 import numpy as np
 
 from fieldcheck.engine.customary import LBF
-from fieldcheck.engine.rating import ACTIONS, FLAG_TEXT, Rating
+from fieldcheck.engine.rating import FLAGS
+from fieldcheck.engine.result import ACTIONS, Rating
 
 # the engine's intermediate values these columns read (rate(batch, keep=KEEP) for a large batch)
 KEEP = ("ke1", "ke2", "le_d_max", "le_d_limit", "cp", "axis")
@@ -24,7 +25,7 @@ def result_columns(r: Rating) -> dict[str, list[str]]:
 
     def warns(f: int) -> str:
         if f not in warn_cache:
-            warn_cache[f] = " | ".join(t for bit, t in sorted(FLAG_TEXT.items()) if f >> bit & 1)
+            warn_cache[f] = " | ".join(FLAGS.texts(f))
         return warn_cache[f]
 
     return {

@@ -22,7 +22,8 @@ from html import escape
 from pathlib import Path
 
 from fieldcheck.engine.cautions import CAUTIONS
-from fieldcheck.engine.rating import ACTION_TEXT, ACTIONS, DUE_DAYS
+from fieldcheck.engine.rating import detail
+from fieldcheck.engine.result import ACTION_TEXT, ACTIONS, DUE_DAYS
 from fieldcheck.report.model import PostEntry, ReportData, ReportInfo, gather, visit_date
 from fieldcheck.report.notation import notation, sig, symbols
 from fieldcheck.report.photos import data_uri
@@ -431,7 +432,8 @@ def _record_table(record: dict[str, str]) -> str:
 def _assumptions(d: ReportData, p: PostEntry) -> str:
     r, j, b, u, s = d.rating, p.j, d.rating.batch, d.units, p.summary
     # a large batch keeps only the rating: the post's intermediates come from rating it alone
-    v, jv = (r.detail(j).values, 0) if r.partial else (r.values, j)
+    src, jv = detail(r, j)
+    v = src.values
     method = s.get("method", "")
     if method == "ec5":
         dur = f"k_mod = {float(b.kmod[j]):g} (EN 1995-1-1 Table 3.1)"
@@ -653,7 +655,8 @@ def _states_rows(d: ReportData, p: PostEntry) -> str:
 
 def _sketch(d: ReportData, p: PostEntry) -> str:
     r, j = d.rating, p.j
-    v, jv = (r.detail(j).values, 0) if r.partial else (r.values, j)
+    src, jv = detail(r, j)
+    v = src.values
     ke = None
     if "ke1" in v and "axis" in v:
         ke = float(v["ke2"][jv] if int(v["axis"][jv]) == 2 else v["ke1"][jv])

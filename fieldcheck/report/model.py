@@ -16,10 +16,10 @@ from typing import Any
 import numpy as np
 
 from fieldcheck import ENGINE_VERSION
-from fieldcheck.engine import rating as _rating
-from fieldcheck.engine.batch import METHOD_NAMES
-from fieldcheck.engine.rating import ACTION_TEXT, ACTIONS, DUE_DAYS, NOT_RATED, Rating, rate
+from fieldcheck.engine import explain
+from fieldcheck.engine.rating import rate
 from fieldcheck.engine.refdata import editions
+from fieldcheck.engine.result import ACTIONS, DUE_DAYS, NOT_RATED, Rating
 
 # heights of a capacity curve as multiples of the post's own height: a quarter to twice it, as
 # engine.curves.default_heights (judgement: shows how fast capacity falls off around the post)
@@ -192,33 +192,13 @@ def batch_remedies(batch, rating: Rating):
     return remedies(batch, rating)
 
 
-def _is_remedies_hook(hook) -> bool:
-    return getattr(hook, "__module__", "") == "fieldcheck.engine.remedies"
-
-
 def post_summary(rating: Rating, j: int, rem) -> dict[str, Any]:
-    """The keys of ``Rating.summary(j)`` the report shows, from the same arrays, with every
-    summary hook run except the remedies one: that hook rates each failing post on its own, so
-    the report takes the remedies of all posts from one call (``batch_remedies``) instead."""
+    """The summary of post j (explain.summary), with its remedies taken from ``rem``, the
+    remedies of every post found in one engine call (``batch_remedies``), when given."""
     if rem is None:
-        return rating.summary(j)
-    act = int(rating.action[j])
-    ratio = float(rating.ratio[j])
-    out: dict[str, Any] = {
-        "method": METHOD_NAMES[int(rating.batch.method[j])],
-        "demand_capacity_ratio": None if math.isnan(ratio) else round(ratio, 4),
-        "governing_check": rating.governing_name(j),
-        "action": ACTIONS[act],
-        "action_text": ACTION_TEXT[act],
-        "due_days": DUE_DAYS[act],
-        "warnings": rating.warnings(j),
-    }
-    # a large batch keeps no intermediates: the hooks read the post rated alone (same numbers)
-    src, k = (rating.detail(j), 0) if rating.partial else (rating, j)
-    for hook in _rating.SUMMARY_HOOKS:
-        if not _is_remedies_hook(hook):
-            hook(src, k, out)
-    out["remedies"] = [x.as_dict() for x in rem.for_post(j)]
+        return explain.summary(rating, j)
+    out = explain.summary(rating, j, with_remedies=False)
+    explain.remedy_keys(rating, j, out, found=rem)
     return out
 
 
@@ -357,7 +337,7 @@ def gather(
                 parsed.meta[j],
                 stored,
                 summary,
-                rating.working(j),
+                explain.working(rating, j),
                 _differences(stored, rating, j, eds),
                 due_date(visit, int(rating.action[j])),
                 att.get(view.member_id, []),

@@ -99,7 +99,9 @@ def _clean(o):
 
 def summary_json(rating, i: int) -> str:
     """The post's summary as stored (the cautions are constant text: shown, not stored)."""
-    s = dict(rating.summary(i))
+    from fieldcheck.engine import explain  # here: reading a log never loads the engine
+
+    s = dict(explain.summary(rating, i))
     s.pop("cautions", None)
     return json.dumps(_clean(s), default=_json_default, separators=(",", ":"))
 

@@ -38,6 +38,8 @@ from textual.widgets import (
 )
 from textual.widgets.option_list import Option
 
+from fieldcheck.engine import explain
+from fieldcheck.engine.curves import capacity_vs_height
 from fieldcheck.engine.rating import rate
 from fieldcheck.records import COLUMNS, GROUPS, parse_records
 from fieldcheck.tui import present
@@ -50,44 +52,11 @@ FULL_SUMMARY_DELAY = 0.15  # seconds of no typing before the full summary (with 
 
 
 def quick_summary(rating: Any) -> dict[str, Any]:
-    """The keys the rating panel shows first, straight from the rating arrays (well under a
-    millisecond); the engine's full ``summary(0)`` replaces it moments later."""
-    from fieldcheck.engine.rating import ACTION_TEXT, ACTIONS, DUE_DAYS
-
-    def num(x: Any, scale: float = 1.0) -> float | None:
-        x = float(x)
-        return None if math.isnan(x) else x / scale
-
-    checks = []
-    for name, c in rating.checks.items():
-        if math.isnan(float(c.capacity_n[0])):
-            continue
-        checks.append(
-            {
-                "name": name,
-                "label": c.label,
-                "clause": c.clause,
-                "ratio": num(c.ratio[0]),
-                "capacity_kN": num(c.capacity_n[0], 1000.0),
-            }
-        )
-    act = int(rating.action[0])
-    v = rating.values
-    ax = int(v["axis"][0]) if "axis" in v else 1
-    ke = v.get("ke1" if ax == 1 else "ke2")
-    return {
-        "allowable_load_kN": num(rating.capacity_n[0], 1000.0),
-        "demand_kN": num(rating.demand_n[0], 1000.0),
-        "demand_capacity_ratio": num(rating.ratio[0]),
-        "governing_check": rating.governing_name(0),
-        "action": ACTIONS[act],
-        "action_text": ACTION_TEXT[act],
-        "due_days": DUE_DAYS[act],
-        "checks": checks,
-        "warnings": rating.warnings(0),
-        "effective_length_factor": None if ke is None else float(ke[0]),
-        "quick": True,
-    }
+    """The summary of the one post rated, without the remedies (one more engine call each): the
+    full summary with them replaces it moments later."""
+    out = explain.summary(rating, 0, with_remedies=False)
+    out["quick"] = True
+    return out
 
 
 def clean(record: dict[str, str]) -> dict[str, str]:
@@ -96,14 +65,6 @@ def clean(record: dict[str, str]) -> dict[str, str]:
 
 def capacity_curve(batch: Any, heights_mm: np.ndarray) -> np.ndarray:
     """Capacity (N) of this one post at each height, in one engine call."""
-    try:
-        from fieldcheck.engine.curves import capacity_vs_height
-    except ImportError:
-        k = len(heights_mm)
-        many = batch.take(np.zeros(k, int)).replace(
-            height_mm=heights_mm, lu1_mm=np.nan, lu2_mm=np.nan
-        )
-        return np.asarray(rate(many).capacity_n, dtype=float)
     return np.asarray(capacity_vs_height(batch, heights_mm), dtype=float).reshape(-1)
 
 
@@ -390,7 +351,7 @@ class PostEditor(Screen[None]):
         description="full summary",
     )
     def full_summary(self, rating: Any, generation: int) -> None:
-        summary = rating.summary(0)
+        summary = explain.summary(rating, 0)
         self.app.call_from_thread(self._full_done, summary, generation)
 
     def _full_done(self, summary: dict[str, Any], generation: int) -> None:
@@ -475,7 +436,7 @@ class PostEditor(Screen[None]):
         out = []
         if self.rating is not None:
             out.append("[b]Working (last good rating)[/b]" if self.stale else "[b]Working[/b]")
-            for step in self.rating.working(0):
+            for step in explain.working(self.rating, 0):
                 clause = f"  [dim]{present.escape(step.clause)}[/dim]" if step.clause else ""
                 out.append(
                     f"{present.escape(step.label)}: [b]{present.escape(step.value)}[/b]{clause}"
@@ -657,7 +618,7 @@ class PostEditor(Screen[None]):
             and self.rating is not None
             and not self.stale
         ):
-            self.summary = self.rating.summary(0)  # typed since the last full summary
+            self.summary = explain.summary(self.rating, 0)  # typed since the last full summary
             self.render_rating()
         rems = list((self.summary or {}).get("remedies") or [])
         if not rems or self.stale:

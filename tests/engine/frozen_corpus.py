@@ -304,51 +304,31 @@ def outputs(recs: list[dict[str, str]], start: int = 0, step: int = 1) -> list[d
     The records are rated in one engine pass and the remedies found in one more (the summary of
     a single post finds them for that post alone: the same code on a length-one batch).
     """
-    from fieldcheck.engine import rating as rating_mod
-    from fieldcheck.engine import remedies as remedies_mod
+    from fieldcheck.engine import explain, remedies
+    from fieldcheck.engine.rating import rate
     from fieldcheck.records import parse_records
 
     parsed = parse_records(recs)
-    rating = rating_mod.rate(parsed.batch)
-    rem = remedies_mod.remedies(parsed.batch, rating)
+    rating = rate(parsed.batch)
+    found = remedies.remedies(parsed.batch, rating)
     by_row: dict[int, list[str]] = {}
     for err in parsed.errors:
         by_row.setdefault(err.row, []).append(f"{err.column}: {err.message}")
-    hooks = list(rating_mod.SUMMARY_HOOKS)
-    rating_mod.SUMMARY_HOOKS[:] = [h for h in hooks if h is not remedies_mod._summary]
     out: list[dict[str, Any]] = []
     j = 0
-    try:
-        for i in range(len(recs)):
-            if not parsed.ok[i]:
-                out.append({"errors": by_row[i]})
-                continue
-            s = rating.summary(j)
-            s.pop("cautions", None)
-            s["material"] = parsed.meta[j].get("_material", "")
-            _remedies(rating, rem, j, s)
-            if (start + i * step) % WORKING_EVERY == 0:
-                s["working"] = [dict(st.__dict__) for st in rating.working(j)]
-            out.append(_round(s))
-            j += 1
-    finally:
-        rating_mod.SUMMARY_HOOKS[:] = hooks
+    for i in range(len(recs)):
+        if not parsed.ok[i]:
+            out.append({"errors": by_row[i]})
+            continue
+        s = explain.summary(rating, j, with_remedies=False)
+        explain.remedy_keys(rating, j, s, found=found)
+        s.pop("cautions", None)
+        s["material"] = parsed.meta[j].get("_material", "")
+        if (start + i * step) % WORKING_EVERY == 0:
+            s["working"] = [dict(st.__dict__) for st in explain.working(rating, j)]
+        out.append(_round(s))
+        j += 1
     return out
-
-
-def _remedies(r: Any, rem: Any, i: int, out: dict[str, Any]) -> None:
-    """The summary's remedies keys for post i, from remedies found for the whole batch."""
-    if not (r.ratio[i] > 1.0 or r.action[i] >= 2):
-        out["remedies"] = []
-        return
-    out["remedies"] = [x.as_dict() for x in rem.for_post(i)]
-    if not out["remedies"]:
-        out["remedies_note"] = (
-            "No single change we model makes this post pass (or it has no load): make it safe "
-            "and ask the engineer."
-            if not math.isnan(r.batch.load_n[i])
-            else "Give the load to see what would make it pass."
-        )
 
 
 def load() -> dict[str, Any]:

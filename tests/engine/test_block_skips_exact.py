@@ -9,6 +9,7 @@ through the skipped path. Both must agree to the last bit (computed from the for
 import numpy as np
 import pytest
 
+from fieldcheck.engine import explain
 from fieldcheck.engine.rating import rate
 from fieldcheck.records import parse_records
 
@@ -73,7 +74,7 @@ def test_sound_post_same_alone_and_beside_a_damaged_one(i):
     assert alone.ratio[0] == mixed.ratio[1]
     assert alone.action[0] == mixed.action[1]
     assert alone.flags[0] == mixed.flags[1]
-    assert alone.summary(0)["warnings"] == mixed.summary(1)["warnings"]
+    assert explain.summary(alone, 0)["warnings"] == explain.summary(mixed, 1)["warnings"]
 
 
 def test_damaged_post_rates_the_same_in_any_company():
@@ -101,5 +102,7 @@ def test_large_batches_in_blocks_match_one_pass(monkeypatch):
     np.testing.assert_array_equal(whole.action, blocks.action)
     np.testing.assert_array_equal(whole.flags, blocks.flags)
     for i in (0, 51, 70):
-        assert whole.summary(i) == blocks.summary(i)
-        assert [s.value for s in whole.working(i)] == [s.value for s in blocks.working(i)]
+        assert explain.summary(whole, i) == explain.summary(blocks, i)
+        assert [s.value for s in explain.working(whole, i)] == [
+            s.value for s in explain.working(blocks, i)
+        ]

@@ -7,6 +7,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
+from fieldcheck.engine import explain
 from fieldcheck.engine.batch import make_batch
 from fieldcheck.engine.rating import rate
 from fieldcheck.records import parse_records
@@ -103,13 +104,13 @@ def test_make_safe_now_conditions(kw):
     # field-practice.md §6.2 category D (judgement): always the last level, whatever the ratio
     r = rate(_post(load_n=100.0, **kw))
     assert int(r.action[0]) == 3
-    assert r.summary(0)["condition"] == "severe"
+    assert explain.summary(r, 0)["condition"] == "severe"
 
 
 def test_moisture_flags():
     # field-practice.md §1.9 (judgement [C]): > 19 CM, >= 20 decay risk, >= 28 saturated
     r = rate(_post(moisture_pct=[19.0, 20.0, 28.0]))
-    w = [r.warnings(i) for i in range(3)]
+    w = [explain.warnings(r, i) for i in range(3)]
     assert not any("decay risk" in t for t in w[0])
     assert any("decay risk" in t for t in w[1]) and not any("unreliabl" in t for t in w[1])
     assert any("unreliabl" in t for t in w[2])
@@ -126,7 +127,7 @@ def test_stress_wave():
         )
     )
     assert r.values["sw_ed_mpa"][0] == pytest.approx(12500.0)
-    w = [" ".join(r.warnings(i)) for i in range(3)]
+    w = [" ".join(explain.warnings(r, i)) for i in range(3)]
     assert "advanced" in w[0] and "suspect" in w[1] and "advanced" in w[2]  # 1.3 / 1.5 from memory
 
 
@@ -134,7 +135,7 @@ def test_kappa_from_data_level_and_flag_wording():
     r = rate(_post(knowledge=[0.75, 0.9], data_level=[0, 1], load_n=np.nan))
     base = rate(_post(load_n=np.nan)).capacity_n[0]
     assert r.capacity_n == pytest.approx([0.75 * base, 0.9 * base])
-    assert not any("unknown" in t for t in r.warnings(1))
+    assert not any("unknown" in t for t in explain.warnings(r, 1))
 
 
 # ---- properties -----------------------------------------------------------------------------

@@ -3,10 +3,9 @@
 import numpy as np
 import pytest
 
-import fieldcheck.engine  # noqa: F401  (hooks)
-from fieldcheck.engine import ground, loads
+from fieldcheck.engine import explain, loads
 from fieldcheck.engine.batch import make_batch
-from fieldcheck.engine.rating import rate
+from fieldcheck.engine.rating import FLAGS, rate
 from fieldcheck.records import parse_records, rate_records
 
 LBF = 4.4482216152605
@@ -14,6 +13,10 @@ FT = 304.8
 PSF = loads.PSF_KPA
 PSI = 0.006894757293168361
 POST = dict(size="6x6", height="8ft", species="douglas-fir-larch", grade="no1")
+
+
+def ground_bit(name: str) -> int:
+    return FLAGS.bit[name]
 
 
 def _one(**cols):
@@ -40,7 +43,7 @@ def test_soil_capacity_is_presumptive_value_times_pad_area(soil, psf):
     r = _one(load="1000lbf", pad="2ft x 2ft", soil=soil)
     c = r.checks["soil_bearing"]
     assert c.capacity_n[0] / LBF == pytest.approx(psf * 4.0, rel=1e-9)
-    s = r.summary(0)["ground"]
+    s = explain.summary(r, 0)["ground"]
     assert s["soil_check"] == "verified" and s["allowable_psf"] == psf
 
 
@@ -56,9 +59,9 @@ def test_6000_lb_on_clay_needs_4_ft2():
 @pytest.mark.parametrize(
     "cols, flag, level",
     [
-        (dict(soil="unknown"), ground.G_SOIL_UNKNOWN, 1),
-        (dict(), ground.G_SOIL_UNKNOWN, 1),  # a pad with no soil stated is unknown soil
-        (dict(soil="unprepared"), ground.G_SOIL_UNPREPARED, 2),
+        (dict(soil="unknown"), ground_bit("soil_unknown"), 1),
+        (dict(), ground_bit("soil_unknown"), 1),  # a pad with no soil stated is unknown soil
+        (dict(soil="unprepared"), ground_bit("soil_unprepared"), 2),
     ],
 )
 def test_unknown_and_unprepared_soil_never_pass_silently(cols, flag, level):
@@ -68,28 +71,28 @@ def test_unknown_and_unprepared_soil_never_pass_silently(cols, flag, level):
     assert np.isnan(r.checks["soil_bearing"].capacity_n[0])
     assert r.flags[0] & flag
     assert r.action[0] >= level
-    assert r.summary(0)["ground"]["soil_check"] == "not verified"
-    assert any("no presumptive bearing value" in w for w in r.warnings(0))
+    assert explain.summary(r, 0)["ground"]["soil_check"] == "not verified"
+    assert any("no presumptive bearing value" in w for w in explain.warnings(r, 0))
 
 
 def test_soil_without_pad_is_not_verified():
     r = _one(load="100lbf", soil="sand")
-    assert r.flags[0] & ground.G_PAD_MISSING and r.action[0] >= 1
-    assert r.summary(0)["ground"]["soil_check"] == "not verified"
+    assert r.flags[0] & ground_bit("pad_missing") and r.action[0] >= 1
+    assert explain.summary(r, 0)["ground"]["soil_check"] == "not verified"
 
 
 def test_hud_default_only_when_asked():
     # 24 CFR 3285.202(e) (read): 1,500 psf where the class cannot be determined, chosen explicitly
     r = _one(load="3000lbf", pad="2ft x 2ft", soil="unknown", soil_default="yes")
     assert r.checks["soil_bearing"].capacity_n[0] / LBF == pytest.approx(6000)
-    assert r.flags[0] & ground.G_SOIL_ASSUMED and not r.flags[0] & ground.G_SOIL_UNKNOWN
+    assert r.flags[0] & ground_bit("soil_assumed") and not r.flags[0] & ground_bit("soil_unknown")
 
 
 def test_no_pad_no_soil_no_ground_check():
     r = _one(load="1000lbf")
     assert np.isnan(r.checks["soil_bearing"].capacity_n[0])
-    assert "ground" not in r.summary(0)
-    assert not r.flags[0] & (ground.G_SOIL_UNKNOWN | ground.G_PAD_MISSING)
+    assert "ground" not in explain.summary(r, 0)
+    assert not r.flags[0] & (ground_bit("soil_unknown") | ground_bit("pad_missing"))
 
 
 def test_pad_spread_through_thickness():
@@ -100,7 +103,7 @@ def test_pad_spread_through_thickness():
     assert r.checks["soil_bearing"].capacity_n[0] == pytest.approx(2000 * PSF * 1e-3 * side**2)
     r = _one(load="1000lbf", pad="4ft x 4ft", soil="sand")  # no thickness: rigid pad, flagged
     assert r.values["pad_area_eff"][0] == pytest.approx((4 * FT) ** 2)
-    assert r.flags[0] & ground.G_PAD_RIGID
+    assert r.flags[0] & ground_bit("pad_rigid")
 
 
 def test_bearing_plate_spreads_on_the_sill():
@@ -119,19 +122,21 @@ def test_bearing_plate_spreads_on_the_sill():
     assert r1.checks["sill_bearing"].capacity_n[0] / LBF == pytest.approx(
         625 * 8 * 3.5, rel=1e-6
     )  # lb >= 6 in: Cb 1
-    assert r1.batch.end_plate[0] and r1.flags[0] & ground.G_PLATE
+    assert r1.batch.end_plate[0] and r1.flags[0] & ground_bit("plate")
 
 
 def test_bracing_demand_in_values_and_summary():
     # FEMA US&R 2 % of P (secondary) + out-of-plumb P x 1 in / 96 in (statics), field-practice.md §4.4
     r = _one(load="8000lbf", lateral_rule="fema-minimum", lean="1in")
-    br = r.summary(0)["bracing"]
+    br = explain.summary(r, 0)["bracing"]
     assert br["minimum_lbf"] == pytest.approx(160.0)
     assert br["thrust_lbf"] == pytest.approx(8000 / 96, abs=0.05)
     assert r.values["lateral_n"][0] / LBF == pytest.approx(160 + 8000 / 96)
     r = _one(load="8000lbf", lateral_rule="cal-osha", brace_edge="20ft")
-    assert r.summary(0)["bracing"]["total_lbf"] == pytest.approx(2000.0)  # 100 plf x 20 ft > 160 lb
-    assert any(s.label.startswith("Bracing must carry") for s in r.working(0))
+    assert explain.summary(r, 0)["bracing"]["total_lbf"] == pytest.approx(
+        2000.0
+    )  # 100 plf x 20 ft > 160 lb
+    assert any(s.label.startswith("Bracing must carry") for s in explain.working(r, 0))
 
 
 def test_vectorised_soil_matches_loads_soil_check():

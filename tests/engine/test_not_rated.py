@@ -12,15 +12,10 @@ import numpy as np
 import pytest
 
 from fieldcheck.cli import main
+from fieldcheck.engine import explain
 from fieldcheck.engine.batch import FIXED, FREE, PINNED, make_batch
-from fieldcheck.engine.rating import (
-    ACTIONS,
-    DUE_DAYS,
-    F_BASE_FIXITY,
-    NOT_RATED,
-    STATE_LOAD_MISSING,
-    rate,
-)
+from fieldcheck.engine.rating import FLAGS, rate
+from fieldcheck.engine.result import ACTIONS, DUE_DAYS, NOT_RATED, STATE_LOAD_MISSING
 from fieldcheck.records import rate_records
 
 PSI = 0.006894757293168361
@@ -90,10 +85,10 @@ def test_wane_leaving_no_section_is_refused(capsys):
 def test_json_never_holds_nan_or_infinity():
     # a mechanism (free-free ends) has no capacity: the JSON says null, never NaN
     r = rate(_batch(load_n=1000.0, top=FREE, bottom=FREE))
-    json.dumps(r.summary(0), allow_nan=False)
+    json.dumps(explain.summary(r, 0), allow_nan=False)
     # a zero area (engine API, no refusal in front of it): ratio infinite, JSON null
     r = rate(_batch(load_n=1000.0, end_contact=0.0))
-    json.dumps(r.summary(0), allow_nan=False)
+    json.dumps(explain.summary(r, 0), allow_nan=False)
 
 
 @pytest.mark.parametrize(
@@ -102,8 +97,8 @@ def test_json_never_holds_nan_or_infinity():
 def test_flagpole_warns_of_base_fixity(bottom, top, flagged):
     # NDS 2018 Appendix G case (e): the sway K of a flagpole needs a truly fixed base
     r = rate(_batch(load_n=1000.0, bottom=bottom, top=top))
-    assert bool(int(r.flags[0]) & F_BASE_FIXITY) is flagged
-    assert any("fixity" in w for w in r.warnings(0)) is flagged
+    assert bool(int(r.flags[0]) & FLAGS.bit["base_fixity"]) is flagged
+    assert any("fixity" in w for w in explain.warnings(r, 0)) is flagged
 
 
 def test_pad_without_thickness_raises_the_action():

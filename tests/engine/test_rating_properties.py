@@ -5,9 +5,11 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
+from fieldcheck.engine import explain
 from fieldcheck.engine.batch import END_NAMES, make_batch
-from fieldcheck.engine.rating import ACTIONS, rate
+from fieldcheck.engine.rating import rate
 from fieldcheck.engine.restraint import mode_index
+from fieldcheck.engine.result import ACTIONS
 from fieldcheck.records import parse_records
 
 PSI = 0.006894757293168361
@@ -78,7 +80,7 @@ def test_no_nan_or_inf_and_always_an_action(p):
         and (r.values["cp"] <= 1).all()
     )
     assert 0 <= int(r.action[0]) < len(ACTIONS)
-    s = r.summary(0)
+    s = explain.summary(r, 0)
     assert s["action"] in ACTIONS
 
 

@@ -5,7 +5,7 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-import fieldcheck.engine  # noqa: F401  (hooks)
+from fieldcheck.engine import explain
 from fieldcheck.engine.rating import rate
 from fieldcheck.engine.remedies import KINDS, remedies
 from fieldcheck.records import parse_records
@@ -114,7 +114,7 @@ def test_nothing_offered_when_nothing_passes_or_no_load():
     assert (
         remedies(p.batch).for_post(0) == []
     )  # unprepared ground: repair-or-brace whatever we change
-    s = rate(p.batch).summary(0)
+    s = explain.summary(rate(p.batch), 0)
     assert s["remedies"] == [] and "remedies_note" in s
     p = parse_records(
         [_rec(height="20ft")]

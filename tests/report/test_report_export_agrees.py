@@ -6,7 +6,8 @@ import csv
 import math
 
 from fieldcheck.cli import main
-from fieldcheck.engine.rating import ACTIONS, rate
+from fieldcheck.engine.rating import rate
+from fieldcheck.engine.result import ACTIONS
 from fieldcheck.records import parse_records
 from fieldcheck.report.html import render_report
 from fieldcheck.units import format_force

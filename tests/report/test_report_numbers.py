@@ -9,8 +9,10 @@ from html import escape
 import numpy as np
 import pytest
 
+from fieldcheck.engine import explain
 from fieldcheck.engine.curves import capacity_vs_height
-from fieldcheck.engine.rating import ACTIONS, DUE_DAYS, rate
+from fieldcheck.engine.rating import rate
+from fieldcheck.engine.result import ACTIONS, DUE_DAYS
 from fieldcheck.records import parse_records
 from fieldcheck.report import model
 from fieldcheck.report.html import ratio_text, render_report
@@ -145,7 +147,7 @@ def test_report_summary_equals_rating_summary(demo_log):
     _posts, r = _engine(demo_log)
     data = model.gather(demo_log)
     for p in data.posts:
-        full = r.summary(p.j)
+        full = explain.summary(r, p.j)
         for key in (
             "method",
             "demand_capacity_ratio",

@@ -11,9 +11,12 @@ import math
 import numpy as np
 import pytest
 
-from fieldcheck.engine import nds
+from fieldcheck.engine import explain, nds
 from fieldcheck.engine.batch import FIXED, FREE, LRFD, PINNED, TIMBER, make_batch
-from fieldcheck.engine.rating import F_SLENDER_CONSTRUCTION, F_SLENDER_LIMIT, rate
+from fieldcheck.engine.rating import FLAGS, rate
+
+F_SLENDER_CONSTRUCTION = FLAGS.bit["slender_construction"]
+F_SLENDER_LIMIT = FLAGS.bit["slender_limit"]
 from fieldcheck.records import rate_records
 
 PSI = 0.006894757293168361
@@ -133,15 +136,15 @@ def test_example_c_flagpole_recommended_and_theoretical():
     # at 8 ft le/d 57.6 exceeds 50: flagged, and the action is at least repair-or-brace
     assert r.flags[0] & F_SLENDER_LIMIT
     assert r.action[0] >= 2
-    assert not r.summary(0)["within_slenderness_limit"]
-    assert r.summary(2)["within_slenderness_limit"]
+    assert not explain.summary(r, 0)["within_slenderness_limit"]
+    assert explain.summary(r, 2)["within_slenderness_limit"]
 
 
 def test_example_c_construction_stage_allows_75():
     r = rate(dfl_no2_4x4(96.0, bottom=FIXED, top=FREE, construction=True))  # NDS 2018 §3.7.1.4
     assert r.flags[0] & F_SLENDER_CONSTRUCTION
     assert not r.flags[0] & F_SLENDER_LIMIT
-    assert r.summary(0)["within_slenderness_limit"]
+    assert explain.summary(r, 0)["within_slenderness_limit"]
 
 
 def test_example_f_built_up_nailed_and_bolted():

@@ -1,0 +1,142 @@
+"""The explain layer: one post of a rating in words and numbers, for the CLI, the interface and
+the report alike.
+
+- :func:`summary` is the JSON object of ``fieldcheck rate --json`` (the core keys, each stage's
+  keys in stage order, then what would make a failing post pass);
+- :func:`warnings` the warnings of the post's flags;
+- :func:`working` the working, step by step with clauses (the column's steps, each stage's,
+  then the checks and the action).
+
+A rating of a large batch keeps no intermediates: these re-rate the one post alone
+(rating.detail), the same code on a length-one batch. Remedies (remedies.py) and capacity curves
+(curves.py) belong to this layer too; they call the engine again on variants of a post.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from fieldcheck.engine import remedies
+from fieldcheck.engine.batch import METHOD_NAMES
+from fieldcheck.engine.cautions import CAUTIONS
+from fieldcheck.engine.customary import LBF
+from fieldcheck.engine.rating import FLAGS, STAGES, detail
+from fieldcheck.engine.result import ACTION_TEXT, ACTIONS, DUE_DAYS, NOT_RATED, Rating, Step
+from fieldcheck.engine.working import closing_steps, column_steps
+
+
+def num(x: float, nd: int) -> float | None:
+    """Rounded, or None for NaN and infinities (JSON has neither)."""
+    x = float(x)
+    return round(x, nd) if np.isfinite(x) else None
+
+
+def finite(obj):
+    """obj with every NaN or infinite float replaced by None, through dicts and lists: the JSON
+    of a rating never holds NaN or Infinity (an unrated or impossible value is null)."""
+    if isinstance(obj, float | np.floating):
+        return float(obj) if np.isfinite(obj) else None
+    if isinstance(obj, dict):
+        return {k: finite(v) for k, v in obj.items()}
+    if isinstance(obj, list | tuple):
+        return [finite(v) for v in obj]
+    return obj
+
+
+def warnings(r: Rating, i: int) -> list[str]:
+    """The warnings of post i, in the order of the flag table."""
+    return FLAGS.texts(int(r.flags[i]))
+
+
+def working(r: Rating, i: int) -> list[Step]:
+    """The working of post i: the column's steps, each stage's, the checks and the action."""
+    r, i = detail(r, i)
+    steps = column_steps(r, i)
+    for stage in STAGES:
+        if stage.steps is not None:
+            steps.extend(stage.steps(r, i))
+    steps.extend(closing_steps(r, i))
+    return steps
+
+
+def summary(r: Rating, i: int, with_remedies: bool = True) -> dict:
+    """The JSON object of ``fieldcheck rate --json`` for post i.
+
+    ``with_remedies=False`` leaves out what would make it pass (one more engine call per
+    failing post): for callers that find the remedies of many posts at once
+    (remedies.remedies) and add them with :func:`remedy_keys`.
+    """
+    r, i = detail(r, i)
+    v = r.values
+    ax = int(v["axis"][i])
+    cap = float(r.capacity_n[i])
+    checks = []
+    for name, c in r.checks.items():
+        capn = float(c.capacity_n[i])
+        if np.isnan(capn):
+            continue
+        checks.append(
+            {
+                "name": name,
+                "label": c.label,
+                "capacity_kN": num(capn / 1000.0, 4),
+                "capacity_lbf": num(capn / LBF, 1),
+                "demand_kN": num(c.demand_n[i] / 1000.0, 4),
+                "ratio": num(float(c.ratio[i]), 4),
+                "clause": c.clause,
+            }
+        )
+    act = int(r.action[i])
+    out = {
+        "method": METHOD_NAMES[int(r.batch.method[i])],
+        "state": r.state(i),
+        "allowable_load_lbf": num(cap / LBF, 1),
+        "allowable_load_kN": num(cap / 1000.0, 4),
+        "demand_lbf": num(r.demand_n[i] / LBF, 1),
+        "demand_kN": num(r.demand_n[i] / 1000.0, 4),
+        "demand_capacity_ratio": num(float(r.ratio[i]), 4),
+        "governing_check": r.governing_name(i),
+        "governing_axis": ax,
+        "effective_length_factor": round(float(v["ke1" if ax == 1 else "ke2"][i]), 4),
+        "effective_length_factors": [
+            round(float(v["ke1"][i]), 4),
+            round(float(v["ke2"][i]), 4),
+        ],
+        "slenderness_ratio": round(float(v["le_d_max"][i]), 3),
+        "slenderness_ratios": [round(float(v["le_d1"][i]), 3), round(float(v["le_d2"][i]), 3)],
+        "slenderness_limit": float(v["le_d_limit"][i]),
+        "stability_factor": round(float(v["cp"][i]), 6),
+        "within_slenderness_limit": bool(v["le_d_max"][i] <= v["le_d_limit"][i]),
+        "action": ACTIONS[act],
+        "action_text": ACTION_TEXT[act],
+        "due_days": DUE_DAYS[act],
+        "checks": checks,
+        "warnings": warnings(r, i),
+        "cautions": list(CAUTIONS),
+    }
+    for stage in STAGES:  # each stage's keys (the condition, the ground and the loads)
+        if stage.summary is not None:
+            stage.summary(r, i, out)
+    if with_remedies:
+        remedy_keys(r, i, out)
+    return finite(out)
+
+
+def remedy_keys(r: Rating, i: int, out: dict, found: remedies.Remedies | None = None) -> None:
+    """The summary's ``remedies`` (and ``remedies_note``) for post i: from ``found`` (remedies
+    of the whole batch) or found now for post i alone."""
+    if not (r.ratio[i] > 1.0 or 2 <= r.action[i] < NOT_RATED):
+        out["remedies"] = []
+        return
+    if found is None:
+        found, j = remedies.remedies(r.batch.take(np.array([i]))), 0
+    else:
+        j = i
+    out["remedies"] = [x.as_dict() for x in found.for_post(j)]
+    if not out["remedies"]:
+        out["remedies_note"] = (
+            "No single change we model makes this post pass (or it has no load): make it safe "
+            "and ask the engineer."
+            if not np.isnan(r.batch.load_n[i])
+            else "Give the load to see what would make it pass."
+        )

@@ -1,0 +1,102 @@
+"""What a rating is: checks, the working's steps, the rating of a batch, the actions.
+
+Plain data. The stages (rating.STAGES) fill it; the explain layer (explain.py) turns one post
+of it into text for a person.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from fieldcheck.engine.batch import PostBatch
+
+# Action categories (our own wording; the ratio bands are judgement, common practice, no source).
+# Code 4, NOT_RATED, is a state of its own: a decision input (the load) is missing, so no
+# decision is made. It is never no-action or monitor and carries no due date. It sits after
+# make-safe-now in the tuples so that ACTIONS[code] works; compare with NOT_RATED, never with >=.
+ACTIONS = ("no-action", "monitor", "repair-or-brace", "make-safe-now", "not-rated")
+ACTION_TEXT = (
+    "No action: adequate as found.",
+    "Monitor: re-inspect at the next visit and after any change; read the warnings.",
+    "Repair or brace before the due date; restrict the load until then.",
+    "Make safe now: clear the area under the load and call the engineer.",
+    "Not rated: load missing. No decision can be made: give the load on the post (or the "
+    "tributary area and the loads on it) and rate it again; until then treat it as unrated.",
+)
+DUE_DAYS = (None, 90, 14, 0, None)  # judgement defaults, editable later
+NOT_RATED = 4
+# Why a post is not rated (the state key of the --json output); one reason today.
+STATE_RATED = "rated"
+STATE_LOAD_MISSING = "not rated: load missing"
+RATIO_BANDS = (0.8, 1.0, 1.25)  # <= 0.8 none, <= 1.0 monitor, <= 1.25 repair, above: make safe
+
+
+@dataclass
+class Check:
+    name: str
+    label: str
+    clause: str
+    capacity_n: np.ndarray
+    demand_n: np.ndarray
+
+    @property
+    def ratio(self) -> np.ndarray:
+        with np.errstate(divide="ignore", invalid="ignore"):
+            return self.demand_n / self.capacity_n
+
+
+@dataclass
+class Step:
+    """One line of the working: what, its value and unit, and where it comes from."""
+
+    label: str
+    value: str
+    clause: str = ""
+
+
+@dataclass
+class Rating:
+    """The rating of a batch: arrays of length n, the checks by name, the intermediates.
+
+    A batch of one block keeps every intermediate in ``values``; a larger one (``partial``)
+    keeps the rating and the intermediates asked for (rate(keep=)): the explain layer re-rates
+    one post alone (rating.detail) for its text.
+    """
+
+    batch: PostBatch
+    checks: dict[str, Check]
+    capacity_n: np.ndarray
+    demand_n: np.ndarray
+    ratio: np.ndarray
+    governing: np.ndarray  # index into check_names
+    action: np.ndarray
+    flags: np.ndarray
+    values: dict[str, np.ndarray] = field(default_factory=dict)  # intermediates by name
+    partial: bool = False  # large batch: the rating and rate(keep=) only; per-post text re-rates
+
+    @property
+    def check_names(self) -> tuple[str, ...]:
+        return tuple(self.checks)
+
+    @property
+    def n(self) -> int:
+        return self.batch.n
+
+    def __getattr__(self, name: str) -> np.ndarray:
+        values = self.__dict__.get("values", {})
+        if name in values:
+            return values[name]
+        raise AttributeError(name)
+
+    def governing_name(self, i: int) -> str:
+        return self.check_names[int(self.governing[i])]
+
+    def state(self, i: int) -> str:
+        """ "rated", or "not rated: load missing" (a decision input is missing: no decision)."""
+        return STATE_LOAD_MISSING if int(self.action[i]) == NOT_RATED else STATE_RATED
+
+    def rated(self) -> np.ndarray:
+        """Boolean array: True where a decision was made (False: not rated, load missing)."""
+        return self.action != NOT_RATED
