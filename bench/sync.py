@@ -4,7 +4,9 @@ empty office log, then repeat the sync (nothing to move), and measure peak Pytho
 Peak memory is tracemalloc's peak during the first sync (rows stream inside SQLite and in
 fixed-size batches, so it must not grow with N); a second, smaller run shows it side by side.
 Prints one JSON object on its last line: {"rows", "first_seconds", "repeat_seconds", "peak_mb",
-...}. Targets (issue 8): first sync under 5 s, repeat under 0.5 s.
+...}. Targets (issue 8): first sync under 5 s, repeat under 0.5 s. Then 10 new posts synced from
+a log the office already holds (``incremental_1e5_seconds``; ``--incremental 1000000`` gives
+``incremental_1e6_seconds``, target under 0.2 s: the cost follows what is new).
 """
 
 from __future__ import annotations
@@ -60,17 +62,55 @@ def run(n: int) -> dict:
     }
 
 
+def incremental(n: int, new: int = 10) -> dict:
+    """Sync ``new`` new posts from a field log of ``n`` posts already held by the office: the
+    cost must follow what is new, not the size of the log. The floor is a sync that moves
+    nothing, taken in the same run."""
+    with tempfile.TemporaryDirectory() as tmp:
+        field, office = Path(tmp) / "field.db", Path(tmp) / "office.db"
+        t = time.perf_counter()
+        with Log.open(field, author="bench", device="bench-field") as log:
+            log.import_rows(synthetic(n), "Bench site", "Bench visit")
+            sync(log, office)  # the first sync: every row moves (not timed)
+            build_s = time.perf_counter() - t
+            t = time.perf_counter()
+            sync(log, office)  # nothing new: the floor (each side's conflict list now kept)
+            nothing_s = time.perf_counter() - t
+            visit = log.visits()[0]
+            for row in synthetic(new, start=n):
+                log.save_post(visit.id, row)
+            t = time.perf_counter()
+            res = sync(log, office)
+            inc_s = time.perf_counter() - t
+        assert res.sent.get("observations") == new, res.sentence()
+    return {
+        f"incremental_{n:.0e}_seconds".replace("+0", ""): round(inc_s, 3),
+        "incremental_posts": new,
+        "nothing_new_seconds": round(nothing_s, 3),
+        "incremental_build_seconds": round(build_s, 1),
+    }
+
+
 def main() -> None:
     ap = argparse.ArgumentParser()
     ap.add_argument("--rows", type=int, default=100_000)
     ap.add_argument("--small", type=int, default=10_000)
+    ap.add_argument(
+        "--incremental",
+        type=int,
+        default=100_000,
+        help="log size for the 10-new-posts sync (1000000 for incremental_1e6_seconds: minutes)",
+    )
     a = ap.parse_args()
+    inc = incremental(a.incremental)
+    print(json.dumps(inc))
     small = run(a.small)
     print(json.dumps(small))
     big = run(a.rows)
     big["small_rows"] = small["rows"]
     big["small_peak_mb"] = small["peak_mb"]
     big["small_first_seconds"] = small["first_seconds"]
+    big.update(inc)
     print(json.dumps(big))
 
 

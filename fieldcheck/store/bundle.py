@@ -617,15 +617,11 @@ class SqliteTarget:
         )
 
     def conflicts(self) -> list[str]:
-        return [
-            r[0]
-            for r in self.conn.execute(
-                "SELECT member_id FROM main.observations o WHERE NOT EXISTS "
-                "(SELECT 1 FROM main.observations c WHERE c.supersedes = o.id) AND NOT EXISTS "
-                "(SELECT 1 FROM main.observations c WHERE c.merges = o.id) "
-                "GROUP BY member_id HAVING count(*) > 1 ORDER BY member_id"
-            )
-        ]
+        """Members in conflict, from what is new since the last look (kept in the log's meta
+        when inside the merge's write transaction)."""
+        from fieldcheck.store.conflicts import open_conflicts
+
+        return open_conflicts(self.conn, store=self.conn.in_transaction)
 
 
 def begin_immediate(conn: sqlite3.Connection, wait_s: float = LOCK_WAIT_S) -> None:

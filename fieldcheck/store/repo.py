@@ -813,14 +813,12 @@ class Log:
             raise exc.in_log(self.path) from None
 
     def conflicts(self) -> list[str]:
-        """Members with more than one head (revisions made without seeing each other)."""
-        return [
-            r["member_id"]
-            for r in self.db.query(
-                "SELECT member_id FROM observations o WHERE " + HEAD + " "
-                "GROUP BY member_id HAVING count(*) > 1"
-            )
-        ]
+        """Members with more than one head (revisions made without seeing each other), sorted;
+        found from the revisions written since the last call (``fieldcheck.store.conflicts``)."""
+        from fieldcheck.store.conflicts import open_conflicts
+
+        with self._lock:
+            return open_conflicts(self.db.conn, store=not self.readonly)
 
     def counts_by_action(self, visit_id: str | None = None) -> dict[str, int]:
         """{action label: number of current posts}, every label present (for the first screen)."""
