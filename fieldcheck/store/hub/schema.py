@@ -5,8 +5,12 @@ Everything lives in one schema, ``fieldcheck``, so a hub shares a database with 
 accident. The synced tables have the same names and columns as the survey log's
 (``fieldcheck.store.schema``) and are append-only on the server too: grants give inspectors
 SELECT and INSERT only, and triggers refuse UPDATE, DELETE and TRUNCATE for every role.
-``hub_meta`` holds ``schema_version``, ``hub_id`` and ``firm_id``; ``hub_migrations`` lists the
-migrations applied. A fieldcheck that finds a newer ``schema_version`` refuses the hub.
+References between tables are checked by each sync over the rows it brings, set-based
+(``hub.sync.check_references``), rather than by per-row foreign-key triggers, which cost more than
+the rest of a large first sync together; nothing is ever deleted, so a reference checked once
+stays good. ``hub_meta`` holds ``schema_version``, ``hub_id`` and ``firm_id``;
+``hub_migrations`` lists the migrations applied. A fieldcheck that finds a newer
+``schema_version`` refuses the hub.
 
 Version history
   1  sites, visits, members, observations (with ``merges``: the second parent of a revision that
@@ -41,6 +45,9 @@ APPEND_ONLY = (
     "remedied",
 )
 
+# tables under row-level security (the administrator's SQL): COPY cannot write them, INSERT does
+ROW_SECURITY = ("reviews",)
+
 REVIEW_KINDS = ("note", "sign-off", "accept", "override", "require-remedy", "settle")
 
 _TRIGGERS = "".join(
@@ -67,7 +74,7 @@ CREATE TABLE sites (
     notes TEXT NOT NULL DEFAULT '',{_ORIGIN});
 CREATE TABLE visits (
     id TEXT PRIMARY KEY,
-    site_id TEXT NOT NULL REFERENCES sites(id),
+    site_id TEXT NOT NULL,
     name TEXT NOT NULL CHECK (length(name) > 0),
     inspector TEXT NOT NULL,
     started_at TEXT NOT NULL,
@@ -76,14 +83,14 @@ CREATE TABLE visits (
     notes TEXT NOT NULL DEFAULT '',{_ORIGIN});
 CREATE TABLE members (
     id TEXT PRIMARY KEY,
-    site_id TEXT NOT NULL REFERENCES sites(id),
+    site_id TEXT NOT NULL,
     tag TEXT NOT NULL DEFAULT '',{_ORIGIN});
 CREATE TABLE observations (
     id TEXT PRIMARY KEY,
-    member_id TEXT NOT NULL REFERENCES members(id),
-    visit_id TEXT NOT NULL REFERENCES visits(id),
-    supersedes TEXT REFERENCES observations(id),
-    merges TEXT REFERENCES observations(id),
+    member_id TEXT NOT NULL,
+    visit_id TEXT NOT NULL,
+    supersedes TEXT,
+    merges TEXT,
     withdrawn BIGINT NOT NULL DEFAULT 0 CHECK (withdrawn IN (0, 1)),
     reason TEXT NOT NULL DEFAULT '',
     record_json TEXT NOT NULL,{_ORIGIN});
@@ -94,9 +101,9 @@ CREATE TABLE engine_stamps (
     created_at TEXT NOT NULL);
 CREATE TABLE ratings (
     id TEXT PRIMARY KEY,
-    observation_id TEXT NOT NULL REFERENCES observations(id),
+    observation_id TEXT NOT NULL,
     engine_version TEXT NOT NULL,
-    stamp_id TEXT NOT NULL REFERENCES engine_stamps(id),
+    stamp_id TEXT NOT NULL,
     capacity_n DOUBLE PRECISION,
     demand_n DOUBLE PRECISION,
     ratio DOUBLE PRECISION,
@@ -106,47 +113,40 @@ CREATE TABLE ratings (
     summary_json TEXT,{_ORIGIN});
 CREATE TABLE attachments (
     id TEXT PRIMARY KEY,
-    observation_id TEXT REFERENCES observations(id),
-    member_id TEXT NOT NULL REFERENCES members(id),
+    observation_id TEXT,
+    member_id TEXT NOT NULL,
     path TEXT NOT NULL,
     sha256 TEXT NOT NULL CHECK (length(sha256) = 64),
     size_bytes BIGINT NOT NULL,
     caption TEXT NOT NULL DEFAULT '',{_ORIGIN});
 CREATE TABLE reviews (
     id TEXT PRIMARY KEY,
-    member_id TEXT REFERENCES members(id),
-    observation_id TEXT REFERENCES observations(id),
-    visit_id TEXT REFERENCES visits(id),
+    member_id TEXT,
+    observation_id TEXT,
+    visit_id TEXT,
     kind TEXT NOT NULL CHECK (kind IN ({_KINDS})),
     text TEXT NOT NULL DEFAULT '',
     action BIGINT CHECK (action IS NULL OR action BETWEEN 0 AND 3),{_ORIGIN});
 CREATE TABLE proposals (
     id TEXT PRIMARY KEY,
-    member_id TEXT NOT NULL REFERENCES members(id),
-    observation_id TEXT NOT NULL REFERENCES observations(id),
-    visit_id TEXT NOT NULL REFERENCES visits(id),
+    member_id TEXT NOT NULL,
+    observation_id TEXT NOT NULL,
+    visit_id TEXT NOT NULL,
     kind TEXT NOT NULL CHECK (length(kind) > 0),
     description TEXT NOT NULL CHECK (length(description) > 0),
     changes_json TEXT NOT NULL,
     ratio DOUBLE PRECISION,{_ORIGIN});
 CREATE TABLE remedied (
     id TEXT PRIMARY KEY,
-    member_id TEXT NOT NULL REFERENCES members(id),
-    observation_id TEXT NOT NULL REFERENCES observations(id),
-    proposal_id TEXT REFERENCES proposals(id),
+    member_id TEXT NOT NULL,
+    observation_id TEXT NOT NULL,
+    proposal_id TEXT,
     done_on TEXT NOT NULL,{_ORIGIN});
-CREATE INDEX proposals_member ON proposals(member_id);
-CREATE INDEX remedied_member ON remedied(member_id);
-CREATE INDEX visits_site ON visits(site_id);
-CREATE INDEX members_site ON members(site_id);
+-- only the indexes sync reads through (each one costs every large first sync): heads and
+-- conflicts by member, by parent and by second parent
 CREATE INDEX observations_member ON observations(member_id);
-CREATE INDEX observations_visit ON observations(visit_id);
-CREATE INDEX observations_supersedes ON observations(supersedes);
+CREATE INDEX observations_supersedes ON observations(supersedes) WHERE supersedes IS NOT NULL;
 CREATE INDEX observations_merges ON observations(merges) WHERE merges IS NOT NULL;
-CREATE INDEX ratings_observation ON ratings(observation_id);
-CREATE INDEX attachments_member ON attachments(member_id);
-CREATE INDEX reviews_member ON reviews(member_id);
-CREATE INDEX reviews_visit ON reviews(visit_id);
 CREATE FUNCTION refuse_change() RETURNS trigger LANGUAGE plpgsql AS $$
 BEGIN
     RAISE EXCEPTION '% is append-only: record a new revision instead', TG_TABLE_NAME

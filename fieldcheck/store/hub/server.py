@@ -86,6 +86,14 @@ WHERE c.relkind IN ('r', 'p', 'v', 'm', 'f') AND n.nspname NOT IN ('pg_catalog',
 """
 
 
+# a catalog query, not to_regclass(): it reads with the statement's snapshot, so after waiting for
+# the advisory lock it sees the schema another sync has just created (the relation cache may not)
+_HUB_EXISTS = (
+    "SELECT count(*) FROM pg_class c JOIN pg_namespace n ON n.oid = c.relnamespace "
+    f"WHERE n.nspname = '{SCHEMA}' AND c.relname = 'hub_meta'"
+)
+
+
 def _meta(conn: psycopg.Connection) -> dict[str, str]:
     return dict(conn.execute(f"SELECT key, value FROM {SCHEMA}.hub_meta").fetchall())
 
@@ -96,8 +104,7 @@ def ensure_hub(conn: psycopg.Connection, url: str) -> HubInfo:
     holding other tables, and a hub of a newer schema."""
     where = redact(url)
     try:
-        exists = conn.execute("SELECT to_regclass(%s)", [f"{SCHEMA}.hub_meta"]).fetchone()[0]
-        if exists is None:
+        if not conn.execute(_HUB_EXISTS).fetchone()[0]:
             if conn.execute(_OTHER_TABLES).fetchone()[0]:
                 raise HubError(
                     f"the database at {where} is not a fieldcheck hub (it holds other tables and "
@@ -127,7 +134,7 @@ def _migrate(conn: psycopg.Connection, url: str, have: int) -> None:
     try:
         with conn.transaction():
             conn.execute("SELECT pg_advisory_xact_lock(%s)", [LOCK_KEY])
-            exists = conn.execute("SELECT to_regclass(%s)", [f"{SCHEMA}.hub_meta"]).fetchone()[0]
+            exists = conn.execute(_HUB_EXISTS).fetchone()[0]
             now = int(_meta(conn).get("schema_version", "0")) if exists else 0
             for v in sorted(MIGRATIONS):
                 if v > now:

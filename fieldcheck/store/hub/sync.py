@@ -28,9 +28,10 @@ from pathlib import Path
 
 import psycopg
 from psycopg import errors as pgerr
+from psycopg.copy import QueuedLibpqWriter
 
 from fieldcheck.store import bundle as bf
-from fieldcheck.store.hub.schema import SCHEMA
+from fieldcheck.store.hub.schema import ROW_SECURITY, SCHEMA
 from fieldcheck.store.hub.server import HubInfo, connect, ensure_hub, explain
 from fieldcheck.store.hub.url import HubError, redact
 from fieldcheck.store.merge import (
@@ -80,13 +81,18 @@ def _sqlite_columns(conn: sqlite3.Connection, table: str, schema: str = "main") 
 
 
 def _hub_columns(conn: psycopg.Connection) -> dict[str, list[str]]:
-    out: dict[str, list[str]] = {}
-    for table, col in conn.execute(
-        "SELECT table_name, column_name FROM information_schema.columns WHERE table_schema = %s "
-        "ORDER BY table_name, ordinal_position",
+    return {t: list(cols) for t, cols in _hub_types(conn).items()}
+
+
+def _hub_types(conn: psycopg.Connection) -> dict[str, dict[str, str]]:
+    """table -> column -> PostgreSQL type name, in column order."""
+    out: dict[str, dict[str, str]] = {}
+    for table, col, typ in conn.execute(
+        "SELECT table_name, column_name, data_type FROM information_schema.columns "
+        "WHERE table_schema = %s ORDER BY table_name, ordinal_position",
         [SCHEMA],
     ):
-        out.setdefault(table, []).append(col)
+        out.setdefault(table, {})[col] = typ
     return out
 
 
@@ -94,26 +100,38 @@ def _hub_columns(conn: psycopg.Connection) -> dict[str, list[str]]:
 
 
 class PgTarget:
-    """``merge.MergeTarget`` over the hub: rows were staged in ``stage_<table>`` temp tables."""
+    """``merge.MergeTarget`` over the hub. The rows come straight from the field log by COPY:
+    they are the ranges the hub's vector lacks, so an id the hub already holds can only be a
+    clash (another row under that id), which the primary key refuses and the sync is refused
+    with nothing changed.
+
+    References need no per-row check here: the field log refuses a row whose parent it lacks
+    (SQLite foreign keys), holds every row of each device up to its vector, and sends every
+    range the hub lacks, so after the send the hub holds every row the field log holds, parents
+    included; and nothing is ever deleted on either side."""
 
     office = True
 
-    def __init__(self, conn: psycopg.Connection, staged: Mapping[str, list[str]]):
+    def __init__(self, conn, src: sqlite3.Connection, cols, types, ranges, touched, candidates):
         self.conn = conn
-        self.staged = staged  # table -> columns staged
+        self.src = src
+        self.cols = cols  # table -> the field log's columns
+        self.types = types  # table -> column -> declared SQLite type
+        self.ranges = ranges
+        self.touched = touched  # members the hub held already that this sync revises
+        self.candidates = candidates  # those, and new members revised more than once here
+        self._asked = False
         self.schema_version = SCHEMA_VERSION
-        self._hub_cols = _hub_columns(conn)
+        self._hub_types = _hub_types(conn)
+        self._hub_cols = {t: list(c) for t, c in self._hub_types.items()}
 
     def firm_id(self) -> str:
-        row = self.conn.execute(
-            f"SELECT value FROM {SCHEMA}.hub_meta WHERE key = 'firm_id'"
-        ).fetchone()
-        return row[0] if row else ""
+        return _hub_firm(self.conn)
 
     def columns(self, table: str) -> list[str] | None:
         if table not in self._hub_cols:
             return None
-        cols = self.staged[table]
+        cols = self.cols[table]
         missing = [c for c in cols if c not in self._hub_cols[table]]
         if missing:
             raise TransferRefused(
@@ -123,25 +141,44 @@ class PgTarget:
         return cols
 
     def mismatched(self, table: str, columns: Sequence[str], source) -> int:
-        same = " AND ".join(f"m.{c} IS NOT DISTINCT FROM s.{c}" for c in columns)
-        return self.conn.execute(
-            f"SELECT count(*) FROM stage_{table} s JOIN {SCHEMA}.{table} m ON m.id = s.id "
-            f"WHERE NOT ({same})"
-        ).fetchone()[0]
+        return 0  # see the class docstring: the primary key refuses a clash at COPY
 
     @contextlib.contextmanager
     def transaction(self) -> Iterator[None]:
         yield  # the caller holds the one server transaction
 
     def insert_missing(self, table: str, columns: Sequence[str], source, progress) -> int:
-        cols = ",".join(columns)
-        cur = self.conn.execute(
-            f"INSERT INTO {SCHEMA}.{table} ({cols}) SELECT {cols} FROM stage_{table} "
-            "ORDER BY id ON CONFLICT (id) DO NOTHING"
-        )
-        n = self.conn.execute(f"SELECT count(*) FROM stage_{table}").fetchone()[0]
-        progress(n)
-        return max(cur.rowcount, 0)
+        if table in ROW_SECURITY:  # few rows, and COPY cannot pass a row-level policy
+            return self._insert_rows(table, columns, progress)
+        n = 0
+        sql = f"COPY {SCHEMA}.{table} ({','.join(columns)}) FROM STDIN (FORMAT BINARY)"
+        cur = self.conn.cursor()
+        # the network and the server work on one batch while this thread reads the next
+        with cur.copy(sql, writer=QueuedLibpqWriter(cur)) as cp:
+            cp.set_types([self._hub_types[table][c] for c in columns])
+            for batch in _field_batches(self.src, table, columns, self.ranges):
+                for row in batch:
+                    cp.write_row(row)
+                n += len(batch)
+                progress(len(batch))
+        return n
+
+    def _insert_rows(self, table: str, columns: Sequence[str], progress) -> int:
+        sel = ",".join(columns)
+        sql = f"INSERT INTO {SCHEMA}.{table} ({sel}) VALUES ({','.join(['%s'] * len(columns))})"
+        n = 0
+        for dev, (lo, hi) in sorted(self.ranges.items()):
+            rows = self.src.execute(
+                f"SELECT {sel} FROM main.{table} WHERE device_id = ? "
+                "AND device_seq BETWEEN ? AND ? ORDER BY device_seq",
+                [dev, lo, hi],
+            ).fetchall()
+            if rows:
+                with self.conn.cursor() as cur:
+                    cur.executemany(sql, rows)
+                n += len(rows)
+                progress(len(rows))
+        return n
 
     def set_firm(self, firm_id: str) -> None:
         held = self.conn.execute(f"SELECT {SCHEMA}.adopt_firm(%s)", [firm_id]).fetchone()[0]
@@ -152,25 +189,26 @@ class PgTarget:
         pass  # the hub's holdings are its rows (``hub_vector``): no bookkeeping to keep
 
     def conflicts(self) -> list[str]:
-        """Members touched by this sync with more than one head (index lookups per member)."""
-        if "observations" not in self.staged:
-            return []
+        """Members this sync touches with more than one head. merge() asks before the inserts
+        (only members the hub held already can be in conflict then) and after them (those, and
+        new members with more than one revision in this sync: a new member with one revision
+        cannot have two heads). Index lookups per member, never a scan of the hub."""
         obs = f"{SCHEMA}.observations"
-        return [
-            r[0]
-            for r in self.conn.execute(
-                f"SELECT o.member_id FROM {obs} o "
-                "WHERE o.member_id IN (SELECT DISTINCT member_id FROM stage_observations) "
-                f"AND NOT EXISTS (SELECT 1 FROM {obs} c WHERE c.supersedes = o.id) "
-                f"AND NOT EXISTS (SELECT 1 FROM {obs} c WHERE c.merges = o.id) "
-                "GROUP BY o.member_id HAVING count(*) > 1 ORDER BY o.member_id"
-            )
-        ]
+        heads = (
+            f"NOT EXISTS (SELECT 1 FROM {obs} c WHERE c.supersedes = o.id) "
+            f"AND NOT EXISTS (SELECT 1 FROM {obs} c WHERE c.merges = o.id) "
+            "GROUP BY o.member_id HAVING count(*) > 1 ORDER BY o.member_id"
+        )
+        members = self.touched if not self._asked else self.candidates
+        self._asked = True
+        if not members:
+            return []
+        sql = f"SELECT o.member_id FROM {obs} o WHERE o.member_id = ANY(%s) AND {heads}"
+        return [r[0] for r in self.conn.execute(sql, [members])]
 
 
-def _field_rows(
-    src: sqlite3.Connection, table: str, cols: Sequence[str], ranges: Mapping
-) -> Iterator[tuple]:
+def _field_batches(src, table: str, cols: Sequence[str], ranges) -> Iterator[list[tuple]]:
+    """The field log's rows in ``ranges``, 20,000 at a time."""
     sel = ",".join(cols)
     for dev, (lo, hi) in sorted(ranges.items()):
         cur = src.execute(
@@ -178,23 +216,8 @@ def _field_rows(
             "ORDER BY device_seq",
             [dev, lo, hi],
         )
-        while batch := cur.fetchmany(10_000):
-            yield from batch
-
-
-def _stage(conn: psycopg.Connection, table: str, cols: Sequence[str], rows, on_row=None) -> int:
-    conn.execute(
-        f"CREATE TEMP TABLE stage_{table} (LIKE {SCHEMA}.{table} INCLUDING DEFAULTS) ON COMMIT DROP"
-    )
-    n = 0
-    with conn.cursor().copy(f"COPY stage_{table} ({','.join(cols)}) FROM STDIN") as cp:
-        for row in rows:
-            cp.write_row(row)
-            n += 1
-    if n:
-        conn.execute(f"CREATE INDEX ON stage_{table} (id)")
-        conn.execute(f"ANALYZE stage_{table}")
-    return n
+        while batch := cur.fetchmany(20_000):
+            yield batch
 
 
 def _send_stamps(conn: psycopg.Connection, src: sqlite3.Connection, ranges: Mapping) -> None:
@@ -269,30 +292,61 @@ def _send(log, conn: psycopg.Connection, progress: Progress | None):
         src.close()
 
 
+def _revised(src, ranges) -> tuple[set[str], set[str]]:
+    """Members revised in ``ranges``, and those revised more than once there."""
+    seen: dict[str, int] = {}
+    for dev, (lo, hi) in ranges.items():
+        for mid, n in src.execute(
+            "SELECT member_id, count(*) FROM observations WHERE device_id = ? "
+            "AND device_seq BETWEEN ? AND ? GROUP BY member_id",
+            [dev, lo, hi],
+        ):
+            seen[mid] = seen.get(mid, 0) + n
+    return set(seen), {m for m, n in seen.items() if n > 1}
+
+
+def _created(src, ranges) -> set[str]:
+    return {
+        r[0]
+        for dev, (lo, hi) in ranges.items()
+        for r in src.execute(
+            "SELECT id FROM members WHERE device_id = ? AND device_seq BETWEEN ? AND ?",
+            [dev, lo, hi],
+        )
+    }
+
+
 def _send_once(conn, src, tables, meta, ours, progress):
     theirs = hub_vector(conn)
     ranges = delta(ours, theirs)
     if not ranges:
         return None
     _send_stamps(conn, src, ranges)
+    cols: dict[str, list[str]] = {}
+    types: dict[str, dict[str, str]] = {}
+    counts: dict[str, int] = {}
+    for t in SYNC_TABLES:
+        if not t.origin or t.name not in tables:
+            continue
+        info = src.execute(f"PRAGMA main.table_info({t.name})").fetchall()
+        cols[t.name] = [r[1] for r in info]
+        types[t.name] = {r[1]: str(r[2]).upper() for r in info}
+        n = bf._in_ranges(src, "main", t.name, ranges)
+        if n:
+            counts[t.name] = n
+    revised, twice = _revised(src, ranges)
+    touched = sorted(revised - _created(src, ranges))
+    candidates = sorted(set(touched) | twice)
+    header = TransferHeader(
+        firm_id=meta.get("firm_id", ""),
+        sender_device=meta.get("device_id", ""),
+        schema_version=SCHEMA_VERSION,
+        ranges=dict(ranges),
+        row_counts=counts,
+    )
     with conn.transaction():
-        staged: dict[str, list[str]] = {}
-        counts: dict[str, int] = {}
-        for t in SYNC_TABLES:
-            if not t.origin or t.name not in tables:
-                continue
-            cols = _sqlite_columns(src, t.name)
-            n = _stage(conn, t.name, cols, _field_rows(src, t.name, cols, ranges))
-            if n:
-                staged[t.name], counts[t.name] = cols, n
-        header = TransferHeader(
-            firm_id=meta.get("firm_id", ""),
-            sender_device=meta.get("device_id", ""),
-            schema_version=SCHEMA_VERSION,
-            ranges=dict(ranges),
-            row_counts=counts,
-        )
-        return merge(PgTarget(conn, staged), header, None, theirs, progress, "send to hub")
+        target = PgTarget(conn, src, cols, types, ranges, touched, candidates)
+        return merge(target, header, None, theirs, progress, "send to hub")
 
 
 # ----------------------------------------------------------------------------- receive
