@@ -44,11 +44,21 @@ def _server():
     return cluster, lambda name: cluster.url(cluster.new_database(name))
 
 
+def _office_key(tmp: Path) -> None:
+    """The folder sync signs its bundles: a throwaway office key, and a state folder of its own."""
+    from fieldcheck.store import signing
+
+    key = signing.write_keys([signing.new_key_line()], tmp / "office.key")
+    os.environ["FIELDCHECK_OFFICE_KEY_FILE"] = str(key)
+    os.environ["FIELDCHECK_STATE_DIR"] = str(tmp / "state")
+
+
 def run(n: int, inspectors: int, per: int) -> dict:
     cluster, new_hub = _server()
     try:
         with tempfile.TemporaryDirectory() as tmp:
             tmp = Path(tmp)
+            _office_key(tmp)
             t = time.perf_counter()
             field = tmp / "field.db"
             with Log.open(field, author="bench", device="bench-field") as log:

@@ -366,7 +366,8 @@ def _receive(log, conn: psycopg.Connection, hub: HubInfo, progress: Progress | N
         ro.close()
     on_hub = _hub_columns(conn)
     tables = {t: sql for t, sql in tables.items() if t in on_hub}
-    with tempfile.TemporaryDirectory(prefix="fieldcheck-hub-") as tmp:
+    # beside the log, like the folder sync's (never in $TMPDIR: a log may be big and /tmp small)
+    with tempfile.TemporaryDirectory(prefix=".fieldcheck-hub-", dir=field_path.parent) as tmp:
         snap = Path(tmp) / "from-hub.sqlite"
         out = sqlite3.connect(str(snap), isolation_level=None)
         try:
@@ -472,10 +473,10 @@ def sync_hub(log, url: str, progress: Progress | None = None):
         )
     t0 = time.perf_counter()
     summary = SyncSummary(redact(url), "hub")
-    before = set(log.conflicts())
     _checkpoint(log)
     conn = connect(url)
     stage = "connecting"
+    got = None
     try:
         stage = "checking the hub"
         hub = ensure_hub(conn, url)
@@ -496,8 +497,14 @@ def sync_hub(log, url: str, progress: Progress | None = None):
     finally:
         with contextlib.suppress(Exception):
             conn.close()
-    summary.conflicts = log.conflicts()
-    summary.new_conflicts = sorted(set(summary.new_conflicts) | (set(summary.conflicts) - before))
+    # the field log's open conflicts change only by what it takes in: the merge of what came
+    # back counted them before and after; nothing came back, they are as they were
+    if got is not None:
+        summary.conflicts = list(got.conflicts)
+        new = set(got.new_conflicts)
+    else:
+        summary.conflicts, new = log.conflicts(), set()
+    summary.new_conflicts = sorted(set(summary.new_conflicts) | new)
     summary.firm_id = log.meta().get("firm_id", "")
     summary.seconds = time.perf_counter() - t0
     return summary

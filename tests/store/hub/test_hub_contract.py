@@ -106,7 +106,7 @@ def test_report_and_review_from_the_hub(tmp_path, shore, hub_url, monkeypatch, c
     html = tmp_path / "r.html"
     assert main(["report", "--db", hub_url, "--out", str(html)]) == 0
     text = html.read_text()
-    assert "accepted: reviewed by fcadmin" in text and "awaiting review" in text
+    assert "accepted, " in text and "awaiting office review" in text
     assert "ok" in text  # the sign-off's words
     err = capsys.readouterr().err
     assert "fcadmin:" not in err  # the password part of the URL never printed
