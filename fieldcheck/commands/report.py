@@ -7,6 +7,7 @@ import os
 import sys
 
 from fieldcheck.commands.log_option import add_db_option, log_path, open_log
+from fieldcheck.commands.progress import progress_bar
 
 DESCRIPTION = (
     "Write the survey report (a client summary in plain words and the technical record: inputs, "
@@ -19,7 +20,16 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
     add_db_option(p)
     p.add_argument("--site", metavar="NAME-or-id", help="only this site (name or id)")
     p.add_argument("--visit", metavar="NAME-or-id", help="only the posts seen on this visit")
-    p.add_argument("--out", metavar="FILE.html", required=True, help="the HTML file to write")
+    p.add_argument(
+        "--out", metavar="FILE.html", required=True, help="the HTML file to write (- : stdout)"
+    )
+    p.add_argument(
+        "--summary-only",
+        action="store_true",
+        help="the cover, client summary and tables without each post's technical record "
+        "(for very large sites)",
+    )
+    p.add_argument("--quiet", action="store_true", help="no progress bar")
     t = p.add_argument_group(
         "title block (each defaults to the config file: see `fieldcheck config`)"
     )
@@ -96,7 +106,17 @@ def run(args: argparse.Namespace) -> int:
             number=args.number,
         )
         try:
-            path = write_report(log, args.out, sid, vid, units, info)
+            with progress_bar(args.quiet) as bar:
+                path = write_report(
+                    log,
+                    args.out,
+                    sid,
+                    vid,
+                    units,
+                    info,
+                    summary_only=args.summary_only,
+                    progress=bar,
+                )
         except OSError as exc:
             raise UsageError(f"report: cannot write {args.out} ({exc.strerror or exc})") from None
         n = len(log.posts(visit.id) if visit else log.posts(site_id=site.id if site else None))

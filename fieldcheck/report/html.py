@@ -96,9 +96,9 @@ def kv(rows: str) -> str:
     return f'<div class="tw"><table class="kv"><tbody>{rows}</tbody></table></div>'
 
 
-def check_label(d: ReportData, name: str) -> str:
+def check_label(r, name: str) -> str:
     """A check's name in words (the engine's label), never its key."""
-    c = d.rating.checks.get(name) if d.rating is not None else None
+    c = r.checks.get(name) if r is not None else None
     return c.label if c is not None else name.replace("_", " ")
 
 
@@ -202,7 +202,7 @@ def _where(p: PostEntry) -> str:
 def client_group(p: PostEntry) -> int | None:
     """The client summary's group of a post: its action, but None (not assessed) for a post with
     no load (a capacity without a demand decides nothing) or no rating at all."""
-    if not p.rated or p.summary is None or p.summary.get("demand_capacity_ratio") is None:
+    if not p.rated or p.ratio is None:
         return None
     return p.action
 
@@ -303,7 +303,7 @@ def _summary_rows(d: ReportData, posts) -> str:
                 "<td>assess first</td></tr>"
             )
             continue
-        r = d.rating
+        r = p.rating
         rows.append(
             f"<tr><td><a href='#m-{mid}'>{e(p.tag)}</a></td><td>{e(p.view.location)}</td>"
             f"<td>{e(p.visit.name)}</td><td>{badge(p.action)}</td>"
@@ -312,7 +312,7 @@ def _summary_rows(d: ReportData, posts) -> str:
             f'<td class="num">{e(format_force(r.demand_n[p.j], u))}</td>'
             f'<td class="num" data-k="ratio" data-post="{mid}">'
             f"{e(ratio_text(float(r.ratio[p.j])))}</td>"
-            f"<td>{e(check_label(d, r.governing_name(p.j)))}</td><td>{e(due_text(p))}</td></tr>"
+            f"<td>{e(check_label(r, r.governing_name(p.j)))}</td><td>{e(due_text(p))}</td></tr>"
         )
     return "".join(rows)
 
@@ -349,8 +349,7 @@ def _open_actions(d: ReportData) -> str:
     if first:
         out.append('<div class="alert"><h3>\u2716 Make safe first</h3><ol>')
         out += [
-            f"<li>{_where(p)}: ratio {e(ratio_text(p.summary.get('demand_capacity_ratio')))}; "
-            f"{e(ACTION_TEXT[3])}</li>"
+            f"<li>{_where(p)}: ratio {e(ratio_text(p.ratio))}; {e(ACTION_TEXT[3])}</li>"
             for p in first
         ]
         out.append("</ol></div>")
@@ -359,7 +358,7 @@ def _open_actions(d: ReportData) -> str:
     else:
         rows = []
         for p in open_:
-            ratio = p.summary.get("demand_capacity_ratio") if p.summary else None
+            ratio = p.ratio
             what = (
                 ACTION_TEXT[p.action]
                 if p.action is not None
@@ -430,7 +429,7 @@ def _record_table(record: dict[str, str]) -> str:
 
 
 def _assumptions(d: ReportData, p: PostEntry) -> str:
-    r, j, b, u, s = d.rating, p.j, d.rating.batch, d.units, p.summary
+    r, j, b, u, s = p.rating, p.j, p.rating.batch, d.units, p.summary
     # a large batch keeps only the rating: the post's intermediates come from rating it alone
     src, jv = detail(r, j)
     v = src.values
@@ -485,7 +484,7 @@ def _warnings(p: PostEntry) -> str:
 
 
 def _checks(d: ReportData, p: PostEntry) -> str:
-    r, j, u = d.rating, p.j, d.units
+    r, j, u = p.rating, p.j, d.units
     gov = r.governing_name(j)
     rows = []
     for name, c in r.checks.items():
@@ -654,8 +653,7 @@ def _states_rows(d: ReportData, p: PostEntry) -> str:
 
 
 def _sketch(d: ReportData, p: PostEntry) -> str:
-    r, j = d.rating, p.j
-    src, jv = detail(r, j)
+    src, jv = detail(p.rating, p.j)
     v = src.values
     ke = None
     if "ke1" in v and "axis" in v:
@@ -682,7 +680,7 @@ def _post(d: ReportData, p: PostEntry) -> str:
             f"<ul>{errs}</ul></div><h3>Inputs as measured</h3>{_record_table(p.view.record)}"
             f"{_notes_photos(d, p)}{_stored(p, d.units)}</section>"
         )
-    r, j, u = d.rating, p.j, d.units
+    r, j, u = p.rating, p.j, d.units
     dem = float(r.demand_n[j])
     result = kv(
         f'<tr><th>Capacity (governing)</th><td data-k="capacity" data-post="{mid}">'
@@ -691,7 +689,7 @@ def _post(d: ReportData, p: PostEntry) -> str:
         f"{e(format_force(dem, u)) if math.isfinite(dem) else 'no load given'}</td></tr>"
         f'<tr><th>Demand / capacity</th><td data-k="ratio" data-post="{mid}">'
         f"{e(ratio_text(float(r.ratio[j])))}</td></tr>"
-        f"<tr><th>Governing check</th><td>{e(check_label(d, r.governing_name(j)))}</td></tr>"
+        f"<tr><th>Governing check</th><td>{e(check_label(r, r.governing_name(j)))}</td></tr>"
         f"<tr><th>Action</th><td>{badge(p.action)} {e(ACTION_TEXT[p.action])}</td></tr>"
         f"<tr><th>Due</th><td>{e(due_text(p))}</td></tr>" + _states_rows(d, p)
     )
@@ -743,8 +741,10 @@ def _engine(d: ReportData) -> str:
     )
 
 
-def render_parts(d: ReportData):
-    """The document in pieces, in order (a writer can stream them to a file)."""
+def render_parts(d: ReportData, *, summary_only: bool = False, progress=None):
+    """The document in pieces, in order, for a writer to stream to a file: each post's section
+    is made, yielded and its text dropped before the next (bounded memory for any survey).
+    ``summary_only``: the cover, client summary and tables without the per-post record."""
     title = "Survey report" + (f": {d.sites[0].name}" if len(d.sites) == 1 else "")
     left, right = header_text(d)
     yield "<!DOCTYPE html>\n"
@@ -758,24 +758,35 @@ def render_parts(d: ReportData):
     yield _summary_table(d) + "\n"
     yield _open_actions(d) + "\n"
     yield _conflicts(d) + "\n"
-    yield (
-        '<section id="record"><h2>Technical record</h2>'
-        "<p>One section per post: the inputs as typed, the assumptions, every check, the working, "
-        "notes and photos, and the stored rating compared with this re-rating.</p>"
-        + (
-            ""
-            if d.posts
-            else "<p>No posts are recorded in this scope (an empty visit or site).</p>"
+    if summary_only:
+        yield (
+            '<section id="record"><h2>Technical record</h2><p>Not in this report: it was written '
+            "as a summary only. Write the report of a visit or site for each post's inputs, "
+            "checks and working.</p></section>\n"
         )
-        + "</section>\n"
-    )
-    for p in d.posts:
-        yield _post(d, p) + "\n"
+    else:
+        yield (
+            '<section id="record"><h2>Technical record</h2>'
+            "<p>One section per post: the inputs as typed, the assumptions, every check, the "
+            "working, notes and photos, and the stored rating compared with this re-rating.</p>"
+            + (
+                ""
+                if d.posts
+                else "<p>No posts are recorded in this scope (an empty visit or site).</p>"
+            )
+            + "</section>\n"
+        )
+        n = len(d.posts)
+        for k, p in enumerate(d.posts, 1):
+            yield _post(d, p) + "\n"
+            p.release()
+            if progress is not None and (k % 200 == 0 or k == n):
+                progress(k, n, "writing")
     yield _engine(d) + "\n</body></html>\n"
 
 
-def render(d: ReportData) -> str:
-    return "".join(render_parts(d))
+def render(d: ReportData, *, summary_only: bool = False) -> str:
+    return "".join(render_parts(d, summary_only=summary_only))
 
 
 def render_report(
@@ -784,14 +795,20 @@ def render_report(
     visit_id: str | None = None,
     units: str = "us",
     info: ReportInfo | None = None,
+    *,
+    summary_only: bool = False,
 ) -> str:
     """The whole report as one HTML string (see the module docstring)."""
-    if units not in ("us", "metric"):
-        raise ValueError(f"units: '{units}' is not known; write us or metric, e.g. --units metric")
+    _check_units(units)
     d = gather(log, site_id, visit_id, units)
     if info is not None:
         d.info = info
-    return render(d)
+    return render(d, summary_only=summary_only)
+
+
+def _check_units(units: str) -> None:
+    if units not in ("us", "metric"):
+        raise ValueError(f"units: '{units}' is not known; write us or metric, e.g. --units metric")
 
 
 def write_report(
@@ -801,21 +818,36 @@ def write_report(
     visit_id: str | None = None,
     units: str = "us",
     info: ReportInfo | None = None,
+    *,
+    summary_only: bool = False,
+    progress=None,
 ) -> Path:
     """Write the report to ``path`` atomically (a temporary file beside it, then a rename), with
-    the permissions the user's umask gives a new file. Without ``info``, the title block comes
-    from the config file and the revision is counted up in the log (a writable one)."""
-    path = Path(path).expanduser()
+    the permissions the user's umask gives a new file, streamed post by post. Without ``info``,
+    the title block comes from the config file and the revision is counted up in the log (a
+    writable one). ``path`` "-": the standard output. ``progress(done, total, stage)``."""
+    import sys
+
+    _check_units(units)
+    d = gather(log, site_id, visit_id, units, progress=progress)
     if info is None:
         from fieldcheck.report.model import issue_info
 
         info = issue_info(log, site_id, visit_id)
-    text = render_report(log, site_id, visit_id, units, info)
+    d.info = info
+    parts = render_parts(d, summary_only=summary_only, progress=progress)
+    if str(path) == "-":
+        for part in parts:
+            sys.stdout.write(part)
+        sys.stdout.flush()
+        return Path("-")
+    path = Path(path).expanduser()
     fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".part", dir=path.parent or ".")
     try:
         os.chmod(tmp, 0o666 & ~_umask())
         with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as fh:
-            fh.write(text)
+            for part in parts:
+                fh.write(part)
             fh.flush()
             os.fsync(fh.fileno())
         os.replace(tmp, path)

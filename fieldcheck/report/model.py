@@ -17,6 +17,7 @@ import numpy as np
 
 from fieldcheck import ENGINE_VERSION
 from fieldcheck.engine import explain
+from fieldcheck.engine.blocks import BLOCK
 from fieldcheck.engine.rating import rate
 from fieldcheck.engine.refdata import editions
 from fieldcheck.engine.result import ACTIONS, DUE_DAYS, NOT_RATED, Rating
@@ -28,25 +29,29 @@ CURVE_FACTORS = np.linspace(0.25, 2.0, 20)
 REL_TOL = 1e-6
 
 
-@dataclass
+@dataclass(eq=False)
 class PostEntry:
-    """One post of the report: the record as typed, its current re-rating and its stored rating."""
+    """One post of the report: the record as typed, its current re-rating and its stored rating.
+
+    The arrays (action, ratio, capacity) are read from the chunk's rating; the per-post text
+    (summary, working, stored rating and how it differs) is made when the post's section is
+    written and dropped after (``release``), so a report of many posts holds no text per post."""
 
     view: Any  # store PostView
     visit: Any  # store Visit of the current revision
-    j: int | None  # index into ReportData.rating; None when the engine refuses the record
+    j: int | None  # index into ``rating`` (its chunk); None when the engine refuses the record
     errors: list[str]  # field errors of a refused record
     meta: dict[str, Any]
-    stored: Any  # StoredRating | None
-    summary: dict[str, Any] | None
-    working: list[Any]
-    differs: list[str]  # sentences: how the stored rating differs from the re-rating
-    due: _dt.date | None
+    rating: Rating | None = None  # the rating of the post's chunk
+    rem: Any = None  # remedies of the chunk (engine.remedies), or None
+    due: _dt.date | None = None
     attachments: list[Any] = field(default_factory=list)
     reviews: list[Any] = field(default_factory=list)
     curve_h: np.ndarray | None = None  # mm
     curve_cap: np.ndarray | None = None  # N
     review_state: Any = None  # store ReviewState: awaiting review, accepted, overridden, ...
+    load_stored: Any = None  # () -> StoredRating | None (the log, asked when written)
+    _cache: dict[str, Any] = field(default_factory=dict, repr=False)
 
     @property
     def tag(self) -> str:
@@ -54,8 +59,16 @@ class PostEntry:
 
     @property
     def action(self) -> int | None:
-        """Current action category (0-3), None when not rated."""
-        return None if self.summary is None else ACTIONS.index(self.summary["action"])
+        """Current action category (ACTIONS index), None when the record has errors."""
+        return None if self.j is None else int(self.rating.action[self.j])
+
+    @property
+    def ratio(self) -> float | None:
+        """Demand / capacity, None when there is no rating or no load."""
+        if self.j is None:
+            return None
+        r = float(self.rating.ratio[self.j])
+        return r if math.isfinite(r) else None
 
     @property
     def rated(self) -> bool:
@@ -67,8 +80,41 @@ class PostEntry:
         # not rated (no record, or no load): treated as unsafe until assessed, listed after the
         # posts to make safe now and before those to repair (compare with NOT_RATED, never >=)
         a = 2.5 if not self.rated else self.action
-        r = self.summary.get("demand_capacity_ratio") if self.summary else None
+        r = self.ratio
         return (-a, -(r if r is not None else -1.0), self.tag)
+
+    def _get(self, key: str, make):
+        if key not in self._cache:
+            self._cache[key] = make()
+        return self._cache[key]
+
+    @property
+    def summary(self) -> dict[str, Any] | None:
+        if self.j is None:
+            return None
+        return self._get("summary", lambda: post_summary(self.rating, self.j, self.rem))
+
+    @property
+    def working(self) -> list[Any]:
+        if self.j is None:
+            return []
+        return self._get("working", lambda: explain.working(self.rating, self.j))
+
+    @property
+    def stored(self) -> Any:
+        return self._get("stored", lambda: self.load_stored() if self.load_stored else None)
+
+    @property
+    def differs(self) -> list[str]:
+        if self.j is None:
+            return []
+        return self._get(
+            "differs", lambda: _differences(self.stored, self.rating, self.j, editions())
+        )
+
+    def release(self) -> None:
+        """Drop the per-post text made for this post's section."""
+        self._cache.clear()
 
 
 @dataclass(frozen=True)
@@ -245,12 +291,36 @@ def _differences(stored, rating: Rating, j: int, eds: dict[str, str]) -> list[st
     return out
 
 
-def gather(
-    log, site_id: str | None = None, visit_id: str | None = None, units: str = "us"
-) -> ReportData:
-    """Everything the report shows; the current records re-rated in one engine call."""
+# posts rated together: small enough that a chunk and its capacity curves stay within one
+# engine block (every intermediate kept, no post re-rated alone: cost linear in the posts)
+CHUNK = max(1, BLOCK // len(CURVE_FACTORS))
+
+
+def _rate_chunk(records: list[dict], meta_out: list, errs_out: dict, base: int):
+    """Parse and rate one chunk: (rating, index of each row into it, remedies, heights, caps)."""
     from fieldcheck.records import parse_records
 
+    parsed = parse_records(records)
+    for e in parsed.errors:
+        errs_out.setdefault(base + e.row, []).append(f"{e.column}: {e.message}")
+    meta_out.extend(parsed.meta)
+    if not parsed.batch.n:
+        return None, {}, None, None, None
+    rating = rate(parsed.batch)
+    heights, caps = capacity_curves(parsed.batch)
+    rem = batch_remedies(parsed.batch, rating)
+    return rating, {int(i): j for j, i in enumerate(parsed.index)}, rem, heights, caps
+
+
+def gather(
+    log,
+    site_id: str | None = None,
+    visit_id: str | None = None,
+    units: str = "us",
+    progress=None,
+) -> ReportData:
+    """Everything the report shows: the current records re-rated chunk by chunk (each chunk in
+    one engine call, its capacity curves in one more). ``progress(done, total, stage)``."""
     all_visits = {v.id: v for v in log.visits()}
     all_sites = {s.id: s for s in log.sites()}
     if visit_id is not None:
@@ -274,20 +344,13 @@ def gather(
     )
     sites = [all_sites[s] if s in all_sites else log.site(s) for s in site_ids]
     # visits the posts' current revisions were made on, besides the ones in scope
+    seen = {v.id for v in visits}
     for p in views:
-        if p.visit_id not in {v.id for v in visits}:
+        if p.visit_id not in seen:
             visits.append(all_visits[p.visit_id])
+            seen.add(p.visit_id)
 
-    parsed = parse_records([p.record for p in views])
-    rating = rate(parsed.batch) if parsed.batch.n else None
-    heights, caps = capacity_curves(parsed.batch) if rating is not None else (None, None)
-    rem = batch_remedies(parsed.batch, rating) if rating is not None else None
-    errs: dict[int, list[str]] = {}
-    for e in parsed.errors:
-        errs.setdefault(e.row, []).append(f"{e.column}: {e.message}")
-    row_to_j = {int(i): j for j, i in enumerate(parsed.index)}
     eds = editions()
-
     members = {p.member_id for p in views}
     att: dict[str, list] = {}
     for a in log.attachments():
@@ -303,53 +366,49 @@ def gather(
             rev.setdefault(r.member_id, []).append(r)
         elif r.kind == "sign-off" and r.visit_id in visit_ids:
             signoffs.append(r)
+    states = log.review_states() if hasattr(log, "review_states") else {}
+
+    def loader(obs_id: str):
+        return lambda: log.rating_for(obs_id)
 
     entries: list[PostEntry] = []
-    for i, view in enumerate(views):
-        j = row_to_j.get(i)
-        visit = all_visits[view.visit_id]
-        stored = log.rating_for(view.observation_id)
-        if j is None:
+    first: Rating | None = None
+    n = len(views)
+    for start in range(0, n, CHUNK):
+        chunk = views[start : start + CHUNK]
+        meta: list = []
+        errs: dict[int, list[str]] = {}
+        rating, row_to_j, rem, heights, caps = _rate_chunk([p.record for p in chunk], meta, errs, 0)
+        first = first or rating
+        for i, view in enumerate(chunk):
+            j = row_to_j.get(i)
+            visit = all_visits[view.visit_id]
+            common = {
+                "attachments": att.get(view.member_id, []),
+                "reviews": rev.get(view.member_id, []),
+                "review_state": states.get(view.member_id),
+                "load_stored": loader(view.observation_id),
+            }
+            if j is None:
+                entries.append(PostEntry(view, visit, None, errs.get(i, []), {}, **common))
+                continue
             entries.append(
                 PostEntry(
                     view,
                     visit,
-                    None,
-                    errs.get(i, []),
-                    {},
-                    stored,
-                    None,
+                    j,
                     [],
-                    [],
-                    None,
-                    att.get(view.member_id, []),
-                    rev.get(view.member_id, []),
+                    meta[j],
+                    rating,
+                    rem,
+                    due_date(visit, int(rating.action[j])),
+                    curve_h=heights[j],
+                    curve_cap=caps[j],
+                    **common,
                 )
             )
-            continue
-        summary = post_summary(rating, j, rem)
-        entries.append(
-            PostEntry(
-                view,
-                visit,
-                j,
-                [],
-                parsed.meta[j],
-                stored,
-                summary,
-                explain.working(rating, j),
-                _differences(stored, rating, j, eds),
-                due_date(visit, int(rating.action[j])),
-                att.get(view.member_id, []),
-                rev.get(view.member_id, []),
-                heights[j],
-                caps[j],
-            )
-        )
-
-    states = log.review_states() if hasattr(log, "review_states") else {}
-    for en in entries:
-        en.review_state = states.get(en.view.member_id)
+        if progress is not None:
+            progress(min(start + CHUNK, n), n, "rating")
 
     conflicts = []
     tags = {p.member_id: p.tag for p in views}
@@ -366,7 +425,7 @@ def gather(
         visits,
         scope,
         entries,
-        rating,
+        first,
         conflicts,
         ENGINE_VERSION,
         eds,

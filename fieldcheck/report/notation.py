@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import math
 import re
+from functools import lru_cache
 from html import escape
 
 SIG = 4  # significant figures in the report (judgement: a field measurement has no more)
@@ -91,14 +92,30 @@ _SYMBOLS = (
 )
 
 
+# a literal each pattern needs (its first two letters; "k" and "2" where spellings differ), so
+# most patterns are skipped without running them
+_TRIGGERS = tuple(
+    "k"
+    if "k_c" in pat.pattern or "kmod" in pat.pattern
+    else "2"
+    if "2" in pat.pattern
+    else pat.pattern.replace("\\b", "")[:2]
+    for pat, _ in _SYMBOLS
+)
+
+
+@lru_cache(maxsize=8192)
 def symbols(text: str) -> str:
-    """Escape ``text`` for HTML, then set the engineering symbols in it (subscripts, primes)."""
+    """Escape ``text`` for HTML, then set the engineering symbols in it (subscripts, primes).
+    Labels repeat from post to post: the result is cached."""
     out = escape(text, quote=True)
-    for pat, rep in _SYMBOLS:
-        out = pat.sub(rep, out)
+    for (pat, rep), trig in zip(_SYMBOLS, _TRIGGERS, strict=True):
+        if trig in out:
+            out = pat.sub(rep, out)
     return out
 
 
+@lru_cache(maxsize=8192)
 def notation(text: str, units: str) -> str:
     """A working value or label: rounded, the user's units first, symbols set; HTML."""
     return symbols(value_text(text, units))

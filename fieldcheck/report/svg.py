@@ -7,6 +7,7 @@ and drawn with different strokes (solid, dashed, a ringed dot).
 from __future__ import annotations
 
 import math
+from functools import lru_cache
 from html import escape
 
 import numpy as np
@@ -180,6 +181,13 @@ def _end_symbol(kind: str | None, y: float, at_top: bool) -> list[str]:
 
 
 def end_sketch(top: str | None, bottom: str | None, ke: float | None = None) -> str:
+    """See ``_end_sketch``; posts share few end pairs, so the drawing is cached."""
+    k = None if ke is None or not math.isfinite(ke) else round(ke, 2)
+    return _end_sketch(top, bottom, k)
+
+
+@lru_cache(maxsize=1024)
+def _end_sketch(top: str | None, bottom: str | None, ke: float | None = None) -> str:
     """The post's end conditions and its buckled first mode as a small SVG (the drawing model of
     the interface's text drawing: report.endshape), with its words in a caption beside it.
     Straight post dotted, buckled shape solid."""
