@@ -8,8 +8,10 @@ from fieldcheck.commands.log_option import add_db_option, log_path
 
 DESCRIPTION = (
     "Check a survey log without changing it: SQLite's integrity and foreign-key checks, the "
-    "schema version, and every attached photo against its recorded sha256. Exit code 0 when "
-    "sound, 1 when problems are found."
+    "schema version, every attached photo against its recorded sha256, every stored rating of "
+    "this engine against its record, every record's shape, every engine stamp, and the seals "
+    "over the history (rows changed by hand after they were written, named by post). Exit code "
+    "0 when sound, 1 when problems are found."
 )
 
 

@@ -312,6 +312,7 @@ class IntegrityReport:
     foreign_keys: list[str]
     attachments: list[AttachmentProblem]
     conflicts: int
+    content: list[str] = field(default_factory=list)  # store.content: ratings, records, seals
 
     @property
     def ok(self) -> bool:
@@ -323,6 +324,7 @@ class IntegrityReport:
             out += [f"SQLite integrity check: {line}" for line in self.integrity]
         out += [f"foreign key: {line}" for line in self.foreign_keys]
         out += [p.sentence() for p in self.attachments]
+        out += self.content
         if self.schema_version != SCHEMA_VERSION:
             out.append(
                 f"schema version {self.schema_version}, this fieldcheck writes {SCHEMA_VERSION} "
@@ -436,6 +438,7 @@ class Log:
                     from fieldcheck.store import devices
 
                     devices.remember(self.device_id, self.path, self._seq_now())
+                self._seal()
             with contextlib.suppress(sqlite3.Error):
                 if not self.readonly:  # best effort: never wait on another writer to close
                     self.db.execute("PRAGMA busy_timeout = 0")
@@ -514,6 +517,24 @@ class Log:
             raise damaged(self.path, exc) from exc
         finally:
             conn.execute(f"PRAGMA busy_timeout = {int(BUSY_TIMEOUT_S * 1000)}")
+
+    def _seal(self) -> None:
+        """Extend the history's seals over the rows written since (store.content); best
+        effort: a log busy with another writer is sealed at a later close."""
+        from fieldcheck.store.content import seal
+
+        conn = self.db.conn
+        with contextlib.suppress(sqlite3.Error):
+            if conn.in_transaction:
+                return
+            conn.execute("PRAGMA busy_timeout = 200")
+            conn.execute("BEGIN IMMEDIATE")
+            try:
+                seal(conn)
+                conn.execute("COMMIT")
+            except BaseException:
+                conn.execute("ROLLBACK")
+                raise
 
     def _seq_now(self) -> int:
         row = self.db.conn.execute(
@@ -1248,7 +1269,12 @@ class Log:
             has_att = "attachments" in self.db.table_names()
             problems = self.check_attachments() if has_att else []
             conflicts = len(self.conflicts()) if "observations" in self.db.table_names() else 0
-        return IntegrityReport(str(self.path), self.schema_version, lines, fks, problems, conflicts)
+            from fieldcheck.store.content import check_content
+
+            content = check_content(self.db.conn) if lines == ["ok"] else []
+        return IntegrityReport(
+            str(self.path), self.schema_version, lines, fks, problems, conflicts, content
+        )
 
     def is_empty(self) -> bool:
         return self.db.conn.execute("SELECT count(*) FROM sites").fetchone()[0] == 0
