@@ -349,6 +349,7 @@ class Log:
         self.backup_path: Path | None = None  # set when open() upgraded the file
         self.lock_wait_s = lock_wait_s()
         self.notices: list[str] = []  # sentences for the user from opening (e.g. a new device)
+        self.wrote = False  # a transaction committed (or rows taken by sync): seal at close
 
     # ---- opening
 
@@ -438,7 +439,8 @@ class Log:
                     from fieldcheck.store import devices
 
                     devices.remember(self.device_id, self.path, self._seq_now())
-                self._seal()
+                if self.wrote:  # a log only read (or refused a transfer) stays byte for byte
+                    self._seal()
             with contextlib.suppress(sqlite3.Error):
                 if not self.readonly:  # best effort: never wait on another writer to close
                     self.db.execute("PRAGMA busy_timeout = 0")
@@ -492,6 +494,7 @@ class Log:
             try:
                 yield
                 conn.execute("COMMIT")
+                self.wrote = True
             except BaseException as exc:
                 if conn.in_transaction:
                     with contextlib.suppress(sqlite3.Error):

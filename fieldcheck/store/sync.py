@@ -301,6 +301,8 @@ def sync(log, office_path, progress: Progress | None = None) -> SyncSummary:
     else:
         summary = _sync_file(log, office, progress)
     summary.seconds = time.perf_counter() - t0
+    if summary.received:
+        log.wrote = True  # rows taken: sealed when the log is closed
     return summary
 
 

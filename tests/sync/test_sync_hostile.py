@@ -9,7 +9,7 @@ import json
 import sqlite3
 
 import pytest
-from hypothesis import HealthCheck, given, settings
+from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
 from fieldcheck.cli import main
@@ -245,6 +245,8 @@ def test_fuzz_bundle_reader_exit_2_one_sentence(setup, capsys, edits, junk):
             m = json.loads(original)
             for k, v in edits:
                 m[k] = v
+            same = json.dumps(m, sort_keys=True) == json.dumps(json.loads(original), sort_keys=True)
+            assume(not same)  # an unchanged manifest is a sound bundle
             mpath.write_text(json.dumps(m))
         capsys.readouterr()
         rc = main(["import", "--db", str(office), "--bundle", str(bundle)])
