@@ -4,7 +4,10 @@ floor: numpy evaluating only the bare Cp formula (NDS 2018 §3.7.1) on the same 
 loop:  a plain per-post Python loop with pint quantities over a sample (what one writes by hand),
        scaled to N.
 Prints one JSON line: {"posts", "seconds", "ratio_to_floor", "speedup_vs_loop", ...}.
-Usage: python bench/engine.py [N] [--conditions]
+With --combinations each post is given by nominal loads (D, L, Lr, S) and every ASCE 7
+combination that could govern is rated for every check (engine/combinations.py); the floor is
+then the bare Cp over the same posts x candidate combinations.
+Usage: python bench/engine.py [N] [--conditions] [--combinations]
 """
 
 from __future__ import annotations
@@ -24,7 +27,7 @@ PSI = 0.006894757293168361
 IN = 25.4
 
 
-def synthetic(n: int, seed: int = 7, conditions: bool = False):
+def synthetic(n: int, seed: int = 7, conditions: bool = False, combinations: bool = False):
     rng = np.random.default_rng(seed)
     d1 = rng.uniform(3.5, 11.5, n) * IN
     d2 = np.minimum(d1, rng.uniform(3.5, 11.5, n) * IN)
@@ -37,27 +40,34 @@ def synthetic(n: int, seed: int = 7, conditions: bool = False):
         ]
     )
     ends = pairs[rng.integers(0, len(pairs), n)]
-    fields = dict(
-        d1_mm=d1,
-        d2_mm=d2,
-        height_mm=rng.uniform(48, 240, n) * IN,
-        fc_mpa=rng.uniform(500, 1700, n) * PSI,
-        emin_mpa=rng.uniform(4e5, 7e5, n) * PSI,
-        fb_mpa=rng.uniform(500, 1500, n) * PSI,
-        fc_perp_mpa=rng.uniform(400, 650, n) * PSI,
-        e_mpa=rng.uniform(1.1e6, 1.9e6, n) * PSI,
-        cf_fc=rng.choice([1.0, 1.05, 1.1, 1.15], n),
-        product=rng.integers(0, 2, n),
-        bottom=ends[:, 0],
-        top=ends[:, 1],
-        cd=rng.choice([0.9, 1.0, 1.15, 1.25], n),
-        moisture_pct=rng.uniform(8, 35, n),
-        load_n=rng.uniform(5e3, 2e5, n),
-        top_fc_perp_mpa=np.full(n, 625 * PSI),
-        bottom_fc_perp_mpa=np.full(n, 565 * PSI),
-        top_cb=rng.random(n) < 0.5,
-        bottom_cb=rng.random(n) < 0.5,
-    )
+    fields = {
+        "d1_mm": d1,
+        "d2_mm": d2,
+        "height_mm": rng.uniform(48, 240, n) * IN,
+        "fc_mpa": rng.uniform(500, 1700, n) * PSI,
+        "emin_mpa": rng.uniform(4e5, 7e5, n) * PSI,
+        "fb_mpa": rng.uniform(500, 1500, n) * PSI,
+        "fc_perp_mpa": rng.uniform(400, 650, n) * PSI,
+        "e_mpa": rng.uniform(1.1e6, 1.9e6, n) * PSI,
+        "cf_fc": rng.choice([1.0, 1.05, 1.1, 1.15], n),
+        "product": rng.integers(0, 2, n),
+        "bottom": ends[:, 0],
+        "top": ends[:, 1],
+        "cd": rng.choice([0.9, 1.0, 1.15, 1.25], n),
+        "moisture_pct": rng.uniform(8, 35, n),
+        "load_n": rng.uniform(5e3, 2e5, n),
+        "top_fc_perp_mpa": np.full(n, 625 * PSI),
+        "bottom_fc_perp_mpa": np.full(n, 565 * PSI),
+        "top_cb": rng.random(n) < 0.5,
+        "bottom_cb": rng.random(n) < 0.5,
+    }
+    if combinations:
+        fields.update(
+            nom_d_n=rng.uniform(2e3, 8e4, n),
+            nom_l_n=rng.uniform(0, 8e4, n) * (rng.random(n) < 0.6),
+            nom_lr_n=rng.uniform(0, 4e4, n) * (rng.random(n) < 0.4),
+            nom_s_n=rng.uniform(0, 4e4, n) * (rng.random(n) < 0.3),
+        )
     if conditions:
         from fieldcheck.engine import condition
 
@@ -66,6 +76,10 @@ def synthetic(n: int, seed: int = 7, conditions: bool = False):
 
 
 def floor(b) -> float:
+    if not np.isnan(b.nom_d_n).all():  # the same posts x candidate combinations
+        from fieldcheck.engine.combinations import expand
+
+        b = expand(b)[0]
     t0 = time.perf_counter()
     le_d = b.height_mm / b.d2_mm
     fce = 0.822 * b.emin_mpa / (le_d * le_d)
@@ -108,7 +122,8 @@ def main() -> None:
     args = [a for a in sys.argv[1:] if not a.startswith("--")]
     n = int(float(args[0])) if args else 1_000_000
     conditions = "--conditions" in sys.argv
-    b = synthetic(n, conditions=conditions)
+    combos = "--combinations" in sys.argv
+    b = synthetic(n, conditions=conditions, combinations=combos)
     rate(b.take(slice(0, 1000)))  # warm-up: imports, caches
     runs = []
     for _ in range(3):
@@ -127,7 +142,12 @@ def main() -> None:
         "floor_seconds": round(fl, 4),
         "loop_us_per_post": round(per_post * 1e6, 1),
         "conditions": conditions,
+        "combinations": combos,
     }
+    if combos:
+        from fieldcheck.engine.combinations import expand
+
+        out["rows_per_post"] = round(expand(b.take(slice(0, 100_000)))[0].n / min(n, 100_000), 3)
     print(json.dumps(out))
 
 

@@ -1,4 +1,4 @@
-"""`fieldcheck rate`: the ARCHITECTURE.md §4 contract, one-sentence errors with exit code 2, batches."""
+"""`fieldcheck rate`: the --json contract, one-sentence errors with exit code 2, batches."""
 
 import csv
 import json
@@ -43,7 +43,8 @@ def test_example_a_json(capsys):
 
 
 def test_ratio_with_load(capsys):
-    assert main([*EXAMPLE_A, "--load", "4000lbf", "--json"]) == 0
+    # worked example A is at CD 1.0 (NDS 2018 Table 2.3.2, ten years)
+    assert main([*EXAMPLE_A, "--load", "4000lbf", "--duration", "ten-years", "--json"]) == 0
     out = json.loads(capsys.readouterr().out)
     assert out["demand_capacity_ratio"] == pytest.approx(4000 / 4665.07, abs=1e-4)
 
@@ -83,7 +84,7 @@ def test_text_output_shows_cautions_and_working(capsys):
     ],
 )
 def test_bad_input_is_one_sentence_and_exit_2(capsys, option, value):
-    argv = [a for a in EXAMPLE_A]
+    argv = list(EXAMPLE_A)
     if option in argv:
         i = argv.index(option)
         del argv[i : i + 2]
@@ -104,10 +105,10 @@ def test_batch_rates_good_rows_and_names_bad_ones(tmp_path, capsys):
     src = tmp_path / "in.csv"
     with src.open("w", newline="") as fh:
         w = csv.writer(fh)
-        w.writerow(["tag", "size", "height", "species", "grade", "load"])
-        w.writerow(["P1", "4x4", "10ft", "douglas-fir-larch", "no2", "4000lbf"])
-        w.writerow(["P2", "4x4", "ten feet", "douglas-fir-larch", "no2", "4000lbf"])
-        w.writerow(["P3", "6x6", "10 ft", "douglas-fir-larch", "no1", "12 kip"])
+        w.writerow(["tag", "size", "height", "species", "grade", "load", "duration"])
+        w.writerow(["P1", "4x4", "10ft", "douglas-fir-larch", "no2", "4000lbf", "ten-years"])
+        w.writerow(["P2", "4x4", "ten feet", "douglas-fir-larch", "no2", "4000lbf", ""])
+        w.writerow(["P3", "6x6", "10 ft", "douglas-fir-larch", "no1", "12 kip", "ten-years"])
     out = tmp_path / "out.csv"
     assert main(["rate", "--batch", str(src), "--out", str(out)]) == 1
     err = capsys.readouterr().err

@@ -108,9 +108,14 @@ def _text(s: dict, system: str) -> str:
     from fieldcheck.units import format_force
 
     lines = []
-    cap = s["allowable_load_kN"] * 1000.0
-    lines.append(f"Capacity      {format_force(cap, system)}   governed by {s['governing_check']}")
+    force = lambda kn: "none" if kn is None else format_force(kn * 1000.0, system)  # noqa: E731
+    lines.append(
+        f"Capacity      {force(s['allowable_load_kN'])}   governed by {s['governing_check']}"
+    )
+    if s["state"] != "rated":
+        lines.append(f"STATE         {s['state'].upper()}")
     if s["demand_capacity_ratio"] is not None:
+        lines.append(f"Combination   {s['governing_combination']}")
         lines.append(f"Demand        {format_force(s['demand_kN'] * 1000.0, system)}")
         lines.append(f"Ratio         {s['demand_capacity_ratio']:.3f}")
     lines.append(
@@ -120,9 +125,8 @@ def _text(s: dict, system: str) -> str:
     lines.append(f"Material      {s.get('material', '')}")
     lines.append(f"ACTION        {s['action_text']}")
     for c in s["checks"]:
-        r = "" if c["ratio"] is None else f"  ratio {c['ratio']:.3f}"
-        cap_text = format_force(c["capacity_kN"] * 1000.0, system)
-        lines.append(f"  - {c['label']}: {cap_text}{r}  [{c['clause']}]")
+        r = "" if c["ratio"] is None else f"  ratio {c['ratio']:.3f} under {c['combination']}"
+        lines.append(f"  - {c['label']}: {force(c['capacity_kN'])}{r}  [{c['clause']}]")
     for w in s["warnings"]:
         lines.append(f"  ! {w}")
     lc = s.get("load_combination")

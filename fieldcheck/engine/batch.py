@@ -106,6 +106,7 @@ class PostBatch:
     # --- service conditions
     method: np.ndarray = _i(ASD)
     cd: np.ndarray = _f(1.0)  # NDS 2018 Table 2.3.2 (ASD only)
+    duration_assumed: np.ndarray = _b()  # no duration stated for a load given: permanent taken
     lam: np.ndarray = _f(0.8)  # NDS 2018 Appendix N Table N3 time effect factor (LRFD only)
     kmod: np.ndarray = _f(0.8)  # EN 1995-1-1 Table 3.1 (EC5 only)
     gamma_m: np.ndarray = _f(1.3)  # EN 1995-1-1 Table 2.3 (EC5 only)
@@ -116,6 +117,20 @@ class PostBatch:
 
     # --- load (ASD: service load; LRFD: factored load; EC5: design load)
     load_n: np.ndarray = _f()
+    # nominal loads by ASCE 7 type on this post (N; NaN in nom_d_n: no combinations, load_n with
+    # cd or lam as given). With them, every ASCE 7 combination of the post's method is rated
+    # for every check (engine/combinations.py) and load_n, cd, lam and combo are the governing
+    # combination's in the rating's batch.
+    nom_d_n: np.ndarray = _f()
+    nom_l_n: np.ndarray = _f(0.0)
+    nom_lr_n: np.ndarray = _f(0.0)
+    nom_s_n: np.ndarray = _f(0.0)
+    nom_r_n: np.ndarray = _f(0.0)
+    nom_w_n: np.ndarray = _f(0.0)
+    nom_e_n: np.ndarray = _f(0.0)
+    cd_l: np.ndarray = _f(1.0)  # CD of the live load (ten years; seven days for construction)
+    cd_r: np.ndarray = _f(1.25)  # CD of the rain load (no NDS default: the records layer asks)
+    live_kind: np.ndarray = _i(0)  # loads.LIVE_KINDS: occupancy, storage, impact (LRFD lambda)
 
     # --- bearing at the ends (NDS 2018 §3.10)
     end_contact: np.ndarray = _f(1.0)  # fraction of the end area in contact
@@ -233,6 +248,12 @@ class PostBatch:
         for k, v in changes.items():
             cur = out[k]
             out[k] = np.broadcast_to(np.asarray(v, dtype=cur.dtype), cur.shape).copy()
+        return PostBatch(**out)
+
+    def replace_arrays(self, **arrays) -> PostBatch:
+        """A copy with some fields replaced by the arrays given (length n, not broadcast)."""
+        out = {f.name: getattr(self, f.name) for f in fields(self)}
+        out.update(arrays)
         return PostBatch(**out)
 
     @staticmethod

@@ -273,6 +273,7 @@ def column_flags(b: PostBatch, values: dict, flag: FlagSet) -> None:
         flag("sway_braces", sway & (b.braced1 | b.braced2) & ~values["braced_solved"])
     flag("mechanism", mode == -1)
     flag("base_fixity", sway & (mode != -1))  # judgement: the K of a sway case needs the fixity
+    flag("duration_assumed", u(b.duration_assumed) & has_load)
     flag("built_up", u(b.kf) < 1.0)
 
 
@@ -310,6 +311,7 @@ COLUMN = Stage(
         "theoretical_k",
         "braced1",
         "braced2",
+        "duration_assumed",
     ),
     checks=("column", "end_bearing", "cap_bearing", "sill_bearing"),
     flags=(
@@ -368,6 +370,13 @@ COLUMN = Stage(
             "end being truly fixed against rotation (NDS 2018 Appendix G); a base that can rotate "
             "makes the post a mechanism. Confirm the fixity (embedment, bolted base, moment "
             "connection) on site.",
+        ),
+        Flag(
+            "duration_assumed",
+            "No load duration stated: the load is taken as permanent (CD 0.9, lambda 0.6, EC5 "
+            "permanent), the conservative choice for an existing post (NDS 2018 Table 2.3.2). "
+            "Give --duration to use another, e.g. --duration seven-days for a construction load "
+            "or --duration ten-years for occupancy live load.",
         ),
     ),
     run=run_column,

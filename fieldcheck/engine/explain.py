@@ -75,10 +75,13 @@ def summary(r: Rating, i: int, with_remedies: bool = True) -> dict:
         capn = float(c.capacity_n[i])
         if np.isnan(capn):
             continue
+        combo, factor = r.check_combination(name, i)
         checks.append(
             {
                 "name": name,
                 "label": c.label,
+                "combination": combo,
+                "duration_factor": num(factor, 4),
                 "capacity_kN": num(capn / 1000.0, 4),
                 "capacity_lbf": num(capn / LBF, 1),
                 "demand_kN": num(c.demand_n[i] / 1000.0, 4),
@@ -96,6 +99,7 @@ def summary(r: Rating, i: int, with_remedies: bool = True) -> dict:
         "demand_kN": num(r.demand_n[i] / 1000.0, 4),
         "demand_capacity_ratio": num(float(r.ratio[i]), 4),
         "governing_check": r.governing_name(i),
+        "governing_combination": r.combination_name(i),
         "governing_axis": ax,
         "effective_length_factor": round(float(v["ke1" if ax == 1 else "ke2"][i]), 4),
         "effective_length_factors": [

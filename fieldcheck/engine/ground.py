@@ -49,7 +49,8 @@ PSF = loads.PSF_KPA  # kPa per psf
 FLAGS = (
     Flag(
         "soil_unknown",
-        "Soil under the pad not classified: no presumptive bearing value, the ground is not verified "
+        "Soil under the pad not classified: no presumptive bearing value, the ground is not "
+        "verified "
         "(IBC 2012 §1806.2); classify it or accept the 1,500 psf default explicitly (soil_default "
         "yes), "
         "and watch for settlement.",
@@ -57,13 +58,15 @@ FLAGS = (
     ),
     Flag(
         "soil_unprepared",
-        "Mud, organic soil or unprepared fill under the pad: no presumptive bearing value (IBC 2012 "
+        "Mud, organic soil or unprepared fill under the pad: no presumptive bearing value (IBC "
+        "2012 "
         "§1806.2); set the mudsill on firm, prepared ground before the due date.",
         escalates_to=2,
     ),
     Flag(
         "soil_assumed",
-        "Soil class not determined: the 1,500 psf default of 24 CFR 3285.202(e) is used, as you chose.",
+        "Soil class not determined: the 1,500 psf default of 24 CFR 3285.202(e) is used, as you "
+        "chose.",
     ),
     Flag(
         "pad_missing",
@@ -72,14 +75,16 @@ FLAGS = (
     ),
     Flag(
         "pad_rigid",
-        "Pad thickness not given: the whole pad area is taken as bearing on the soil (a rigid pad), "
+        "Pad thickness not given: the whole pad area is taken as bearing on the soil (a rigid "
+        "pad), "
         "which a thin pad does not give; the soil check is not relied on (repair level) until the "
         "thickness is measured.",
         escalates_to=2,
     ),
     Flag(
         "plate",
-        "Steel bearing plates: cap and sill bearing over the plate length along their grain and the "
+        "Steel bearing plates: cap and sill bearing over the plate length along their grain and "
+        "the "
         "post's thickness across; plates assumed stiff enough to spread the load (judgement).",
     ),
     Flag(
@@ -319,7 +324,8 @@ def ground_steps(r: Rating, i: int) -> list[Step]:
     if lc["key"] is not None:
         s.append(
             Step(
-                f"Governing load combination (largest load / {lc['factor_name']})",
+                f"Governing load combination (every combination rated for every check; this "
+                f"one gives the largest ratio of the governing check, {lc['factor_name']})",
                 f"{lc['name']}: {_n(b.load_n[i] * b.shared_by[i])}, {lc['factor_name']} = "
                 f"{lc['factor']}",
                 lc["clause"],

@@ -278,14 +278,28 @@ def _combos(method: str) -> tuple[dict[str, str], ...]:
     return tuple(r for r in table("load_combinations") if r["method"] == method)
 
 
+GIVEN = "the load as given"  # the name of a load given directly (combo -1)
+
+
+@cache
+def combination_rows() -> tuple[dict[str, str], ...]:
+    """Rows of data/load_combinations.csv; PostBatch.combo and Check.combo index this tuple."""
+    return tuple(table("load_combinations"))
+
+
+def combination_name(combo: int) -> str:
+    """The name of a combination row, or GIVEN for a load given directly (combo < 0)."""
+    return GIVEN if combo < 0 else combination_rows()[combo]["name"]
+
+
 @dataclass(frozen=True)
 class Combinations:
-    """Every combination of one method for n posts, and the governing one per post.
+    """Every combination of one method for n posts: the table a person reads.
 
     ``load_n[k, i]``: combined load of combination k on post i (N); ``factor[k, i]``: CD (ASD)
-    or lambda (LRFD); ``equivalent_n = load_n / factor``; the governing combination has the
-    largest equivalent load. ``governing_factor`` feeds PostBatch.cd (ASD) or PostBatch.lam
-    (LRFD) and ``governing_load_n`` PostBatch.load_n.
+    or lambda (LRFD). No combination is picked here: capacity is not proportional to the
+    factor for every check, so the engine rates every combination for every check and keeps
+    the largest ratio of each (engine/combinations.py; the PostBatch nom_*_n fields).
     """
 
     method: str
@@ -294,11 +308,6 @@ class Combinations:
     clauses: tuple[str, ...]
     load_n: np.ndarray
     factor: np.ndarray
-    equivalent_n: np.ndarray
-    governing: np.ndarray
-    governing_load_n: np.ndarray
-    governing_factor: np.ndarray
-    governing_name: np.ndarray
     live_reduction: np.ndarray  # factor applied to L (1 where not reduced)
 
     @property
@@ -306,7 +315,7 @@ class Combinations:
         return int(self.load_n.shape[1])
 
     def rows(self, i: int) -> list[dict]:
-        """The working for post i: one dict per combination, the governing one marked."""
+        """The table for post i: one dict per combination."""
         fname = "cd" if self.method == "asd" else "lambda"
         return [
             {
@@ -314,9 +323,7 @@ class Combinations:
                 "combination": self.names[k],
                 "load_n": float(self.load_n[k, i]),
                 fname: float(self.factor[k, i]),
-                "load_over_factor_n": float(self.equivalent_n[k, i]),
                 "clause": self.clauses[k],
-                "governs": bool(k == self.governing[i]),
             }
             for k in range(len(self.keys))
         ]
@@ -361,7 +368,7 @@ def asd_combinations(
     kll=4.0,
     floors=1,
 ) -> Combinations:
-    """ASCE 7 §2.4.1 ASD combinations for n posts; governing = max(load / CD).
+    """ASCE 7 §2.4.1 ASD combinations for n posts, each with its CD (none is picked here).
 
     D, L, Lr, S, R, W, E: nominal (service) loads on each post in N, scalars or arrays of n.
     CD of each combination is that of the shortest-duration load present in it with a non-zero
@@ -427,7 +434,7 @@ def lrfd_combinations(
     kll=4.0,
     floors=1,
 ) -> Combinations:
-    """ASCE 7 §2.3.1 LRFD (strength) combinations; governing = max(factored load / lambda).
+    """ASCE 7 §2.3.1 LRFD (strength) combinations, each with its lambda (none is picked here).
 
     lambda per combination from NDS 2018 Appendix N Table N3 (data/load_combinations.csv, from
     memory): 1.4D 0.6; 1.2D+1.6L+0.5(Lr or S or R) 0.8 for occupancy live load, 0.7 for
@@ -452,22 +459,13 @@ def lrfd_combinations(
 
 
 def _finish(method, rows, load, factor, red) -> Combinations:
-    eq = load / factor
-    g = np.argmax(eq, axis=0)  # largest load / factor governs (NDS 2018 §2.3.2; App. N)
-    cols = np.arange(load.shape[1])
-    names = tuple(r["name"] for r in rows)
     return Combinations(
         method=method,
         keys=tuple(r["key"] for r in rows),
-        names=names,
+        names=tuple(r["name"] for r in rows),
         clauses=tuple(r["clause"] for r in rows),
         load_n=load,
         factor=factor,
-        equivalent_n=eq,
-        governing=g,
-        governing_load_n=load[g, cols],
-        governing_factor=factor[g, cols],
-        governing_name=np.array(names, dtype=object)[g],
         live_reduction=red,
     )
 

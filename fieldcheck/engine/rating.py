@@ -13,6 +13,7 @@ import threading
 
 import numpy as np
 
+from fieldcheck.engine import combinations
 from fieldcheck.engine.batch import PostBatch
 from fieldcheck.engine.blocks import BLOCK, absent, at_least, filled, share_blocks
 from fieldcheck.engine.column import COLUMN, ENDS
@@ -40,9 +41,10 @@ def rate(b: PostBatch, keep: tuple[str, ...] = ()) -> Rating:
     """
     n = b.n
     if n <= BLOCK:
-        return _rate_block(b)
+        return _rate_any(b)
     starts = range(0, n, BLOCK)
-    first = _rate_block(b.take(slice(0, BLOCK)))
+    first_blk = b.take(slice(0, BLOCK))
+    first = _rate_any(first_blk)
     # Results are written block by block into arrays of the batch's length. Two kinds are made
     # only when a block needs them (each full-length array costs page faults): a check's
     # capacities stay one broadcast NaN until a block makes that check, and a demand stays the
@@ -64,8 +66,12 @@ def rate(b: PostBatch, keep: tuple[str, ...] = ()) -> Rating:
                 made[key] = fill()
             return made[key]
 
-    def put(start: int, r: Rating | None = None) -> None:
-        r = r if r is not None else _rate_block(b.take(slice(start, start + BLOCK)))
+    def put(start: int, first_block: tuple | None = None) -> None:
+        if first_block is None:
+            blk = b.take(slice(start, start + BLOCK))
+            r = _rate_any(blk)
+        else:
+            blk, r = first_block
         sl = slice(start, start + r.n)
         own_load = r.batch.load_n
         for k, c in r.checks.items():
@@ -73,6 +79,12 @@ def rate(b: PostBatch, keep: tuple[str, ...] = ()) -> Rating:
                 made_once((k, "capacity"), lambda: np.full(n, np.nan))[sl] = c.capacity_n
             if c.demand_n is not own_load:
                 made_once((k, "demand"), load.copy)[sl] = c.demand_n
+            if c.combo is not None:  # the combination of this check, where combinations ran
+                made_once((k, "combo"), lambda: np.full(n, -1, dtype=np.int8))[sl] = c.combo
+                made_once((k, "factor"), lambda: np.full(n, np.nan))[sl] = c.factor
+        if r.batch is not blk:  # combinations ran: the governing one's load and factor
+            for f in ("load_n", "cd", "lam", "combo"):
+                made_once(("batch", f), lambda f=f: getattr(b, f).copy())[sl] = getattr(r.batch, f)
             if c.clause not in clauses[k]:
                 with lock:
                     clauses[k] += f" / {c.clause}"
@@ -83,7 +95,7 @@ def rate(b: PostBatch, keep: tuple[str, ...] = ()) -> Rating:
         if r.demand_n is not own_load:
             made_once(("", "demand"), load.copy)[sl] = r.demand_n
 
-    put(0, first)
+    put(0, (first_blk, first))
     share_blocks(put, starts[1:])
     checks = {
         k: Check(
@@ -92,10 +104,14 @@ def rate(b: PostBatch, keep: tuple[str, ...] = ()) -> Rating:
             clauses[k],
             made.get((k, "capacity"), nan),
             made.get((k, "demand"), load),
+            made.get((k, "combo")),
+            made.get((k, "factor")),
         )
         for k, c in first.checks.items()
     }
     demand = made.get(("", "demand"), load)
+    if any(key[0] == "batch" for key in made):
+        b = b.replace_arrays(**{f: a for (kind, f), a in made.items() if kind == "batch"})
     return Rating(batch=b, checks=checks, values=out, partial=True, demand_n=demand, **core)
 
 
@@ -104,7 +120,16 @@ def detail(r: Rating, i: int) -> tuple[Rating, int]:
     them, else post i rated alone (the same code on a length-one batch) and 0."""
     if not r.partial:
         return r, i
-    return _rate_block(r.batch.take(np.array([i]))), 0
+    return _rate_any(r.batch.take(np.array([i]))), 0
+
+
+def _rate_any(b: PostBatch) -> Rating:
+    """Rate one block: under every candidate load combination where nominal loads are given
+    (combinations.py: one pass over posts x combinations, each check its largest ratio), else
+    with the load and duration factor as given."""
+    if combinations.used(b):
+        return combinations.rate_with_combinations(b, _rate_block, finish)
+    return _rate_block(b)
 
 
 def _rate_block(b: PostBatch) -> Rating:

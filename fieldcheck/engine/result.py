@@ -10,7 +10,8 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from fieldcheck.engine.batch import PostBatch
+from fieldcheck.engine.batch import EC5, LRFD, PostBatch
+from fieldcheck.engine.loads import combination_name
 
 # Action categories (our own wording; the ratio bands are judgement, common practice, no source).
 # Code 4, NOT_RATED, is a state of its own: a decision input (the load) is missing, so no
@@ -40,6 +41,10 @@ class Check:
     clause: str
     capacity_n: np.ndarray
     demand_n: np.ndarray
+    # the governing load combination of this check per post (row of data/load_combinations.csv,
+    # -1 a load as given) and its duration factor; None: the batch's own combo and factor
+    combo: np.ndarray | None = None
+    factor: np.ndarray | None = None
 
     @property
     def ratio(self) -> np.ndarray:
@@ -92,6 +97,24 @@ class Rating:
 
     def governing_name(self, i: int) -> str:
         return self.check_names[int(self.governing[i])]
+
+    def duration_factor(self) -> np.ndarray:
+        """The batch's duration factor per post: CD (ASD), lambda (LRFD), kmod (EC5)."""
+        b = self.batch
+        return np.where(b.method == LRFD, b.lam, np.where(b.method == EC5, b.kmod, b.cd))
+
+    def check_combination(self, name: str, i: int) -> tuple[str, float]:
+        """(name of the load combination that governs check ``name`` for post i, its duration
+        factor): every combination is rated for every check (engine/combinations.py)."""
+        c = self.checks[name]
+        combo = int((self.batch.combo if c.combo is None else c.combo)[i])
+        factor = float((self.duration_factor() if c.factor is None else c.factor)[i])
+        return combination_name(combo), factor
+
+    def combination_name(self, i: int) -> str:
+        """The load combination of the governing check of post i (loads.GIVEN when the load
+        was given directly)."""
+        return self.check_combination(self.governing_name(i), i)[0]
 
     def state(self, i: int) -> str:
         """ "rated", or "not rated: load missing" (a decision input is missing: no decision)."""

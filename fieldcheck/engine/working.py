@@ -12,6 +12,7 @@ import numpy as np
 from fieldcheck.engine.batch import EC5, LRFD, METHOD_NAMES, PRODUCT_NAMES
 from fieldcheck.engine.customary import IN, LBF, PSI
 from fieldcheck.engine.ec5_rating import ec5_steps
+from fieldcheck.engine.loads import GIVEN
 from fieldcheck.engine.restraint import MODE_KEYS, MODES
 from fieldcheck.engine.result import ACTION_TEXT, Rating, Step
 from fieldcheck.engine.spring_ends import SPRING_MODE
@@ -74,7 +75,8 @@ def column_steps(r: Rating, i: int) -> list[Step]:
         add(
             Step(
                 f"Factors on Fc: {tf} x CM x Ct x CF x Ci",
-                f"{v['time_fc'][i]:.4g} x {v['cm_fc'][i]:.3g} x {v['ct_f'][i]:.3g} x {b.cf_fc[i]:.3g} x {v['ci_f'][i]:.3g}",
+                f"{v['time_fc'][i]:.4g} x {v['cm_fc'][i]:.3g} x {v['ct_f'][i]:.3g} x "
+                f"{b.cf_fc[i]:.3g} x {v['ci_f'][i]:.3g}",
                 "NDS 2018 Table 4.3.1; §2.3.2; Supplement Table 4A",
             )
         )
@@ -158,13 +160,24 @@ def closing_steps(r: Rating, i: int) -> list[Step]:
     """Every check made, the governing check, demand over capacity and the action."""
     s: list[Step] = []
     add = s.append
-    for c in r.checks.values():
+    method = int(r.batch.method[i])
+    for name, c in r.checks.items():
         cap = c.capacity_n[i]
         if np.isnan(cap):
             continue
         ratio = c.ratio[i]
-        rtxt = "" if np.isnan(ratio) else f", ratio {ratio:.3f}"
-        add(Step(f"Check: {c.label}", f"capacity {_n(cap)}{rtxt}", c.clause))
+        combo, factor = r.check_combination(name, i)
+        fname = "lambda" if method == LRFD else "kmod" if method == EC5 else "CD"
+        rtxt = (
+            ""
+            if np.isnan(ratio)
+            else f", ratio {ratio:.3f} under {combo} ({fname} {factor:.3g}, demand "
+            f"{_n(c.demand_n[i])})"
+        )
+        # every ASCE 7 combination is rated for every check; the largest ratio is kept
+        given = combo == GIVEN
+        clause = c.clause + ("" if given else "; ASCE 7 §2.4.1 / §2.3.1, NDS 2018 §2.3.2")
+        add(Step(f"Check: {c.label}", f"capacity {_n(cap)}{rtxt}", clause))
     add(Step("Governing check", r.governing_name(i), ""))
     if not np.isnan(r.ratio[i]):
         add(

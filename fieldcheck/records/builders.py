@@ -135,10 +135,17 @@ def end_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
     return {"top": top, "bottom": bottom, "theoretical_k": bool(row.get("k_theoretical", False))}
 
 
+def load_duration(row: Row) -> str:
+    """The duration of a load given directly: as stated, else permanent (CD 0.9, lambda 0.6),
+    the conservative choice for an existing post (NDS 2018 Table 2.3.2; Appendix N Table N3)."""
+    return row.get("duration") or ("permanent" if "load" in row else "ten-years")
+
+
 def material_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
     method = METHOD_NAMES.index(row.get("method", "asd"))
-    duration = row.get("duration", "ten-years")
+    duration = load_duration(row)
     f: dict[str, Any] = {"method": method, "cd": CD[duration], "lam": LAMBDA[duration]}
+    f["duration_assumed"] = "load" in row and "duration" not in row
     if method == EC5:
         return f  # the EC5 builder fills the material
     species = row.get("species", "unknown")

@@ -80,7 +80,8 @@ def _nominal(s: str) -> tuple[int, int]:
     v = units.parse_nominal(s)
     if v is None:
         raise ValueError(
-            f"size: '{s}' is not a nominal size; write e.g. 4x4 or 6x6 (or give --section with units)."
+            f"size: '{s}' is not a nominal size; write e.g. 4x4 or 6x6 (or give --section with "
+            "units)."
         )
     a, b = v
     if not (min(a, b) >= 2 and max(a, b) <= 16):
@@ -227,10 +228,10 @@ CORE: tuple[Column, ...] = (
     Column(
         "duration",
         "load",
-        "load duration (NDS 2018 Table 2.3.2)",
-        "ten-years",
+        "load duration (NDS 2018 Table 2.3.2); a load given without one is permanent",
+        "seven-days",
         choice("duration", DURATIONS, DURATION_ALIASES),
-        "ten-years",
+        "permanent",
         DURATIONS,
     ),
     Column(

@@ -6,7 +6,7 @@ from typing import Any
 
 from fieldcheck.engine import ec5, en338
 from fieldcheck.engine.batch import EC5, METHOD_NAMES
-from fieldcheck.records.builders import RowError
+from fieldcheck.records.builders import RowError, load_duration
 from fieldcheck.records.core_columns import Column
 
 # NDS durations -> EN 1995-1-1 Table 2.1 load-duration classes (nearest; judgement)
@@ -26,7 +26,8 @@ def _class(s: str) -> str:
         en338.strength_class(name)
     except ValueError:
         raise ValueError(
-            f"class: '{s}' is not an EN 338 strength class we hold; use one of {', '.join(en338.class_names())}."
+            f"class: '{s}' is not an EN 338 strength class we hold; use one of "
+            f"{', '.join(en338.class_names())}."
         ) from None
     return name
 
@@ -68,7 +69,8 @@ def ec5_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
         if "class" in row:
             raise RowError(
                 "class",
-                "class: a strength class needs --method ec5 (NDS ratings use --species and --grade).",
+                "class: a strength class needs --method ec5 (NDS ratings use --species and "
+                "--grade).",
             )
         return {}
     if "class" not in row:
@@ -76,7 +78,7 @@ def ec5_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
     name = row["class"]
     f = dict(en338.batch_fields(name))
     out["_e_mpa"] = f["e_mpa"]
-    duration = EC5_DURATION[row.get("duration", "ten-years")]
+    duration = EC5_DURATION[load_duration(row)]
     product = "solid"
     f["kmod"] = float(
         ec5.kmod(row.get("service_class", 1), duration, product)
@@ -87,6 +89,7 @@ def ec5_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
         if col in row:
             f[f"{end}_fc_perp_mpa"] = en338.strength_class(row[col])["fc90k_mpa"]
     out["_material"] = (
-        f"{name} ({en338.edition(name)}), k_mod {f['kmod']:.2f} ({duration}), gamma_M {f['gamma_m']}"
+        f"{name} ({en338.edition(name)}), k_mod {f['kmod']:.2f} ({duration}), gamma_M "
+        f"{f['gamma_m']}"
     )
     return f

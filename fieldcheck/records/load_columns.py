@@ -16,8 +16,9 @@ import numpy as np
 
 from fieldcheck import units
 from fieldcheck.engine import loads, materials
-from fieldcheck.engine.batch import EC5, LRFD, METHOD_NAMES
-from fieldcheck.engine.ground import combination_rows, lateral_rows
+from fieldcheck.engine.batch import EC5, METHOD_NAMES
+from fieldcheck.engine.ground import lateral_rows
+from fieldcheck.engine.refdata import table
 from fieldcheck.records.builders import RowError
 from fieldcheck.records.core_columns import (
     DURATION_ALIASES,
@@ -77,7 +78,8 @@ def _soil(s: str) -> str:
     k = {r["class_no"]: r["key"] for r in loads.table("soil_bearing") if r["class_no"]}.get(k, k)
     if k not in keys:
         raise ValueError(
-            f"soil: '{s}' is not a soil class we hold; use an IBC 2012 Table 1806.2 class 1-5 or one "
+            f"soil: '{s}' is not a soil class we hold; use an IBC 2012 Table 1806.2 class 1-5 or "
+            "one "
             f"of {', '.join(keys)}."
         )
     return k
@@ -281,13 +283,6 @@ COLUMNS: tuple[Column, ...] = (
 )
 
 
-def _combo_index(method: str, key: str) -> int:
-    for i, r in enumerate(combination_rows()):
-        if r["method"] == method and r["key"] == key:
-            return i
-    raise KeyError(key)  # pragma: no cover - the table and loads.py agree
-
-
 def load_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
     """Tributary loads -> load_n, cd / lam, combo; ground, plate and bracing fields."""
     f: dict[str, Any] = {}
@@ -364,13 +359,18 @@ def load_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
                 c = loads.asd_combinations(D, L, Lr, S, R, durations=durations, **reduce)
         except ValueError as exc:
             raise RowError("live_duration", f"live_duration: {exc}") from None
-        g = int(c.governing[0])
-        f["load_n"] = float(c.governing_load_n[0]) / shared
-        f["combo"] = _combo_index(method, c.keys[g])
-        if METHOD_NAMES.index(method) == LRFD:
-            f["lam"] = float(c.governing_factor[0])
-        else:
-            f["cd"] = float(c.governing_factor[0])
+        # every combination is rated for every check by the engine (engine/combinations.py):
+        # the nominal loads per post go in, with the live and rain durations
+        L = L * float(c.live_reduction[0])  # ASCE 7 §4.7.2 (1.0 unless reduction is asked)
+        for fld, x in zip(
+            ("nom_d_n", "nom_l_n", "nom_lr_n", "nom_s_n", "nom_r_n"), (D, L, Lr, S, R), strict=True
+        ):
+            f[fld] = float(x) / shared
+        cds = {r["key"]: float(r["cd"]) for r in table("load_durations")}
+        f["cd_l"] = cds[row.get("live_duration", "ten-years")]
+        if R > 0:
+            f["cd_r"] = cds[row["rain_duration"]]
+        f["load_n"] = float(np.max(c.load_n[:, 0])) / shared  # the largest; the engine decides
         out["_combination"] = c.rows(0)
     elif "load" in row and shared > 1:
         f["load_n"] = row["load"] / shared

@@ -29,10 +29,11 @@ def test_end_post_3600_lb():
     w = _example()
     # field-practice.md §5.6 / #86: R = 600 plf x 12 ft / 2 = 3,600 lb per end post
     assert w.total("end_post_n")[0] / LBF == pytest.approx(3600, rel=1e-6)
-    # the D/L split feeds asd_combinations: D + L governs at CD 1.0
+    # the D/L split feeds asd_combinations: D + L is 3,600 lb at CD 1.0 (ASCE 7 §2.4.1 (2))
     c = loads.asd_combinations(w.end_post_n["D"], w.end_post_n["L"])
-    assert c.governing_name[0] == "D+L"
-    assert c.governing_load_n[0] / LBF == pytest.approx(3600, rel=1e-6)
+    k = c.keys.index("2")
+    assert c.names[k] == "D+L" and c.factor[k, 0] == 1.0
+    assert c.load_n[k, 0] / LBF == pytest.approx(3600, rel=1e-6)
 
 
 def test_temporary_shores_each_side():
