@@ -104,7 +104,21 @@ def _db_path(args: argparse.Namespace) -> str:
         return "the survey log"
 
 
+def _has_terminal() -> bool:
+    try:
+        return sys.stdin.isatty() and sys.stdout.isatty()
+    except (AttributeError, ValueError):  # closed or replaced streams
+        return False
+
+
 def _open_interface(args: argparse.Namespace) -> int:
+    if not _has_terminal():  # a pipe or CI: the interface would wait for keys that never come
+        print(
+            "fieldcheck: the interface needs a terminal; without one, run a command such as "
+            "`fieldcheck rate --help` (all commands: `fieldcheck --help`).",
+            file=sys.stderr,
+        )
+        return 2
     try:
         tui = importlib.import_module("fieldcheck.tui.app")
     except ModuleNotFoundError:

@@ -1,4 +1,7 @@
-"""`fieldcheck demo`: write the invented demo survey into a log, without the interface."""
+"""`fieldcheck demo`: write the invented demo survey into its own log, without the interface.
+
+Without --db the demo goes to its own file beside your survey log, never into the log itself; a
+log holding the demo is marked invented and sync refuses it."""
 
 from __future__ import annotations
 
@@ -9,7 +12,8 @@ from fieldcheck.commands.log_option import add_db_option, open_log
 
 DESCRIPTION = (
     "Write the demo survey (an invented renovation: basement posts and a run of temporary shores, "
-    "one of them overloaded) into a survey log, so you can try the interface, reports and exports."
+    "one of them overloaded) into a log of its own (default: demo-invented.fieldcheck beside your "
+    "survey log), so you can try the interface, reports and exports. It is never synced."
 )
 
 
@@ -22,9 +26,16 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
 
 def run(args: argparse.Namespace) -> int:
     from fieldcheck.cli import UsageError
-    from fieldcheck.store import seed_demo
+    from fieldcheck.store import Log, seed_demo
+    from fieldcheck.store.demo import default_demo_path
 
-    with open_log(args) as log:
+    if getattr(args, "db", None):
+        opened = open_log(args)
+    else:
+        path = default_demo_path()
+        path.parent.mkdir(parents=True, exist_ok=True)
+        opened = Log.open(path)
+    with opened as log:
         if not log.is_empty() and not args.force:
             raise UsageError(
                 f"the survey log {log.path} already holds sites; use a new file with --db PATH "

@@ -5,6 +5,10 @@ four old posts (rough-sawn, one decayed at the base, one bowed, a round log post
 check finds a run of temporary 4x4 shores under a header where a bearing wall will come out, one
 of them overloaded (it must be made safe). The records live in data/demo/survey.csv so they ship
 with the wheel. Seeding also makes one correction and one withdrawn post, so history is visible.
+
+The demo lives in a file of its own (``default_demo_path()``, beside the user's survey log), marked
+as invented in its meta table: sync refuses it both ways, so it never reaches an office nor
+another inspector's log, and the user's own log never holds it.
 """
 
 from __future__ import annotations
@@ -23,6 +27,24 @@ VISITS = {
 }
 
 
+DEMO_META = "demo"  # meta key: the log holds the invented demo survey
+
+
+def default_demo_path() -> Path:
+    """The demo's own file, beside the user's survey log (never the log itself)."""
+    from fieldcheck.store.paths import default_log_path
+
+    return default_log_path().with_name("demo-invented.fieldcheck")
+
+
+def is_demo(log) -> bool:
+    meta = getattr(log, "meta", None)
+    try:
+        return bool(meta and meta().get(DEMO_META))
+    except Exception:
+        return False
+
+
 def demo_csv() -> Path:
     from fieldcheck.engine.refdata import data_dir
 
@@ -37,7 +59,13 @@ def demo_rows() -> list[dict[str, str]]:
 
 
 def seed_demo(log: Log) -> tuple[Site, list[Visit]]:
-    """Write the demo survey into ``log`` (one transaction per action, as a person would)."""
+    """Write the demo survey into ``log`` (one transaction per action, as a person would) and
+    mark the log as holding invented data (sync then refuses it)."""
+    with log._write():
+        log.db.execute(
+            "INSERT OR REPLACE INTO meta VALUES (?, ?)",
+            [DEMO_META, "invented: describes no real building; never synced"],
+        )
     site = log.add_site(
         SITE_NAME,
         SITE_ADDRESS,

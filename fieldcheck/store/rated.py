@@ -62,7 +62,7 @@ def engine_stamp() -> tuple[str, str, str]:
 
 
 def action_label(action: int | None) -> str:
-    if action is None:
+    if action is None or action == 4:  # 4: engine.rating.NOT_RATED (no load given)
         return "not rated"
     return ACTION_LABELS[action] if 0 <= action < len(ACTION_LABELS) else str(action)
 

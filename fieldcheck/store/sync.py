@@ -159,10 +159,22 @@ def open_conflicts(log) -> list[Conflict]:
 # ----------------------------------------------------------------------------- by hand
 
 
+def _refuse_demo(log) -> None:
+    """The invented demo survey never travels: not to an office, not into anyone's log."""
+    from fieldcheck.store.demo import is_demo
+
+    if is_demo(log):
+        raise TransferRefused(
+            f"{log.path} is the invented demo survey; it is never synced or sent to an office "
+            "(start your own survey to sync), nothing was changed"
+        )
+
+
 def export_bundle(
     log, out_path, since: dict[str, int] | None = None, progress: Progress | None = None
 ) -> Path:
     """Write the rows of ``log`` a receiver holding ``since`` lacks (None: all) as a bundle."""
+    _refuse_demo(log)
     out = Path(out_path)
     if out.is_dir():
         out = out / f"{log.device_id}-{int(time.time())}{bf.SUFFIX}"
@@ -177,6 +189,7 @@ def import_bundle(log, bundle_path, progress: Progress | None = None) -> ImportS
         raise TransferRefused(
             f"the survey log {log.path} was opened read-only; nothing was changed"
         )
+    _refuse_demo(log)
     b = bf.read_bundle(Path(bundle_path), signing.required())
     with _locked(log):
         res = bf.import_into(
@@ -294,6 +307,7 @@ def sync(log, office_path, progress: Progress | None = None) -> SyncSummary:
         raise TransferRefused(
             f"the survey log {log.path} was opened read-only; open it for writing to sync"
         )
+    _refuse_demo(log)
     office = Path(office_path).expanduser()
     t0 = time.perf_counter()
     if office.is_dir():

@@ -11,6 +11,7 @@ Global keys: F1 help, F7 conflicts, F8 units, F9 sync, F10 report, ctrl+p comman
 
 from __future__ import annotations
 
+import contextlib
 import json
 import os
 import threading
@@ -19,14 +20,23 @@ from functools import partial
 from pathlib import Path
 from typing import Any
 
+from textual import events
 from textual.app import App, SystemCommand
 from textual.binding import Binding
+from textual.message import Message
 from textual.screen import Screen
 
 from fieldcheck.tui.logthread import LogThread
 from fieldcheck.tui.sites import SitesScreen
 
 UNIT_SYSTEMS = ("us", "metric")
+FORM_KEYS = frozenset({"enter", "tab", "shift+tab", "pagedown", "pageup"})
+
+
+class ReleaseKeys(Message):
+    """A field has dealt with Enter or Tab: the keys held meanwhile go on."""
+
+
 DRAFTS_DELAY = 1.0  # seconds after the last change before the drafts file is written
 
 
@@ -58,17 +68,18 @@ class FieldcheckApp(App[None]):
     ]
 
     def __init__(
-        self, db: str | Path | None = None, units: str | None = None, *, seed_if_empty: bool = True
+        self, db: str | Path | None = None, units: str | None = None, *, demo: bool | None = None
     ) -> None:
         super().__init__()
         self.units = units if units in UNIT_SYSTEMS else "us"
-        self.store = LogThread(db, seed_if_empty=seed_if_empty)
+        self.store = LogThread(db, demo=demo)
         self.drafts: dict[str, dict[str, Any]] = {}  # member id or "new:<visit id>" -> draft
         self._drafts_timer: Any = None
         self._drafts_lock = threading.Lock()
         self._drafts_seq = 0  # bumped on every change; a write never replaces a newer one
         self._drafts_written = 0
         self.office_path: str = ""
+        self._held: list[events.Key] | None = None  # keys waiting for a form key to be dealt with
         self.last_summary: str = ""  # the last sync or report summary (also notified)
 
     # -- life cycle --------------------------------------------------------------------------
@@ -139,10 +150,46 @@ class FieldcheckApp(App[None]):
         text = json.dumps(self.drafts, indent=1) if self.drafts else None
         with self._drafts_lock:
             self._drafts_written = self._drafts_seq
-            try:
+            with contextlib.suppress(OSError):
                 replace_file(f, text)
-            except OSError:
-                pass
+
+    def start_own_survey(self) -> None:
+        """Leave the invented demo for the user's own survey log (made if new), back on the
+        first screen; the demo stays in its own file."""
+        old = self.store
+        self.save_drafts()
+        self.store = LogThread(None, demo=False)
+        self.drafts = {}
+        old.close()
+        while len(self.screen_stack) > 2:
+            self.pop_screen()
+
+    # -- keys: none lost or misplaced ---------------------------------------------------------
+    # The app hands each key to the focused widget's own queue. A field handles Enter (or Tab)
+    # only after the keys typed before it, and only then moves the focus; keys typed meanwhile
+    # would go to the field just left. So from a form key until the field has dealt with it (and
+    # moved the focus), later keys wait here, in order, and then go where the focus now is.
+    async def on_event(self, event: events.Event) -> None:
+        if isinstance(event, events.Key):
+            if self._held is not None:
+                self._held.append(event)
+                return
+            if event.key in FORM_KEYS and getattr(self.screen.focused, "holds_keys", False):
+                self._held = []
+        await super().on_event(event)
+
+    def release_keys(self) -> None:
+        """Called by a field once it has dealt with a form key: the held keys go on (after any
+        key already on its way, which joins them)."""
+        self.post_message(ReleaseKeys())
+
+    async def on_release_keys(self, _message: ReleaseKeys) -> None:
+        held, self._held = self._held or [], None
+        while held:
+            await self.on_event(held.pop(0))
+            if self._held is not None:  # a form key again: the rest wait for it
+                self._held.extend(held)
+                return
 
     # -- global actions ----------------------------------------------------------------------
     def action_help(self) -> None:
@@ -183,15 +230,22 @@ class FieldcheckApp(App[None]):
 
     # -- command palette: every action that has a key, on the screen in front ------------------
     def get_system_commands(self, screen: Screen) -> Iterable[SystemCommand]:
-        yield from super().get_system_commands(screen)
+        """Each command once (by its name), only those usable on the screen in front."""
         seen: set[str] = set()
+        ours = []
         for key, active in screen.active_bindings.items():
             b = active.binding
-            if not b.description or b.system or b.action in seen:
+            if not b.description or b.system or b.description in seen or not active.enabled:
                 continue
             if type(active.node).__module__.startswith("textual."):
                 continue  # the widgets' own keys (cursor motion, editing)
-            seen.add(b.action)
+            seen.add(b.description)
+            ours.append((key, active, b))
+        for cmd in super().get_system_commands(screen):
+            if cmd.title not in seen:
+                seen.add(cmd.title)
+                yield cmd
+        for key, active, b in ours:
             label = b.key_display or key
             yield SystemCommand(
                 b.description,

@@ -11,8 +11,10 @@ from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import ModalScreen, Screen
+from textual.suggester import SuggestFromList
 from textual.widgets import Button, Input, Label, ProgressBar, Static
 
+from fieldcheck.tui.form import FieldInput
 from fieldcheck.tui.present import escape
 
 
@@ -26,15 +28,35 @@ class HelpScreen(ModalScreen[None]):
         self.behind = behind
 
     def compose(self) -> ComposeResult:
-        lines = ["[b]Keys on this screen[/b]"]
+        lines = [
+            "[b]fieldcheck[/b] rates existing timber posts and temporary wood shores as found on "
+            "site (NDS 2018 ASD/LRFD, EN 1995-1-1) and keeps each post in your survey log.",
+            "It is a screening aid for a competent person: local codes, the authority having "
+            "jurisdiction and a licensed engineer govern. Stop work and clear the area if a post "
+            "crushes, splits open, moves or leans more than before, or a sill settles.",
+            "",
+            "[b]How it goes[/b]",
+            "  1. First screen: sites and visits. ctrl+n starts a visit (from the invented demo: "
+            "your own survey, in your own log).",
+            "  2. A visit lists its posts, worst first. ctrl+n adds a post; o or Enter opens one.",
+            "  3. The post form, in the order you look: where and what; section and height; the "
+            "two ends; material; what is seen (add a defect by kind: decay, knot, split, bow, "
+            "notch, crushing…); the load. Enter moves to the next field; PageDown to the next "
+            "section. The rating beside it follows every valid change.",
+            "  4. ctrl+s saves the post as found. A remedy (F5, then Enter or ctrl+r) is stored as "
+            "a proposal beside it; the post stays rated as found until ctrl+o records it as "
+            "remedied, with the date.",
+            "",
+            "[b]Keys on this screen[/b]",
+        ]
         seen = set()
         for key, active in self.behind.active_bindings.items():
             b = active.binding
-            if not b.description or (b.action in seen):
+            if not b.description or (b.description in seen):
                 continue
             if type(active.node).__module__.startswith("textual.") and active.node is not self.app:
                 continue
-            seen.add(b.action)
+            seen.add(b.description)
             lines.append(f"  {escape(b.key_display or key):<12} {escape(b.description)}")
         lines += [
             "",
@@ -42,6 +64,7 @@ class HelpScreen(ModalScreen[None]):
             "  ctrl+p       command palette: every action, by name",
             "  tab/shift+tab  next / previous field or table",
             "  enter        open the highlighted row; in a field: next field",
+            "  pagedown/up  in the post form: next / previous section",
             "  ctrl+q       quit (drafts are kept beside the log)",
             "",
             "[b]In the post editor[/b]",
@@ -49,6 +72,8 @@ class HelpScreen(ModalScreen[None]):
             "  A bad value shows its message under the field; the rest of the form is kept.",
             "  The rating re-rates on every valid change. Saving adds a revision; nothing is",
             "  overwritten. Leaving with changes asks: save, keep as draft, or discard.",
+            "  A field with a fixed set of values shows them while empty; their first letters",
+            "  do (d for douglas-fir-larch) when only one value starts so.",
             "",
             "[b]Symbols[/b]  ✓ no action  ◔ monitor  ▲ repair/brace  ✖ make safe now  ? not rated",
             "  ✎ unsaved draft   ⚡ conflict (two revisions made apart: F7)",
@@ -118,37 +143,154 @@ class WithdrawDialog(ModalScreen[str | None]):
         self.dismiss(None)
 
 
-class NewVisitDialog(ModalScreen[str | None]):
-    BINDINGS = [Binding("escape", "cancel", "Cancel", id="visit_cancel")]
+class RemedyDoneDialog(ModalScreen[str | None]):
+    """The date a proposed remedy was carried out: the post is then recorded as remedied."""
+
+    BINDINGS = [Binding("escape", "cancel", "Cancel", id="done_cancel")]
+
+    def __init__(self, description: str) -> None:
+        super().__init__()
+        self.description = description
 
     def compose(self) -> ComposeResult:
+        import datetime as dt
+
         with Vertical(classes="dialog"):
-            yield Static(
-                "New visit (Enter on the last field makes it, Esc cancels)", classes="title"
+            yield Static("Record the post as remedied", classes="title")
+            yield Static(f"Done: {escape(self.description)}")
+            yield Label("Date the work was done (Enter records it, Esc cancels):")
+            yield Input(dt.date.today().isoformat(), id="done-on")
+
+    @on(Input.Submitted, "#done-on")
+    def _done(self, event: Input.Submitted) -> None:
+        import datetime as dt
+
+        text = event.value.strip()
+        try:
+            day = dt.date.fromisoformat(text)
+        except ValueError:
+            self.notify(
+                f"{text!r} is not a date: give it as year-month-day, e.g. 2026-03-14.",
+                severity="warning",
+                markup=False,
             )
-            yield Label("Site (an existing name or a new one):")
-            yield Input(placeholder="e.g. 14 Alder Row", id="site")
-            yield Label("Visit:")
-            yield Input(placeholder="e.g. shoring check, day 2", id="visit")
-
-    @on(Input.Submitted, "#site")
-    def _next(self) -> None:
-        self.query_one("#visit").focus()
-
-    @on(Input.Submitted, "#visit")
-    def _make(self) -> None:
-        site = self.query_one("#site", Input).value.strip()
-        visit = self.query_one("#visit", Input).value.strip()
-        if not site or not visit:
-            self.notify("Give both a site and a visit name.", severity="warning", markup=False)
             return
-        self._create(site, visit)
+        self.dismiss(day.isoformat())
+
+    def action_cancel(self) -> None:
+        self.dismiss(None)
+
+
+VISIT_LEVELS = ("minimum", "standard", "detailed")  # the log's data-collection levels
+
+
+class NewVisitDialog(ModalScreen[str | None]):
+    """A new visit: the site address, the inspector (a person's name, not the login name), the
+    date and the data-collection level. Enter moves on; Enter on the last field makes it."""
+
+    BINDINGS = [Binding("escape", "cancel", "Cancel", id="visit_cancel")]
+    FIELDS = ("address", "inspector", "date", "level", "purpose")
+
+    def compose(self) -> ComposeResult:
+        import datetime as dt
+
+        with Vertical(classes="dialog", id="new-visit"):
+            yield Static("New visit (Enter: next field, Esc cancels)", classes="title")
+            yield Label("Site address (an existing site or a new one):")
+            yield FieldInput(placeholder="e.g. 14 Alder Row, Millbrook", id="address")
+            yield Label("Inspector (your name as it goes on the report):")
+            yield FieldInput(placeholder="e.g. A. Inspector", id="inspector")
+            yield Label("Date of the visit (year-month-day):")
+            yield FieldInput(dt.date.today().isoformat(), id="date")
+            yield Label("Data-collection level: minimum, standard or detailed")
+            yield FieldInput(
+                "minimum",
+                id="level",
+                suggester=SuggestFromList(VISIT_LEVELS, case_sensitive=False),
+                choices=VISIT_LEVELS,
+            )
+            yield Label("What for (optional):")
+            yield FieldInput(
+                placeholder="e.g. basement posts before the wall comes out", id="purpose"
+            )
+
+    def on_mount(self) -> None:
+        self.query_one("#address").focus()
+        self.fill_inspector()
+
+    @work(exit_on_error=False)
+    async def fill_inspector(self) -> None:
+        """The inspector of the log's last visit, if any (never the login name)."""
+
+        def last(log: Any) -> str:
+            visits = log.visits()
+            mine = [v for v in visits if v.inspector and v.inspector != log.author]
+            return mine[-1].inspector if mine else ""
+
+        name = await self.app.store.call(last)  # type: ignore[attr-defined]
+        box = self.query_one("#inspector", Input)
+        if name and not box.value:
+            box.value = name
+
+    def form_key(self, key: str, focused: Any) -> bool:
+        """Enter moves to the next field (the last one makes the visit), at once: called by the
+        app before the next key is routed, so nothing typed fast lands in the wrong field."""
+        if key in ("tab", "shift+tab"):
+            (self.focus_next if key == "tab" else self.focus_previous)()
+            return True
+        if key != "enter":
+            return False
+        fid = getattr(focused, "id", None) or ""
+        if fid not in self.FIELDS:
+            return False
+        focused.complete()
+        if fid != self.FIELDS[-1]:
+            self.set_focus(self.query_one(f"#{self.FIELDS[self.FIELDS.index(fid) + 1]}"))
+        else:
+            self._make()
+        return True
+
+    def values(self) -> dict[str, str]:
+        return {f: self.query_one(f"#{f}", Input).value.strip() for f in self.FIELDS}
+
+    def problem(self, v: dict[str, str]) -> tuple[str, str] | None:
+        """(field, one sentence) for the first missing or bad value, or None."""
+        import datetime as dt
+
+        if not v["address"]:
+            return "address", "Give the site address."
+        if not v["inspector"]:
+            return "inspector", "Give the inspector's name (it goes on the report)."
+        try:
+            dt.date.fromisoformat(v["date"])
+        except ValueError:
+            return "date", f"Date: {v['date']!r} is not a date; give it as e.g. 2026-03-14."
+        if v["level"].lower() not in VISIT_LEVELS:
+            return "level", "Data-collection level: one of minimum, standard or detailed."
+        return None
+
+    def _make(self) -> None:
+        v = self.values()
+        bad = self.problem(v)
+        if bad:
+            self.query_one(f"#{bad[0]}").focus()
+            self.notify(bad[1], severity="warning", markup=False)
+            return
+        self._create(v)
 
     @work(group="write", exit_on_error=False)
-    async def _create(self, site_name: str, visit_name: str) -> None:
+    async def _create(self, v: dict[str, str]) -> None:
+        import datetime as dt
+
+        day = v["date"]
+        started = None if day == dt.date.today().isoformat() else f"{day}T00:00:00"
+
         def make(log: Any) -> str:
-            site = log.find_site(site_name) or log.add_site(site_name)
-            return log.add_visit(site.id, name=visit_name).id
+            site = log.find_site(v["address"]) or log.add_site(v["address"], v["address"])
+            name = v["purpose"] or f"{day} {v['inspector']}"
+            return log.add_visit(
+                site.id, v["inspector"], v["level"].lower(), name=name, started_at=started
+            ).id
 
         visit_id = await self.app.store.call(make)  # type: ignore[attr-defined]
         self.dismiss(visit_id)
@@ -221,15 +363,17 @@ class SyncDialog(ProgressDialog):
         yield Input(self.office_path, placeholder="e.g. /mnt/office/survey.fieldcheck", id="office")
 
     def on_mount(self) -> None:
-        try:
-            import fieldcheck.store.sync  # noqa: F401
-        except ImportError:
-            self.query_one("#summary", Static).update("Sync is not available yet in this version.")
+        if self.app.store.is_demo:  # type: ignore[attr-defined]
+            self.query_one("#summary", Static).update(
+                "This is the invented demo survey: it is never synced. Start your own survey "
+                "(ctrl+n on the first screen) to sync."
+            )
+            self.query_one("#office", Input).disabled = True
 
     @on(Input.Submitted, "#office")
     def _start(self, event: Input.Submitted) -> None:
         path = event.value.strip()
-        if not path or self.running:
+        if not path or self.running or self.app.store.is_demo:  # type: ignore[attr-defined]
             return
         self.app.office_path = path  # type: ignore[attr-defined]
         self.run_sync(path)
@@ -250,8 +394,9 @@ class SyncDialog(ProgressDialog):
         except Exception as exc:
             self.finish(f"Sync failed: {exc}", ok=False)
             return
-        text = result.sentence() if hasattr(result, "sentence") else str(result)
-        self.finish(f"{text} ({time.perf_counter() - t0:.1f} s)")
+        from fieldcheck.tui.present import sync_sentence
+
+        self.finish(f"{sync_sentence(result)} ({time.perf_counter() - t0:.1f} s)")
 
 
 class ReportDialog(ProgressDialog):

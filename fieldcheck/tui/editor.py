@@ -16,6 +16,7 @@ drawn.
 
 from __future__ import annotations
 
+import contextlib
 import math
 from typing import Any
 
@@ -41,10 +42,20 @@ from textual.widgets.option_list import Option
 from fieldcheck.engine import explain
 from fieldcheck.engine.curves import capacity_vs_height
 from fieldcheck.engine.rating import rate
-from fieldcheck.records import COLUMNS, GROUPS, parse_records
-from fieldcheck.tui import present
+from fieldcheck.records import COLUMNS, parse_records
+from fieldcheck.tui import present, remedy_words
 from fieldcheck.tui.drawing import ends_drawing
-from fieldcheck.tui.form import FieldGroup, compose_form, field_ids, group_path
+from fieldcheck.tui.form import (
+    DefectGroup,
+    DefectPicker,
+    FieldGroup,
+    FieldInput,
+    compose_form,
+    defect_columns,
+    defect_kind,
+    field_ids,
+    place,
+)
 from fieldcheck.tui.plot import braille_plot
 
 TABS = ("rating", "working", "shape", "remedies", "history")
@@ -68,20 +79,6 @@ def capacity_curve(batch: Any, heights_mm: np.ndarray) -> np.ndarray:
     return np.asarray(capacity_vs_height(batch, heights_mm), dtype=float).reshape(-1)
 
 
-def remedy_text(rem: dict[str, Any]) -> str:
-    for key in ("text", "label", "description", "title", "name"):
-        if rem.get(key):
-            head = str(rem[key])
-            break
-    else:
-        head = "remedy"
-    changes = rem.get("record_changes") or {}
-    extra = ", ".join(f"{k} = {v}" for k, v in changes.items())
-    ratio = rem.get("ratio") or rem.get("new_ratio")
-    tail = f" → ratio {ratio:.2f}" if isinstance(ratio, (int, float)) else ""
-    return f"{head}{tail}" + (f"  [{extra}]" if extra else "")
-
-
 class PostEditor(Screen[None]):
     AUTO_FOCUS = "#form Input"
     BINDINGS = [
@@ -90,7 +87,8 @@ class PostEditor(Screen[None]):
         Binding("escape", "leave", "Back", id="leave"),
         Binding("f1", "app.help", "Help", id="editor_help"),
         Binding("ctrl+z", "undo", "Undo", id="undo"),
-        Binding("ctrl+r", "apply_remedy", "Apply remedy", id="apply_remedy"),
+        Binding("ctrl+r", "propose_remedy", "Propose remedy", id="propose_remedy"),
+        Binding("ctrl+o", "remedy_done", "Remedy done", id="remedy_done"),
         Binding("f2", "tab('rating')", "Rating", id="tab_rating"),
         Binding("f3", "tab('working')", "Working", id="tab_working"),
         Binding("f4", "tab('shape')", "Shape", id="tab_shape"),
@@ -116,7 +114,10 @@ class PostEditor(Screen[None]):
         self.rating: Any = None
         self.summary: dict[str, Any] | None = None
         self.stale = False  # the rating shown is the last valid one
-        self.remedies: list[dict[str, Any]] = []
+        self.remedies: list[dict[str, Any]] = []  # as listed: ranked, no margin last
+        self.head_id: str | None = None  # the saved revision the form started from / saved as
+        self.open_proposals: list[Any] = []  # store.proposals.Proposal, newest first
+        self.remedy_state: Any = None  # store.proposals.RemedyState of this post
         self.draft_restored = False
         self.generation = 0
         self._full_timer: Any = None
@@ -140,27 +141,27 @@ class PostEditor(Screen[None]):
         yield Static("", id="editor-title", classes="title")
         with Horizontal(id="editor-body"):
             with VerticalScroll(id="form"):
-                yield from compose_form(COLUMNS, GROUPS, self.record)
+                yield from compose_form(COLUMNS, self.record)
             with TabbedContent(initial="rating", id="side"):
-                with TabPane("Rating", id="rating"):
-                    with VerticalScroll(id="rating-panel-scroll"):
-                        yield Static("", id="rating-head")
-                        yield Static("", id="rating-checks")
-                        yield Static("", id="rating-panel")
-                        yield Static("", id="cautions", classes="cautions")
-                with TabPane("Work", id="working"), VerticalScroll():
+                with TabPane("Rating F2", id="rating"), VerticalScroll(id="rating-panel-scroll"):
+                    yield Static("", id="rating-head")
+                    yield Static("", id="rating-checks")
+                    yield Static("", id="rating-panel")
+                    yield Static("", id="cautions", classes="cautions")
+                with TabPane("Working F3", id="working"), VerticalScroll():
                     yield Static("", id="working-panel")
-                with TabPane("Shape", id="shape"), VerticalScroll():
+                with TabPane("Shape F4", id="shape"), VerticalScroll():
                     yield Static("", id="ends-panel", markup=False)
                     yield Static("", id="plot-panel", markup=False)
-                with TabPane("Fixes", id="remedies"):
+                with TabPane("Remedies F5", id="remedies"):
                     yield Static("", id="remedy-help")
                     yield OptionList(id="remedy-list")
-                with TabPane("History", id="history"), VerticalScroll():
+                with TabPane("History F6", id="history"), VerticalScroll():
                     yield Static("", id="history-panel")
         yield Footer()
 
     def on_mount(self) -> None:
+        self.set_class(self.app.size.width < self.NARROW, "-narrow")
         for name, text in self.record.items():
             if text and name in COLUMNS:
                 self._validate(name)
@@ -169,12 +170,18 @@ class PostEditor(Screen[None]):
         self._title()
         if self.member_id:
             self.load_history()
+            self.load_proposals()
         else:
             self.query_one("#history-panel", Static).update("A new post: no revisions yet.")
         if self.draft_restored:
             self.notify(
                 "Your unsaved draft of this post was restored (ctrl+s saves it).", markup=False
             )
+
+    NARROW = 80  # columns: below this the panes stack (rating on top)
+
+    def on_resize(self, event: Any) -> None:
+        self.set_class(event.size.width < self.NARROW, "-narrow")
 
     def units_changed(self) -> None:
         self.render_rating()
@@ -205,13 +212,65 @@ class PostEditor(Screen[None]):
         self._validate(name)
         self._after_change()
 
-    @on(Input.Submitted)
-    def _submitted(self, event: Input.Submitted) -> None:
-        if (event.input.id or "").startswith("f-"):
+    def form_key(self, key: str, focused: Any) -> Any:
+        """Called by the app for Enter, Tab and shift+Tab before the next key is routed (see
+        FieldcheckApp.action_form_key). Enter in a field takes its shown suggestion and moves
+        to the next field (never onto a section title, so it never folds a section); Tab and
+        shift+Tab move as usual, at once."""
+        if key == "tab":
             self.focus_next()
+            return True
+        if key == "shift+tab":
+            self.focus_previous()
+            return True
+        if key in ("pagedown", "pageup"):
+            self.next_section(focused, 1 if key == "pagedown" else -1)
+            return True
+        if not isinstance(focused, FieldInput):
+            return False
+        if not isinstance(focused, DefectPicker):
+            focused.complete()
+        if isinstance(focused, DefectPicker) and focused.value.strip():
+            kinds = list(defect_columns(COLUMNS))
+            kind = defect_kind(focused.value, kinds)
+            if kind is None:
+                self.notify(
+                    f"{focused.value.strip()!r} is not a defect kind here; use one of "
+                    + ", ".join(kinds)
+                    + ".",
+                    severity="warning",
+                    markup=False,
+                )
+                return True
+            focused.value = ""
+            return self.add_defect(kind)  # type: ignore[return-value]
+        self.next_field(focused)
+        return True
+
+    def next_section(self, current: Any, step: int) -> None:
+        """PageDown/PageUp: the first field of the next/previous section."""
+        sections = list(self.query("#form .section"))
+        here = next((s for s in sections if current in s.walk_children()), None)
+        k = sections.index(here) if here is not None else -1
+        for s in sections[k + step :: step] if step > 0 else sections[: max(k, 0)][::-1]:
+            first = next((w for w in s.query(FieldInput) if w.focusable), None)
+            if first is not None:
+                self.set_focus(first)
+                return
+
+    def next_field(self, current: Any) -> None:
+        fields = [w for w in self.query("#form FieldInput") if w.focusable]
+        try:
+            k = fields.index(current)
+        except ValueError:
+            k = -1
+        if k + 1 < len(fields):
+            self.set_focus(fields[k + 1])
+        else:
+            self.notify("That was the last field: ctrl+s saves the post.", markup=False)
 
     def action_next_field(self) -> None:
-        self.focus_next()
+        self.next_field(self.focused)
 
     def _after_change(self) -> None:
         self._keep_draft()
@@ -240,6 +299,7 @@ class PostEditor(Screen[None]):
     def _show_error(self, name: str, msg: str) -> None:
         if name not in COLUMNS:
             return
+        msg = present.plain(msg)
         if msg:
             self.errors[name] = msg
         else:
@@ -269,10 +329,8 @@ class PostEditor(Screen[None]):
             return
         if str(box.content) == shown:
             return
-        try:
+        with contextlib.suppress(NoMatches):
             self.query_one(f"#{fid}", Input).set_class(bool(msg), "-bad")
-        except NoMatches:
-            pass
         if box.has_class("-shown") == bool(msg):
             self._update_static(box, shown)  # a message that keeps its height: no layout pass
             return
@@ -289,22 +347,33 @@ class PostEditor(Screen[None]):
                     self._paint_error(name)
 
     def _reveal(self, name: str) -> None:
-        """Open the sections holding the field of ``name`` (building them if needed)."""
-        gid, *rest = group_path(COLUMNS, name)
-        try:
-            outer = self.query_one(f"#{gid}", FieldGroup)
-        except NoMatches:
-            return
-        if not outer.built or outer.collapsed:
-            outer.collapsed = False  # built from self.record, its "more…" open if it holds a value
-            if not outer.built:
-                return
-        for more_id in rest:
+        """Show the field of ``name`` (open its "more…" or add its defect), built from
+        self.record."""
+        where, key = place(COLUMNS, name)
+        if where == "defect" and key is not None:
+            self.run_worker(self.add_defect(key, focus=False), group="defects")
+        elif where == "more":
             try:
-                more = outer.query_one(f"#{more_id}", FieldGroup)
+                self.query_one(f"#more-{key}", FieldGroup).collapsed = False
             except NoMatches:
                 return
-            more.collapsed = False
+
+    async def add_defect(self, kind: str, focus: bool = True) -> bool:
+        """Add a defect kind's fields above the "add a defect" field (once), and move to its
+        first field (the app holds keys typed meanwhile: they land there)."""
+        try:
+            group = self.query_one(f"#d-{kind}", DefectGroup)
+        except NoMatches:
+            cols = defect_columns(COLUMNS)[kind]
+            group = DefectGroup(kind, cols, self.record)
+            picker = self.query_one("#add-defect", DefectPicker)
+            await self.query_one("#g-seen").mount(group, before=picker.parent)
+            for name in group.names:
+                if name in self.errors:
+                    self._paint_error(name)
+        if focus:
+            self.set_focus(group.query(FieldInput).first())
+        return True
 
     # -- rating ------------------------------------------------------------------------------
     def rerate(self) -> None:
@@ -394,27 +463,31 @@ class PostEditor(Screen[None]):
     def _render_rating_pane(self, detail: bool) -> None:
         units = self.app.units  # type: ignore[attr-defined]
         width = self.query_one("#side").size.width - 4
+        shown = None if self.stale else self.summary  # never an old result beside "not rated"
         if self.stale:
             bad = ", ".join(self.errors) or "the form"
             status = f"[b $warning]✖ NOT RATED: fix {present.escape(bad)}[/]"
-            if self.summary is not None:
-                status += " (last good below)"
         elif self.summary is None:
             status = "Type a size and a height to rate this post."
+        elif present.load_missing(self.summary):
+            status = "[b $warning]? NOT RATED: load missing[/] (give the load)"
         else:
             status = "[b]✓ rated[/b] live: every valid change re-rates"
+        ec5 = (self.record.get("method") or "").strip().lower() == "ec5"
         head = self.query_one("#rating-head", Static)
-        head.update("\n".join(present.head_lines(self.summary, units, width, status)), layout=False)
+        head.update(
+            "\n".join(present.head_lines(shown, units, width, status, ec5=ec5)), layout=False
+        )
         checks = self.query_one("#rating-checks", Static)
-        lines = present.check_lines(self.summary)
+        lines = present.check_lines(shown)
         same = getattr(checks, "_fc_lines", None) == len(lines)
         checks._fc_lines = len(lines)  # type: ignore[attr-defined]
         checks.update("\n".join(lines), layout=not same)
         if detail or self._detail_stale is not self.stale:
             self._detail_stale = self.stale
-            more = present.detail_lines(self.summary)
+            more = present.detail_lines(shown)
             if self.stale:
-                more = [present.escape(m) for m in self.combination[:3]] + more
+                more = [present.escape(present.plain(m)) for m in self.combination[:3]]
             self._update_static(self.query_one("#rating-panel", Static), "\n".join(more))
 
     def _update_static(self, widget: Static, text: str) -> None:
@@ -434,13 +507,16 @@ class PostEditor(Screen[None]):
 
     def _render_working(self) -> None:
         out = []
-        if self.rating is not None:
-            out.append("[b]Working (last good rating)[/b]" if self.stale else "[b]Working[/b]")
+        if self.stale:
+            out.append("Not rated: fix the field marked ✖ in the form; no working until then.")
+        elif self.rating is not None:
+            out.append("[b]Working[/b] (values to 4 significant figures)")
             for step in explain.working(self.rating, 0):
-                clause = f"  [dim]{present.escape(step.clause)}[/dim]" if step.clause else ""
-                out.append(
-                    f"{present.escape(step.label)}: [b]{present.escape(step.value)}[/b]{clause}"
-                )
+                note = present.memory_note(step.label, step.clause or "", self.record)
+                clause = step.clause.replace("[M]", "").strip() if step.clause else ""
+                clause = f"  [dim]{present.escape(clause)}{note}[/dim]" if clause or note else ""
+                value = present.sig_text(step.value)
+                out.append(f"{present.escape(step.label)}: [b]{present.escape(value)}[/b]{clause}")
         else:
             out.append("No rating yet.")
         self._update_static(self.query_one("#working-panel", Static), "\n".join(out))
@@ -453,7 +529,7 @@ class PostEditor(Screen[None]):
             ends_drawing(rec.get("top") or "pinned", rec.get("bottom") or "pinned", ke, height=7),
         )
         plot = self.query_one("#plot-panel", Static)
-        if self.batch is None or self.rating is None:
+        if self.batch is None or self.rating is None or self.stale:
             self._update_static(plot, "No plot until the post is rated.")
             return
         units = self.app.units  # type: ignore[attr-defined]
@@ -488,23 +564,36 @@ class PostEditor(Screen[None]):
     def _render_remedies(self) -> None:
         if self.query_one("#side", TabbedContent).active != "remedies":
             return  # drawn when its pane is shown: a hidden widget's update costs a full layout
-        rems = list((self.summary or {}).get("remedies") or [])
-        if rems == self.remedies and self.query_one("#remedy-list", OptionList).option_count == len(
-            rems
-        ):
-            return
-        self.remedies = rems
+        rems = [] if self.stale else remedy_words.ranked((self.summary or {}).get("remedies") or [])
         box = self.query_one("#remedy-list", OptionList)
-        box.clear_options()
-        for i, rem in enumerate(rems):
-            box.add_option(Option(remedy_text(rem), id=str(i)))
+        if rems != self.remedies or box.option_count != len(rems):
+            self.remedies = rems
+            box.clear_options()
+            units = self.app.units  # type: ignore[attr-defined]
+            width = self._width_mm()
+            for i, rem in enumerate(rems):
+                box.add_option(Option(remedy_words.line(rem, units, width), id=str(i)))
+            if rems:
+                box.highlighted = 0
         ratio = (self.summary or {}).get("demand_capacity_ratio")
-        if rems:
-            msg = "Highlight a remedy and press ctrl+r to apply it as a new revision."
+        lines = []
+        if self.stale:
+            lines.append("Not rated: fix the form first; remedies follow from a good rating.")
+        elif rems:
+            lines.append(
+                f"As found: ratio {present.ratio_text(ratio)}. Enter or ctrl+r proposes the "
+                "highlighted remedy; the post stays recorded and rated as found."
+            )
         elif ratio is not None and ratio > 1.0:
-            msg = "No remedy offered by the engine for this post yet."
+            lines.append(
+                "No single change modelled makes this post pass: make it safe and ask the engineer."
+            )
         else:
-            msg = "No remedy needed: the post passes." if ratio is not None else "Not rated yet."
+            lines.append(
+                "No remedy needed: the post passes." if ratio is not None else "Not rated yet."
+            )
+        lines += self._proposal_lines()
+        msg = "\n".join(lines)
         help_ = self.query_one("#remedy-help", Static)
         if str(help_.content) != msg:
             help_.update(msg)
@@ -527,7 +616,12 @@ class PostEditor(Screen[None]):
             else ("unsaved changes" if self.dirty else "saved")
         )
         mark = "✎ " if self.dirty or self.member_id is None else "✓ "
-        title = f"Post {present.escape(tag)} — {mark}{state}   (ctrl+s save, Esc back)"
+        st = self.remedy_state
+        if st is not None and st.state == "as remedied":
+            state += f", as remedied {st.done_on}"
+        elif self.open_proposals:
+            state += ", as found, remedy proposed"
+        title = f"Post {present.escape(tag)} — {mark}{state}"
         widget = self.query_one("#editor-title", Static)
         if str(widget.content) != title:
             widget.update(title, layout=False)
@@ -536,6 +630,8 @@ class PostEditor(Screen[None]):
     async def load_history(self) -> None:
         member = self.member_id
         hist = await self.app.store.call(lambda log: log.history(member))  # type: ignore[attr-defined]
+        if hist and member == self.member_id:
+            self.head_id = hist[-1].id
         lines = [f"[b]{len(hist)} revision{'s' if len(hist) != 1 else ''}[/b] (oldest first)"]
         prev: dict[str, str] = {}
         for k, obs in enumerate(hist, 1):
@@ -554,9 +650,13 @@ class PostEditor(Screen[None]):
         self.query_one("#history-panel", Static).update("\n".join(lines))
 
     # -- save, undo, leave, remedies ---------------------------------------------------------
-    async def save(self) -> bool:
+    async def save(self, quiet: bool = False) -> bool:
         record = clean(self.record)
         member = self.member_id
+        if member is not None and not self.dirty:
+            if not quiet:
+                self.notify("Nothing changed: no new revision.", markup=False)
+            return True
         try:
             obs = await self.app.store.call(  # type: ignore[attr-defined]
                 lambda log: log.save_post(self.visit_id, record, member, allow_errors=True)
@@ -566,6 +666,7 @@ class PostEditor(Screen[None]):
             return False
         self.app.drafts.pop(self.draft_key, None)  # type: ignore[attr-defined]
         self.member_id = obs.member_id
+        self.head_id = obs.id
         self.saved_record = record
         self.app.drafts.pop(self.draft_key, None)  # type: ignore[attr-defined]
         self.app.drafts_changed()  # type: ignore[attr-defined]
@@ -579,6 +680,8 @@ class PostEditor(Screen[None]):
                 severity="warning",
                 markup=False,
             )
+        elif quiet:
+            self.notify(f"Saved {tag} as found.", markup=False)
         else:
             self.notify(f"Saved {tag} as a new revision.", markup=False)
         return True
@@ -611,7 +714,45 @@ class PostEditor(Screen[None]):
             self._validate(name)
         self._after_change()
 
-    def action_apply_remedy(self) -> None:
+    def _width_mm(self) -> float | None:
+        try:
+            return float(self.batch.d2_mm[0]) if self.batch is not None else None
+        except (AttributeError, IndexError, TypeError, ValueError):
+            return None
+
+    def _proposal_lines(self) -> list[str]:
+        st = self.remedy_state
+        if st is not None and st.state == "as remedied":
+            what = f": {present.escape(st.remedy)}" if st.remedy else ""
+            return [f"[b]Recorded as remedied on {st.done_on}[/b]{what}."]
+        out = []
+        for p in self.open_proposals:
+            out.append(
+                f"[b]Proposed[/b] {p.created_at[:10]} by {present.escape(p.author)}: "
+                f"{present.escape(p.description)}"
+                + (f" → {p.ratio:.2f}" if p.ratio is not None else "")
+            )
+        if out:
+            out.append(
+                "When the work is done, ctrl+o records the post as remedied (with the date)."
+            )
+        return out
+
+    @work(group="proposals", exclusive=True, exit_on_error=False)
+    async def load_proposals(self) -> None:
+        member = self.member_id
+        if member is None:
+            return
+
+        def get(log: Any) -> tuple[Any, list[Any]]:
+            state = log.remedy_states().get(member)
+            return state, log.proposals(member, open_only=True)[::-1]
+
+        self.remedy_state, self.open_proposals = await self.app.store.call(get)  # type: ignore[attr-defined]
+        self._title()
+        self._render_remedies()
+
+    def _chosen_remedy(self) -> dict[str, Any] | None:
         if (
             self.summary is not None
             and self.summary.get("quick")
@@ -620,34 +761,100 @@ class PostEditor(Screen[None]):
         ):
             self.summary = explain.summary(self.rating, 0)  # typed since the last full summary
             self.render_rating()
-        rems = list((self.summary or {}).get("remedies") or [])
-        if not rems or self.stale:
+        rems = [] if self.stale else remedy_words.ranked((self.summary or {}).get("remedies") or [])
+        if not rems:
             self.notify(
-                "No remedy to apply."
-                if not self.stale
-                else "Fix the form first: remedies follow from a good rating.",
+                "Fix the form first: remedies follow from a good rating."
+                if self.stale
+                else "No remedy to propose for this post.",
+                markup=False,
+            )
+            return None
+        box = self.query_one("#remedy-list", OptionList)
+        index = box.highlighted if rems == self.remedies and box.highlighted is not None else 0
+        return rems[index]
+
+    @work(group="write", exit_on_error=False)
+    async def action_propose_remedy(self) -> None:
+        """Store the highlighted (or best) remedy as a proposal beside the post as found: the
+        post as found is saved first, and stays what the post is recorded and rated as."""
+        rem = self._chosen_remedy()
+        if rem is None:
+            return
+        if (self.dirty or self.member_id is None) and not await self.save(quiet=True):
+            return
+        if self.head_id is None:
+            member = self.member_id
+            head_obs = await self.app.store.call(lambda log: log.head(member))  # type: ignore[attr-defined]
+            self.head_id = head_obs.id
+        units = self.app.units  # type: ignore[attr-defined]
+        text = remedy_words.words(rem, units, self._width_mm())
+        head = self.head_id
+        try:
+            await self.app.store.call(  # type: ignore[attr-defined]
+                lambda log: log.propose_remedy(
+                    head,
+                    kind=rem.get("kind", "remedy"),
+                    description=text,
+                    changes=rem.get("record_changes") or {},
+                    ratio=rem.get("ratio"),
+                    visit_id=self.visit_id,
+                )
+            )
+        except Exception as exc:
+            self.notify(f"Not proposed: {exc}", severity="error", markup=False)
+            return
+        tag = self.record.get("tag", "post")
+        self.notify(
+            f"Proposed for {tag}: {text}. {tag} stays recorded as found; ctrl+o records it as "
+            "remedied when the work is done.",
+            markup=False,
+        )
+        self.load_proposals()
+
+    def action_remedy_done(self) -> None:
+        if not self.open_proposals:
+            self.notify(
+                "No remedy proposed for this post: propose one first (ctrl+r on Remedies, F5).",
                 markup=False,
             )
             return
-        index = 0  # the first (the engine's preferred) unless one is highlighted in its pane
-        box = self.query_one("#remedy-list", OptionList)
-        if rems == self.remedies and box.highlighted is not None:
-            index = box.highlighted
-        rem = rems[index]
-        changes = rem.get("record_changes") or {}
-        if not changes:
-            self.notify("This remedy changes nothing in the record: do it on site.", markup=False)
+        if self.dirty:
+            self.notify("Save or undo your changes first (ctrl+s or ctrl+z).", markup=False)
             return
-        self.undo_stack.append(dict(self.record))
-        self.last_field = None
-        new = dict(self.record)
-        new.update({k: str(v) for k, v in changes.items()})
-        self.set_record(new)
-        self.action_save()
+        from fieldcheck.tui.dialogs import RemedyDoneDialog
+
+        prop = self.open_proposals[0]
+
+        def chosen(day: str | None) -> None:
+            if day:
+                self._record_done(prop.id, day)
+
+        self.app.push_screen(RemedyDoneDialog(prop.description), chosen)
+
+    @work(group="write", exit_on_error=False)
+    async def _record_done(self, proposal_id: str, day: str) -> None:
+        member, visit = self.member_id, self.visit_id
+        try:
+            obs = await self.app.store.call(  # type: ignore[attr-defined]
+                lambda log: log.record_remedied(
+                    member, visit, proposal_id=proposal_id, done_on=day, allow_errors=True
+                )
+            )
+        except Exception as exc:
+            self.notify(f"Not recorded: {exc}", severity="error", markup=False)
+            return
+        self.head_id = obs.id
+        self.saved_record = clean(obs.record)
+        self.set_record(obs.record)
+        self.undo_stack.clear()
+        self.notify(f"Recorded {obs.record.get('tag', 'the post')} as remedied on {day}.")
+        self.load_history()
+        self.load_proposals()
 
     @on(OptionList.OptionSelected, "#remedy-list")
     def _remedy_chosen(self) -> None:
-        self.action_apply_remedy()
+        self.action_propose_remedy()
 
     def action_leave(self) -> None:
         if not self.dirty:

@@ -1,66 +1,185 @@
-"""The post form, built from the column registry (fieldcheck.records.COLUMNS), grouped by the
-engine's groups. Columns added to the registry appear here without a change to this file: the
-common ones at the top of their group, the rest under "more…" (opened when they hold a value).
+"""The post form, in the order an inspector looks: where the post is and what it is; its section
+and height; the two ends; the material; what is seen, defect by defect; the load; then bearing
+and ground. Fields come from the column registry (fieldcheck.records.COLUMNS): a column this
+layout does not name still appears, under "more…" of its registry group's section.
 
-A section is built only when it is first opened (a closed group or "more…" holds no widgets):
-Textual lays out the whole screen on every layout request, so every widget on the screen costs
-time on every keystroke that changes a layout. A field is two widgets in a row (name, input);
-its message line is mounted the first time it has something to say.
+Common fields come first in each section; the rest sit under "more…" (built when first opened,
+and opened at once when they hold a value). Defects are added by kind (decay, knot, split, bow,
+notch, crushing, and the rarer ones): the "add a defect" field takes a kind, and only that kind's
+few fields are added. Textual lays out the whole screen on every layout request, so a section is
+built only when needed; a field is two widgets in a row (its label and its input), and its
+message line is mounted the first time it has something to say.
 """
 
 from __future__ import annotations
 
+import inspect
 from collections.abc import Iterable
 from typing import Any
 
-from textual.containers import Horizontal
+from textual.containers import Horizontal, Vertical
 from textual.geometry import Size
 from textual.suggester import SuggestFromList
 from textual.widget import Widget
-from textual.widgets import Collapsible, Input, Label
+from textual.widgets import Collapsible, Input, Label, Static
 
-GROUP_TITLES = {
-    "post": "Post",
-    "section": "Section",
-    "height": "Height and bracing",
-    "ends": "Ends",
-    "material": "Material",
-    "condition": "Condition",
-    "bearing": "Bearing and ground",
-    "load": "Load",
+LABEL_WIDTH = 15  # app.tcss .field-name width: every label fits (a test checks)
+
+# section id -> (title, registry groups it takes leftovers from, common fields, more fields)
+SECTIONS: tuple[tuple[str, str, tuple[str, ...], tuple[str, ...], tuple[str, ...]], ...] = (
+    ("where", "Where and what", ("post",), ("tag", "location", "notes"), ()),
+    (
+        "section",
+        "Section and height",
+        ("section", "height"),
+        ("size", "height"),
+        ("section", "diameter", "plies", "ply", "fastening"),
+    ),
+    (
+        "ends",
+        "The two ends",
+        ("ends",),
+        ("top", "bottom"),
+        (
+            "brace_weak",
+            "brace_strong",
+            "k_theoretical",
+            "top_spring",
+            "bottom_spring",
+            "top_ratio",
+            "bottom_ratio",
+        ),
+    ),
+    (
+        "material",
+        "Material",
+        ("material",),
+        ("species", "grade", "moisture"),
+        ("method", "class", "service_class", "data_level", "incised", "temperature"),
+    ),
+    ("seen", "What is seen", ("condition",), (), ()),
+    ("load", "Load", ("load",), ("load", "duration"), ("construction",)),
+    ("bearing", "Bearing and ground", ("bearing",), (), ()),
+)
+# the sections shown shut (every field under its "more…")
+SHUT = ("bearing",)
+
+# defect kind -> its fields, the first few asked at once (the engine's condition columns)
+DEFECTS: dict[str, tuple[str, ...]] = {
+    "decay": (
+        "decay_wide",
+        "decay_narrow",
+        "decay_at",
+        "decay_wide2",
+        "decay_narrow2",
+        "decay_margin",
+    ),
+    "knot": ("knot", "knot_face"),
+    "split": ("split", "split_faces", "split_at"),
+    "bow": ("bow_weak", "bow_strong"),
+    "notch": ("notch", "notch_face", "notch_height"),
+    "crushing": ("crushed_end", "crushing"),
+    "hollow": ("hollow", "hollow_at"),
+    "char": ("char_wide", "char_narrow", "char_at", "char_wide2", "char_narrow2"),
+    "hole": ("hole", "hole_face", "hole_height"),
+    "wane": ("wane", "wane_corners"),
+    "slope": ("slope", "slope_table", "beyond_grade"),
+    "lean": ("plumb_weak", "plumb_strong"),
+    "off-centre": ("offset_weak", "offset_strong"),
+    "movement": ("moving", "settling_sill"),
+    "stress-wave": (
+        "stress_wave",
+        "stress_wave_sound",
+        "stress_wave_path",
+        "density",
+        "stress_wave_suspect",
+        "stress_wave_advanced",
+    ),
 }
-OPEN_GROUPS = ("post", "section", "height", "ends", "material", "load")
-# shown at the top of their group; every other column goes under "more…" (judgement: the ones
-# an inspector fills on most posts)
-COMMON = {
-    "tag",
-    "location",
-    "notes",
-    "size",
-    "section",
-    "diameter",
-    "height",
-    "brace_weak",
-    "brace_strong",
-    "top",
-    "bottom",
-    "species",
-    "grade",
-    "method",
-    "class",
-    "moisture",
-    "load",
-    "duration",
-    "construction",
-    "tributary",
-    "dead",
-    "live",
-    "cap_species",
-    "sill_species",
-    "end_contact",
-    "soil",
-    "pad",
+COMMON_DEFECTS = ("decay", "knot", "split", "bow", "notch", "crushing")
+
+# labels that would not fit LABEL_WIDTH as the column name
+LABELS = {
+    "brace_weak": "brace thin side",
+    "brace_strong": "brace wide side",
+    "k_theoretical": "theoretical K",
+    "cap_end_distance": "cap end dist.",
+    "sill_end_distance": "sill end dist.",
+    "stress_wave": "transit time",
+    "stress_wave_sound": "sound time",
+    "stress_wave_path": "path length",
+    "stress_wave_suspect": "suspect ratio",
+    "stress_wave_advanced": "advanced ratio",
+    "decay_wide": "on a wide face",
+    "decay_wide2": "other wide face",
+    "decay_narrow": "on narrow face",
+    "decay_narrow2": "other narrow",
+    "decay_at": "where on height",
+    "decay_margin": "past boundary",
+    "char_wide": "on a wide face",
+    "char_wide2": "other wide face",
+    "char_narrow": "on narrow face",
+    "char_narrow2": "other narrow",
+    "char_at": "where on height",
+    "hollow_at": "where on height",
+    "split_at": "where on height",
+    "split_faces": "faces it shows",
+    "split": "worst split",
+    "knot": "largest knot",
+    "knot_face": "on face",
+    "notch": "notch depth",
+    "notch_face": "on face",
+    "notch_height": "height above",
+    "hole": "hole diameter",
+    "hole_face": "through face",
+    "hole_height": "height above",
+    "bow_weak": "bow thin side",
+    "bow_strong": "bow wide side",
+    "plumb_weak": "lean thin side",
+    "plumb_strong": "lean wide side",
+    "offset_weak": "off thin side",
+    "offset_strong": "off wide side",
+    "crushed_end": "crushed end",
+    "crushing": "still crushing",
+    "settling_sill": "sill settling",
+    "moving": "moving",
+    "wane_corners": "corners",
+    "slope_table": "slope table",
+    "beyond_grade": "beyond grade",
+    "service_class": "service class",
+    "data_level": "data level",
+    "live_reduction": "live reduction",
+    "rain_duration": "rain duration",
+    "live_duration": "live duration",
+    "lateral_rule": "lateral rule",
+    "soil_default": "soil default",
+    "pad_thickness": "pad thickness",
+    "end_contact": "end contact",
+    "end_plate": "end plates",
+    "cap_species": "cap species",
+    "cap_bearing": "cap bearing",
+    "sill_species": "sill species",
+    "sill_bearing": "sill bearing",
+    "top_spring": "top spring",
+    "bottom_spring": "bottom spring",
+    "top_ratio": "top ratio",
+    "bottom_ratio": "bottom ratio",
+    "point_live": "point live",
+    "roof_live": "roof live",
+    "shared_by": "shared by",
+    "brace_edge": "braced edge",
 }
+
+
+def label(name: str) -> str:
+    return LABELS.get(name, name.replace("_", " "))
+
+
+def plain(text: str) -> str:
+    """Help text without command-line syntax: `--rain-duration` -> "rain duration"."""
+    import re
+
+    return re.sub(r"--([a-z][a-z0-9-]*)", lambda m: m.group(1).replace("-", " "), text)
 
 
 class FieldInput(Input):
@@ -74,7 +193,47 @@ class FieldInput(Input):
     one), inside the key's own handler: whatever it repaints joins the field's repaint in the
     same frame. ``Input.Changed`` is still posted; it bubbles up through every container and
     arrives after the next frame has been drawn, one frame (16-33 ms) too late for a live rating.
+
+    Enter, Tab, shift+Tab, PageDown and PageUp go to the screen's ``form_key(key, field)`` once
+    the keys typed before them are in the field; the app holds later keys until then (see
+    FieldcheckApp.on_event), so a key typed straight after lands in the next field.
     """
+
+    holds_keys = True
+    FORM_KEYS = ("enter", "tab", "shift+tab", "pagedown", "pageup")
+
+    def __init__(self, *args: Any, choices: Iterable[str] = (), **kwargs: Any) -> None:
+        super().__init__(*args, **kwargs)
+        self.choices = tuple(choices)
+
+    def complete(self) -> None:
+        """A fixed-choice field: the first letters of exactly one choice stand for it."""
+        v = self.value.strip().lower()
+        if not v or not self.choices or v in (c.lower() for c in self.choices):
+            return
+        hits = [c for c in self.choices if c.lower().startswith(v)]
+        if len(hits) == 1:
+            self.value = hits[0]
+
+    async def _on_key(self, event: Any) -> None:
+        if event.key in self.FORM_KEYS:
+            event.stop()
+            event.prevent_default()
+            try:
+                handler = getattr(self.screen, "form_key", None)
+                handled = handler is not None and handler(event.key, self)
+                if inspect.isawaitable(handled):  # e.g. a defect's fields being added
+                    handled = await handled
+                if not handled and event.key == "enter":
+                    await self.action_submit()
+                elif not handled and event.key in ("tab", "shift+tab"):
+                    (self.screen.focus_next if event.key == "tab" else self.screen.focus_previous)()
+            finally:
+                release = getattr(self.app, "release_keys", None)
+                if release is not None:
+                    release()
+            return
+        await super()._on_key(event)
 
     def _watch_value(self, value: str) -> None:
         self.set_reactive(Widget.virtual_size, Size(self.content_width, 1))
@@ -94,25 +253,40 @@ class FieldInput(Input):
             self.selection = self.selection
 
 
+class DefectPicker(FieldInput):
+    """Where a defect is added by kind: type the kind (or its first letters) and press Enter."""
+
+
 def field_ids(name: str) -> tuple[str, str]:
     return f"f-{name}", f"m-{name}"
+
+
+def choices_text(col: Any) -> str:
+    """The values a fixed-choice field takes, shown in the field while it is empty."""
+    if col.choices:
+        opts = list(col.choices)
+        if col.default and col.default in opts:
+            opts.remove(col.default)
+            opts.insert(0, f"{col.default} (default)")
+        return " · ".join(opts)
+    if col.flag:
+        return "yes · no"
+    return ""
 
 
 def field_row(col: Any, value: str) -> Horizontal:
     """One field: its name and its input (the message line is added on demand)."""
     fid, _ = field_ids(col.name)
-    hint = col.default or (f"e.g. {col.example}" if col.example else "")
+    hint = choices_text(col) or col.default or (f"e.g. {col.example}" if col.example else "")
     if col.choices:
-        tip = f"{col.help}. One of: {', '.join(col.choices)}."
         suggester = SuggestFromList(col.choices, case_sensitive=False)
     elif col.flag:
-        tip = f"{col.help}."
         suggester = SuggestFromList(("yes", "no"), case_sensitive=False)
     else:
-        tip = f"{col.help}. Example: {col.example}"
         suggester = None
+    tip = plain(col.help) + (f". Example: {col.example}" if col.example else "")
     return Horizontal(
-        Label(col.name.replace("_", " "), classes="field-name"),
+        Label(label(col.name), classes="field-name"),
         FieldInput(
             value=value,
             placeholder=hint,
@@ -121,13 +295,14 @@ def field_row(col: Any, value: str) -> Horizontal:
             tooltip=tip,
             suggester=suggester,
             select_on_focus=False,
+            choices=col.choices or (("yes", "no") if col.flag else ()),
         ),
         classes="field",
     )
 
 
 class FieldGroup(Collapsible):
-    """A group of fields (or its "more…" part) whose widgets are made when first opened."""
+    """The "more…" part of a section (or a shut section), whose widgets are made when opened."""
 
     def __init__(
         self,
@@ -138,12 +313,8 @@ class FieldGroup(Collapsible):
         collapsed: bool,
         id: str,
         classes: str,
-        more: list[Any] | None = None,
-        more_title: str = "",
     ) -> None:
         self.columns = columns
-        self.more = more or []
-        self.more_title = more_title
         self.group = id.split("-", 1)[1]
         self.built = not collapsed
         super().__init__(
@@ -156,23 +327,10 @@ class FieldGroup(Collapsible):
 
     @property
     def names(self) -> list[str]:
-        """The columns this group makes widgets for itself (not those of its "more…" part)."""
         return [c.name for c in self.columns]
 
     def children_for(self, record: dict[str, str]) -> list[Widget]:
-        out: list[Widget] = [field_row(c, record.get(c.name, "")) for c in self.columns]
-        if self.more:
-            out.append(
-                FieldGroup(
-                    self.more,
-                    record,
-                    title=self.more_title,
-                    collapsed=not any(record.get(c.name) for c in self.more),
-                    id=f"more-{self.group}",
-                    classes="more",
-                )
-            )
-        return out
+        return [field_row(c, record.get(c.name, "")) for c in self.columns]
 
     async def build(self, record: dict[str, str]) -> bool:
         """Mount the fields (with the values in ``record``) if not done yet; True if it did."""
@@ -183,41 +341,131 @@ class FieldGroup(Collapsible):
         return True
 
 
-def compose_form(
-    columns: dict[str, Any], groups: tuple[str, ...], record: dict[str, str]
-) -> Iterable[FieldGroup]:
-    by_group: dict[str, list[Any]] = {}
-    for col in columns.values():
-        by_group.setdefault(col.group, []).append(col)
-    order = list(groups) + [g for g in by_group if g not in groups]
-    for group in order:
-        cols = by_group.get(group, [])
-        if not cols:
-            continue
-        common = [c for c in cols if c.name in COMMON]
-        more = [c for c in cols if c.name not in COMMON]
-        if not common:
-            common, more = more, []
-        has_value = any(record.get(c.name) for c in cols)
-        title = GROUP_TITLES.get(group, group.title())
-        yield FieldGroup(
-            common,
-            record,
-            title=title,
-            collapsed=not (group in OPEN_GROUPS or has_value),
-            id=f"g-{group}",
-            classes="group",
-            more=more,
-            more_title=f"more {title.lower()} ({len(more)})",
+class DefectGroup(Vertical):
+    """One defect kind's fields."""
+
+    def __init__(self, kind: str, columns: list[Any], record: dict[str, str]) -> None:
+        self.kind = kind
+        self.columns = columns
+        super().__init__(
+            Static(f"{kind}", classes="defect-title"),
+            *[field_row(c, record.get(c.name, "")) for c in columns],
+            id=f"d-{kind}",
+            classes="defect",
         )
 
+    @property
+    def names(self) -> list[str]:
+        return [c.name for c in self.columns]
 
-def group_path(columns: dict[str, Any], name: str) -> list[str]:
-    """The ids of the sections to open, outermost first, to show the field of ``name``."""
-    col = columns[name]
-    cols = [c for c in columns.values() if c.group == col.group]
-    common = [c.name for c in cols if c.name in COMMON] or [c.name for c in cols]
-    path = [f"g-{col.group}"]
-    if name not in common:
-        path.append(f"more-{col.group}")
-    return path
+
+def layout(columns: dict[str, Any]) -> dict[str, tuple[list[Any], list[Any]]]:
+    """section id -> (common columns, more columns), every registry column placed once (the
+    defect columns excepted: see defect_columns)."""
+    placed = {n for kind in DEFECTS.values() for n in kind if n in columns}
+    out: dict[str, tuple[list[Any], list[Any]]] = {}
+    for sid, _title, _groups, common, more in SECTIONS:
+        c = [columns[n] for n in common if n in columns]
+        m = [columns[n] for n in more if n in columns]
+        placed |= {x.name for x in c + m}
+        out[sid] = (c, m)
+    for sid, _title, groups, _c, _m in SECTIONS:  # leftovers: under "more…" of their section
+        if sid == "seen":
+            continue  # condition columns are defects (defect_columns)
+        rest = [col for col in columns.values() if col.group in groups and col.name not in placed]
+        placed |= {x.name for x in rest}
+        out[sid][1].extend(rest)
+    for col in columns.values():  # a group no section names: under "more…" of the load
+        if col.name not in placed and col.group != "condition":
+            out["load"][1].append(col)
+    return out
+
+
+def defect_columns(columns: dict[str, Any]) -> dict[str, list[Any]]:
+    """kind -> its columns (a condition column no kind names joins "other")."""
+    out = {k: [columns[n] for n in names if n in columns] for k, names in DEFECTS.items()}
+    named = {n for names in DEFECTS.values() for n in names}
+    other = [c for c in columns.values() if c.group == "condition" and c.name not in named]
+    other = [c for c in other if not any(c.name in s[3] + s[4] for s in SECTIONS)]
+    if other:
+        out["other"] = other
+    return {k: v for k, v in out.items() if v}
+
+
+def defect_kind(text: str, kinds: Iterable[str]) -> str | None:
+    """The kind meant by ``text``: exact, else the only kind it starts (common kinds first)."""
+    t = text.strip().lower().replace(" ", "-")
+    if not t:
+        return None
+    kinds = list(kinds)
+    if t in kinds:
+        return t
+    for k in [*COMMON_DEFECTS, *kinds]:
+        if k in kinds and k.startswith(t):
+            return k
+    return None
+
+
+def picker_row(kinds: list[str]) -> Horizontal:
+    common = [k for k in COMMON_DEFECTS if k in kinds]
+    rare = [k for k in kinds if k not in common]
+    hint = " · ".join(common) + (" · more: " + " ".join(rare) if rare else "")
+    return Horizontal(
+        Label("add a defect", classes="field-name"),
+        DefectPicker(
+            placeholder=hint,
+            id="add-defect",
+            compact=True,
+            tooltip="Type a defect kind (its first letters do) and press Enter: its fields follow. "
+            "Kinds: " + ", ".join(kinds),
+            suggester=SuggestFromList(kinds, case_sensitive=False),
+            select_on_focus=False,
+        ),
+        classes="field",
+    )
+
+
+def compose_form(columns: dict[str, Any], record: dict[str, str]) -> Iterable[Widget]:
+    lay = layout(columns)
+    kinds = defect_columns(columns)
+    for sid, title, _groups, _c, _m in SECTIONS:
+        common, more = lay[sid]
+        children: list[Widget] = [Static(title, classes="section-title")]
+        if sid in SHUT:
+            common, more = [], common + more
+        children += [field_row(c, record.get(c.name, "")) for c in common]
+        if sid == "seen":
+            for kind, cols in kinds.items():
+                if any(record.get(c.name) for c in cols):
+                    children.append(DefectGroup(kind, cols, record))
+            children.append(picker_row(list(kinds)))
+        if more:
+            children.append(
+                FieldGroup(
+                    more,
+                    record,
+                    title=f"more: {title.lower()} ({len(more)})"
+                    if sid not in SHUT
+                    else f"{title} ({len(more)})",
+                    collapsed=not any(record.get(c.name) for c in more),
+                    id=f"more-{sid}",
+                    classes="more",
+                )
+            )
+        yield Vertical(*children, id=f"g-{sid}", classes="section")
+
+
+def place(columns: dict[str, Any], name: str) -> tuple[str, str | None]:
+    """Where the field of ``name`` lives: ("more", section id), ("defect", kind) or
+    ("common", section id)."""
+    for kind, cols in defect_columns(columns).items():
+        if any(c.name == name for c in cols):
+            return "defect", kind
+    for sid, (common, more) in layout(columns).items():
+        if sid in SHUT and any(c.name == name for c in common + more):
+            return "more", sid
+        if any(c.name == name for c in common):
+            return "common", sid
+        if any(c.name == name for c in more):
+            return "more", sid
+    return "common", None

@@ -17,28 +17,54 @@ from typing import Any, TypeVar
 T = TypeVar("T")
 
 
+def _holds_survey(path: Path) -> bool:
+    """True when the user's own log exists and holds a site (then it opens, not the demo)."""
+    if not path.exists():
+        return False
+    from fieldcheck.store import Log
+
+    try:
+        with Log.open(path, readonly=True) as log:
+            return not log.is_empty()
+    except Exception:
+        return True  # open it, so its own message shows
+
+
 class LogThread:
     """Owns one ``fieldcheck.store.Log`` on one dedicated thread."""
 
-    def __init__(self, db: str | Path | None, *, seed_if_empty: bool = True) -> None:
+    def __init__(self, db: str | Path | None, *, demo: bool | None = None) -> None:
+        """``db`` None: the user's own survey log, or, while that holds no survey yet (the first
+        start), the invented demo in its own file. ``demo`` True: ``db`` (or the demo's own file)
+        is the demo, seeded if empty; False: never the demo."""
         self.db = db
-        self.seed_if_empty = seed_if_empty
+        self.demo = demo
         self._pool = ThreadPoolExecutor(max_workers=1, thread_name_prefix="fieldcheck-log")
         self._log: Any = None
         self.path: Path | None = None
         self.seeded = False
+        self.is_demo = False  # the log open is the invented demo (never synced)
 
     def _open(self) -> Any:
         if self._log is None:
             from fieldcheck.store import Log, default_log_path, seed_demo
+            from fieldcheck.store.demo import default_demo_path, is_demo
 
-            path = Path(self.db) if self.db else default_log_path()
+            demo = self.demo
+            if self.db and demo is None:
+                demo = False
+            if demo is None:
+                demo = not _holds_survey(default_log_path())
+            path = (
+                Path(self.db) if self.db else (default_demo_path() if demo else default_log_path())
+            )
             path.parent.mkdir(parents=True, exist_ok=True)
             self._log = Log.open(path)
             self.path = Path(self._log.path)
-            if self.seed_if_empty and self._log.is_empty():
+            if demo and self._log.is_empty():
                 seed_demo(self._log)
                 self.seeded = True
+            self.is_demo = is_demo(self._log)
         return self._log
 
     async def call(self, fn: Callable[..., T], *args: Any, **kwargs: Any) -> T:

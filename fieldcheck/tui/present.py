@@ -16,7 +16,10 @@ ACTIONS: dict[str, tuple[str, str, str]] = {
     "repair-or-brace": ("▲", "repair/brace", "$warning"),
     "make-safe-now": ("✖", "MAKE SAFE NOW", "$error"),
     "not rated": ("?", "not rated", "$text-muted"),
+    "not-rated": ("?", "not rated", "$text-muted"),  # the engine's name (no load given)
+    "not rated: load missing": ("?", "not rated: load missing", "$warning"),
 }
+LOAD_MISSING = "not rated: load missing"
 ACTION_ORDER = ("make-safe-now", "repair-or-brace", "monitor", "no-action", "not rated")
 
 
@@ -53,22 +56,74 @@ def ratio_word(ratio: float | None) -> str:
     return "FAR OVER"
 
 
+_EIGHTHS = " ▏▎▍▌▋▊▉"
+
+
 def ratio_bar(ratio: float | None, width: int = 20) -> str:
-    """A text bar over 0..1.5 with a `|` at 1.0, the number and a word: `[#######|  ] 0.86 near limit`."""
+    """A text bar over 0..1.5 drawn in eighths of a cell, a `|` at 1.0, the number and a word:
+    0.79 and 0.89 differ by at least one eighth of a cell from 8 cells up."""
     width = max(width, 6)
     if ratio is None or not math.isfinite(ratio):
         return "[" + "·" * width + "] — not rated"
     full = 1.5
     limit = round(width / full)  # the column where the ratio is 1.0
-    fill = min(width, round(max(ratio, 0.0) / full * width))
+    eighths = min(width * 8, round(max(ratio, 0.0) / full * width * 8))
     cells = []
     for i in range(width):
-        if i == limit:
-            cells.append("|" if i >= fill else "╫")
+        part = max(0, min(8, eighths - 8 * i))
+        if i == limit and part < 8:
+            cells.append("|" if part == 0 else "╫")
+        elif part == 8:
+            cells.append("█")
+        elif part:
+            cells.append(_EIGHTHS[part])
         else:
-            cells.append("█" if i < fill else "·")
+            cells.append("·")
     over = "»" if ratio > full else ""
     return "[" + "".join(cells) + "]" + over + f" {ratio:.2f} {ratio_word(ratio)}"
+
+
+def force_kn_first(n: float | None, system: str) -> str:
+    """Eurocode posts: kN first, the user's other unit after."""
+    if n is None or not (isinstance(n, (int, float)) and math.isfinite(n)):
+        return "—"
+    kn = f"{sig(n / 1000.0)} kN"
+    return kn if system != "us" else f"{kn} ({force(n, 'us')})"
+
+
+def sig(x: float, digits: int = 4) -> str:
+    """A number to ``digits`` significant figures, grouped, without trailing zeros."""
+    if not math.isfinite(x):
+        return "—" if math.isnan(x) else ("∞" if x > 0 else "-∞")
+    if x == 0:
+        return "0"
+    decimals = max(0, digits - 1 - math.floor(math.log10(abs(x))))
+    text = f"{round(x, decimals):,.{decimals}f}"
+    if "." in text:
+        text = text.rstrip("0").rstrip(".")
+    return text
+
+
+_NUMBER = None
+
+
+def sig_text(text: str, digits: int = 4) -> str:
+    """Every number in ``text`` with more than ``digits`` significant figures, rounded to that
+    many: '2757.903 MPa (400,000.0 psi)' -> '2,758 MPa (400,000 psi)'. Exponents are kept."""
+    import re
+
+    global _NUMBER
+    if _NUMBER is None:
+        _NUMBER = re.compile(r"(?<![\w.])(\d{1,3}(?:,\d{3})+|\d+)(\.\d+)?(?![\w.]|e[+-]?\d)")
+
+    def one(m: re.Match[str]) -> str:
+        whole, frac = m.group(1), m.group(2) or ""
+        digits_in = len((whole.replace(",", "") + frac[1:]).lstrip("0"))
+        if digits_in <= digits:
+            return m.group(0)
+        return sig(float(whole.replace(",", "") + frac), digits)
+
+    return _NUMBER.sub(one, text)
 
 
 def force(n: float | None, system: str) -> str:
@@ -93,7 +148,7 @@ def section_text(record: dict[str, str]) -> str:
             text = record[key]
             return ("ø " + text) if key == "diameter" else text
     if record.get("ply"):
-        return f"{record.get('plies', '1')}×{record['ply']}"
+        return f"{record.get('plies', '1')}×{record['ply']}"  # noqa: RUF001
     return "—"
 
 
@@ -109,32 +164,56 @@ def material_text(record: dict[str, str]) -> str:
     return f"{sp} {gr}" if (sp, gr) != ("unknown", "unknown") else "unknown"
 
 
-def head_lines(summary: dict[str, Any] | None, system: str, width: int, status: str) -> list[str]:
+# the head's words: (capacity, demand, ratio) for NDS posts and in Eurocode terms for EC5 posts
+HEAD_WORDS = {
+    "nds": ("Capacity ", "Demand   ", "Ratio    "),
+    "ec5": ("N_Rd     ", "N_Ed     ", "Use      "),
+}
+
+
+def load_missing(summary: dict[str, Any] | None) -> bool:
+    """No load given: the post is not rated (capacity alone says nothing about safety)."""
+    if not summary:
+        return False
+    if summary.get("state") == LOAD_MISSING:
+        return True
+    dem = summary.get("demand_kN")
+    return dem is None or (isinstance(dem, float) and not math.isfinite(dem))
+
+
+def head_lines(
+    summary: dict[str, Any] | None, system: str, width: int, status: str, ec5: bool = False
+) -> list[str]:
     """Seven lines, always: status, action, capacity, demand, ratio bar, governing check, due.
-    A fixed height lets a keystroke repaint them without a layout pass."""
+    A fixed height lets a keystroke repaint them without a layout pass. ``summary`` None (not
+    rated): no old result is shown beside the status."""
+    cap_w, dem_w, ratio_w = HEAD_WORDS["ec5" if ec5 else "nds"]
     if summary is None:
         return [
             status,
-            "Action    —",
-            "Capacity  —",
-            "Demand    —",
-            "Ratio     —",
+            "Action    ? not rated",
+            f"{cap_w} —",
+            f"{dem_w} —",
+            f"{ratio_w} —",
             "Governs   —",
             "Due       —",
         ]
     kn = 1000.0
+    fmt = force_kn_first if ec5 else force
     cap = summary.get("allowable_load_kN")
     dem = summary.get("demand_kN")
     ratio = summary.get("demand_capacity_ratio")
     label = summary.get("action") or "not rated"
     due = summary.get("due_days")
     due_text = "now" if due == 0 else (f"within {due} days" if due else "—")
+    if load_missing(summary):
+        label, due_text, ratio = LOAD_MISSING, "— (give the load)", None
     return [
         status,
         f"Action    {action_markup(label)}",
-        f"Capacity  [b]{force(cap * kn if cap is not None else None, system)}[/b]",
-        f"Demand    {force(dem * kn if dem is not None else None, system)}",
-        "Ratio     " + ratio_bar(ratio, max(8, min(30, width - 27))),
+        f"{cap_w} [b]{fmt(cap * kn if cap is not None else None, system)}[/b]",
+        f"{dem_w} {fmt(dem * kn if dem is not None else None, system)}",
+        f"{ratio_w} " + ratio_bar(ratio, max(8, min(30, width - 27))),
         f"Governs   {escape(_check_label(summary))}",
         f"Due       {due_text}",
     ]
@@ -165,8 +244,54 @@ def detail_lines(summary: dict[str, Any] | None) -> list[str]:
     warnings = summary.get("warnings") or []
     if warnings:
         lines.append(f"[b]Warnings ({len(warnings)})[/b]")
-        lines.extend(f" ! {escape(w)}" for w in warnings)
+        lines.extend(f" ! {escape(plain(w))}" for w in warnings)
     return lines
+
+
+def plain(text: str) -> str:
+    """Text without command-line syntax: `--rain-duration` -> "rain duration"."""
+    import re
+
+    return re.sub(r"--([a-z][a-z0-9-]*)", lambda m: m.group(1).replace("-", " "), str(text))
+
+
+def memory_note(label: str, clause: str, record: dict[str, str]) -> str:
+    """' (from memory)' where the step's reference value was recalled, not read from its source
+    (the status column of the reference table; [M] in a clause)."""
+    if "[M]" in clause:
+        return " (from memory)"
+    if (
+        label.startswith("Reference")
+        and "Supplement" in clause
+        and reference_status(record.get("species", ""), record.get("grade", "")) == "memory"
+    ):
+        return " (from memory)"
+    if "EN 338" in clause and record.get("class"):
+        from fieldcheck.engine.refdata import table
+
+        rows = [
+            r
+            for r in table("en338_classes")
+            if r.get("class", "").lower() == record["class"].lower()
+        ]
+        if rows and all(r.get("status") == "memory" for r in rows):
+            return " (from memory)"
+    return ""
+
+
+def reference_status(species: str, grade: str) -> str:
+    """'memory' when every tabulated row for the species and grade (or the default values used
+    for unknown ones) was recalled rather than read."""
+    from fieldcheck.engine.refdata import table
+
+    sp = (species or "unknown").strip().lower()
+    gr = (grade or "unknown").strip().lower()
+    rows = table("nds_reference_values")
+    if sp != "unknown" and gr != "unknown":
+        rows = tuple(r for r in rows if r["species"] == sp and r["grade"] == gr)
+    if rows and all(r.get("status") == "memory" for r in rows):
+        return "memory"
+    return "read" if rows else "memory"
 
 
 def _check_label(summary: dict[str, Any]) -> str:
@@ -181,3 +306,46 @@ def cautions_short() -> list[str]:
     from fieldcheck.engine.cautions import CAUTIONS
 
     return [f"⚠ {escape(c)}" for c in CAUTIONS]
+
+
+# sync row counts by table -> the inspector's words (tables of bookkeeping are left out)
+_SYNC_WORDS = (
+    ("sites", "site", "sites"),
+    ("visits", "visit", "visits"),
+    ("members", "new post", "new posts"),
+    ("observations", "post record", "post records"),
+    ("proposals", "remedy proposed", "remedies proposed"),
+    ("remedied", "remedy done", "remedies done"),
+    ("attachments", "photo", "photos"),
+    ("reviews", "office note", "office notes"),
+)
+
+
+def _moved(counts: dict[str, int]) -> str:
+    parts = []
+    for table, one, many in _SYNC_WORDS:
+        n = int(counts.get(table, 0) or 0)
+        if n:
+            parts.append(f"{n:,} {one if n == 1 else many}")
+    return ", ".join(parts) if parts else "nothing"
+
+
+def sync_sentence(result: Any) -> str:
+    """A sync summary in the inspector's words: what went to the office and what came back."""
+    sent = dict(getattr(result, "sent", {}) or {})
+    received = dict(getattr(result, "received", {}) or {})
+    if not any(sent.values()) and not any(received.values()):
+        s = "Already in step with the office: nothing to send or take"
+    else:
+        s = f"Sent {_moved(sent)}; took back {_moved(received)}"
+    conflicts = list(getattr(result, "conflicts", []) or [])
+    if conflicts:
+        n = len(conflicts)
+        s += (
+            f"; {n} post{'s' if n != 1 else ''} revised in two places without seeing each other "
+            "(F7 lists them)"
+        )
+    refused = list(getattr(result, "refused", []) or [])
+    if refused:
+        s += f"; {len(refused)} transfer{'s' if len(refused) != 1 else ''} refused"
+    return s + "."

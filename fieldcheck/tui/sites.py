@@ -42,7 +42,7 @@ class SitesScreen(Screen[None]):
     BINDINGS = [
         Binding("o", "open_visit", "Open", key_display="o/⏎", id="open_visit"),
         Binding("ctrl+n", "new_visit", "New visit", id="new_visit"),
-        Binding("f5", "reload", "Reload", id="reload"),
+        Binding("ctrl+l", "reload", "Reload", id="reload"),
         Binding("question_mark", "app.help", "Help", show=False, id="help_q"),
     ]
 
@@ -51,6 +51,7 @@ class SitesScreen(Screen[None]):
         yield Static(
             "Sites and visits — opening the survey log…", id="sites-title", classes="title"
         )
+        yield Static("", id="demo-banner", classes="banner")
         table: DataTable[Any] = DataTable(id="visits", cursor_type="row", zebra_stripes=True)
         yield table
         yield Static("", id="sites-status", classes="status")
@@ -76,9 +77,9 @@ class SitesScreen(Screen[None]):
         if first:
             app.load_drafts()
         self._fill(data)
-        if app.store.seeded and first:
+        if first and app.store.is_demo:
             self.notify(
-                "A new survey log with the invented demo survey was made: open a visit with Enter.",
+                "This is the invented demo survey, in a file of its own. ctrl+n starts your own.",
                 title="Demo survey",
                 markup=False,
             )
@@ -95,8 +96,19 @@ class SitesScreen(Screen[None]):
         if table.row_count:
             table.move_cursor(row=min(keep, table.row_count - 1))
         n = table.row_count
-        self.query_one("#sites-title", Static).update(
-            f"Sites and visits: {n} visit{'s' if n != 1 else ''} — Enter opens one"
+        demo = self.app.store.is_demo  # type: ignore[attr-defined]
+        if n:
+            title = f"Sites and visits: {n} visit{'s' if n != 1 else ''} — Enter opens one"
+        else:
+            title = "No visits yet — ctrl+n starts one"
+        self.query_one("#sites-title", Static).update(title)
+        banner = self.query_one("#demo-banner", Static)
+        banner.display = demo
+        banner.update(
+            "[b]INVENTED DEMO SURVEY[/b]: no real building, kept in its own file, never synced. "
+            "[b]ctrl+n[/b] starts your own survey."
+            if demo
+            else ""
         )
         conflicts = data["conflicts"]
         status = f"Log: {escape(data['path'])}"
@@ -130,7 +142,14 @@ class SitesScreen(Screen[None]):
         self.app.push_screen(VisitScreen(visit_id))
 
     def action_new_visit(self) -> None:
+        """A new visit; from the invented demo, the first visit of the user's own survey log."""
         from fieldcheck.tui.dialogs import NewVisitDialog
+
+        app: Any = self.app
+        if app.store.is_demo:
+            app.start_own_survey()
+            self.query_one("#visits", DataTable).clear()
+            self.reload()
 
         def made(visit_id: str | None) -> None:
             if visit_id:

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import contextlib
 import math
 import re
 from typing import Any
@@ -39,7 +40,32 @@ SORTS = ("worst", "tag", "location", "action", "height")
 
 def _load_visit(log: Any, visit_id: str) -> dict[str, Any]:
     v = log.visit(visit_id)
-    return {"visit": v, "site": log.site(v.site_id), "posts": log.posts(visit_id)}
+    return {
+        "visit": v,
+        "site": log.site(v.site_id),
+        "posts": log.posts(visit_id),
+        "states": log.remedy_states(visit_id),  # as found / proposed / as remedied
+    }
+
+
+def remedy_mark(state: Any) -> str:
+    """A post's remedy state in a few words for the list ('' when as found)."""
+    if state is None or state.state == "as found":
+        return ""
+    if state.state == "proposed":
+        return "remedy proposed"
+    return f"remedied {state.done_on}"
+
+
+def action_cell(p: Any) -> str:
+    """The action word; a post with no load is not rated (never 'no action')."""
+    if (
+        p.action_label in ("not rated", "not-rated")
+        and p.capacity_n is not None
+        and (p.demand_n is None)
+    ):
+        return action_word("not rated: load missing")
+    return action_word(p.action_label)
 
 
 def next_tag(tag: str, taken: set[str]) -> str:
@@ -66,7 +92,7 @@ class VisitScreen(Screen[None]):
     BINDINGS = [
         # open, add, back and help first: the footer is cut at 80 columns (F1 and ctrl+p list all)
         Binding("o", "open_post", "Open", key_display="o/⏎", id="open_post"),
-        Binding("ctrl+n", "add_post", "Add", id="add_post"),
+        Binding("ctrl+n", "add_post", "New post", id="add_post"),
         Binding("escape", "back", "Back", id="back_visit"),
         Binding("f1", "app.help", "Help", id="visit_help"),
         Binding("c", "copy_post", "Copy", id="copy_post"),
@@ -82,6 +108,7 @@ class VisitScreen(Screen[None]):
         self.visit_id = visit_id
         self.site_id: str | None = None
         self.posts: list[Any] = []
+        self.states: dict[str, Any] = {}  # member id -> store.proposals.RemedyState
         self.sort_by = "worst"
         self.visit: Any = None
 
@@ -114,8 +141,10 @@ class VisitScreen(Screen[None]):
         self.visit = data["visit"]
         self.site_id = self.visit.site_id
         self.posts = data["posts"]
+        self.states = data.get("states") or {}
         self.query_one("#visit-title", Static).update(
-            f"{escape(data['site'].name)} — {escape(self.visit.name)} ({self.visit.started_at[:10]})"
+            f"{escape(data['site'].name)} — {escape(self.visit.name)} "
+            f"({self.visit.started_at[:10]})"
         )
         self._fill(select)
 
@@ -135,7 +164,8 @@ class VisitScreen(Screen[None]):
                         material_text(p.record),
                         ends_text(p.record),
                         p.action_label,
-                        action_word(p.action_label),
+                        action_cell(p),
+                        remedy_mark(self.states.get(p.member_id)),
                         " ".join(p.record.values()),
                     ]
                 ).lower()
@@ -162,9 +192,12 @@ class VisitScreen(Screen[None]):
             tag = p.tag or "—"
             if p.member_id in drafts:
                 tag = "✎ " + tag
-            action = action_word(p.action_label)
+            action = action_cell(p)
             if p.conflict:
                 action = "⚡ " + action
+            mark = remedy_mark(self.states.get(p.member_id))
+            if mark:
+                action += f" · {mark}"
             loc = p.location or ""
             if len(loc) > 24:
                 loc = loc[:23] + "…"
@@ -181,17 +214,22 @@ class VisitScreen(Screen[None]):
                 key=p.member_id,
             )
         if select is not None:
-            try:
+            with contextlib.suppress(Exception):
                 table.move_cursor(row=table.get_row_index(select))
-            except Exception:
-                pass
-        counts: dict[str, int] = {}
-        for p in self.posts:
+        counts: dict[str, int] = {}  # of the posts listed, so they add up to what is shown
+        remedy: dict[str, int] = {}
+        for p in shown:
             counts[p.action_label] = counts.get(p.action_label, 0) + 1
+            st = self.states.get(p.member_id)
+            if st is not None and st.state != "as found":
+                remedy[st.state] = remedy.get(st.state, 0) + 1
         summary = "  ".join(f"{action_word(a)} {counts[a]}" for a in ACTION_ORDER if counts.get(a))
+        if remedy:
+            summary += "  " + ", ".join(f"{n} {s}" for s, n in sorted(remedy.items()))
         new_draft = "  ✎ unsaved new post (ctrl+n)" if f"new:{self.visit_id}" in drafts else ""
         self.query_one("#visit-status", Static).update(
-            f"{len(shown)} of {len(self.posts)} posts, sorted by {self.sort_by}.  {summary}{new_draft}"
+            f"{len(shown)} of {len(self.posts)} posts, sorted by {self.sort_by}.  "
+            f"{summary}{new_draft}"
         )
 
     @on(Input.Changed, "#filter")

@@ -19,8 +19,10 @@ def test_default_log_path_follows_xdg_and_env(monkeypatch, tmp_path):
     assert default_log_path() == tmp_path / "mine.db"
 
 
-def test_demo_without_db_writes_the_default_log(monkeypatch, tmp_path, capsys):
+def test_demo_without_db_writes_its_own_file_beside_the_log(monkeypatch, tmp_path, capsys):
     monkeypatch.setenv("FIELDCHECK_DB", str(tmp_path / "deep" / "folder" / "survey.db"))
     assert main(["demo"]) == 0
-    assert (tmp_path / "deep" / "folder" / "survey.db").is_file()
-    assert main(["check"]) == 0
+    demo = tmp_path / "deep" / "folder" / "demo-invented.fieldcheck"
+    assert demo.is_file()
+    assert not (tmp_path / "deep" / "folder" / "survey.db").exists()  # the user's log untouched
+    assert main(["check", "--db", str(demo)]) == 0

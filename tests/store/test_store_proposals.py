@@ -75,3 +75,18 @@ def test_proposals_and_remedies_travel_with_sync(log, visit, tmp_path):
         state = office.remedy_states()[found.member_id]
         assert state.state == "as remedied" and state.remedy == "brace it"
     assert sync(log, tmp_path / "office.db").moved == 0
+
+
+def test_the_invented_demo_is_marked_and_never_synced(tmp_path):
+    from fieldcheck.store import seed_demo
+    from fieldcheck.store.demo import is_demo
+    from fieldcheck.store.sync import TransferRefused, export_bundle
+
+    with Log.open(tmp_path / "demo.fieldcheck") as demo:
+        seed_demo(demo)
+        assert is_demo(demo)
+        with pytest.raises(TransferRefused, match="invented demo"):
+            sync(demo, tmp_path / "office.db")
+        with pytest.raises(TransferRefused, match="invented demo"):
+            export_bundle(demo, tmp_path / "out.bundle")
+    assert not (tmp_path / "office.db").exists()

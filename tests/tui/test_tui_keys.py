@@ -1,0 +1,69 @@
+"""No keystroke lost or misplaced: keys posted in one burst (no pause at all between them, as a
+fast typist or a barcode wedge sends them) land in the field that has focus when each is pressed,
+across Enter, Tab and adding a defect."""
+
+from __future__ import annotations
+
+from textual.widgets import Input
+
+
+async def test_a_burst_of_keys_lands_field_by_field(db, ui) -> None:
+    app = ui.app(db)
+    async with app.run_test(size=(100, 34)) as pilot:
+        await ui.open_visit(app, pilot)
+        await pilot.press("ctrl+n")
+        await ui.settle(app, pilot)
+        editor = app.screen
+        tag = editor.query_one("#f-tag", Input)
+        editor.set_focus(tag)
+        await pilot.pause()
+        tag.value = ""
+        keys: list[str] = []
+        typed = {
+            "tag": "P7",
+            "location": "north bay",
+            "notes": "",
+            "size": "6x6",
+            "height": "7ft 2in",
+            "top": "",
+            "bottom": "",
+            "species": "hem-fir",
+            "grade": "no1",
+            "moisture": "24%",
+        }
+        for value in typed.values():
+            keys += [*value, "enter"]
+        keys += [*"bow", "enter", *"3/4in", "tab", *"1/4in", "enter"]
+        keys += ["enter"]  # an empty "add a defect": on to the load
+        keys += [*"5000 lbf", "enter"]
+        ui.burst(app, keys)
+        await ui.drain(app, pilot)
+        for name, value in typed.items():
+            assert editor.query_one(f"#f-{name}", Input).value == value, name
+        assert editor.query_one("#f-bow_weak", Input).value == "3/4in"
+        assert editor.query_one("#f-bow_strong", Input).value == "1/4in"
+        assert editor.query_one("#f-load", Input).value == "5000 lbf"
+        assert editor.record["load"] == "5000 lbf" and editor.record["tag"] == "P7"
+        assert app.screen.focused is editor.query_one("#f-duration", Input)
+
+
+async def test_a_burst_in_the_new_visit_dialog(db, ui, own_log) -> None:
+    app = ui.app(db)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await ui.settle(app, pilot)
+        await pilot.press("ctrl+n")  # from the demo: the user's own survey starts
+        await ui.settle(app, pilot)
+        assert type(app.screen).__name__ == "NewVisitDialog"
+        assert not app.store.is_demo
+        date = app.screen.query_one("#date", Input)
+        date.value = ""
+        keys = [*"9 Birch Lane", "enter", *"J. Ortiz", "enter", *"2026-03-14", "enter"]
+        keys += [*"st", "enter", *"before the wall comes out", "enter"]
+        ui.burst(app, keys)
+        await ui.drain(app, pilot)
+        assert type(app.screen).__name__ == "VisitScreen", type(app.screen).__name__
+        visit = app.screen.visit
+        assert visit.inspector == "J. Ortiz" and visit.level == "standard"
+        assert visit.started_at.startswith("2026-03-14")
+        assert visit.name == "before the wall comes out"
+    assert own_log.exists()  # the user's own log, beside (never inside) the demo

@@ -1,0 +1,121 @@
+"""The interface's logic without a screen: the form's order and labels, defect kinds, remedy
+words and ranking, the ratio bar, precision, sync words, no command-line syntax."""
+
+from __future__ import annotations
+
+from types import SimpleNamespace
+
+from fieldcheck.records import COLUMNS
+from fieldcheck.tui import form, present, remedy_words
+
+
+def test_every_column_has_one_place_and_the_form_goes_in_inspector_order():
+    lay = form.layout(COLUMNS)
+    defects = form.defect_columns(COLUMNS)
+    placed = [c.name for common, more in lay.values() for c in common + more]
+    placed += [c.name for cols in defects.values() for c in cols]
+    assert sorted(placed) == sorted(COLUMNS)  # each registry column exactly once
+    order = [s[0] for s in form.SECTIONS]
+    # where/what; section; the two ends; material; what is seen; the load  # issue order
+    assert order[:6] == ["where", "section", "ends", "material", "seen", "load"]
+    common = [c.name for sid in order for c in lay[sid][0]]
+    assert common.index("tag") < common.index("size") < common.index("top")
+    assert common.index("top") < common.index("species") < common.index("load")
+
+
+def test_defects_are_added_by_kind_and_ask_only_their_own_fields():
+    defects = form.defect_columns(COLUMNS)
+    for kind in ("decay", "knot", "split", "bow", "notch", "crushing"):
+        assert kind in defects
+        assert 1 <= len(defects[kind]) <= 6
+    assert [c.name for c in defects["bow"]] == ["bow_weak", "bow_strong"]
+    assert form.defect_kind("b", defects) == "bow"
+    assert form.defect_kind("de", defects) == "decay"
+    assert form.defect_kind("cr", defects) == "crushing"  # a common kind before "char"
+    assert form.defect_kind("x", defects) is None
+
+
+def test_labels_fit_and_fixed_choices_show_in_place():
+    for name in COLUMNS:
+        assert len(form.label(name)) <= form.LABEL_WIDTH, name
+    top = COLUMNS["top"]
+    assert "pinned" in form.choices_text(top) and "guided" in form.choices_text(top)
+    assert form.choices_text(COLUMNS["construction"]) == "yes · no"
+
+
+def test_no_command_line_syntax_reaches_the_interface():
+    for col in COLUMNS.values():
+        assert "--" not in form.plain(col.help), col.name
+    assert present.plain("give --rain-duration too") == "give rain duration too"
+
+
+def test_ratio_bar_tells_079_from_089_at_the_narrowest():
+    for width in (8, 12, 20, 30):
+        a, b = present.ratio_bar(0.79, width), present.ratio_bar(0.89, width)
+        assert a.split("]")[0] != b.split("]")[0], width  # the bars themselves differ
+    assert "0.79" in present.ratio_bar(0.79) and "near limit" in present.ratio_bar(0.89)
+
+
+def test_working_values_keep_three_or_four_significant_figures():
+    assert present.sig_text("2757.903 MPa (400,000.0 psi)") == "2,758 MPa (400,000 psi)"
+    assert present.sig_text("Cp = 0.871659") == "Cp = 0.8717"
+    assert present.sig_text("NDS 2018 §3.7.1") == "NDS 2018 §3.7.1"  # clauses untouched
+    assert present.sig(12.34567) == "12.35"
+
+
+def test_from_memory_is_said_in_the_working():
+    # data/nds_reference_values.csv: status memory for every row held today
+    rec = {"species": "douglas-fir-larch", "grade": "no2"}
+    assert present.memory_note("Reference Fc", "NDS Supplement", rec) == " (from memory)"
+    assert present.memory_note("d_eff", "NDS 2018 §3.6.3 [M]", rec) == " (from memory)"
+    assert present.memory_note("le/d", "NDS 2018 §3.7.1.3", rec) == ""
+
+
+def test_load_missing_is_not_rated_and_eurocode_heads_in_kN():
+    summary = {"allowable_load_kN": 50.0, "demand_kN": None, "action": "no-action", "checks": []}
+    lines = present.head_lines(summary, "us", 60, "status")
+    assert "not rated: load missing" in lines[1] and "no action" not in lines[1]
+    summary = {
+        "allowable_load_kN": 50.0,
+        "demand_kN": 20.0,
+        "demand_capacity_ratio": 0.4,
+        "action": "no-action",
+        "checks": [],
+    }
+    lines = present.head_lines(summary, "us", 60, "status", ec5=True)
+    assert lines[2].startswith("N_Rd") and "50 kN (" in lines[2]  # kN first
+    assert present.head_lines(None, "us", 60, "✖ NOT RATED")[2].endswith("—")  # nothing old
+
+
+def test_remedies_in_the_inspectors_words_and_no_margin_last():
+    rems = [
+        {"kind": "plate", "ratio": 0.99, "record_changes": {"plate": "140 mm"}},
+        {"kind": "brace-weak", "ratio": 0.72, "record_changes": {"brace_weak": "1219 mm"}},
+        {"kind": "second-post", "ratio": 0.6, "record_changes": {"shared_by": "2"}},
+    ]
+    ranked = remedy_words.ranked(rems)
+    assert [r["kind"] for r in ranked] == ["brace-weak", "second-post", "plate"]
+    assert remedy_words.words(rems[1], "us") == "brace at mid-height on the weak axis (4' 0\" up)"
+    plate = remedy_words.words(rems[0], "us", width_mm=139.7)
+    x = "\u00d7"  # the multiplication sign
+    assert plate == f"bear on a steel plate 6 {x} 6 {x} 1/2 in at the cap and the sill"
+    assert remedy_words.words(rems[2]).startswith("add a post beside it")
+    assert "no margin" in remedy_words.line(rems[0])
+    replace = {"kind": "replace", "record_changes": {"size": "8x8", "species": "hem-fir"}}
+    assert remedy_words.words(replace) == "replace it with a new 8x8 hem-fir post"
+    for r in rems:  # never a dump of internal fields
+        assert "=" not in remedy_words.line(r) and "_" not in remedy_words.line(r)
+
+
+def test_sync_summary_in_the_inspectors_words():
+    result = SimpleNamespace(
+        sent={"members": 2, "observations": 5, "visits": 1, "ratings": 5, "engine_stamps": 1},
+        received={"reviews": 1},
+        conflicts=[],
+        refused=[],
+    )
+    s = present.sync_sentence(result)
+    assert s == "Sent 1 visit, 2 new posts, 5 post records; took back 1 office note."
+    assert "ratings" not in s and "observations" not in s
+    quiet = SimpleNamespace(sent={}, received={}, conflicts=[], refused=[])
+    assert "nothing to send" in present.sync_sentence(quiet)
