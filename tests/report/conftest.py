@@ -19,6 +19,18 @@ def demo_log(tmp_path):
 
 
 @pytest.fixture
+def survey_log(tmp_path):
+    """The demo's records as an inspector's own survey (not the marked demo, so it may sync)."""
+    from fieldcheck.store.demo import demo_rows
+
+    lg = Log.open(tmp_path / "survey.db", author="tester", device="device-S")
+    rows = [{k: v for k, v in r.items() if k != "visit"} for r in demo_rows()]
+    lg.import_rows(rows, "9 Birch Lane", "survey")
+    yield lg
+    lg.close()
+
+
+@pytest.fixture
 def empty_log(tmp_path):
     lg = Log.open(tmp_path / "empty.db", author="tester", device="device-E")
     yield lg

@@ -67,11 +67,11 @@ def test_attach_errors_are_one_sentence(demo_log, tmp_path, capsys):
     assert "is not a file" in capsys.readouterr().err
 
 
-def test_sync_carries_photo_files_verified_by_hash(demo_log, tmp_path):
-    post = next(p for p in demo_log.posts() if p.tag == "S4")
-    a = demo_log.attach_photo(post.observation_id, _photo(tmp_path / "s4.jpg"), "cap")
+def test_sync_carries_photo_files_verified_by_hash(survey_log, tmp_path):
+    post = next(p for p in survey_log.posts() if p.tag == "S4")
+    a = survey_log.attach_photo(post.observation_id, _photo(tmp_path / "s4.jpg"), "cap")
     office = tmp_path / "office.db"
-    assert main(["sync", "--db", str(demo_log.path), str(office), "--quiet"]) == 0
+    assert main(["sync", "--db", str(survey_log.path), str(office), "--quiet"]) == 0
     got = photo_dir(office) / f"{a.sha256}.jpg"
     assert got.is_file() and hashlib.sha256(got.read_bytes()).hexdigest() == a.sha256
     with Log.open(office) as off:
