@@ -32,6 +32,17 @@ WRITTEN_BY_FIELDCHECK = (
     "within_slenderness_limit",
     "warnings",
     "error",
+    # fieldcheck.report.export_format.ADDED (the office export's own columns)
+    "visit_date",
+    "height_in",
+    "height_mm",
+    "load_lbf",
+    "load_kN",
+    "state",
+    "due_date",
+    "capacity_lbf",
+    "demand_lbf",
+    "schema_version",
 )
 
 

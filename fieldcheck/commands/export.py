@@ -1,24 +1,38 @@
-"""`fieldcheck export`: the current posts of a survey log as CSV or JSON."""
+"""`fieldcheck export`: the current posts of a survey log as CSV or JSON (the office format)."""
 
 from __future__ import annotations
 
 import argparse
-import csv
-import json
 import sys
 
 from fieldcheck.commands.log_option import add_db_option, open_log
 
 DESCRIPTION = (
     "Write the current posts of a survey log (each post's latest revision, as typed, with its "
-    "latest rating) as CSV or JSON. An exported CSV can be imported again."
+    "latest rating) as CSV or JSON with a fixed set of columns (schema version 1: see "
+    "fieldcheck/report/export_format.py): the text as typed beside numbers in your units "
+    "(height_in, load_lbf or height_mm, load_kN), the due date, rounded values. Cells a "
+    "spreadsheet would run as a formula are written as text. An exported CSV can be imported "
+    "again."
 )
 
 
 def add_arguments(p: argparse.ArgumentParser) -> None:
     add_db_option(p)
     p.add_argument("--format", choices=("csv", "json"), default="csv", help="output format (csv)")
-    p.add_argument("--out", metavar="FILE", help="write here instead of the standard output")
+    p.add_argument(
+        "--out", metavar="FILE", help="write here instead of the standard output (- : stdout)"
+    )
+    p.add_argument(
+        "--units",
+        choices=("us", "metric"),
+        default=argparse.SUPPRESS,
+        help="units of the numeric columns (default: your config file, else us)",
+    )
+    p.add_argument(
+        "--bom", action="store_true", help="start the CSV with a byte-order mark (for Excel)"
+    )
+    p.add_argument("--quiet", action="store_true", help="no progress bar")
     p.add_argument("--bundle", metavar="OUT", help="write a sync bundle (OUT and OUT.json) instead")
 
 
@@ -27,42 +41,33 @@ def run(args: argparse.Namespace) -> int:
         from fieldcheck.commands.sync import run_export_bundle
 
         return run_export_bundle(args)
+    from fieldcheck.commands.progress import progress_bar
+    from fieldcheck.config import load
+    from fieldcheck.report import export_format as ef
+
+    units = getattr(args, "units", None) or load().units
+    to_file = bool(args.out) and args.out != "-"
     with open_log(args, readonly=True, must_exist=True) as log:
-        columns, rows = log.export_iter()
+        cols, rows = ef.rows(log, units)
+        total = sum(log.counts_by_action().values()) if hasattr(log, "counts_by_action") else 0
         written = []
 
-        def write(out) -> None:
-            written.append((write_json if args.format == "json" else write_csv)(out, columns, rows))
+        with progress_bar(args.quiet) as bar:
+            prog = None if bar is None else (lambda n, _t, s: bar(n, max(total, n), s))
 
-        if args.out:
-            from fieldcheck.commands.out_file import write_atomically
+            def write(out) -> None:
+                if args.format == "json":
+                    written.append(ef.write_json(out, cols, rows, units=units, progress=prog))
+                else:
+                    written.append(ef.write_csv(out, cols, rows, bom=args.bom, progress=prog))
 
-            write_atomically(args.out, write)
-        else:
-            write(sys.stdout)
+            if to_file:
+                from fieldcheck.commands.out_file import write_atomically
+
+                write_atomically(args.out, write)
+            else:
+                write(sys.stdout)
         n = written[0]
-    if args.out:
+    if to_file:
         print(f"Exported {n} posts to {args.out}.", file=sys.stderr)
     return 0
-
-
-def write_csv(out, columns: list[str], rows) -> int:
-    """The rows (dicts in column order) as CSV, streamed; an empty value for None."""
-    w = csv.writer(out)
-    w.writerow(columns)
-    n = 0
-    for row in rows:
-        w.writerow(["" if v is None else v for v in row.values()])
-        n += 1
-    return n
-
-
-def write_json(out, columns: list[str], rows) -> int:
-    """{"columns": [...], "posts": [{...}, ...]}, one post per line, streamed."""
-    out.write('{"columns": ' + json.dumps(columns, ensure_ascii=False) + ',\n "posts": [')
-    n = 0
-    for row in rows:
-        out.write(("\n  " if n == 0 else ",\n  ") + json.dumps(row, ensure_ascii=False))
-        n += 1
-    out.write("\n ]\n}\n")
-    return n

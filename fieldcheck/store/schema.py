@@ -18,6 +18,9 @@ Version history
   4  review records: reviews gain the kinds accept, override (with ``action``, the action set),
      require-remedy and settle; observations gain ``merges``, the second parent of a revision
      that settles a conflict (a head is a revision nobody supersedes or merges)
+  5  views for the office to query the file directly (no tables change): current_posts (each
+     current post with the fields of its record pulled out and its latest rating), latest_ratings
+     and photos
 """
 
 from __future__ import annotations
@@ -26,7 +29,7 @@ from sqlite_utils import Database, Migrations
 
 from fieldcheck.store.connection import APPLICATION_ID
 
-SCHEMA_VERSION = 4
+SCHEMA_VERSION = 5
 MIGRATION_SET = "fieldcheck"
 migrations = Migrations(MIGRATION_SET)
 
@@ -228,9 +231,72 @@ def _v4(db: Database) -> None:
     db.execute("PRAGMA user_version = 4")
 
 
+# the record fields current_posts pulls out of record_json (as typed, text)
+VIEW_FIELDS = (
+    "size",
+    "section",
+    "diameter",
+    "height",
+    "top",
+    "bottom",
+    "species",
+    "grade",
+    "method",
+    "duration",
+    "moisture",
+    "load",
+    "notes",
+)
+
+
+@migrations(name="0005_office_views")
+def _v5(db: Database) -> None:
+    head = (
+        "(SELECT h.id FROM observations h WHERE h.member_id = m.id"
+        " AND NOT EXISTS (SELECT 1 FROM observations c WHERE c.supersedes = h.id)"
+        " AND NOT EXISTS (SELECT 1 FROM observations c WHERE c.merges = h.id)"
+        " ORDER BY h.device_seq DESC, h.id DESC LIMIT 1)"
+    )
+    db.execute(
+        """CREATE VIEW latest_ratings AS
+        SELECT r.* FROM ratings r
+        WHERE r.rowid = (SELECT max(rowid) FROM ratings x
+                         WHERE x.observation_id = r.observation_id)"""
+    )
+    fields = ",\n        ".join(f"json_extract(o.record_json, '$.{f}') AS {f}" for f in VIEW_FIELDS)
+    db.execute(
+        f"""CREATE VIEW current_posts AS
+        SELECT m.id AS member_id, o.id AS observation_id, s.name AS site, v.name AS visit,
+        substr(v.started_at, 1, 10) AS visit_date,
+        json_extract(o.record_json, '$.tag') AS tag,
+        json_extract(o.record_json, '$.location') AS location,
+        {fields},
+        r.ratio, r.action,
+        CASE r.action WHEN 0 THEN 'no-action' WHEN 1 THEN 'monitor'
+            WHEN 2 THEN 'repair-or-brace' WHEN 3 THEN 'make-safe-now'
+            WHEN 4 THEN 'not-rated' ELSE 'not rated' END AS action_label,
+        r.capacity_n / 1000.0 AS capacity_kN, r.demand_n / 1000.0 AS demand_kN, r.governing,
+        r.engine_version, r.created_at AS rated_at, o.created_at AS revised_at, o.record_json
+        FROM members m
+        JOIN observations o ON o.id = {head}
+        LEFT JOIN sites s ON s.id = m.site_id
+        LEFT JOIN visits v ON v.id = o.visit_id
+        LEFT JOIN latest_ratings r ON r.observation_id = o.id
+        WHERE o.withdrawn = 0"""
+    )
+    db.execute(
+        """CREATE VIEW photos AS
+        SELECT a.id, a.member_id, a.observation_id,
+        json_extract(o.record_json, '$.tag') AS tag, a.caption, a.path, a.sha256, a.size_bytes,
+        a.created_at FROM attachments a LEFT JOIN observations o ON o.id = a.observation_id"""
+    )
+    db.execute("PRAGMA user_version = 5")
+
+
 MIGRATION_NAMES = (
     "0001_initial",
     "0002_reviews_sync",
     "0003_remedies",
     "0004_review_records",
+    "0005_office_views",
 )  # index + 1 = the version it makes

@@ -1,0 +1,105 @@
+"""The office export: fixed documented columns with a schema version, numbers with their unit in
+the header beside the text as typed, the due date, rounding, formula-safe CSV, optional BOM."""
+
+from __future__ import annotations
+
+import csv
+import datetime as dt
+import io
+import json
+
+from fieldcheck.cli import main
+from fieldcheck.engine.result import DUE_DAYS
+from fieldcheck.report import export_format as ef
+from fieldcheck.store import Log
+
+
+def _csv(capsys, argv) -> list[dict]:
+    assert main(argv) == 0
+    return list(csv.DictReader(io.StringIO(capsys.readouterr().out)))
+
+
+def test_the_header_is_the_same_whatever_the_data(demo_log, empty_log, capsys):
+    demo = _csv(capsys, ["export", "--db", str(demo_log.path)])
+    assert main(["export", "--db", str(empty_log.path)]) == 0
+    header = capsys.readouterr().out.splitlines()[0]
+    assert header.split(",") == list(demo[0]) == ef.columns("us")
+    metric = ef.columns("metric")
+    assert len(metric) == len(ef.columns("us"))
+    assert metric[metric.index("height") + 1] == "height_mm"
+    assert metric[metric.index("load") + 1] == "load_kN"
+    assert {"capacity_kN", "demand_kN"} <= set(metric)
+    assert all(r["schema_version"] == str(ef.SCHEMA_VERSION) for r in demo)
+
+
+def test_numbers_beside_the_text_and_the_due_date(demo_log, capsys):
+    rows = {r["tag"]: r for r in _csv(capsys, ["export", "--db", str(demo_log.path)])}
+    b1 = rows["B1"]
+    assert (b1["height"], b1["height_in"]) == ("7ft 2in", "86.0")  # 7 ft 2 in = 86 in
+    assert (b1["load"], b1["load_lbf"]) == ("7000lbf", "7000")
+    for r in rows.values():
+        assert r["state"] == "rated"
+        assert len(r["ratio"].split(".")[-1]) <= 3  # three decimals at most
+        assert "." not in r["capacity_lbf"]  # whole pounds
+        days = DUE_DAYS[
+            ("no-action", "monitor", "repair-or-brace", "make-safe-now").index(r["action"])
+        ]
+        want = (
+            ""
+            if days is None
+            else (dt.date.fromisoformat(r["visit_date"]) + dt.timedelta(days=days)).isoformat()
+        )
+        assert r["due_date"] == want, r["tag"]
+    metric = {
+        r["tag"]: r
+        for r in _csv(capsys, ["export", "--db", str(demo_log.path), "--units", "metric"])
+    }
+    assert metric["B1"]["height_mm"] == "2184"  # 86 in x 25.4 = 2184.4 mm
+    assert metric["B1"]["load_kN"] == "31.14"  # 7000 lbf x 4.448 N/lbf
+
+
+def test_formula_cells_are_written_as_text(empty_log, capsys, tmp_path):
+    site = empty_log.add_site("=cmd|' /C calc'!A0")
+    v = empty_log.add_visit(site.id, "R. Okafor", name="@SUM(1+1)")
+    base = {"size": "4x4", "height": "8ft", "species": "spf", "grade": "no2", "load": "1kip"}
+    empty_log.save_post(v.id, {"tag": "+1+1", "location": "-2+3", "notes": "=HYPERLINK(1)", **base})
+    empty_log.save_post(v.id, {"tag": "\tTAB", "location": "-5", **base})
+    rows = _csv(capsys, ["export", "--db", str(empty_log.path)])
+    cells = [c for r in rows for c in r.values()]
+    for bad in ("=", "+", "@", "\t"):
+        assert not any(c.startswith(bad) for c in cells), bad
+    assert rows[0]["tag"] == "'+1+1" and rows[0]["notes"] == "'=HYPERLINK(1)"
+    assert rows[0]["site"].startswith("'=") and rows[0]["visit"] == "'@SUM(1+1)"
+    assert rows[0]["location"] == "'-2+3"
+    assert rows[1]["location"] == "-5"  # a plain number stays a number
+    # JSON carries the text as typed (no spreadsheet reads it)
+    assert main(["export", "--db", str(empty_log.path), "--format", "json"]) == 0
+    data = json.loads(capsys.readouterr().out)
+    assert data["posts"][0]["tag"] == "+1+1"
+
+
+def test_json_has_the_schema_and_numbers_as_numbers(demo_log, capsys):
+    assert main(["export", "--db", str(demo_log.path), "--format", "json", "--out", "-"]) == 0
+    data = json.loads(capsys.readouterr().out)
+    assert (data["schema"], data["schema_version"], data["units"]) == ("fieldcheck-export", 1, "us")
+    assert data["columns"] == ef.columns("us")
+    b1 = next(p for p in data["posts"] if p["tag"] == "B1")
+    assert b1["height_in"] == 86.0 and b1["load_lbf"] == 7000 and b1["diameter"] is None
+    assert list(b1) == data["columns"]
+
+
+def test_optional_byte_order_mark(demo_log, tmp_path):
+    out = tmp_path / "x.csv"
+    assert main(["export", "--db", str(demo_log.path), "--out", str(out), "--bom"]) == 0
+    assert out.read_bytes().startswith(b"\xef\xbb\xbftag,")
+    assert main(["export", "--db", str(demo_log.path), "--out", str(out)]) == 0
+    assert out.read_bytes().startswith(b"tag,")
+
+
+def test_an_export_imports_again(demo_log, tmp_path):
+    out = tmp_path / "x.csv"
+    assert main(["export", "--db", str(demo_log.path), "--out", str(out), "--bom"]) == 0
+    db = tmp_path / "again.db"
+    assert main(["import", "--db", str(db), str(out), "--site", "A", "--visit", "V"]) == 0
+    with Log.open(db, readonly=True) as lg:
+        assert sorted(p.tag for p in lg.posts()) == sorted(p.tag for p in demo_log.posts())
