@@ -13,10 +13,7 @@ import sys
 
 from fieldcheck import __version__
 from fieldcheck.commands import COMMANDS
-
-
-class UsageError(Exception):
-    """A problem with what the user asked for: printed as one sentence, exit code 2."""
+from fieldcheck.commands.usage import UsageError, store_error_sentence
 
 
 class _Parser(argparse.ArgumentParser):
@@ -74,16 +71,12 @@ def main(argv: list[str] | None = None) -> int:
     except KeyboardInterrupt:
         return 130
     except sqlite3.Error as exc:  # named for what it is: busy, full disk, read-only, damaged
-        from fieldcheck.store.faults import sqlite_sentence
-
-        print(f"fieldcheck: {sqlite_sentence(exc, _db_path(args))}", file=sys.stderr)
+        print(f"fieldcheck: {store_error_sentence(exc, _db_path(args))}", file=sys.stderr)
         return 2
     except OSError as exc:
         if isinstance(exc, BrokenPipeError):
             return _broken_pipe()
-        from fieldcheck.store.faults import os_sentence
-
-        print(f"fieldcheck: {os_sentence(exc, exc.filename or 'a file')}", file=sys.stderr)
+        print(f"fieldcheck: {store_error_sentence(exc, 'a file')}", file=sys.stderr)
         return 2
 
 

@@ -25,7 +25,7 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
 
 
 def _find_post(log, tag: str, visit: str | None):
-    from fieldcheck.cli import UsageError
+    from fieldcheck.commands.usage import UsageError
 
     posts = log.posts()
     if visit:

@@ -22,7 +22,7 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
 def run(args: argparse.Namespace) -> int:
     import sqlite3
 
-    from fieldcheck.cli import UsageError
+    from fieldcheck.commands.usage import UsageError
     from fieldcheck.store import Log, LogError
     from fieldcheck.store.connection import damaged
 

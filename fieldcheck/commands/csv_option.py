@@ -56,7 +56,7 @@ def add_csv_options(p: argparse.ArgumentParser) -> None:
 
 def open_posts(args: argparse.Namespace, path: str):
     """The CSV file of posts, header checked (a problem is a UsageError: one sentence, exit 2)."""
-    from fieldcheck.cli import UsageError
+    from fieldcheck.commands.usage import UsageError
     from fieldcheck.records.csv_file import CsvProblem
     from fieldcheck.records.csv_file import open_posts as _open
 
@@ -79,7 +79,7 @@ def open_posts(args: argparse.Namespace, path: str):
 
 def read_all(table) -> list[dict[str, str]]:
     """Every row (a CsvProblem on a later line is a UsageError too)."""
-    from fieldcheck.cli import UsageError
+    from fieldcheck.commands.usage import UsageError
     from fieldcheck.records.csv_file import CsvProblem
 
     try:

@@ -25,7 +25,7 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
-    from fieldcheck.cli import UsageError
+    from fieldcheck.commands.usage import UsageError
     from fieldcheck.store import Log, seed_demo
     from fieldcheck.store.demo import default_demo_path
 

@@ -38,7 +38,7 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
 
 def run(args: argparse.Namespace) -> int:
     if args.bundle:
-        from fieldcheck.commands.sync import run_export_bundle
+        from fieldcheck.commands.bundle_option import run_export_bundle
 
         return run_export_bundle(args)
     from fieldcheck.commands.progress import progress_bar

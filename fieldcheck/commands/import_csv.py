@@ -28,10 +28,10 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
 
 
 def run(args: argparse.Namespace) -> int:
-    from fieldcheck.cli import UsageError
+    from fieldcheck.commands.usage import UsageError
 
     if args.bundle:
-        from fieldcheck.commands.sync import run_import_bundle
+        from fieldcheck.commands.bundle_option import run_import_bundle
 
         return run_import_bundle(args)
     if not args.csv:

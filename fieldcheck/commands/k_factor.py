@@ -71,7 +71,7 @@ def run(args: argparse.Namespace) -> int:
     import numpy as np
 
     from fieldcheck import units
-    from fieldcheck.cli import UsageError
+    from fieldcheck.commands.usage import UsageError
     from fieldcheck.engine import stability
 
     height = (
@@ -155,7 +155,7 @@ def _json_num(x: float):
 
 
 def _critical(args, height, k_axes) -> dict:
-    from fieldcheck.cli import UsageError
+    from fieldcheck.commands.usage import UsageError
     from fieldcheck.records import parse_records
 
     if height is None:

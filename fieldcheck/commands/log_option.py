@@ -31,7 +31,7 @@ def log_path(args: argparse.Namespace) -> Path:
 
 def open_log(args: argparse.Namespace, *, readonly: bool = False, must_exist: bool = False):
     """Open the log named by --db; a missing file is a usage error when it must exist."""
-    from fieldcheck.cli import UsageError
+    from fieldcheck.commands.usage import UsageError
     from fieldcheck.store import Log
     from fieldcheck.store.hub.url import is_hub_url
 
@@ -51,3 +51,28 @@ def open_log(args: argparse.Namespace, *, readonly: bool = False, must_exist: bo
     for notice in log.notices:
         print(f"fieldcheck: {notice}.", file=sys.stderr)
     return log
+
+
+def find_site(log, text: str):
+    from fieldcheck.commands.usage import UsageError
+
+    for s in log.sites():
+        if text in (s.id, s.name):
+            return s
+    names = ", ".join(repr(s.name) for s in log.sites()) or "none"
+    raise UsageError(f"--site: no site named or numbered {text!r} in this log; sites: {names}")
+
+
+def find_visit(log, text: str, site_id: str | None):
+    from fieldcheck.commands.usage import UsageError
+
+    found = [v for v in log.visits(site_id) if text in (v.id, v.name)]
+    if len(found) == 1:
+        return found[0]
+    if len(found) > 1:
+        raise UsageError(
+            f"--visit: {len(found)} visits are named {text!r}; give the site with "
+            "--site or the visit's id"
+        )
+    names = ", ".join(repr(v.name) for v in log.visits(site_id)) or "none"
+    raise UsageError(f"--visit: no visit named or numbered {text!r}; visits: {names}")

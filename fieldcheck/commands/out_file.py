@@ -12,7 +12,7 @@ from pathlib import Path
 def write_atomically(path: str | Path, write: Callable, *, encoding: str = "utf-8") -> None:
     """``write(fh)`` into a temporary file beside ``path``, then rename it over ``path``. An
     OSError (full disk, read-only folder, no permission) is a UsageError naming what it is."""
-    from fieldcheck.cli import UsageError
+    from fieldcheck.commands.usage import UsageError
     from fieldcheck.store.faults import os_sentence
 
     target = Path(path)

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import contextlib
 import sys
+import time
 from collections.abc import Callable, Iterator
 
 Progress = Callable[[int, int, str], None]
@@ -54,3 +55,31 @@ def progress_bar(quiet: bool = False, stream=None) -> Iterator[Progress | None]:
 
     with rp:
         yield bar
+
+
+class ProgressBar:
+    """A plain text bar on stderr, redrawn at most 10 times a second (no dependency)."""
+
+    def __init__(self, stream=sys.stderr, width: int = 30):
+        self.stream, self.width = stream, width
+        self.last = 0.0
+        self.stage = None
+        self.shown = False
+
+    def __call__(self, done: int, total: int, stage: str) -> None:
+        now = time.monotonic()
+        final = total == 0 or done >= total
+        if stage == self.stage and not final and now - self.last < 0.1:
+            return
+        self.last, self.stage = now, stage
+        frac = 1.0 if total <= 0 else min(1.0, done / total)
+        fill = int(frac * self.width)
+        bar = "#" * fill + "." * (self.width - fill)
+        self.stream.write(f"\r[{bar}] {frac:4.0%} {stage:<18} {done:,}/{total:,} rows ")
+        self.stream.flush()
+        self.shown = True
+
+    def close(self) -> None:
+        if self.shown:
+            self.stream.write("\n")
+            self.stream.flush()

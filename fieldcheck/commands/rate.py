@@ -70,7 +70,7 @@ def _record(args: argparse.Namespace) -> dict[str, str]:
 def run(args: argparse.Namespace) -> int:
     if args.batch:
         return _run_batch(args)
-    from fieldcheck.cli import UsageError
+    from fieldcheck.commands.usage import UsageError
 
     if args.out:
         raise UsageError("--out is the results file of --batch; give --batch IN.csv too")

@@ -6,7 +6,7 @@ import argparse
 import os
 import sys
 
-from fieldcheck.commands.log_option import add_db_option, log_path, open_log
+from fieldcheck.commands.log_option import add_db_option, find_site, find_visit, log_path, open_log
 from fieldcheck.commands.progress import progress_bar
 
 DESCRIPTION = (
@@ -53,33 +53,8 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
     )
 
 
-def _find_site(log, text: str):
-    from fieldcheck.cli import UsageError
-
-    for s in log.sites():
-        if text in (s.id, s.name):
-            return s
-    names = ", ".join(repr(s.name) for s in log.sites()) or "none"
-    raise UsageError(f"--site: no site named or numbered {text!r} in this log; sites: {names}")
-
-
-def _find_visit(log, text: str, site_id: str | None):
-    from fieldcheck.cli import UsageError
-
-    found = [v for v in log.visits(site_id) if text in (v.id, v.name)]
-    if len(found) == 1:
-        return found[0]
-    if len(found) > 1:
-        raise UsageError(
-            f"--visit: {len(found)} visits are named {text!r}; give the site with "
-            "--site or the visit's id"
-        )
-    names = ", ".join(repr(v.name) for v in log.visits(site_id)) or "none"
-    raise UsageError(f"--visit: no visit named or numbered {text!r}; visits: {names}")
-
-
 def run(args: argparse.Namespace) -> int:
-    from fieldcheck.cli import UsageError
+    from fieldcheck.commands.usage import UsageError
     from fieldcheck.config import load
     from fieldcheck.report.html import write_report
     from fieldcheck.report.model import issue_info
@@ -90,8 +65,8 @@ def run(args: argparse.Namespace) -> int:
     # an issued report counts its revision in the log; a read-only log can only give a draft
     draft = args.draft or not (os.access(path, os.W_OK) and os.access(path.parent, os.W_OK))
     with open_log(args, readonly=draft, must_exist=True) as log:
-        site = _find_site(log, args.site) if args.site else None
-        visit = _find_visit(log, args.visit, site.id if site else None) if args.visit else None
+        site = find_site(log, args.site) if args.site else None
+        visit = find_visit(log, args.visit, site.id if site else None) if args.visit else None
         sid, vid = (site.id if site else None), (visit.id if visit else None)
         info = issue_info(
             log,

@@ -40,13 +40,13 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
 def _site_id(log, text):
     if not text:
         return None
-    from fieldcheck.commands.report import _find_site
+    from fieldcheck.commands.log_option import find_site
 
-    return _find_site(log, text).id
+    return find_site(log, text).id
 
 
 def _find_post(log, text: str, site_id):
-    from fieldcheck.cli import UsageError
+    from fieldcheck.commands.usage import UsageError
 
     posts = log.posts(site_id=site_id)
     found = [p for p in posts if p.tag == text] or [
@@ -61,14 +61,14 @@ def _find_post(log, text: str, site_id):
 
 
 def run(args: argparse.Namespace) -> int:
-    from fieldcheck.cli import UsageError
-    from fieldcheck.commands.report import _find_visit
+    from fieldcheck.commands.log_option import find_visit
+    from fieldcheck.commands.usage import UsageError
 
     acting = args.accept or args.override or args.require_remedy or args.settle or args.note
     with open_log(args, must_exist=True) as log:
         site_id = _site_id(log, args.site)
         if args.sign_off:
-            visit = _find_visit(log, args.sign_off, site_id)
+            visit = find_visit(log, args.sign_off, site_id)
             r = log.sign_off(visit.id, args.reason)
             print(f"Signed off visit {visit.name!r} as {r.author} on {r.created_at[:16]}.")
             return 0

@@ -4,9 +4,9 @@ from __future__ import annotations
 
 import argparse
 import sys
-import time
 
 from fieldcheck.commands.log_option import add_db_option, open_log
+from fieldcheck.commands.progress import ProgressBar
 
 DESCRIPTION = (
     "Sync a survey log with the office. OFFICE is the office's survey log file (merged directly), "
@@ -25,34 +25,6 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
         help="office survey log file, shared folder, or postgresql:// URL of the office hub",
     )
     p.add_argument("--quiet", action="store_true", help="no progress bar")
-
-
-class ProgressBar:
-    """A plain text bar on stderr, redrawn at most 10 times a second (no dependency)."""
-
-    def __init__(self, stream=sys.stderr, width: int = 30):
-        self.stream, self.width = stream, width
-        self.last = 0.0
-        self.stage = None
-        self.shown = False
-
-    def __call__(self, done: int, total: int, stage: str) -> None:
-        now = time.monotonic()
-        final = total == 0 or done >= total
-        if stage == self.stage and not final and now - self.last < 0.1:
-            return
-        self.last, self.stage = now, stage
-        frac = 1.0 if total <= 0 else min(1.0, done / total)
-        fill = int(frac * self.width)
-        bar = "#" * fill + "." * (self.width - fill)
-        self.stream.write(f"\r[{bar}] {frac:4.0%} {stage:<18} {done:,}/{total:,} rows ")
-        self.stream.flush()
-        self.shown = True
-
-    def close(self) -> None:
-        if self.shown:
-            self.stream.write("\n")
-            self.stream.flush()
 
 
 def run(args: argparse.Namespace) -> int:
@@ -83,30 +55,3 @@ def run(args: argparse.Namespace) -> int:
     for r in summary.refused:
         print(f"fieldcheck: {r}", file=sys.stderr)
     return 1 if summary.refused or photos.refused else 0
-
-
-def run_export_bundle(args: argparse.Namespace) -> int:
-    """`fieldcheck export --bundle OUT`: every row of the log as a bundle (OUT and OUT.json)."""
-    from fieldcheck.store.sync import export_bundle
-
-    with open_log(args, readonly=True, must_exist=True) as log:
-        out = export_bundle(log, args.bundle)
-    print(
-        f"Wrote bundle {out} and its manifest {out.name}.json; carry both files.", file=sys.stderr
-    )
-    return 0
-
-
-def run_import_bundle(args: argparse.Namespace) -> int:
-    """`fieldcheck import --bundle IN`: verify, then take what the log lacks in one transaction."""
-    from fieldcheck.store.sync import import_bundle
-
-    bar = None if not sys.stderr.isatty() else ProgressBar()
-    with open_log(args) as log:
-        try:
-            summary = import_bundle(log, args.bundle, progress=bar)
-        finally:
-            if bar is not None:
-                bar.close()
-    print(summary.sentence())
-    return 0

@@ -1,4 +1,6 @@
-"""Capacity curves for plots: one post re-rated at many heights or brace positions, one engine call."""
+"""Capacity curves for plots: posts re-rated at many heights or brace positions, one engine call.
+
+Part of the explain layer: the interface and the report draw these same curves."""
 
 from __future__ import annotations
 
@@ -11,14 +13,17 @@ from fieldcheck.engine.rating import rate
 def capacity_vs_height(batch: PostBatch, heights_mm: np.ndarray) -> np.ndarray:
     """Capacity (N) of each post of ``batch`` at each height: shape (n, k).
 
-    Brace points are dropped (unbraced lengths become the full height); everything else stays as
-    measured. All n x k variants are rated in one pass of the batch engine.
+    ``heights_mm``: k heights for every post, or an (n, k) array, each post's own. Brace points
+    are dropped (unbraced lengths become the full height); everything else stays as measured.
+    All n x k variants are rated in one pass of the batch engine.
     """
     h = np.asarray(heights_mm, dtype=np.float64)
-    n, k = batch.n, h.size
+    n, k = batch.n, h.shape[-1]
+    if n == 0:
+        return np.zeros((0, k))
     rep = batch.take(np.repeat(np.arange(n), k))
     rep = rep.replace(
-        height_mm=np.tile(h, n),
+        height_mm=h.ravel() if h.ndim == 2 else np.tile(h, n),
         lu1_mm=np.nan,
         lu2_mm=np.nan,
         braced1=False,

@@ -13,6 +13,7 @@ with the re-rating). All the numbers come from one engine call over the report's
 
 from __future__ import annotations
 
+import datetime as _dt
 import math
 import os
 import re
@@ -407,15 +408,14 @@ def _conflicts(d: ReportData) -> str:
     return "".join(out)
 
 
-def _record_table(record: dict[str, str]) -> str:
-    """The inputs as typed, two to a row, each named in words."""
-    from fieldcheck.records import COLUMNS
-
-    order = [c for c in COLUMNS if c in record] + [c for c in record if c not in COLUMNS]
+def _record_table(record: dict[str, str], columns: tuple[str, ...]) -> str:
+    """The inputs as typed, two to a row, each named in words (``columns``: the rated ones, in
+    the registry's order, from the log)."""
+    order = [c for c in columns if c in record] + [c for c in record if c not in columns]
     order = [c for c in order if c not in ("tag", "location", "notes")]
     cells = [
         f"<th>{e(c.replace('_', ' '))}</th><td>{e(record[c])}"
-        f"{'' if c in COLUMNS else ' <span class=muted>(not an engine input)</span>'}</td>"
+        f"{'' if c in columns else ' <span class=muted>(not an engine input)</span>'}</td>"
         for c in order
     ]
     rows = "".join(
@@ -677,7 +677,7 @@ def _post(d: ReportData, p: PostEntry) -> str:
         errs = "".join(f"<li>{e(x)}</li>" for x in p.errors)
         return (
             head + "</div><div class='alert'><b>Not rated:</b> the record as typed has errors."
-            f"<ul>{errs}</ul></div><h3>Inputs as measured</h3>{_record_table(p.view.record)}"
+            f"<ul>{errs}</ul></div><h3>Inputs as measured</h3>{_record_table(p.view.record, d.columns)}"
             f"{_notes_photos(d, p)}{_stored(p, d.units)}</section>"
         )
     r, j, u = p.rating, p.j, d.units
@@ -718,7 +718,7 @@ def _post(d: ReportData, p: PostEntry) -> str:
         head
         + f'<div class="trio"><div>{result}</div>{_sketch(d, p)}<figure>{plot}</figure></div></div>'
         + '<div class="duo even"><div><h3>Inputs as measured</h3>'
-        + _record_table(p.view.record)
+        + _record_table(p.view.record, d.columns)
         + f"</div><div><h3>Assumptions</h3>{_assumptions(d, p)}</div></div>"
         + _warnings(p)
         + f"<h3>Checks</h3>{_checks(d, p)}"
@@ -797,10 +797,12 @@ def render_report(
     info: ReportInfo | None = None,
     *,
     summary_only: bool = False,
+    now: _dt.datetime | None = None,
 ) -> str:
-    """The whole report as one HTML string (see the module docstring)."""
+    """The whole report as one HTML string (see the module docstring); ``now``: its issue time
+    (default: the clock now)."""
     _check_units(units)
-    d = gather(log, site_id, visit_id, units)
+    d = gather(log, site_id, visit_id, units, now=now)
     if info is not None:
         d.info = info
     return render(d, summary_only=summary_only)

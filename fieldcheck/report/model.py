@@ -18,8 +18,9 @@ import numpy as np
 from fieldcheck import ENGINE_VERSION
 from fieldcheck.engine import explain
 from fieldcheck.engine.blocks import BLOCK
-from fieldcheck.engine.rating import rate
+from fieldcheck.engine.curves import capacity_vs_height
 from fieldcheck.engine.refdata import editions
+from fieldcheck.engine.remedies import remedies
 from fieldcheck.engine.result import ACTIONS, DUE_DAYS, NOT_RATED, Rating
 
 # heights of a capacity curve as multiples of the post's own height: a quarter to twice it, as
@@ -185,6 +186,7 @@ class ReportData:
     info: ReportInfo = field(default_factory=ReportInfo)
     review_states: dict[str, Any] = field(default_factory=dict)  # member id -> ReviewState
     remedy_states: dict[str, Any] = field(default_factory=dict)  # member id -> RemedyState
+    columns: tuple[str, ...] = ()  # the rated record columns in the registry's order (log)
     photo_files: dict[str, Any] = field(default_factory=dict)  # attachment id -> Path | None
 
     @property
@@ -211,30 +213,14 @@ def due_date(visit, action: int | None) -> _dt.date | None:
 
 
 def capacity_curves(batch, factors: np.ndarray = CURVE_FACTORS) -> tuple[np.ndarray, np.ndarray]:
-    """Capacity (N) of every post re-rated at ``factors`` x its height, in ONE engine call:
-    (heights n x k in mm, capacities n x k in N). Brace points are dropped (full height unbraced),
-    as engine.curves.capacity_vs_height does; unlike it, each post gets its own heights."""
-    n, k = batch.n, len(factors)
-    if n == 0:
-        return np.zeros((0, k)), np.zeros((0, k))
-    heights = batch.height_mm[:, None] * factors[None, :]
-    big = batch.take(np.repeat(np.arange(n), k)).replace(
-        height_mm=heights.ravel(),
-        lu1_mm=np.nan,
-        lu2_mm=np.nan,
-        braced1=False,
-        braced2=False,
-    )
-    cap = np.asarray(rate(big).capacity_n, dtype=np.float64).reshape(n, k)
-    return heights, cap
+    """Capacity (N) of every post re-rated at ``factors`` x its own height, in ONE engine call
+    (engine.curves): (heights n x k in mm, capacities n x k in N)."""
+    heights = batch.height_mm[:, None] * np.asarray(factors)[None, :]
+    return heights, capacity_vs_height(batch, heights)
 
 
 def batch_remedies(batch, rating: Rating):
-    """Remedies of every failing post in ONE engine call (engine.remedies), or None if absent."""
-    try:
-        from fieldcheck.engine.remedies import remedies
-    except ImportError:
-        return None
+    """Remedies of every failing post in ONE engine call (engine.remedies)."""
     return remedies(batch, rating)
 
 
@@ -296,17 +282,15 @@ def _differences(stored, rating: Rating, j: int, eds: dict[str, str]) -> list[st
 CHUNK = max(1, BLOCK // len(CURVE_FACTORS))
 
 
-def _rate_chunk(records: list[dict], meta_out: list, errs_out: dict, base: int):
-    """Parse and rate one chunk: (rating, index of each row into it, remedies, heights, caps)."""
-    from fieldcheck.records import parse_records
-
-    parsed = parse_records(records)
+def _rate_chunk(log, records: list[dict], meta_out: list, errs_out: dict, base: int):
+    """Rate one chunk, parsed and rated by the log (``log.rate_records``): (rating, index of
+    each row into it, remedies, heights, caps)."""
+    parsed, rating = log.rate_records(records)
     for e in parsed.errors:
         errs_out.setdefault(base + e.row, []).append(f"{e.column}: {e.message}")
     meta_out.extend(parsed.meta)
-    if not parsed.batch.n:
+    if rating is None:
         return None, {}, None, None, None
-    rating = rate(parsed.batch)
     heights, caps = capacity_curves(parsed.batch)
     rem = batch_remedies(parsed.batch, rating)
     return rating, {int(i): j for j, i in enumerate(parsed.index)}, rem, heights, caps
@@ -318,9 +302,15 @@ def gather(
     visit_id: str | None = None,
     units: str = "us",
     progress=None,
+    now: _dt.datetime | None = None,
 ) -> ReportData:
     """Everything the report shows: the current records re-rated chunk by chunk (each chunk in
-    one engine call, its capacity curves in one more). ``progress(done, total, stage)``."""
+    one engine call, its capacity curves in one more). ``progress(done, total, stage)``;
+    ``now``: the report's issue time (default: the clock now).
+
+    The log gives the posts parsed and rated (``log.rate_records(records) -> (parsed, rating)``,
+    the store's API over the records layer and the engine): the report parses nothing itself.
+    """
     all_visits = {v.id: v for v in log.visits()}
     all_sites = {s.id: s for s in log.sites()}
     if visit_id is not None:
@@ -378,7 +368,7 @@ def gather(
         chunk = views[start : start + CHUNK]
         meta: list = []
         errs: dict[int, list[str]] = {}
-        rating, row_to_j, rem, heights, caps = _rate_chunk([p.record for p in chunk], meta, errs, 0)
+        rating, row_to_j, rem, heights, caps = _rate_chunk(log, [p.record for p in chunk], meta, errs, 0)
         first = first or rating
         for i, view in enumerate(chunk):
             j = row_to_j.get(i)
@@ -429,12 +419,13 @@ def gather(
         conflicts,
         ENGINE_VERSION,
         eds,
-        _dt.datetime.now().astimezone(),
+        now if now is not None else _dt.datetime.now().astimezone(),
         units,
         signoffs,
         review_states=_states(log, "review_states", members),
         remedy_states=_states(log, "remedy_states", members),
         photo_files=files,
+        columns=log.record_columns(),
     )
 
 

@@ -22,7 +22,7 @@ from collections.abc import Mapping
 from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
-from fieldcheck.store.repo import Observation, clean_record, new_id, now
+from fieldcheck.store.rows import Observation, clean_record, new_id, now
 
 if TYPE_CHECKING:
     from fieldcheck.store.repo import Log

@@ -106,6 +106,15 @@ def summary_json(rating, i: int) -> str:
     return json.dumps(_clean(s), default=_json_default, separators=(",", ":"))
 
 
+def parse_and_rate(records: list[dict[str, str]]):
+    """(Parsed, Rating or None): the records parsed into one batch and rated in one engine call."""
+    from fieldcheck.engine.rating import rate as rate_batch
+    from fieldcheck.records import parse_records
+
+    parsed = parse_records(records)
+    return parsed, (rate_batch(parsed.batch) if parsed.batch.n else None)
+
+
 def rate(
     records: list[dict[str, str]], *, summaries: bool = True, cache: dict | None = None
 ) -> RatedRows:

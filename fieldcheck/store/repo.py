@@ -15,18 +15,29 @@ import os
 import shutil
 import sqlite3
 import threading
-import time
 from collections.abc import Iterable, Iterator, Mapping
 from dataclasses import dataclass, field
 from pathlib import Path
 
-import numpy as np
 from sqlite_utils import Database
 
+from fieldcheck.records.columns import COLUMNS
 from fieldcheck.store import rated
 from fieldcheck.store.connection import APPLICATION_ID, LogError, connect, damaged, pragma
 from fieldcheck.store.paths import default_log_path
 from fieldcheck.store.rated import RowError, action_label
+from fieldcheck.store.rows import (
+    ORIGIN_COLS,
+    RATING_COLS,
+    REVIEW_COLS,
+    Observation,
+    Review,
+    clean_record,
+    dumps,
+    new_id,
+    new_ids,
+    now,
+)
 from fieldcheck.store.schema import (
     MIGRATION_NAMES,
     MIGRATION_SET,
@@ -65,61 +76,13 @@ def lock_wait_s() -> float:
         return LOCK_WAIT_S
 
 
-def now() -> str:
-    """Wall time with its zone, ISO-8601 (for people only: order comes from device_seq)."""
-    return _dt.datetime.now().astimezone().isoformat(timespec="milliseconds")
-
-
-_id_state = [0, 0]  # last millisecond used, 42-bit counter within it
-_id_lock = threading.Lock()
-_HEX = np.frombuffer(b"0123456789abcdef", dtype=np.uint8)
-
-
-def new_ids(n: int) -> list[str]:
-    """n UUIDs version 7 made here: 48-bit milliseconds, a 42-bit counter (RFC 9562 §6.2 method
-    1, spread over rand_a and the top of rand_b) and 32 random bits. Unique without coordination
-    like uuid4, but increasing, so bulk inserts append to the indexes instead of scattering."""
-    with _id_lock:
-        ms = time.time_ns() // 1_000_000
-        if ms <= _id_state[0]:
-            ms, start = _id_state[0], _id_state[1] + 1
-        else:
-            start = 0
-        if start + n > (1 << 42):  # counter exhausted: move to the next millisecond
-            ms, start = ms + 1, 0
-        _id_state[0], _id_state[1] = ms, start + n - 1
-    c = np.arange(start, start + n, dtype=np.uint64)
-    hi = (np.uint64(ms) << np.uint64(16)) | np.uint64(0x7000) | (c >> np.uint64(30))
-    rnd = np.frombuffer(os.urandom(4 * n), dtype=np.uint32).astype(np.uint64)
-    lo = (np.uint64(0b10) << np.uint64(62)) | ((c & np.uint64(0x3FFF_FFFF)) << np.uint64(32)) | rnd
-    raw = np.empty((n, 16), dtype=np.uint8)
-    raw[:, :8] = hi.astype(">u8").view(np.uint8).reshape(n, 8)
-    raw[:, 8:] = lo.astype(">u8").view(np.uint8).reshape(n, 8)
-    hexed = np.empty((n, 32), dtype=np.uint8)
-    hexed[:, 0::2] = _HEX[raw >> 4]
-    hexed[:, 1::2] = _HEX[raw & 15]
-    txt = np.full((n, 36), ord("-"), dtype=np.uint8)
-    for a, b, o in ((0, 8, 0), (8, 12, 9), (12, 16, 14), (16, 20, 19), (20, 32, 24)):
-        txt[:, o : o + b - a] = hexed[:, a:b]
-    flat = txt.tobytes().decode("ascii")
-    return [flat[k : k + 36] for k in range(0, 36 * n, 36)]
-
-
-def new_id() -> str:
-    return new_ids(1)[0]
-
-
 def _loads(text: str | None):
     return None if text is None else json.loads(text)
 
 
-def _dumps(obj) -> str:
-    return json.dumps(obj, ensure_ascii=False, separators=(",", ":"))
-
-
 def _dumps_many(objs: list) -> list[str]:
-    """Compact JSON text of each object, as ``_dumps`` writes it."""
-    return [_dumps(o) for o in objs]
+    """Compact JSON text of each object, as ``dumps`` writes it."""
+    return [dumps(o) for o in objs]
 
 
 def _loads_many(texts: list[str]) -> list:
@@ -136,18 +99,6 @@ def _import_record(r: Mapping[str, object]) -> dict[str, str]:
         t = v if isinstance(v, str) else str(v)
         if t.strip():
             out[str(k)] = t
-    return out
-
-
-def clean_record(record: Mapping[str, object]) -> dict[str, str]:
-    """The record as typed, minus cells left empty (an empty cell means "not given")."""
-    out: dict[str, str] = {}
-    for k, v in record.items():
-        if v is None:
-            continue
-        s = v if isinstance(v, str) else str(v)
-        if s.strip():
-            out[str(k)] = s
     return out
 
 
@@ -178,24 +129,6 @@ class Visit:
     device_id: str
     author: str
     created_at: str
-
-
-@dataclass(frozen=True)
-class Observation:
-    """One revision of a member's inputs, as typed on a visit."""
-
-    id: str
-    member_id: str
-    visit_id: str
-    supersedes: str | None
-    withdrawn: bool
-    reason: str
-    record: dict[str, str]
-    device_id: str
-    device_seq: int
-    author: str
-    created_at: str
-    merges: str | None = None  # second parent: a revision that settles a conflict
 
 
 @dataclass(frozen=True)
@@ -266,19 +199,6 @@ class AttachmentProblem:
             f"photo {self.attachment.path} has changed since it was attached "
             f"(sha256 no longer {self.attachment.sha256[:12]}...)"
         )
-
-
-@dataclass(frozen=True)
-class Review:
-    id: str
-    kind: str
-    text: str
-    member_id: str | None
-    observation_id: str | None
-    visit_id: str | None
-    author: str
-    created_at: str
-    action: int | None = None  # the action an override sets (0-3), else None
 
 
 @dataclass(frozen=True)
@@ -653,7 +573,7 @@ class Log:
                         name,
                         inspector,
                         started,
-                        _dumps(list(v.instruments)),
+                        dumps(list(v.instruments)),
                         level,
                         notes,
                         *self._origin(seq, v.created_at),
@@ -743,7 +663,7 @@ class Log:
             if row is not None:
                 self._insert(
                     "ratings",
-                    _RATING_COLS,
+                    RATING_COLS,
                     [(new_id(), obs.id, version, stamp, *row, *self._origin(next(seqs), created))],
                 )
         return obs
@@ -800,6 +720,18 @@ class Log:
         if r is None:
             raise ValueError(f"observation {observation_id} is not in this log")
         return _observation(r)
+
+    @staticmethod
+    def rate_records(records: list[dict[str, str]]):
+        """The records parsed and rated in one engine call, as a report reads them:
+        (fieldcheck.records.Parsed, the engine's Rating of its batch, or None when no record
+        parses)."""
+        return rated.parse_and_rate(records)
+
+    @staticmethod
+    def record_columns() -> tuple[str, ...]:
+        """Every record column the engine rates, in the registry's order."""
+        return tuple(COLUMNS)
 
     def rating_for(self, observation_id: str) -> StoredRating | None:
         """The latest stored rating of a revision, exactly as it was stored."""
@@ -905,7 +837,7 @@ class Log:
                 rids = new_ids(len(good))
                 self._insert(
                     "ratings",
-                    _RATING_COLS,
+                    RATING_COLS,
                     [
                         (rid, oid, version, stamp, *row, dev, seq, who, created)
                         for (oid, row), seq, rid in zip(good, seqs, rids, strict=True)
@@ -997,7 +929,7 @@ class Log:
                 rows_ = result.rows
                 self._insert(
                     "ratings",
-                    _RATING_COLS,
+                    RATING_COLS,
                     [
                         (rid, oid, version, stamp, *rows_[i], dev, next(seqs), who, created)
                         for rid, oid, i in zip(rating_ids, obs_ids, ok, strict=True)
@@ -1165,7 +1097,7 @@ class Log:
             )
             self._insert(
                 "reviews",
-                _REVIEW_COLS,
+                REVIEW_COLS,
                 [
                     (
                         r.id,
@@ -1291,8 +1223,7 @@ HEAD = (
     "AND NOT EXISTS (SELECT 1 FROM observations c WHERE c.merges = o.id)"
 )
 
-_ORIGIN_COLS = ("device_id", "device_seq", "author", "created_at")
-_SITE_COLS = ("id", "name", "address", "notes", *_ORIGIN_COLS)
+_SITE_COLS = ("id", "name", "address", "notes", *ORIGIN_COLS)
 _VISIT_COLS = (
     "id",
     "site_id",
@@ -1302,9 +1233,9 @@ _VISIT_COLS = (
     "instruments",
     "level",
     "notes",
-    *_ORIGIN_COLS,
+    *ORIGIN_COLS,
 )
-_MEMBER_COLS = ("id", "site_id", "tag", *_ORIGIN_COLS)
+_MEMBER_COLS = ("id", "site_id", "tag", *ORIGIN_COLS)
 _OBS_COLS = (
     "id",
     "member_id",
@@ -1313,18 +1244,10 @@ _OBS_COLS = (
     "withdrawn",
     "reason",
     "record_json",
-    *_ORIGIN_COLS,
+    *ORIGIN_COLS,
 )
 
 
-_RATING_COLS = (
-    "id",
-    "observation_id",
-    "engine_version",
-    "stamp_id",
-    *rated.RATING_COLUMNS,
-    *_ORIGIN_COLS,
-)
 _ATT_COLS = (
     "id",
     "observation_id",
@@ -1333,17 +1256,7 @@ _ATT_COLS = (
     "sha256",
     "size_bytes",
     "caption",
-    *_ORIGIN_COLS,
-)
-_REVIEW_COLS = (
-    "id",
-    "member_id",
-    "observation_id",
-    "visit_id",
-    "kind",
-    "text",
-    "action",
-    *_ORIGIN_COLS,
+    *ORIGIN_COLS,
 )
 _EXPORT_ONLY = frozenset(EXPORT_ONLY_COLUMNS)
 _RATING_SQL = (
@@ -1402,7 +1315,7 @@ def _obs_row(o: Observation) -> tuple:
         o.supersedes,
         int(o.withdrawn),
         o.reason,
-        _dumps(o.record),
+        dumps(o.record),
         o.device_id,
         o.device_seq,
         o.author,
@@ -1563,43 +1476,8 @@ def _default_author() -> str:
 
 
 def _registry_columns() -> list[str]:
-    """Record columns in the registry's order (fieldcheck.records.columns), if it is there."""
-    try:
-        from fieldcheck.records import columns as reg
-    except ImportError:
-        return list(_FALLBACK_ORDER)
-    for attr in ("COLUMNS", "REGISTRY", "columns"):
-        cols = getattr(reg, attr, None)
-        if cols is None:
-            continue
-        if isinstance(cols, Mapping):
-            return [str(k) for k in cols]
-        try:
-            return [c if isinstance(c, str) else c.name for c in cols]
-        except (TypeError, AttributeError):
-            continue
-    return list(_FALLBACK_ORDER)
-
-
-_FALLBACK_ORDER = (
-    "tag",
-    "location",
-    "size",
-    "section",
-    "diameter",
-    "height",
-    "brace1",
-    "brace2",
-    "top",
-    "bottom",
-    "species",
-    "grade",
-    "method",
-    "duration",
-    "moisture",
-    "load",
-    "notes",
-)
+    """Record columns in the registry's order (fieldcheck.records.columns)."""
+    return list(COLUMNS)
 
 
 def _read_meta(db: Database) -> dict[str, str]:

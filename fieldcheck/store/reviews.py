@@ -23,7 +23,7 @@ from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
 from fieldcheck.store.rated import ACTION_LABELS, action_label
-from fieldcheck.store.repo import Observation, Review, new_id, now
+from fieldcheck.store.rows import Observation, Review, new_id, now
 
 if TYPE_CHECKING:
     from fieldcheck.store.repo import Log
@@ -132,7 +132,7 @@ def settle(log: Log, member_id: str, keep: str, reason: str, visit_id: str | Non
     other head, chained), rated as save_post rates, and a ``settle`` review with the reason.
     One transaction."""
     from fieldcheck.store import rated
-    from fieldcheck.store.repo import _RATING_COLS, _REVIEW_COLS, _dumps
+    from fieldcheck.store.rows import RATING_COLS, REVIEW_COLS, dumps
 
     reason = (reason or "").strip()
     if not reason:
@@ -183,7 +183,7 @@ def settle(log: Log, member_id: str, keep: str, reason: str, visit_id: str | Non
                         prev.merges,
                         int(prev.withdrawn),
                         prev.reason,
-                        _dumps(prev.record),
+                        dumps(prev.record),
                         log.device_id,
                         prev.device_seq,
                         log.author,
@@ -194,14 +194,14 @@ def settle(log: Log, member_id: str, keep: str, reason: str, visit_id: str | Non
         if row is not None:
             origin = (log.device_id, next(seqs), log.author, created)
             log._insert(
-                "ratings", _RATING_COLS, [(new_id(), prev.id, version, stamp, *row, *origin)]
+                "ratings", RATING_COLS, [(new_id(), prev.id, version, stamp, *row, *origin)]
             )
         r = Review(
             new_id(), "settle", reason, member_id, prev.id, prev.visit_id, log.author, created
         )
         log._insert(
             "reviews",
-            _REVIEW_COLS,
+            REVIEW_COLS,
             [
                 (
                     *(r.id, member_id, prev.id, prev.visit_id, "settle", reason, None),

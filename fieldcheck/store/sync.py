@@ -43,6 +43,7 @@ from fieldcheck.store.merge import (
     delta,
     floor,
 )
+from fieldcheck.store.sync_summary import SyncSummary, checkpoint, fmt_tables, locked
 
 __all__ = [
     "Conflict",
@@ -54,11 +55,6 @@ __all__ = [
     "open_conflicts",
     "sync",
 ]
-
-
-def _fmt_tables(counts: dict[str, int]) -> str:
-    parts = [f"{t} {n:,}" for t, n in counts.items() if n]
-    return ", ".join(parts)
 
 
 @dataclass
@@ -77,61 +73,11 @@ class ImportSummary:
         return sum(self.inserted.values())
 
     def sentence(self) -> str:
-        moved = _fmt_tables(self.inserted)
+        moved = fmt_tables(self.inserted)
         s = f"Took {self.rows:,} new rows of {self.rows_in_bundle:,} from {self.bundle}"
         s += f" ({moved})" if moved else ""
         if self.new_conflicts:
             s += f"; {len(self.new_conflicts)} new conflicts to review"
-        return s + "."
-
-
-@dataclass
-class SyncSummary:
-    office: str
-    mode: str  # "file", "folder" or "hub"
-    sent: dict[str, int] = field(default_factory=dict)
-    received: dict[str, int] = field(default_factory=dict)
-    conflicts: list[str] = field(
-        default_factory=list
-    )  # open, in the office (file) or here (folder)
-    new_conflicts: list[str] = field(default_factory=list)
-    refused: list[str] = field(default_factory=list)
-    skipped: list[str] = field(default_factory=list)  # files in a shared folder left alone
-    firm_id: str = ""
-    seconds: float = 0.0
-    bundles_written: list[str] = field(default_factory=list)
-
-    @property
-    def rows_sent(self) -> int:
-        return sum(self.sent.values())
-
-    @property
-    def rows_received(self) -> int:
-        return sum(self.received.values())
-
-    @property
-    def moved(self) -> int:
-        return self.rows_sent + self.rows_received
-
-    def sentence(self) -> str:
-        if self.moved == 0 and not self.bundles_written:
-            s = f"Already in step with {self.office}: nothing to move"
-        else:
-            s = f"Sent {self.rows_sent:,} rows"
-            if self.sent:
-                s += f" ({_fmt_tables(self.sent)})"
-            s += f" and took back {self.rows_received:,}"
-            if self.received:
-                s += f" ({_fmt_tables(self.received)})"
-        if self.conflicts:
-            s += (
-                f"; {len(self.conflicts)} posts revised in two places without seeing each other "
-                f"await review ({len(self.new_conflicts)} new)"
-            )
-        if self.refused:
-            s += f"; {len(self.refused)} bundles refused"
-        if self.skipped:
-            s += f"; {len(self.skipped)} files in the folder skipped (see the warnings)"
         return s + "."
 
 
@@ -178,7 +124,7 @@ def export_bundle(
     out = Path(out_path)
     if out.is_dir():
         out = out / f"{log.device_id}-{int(time.time())}{bf.SUFFIX}"
-    _checkpoint(log)
+    checkpoint(log)
     bf.write_bundle(Path(log.path), out, base=since, progress=progress, ring=signing.required())
     return out
 
@@ -191,7 +137,7 @@ def import_bundle(log, bundle_path, progress: Progress | None = None) -> ImportS
         )
     _refuse_demo(log)
     b = bf.read_bundle(Path(bundle_path), signing.required())
-    with _locked(log):
+    with locked(log):
         res = bf.import_into(
             Path(log.path), b, office=_is_office(log), progress=progress, own_device=log.device_id
         )
@@ -215,22 +161,6 @@ def _is_office(log) -> bool:
     # a log receiving by hand or as OFFICE in sync() mints a firm id when neither side has one;
     # a field log never does (it adopts the office's)
     return getattr(log, "_sync_role", "office") == "office"
-
-
-@contextlib.contextmanager
-def _locked(log):
-    lock = getattr(log, "_lock", None)
-    if lock is None:
-        yield
-    else:
-        with lock:
-            yield
-
-
-def _checkpoint(log) -> None:
-    with contextlib.suppress(Exception), _locked(log):
-        if not getattr(log, "readonly", False):
-            log.db.execute("PRAGMA wal_checkpoint(PASSIVE)")
 
 
 WORK_PREFIX = ".fieldcheck-sync-"
@@ -336,13 +266,13 @@ def _sync_file(log, office: Path, progress: Progress | None) -> SyncSummary:
         Log.open(office).close()  # upgrade after a backup copy (store's rules)
     summary = SyncSummary(str(office), "file")
     field_path = Path(log.path)
-    _checkpoint(log)
+    checkpoint(log)
     ring = signing.Keyring.ephemeral()  # these bundles never leave this process
     with _work_folder(field_path) as tmp:
         # 1. field -> office: every row the office lacks
         office_vec, _ = _vector_of(office)
         out = Path(tmp) / f"to-office{bf.SUFFIX}"
-        with _locked(log):
+        with locked(log):
             m = bf.write_bundle(
                 field_path,
                 out,
@@ -369,7 +299,7 @@ def _sync_file(log, office: Path, progress: Progress | None) -> SyncSummary:
         )
         if m is not None:
             b = bf.read_bundle(back, ring)
-            with _locked(log):
+            with locked(log):
                 res = bf.import_into(
                     field_path,
                     b,
@@ -422,7 +352,7 @@ def _sync_folder(log, folder: Path, progress: Progress | None) -> SyncSummary:
             continue
         try:
             b = bf.read_bundle(snap, ring)
-            with _locked(log):
+            with locked(log):
                 res = bf.import_into(
                     field_path,
                     b,
@@ -443,7 +373,7 @@ def _sync_folder(log, folder: Path, progress: Progress | None) -> SyncSummary:
         if dev not in latest or sum(m["vector"].values()) >= sum(latest[dev]["vector"].values()):
             latest[dev] = m
     base = floor({d: int(s) for d, s in m["vector"].items()} for m in latest.values())
-    _checkpoint(log)
+    checkpoint(log)
     ours, _ = _vector_of(field_path)
     ranges = delta(ours, base)
     prev = max(own, key=lambda sm: sum(sm[1]["vector"].values()), default=None)
@@ -456,7 +386,7 @@ def _sync_folder(log, folder: Path, progress: Progress | None) -> SyncSummary:
     if ranges and not already:
         name = f"{mine}-{sum(ours.values()):012d}-{os.getpid()}{bf.SUFFIX}"
         out = folder / name
-        with _locked(log):
+        with locked(log):
             m = bf.write_bundle(
                 field_path, out, base=base, progress=_stage(progress, "send"), ring=ring
             )

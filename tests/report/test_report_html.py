@@ -205,8 +205,11 @@ def test_sign_offs_are_on_the_cover(demo_log):
 def test_a_large_batch_reports_the_same_as_a_small_one(demo_log, monkeypatch):
     # above one engine block the rating keeps no intermediates; the report rates each post alone
     # for its assumptions table, so the report is the same text either way
+    import datetime as dt
+
     from fieldcheck.engine import rating as rating_mod
 
-    whole = render_report(demo_log)
+    now = dt.datetime(2026, 3, 14, 23, 59, 59, tzinfo=dt.UTC)  # one clock for both renders
+    whole = render_report(demo_log, now=now)
     monkeypatch.setattr(rating_mod, "BLOCK", 2)  # the demo's posts in blocks of two: partial
-    assert render_report(demo_log) == whole
+    assert render_report(demo_log, now=now) == whole

@@ -66,14 +66,14 @@ def test_stored_rating_shown_and_compared(demo_log, monkeypatch):
 
 
 def test_changed_numbers_are_reported_as_a_difference(demo_log, monkeypatch):
-    real = model.rate
+    real = demo_log.rate_records
 
-    def stronger(batch):  # stands in for a changed engine: 10 % more capacity everywhere
-        r = real(batch)
+    def stronger(records):  # stands in for a changed engine: 10 % more capacity everywhere
+        parsed, r = real(records)
         r.capacity_n = r.capacity_n * 1.1
-        return r
+        return parsed, r
 
-    monkeypatch.setattr(model, "rate", stronger)
+    monkeypatch.setattr(demo_log, "rate_records", stronger)
     out = render_report(demo_log)
     assert out.count("The stored capacity differs from the re-rating.") == 9
 

@@ -465,7 +465,7 @@ def _locked(log):
 
 def sync_hub(log, url: str, progress: Progress | None = None):
     """Send the field log's new rows to the hub, then take the hub's new rows back."""
-    from fieldcheck.store.sync import SyncSummary, _checkpoint
+    from fieldcheck.store.sync_summary import SyncSummary, checkpoint
 
     if getattr(log, "readonly", False):
         raise TransferRefused(
@@ -473,7 +473,7 @@ def sync_hub(log, url: str, progress: Progress | None = None):
         )
     t0 = time.perf_counter()
     summary = SyncSummary(redact(url), "hub")
-    _checkpoint(log)
+    checkpoint(log)
     conn = connect(url)
     stage = "connecting"
     got = None
