@@ -368,7 +368,9 @@ def gather(
         chunk = views[start : start + CHUNK]
         meta: list = []
         errs: dict[int, list[str]] = {}
-        rating, row_to_j, rem, heights, caps = _rate_chunk(log, [p.record for p in chunk], meta, errs, 0)
+        rating, row_to_j, rem, heights, caps = _rate_chunk(
+            log, [p.record for p in chunk], meta, errs, 0
+        )
         first = first or rating
         for i, view in enumerate(chunk):
             j = row_to_j.get(i)

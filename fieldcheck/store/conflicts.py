@@ -19,13 +19,13 @@ from __future__ import annotations
 import json
 import sqlite3
 
+from fieldcheck.store.rows import HEAD  # the one definition of a head (alias o)
+
 MARK_KEY = "conflicts:through"  # "<rowid> <id>" of the newest observation looked at
 LIST_KEY = "conflicts:members"  # JSON list of the members in conflict at that mark
 
 
 def _head(alias: str) -> str:
-    from fieldcheck.store.repo import HEAD  # the one definition of a head (alias o)
-
     return HEAD.replace("= o.id", f"= {alias}.id")
 
 

@@ -27,6 +27,7 @@ from fieldcheck.store.connection import APPLICATION_ID, LogError, connect, damag
 from fieldcheck.store.paths import default_log_path
 from fieldcheck.store.rated import RowError, action_label
 from fieldcheck.store.rows import (
+    HEAD,
     ORIGIN_COLS,
     RATING_COLS,
     REVIEW_COLS,
@@ -1216,12 +1217,6 @@ class Log:
 
 
 # ----------------------------------------------------------------------------- helpers
-
-# a head: a revision of ``o`` that no other revision supersedes or merges (settles)
-HEAD = (
-    "NOT EXISTS (SELECT 1 FROM observations c WHERE c.supersedes = o.id) "
-    "AND NOT EXISTS (SELECT 1 FROM observations c WHERE c.merges = o.id)"
-)
 
 _SITE_COLS = ("id", "name", "address", "notes", *ORIGIN_COLS)
 _VISIT_COLS = (

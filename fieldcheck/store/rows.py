@@ -17,6 +17,11 @@ import numpy as np
 
 from fieldcheck.store import rated
 
+# a revision no other revision supersedes or merges: a head of its member (observations alias o)
+HEAD = (
+    "NOT EXISTS (SELECT 1 FROM observations c WHERE c.supersedes = o.id) "
+    "AND NOT EXISTS (SELECT 1 FROM observations c WHERE c.merges = o.id)"
+)
 ORIGIN_COLS = ("device_id", "device_seq", "author", "created_at")
 RATING_COLS = (
     "id",

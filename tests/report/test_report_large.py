@@ -4,6 +4,8 @@ progress callback and a summary-only form. Speed and memory are measured in benc
 
 from __future__ import annotations
 
+import datetime as dt
+
 import pytest
 
 from fieldcheck.cli import main
@@ -17,19 +19,20 @@ def test_chunks_fit_one_engine_block_with_their_curves():
 
 
 def test_small_chunks_give_the_same_report_and_no_post_is_rated_alone(demo_log, monkeypatch):
-    whole = html.render_report(demo_log)
-    real = model.rate
+    now = dt.datetime(2026, 3, 14, 23, 59, 59, tzinfo=dt.UTC)  # one clock for both renders
+    whole = html.render_report(demo_log, now=now)
+    real = demo_log.rate_records
 
-    def whole_chunk(batch):
-        r = real(batch)
+    def whole_chunk(records):
+        parsed, r = real(records)
         # a partial rating would re-rate each post alone for its text: the path that made
         # 88,000 posts take 828 s
         assert not r.partial
-        return r
+        return parsed, r
 
-    monkeypatch.setattr(model, "rate", whole_chunk)
+    monkeypatch.setattr(demo_log, "rate_records", whole_chunk)
     monkeypatch.setattr(model, "CHUNK", 2)  # nine posts in five chunks
-    assert html.render_report(demo_log) == whole
+    assert html.render_report(demo_log, now=now) == whole
 
 
 def test_streamed_post_by_post_and_the_text_dropped_after(demo_log):
