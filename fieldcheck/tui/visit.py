@@ -1,9 +1,13 @@
-"""A visit: the table of its posts, with sorting, a filter, worst first, open/add/copy/withdraw."""
+"""A visit: the table of its posts, with sorting, a filter, worst first, open/add/copy/withdraw.
+
+The posts table pages from SQLite (``fieldcheck.store.visit_table``): the visit's posts are
+copied once into a table SQLite sorts and filters, and the DataTable holds one window of
+WINDOW rows around the cursor, moved as the cursor reaches its edge. A visit of any size opens
+and filters at the cost of a page; returning from a post reads only what was written since."""
 
 from __future__ import annotations
 
 import contextlib
-import math
 import re
 from typing import Any
 
@@ -36,14 +40,19 @@ COLUMNS = (  # key, title
     ("load", "Load"),
 )
 SORTS = ("worst", "tag", "location", "action", "height")
+WINDOW = 200  # rows the DataTable holds at a time
 
 
 def _load_visit(log: Any, visit_id: str) -> dict[str, Any]:
+    from fieldcheck.store.rated import ACTION_LABELS, action_label
+    from fieldcheck.store.visit_table import VisitTable
+
     v = log.visit(visit_id)
+    words = {a: action_word(a) for a in (*ACTION_LABELS, action_label(None))}
     return {
         "visit": v,
         "site": log.site(v.site_id),
-        "posts": log.posts(visit_id),
+        "table": VisitTable(log.path, v.id, words),
         "states": log.remedy_states(visit_id),  # as found / proposed / as remedied
     }
 
@@ -83,10 +92,6 @@ def next_tag(tag: str, taken: set[str]) -> str:
             return cand
 
 
-def _ratio_key(p: Any) -> float:
-    return -(p.ratio if p.ratio is not None and math.isfinite(p.ratio) else math.inf)
-
-
 class VisitScreen(Screen[None]):
     AUTO_FOCUS = "#posts"
     BINDINGS = [
@@ -107,7 +112,10 @@ class VisitScreen(Screen[None]):
         super().__init__()
         self.visit_id = visit_id
         self.site_id: str | None = None
-        self.posts: list[Any] = []
+        self.posts: list[Any] = []  # the window of posts the table shows
+        self.source: Any = None  # store.visit_table.VisitTable (the whole visit, in SQLite)
+        self.window_start = 0  # position of the window's first row in the sorted, filtered visit
+        self.shown = 0  # posts passing the filter
         self.states: dict[str, Any] = {}  # member id -> store.proposals.RemedyState
         self.sort_by = "worst"
         self.visit: Any = None
@@ -129,18 +137,38 @@ class VisitScreen(Screen[None]):
         self.reload()
 
     def on_screen_resume(self) -> None:
-        if self.visit is not None:
-            self.reload()
+        if self.source is not None:
+            self.source.refresh()  # only the members written since: never the whole visit
+            self._fill()
+            self._reload_states()
+
+    @work(exclusive=True, group="visit-states", exit_on_error=False)
+    async def _reload_states(self) -> None:
+        """Remedy states (a proposal is not a revision of the post: read them again)."""
+        states = await self.app.store.call(  # type: ignore[attr-defined]
+            lambda log: log.remedy_states(self.visit_id)
+        )
+        if states != self.states:
+            self.states = states or {}
+            self._fill()
+
+    def on_unmount(self) -> None:
+        if self.source is not None:
+            self.source.close()
 
     def units_changed(self) -> None:
         self._fill()
 
     @work(exclusive=True, group="visit", exit_on_error=False)
     async def reload(self, select: str | None = None) -> None:
+        if self.source is not None:
+            self.source.refresh()
+            self._fill(select, locate=select is not None)
+            return
         data = await self.app.store.call(_load_visit, self.visit_id)  # type: ignore[attr-defined]
         self.visit = data["visit"]
         self.site_id = self.visit.site_id
-        self.posts = data["posts"]
+        self.source = data["table"]
         self.states = data.get("states") or {}
         self.query_one("#visit-title", Static).update(
             f"{escape(data['site'].name)} — {escape(self.visit.name)} "
@@ -149,92 +177,93 @@ class VisitScreen(Screen[None]):
         self._fill(select)
 
     # -- the table --------------------------------------------------------------------------
-    def _visible(self) -> list[Any]:
-        text = self.query_one("#filter", Input).value.strip().lower()
-        rows = self.posts
-        if text:
-            words = text.split()
+    def _filter_text(self) -> str:
+        return self.query_one("#filter", Input).value.strip()
 
-            def hay(p: Any) -> str:
-                return " ".join(
-                    [
-                        p.tag,
-                        p.location,
-                        section_text(p.record),
-                        material_text(p.record),
-                        ends_text(p.record),
-                        p.action_label,
-                        action_cell(p),
-                        remedy_mark(self.states.get(p.member_id)),
-                        " ".join(p.record.values()),
-                    ]
-                ).lower()
-
-            rows = [p for p in rows if all(w in hay(p) for w in words)]
-        if self.sort_by == "worst":
-            return sorted(rows, key=_ratio_key)
-        if self.sort_by == "action":
-            order = {a: i for i, a in enumerate(ACTION_ORDER)}
-            return sorted(rows, key=lambda p: (order.get(p.action_label, 9), _ratio_key(p)))
-        if self.sort_by == "height":
-            return sorted(rows, key=lambda p: p.record.get("height", ""))
-        return sorted(rows, key=lambda p: (getattr(p, self.sort_by) or "").lower())
-
-    def _fill(self, select: str | None = None) -> None:
+    def _fill(
+        self, select: str | None = None, *, offset: int | None = None, locate: bool = False
+    ) -> None:
+        """Show the window starting at ``offset`` (default: where it is) of the sorted,
+        filtered visit, the cursor on ``select`` (a member id; the current row when None) if
+        it is there; ``locate``: the window around ``select`` wherever it now stands."""
+        if self.source is None:
+            return
         table = self.query_one("#posts", DataTable)
-        units = self.app.units  # type: ignore[attr-defined]
-        drafts = self.app.drafts  # type: ignore[attr-defined]
+        text = self._filter_text()
         if select is None and table.row_count:
             select = str(table.coordinate_to_cell_key(table.cursor_coordinate).row_key.value)
-        table.clear()
-        shown = self._visible()
-        for p in shown:
-            tag = p.tag or "—"
-            if p.member_id in drafts:
-                tag = "✎ " + tag
-            action = action_cell(p)
-            if p.conflict:
-                action = "⚡ " + action
-            mark = remedy_mark(self.states.get(p.member_id))
-            if mark:
-                action += f" · {mark}"
-            loc = p.location or ""
-            if len(loc) > 24:
-                loc = loc[:23] + "…"
-            table.add_row(
-                escape(tag),
-                ratio_text(p.ratio),
-                action,
-                escape(loc),
-                escape(section_text(p.record)),
-                escape(p.record.get("height", "—")),
-                escape(material_text(p.record)),
-                escape(ends_text(p.record)),
-                force(p.demand_n, units),
-                key=p.member_id,
-            )
-        if select is not None:
-            with contextlib.suppress(Exception):
-                table.move_cursor(row=table.get_row_index(select))
-        counts: dict[str, int] = {}  # of the posts listed, so they add up to what is shown
+        self.shown = self.source.count(text)
+        if offset is None:
+            pos = self.source.position(self.sort_by, text, select) if locate and select else None
+            offset = self.window_start if pos is None else pos - WINDOW // 2
+        self.window_start = max(0, min(offset, self.shown - WINDOW))
+        self.posts = self.source.page(self.sort_by, text, self.window_start, WINDOW)
+        units = self.app.units  # type: ignore[attr-defined]
+        drafts = self.app.drafts  # type: ignore[attr-defined]
+        with self.app.batch_update():
+            table.clear()
+            for p in self.posts:
+                tag = p.tag or "—"
+                if p.member_id in drafts:
+                    tag = "✎ " + tag
+                action = action_cell(p)
+                if p.conflict:
+                    action = "⚡ " + action
+                mark = remedy_mark(self.states.get(p.member_id))
+                if mark:
+                    action += f" · {mark}"
+                loc = p.location or ""
+                if len(loc) > 24:
+                    loc = loc[:23] + "…"
+                table.add_row(
+                    escape(tag),
+                    ratio_text(p.ratio),
+                    action,
+                    escape(loc),
+                    escape(section_text(p.record)),
+                    escape(p.record.get("height", "—")),
+                    escape(material_text(p.record)),
+                    escape(ends_text(p.record)),
+                    force(p.demand_n, units),
+                    key=p.member_id,
+                )
+            if select is not None:
+                with contextlib.suppress(Exception):
+                    table.move_cursor(row=table.get_row_index(select), animate=False)
+        # of the posts listed (the filter applied), so they add up to what is shown
+        counts = self.source.counts_by_action(text)
+        summary = "  ".join(f"{action_word(a)} {counts[a]}" for a in ACTION_ORDER if counts.get(a))
         remedy: dict[str, int] = {}
-        for p in shown:
-            counts[p.action_label] = counts.get(p.action_label, 0) + 1
-            st = self.states.get(p.member_id)
+        for st in self.states.values():
             if st is not None and st.state != "as found":
                 remedy[st.state] = remedy.get(st.state, 0) + 1
-        summary = "  ".join(f"{action_word(a)} {counts[a]}" for a in ACTION_ORDER if counts.get(a))
         if remedy:
             summary += "  " + ", ".join(f"{n} {s}" for s, n in sorted(remedy.items()))
         new_draft = "  ✎ unsaved new post (ctrl+n)" if f"new:{self.visit_id}" in drafts else ""
+        first = self.window_start + 1 if self.posts else 0
+        last = self.window_start + len(self.posts)
+        window = f" (rows {first} to {last})" if self.shown > WINDOW else ""
         self.query_one("#visit-status", Static).update(
-            f"{len(shown)} of {len(self.posts)} posts, sorted by {self.sort_by}.  "
+            f"{self.shown} of {self.source.total()} posts{window}, sorted by {self.sort_by}.  "
             f"{summary}{new_draft}"
         )
 
+    @on(DataTable.RowHighlighted, "#posts")
+    def _edge(self, event: DataTable.RowHighlighted) -> None:
+        """The cursor at the window's edge: move the window, the cursor stays on its post."""
+        table = event.data_table
+        row = event.cursor_row
+        key = str(event.row_key.value) if event.row_key is not None else None
+        if key is None:
+            return
+        if row >= table.row_count - 1 and self.window_start + table.row_count < self.shown:
+            self._fill(key, offset=self.window_start + WINDOW // 2)
+        elif row <= 0 and self.window_start > 0:
+            self._fill(key, offset=self.window_start - WINDOW // 2)
+
     @on(Input.Changed, "#filter")
     def _filter(self) -> None:
-        self._fill()
+        self._fill(offset=0)
 
     @on(Input.Submitted, "#filter")
     def _filter_done(self) -> None:
@@ -244,7 +273,7 @@ class VisitScreen(Screen[None]):
     def _header(self, event: DataTable.HeaderSelected) -> None:
         key = str(event.column_key.value)
         self.sort_by = {"ratio": "worst"}.get(key, key if key in SORTS else "tag")
-        self._fill()
+        self._fill(locate=True)
 
     def _current(self) -> Any | None:
         table = self.query_one("#posts", DataTable)
@@ -252,6 +281,9 @@ class VisitScreen(Screen[None]):
             return None
         key = str(table.coordinate_to_cell_key(table.cursor_coordinate).row_key.value)
         return next((p for p in self.posts if p.member_id == key), None)
+
+    def _taken(self) -> set[str]:
+        return self.source.tags() if self.source is not None else {p.tag for p in self.posts}
 
     # -- actions ----------------------------------------------------------------------------
     def action_back(self) -> None:
@@ -265,11 +297,11 @@ class VisitScreen(Screen[None]):
 
     def action_cycle_sort(self) -> None:
         self.sort_by = SORTS[(SORTS.index(self.sort_by) + 1) % len(SORTS)]
-        self._fill()
+        self._fill(locate=True)
 
     def action_worst(self) -> None:
         self.sort_by = "worst"
-        self._fill()
+        self._fill(offset=0)
         table = self.query_one("#posts", DataTable)
         if table.row_count:
             table.move_cursor(row=0)
@@ -290,8 +322,9 @@ class VisitScreen(Screen[None]):
     def action_add_post(self) -> None:
         from fieldcheck.tui.editor import PostEditor
 
-        taken = {p.tag for p in self.posts}
-        last = self.posts[-1].tag if self.posts else "P0"
+        taken = self._taken()
+        newest = self.source.last_added() if self.source is not None else None
+        last = newest.tag if newest is not None else "P0"
         record = {"tag": next_tag(last, taken)}
         self.app.push_screen(PostEditor(self.visit_id, None, record, tag=record["tag"]))
 
@@ -301,7 +334,7 @@ class VisitScreen(Screen[None]):
         if p is None:
             return
         record = dict(p.record)
-        record["tag"] = next_tag(p.tag, {q.tag for q in self.posts})
+        record["tag"] = next_tag(p.tag, self._taken())
         obs = await self.app.store.call(  # type: ignore[attr-defined]
             lambda log: log.save_post(self.visit_id, record, allow_errors=True)
         )

@@ -1,0 +1,269 @@
+"""The posts of one visit as a table SQLite sorts, filters and pages (for the interface).
+
+A visit of 100,000 posts cannot live in widgets: ``VisitTable`` copies the visit's current posts
+once into a TEMP table of its own read-only connection (one INSERT ... SELECT, inside SQLite),
+with a sort key per order and an index on each, and the interface asks for one page at a time:
+``page(sort, text, offset, limit)`` and ``count(text)``. A later write is taken in by
+``refresh()``, which re-reads only the members whose revisions were written since (rowid above
+the mark taken at the last read), so coming back from a post never re-reads the visit.
+
+The connection is the caller's alone (the interface's thread), separate from the log's writer:
+write-ahead logging lets it read while the log writes.
+"""
+
+from __future__ import annotations
+
+import json
+import sqlite3
+import urllib.parse
+from pathlib import Path
+
+from fieldcheck.store.rated import ACTION_LABELS, action_label
+from fieldcheck.store.repo import PostView
+
+SORTS = ("worst", "tag", "location", "action", "height", "added")
+# the order an inspector works in: worst action first; "not rated" (NULL) after the rest
+_ACTION_RANK = {"make-safe-now": 0, "repair-or-brace": 1, "monitor": 2, "no-action": 3}
+_ORDER_BY = {
+    "worst": "worst DESC, rank",
+    "tag": "tag_key, rank",
+    "location": "loc_key, rank",
+    "action": "action_key, worst DESC, rank",
+    "height": "height_key, rank",
+    "added": "rank",
+}
+_INDEXES = {  # made when first needed (building one costs about a fifth of the table's copy)
+    "member": "member_id",
+    "worst": "worst DESC, rank",
+    "tag": "tag_key, rank",
+    "location": "loc_key, rank",
+    "action": "action_key, worst DESC, rank",
+    "height": "height_key, rank",
+}
+
+
+def _action_rank_sql() -> str:
+    whens = " ".join(
+        f"WHEN {i} THEN {_ACTION_RANK.get(label, 9)}" for i, label in enumerate(ACTION_LABELS)
+    )
+    return f"CASE r.action {whens} ELSE {len(_ACTION_RANK)} END"
+
+
+def _action_words_sql(words: dict[str, str]) -> str:
+    """The action's label and its words as the interface shows them (for the filter)."""
+    whens = " ".join(
+        f"WHEN {i} THEN '{label} {_q(words.get(label, ''))}'"
+        for i, label in enumerate(ACTION_LABELS)
+    )
+    unrated = action_label(None)
+    return f"CASE r.action {whens} ELSE '{unrated} {_q(words.get(unrated, ''))}' END"
+
+
+def _q(text: str) -> str:
+    return text.replace("'", "''")
+
+
+def _build_sql(words: dict[str, str]) -> str:
+    from fieldcheck.store.repo import _HEAD_OF, _NHEADS
+
+    return f"""
+INSERT INTO temp.visit_posts
+SELECT m.rowid AS rank, o.rowid AS obs_rowid, o.member_id, o.id, o.visit_id, m.site_id,
+    o.record_json, coalesce(json_extract(o.record_json, '$.tag'), ''),
+    coalesce(json_extract(o.record_json, '$.location'), ''),
+    r.ratio, r.action, r.capacity_n, r.demand_n, coalesce(r.governing, ''), r.engine_version,
+    o.created_at, o.author, {_NHEADS} > 1,
+    coalesce(r.ratio, 9e999) AS worst,
+    lower(coalesce(json_extract(o.record_json, '$.tag'), '')) AS tag_key,
+    lower(coalesce(json_extract(o.record_json, '$.location'), '')) AS loc_key,
+    {_action_rank_sql()} AS action_key,
+    coalesce(json_extract(o.record_json, '$.height'), '') AS height_key,
+    lower((SELECT group_concat(j.value, ' ') FROM json_each(o.record_json) j) || ' '
+        || {_action_words_sql(words)}) AS hay
+FROM members m
+JOIN observations o ON o.id = {_HEAD_OF}
+LEFT JOIN ratings r ON r.rowid = (SELECT max(rowid) FROM ratings WHERE observation_id = o.id)
+WHERE o.withdrawn = 0 AND m.id IN (SELECT member_id FROM observations WHERE visit_id = ?)
+    {{members}}
+"""
+
+
+_COLUMNS = (
+    "rank INTEGER, obs_rowid INTEGER, member_id TEXT, observation_id TEXT, "
+    "visit_id TEXT, site_id TEXT, record_json TEXT, tag TEXT, location TEXT, ratio REAL, "
+    "action INTEGER, capacity_n REAL, demand_n REAL, governing TEXT, engine_version TEXT, "
+    "revised_at TEXT, revised_by TEXT, conflict INTEGER, worst REAL, tag_key TEXT, "
+    "loc_key TEXT, action_key INTEGER, height_key TEXT, hay TEXT"
+)
+_VIEW_COLS = (
+    "member_id, observation_id, visit_id, site_id, tag, location, record_json, ratio, action, "
+    "capacity_n, demand_n, governing, engine_version, revised_at, revised_by, conflict"
+)
+
+
+class VisitTable:
+    """One visit's current posts, sorted, filtered and paged in SQLite (see module doc)."""
+
+    def __init__(self, path: Path | str, visit_id: str, action_words: dict[str, str]):
+        uri = f"file:{urllib.parse.quote(str(Path(path).resolve()))}?mode=ro"
+        self.conn = sqlite3.connect(uri, uri=True, check_same_thread=False)
+        self.visit_id = visit_id
+        self._sql = _build_sql(action_words)
+        self.mark = 0  # observations.rowid read up to
+        self.conn.execute("PRAGMA temp_store = MEMORY")
+        self.conn.execute(f"CREATE TEMP TABLE visit_posts ({_COLUMNS})")
+        self.conn.execute("CREATE TEMP TABLE visit_hits (r INTEGER PRIMARY KEY)")
+        self._indexed: set[str] = set()
+        self._hits_for: str | None = None  # the filter text visit_hits holds
+        self._hits_n = 0
+        self._take(None)
+
+    def _index(self, name: str) -> None:
+        if name in _INDEXES and name not in self._indexed:
+            self.conn.execute(
+                f"CREATE INDEX IF NOT EXISTS temp.visit_posts_{name} ON visit_posts "
+                f"({_INDEXES[name]})"
+            )
+            self._indexed.add(name)
+
+    def close(self) -> None:
+        self.conn.close()
+
+    def _top(self) -> int:
+        row = self.conn.execute("SELECT max(rowid) FROM observations").fetchone()
+        return int(row[0] or 0)
+
+    def _take(self, members: list[str] | None) -> None:
+        """(Re)read the given members (None: the whole visit) into the table, in one
+        transaction of this connection (a consistent snapshot of the log)."""
+        with self.conn:
+            top = self._top()
+            if members is None:
+                self.conn.execute(self._sql.format(members=""), [self.visit_id])
+            else:
+                self._index("member")
+                arg = json.dumps(members)
+                self.conn.execute(
+                    "DELETE FROM temp.visit_posts WHERE member_id IN "
+                    "(SELECT value FROM json_each(?))",
+                    [arg],
+                )
+                self.conn.execute(
+                    self._sql.format(members="AND m.id IN (SELECT value FROM json_each(?))"),
+                    [self.visit_id, arg],
+                )
+            self.mark = top
+            self._hits_for = None
+            self.total_rows = self.conn.execute("SELECT count(*) FROM visit_posts").fetchone()[0]
+
+    def refresh(self) -> list[str]:
+        """Take in what was written since the last read: only the members those revisions
+        belong to are read again. Returns their ids."""
+        if self._top() == self.mark:
+            return []
+        members = [
+            r[0]
+            for r in self.conn.execute(
+                "SELECT DISTINCT member_id FROM observations WHERE rowid > ?", [self.mark]
+            )
+        ]
+        self._take(members)
+        return members
+
+    def _hits(self, text: str) -> tuple[str, int]:
+        """SQL keeping the posts whose text holds every word of ``text`` (any case), and how
+        many: one scan per new filter text, kept for the pages and counts that follow."""
+        words = [w for w in text.lower().split() if w]
+        if not words:
+            return "", -1
+        key = " ".join(words)
+        if self._hits_for != key:
+            esc = [w.replace("\\", "\\\\").replace("%", "\\%").replace("_", "\\_") for w in words]
+            with self.conn:
+                self.conn.execute("DELETE FROM visit_hits")
+                self.conn.execute(
+                    "INSERT INTO visit_hits SELECT rowid FROM visit_posts WHERE "
+                    + " AND ".join("hay LIKE ? ESCAPE '\\'" for _ in words),
+                    [f"%{w}%" for w in esc],
+                )
+            self._hits_for = key
+            self._hits_n = self.conn.execute("SELECT count(*) FROM visit_hits").fetchone()[0]
+        return " WHERE rowid IN (SELECT r FROM visit_hits)", self._hits_n
+
+    def count(self, text: str = "") -> int:
+        n = self._hits(text)[1]
+        return n if n >= 0 else self.total_rows
+
+    def total(self) -> int:
+        return self.total_rows
+
+    def counts_by_action(self, text: str = "") -> dict[str, int]:
+        """{action label: posts}, of those the filter ``text`` keeps."""
+        where, _ = self._hits(text)
+        return {
+            action_label(a): n
+            for a, n in self.conn.execute(
+                f"SELECT action, count(*) FROM visit_posts{where} GROUP BY 1"
+            )
+        }
+
+    def _order(self, sort: str, hits: int) -> str:
+        """ORDER BY for ``sort``: along its index, unless a filter keeps few posts (then
+        sorting those few beats walking the index past the others)."""
+        if hits >= 0 and hits * 8 < self.total_rows:
+            return ", ".join("+" + t for t in _ORDER_BY[sort].split(", "))
+        self._index(sort)
+        return _ORDER_BY[sort]
+
+    def page(self, sort: str, text: str, offset: int, limit: int) -> list[PostView]:
+        """Posts ``offset`` .. ``offset + limit`` in the order ``sort``, keeping those whose
+        text holds every word of ``text`` (any case)."""
+        where, hits = self._hits(text)
+        rows = self.conn.execute(
+            f"SELECT {_VIEW_COLS} FROM visit_posts{where} ORDER BY {self._order(sort, hits)} "
+            "LIMIT ? OFFSET ?",
+            [int(limit), max(0, int(offset))],
+        ).fetchall()
+        return [_view(r) for r in rows]
+
+    def position(self, sort: str, text: str, member_id: str) -> int | None:
+        """Where a member stands in the order ``sort`` (filtered by ``text``), or None."""
+        where, _ = self._hits(text)
+        row = self.conn.execute(
+            f"SELECT n FROM (SELECT member_id, row_number() OVER (ORDER BY {_ORDER_BY[sort]}) - 1 "
+            f"AS n FROM visit_posts{where}) WHERE member_id = ?",
+            [member_id],
+        ).fetchone()
+        return None if row is None else int(row[0])
+
+    def tags(self) -> set[str]:
+        return {r[0] for r in self.conn.execute("SELECT tag FROM visit_posts")}
+
+    def last_added(self) -> PostView | None:
+        rows = self.conn.execute(
+            f"SELECT {_VIEW_COLS} FROM visit_posts ORDER BY rank DESC LIMIT 1"
+        ).fetchall()
+        return _view(rows[0]) if rows else None
+
+
+def _view(r: tuple) -> PostView:
+    rec = json.loads(r[6])
+    return PostView(
+        r[0],
+        r[1],
+        r[2],
+        r[3],
+        r[4],
+        r[5],
+        rec,
+        r[7],
+        r[8],
+        action_label(r[8]),
+        r[9],
+        r[10],
+        r[11],
+        r[12],
+        r[13],
+        r[14],
+        bool(r[15]),
+    )

@@ -1,0 +1,61 @@
+"""The visit's posts as SQLite sorts, filters and pages them agree with Log.posts()."""
+
+from __future__ import annotations
+
+import math
+
+from fieldcheck.store.visit_table import VisitTable
+
+
+def _posts(shore, n: int) -> list[dict[str, str]]:
+    loads = ("2000lbf", "9000lbf", "30 kN", "4500lbf")
+    places = ("north bay", "east wall", "stair core", "lift pit", "west bay")
+    return [
+        {**shore, "tag": f"P{i}", "location": places[i % 5], "load": loads[i % 4]}
+        for i in range(n)
+    ]
+
+
+def test_pages_sorts_and_filter_match_the_posts(log, shore):
+    res = log.import_rows(_posts(shore, 57), "Site", "Visit")
+    vt = VisitTable(log.path, res.visit.id, {})
+    try:
+        posts = log.posts(res.visit.id)
+        assert vt.total() == len(posts) == 57
+
+        def worst(p):
+            return -(p.ratio if p.ratio is not None and math.isfinite(p.ratio) else math.inf)
+
+        want = [p.member_id for p in sorted(posts, key=worst)]
+        got = [p.member_id for k in range(0, 57, 10) for p in vt.page("worst", "", k, 10)]
+        assert got == want
+        by_tag = [p.tag for p in vt.page("tag", "", 0, 100)]
+        assert by_tag == sorted(by_tag, key=str.lower)
+        # a filter keeps the posts holding every word, any case
+        hits = vt.page("tag", "CORE  stair", 0, 100)
+        assert {p.tag for p in hits} == {p.tag for p in posts if p.location == "stair core"}
+        assert vt.count("stair core") == len(hits) == 11
+        assert vt.position("tag", "", by_tag and vt.page("tag", "", 5, 1)[0].member_id) == 5
+        assert vt.page("worst", "no such words", 0, 10) == []
+    finally:
+        vt.close()
+
+
+def test_refresh_reads_only_what_was_written_since(log, shore):
+    res = log.import_rows(_posts(shore, 12), "Site", "Visit")
+    vt = VisitTable(log.path, res.visit.id, {})
+    try:
+        assert vt.refresh() == []  # nothing new: nothing read
+        one = next(p for p in log.posts(res.visit.id) if p.tag == "P3")
+        log.save_post(res.visit.id, {**one.record, "load": "1000lbf"}, one.member_id)
+        new = log.save_post(res.visit.id, {**shore, "tag": "P99"})
+        log.withdraw(next(p for p in log.posts() if p.tag == "P5").member_id, res.visit.id, "x")
+        touched = vt.refresh()
+        assert len(touched) == 3
+        assert vt.total() == 12  # one added, one withdrawn
+        assert new.member_id in {p.member_id for p in vt.page("added", "", 0, 100)}
+        p3 = next(p for p in vt.page("added", "", 0, 100) if p.tag == "P3")
+        assert p3.record["load"] == "1000lbf"
+        assert "P5" not in vt.tags()
+    finally:
+        vt.close()
