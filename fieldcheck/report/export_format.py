@@ -73,13 +73,12 @@ _FORMULA = ("=", "+", "-", "@", "\t", "\r")
 _NUMBER = re.compile(r"^[+-]?(\d+(\.\d*)?|\.\d+)([eE][+-]?\d+)?$")
 
 
-def columns(units: str = "us") -> list[str]:
-    """The header of an export in ``units``: the same whatever the log holds."""
-    from fieldcheck.records import COLUMNS
-
+def columns(units: str, record_columns: Iterable[str]) -> list[str]:
+    """The header of an export in ``units``: the same whatever the log holds (``record_columns``:
+    every rated record column in the registry's order, from the log: Log.record_columns())."""
     u = UNIT_COLUMNS[units]
     out = list(FIRST)
-    for c in COLUMNS:
+    for c in record_columns:
         if c in ("tag", "location", "notes"):
             continue
         out.append(c)
@@ -160,7 +159,7 @@ def rows(log, units: str = "us", visit_id: str | None = None) -> tuple[list[str]
     export (store: Log.export_iter)."""
     from fieldcheck import units as u
 
-    cols = columns(units)
+    cols = columns(units, log.record_columns())
     us = units == "us"
     height = _Reader(u.parse_length, 25.4 if us else 1.0, 2 if us else 0)
     load = _Reader(u.parse_force, LBF if us else 1000.0, 0 if us else 2)

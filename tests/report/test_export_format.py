@@ -10,6 +10,7 @@ import json
 
 from fieldcheck.cli import main
 from fieldcheck.engine.result import DUE_DAYS
+from fieldcheck.records import COLUMNS
 from fieldcheck.report import export_format as ef
 from fieldcheck.store import Log
 
@@ -23,9 +24,9 @@ def test_the_header_is_the_same_whatever_the_data(demo_log, empty_log, capsys):
     demo = _csv(capsys, ["export", "--db", str(demo_log.path)])
     assert main(["export", "--db", str(empty_log.path)]) == 0
     header = capsys.readouterr().out.splitlines()[0]
-    assert header.split(",") == list(demo[0]) == ef.columns("us")
-    metric = ef.columns("metric")
-    assert len(metric) == len(ef.columns("us"))
+    assert header.split(",") == list(demo[0]) == ef.columns("us", COLUMNS)
+    metric = ef.columns("metric", COLUMNS)
+    assert len(metric) == len(ef.columns("us", COLUMNS))
     assert metric[metric.index("height") + 1] == "height_mm"
     assert metric[metric.index("load") + 1] == "load_kN"
     assert {"capacity_kN", "demand_kN"} <= set(metric)
@@ -82,7 +83,7 @@ def test_json_has_the_schema_and_numbers_as_numbers(demo_log, capsys):
     assert main(["export", "--db", str(demo_log.path), "--format", "json", "--out", "-"]) == 0
     data = json.loads(capsys.readouterr().out)
     assert (data["schema"], data["schema_version"], data["units"]) == ("fieldcheck-export", 1, "us")
-    assert data["columns"] == ef.columns("us")
+    assert data["columns"] == ef.columns("us", COLUMNS)
     b1 = next(p for p in data["posts"] if p["tag"] == "B1")
     assert b1["height_in"] == 86.0 and b1["load_lbf"] == 7000 and b1["diameter"] is None
     assert list(b1) == data["columns"]
