@@ -85,6 +85,10 @@ class FieldcheckApp(App[None]):
     # -- life cycle --------------------------------------------------------------------------
     def on_mount(self) -> None:
         self.push_screen(SitesScreen())
+        if self.store.office:  # --db postgresql://...: the review queue first, Esc for the sites
+            from fieldcheck.tui.office import OfficeScreen
+
+            self.push_screen(OfficeScreen())
 
     def on_unmount(self) -> None:
         self.save_drafts()

@@ -139,6 +139,7 @@ class PostEditor(Screen[None]):
             self.draft_restored = True
         yield Header()
         yield Static("", id="editor-title", classes="title")
+        yield Static("", id="review-line", classes="review")  # the office review, if any
         with Horizontal(id="editor-body"):
             with VerticalScroll(id="form"):
                 yield from compose_form(COLUMNS, self.record)
@@ -630,6 +631,11 @@ class PostEditor(Screen[None]):
     async def load_history(self) -> None:
         member = self.member_id
         hist = await self.app.store.call(lambda log: log.history(member))  # type: ignore[attr-defined]
+        state = await self.app.store.call(lambda log: log.review_state(member))  # type: ignore[attr-defined]
+        if member == self.member_id:  # "reviewed by …, on …" and the engineer's instruction
+            self.query_one("#review-line", Static).update(
+                "Office review: " + present.escape(state.line()), layout=False
+            )
         if hist and member == self.member_id:
             self.head_id = hist[-1].id
         lines = [f"[b]{len(hist)} revision{'s' if len(hist) != 1 else ''}[/b] (oldest first)"]

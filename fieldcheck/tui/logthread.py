@@ -44,8 +44,16 @@ class LogThread:
         self.path: Path | None = None
         self.seeded = False
         self.is_demo = False  # the log open is the invented demo (never synced)
+        from fieldcheck.store.hub.url import is_hub_url
+
+        self.office = is_hub_url(db)  # --db postgresql://...: the office view of the hub
 
     def _open(self) -> Any:
+        if self._log is None and self.office:  # the office hub, through its mirror log
+            from fieldcheck.store.hub.mirror import open_hub_log
+
+            self._log = open_hub_log(str(self.db))
+            self.path = Path(self._log.path)
         if self._log is None:
             from fieldcheck.store import Log, default_log_path, seed_demo
             from fieldcheck.store.demo import default_demo_path, is_demo
@@ -83,6 +91,7 @@ class LogThread:
                 self._log = None
 
         try:
-            self._pool.submit(_close).result(timeout=5)
+            # the hub's mirror sends the reviews made here as it closes: wait for that
+            self._pool.submit(_close).result(timeout=None if self.office else 5)
         finally:
             self._pool.shutdown(wait=False)
