@@ -1263,15 +1263,15 @@ _RATING_SQL = (
 # indexes, so the rows stream (no sort, no window over the whole log) and a page or a visit
 # costs what it returns.
 _HEAD_H = HEAD.replace("= o.id", "= h.id")
-_HEAD_OF = f"""(SELECT h.id FROM observations h WHERE h.member_id = m.id AND {_HEAD_H}
+HEAD_OF = f"""(SELECT h.id FROM observations h WHERE h.member_id = m.id AND {_HEAD_H}
     ORDER BY h.device_seq DESC, h.id DESC LIMIT 1)"""
-_NHEADS = f"""(SELECT count(*) FROM observations h WHERE h.member_id = m.id AND {_HEAD_H})"""
+NHEADS = f"""(SELECT count(*) FROM observations h WHERE h.member_id = m.id AND {_HEAD_H})"""
 _POSTS_SQL = f"""
-SELECT o.id, o.member_id, o.visit_id, o.record_json, {_NHEADS} AS nheads, o.created_at,
+SELECT o.id, o.member_id, o.visit_id, o.record_json, {NHEADS} AS nheads, o.created_at,
     o.author, m.site_id, r.capacity_n, r.demand_n, r.ratio, r.action, r.governing,
     r.engine_version
 FROM members m
-JOIN observations o ON o.id = {_HEAD_OF}
+JOIN observations o ON o.id = {HEAD_OF}
 LEFT JOIN ratings r ON r.rowid = (SELECT max(rowid) FROM ratings WHERE observation_id = o.id)
 WHERE 1 {{filter}} {{withdrawn}}
 ORDER BY m.rowid
@@ -1281,7 +1281,7 @@ _EXPORT_SQL = f"""
 SELECT o.record_json, s.name, v.name, o.member_id, o.id, o.created_at, o.author,
     r.ratio, r.action, r.capacity_n, r.demand_n, r.governing, r.engine_version
 FROM members m
-JOIN observations o ON o.id = {_HEAD_OF}
+JOIN observations o ON o.id = {HEAD_OF}
 LEFT JOIN sites s ON s.id = m.site_id
 LEFT JOIN visits v ON v.id = o.visit_id
 LEFT JOIN ratings r ON r.rowid = (SELECT max(rowid) FROM ratings WHERE observation_id = o.id)
