@@ -175,12 +175,18 @@ def run_column(b: PostBatch, checks: dict, values: dict) -> None:
         np.where(lrfd, nds.KF_FCP * nds.PHI_FCP * np.minimum(b.lam, 1.0), 1.0) if any_lrfd else one
     )
     cm_bear = np.where(b.bearing_wet, 0.67, 1.0) if b.bearing_wet.any() else one
-    lb_top = np.where(b.top_lb_mm > 0, b.top_lb_mm, b.d1_mm)  # NaN compares False: the post's width
-    lb_bot = np.where(b.bottom_lb_mm > 0, b.bottom_lb_mm, b.d1_mm)
+    # bearing length lb along the cap's or sill's grain: the post's width d1 unless given, and
+    # never more than the post (it bears only where it stands). It sets Cb and the bearing area
+    # (NDS 2018 §3.10.4: Cb for lb < 6 in; §3.10.2: fc-perp = P / bearing area): the post's end
+    # area x lb / d1 (NaN compares False: the post's width)
+    lb_top = np.where(b.top_lb_mm > 0, np.minimum(b.top_lb_mm, b.d1_mm), b.d1_mm)
+    lb_bot = np.where(b.bottom_lb_mm > 0, np.minimum(b.bottom_lb_mm, b.d1_mm), b.d1_mm)
     cb_top = nds.bearing_area_factor(lb_top, b.top_cb)
     cb_bot = nds.bearing_area_factor(lb_bot, b.bottom_cb)
-    p_cap = prod(b.top_fc_perp_mpa, cm_bear, ct_f, perp_time, cb_top, a_top)
-    p_sill = prod(b.bottom_fc_perp_mpa, cm_bear, ct_f, perp_time, cb_bot, a_bot)
+    share_top = lb_top / b.d1_mm if (distinct(b.top_lb_mm) > 0).any() else one
+    share_bot = lb_bot / b.d1_mm if (distinct(b.bottom_lb_mm) > 0).any() else one
+    p_cap = prod(b.top_fc_perp_mpa, cm_bear, ct_f, perp_time, cb_top, a_top, share_top)
+    p_sill = prod(b.bottom_fc_perp_mpa, cm_bear, ct_f, perp_time, cb_bot, a_bot, share_bot)
 
     load = b.load_n
     checks["column"] = Check(
@@ -266,6 +272,8 @@ def column_flags(b: PostBatch, values: dict, flag: FlagSet) -> None:
     flag("wet", values["wet"])
     if (u(kappa) < 1.0).any():
         flag("assumed_material", (kappa < 1.0) & (b.material_assumed | (b.data_level < 0)))
+    if u(b.material_assumed).any():  # never dropped by a data-collection level (judgement)
+        flag("assumed_material", b.material_assumed)
     flag("cap_unchecked", np.isnan(u(b.top_fc_perp_mpa)))
     flag("sill_unchecked", np.isnan(u(b.bottom_fc_perp_mpa)))
     flag("theoretical_k", u(b.theoretical_k))
@@ -341,8 +349,9 @@ COLUMN = Stage(
         ),
         Flag(
             "assumed_material",
-            "Species or grade unknown: lowest plausible values and a knowledge factor applied "
-            "(ASCE 41).",
+            "Material unknown (species or grade): the lowest value of every species group and "
+            "grade held for this size is used (No.3 and Stud included), with a knowledge factor "
+            "on top (ASCE 41); a data-collection level may raise the factor, never the values.",
         ),
         Flag("cap_unchecked", "Bearing on the cap or beam above not checked: give what it is."),
         Flag("sill_unchecked", "Bearing on the sill or plate below not checked: give what it is."),

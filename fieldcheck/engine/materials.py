@@ -74,7 +74,8 @@ def normalise_species(text: str) -> str:
     key = SPECIES_ALIASES.get(_key(text))
     if key is None:
         raise ValueError(
-            f"species: '{text}' is not a species group we hold; use one of {', '.join(SPECIES)} or unknown."
+            f"species: '{text}' is not a species group we hold; use one of {', '.join(SPECIES)} "
+            "or unknown."
         )
     return key
 
@@ -85,7 +86,8 @@ def normalise_grade(text: str) -> str:
     )
     if key is None:
         raise ValueError(
-            f"grade: '{text}' is not a grade we hold; use one of {', '.join(GRADES)} (no2, ss, stud ...) or unknown."
+            f"grade: '{text}' is not a grade we hold; use one of {', '.join(GRADES)} (no2, ss, "
+            "stud ...) or unknown."
         )
     return key
 
@@ -95,41 +97,77 @@ def _rows() -> dict[tuple[str, str, str], dict[str, str]]:
     return {(r["species"], r["grade"], r["category"]): r for r in table("nds_reference_values")}
 
 
+# Grades held only for 2" to 4" wide dimension lumber (NDS Supplement Table 4A)
+NARROW_ONLY = ("construction", "standard")
+_STATUS_ORDER = ("read", "secondary", "memory")  # weakest last
+
+
 @cache
-def reference_values(species: str, grade: str, category: str) -> dict[str, float | str | bool]:
+def reference_values(
+    species: str,
+    grade: str,
+    category: str,
+    width_nom: int | None = None,
+    thick_nom: int | None = None,
+) -> dict[str, float | str | bool]:
     """Reference values in MPa for a species group, grade and category (dimension | timber).
 
-    ``species`` or ``grade`` 'unknown': the lowest value of each property over every species group
-    we hold, at the lowest structural grade (No.2), with the knowledge factor for default values
-    (field-practice.md §3.2, ASCE 41 data-collection levels; judgement).
+    ``species`` or ``grade`` 'unknown': a true lower bound. Each property is the lowest over
+    every species group and every grade held for that size and category (No.3, Stud,
+    Construction and Standard included where held; the unknown part only), each value with its
+    own size factor CF folded in when the nominal size is given (``cf_included``: the caller
+    takes CF = 1.0), with the knowledge factor for default values on top (ASCE 41 data
+    collection; judgement). A data-collection level may raise kappa to at most 1.0, never the
+    values above this bound.
     """
     if species == "unknown" or grade == "unknown":
-        g = DEFAULT_GRADE if grade == "unknown" else grade
-        pool = [r for (s, gr, c), r in _rows().items() if gr == g and c == category]
-        if species != "unknown":
-            pool = [r for r in pool if r["species"] == species]
+        pool = []
+        for (s_, g_, c_), r in _rows().items():
+            if c_ != category or (species != "unknown" and s_ != species):
+                continue
+            if grade != "unknown" and g_ != grade:
+                continue
+            if width_nom is not None and g_ in NARROW_ONLY and width_nom > 4:
+                continue  # not graded at this width
+            cf_fc = cf_fb = 1.0
+            if width_nom is not None and thick_nom is not None:
+                try:
+                    cf_fc, cf_fb = size_factors(s_, g_, width_nom, thick_nom)
+                except ValueError:
+                    continue  # not graded at this width
+            pool.append((r, cf_fc, cf_fb))
         if not pool:
             raise ValueError(
-                f"grade: no {category} values held for grade {g}; choose another grade."
+                f"grade: no {category} values held for {species} {grade}; choose another grade."
             )
-        out = {
-            p: min(float(r[f"{p}_psi"]) for r in pool) * PSI
-            for p in ("fb", "fc", "fc_perp", "e", "emin")
-        }
+        cf = {"fc": 1, "fb": 2}  # CF applies to Fc and Fb only (NDS Supplement Table 4A)
+        out: dict = {}
+        for p in ("fb", "fc", "fc_perp", "e", "emin"):
+            k = cf.get(p)
+            out[p] = (
+                min(
+                    float(r[f"{p}_psi"]) * (1.0 if k is None else (c1, c2)[k - 1])
+                    for r, c1, c2 in pool
+                )
+                * PSI
+            )
+        statuses = {r["status"] for r, _, _ in pool}
         out.update(
-            g=min(float(r["g"]) for r in pool),
+            g=min(float(r["g"]) for r, _, _ in pool),
             wet_tabulated=False,
             knowledge=KAPPA_DEFAULT_VALUES,
-            table="lowest of " + ", ".join(sorted({r["table"] for r in pool})),
-            status="memory",
+            table="lowest of " + ", ".join(sorted({r["table"] for r, _, _ in pool})),
+            status=max(statuses, key=_STATUS_ORDER.index),
             assumed=True,
+            cf_included=width_nom is not None and thick_nom is not None,
         )
         return out
     row = _rows().get((species, grade, category))
     if row is None:
         held = sorted({gr for (s, gr, c) in _rows() if s == species and c == category})
         raise ValueError(
-            f"grade: {species} {grade} is not held for {category} sizes; held grades: {', '.join(held)}."
+            f"grade: {species} {grade} is not held for {category} sizes; held grades: "
+            f"{', '.join(held)}."
         )
     out = {p: float(row[f"{p}_psi"]) * PSI for p in ("fb", "fc", "fc_perp", "e", "emin")}
     out.update(
@@ -139,6 +177,7 @@ def reference_values(species: str, grade: str, category: str) -> dict[str, float
         table=row["table"],
         status=row["status"],
         assumed=False,
+        cf_included=False,
     )
     return out
 
@@ -154,7 +193,9 @@ def size_factors(
     """
     if species == "southern-pine" or thickness_in >= 5:
         return 1.0, 1.0
-    g = grade if grade != "unknown" else DEFAULT_GRADE
+    if grade == "unknown" or species == "unknown":
+        return 1.0, 1.0  # the unknown lower bound carries each candidate's own CF
+    g = grade
     group = {"stud": "stud", "construction": "construction", "standard": "construction"}.get(
         g, "structural"
     )
@@ -169,7 +210,7 @@ def size_factors(
 
 
 def fc_perp_of(species: str) -> float:
-    """Fc-perp (MPa) of a species group, for a cap, beam or sill it bears on (same for all grades)."""
+    """Fc-perp (MPa) of a species group, for a cap, beam or sill it bears on (any grade)."""
     if species == "unknown":
         return min(float(r["fc_perp_psi"]) for r in _rows().values()) * PSI
     return min(float(r["fc_perp_psi"]) for (s, _, _), r in _rows().items() if s == species) * PSI

@@ -152,12 +152,15 @@ def material_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
     grade = row.get("grade", "unknown")
     cat = out["_category"]
     try:
-        rv = materials.reference_values(species, grade, cat)
+        # a round post takes no size factor, so its unknown bound is over the raw values
+        round_post = "diameter" in row
+        w, t = (None, None) if round_post else (out["_width_nom"], out["_thick_nom"])
+        rv = materials.reference_values(species, grade, cat, w, t)
         cf_fc, cf_fb = materials.size_factors(species, grade, out["_width_nom"], out["_thick_nom"])
     except ValueError as exc:
         raise RowError("grade", str(exc)) from None
-    if "diameter" in row or row.get("plies", 1) > 1:
-        cf_fc, cf_fb = (1.0, 1.0) if "diameter" in row else (cf_fc, cf_fb)
+    if round_post or rv["cf_included"]:
+        cf_fc, cf_fb = 1.0, 1.0  # round: no CF; unknown bound: each candidate's CF included
     f.update(
         fc_mpa=rv["fc"],
         fc_perp_mpa=rv["fc_perp"],
