@@ -45,7 +45,7 @@ class Timed(FieldcheckApp):
     def on_ready(self):
         print("READY", time.perf_counter() - t0, flush=True)
         self.exit()
-Timed(db=sys.argv[1]).run(headless=True)
+Timed(db=sys.argv[1], demo=True).run(headless=True)
 """
 
 
@@ -65,10 +65,9 @@ async def keystrokes(db: str, n: int = 100) -> list[float]:
 
     from fieldcheck.tui.app import FieldcheckApp
 
-    app = FieldcheckApp(db=db)
+    app = FieldcheckApp(db=db, demo=True)
     samples: list[float] = []
     async with app.run_test(size=(120, 40)) as pilot:
-        painted_head: list[float] = []
         for key in ("enter", "o"):
             for _ in range(3):
                 await pilot.pause()

@@ -214,10 +214,13 @@ class PostEditor(Screen[None]):
         self._after_change()
 
     def form_key(self, key: str, focused: Any) -> Any:
-        """Called by the app for Enter, Tab and shift+Tab before the next key is routed (see
-        FieldcheckApp.action_form_key). Enter in a field takes its shown suggestion and moves
-        to the next field (never onto a section title, so it never folds a section); Tab and
-        shift+Tab move as usual, at once."""
+        """Enter, Tab, shift+Tab, PageDown or PageUp in a field, once the keys typed before it
+        are in (form.FieldInput; the app holds later keys until this returns). Leaving a
+        fixed-choice field completes the value its first letters stand for. Enter moves to the
+        next field (never onto a section title, so it never folds a section); in "add a defect"
+        it adds that kind's fields; PageDown/PageUp go to the next/previous section."""
+        if isinstance(focused, FieldInput) and not isinstance(focused, DefectPicker):
+            focused.complete()
         if key == "tab":
             self.focus_next()
             return True
@@ -229,8 +232,6 @@ class PostEditor(Screen[None]):
             return True
         if not isinstance(focused, FieldInput):
             return False
-        if not isinstance(focused, DefectPicker):
-            focused.complete()
         if isinstance(focused, DefectPicker) and focused.value.strip():
             kinds = list(defect_columns(COLUMNS))
             kind = defect_kind(focused.value, kinds)
@@ -657,6 +658,9 @@ class PostEditor(Screen[None]):
 
     # -- save, undo, leave, remedies ---------------------------------------------------------
     async def save(self, quiet: bool = False) -> bool:
+        focused = self.focused
+        if isinstance(focused, FieldInput) and not isinstance(focused, DefectPicker):
+            focused.complete()  # "s" for seven-days, as when leaving the field
         record = clean(self.record)
         member = self.member_id
         if member is not None and not self.dirty:
