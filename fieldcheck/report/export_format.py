@@ -165,7 +165,7 @@ def rows(log, units: str = "us", visit_id: str | None = None) -> tuple[list[str]
     load = _Reader(u.parse_force, LBF if us else 1000.0, 0 if us else 2)
     fscale, fnd, f = (LBF, 0, "lbf") if us else (1000.0, 2, "kN")
     dates = _visit_dates(log)
-    _, src = log.export_iter(visit_id)
+    _, src = log.export_iter(visit_id, record_columns=False)  # the columns are fixed here
 
     def gen() -> Iterator[dict]:
         for r in src:

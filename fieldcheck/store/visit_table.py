@@ -64,7 +64,7 @@ def _q(text: str) -> str:
 
 
 def _build_sql(words: dict[str, str]) -> str:
-    from fieldcheck.store.repo import HEAD_OF, NHEADS
+    from fieldcheck.store.repo import HEAD_ROWID_OF, NHEADS
 
     return f"""
 INSERT INTO temp.visit_posts
@@ -81,7 +81,7 @@ SELECT m.rowid AS rank, o.rowid AS obs_rowid, o.member_id, o.id, o.visit_id, m.s
     lower((SELECT group_concat(j.value, ' ') FROM json_each(o.record_json) j) || ' '
         || {_action_words_sql(words)}) AS hay
 FROM members m
-JOIN observations o ON o.id = {HEAD_OF}
+JOIN observations o ON o.rowid = {HEAD_ROWID_OF}
 LEFT JOIN ratings r ON r.rowid = (SELECT max(rowid) FROM ratings WHERE observation_id = o.id)
 WHERE o.withdrawn = 0 AND m.id IN (SELECT member_id FROM observations WHERE visit_id = ?)
     {{members}}
