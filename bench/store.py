@@ -239,7 +239,7 @@ def main() -> None:
     out: dict[str, object] = {"posts": a.posts}
     with tempfile.TemporaryDirectory() as tmp:
         small = bench(a.posts, Path(tmp), a.repeats)
-        out.update(_tagged(small, "1e5"))
+        out.update(_tagged(small, f"{a.posts:.0e}".replace("+0", "").replace("+", "")))
         if a.big:
             out.update(_tagged(bench(1_000_000, Path(tmp), 1), "1e6"))
     print(json.dumps(out))
