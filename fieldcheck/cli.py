@@ -16,6 +16,20 @@ from fieldcheck.commands import COMMANDS
 from fieldcheck.commands.usage import UsageError, store_error_sentence
 
 
+class _Version(argparse.Action):
+    """--version: fieldcheck, its engine and the edition of every reference table (read only
+    when asked, so other commands never pay for reading the tables)."""
+
+    def __init__(self, option_strings, dest=argparse.SUPPRESS, **kw):
+        super().__init__(option_strings, dest, nargs=0, default=argparse.SUPPRESS, **kw)
+
+    def __call__(self, parser, namespace, values, option_string=None):
+        from fieldcheck.commands.about import version_text
+
+        print(version_text())
+        parser.exit(0)
+
+
 class _Parser(argparse.ArgumentParser):
     def error(self, message: str) -> None:  # one sentence, exit 2 (argparse's own code too)
         self.exit(2, f"fieldcheck: {message}. See `{self.prog} --help`.\n")
@@ -28,10 +42,15 @@ def build_parser(only: str | None = None) -> argparse.ArgumentParser:
         "for a competent person: local codes, the authority having jurisdiction and a licensed "
         "engineer govern.",
     )
-    p.add_argument("--version", action="version", version=f"fieldcheck {__version__}")
+    p.add_argument(
+        "--version", action=_Version, help="print the version, the engine and the reference data"
+    )
     p.add_argument("--db", metavar="PATH", help="survey log to open (default: your data folder)")
     p.add_argument(
-        "--units", choices=("us", "metric"), default=None, help="unit system for display"
+        "--units",
+        choices=("us", "metric"),
+        default=None,
+        help="unit system for display (default: $FIELDCHECK_UNITS, else the config file, else us)",
     )
     sub = p.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
     for name, (module, help_) in COMMANDS.items():
@@ -59,6 +78,10 @@ def main(argv: list[str] | None = None) -> int:
     except SystemExit as exc:  # --help, --version, or a usage error already printed
         return int(exc.code or 0)
     try:
+        if getattr(args, "units", None) is None:  # the user's default: environment, config file
+            from fieldcheck.commands.about import default_units
+
+            args.units = default_units()
         if args.command is None:
             return _open_interface(args)
         return int(args._run(args) or 0)

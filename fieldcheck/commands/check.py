@@ -17,6 +17,7 @@ DESCRIPTION = (
 
 def add_arguments(p: argparse.ArgumentParser) -> None:
     add_db_option(p)
+    p.add_argument("--json", action="store_true", help="print one JSON object")
 
 
 def run(args: argparse.Namespace) -> int:
@@ -35,12 +36,22 @@ def run(args: argparse.Namespace) -> int:
         with Log.open(path, readonly=True) as log:
             report = log.integrity()
     except LogError as exc:
-        print(f"fieldcheck: {exc}")
-        return 1
+        return _refused(args, path, str(exc))
     except sqlite3.DatabaseError as exc:
-        print(f"fieldcheck: {damaged(path, exc)}")
-        return 1
+        return _refused(args, path, damaged(path, exc))
     problems = report.problems()
+    if getattr(args, "json", False):
+        import json
+
+        out = {
+            "log": str(path),
+            "schema_version": report.schema_version,
+            "sound": not problems,
+            "problems": problems,
+            "conflicts": report.conflicts,
+        }
+        print(json.dumps(out, ensure_ascii=False, indent=1))
+        return 0 if not problems else 1
     print(
         f"{path}: schema version {report.schema_version}, "
         f"{'sound' if not problems else f'{len(problems)} problems'}"
@@ -49,3 +60,14 @@ def run(args: argparse.Namespace) -> int:
     for p in problems:
         print(f"  - {p}")
     return 0 if not problems else 1
+
+
+def _refused(args: argparse.Namespace, path, sentence: str) -> int:
+    if getattr(args, "json", False):
+        import json
+
+        out = {"log": str(path), "sound": False, "problems": [sentence], "conflicts": None}
+        print(json.dumps(out, ensure_ascii=False, indent=1))
+    else:
+        print(f"fieldcheck: {sentence}")
+    return 1

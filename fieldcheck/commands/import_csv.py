@@ -17,10 +17,14 @@ DESCRIPTION = (
 
 def add_arguments(p: argparse.ArgumentParser) -> None:
     add_db_option(p)
-    p.add_argument("csv", metavar="IN.csv", nargs="?", help="posts, one per row")
+    p.add_argument("csv", metavar="IN.csv", nargs="?", help="posts, one per row (- : stdin)")
     p.add_argument("--site", help="site name (created if new), e.g. '14 Alder Row'")
     p.add_argument("--visit", help="visit name (created if new), e.g. 'Basement survey'")
-    p.add_argument("--inspector", help="who inspected (default: your user name)")
+    p.add_argument(
+        "--inspector", help="who inspected (default: the config file's inspector, else your login)"
+    )
+    p.add_argument("--json", action="store_true", help="print one JSON object")
+    p.add_argument("--quiet", action="store_true", help="no progress bar")
     p.add_argument(
         "--bundle", metavar="IN", help="take a sync bundle (IN and IN.json) instead of a CSV"
     )
@@ -44,15 +48,40 @@ def run(args: argparse.Namespace) -> int:
             "import: give --site NAME and --visit NAME for the imported posts, e.g. "
             "--site '14 Alder Row' --visit 'Basement survey'"
         )
+    from fieldcheck.commands.progress import counted, progress_bar
+    from fieldcheck.config import load
     from fieldcheck.records.csv_file import CsvProblem
 
-    with open_posts(args, args.csv) as table, open_log(args) as log:
+    inspector = args.inspector or load().inspector or None
+    with (
+        open_posts(args, args.csv) as table,
+        open_log(args) as log,
+        progress_bar(args.quiet) as bar,
+    ):
         # streamed: the rows go to the log as they are read (memory flat in the file size); a
         # problem found on a later line leaves the log as it was (one transaction)
         try:
-            result = log.import_rows(table, args.site, args.visit, inspector=args.inspector)
+            result = log.import_rows(
+                counted(table, bar, "importing"), args.site, args.visit, inspector=inspector
+            )
         except CsvProblem as exc:
             raise UsageError(str(exc)) from None
+        if args.json:
+            import json
+
+            out = {
+                "log": str(log.path),
+                "site": result.site.name,
+                "visit": result.visit.name,
+                "read": result.read,
+                "imported": result.imported,
+                "errors": [
+                    {"row": e.row + 1, "column": e.column, "message": e.message}
+                    for e in result.errors
+                ],
+            }
+            print(json.dumps(out, ensure_ascii=False, indent=1))
+            return 0 if not result.errors else 1
         for err in result.errors:
             print(
                 f"fieldcheck: row {err.row + 1}, column {err.column}: {err.message}",

@@ -83,3 +83,30 @@ class ProgressBar:
         if self.shown:
             self.stream.write("\n")
             self.stream.flush()
+
+
+def counted(rows, bar: Progress | None, stage: str, total: int = 0, every: int = 500):
+    """``rows`` passed through, ``bar(n, total, stage)`` every ``every`` rows (total 0:
+    unknown, the bar shows the count)."""
+    if bar is None:
+        yield from rows
+        return
+    n = 0
+    for row in rows:
+        yield row
+        n += 1
+        if n % every == 0:
+            bar(n, max(total, n), stage)
+    bar(n, max(total, n), stage)
+
+
+@contextlib.contextmanager
+def working(what: str, quiet: bool = False, stream=None) -> Iterator[None]:
+    """A spinner with ``what`` while a step with no count of its own runs (terminal only)."""
+    if not wanted(quiet, stream):
+        yield
+        return
+    from rich.console import Console
+
+    with Console(file=stream or sys.stderr).status(what):
+        yield

@@ -16,6 +16,9 @@ DESCRIPTION = (
     "below (without the dashes, - written _, any letter case), one post per row. A screening aid "
     "for a competent person."
 )
+# action levels in order of severity (engine ACTIONS 0-3), for --fail-on
+FAIL_ON = ("monitor", "repair-or-brace", "make-safe-now")
+FAILED = 3  # exit code of --fail-on (0 fine, 1 rows with errors, 2 usage)
 RESULT_COLUMNS = (
     "allowable_load_lbf",
     "allowable_load_kN",
@@ -31,7 +34,13 @@ RESULT_COLUMNS = (
 )
 
 
+# columns naming an EN 338 strength class: their values are listed from the table we hold
+STRENGTH_CLASS = ("class", "cap_class", "sill_class")
+
+
 def add_arguments(p: argparse.ArgumentParser) -> None:
+    from fieldcheck.engine.en338 import class_names
+
     groups: dict[str, argparse._ArgumentGroup] = {}
     for col in COLUMNS.values():
         g = groups.get(col.group) or groups.setdefault(col.group, p.add_argument_group(col.group))
@@ -40,10 +49,16 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
             if col.flag
             else {"metavar": "VALUE"}
         )
+        choices = col.choices or (class_names() if col.name in STRENGTH_CLASS else ())
+        listed = (
+            f"; one of {', '.join(choices)}"
+            if choices and not col.flag and len(choices) <= 40
+            else ""
+        )
         g.add_argument(
             col.option,
             dest=f"col_{col.name}",
-            help=f"{col.help} (e.g. {col.example})".replace("%", "%%"),
+            help=f"{col.help}{listed} (e.g. {col.example})".replace("%", "%%"),
             **extra,
         )
     out = p.add_argument_group("output")
@@ -56,8 +71,20 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
         default=None,
         help="unit system for the text output (input is accepted in either)",
     )
-    out.add_argument("--batch", metavar="IN.csv", help="rate every row of a CSV file")
-    out.add_argument("--out", metavar="OUT.csv", help="with --batch: where to write the results")
+    out.add_argument(
+        "--batch", metavar="IN.csv", help="rate every row of a CSV file (- : standard input)"
+    )
+    out.add_argument(
+        "--out", metavar="OUT.csv", help="with --batch: where to write the results (- : stdout)"
+    )
+    out.add_argument(
+        "--fail-on",
+        metavar="ACTION",
+        choices=FAIL_ON,
+        help="for scripts: exit 3 when a post's action is ACTION or worse (one of "
+        + ", ".join(FAIL_ON)
+        + "); a post not rated (load missing, or a bad row) counts as worse than any",
+    )
     from fieldcheck.commands.csv_option import add_csv_options
 
     add_csv_options(out)
@@ -90,18 +117,30 @@ def run(args: argparse.Namespace) -> int:
     rating = rate(parsed.batch)
     summary = explain.summary(rating, 0)
     summary["material"] = parsed.meta[0].get("_material", "")
+    failed = _fails(args, [int(rating.action[0])])
     if args.json:
         if args.working:
             summary["working"] = [s.__dict__ for s in explain.working(rating, 0)]
         print(json.dumps(summary, indent=2, ensure_ascii=False))
-        return 0
+        return FAILED if failed else 0
     print(_text(summary, args.units_here or args.units or "us"))
     if args.working:
         print("\nWorking:")
         for s in explain.working(rating, 0):
             clause = f"   [{s.clause}]" if s.clause else ""
             print(f"  {s.label}: {s.value}{clause}")
-    return 0
+    return FAILED if failed else 0
+
+
+def _fails(args: argparse.Namespace, actions, unrated: int = 0) -> bool:
+    """--fail-on: an action at or above the level, or a post with no decision (not rated)."""
+    level = getattr(args, "fail_on", None)
+    if not level:
+        return False
+    from fieldcheck.engine.result import NOT_RATED
+
+    at = FAIL_ON.index(level) + 1  # engine action index of the level
+    return unrated > 0 or any(a == NOT_RATED or a >= at for a in actions)
 
 
 def _text(s: dict, system: str) -> str:
@@ -184,11 +223,12 @@ def _run_batch(args: argparse.Namespace) -> int:
             else:
                 w.writerow(base + [""] * (len(RESULT_COLUMNS) - 1) + ["; ".join(errors_by_row[i])])
 
-    if args.out:
+    if args.out and args.out != "-":
         write_atomically(args.out, write)
     else:
         write(sys.stdout)
     rated = int(parsed.ok.sum())
+    failed = _fails(args, rating.action.tolist(), unrated=len(rows) - rated)
     print(
         f"fieldcheck: rated {rated} of {len(rows)} posts"
         + (
@@ -198,4 +238,7 @@ def _run_batch(args: argparse.Namespace) -> int:
         ),
         file=sys.stderr,
     )
+    if failed:
+        print(f"fieldcheck: --fail-on {args.fail_on}: at least one post fails.", file=sys.stderr)
+        return FAILED
     return 0 if rated == len(rows) else 1

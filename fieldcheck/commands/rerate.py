@@ -15,11 +15,30 @@ DESCRIPTION = (
 
 def add_arguments(p: argparse.ArgumentParser) -> None:
     add_db_option(p)
+    p.add_argument("--json", action="store_true", help="print one JSON object")
+    p.add_argument("--quiet", action="store_true", help="no progress display")
 
 
 def run(args: argparse.Namespace) -> int:
+    from fieldcheck.commands.progress import working
+
     with open_log(args, must_exist=True) as log:
-        res = log.rerate_all()
+        with working("re-rating", args.quiet):
+            res = log.rerate_all()
+        if args.json:
+            import json
+
+            out = {
+                "log": str(log.path),
+                "rated": res.rated,
+                "unrated": res.unrated,
+                "engine_version": res.engine_version,
+                "errors": [
+                    {"row": e.row, "column": e.column, "message": e.message} for e in res.errors
+                ],
+            }
+            print(json.dumps(out, ensure_ascii=False, indent=1))
+            return 0 if not res.unrated else 1
         print(
             f"Re-rated {res.rated} posts in {log.path} with engine {res.engine_version}"
             + (

@@ -6,7 +6,6 @@ import argparse
 import sys
 
 from fieldcheck.commands.log_option import add_db_option, open_log
-from fieldcheck.commands.progress import ProgressBar
 
 DESCRIPTION = (
     "Sync a survey log with the office. OFFICE is the office's survey log file (merged directly), "
@@ -25,20 +24,35 @@ def add_arguments(p: argparse.ArgumentParser) -> None:
         help="office survey log file, shared folder, or postgresql:// URL of the office hub",
     )
     p.add_argument("--quiet", action="store_true", help="no progress bar")
+    p.add_argument("--json", action="store_true", help="print one JSON object")
 
 
 def run(args: argparse.Namespace) -> int:
+    from fieldcheck.commands.progress import progress_bar
     from fieldcheck.store.photos import sync_photos
     from fieldcheck.store.sync import sync
 
-    bar = None if args.quiet or not sys.stderr.isatty() else ProgressBar()
-    with open_log(args, must_exist=True) as log:
-        try:
-            summary = sync(log, args.office, progress=bar)
-            photos = sync_photos(log, args.office, progress=bar)
-        finally:
-            if bar is not None:
-                bar.close()
+    with open_log(args, must_exist=True) as log, progress_bar(args.quiet) as bar:
+        summary = sync(log, args.office, progress=bar)
+        photos = sync_photos(log, args.office, progress=bar)
+    if args.json:
+        import json
+
+        out = {
+            "office": summary.office,
+            "mode": summary.mode,
+            "sent": summary.sent,
+            "received": summary.received,
+            "conflicts": summary.conflicts,
+            "new_conflicts": summary.new_conflicts,
+            "refused": summary.refused + photos.refused,
+            "skipped": summary.skipped,
+            "photos": {"sent": photos.sent, "received": photos.received},
+            "seconds": round(summary.seconds, 3),
+            "sentence": summary.sentence(),
+        }
+        print(json.dumps(out, ensure_ascii=False, indent=1))
+        return 1 if summary.refused or photos.refused else 0
     print(summary.sentence())
     if photos.sent or photos.received or photos.refused:
         print(photos.sentence())

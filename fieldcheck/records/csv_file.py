@@ -61,11 +61,18 @@ class PostsFile:
         known: Collection[str] | None = None,
     ):
         self.path = Path(path)
-        self.name = str(path)
+        self.name = "standard input" if str(path) == "-" else str(path)
         names = [*(COLUMNS if known is None else known), *also]
         known_map = {header_key(k): k for k in names}  # any spelling -> the canonical name
         try:
-            self._fh = open(self.path, newline="", encoding="utf-8-sig", errors="strict")  # noqa: SIM115
+            if str(path) == "-":  # standard input: read as a file, never closed under the caller
+                import io
+                import sys
+
+                raw = open(sys.stdin.fileno(), "rb", closefd=False)  # noqa: SIM115
+                self._fh = io.TextIOWrapper(raw, encoding="utf-8-sig", newline="", errors="strict")
+            else:
+                self._fh = open(self.path, newline="", encoding="utf-8-sig", errors="strict")  # noqa: SIM115
         except IsADirectoryError:
             raise CsvProblem(f"{self.name} is a folder; give a CSV file") from None
         except FileNotFoundError:

@@ -5,7 +5,7 @@ Schema version 1 (``SCHEMA_VERSION``), in this order:
 
 - ``tag``, ``location``: as typed.
 - ``site``, ``visit``, ``visit_date`` (YYYY-MM-DD).
-- every input column of the record registry (fieldcheck.records.COLUMNS), in registry order, as
+- every input column of the record registry (``Log.record_columns()``), in registry order, as
   typed; ``height`` is followed by ``height_in`` (US customary) or ``height_mm`` (metric), and
   ``load`` by ``load_lbf`` or ``load_kN``: the typed text read as a number (blank when it does
   not read).

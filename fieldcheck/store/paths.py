@@ -7,10 +7,13 @@ from pathlib import Path
 
 
 def default_log_path() -> Path:
-    """The user's survey log: $FIELDCHECK_DB, else $XDG_DATA_HOME/fieldcheck/survey.db, else
-    ~/.local/share/fieldcheck/survey.db. The folder is not created here (Log.open does that)."""
+    """The user's survey log: $FIELDCHECK_DB, else survey.db in the user data folder that
+    platformdirs names for this platform ($XDG_DATA_HOME/fieldcheck or ~/.local/share/fieldcheck
+    on Linux, ~/Library/Application Support/fieldcheck on macOS, %LOCALAPPDATA%\\fieldcheck on
+    Windows). The folder is not created here (Log.open does that)."""
     env = os.environ.get("FIELDCHECK_DB")
     if env:
         return Path(env).expanduser()
-    base = os.environ.get("XDG_DATA_HOME") or str(Path.home() / ".local" / "share")
-    return Path(base).expanduser() / "fieldcheck" / "survey.db"
+    from platformdirs import user_data_dir
+
+    return Path(user_data_dir("fieldcheck", appauthor=False)) / "survey.db"

@@ -26,3 +26,10 @@ def test_demo_without_db_writes_its_own_file_beside_the_log(monkeypatch, tmp_pat
     assert demo.is_file()
     assert not (tmp_path / "deep" / "folder" / "survey.db").exists()  # the user's log untouched
     assert main(["check", "--db", str(demo)]) == 0
+
+
+def test_default_log_path_is_the_platforms_user_data_folder(monkeypatch):
+    from platformdirs import user_data_dir
+
+    monkeypatch.delenv("FIELDCHECK_DB", raising=False)
+    assert default_log_path() == Path(user_data_dir("fieldcheck", appauthor=False)) / "survey.db"

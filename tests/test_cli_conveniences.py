@@ -1,0 +1,167 @@
+"""What people expect of a well-kept command line: --version with the engine and reference-data
+editions, --json on check/sync/import/rerate, rate --fail-on for scripts, the valid values in
+--help, defaults from the config file and FIELDCHECK_UNITS, '-' for standard input and output,
+progress bars on a terminal and none in a pipe."""
+
+from __future__ import annotations
+
+import io
+import json
+import os
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+
+from fieldcheck.cli import main
+from fieldcheck.commands.progress import counted, progress_bar
+from fieldcheck.engine.refdata import editions
+from fieldcheck.store import Log, seed_demo
+
+ROOT = Path(__file__).resolve().parent.parent
+POSTS = (
+    "tag,size,height,species,grade,load\n"
+    "P1,4x4,8ft,douglas-fir-larch,no2,3000lbf\n"
+    "P2,6x6,9ft,southern-pine,no1,30000lbf\n"
+)
+LIGHT = ["rate", "--size", "6x6", "--height", "8ft", "--species", "douglas-fir-larch"]
+LIGHT += ["--grade", "no1", "--load", "1000lbf"]
+
+
+def _run(argv, stdin: str = "", env: dict | None = None) -> subprocess.CompletedProcess:
+    e = {**os.environ, "PYTHONPATH": str(ROOT), **(env or {})}
+    return subprocess.run(
+        [sys.executable, "-m", "fieldcheck", *argv],
+        input=stdin,
+        capture_output=True,
+        text=True,
+        env=e,
+        timeout=120,
+        check=False,
+    )
+
+
+@pytest.fixture
+def demo_db(tmp_path):
+    path = tmp_path / "demo.db"
+    with Log.open(path, author="tester") as log:
+        seed_demo(log)
+    return path
+
+
+def test_version_names_the_engine_and_every_reference_table(capsys):
+    assert main(["--version"]) == 0
+    out = capsys.readouterr().out
+    assert out.startswith("fieldcheck ") and "\nengine " in out
+    for name, edition in editions().items():
+        assert f"  {name}: {edition or 'edition not recorded'}" in out
+
+
+def test_help_lists_the_valid_values(capsys):
+    assert main(["rate", "--help"]) == 0
+    text = " ".join(capsys.readouterr().out.split())
+    assert "douglas-fir-larch, hem-fir" in text and "southern- pine" not in text.replace(
+        "southern- pine", "southern-pine"
+    )
+    assert "select- structural" in text or "select-structural" in text
+    assert "one of asd, lrfd, ec5" in text
+    assert "C24" in text and "D40" in text  # EN 338 classes for --class
+
+
+def test_rate_fail_on(capsys):
+    assert main([*LIGHT, "--fail-on", "monitor"]) == 0
+    heavy = [*LIGHT[:-1], "40000lbf"]
+    assert main([*heavy, "--fail-on", "make-safe-now"]) == 3
+    assert main([*heavy, "--fail-on", "make-safe-now", "--json"]) == 3
+    assert main(heavy) == 0  # without --fail-on the rating alone never fails the command
+    no_load = LIGHT[:-2]
+    assert main([*no_load, "--fail-on", "make-safe-now"]) == 3  # not rated is not a pass
+    assert main([*LIGHT, "--fail-on", "nonsense"]) == 2
+    capsys.readouterr()
+
+
+def test_batch_from_standard_input_to_standard_output_with_fail_on():
+    p = _run(["rate", "--batch", "-", "--out", "-", "--fail-on", "repair-or-brace"], POSTS)
+    assert p.returncode == 3, p.stderr
+    assert p.stdout.splitlines()[0].startswith("tag,size") and len(p.stdout.splitlines()) == 3
+    assert "--fail-on repair-or-brace: at least one post fails" in p.stderr
+    assert (
+        _run(
+            ["rate", "--batch", "-", "--fail-on", "make-safe-now"],
+            POSTS.replace("30000lbf", "3000lbf"),
+        ).returncode
+        == 0
+    )
+
+
+def test_import_from_standard_input_with_json(tmp_path):
+    db = tmp_path / "in.db"
+    p = _run(["import", "--db", str(db), "-", "--site", "S", "--visit", "V", "--json"], POSTS)
+    assert p.returncode == 0, p.stderr
+    out = json.loads(p.stdout)
+    assert (out["imported"], out["read"], out["errors"], out["site"]) == (2, 2, [], "S")
+    assert "\x1b[" not in p.stderr  # no progress bar or escape codes in a pipe
+
+
+def test_check_and_rerate_json(demo_db, capsys):
+    assert main(["check", "--db", str(demo_db), "--json"]) == 0
+    out = json.loads(capsys.readouterr().out)
+    assert out["sound"] is True and out["problems"] == [] and out["schema_version"] >= 5
+    assert main(["rerate", "--db", str(demo_db), "--json", "--quiet"]) == 0
+    out = json.loads(capsys.readouterr().out)
+    assert out["rated"] == 9 and out["unrated"] == 0 and out["errors"] == []
+
+
+def test_sync_json(tmp_path, capsys):
+    field, office = tmp_path / "field.db", tmp_path / "office.db"
+    with Log.open(field, author="tester") as log:
+        log.import_rows(
+            [
+                dict(zip(POSTS.splitlines()[0].split(","), r.split(","), strict=True))
+                for r in POSTS.splitlines()[1:]
+            ],
+            "S",
+            "V",
+        )
+    assert main(["sync", "--db", str(field), str(office), "--json"]) == 0
+    out = json.loads(capsys.readouterr().out)
+    assert out["mode"] == "file" and out["sent"]["observations"] == 2 and out["refused"] == []
+    assert main(["sync", "--db", str(field), str(office), "--json"]) == 0
+    again = json.loads(capsys.readouterr().out)
+    assert sum(again["sent"].values()) == 0  # a repeated sync moves nothing
+
+
+def test_units_and_inspector_defaults_from_config_and_environment(tmp_path, monkeypatch, capsys):
+    cfg = tmp_path / "config.toml"
+    cfg.write_text('units = "metric"\ninspector = "R. Okafor"\n', encoding="utf-8")
+    monkeypatch.setenv("FIELDCHECK_CONFIG", str(cfg))
+    assert main(LIGHT) == 0
+    assert " kN" in capsys.readouterr().out
+    monkeypatch.setenv("FIELDCHECK_UNITS", "us")
+    assert main(LIGHT) == 0
+    assert " lbf" in capsys.readouterr().out
+    csv = tmp_path / "p.csv"
+    csv.write_text(POSTS, encoding="utf-8")
+    db = tmp_path / "i.db"
+    assert main(["import", "--db", str(db), str(csv), "--site", "S", "--visit", "V"]) == 0
+    with Log.open(db, readonly=True) as log:
+        assert log.visits()[0].inspector == "R. Okafor"
+
+
+class _Tty(io.StringIO):
+    def isatty(self) -> bool:
+        return True
+
+
+def test_progress_bar_on_a_terminal_and_none_in_a_pipe():
+    with progress_bar(stream=io.StringIO()) as bar:
+        assert bar is None  # a pipe: no bar
+    with progress_bar(quiet=True, stream=_Tty()) as bar:
+        assert bar is None
+    tty = _Tty()
+    with progress_bar(stream=tty) as bar:
+        assert callable(bar)
+        assert list(counted(range(1200), bar, "importing")) == list(range(1200))
+        bar(5, 10, "writing")
+    assert list(counted([1, 2], None, "x")) == [1, 2]
