@@ -11,7 +11,6 @@ import importlib
 import sqlite3
 import sys
 
-from fieldcheck import __version__
 from fieldcheck.commands import COMMANDS
 from fieldcheck.commands.usage import UsageError, store_error_sentence
 
