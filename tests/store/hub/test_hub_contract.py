@@ -110,3 +110,18 @@ def test_report_and_review_from_the_hub(tmp_path, shore, hub_url, monkeypatch, c
     assert "ok" in text  # the sign-off's words
     err = capsys.readouterr().err
     assert "fcadmin:" not in err  # the password part of the URL never printed
+
+
+def test_password_never_stored(tmp_path, shore, pg_cluster, hub_url):
+    from fieldcheck.store.sync import sync
+
+    field = tmp_path / "ann.db"
+    with Log.open(field, author="ann", device="dev-ann") as ann:
+        v = ann.add_visit(ann.add_site("Mill Lane").id, "ann")
+        ann.save_post(v.id, shore)
+        s = sync(ann, hub_url)
+    assert pg_cluster.password not in s.sentence()
+    mirror = tmp_path / "office.db"
+    open_hub_log(hub_url, path=mirror).close()
+    for f in (field, mirror):
+        assert pg_cluster.password.encode() not in f.read_bytes()
