@@ -292,28 +292,33 @@ def _send(log, conn: psycopg.Connection, progress: Progress | None):
         src.close()
 
 
-def _revised(src, ranges) -> tuple[set[str], set[str]]:
-    """Members revised in ``ranges``, and those revised more than once there."""
-    seen: dict[str, int] = {}
+def _touched(src, ranges) -> tuple[list[str], list[str]]:
+    """(members the hub held already that ``ranges`` revise, those and the members revised more
+    than once in ``ranges``): found in SQLite, few rows back even on a first sync."""
+    old: set[str] = set()
+    twice: set[str] = set()
     for dev, (lo, hi) in ranges.items():
-        for mid, n in src.execute(
-            "SELECT member_id, count(*) FROM observations WHERE device_id = ? "
-            "AND device_seq BETWEEN ? AND ? GROUP BY member_id",
-            [dev, lo, hi],
-        ):
-            seen[mid] = seen.get(mid, 0) + n
-    return set(seen), {m for m, n in seen.items() if n > 1}
-
-
-def _created(src, ranges) -> set[str]:
-    return {
-        r[0]
-        for dev, (lo, hi) in ranges.items()
-        for r in src.execute(
-            "SELECT id FROM members WHERE device_id = ? AND device_seq BETWEEN ? AND ?",
-            [dev, lo, hi],
+        old.update(
+            r[0]
+            for r in src.execute(
+                "SELECT DISTINCT member_id FROM observations WHERE device_id = ?1 "
+                "AND device_seq BETWEEN ?2 AND ?3 AND member_id NOT IN (SELECT id FROM members "
+                "WHERE device_id = ?1 AND device_seq BETWEEN ?2 AND ?3)",
+                [dev, lo, hi],
+            )
         )
-    }
+    # revised more than once in this sync, counting across devices' ranges
+    where = " OR ".join("(device_id = ? AND device_seq BETWEEN ? AND ?)" for _ in ranges)
+    args = [v for dev, (lo, hi) in sorted(ranges.items()) for v in (dev, lo, hi)]
+    twice.update(
+        r[0]
+        for r in src.execute(
+            f"SELECT member_id FROM observations WHERE {where} "
+            "GROUP BY member_id HAVING count(*) > 1",
+            args,
+        )
+    )
+    return sorted(old), sorted(old | twice)
 
 
 def _send_once(conn, src, tables, meta, ours, progress):
@@ -334,9 +339,7 @@ def _send_once(conn, src, tables, meta, ours, progress):
         n = bf._in_ranges(src, "main", t.name, ranges)
         if n:
             counts[t.name] = n
-    revised, twice = _revised(src, ranges)
-    touched = sorted(revised - _created(src, ranges))
-    candidates = sorted(set(touched) | twice)
+    touched, candidates = _touched(src, ranges)
     header = TransferHeader(
         firm_id=meta.get("firm_id", ""),
         sender_device=meta.get("device_id", ""),
