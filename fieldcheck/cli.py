@@ -56,12 +56,7 @@ def build_parser(only: str | None = None) -> argparse.ArgumentParser:
         if only is not None and name != only:
             sub.add_parser(name, help=help_, add_help=False)
             continue
-        try:
-            mod = importlib.import_module(f"fieldcheck.commands.{module}")
-        except ModuleNotFoundError as exc:
-            if exc.name != f"fieldcheck.commands.{module}":
-                raise
-            continue
+        mod = importlib.import_module(f"fieldcheck.commands.{module}")
         sp = sub.add_parser(name, help=help_, description=getattr(mod, "DESCRIPTION", help_))
         mod.add_arguments(sp)
         sp.set_defaults(_run=mod.run)
@@ -134,11 +129,5 @@ def _open_interface(args: argparse.Namespace) -> int:
             file=sys.stderr,
         )
         return 2
-    try:
-        tui = importlib.import_module("fieldcheck.tui.app")
-    except ModuleNotFoundError:
-        print(
-            "fieldcheck: the interface is not built yet; rate a post with `fieldcheck rate --help`."
-        )
-        return 0
+    tui = importlib.import_module("fieldcheck.tui.app")
     return int(tui.run(db=args.db, units=args.units) or 0)

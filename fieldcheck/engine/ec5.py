@@ -58,15 +58,14 @@ _PRODUCT_ALIASES = {
     "glued laminated timber": GLULAM,
     "lvl": LVL,
 }
-# PostBatch product codes -> EC5 product code (LVL has no PostBatch code yet).
+# PostBatch product codes -> EC5 product code (no PostBatch code for LVL: an LVL post is not
+# rated as LVL).
 _BATCH_PRODUCT = {
     _batch.DIMENSION: SOLID,
     _batch.TIMBER: SOLID,
     _batch.POLE: SOLID,
     _batch.GLULAM: GLULAM,
 }
-if hasattr(_batch, "LVL"):  # pragma: no cover - picked up when the batch gains an LVL code
-    _BATCH_PRODUCT[_batch.LVL] = LVL
 
 # Relative slenderness at and below which no buckling reduction applies (EN 1995-1-1 §6.3.2(2)).
 LAM_REL_LIMIT = 0.3

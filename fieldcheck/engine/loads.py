@@ -141,15 +141,6 @@ def rubble_kpa(depth_mm) -> np.ndarray:
     return psf_per_in * PSF_KPA * d / 25.4  # FEMA US&R Rescue Specialist manual, 10 psf/in
 
 
-def preset_source(table_name: str, key: str) -> dict[str, str]:
-    """The data row of a preset (label, source, edition, status) for the working."""
-    rows = _rows(table_name)
-    k = key.strip().lower()
-    if k not in rows:
-        raise ValueError(f"{key!r} is not a key of {table_name}; use one of {', '.join(rows)}.")
-    return dict(rows[k])
-
-
 # --------------------------------------------------------------------------- tributary area
 
 
@@ -187,13 +178,6 @@ def area_load_n(q_kpa, area_mm2) -> np.ndarray:
     q = _arr("area load", q_kpa, "kPa", "1.92 (40 psf)")
     a = _arr("area", area_mm2, "mm^2", "11148364 (120 ft^2)")
     return q * KPA_N_PER_MM2 * a
-
-
-def line_load_n_per_mm(q_kpa, width_mm) -> np.ndarray:
-    """Line load in N/mm from an area load (kPa) over a tributary width (mm): w = q x b."""
-    q = _arr("area load", q_kpa, "kPa", "2.39 (50 psf)")
-    b = _arr("tributary width", width_mm, "mm", "3658 (12 ft)")
-    return q * KPA_N_PER_MM2 * b
 
 
 def reaction_from_spans_n(w_n_per_mm, span_left_mm, span_right_mm=0.0) -> np.ndarray:

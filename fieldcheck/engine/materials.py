@@ -9,7 +9,6 @@ from __future__ import annotations
 
 from functools import cache
 
-import numpy as np
 
 from fieldcheck.engine.customary import PSI
 from fieldcheck.engine.refdata import table
@@ -214,7 +213,3 @@ def fc_perp_of(species: str) -> float:
     if species == "unknown":
         return min(float(r["fc_perp_psi"]) for r in _rows().values()) * PSI
     return min(float(r["fc_perp_psi"]) for (s, _, _), r in _rows().items() if s == species) * PSI
-
-
-def as_array(values: list[float]) -> np.ndarray:
-    return np.asarray(values, dtype=np.float64)

@@ -346,8 +346,8 @@ def gather(
     for a in log.attachments():
         if a.member_id in members:
             att.setdefault(a.member_id, []).append(a)
-    find = getattr(log, "photo_file", None)
-    files = {a.id: (find(a) if find is not None else None) for lst in att.values() for a in lst}
+    find = log.photo_file
+    files = {a.id: find(a) for lst in att.values() for a in lst}
     rev: dict[str, list] = {}
     visit_ids = {v.id for v in visits}
     signoffs = []
@@ -356,7 +356,7 @@ def gather(
             rev.setdefault(r.member_id, []).append(r)
         elif r.kind == "sign-off" and r.visit_id in visit_ids:
             signoffs.append(r)
-    states = log.review_states() if hasattr(log, "review_states") else {}
+    states = log.review_states()
 
     def loader(obs_id: str):
         return lambda: log.rating_for(obs_id)
@@ -432,9 +432,5 @@ def gather(
 
 
 def _states(log, method: str, members: set[str]) -> dict[str, Any]:
-    """A store's per-post states (review, remedy) for the report's posts; {} from a store
-    without them."""
-    fn = getattr(log, method, None)
-    if fn is None:
-        return {}
-    return {m: st for m, st in fn().items() if m in members}
+    """The log's per-post states (review, remedy) for the report's posts."""
+    return {m: st for m, st in getattr(log, method)().items() if m in members}

@@ -128,10 +128,3 @@ def sqlite_sentence(exc: sqlite3.Error, path: Path | str, *, waited_s: float = L
         f"the survey log {p} cannot be read ({exc}); it may be truncated or corrupted: keep the "
         "file and any -wal file beside it untouched, and restore from a backup or the office copy"
     )
-
-
-def is_damage(exc: sqlite3.Error) -> bool:
-    text = str(exc).lower()
-    return any(
-        w in text for w in ("malformed", "not a database", "file is not", "corrupt", "encrypted")
-    )

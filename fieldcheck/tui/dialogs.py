@@ -380,11 +380,8 @@ class SyncDialog(ProgressDialog):
 
     @work(group="sync", exit_on_error=False)
     async def run_sync(self, path: str) -> None:
-        try:
-            from fieldcheck.store.sync import sync
-        except ImportError:
-            self.finish("Sync is not available yet in this version.", ok=False)
-            return
+        from fieldcheck.store.sync import sync
+
         self.running = True
         t0 = time.perf_counter()
         try:
@@ -419,10 +416,6 @@ class ReportDialog(ProgressDialog):
             (path.parent / f"{path.stem}-report{suffix}.html") if path else Path("report.html")
         )
         self.query_one("#report-path", Input).value = str(default)
-        try:
-            import fieldcheck.report.html  # noqa: F401
-        except ImportError:
-            self.query_one("#summary", Static).update("The HTML report is not available yet.")
 
     @on(Input.Submitted, "#report-path")
     def _start(self, event: Input.Submitted) -> None:
@@ -431,11 +424,8 @@ class ReportDialog(ProgressDialog):
 
     @work(group="report", exit_on_error=False)
     async def run_report(self, path: str) -> None:
-        try:
-            from fieldcheck.report.html import write_report
-        except ImportError:
-            self.finish("The HTML report is not available yet in this version.", ok=False)
-            return
+        from fieldcheck.report.html import write_report
+
         self.running = True
         self._progress(0, None, "writing")
         units = self.app.units  # type: ignore[attr-defined]
