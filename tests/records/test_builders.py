@@ -1,0 +1,60 @@
+"""Builders: a record as typed -> PostBatch fields in SI, one engine batch for many rows."""
+
+from __future__ import annotations
+
+import pytest
+
+from fieldcheck.engine.batch import EC5, FIELD_NAMES, LRFD
+from fieldcheck.records import parse_records, parse_row
+from fieldcheck.records.columns import BUILDERS
+
+IN = 25.4  # mm per inch, exact by definition
+LBF = 4.4482216152605  # N per lbf, exact by definition (0.45359237 kg x 9.80665 m/s^2)
+
+
+def test_the_shore_record_becomes_si_fields(shore):
+    fields, meta, problems = parse_row(shore)
+    assert problems == []
+    # NDS Supplement Table 1B: a 4x4 is dressed to 3-1/2 x 3-1/2 in
+    assert fields["d1_mm"] == pytest.approx(3.5 * IN)
+    assert fields["d2_mm"] == pytest.approx(3.5 * IN)
+    assert fields["height_mm"] == pytest.approx(96 * IN)  # 8 ft
+    assert fields["load_n"] == pytest.approx(3000 * LBF)
+    assert fields["construction"] is True
+    assert set(fields) <= set(FIELD_NAMES)  # builders give PostBatch fields only
+    assert meta["_material"].startswith("douglas-fir-larch")
+
+
+def test_every_builder_gives_batch_fields_only():
+    values = {"size": (4, 4), "height": 2438.4}
+    meta: dict = {}  # what one builder leaves for the next (section kind, material text)
+    for build in BUILDERS:  # in the registry's order, as parse_row runs them
+        out = build(dict(values), meta)
+        assert set(out) <= set(FIELD_NAMES), build.__name__
+
+
+def test_the_method_column_sets_the_method_code(shore):
+    lrfd, _, _ = parse_row({**shore, "method": "lrfd", "duration": "", "construction": ""})
+    ec5, _, problems = parse_row({**shore, "method": "ec5", "class": "C24", "duration": ""})
+    assert problems == []
+    assert lrfd["method"] == LRFD and ec5["method"] == EC5
+
+
+def test_a_bad_cell_names_its_column_and_spares_the_other_rows(shore):
+    rows = [shore, {**shore, "height": "tall"}, {**shore, "tag": "S3", "notes": "ok"}]
+    parsed = parse_records(rows)
+    assert parsed.ok.tolist() == [True, False, True]
+    assert [(e.row, e.column) for e in parsed.errors] == [(1, "height")]
+    assert parsed.batch.n == 2 and parsed.index.tolist() == [0, 2]
+
+
+def test_identical_records_parse_once_and_rate_alike(shore):
+    # a row of identical shores: one distinct record, the same fields on every row
+    parsed = parse_records([dict(shore, tag=f"S{k}") for k in range(5)])
+    assert parsed.batch.n == 5
+    assert len(set(parsed.batch.d1_mm.tolist())) == 1
+
+
+def test_unknown_columns_are_kept_out_of_the_rating(shore):
+    fields, _, problems = parse_row({**shore, "site_own_note": "blue paint"})
+    assert problems == [] and fields == parse_row(shore)[0]
