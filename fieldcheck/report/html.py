@@ -80,16 +80,32 @@ def due_text(p: PostEntry) -> str:
     return date_text(p.due) or f"within {DUE_DAYS[a]} days"
 
 
+_TD = re.compile(r"<td(?=[ >])")
+_TAGS = re.compile(r"<[^>]+>")
+
+
+def _labelled(body: str, labels: list[str]) -> str:
+    """Each ``<td`` of each row given ``data-label`` = its column's header (phone-width cards)."""
+    rows = body.split("<tr>")
+    out = [rows[0]]
+    for row in rows[1:]:
+        names = iter(labels)
+        out.append(_TD.sub(lambda _m, it=names: f'<td data-label="{next(it, "")}"', row))
+    return "<tr>".join(out)
+
+
 def table(head: list[str], body: str, cls: str = "") -> str:
-    """A table whose header row repeats on every printed page, in a box that scrolls sideways on a
-    narrow screen. ``head``: header cells as HTML (``<th>`` added; "num:" prefix right-aligns)."""
+    """A table whose header row repeats on every printed page; on a phone-width screen each row
+    becomes a card of "header: value" lines (nothing runs off the screen), and anything wider
+    still scrolls sideways in its box. ``head``: header cells as HTML ("num:" right-aligns)."""
     cells = "".join(
         f'<th class="num">{h[4:]}</th>' if h.startswith("num:") else f"<th>{h}</th>" for h in head
     )
-    c = f' class="{cls}"' if cls else ""
+    labels = [e(_TAGS.sub("", h[4:] if h.startswith("num:") else h)) for h in head]
+    c = f' class="cards {cls}"' if cls else ' class="cards"'
     return (
         f'<div class="tw"><table{c}><thead><tr>{cells}</tr></thead>'
-        f"<tbody>{body}</tbody></table></div>"
+        f"<tbody>{_labelled(body, labels)}</tbody></table></div>"
     )
 
 
@@ -677,7 +693,8 @@ def _post(d: ReportData, p: PostEntry) -> str:
         errs = "".join(f"<li>{e(x)}</li>" for x in p.errors)
         return (
             head + "</div><div class='alert'><b>Not rated:</b> the record as typed has errors."
-            f"<ul>{errs}</ul></div><h3>Inputs as measured</h3>{_record_table(p.view.record, d.columns)}"
+            f"<ul>{errs}</ul></div><h3>Inputs as measured</h3>"
+            f"{_record_table(p.view.record, d.columns)}"
             f"{_notes_photos(d, p)}{_stored(p, d.units)}</section>"
         )
     r, j, u = p.rating, p.j, d.units

@@ -49,7 +49,7 @@ th { background: #eee; } td.num, th.num { text-align: right; font-variant-numeri
 .sketchbox { margin: 0; } .sketchbox svg { width: 100%; height: auto; }
 .sketchbox figcaption { font-size: 8pt; color: #333; }
 .plot { width: 100%; height: auto; max-width: 34em; }
-.plot text { font: 13px sans-serif; fill: #111; }
+.plot text { font: 15px sans-serif; fill: #111; }
 .sketch text { font: 15px sans-serif; fill: #111; }
 .steps td:first-child { width: 2.2em; text-align: right; }
 .steps { font-size: 9pt; }
@@ -63,9 +63,18 @@ nav ol { columns: 2; }
          max-width: 100%; }
 .photo img { width: 100%; height: auto; border: 1px solid #999; }
 .photo figcaption { font-size: 9pt; }
-@media (max-width: 700px) {
+@media screen and (max-width: 700px) {
   body { padding: 0.6em; font-size: 10pt; }
   .duo, .duo.even { display: block; }
+  table.cards thead { display: none; }
+  table.cards, table.cards tbody, table.cards tr, table.cards td { display: block; width: auto; }
+  table.cards tr { border: 1px solid #999; margin: 0 0 0.5em; }
+  table.cards td { border: none; border-bottom: 1px dotted #ccc; text-align: left;
+                   white-space: normal; }
+  table.cards td:last-child { border-bottom: none; }
+  table.cards td::before { content: attr(data-label); display: inline-block; min-width: 6.5em;
+                           font-weight: bold; color: #444; margin-right: 0.4em; }
+  .steps td:first-child, .steps td:nth-child(2), .steps td:nth-child(3) { width: auto; }
   .trio { grid-template-columns: minmax(0, 1fr) 8em; }
   .trio figure:last-child { grid-column: 1 / span 2; }
   .kv th { width: 40%; }

@@ -82,10 +82,10 @@ def test_checks_are_named_in_words(demo_log, parse_html):
 
 def test_four_significant_figures_at_most(demo_log, parse_html):
     out = render_report(demo_log)
-    steps = re.findall(r"<table class=\"steps\">(.*?)</table>", out)
+    steps = re.findall(r"<table class=\"cards steps\">(.*?)</table>", out)
     assert steps
     for body in steps:
-        for cell in re.findall(r"<td>([^<]*)</td>", body):
+        for cell in re.findall(r"<td[^>]*>([^<]*)</td>", body):
             for num in re.findall(r"\d[\d,]*\.\d+", cell):
                 digits = num.replace(",", "").replace(".", "").lstrip("0")
                 assert len(digits) <= 4, (num, cell)

@@ -61,3 +61,26 @@ def test_phone_width_wide_tables_scroll_sideways(demo_log):
     assert out.count("<table") == out.count('<div class="tw"><table') + out.count(
         '<table class="titleblock">'
     )
+
+
+def test_phone_width_rows_become_cards_labelled_by_their_header(demo_log):
+    out = render_report(demo_log)
+    css = _css(out)
+    phone = css[css.index("@media screen and (max-width: 700px)") :]
+    assert "table.cards thead { display: none; }" in phone
+    assert "content: attr(data-label)" in phone
+    # every cell of the summary table carries its column's name
+    summary = out[out.index('id="summary"') : out.index('id="actions"')]
+    row = re.search(r"<tbody><tr>(.*?)</tr>", summary).group(1)
+    labels = re.findall(r'<td data-label="([^"]*)"', row)
+    assert labels == [
+        "Tag",
+        "Location",
+        "Visit",
+        "Action",
+        "Capacity",
+        "Demand",
+        "Ratio",
+        "Governs",
+        "Due",
+    ]
