@@ -118,6 +118,8 @@ def run(args: argparse.Namespace) -> int:
     summary = explain.summary(rating, 0)
     summary["material"] = parsed.meta[0].get("_material", "")
     failed = _fails(args, [int(rating.action[0])])
+    summary["values_status"] = parsed.meta[0].get("_values_status")  # read/secondary/memory
+    summary["values_source"] = parsed.meta[0].get("_values_source")
     if args.json:
         if args.working:
             summary["working"] = [s.__dict__ for s in explain.working(rating, 0)]

@@ -71,6 +71,13 @@ def batch_fields(name: str) -> dict[str, float]:
     }
 
 
+def status(name: str) -> str:
+    """How sure the class's values are: read, secondary or memory (data/en338_classes.csv)."""
+    key = str(name).strip().upper().replace(" ", "")
+    strength_class(name)
+    return next(r["status"] for r in table("en338_classes") if r["class"].upper() == key)
+
+
 def edition(name: str) -> str:
     """The EN 338 edition the class's values come from (e.g. 'EN 338:2009')."""
     key = str(name).strip().upper().replace(" ", "")

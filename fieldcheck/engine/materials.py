@@ -161,6 +161,8 @@ def reference_values(
             cf_included=width_nom is not None and thick_nom is not None,
         )
         return out
+    if grade == "stud" and width_nom is not None and width_nom > 6:
+        grade = "no3"  # NDS Supplement Table 4A note: Stud wider than 6 in takes No.3 values
     row = _rows().get((species, grade, category))
     if row is None:
         held = sorted({gr for (s, gr, c) in _rows() if s == species and c == category})

@@ -172,7 +172,12 @@ def material_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
         wet_tabulated=rv["wet_tabulated"],
         knowledge=rv["knowledge"],
     )
-    out["_material"] = f"{species} {grade} ({rv['table']}, {rv['status']})"
+    took = " (No.3 values: Stud wider than 6 in)" if grade == "stud" and w and w > 6 else ""
+    out["_material"] = f"{species} {grade}{took} ({rv['table']}, {rv['status']})"
+    # where the values came from and how sure (read / secondary / memory), for every person
+    # who sees the rating: CLI, --json, interface, report (meta of parse_records)
+    out["_values_status"] = rv["status"]
+    out["_values_source"] = f"NDS Supplement 2018 Table {rv['table']}"
     out["_e_mpa"] = rv["e"]
     if method == LRFD:
         f["lam"] = LAMBDA[duration]

@@ -88,6 +88,8 @@ def ec5_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
     for end, col in (("top", "cap_class"), ("bottom", "sill_class")):
         if col in row:
             f[f"{end}_fc_perp_mpa"] = en338.strength_class(row[col])["fc90k_mpa"]
+    out["_values_status"] = en338.status(name)
+    out["_values_source"] = en338.edition(name)
     out["_material"] = (
         f"{name} ({en338.edition(name)}), k_mod {f['kmod']:.2f} ({duration}), gamma_M "
         f"{f['gamma_m']}"
