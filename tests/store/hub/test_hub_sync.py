@@ -92,3 +92,23 @@ def test_hub_rows_cannot_be_rewritten(tmp_path, shore, hub_url, pg_cluster):
             conn.execute("UPDATE fieldcheck.observations SET reason = 'x'")
         with pytest.raises(psycopg.Error, match="append-only"):
             conn.execute("DELETE FROM fieldcheck.observations")
+
+
+@pytest.mark.slow
+def test_libpq_forms_env_and_password_file(tmp_path, shore, pg_cluster, hub_url, monkeypatch):
+    """PG* environment variables and a password file, as libpq reads them."""
+    db = hub_url.rsplit("/", 1)[1]
+    log, _ = _field(tmp_path, "ann", shore, 1)
+    monkeypatch.setenv("PGHOST", "127.0.0.1")
+    monkeypatch.setenv("PGPORT", str(pg_cluster.port))
+    monkeypatch.setenv("PGUSER", pg_cluster.user)
+    monkeypatch.setenv("PGPASSWORD", pg_cluster.password)
+    assert sync(log, f"postgresql:///{db}").sent["observations"] == 1
+    monkeypatch.delenv("PGPASSWORD")
+    pgpass = tmp_path / "pgpass"
+    pgpass.write_text(f"127.0.0.1:{pg_cluster.port}:*:{pg_cluster.user}:{pg_cluster.password}\n")
+    pgpass.chmod(0o600)
+    monkeypatch.setenv("PGPASSFILE", str(pgpass))
+    again = sync(log, f"postgres://{pg_cluster.user}@127.0.0.1:{pg_cluster.port}/{db}")
+    assert again.moved == 0 and pg_cluster.password not in again.sentence()
+    log.close()
