@@ -7,6 +7,13 @@
    (both valid, so every key re-rates); the time from sending the key to the rating panel being
    painted again, median over 100 keystrokes (target < 16 ms).
 
+3. A large visit (the post table pages from SQLite): in a fresh subprocess, the time from
+   opening a visit of 10,000 posts to its table showing rows (``visit_10k_open_s``, target
+   < 0.5 s), the time a filter keystroke takes to refill the table (``visit_10k_filter_key_ms``,
+   median, target < 100 ms), and a visit of 100,000 posts opened the same way
+   (``visit_100k_open_s``, target < 2 s; ``visit_100k_peak_mb``, the process's peak, < 300 MB).
+   ``--no-large`` leaves these out.
+
 Prints one JSON object on its last line.
 """
 
@@ -107,7 +114,96 @@ async def keystrokes(db: str, n: int = 100) -> list[float]:
     return samples
 
 
+VISIT = """
+import asyncio, json, resource, sys, time
+from fieldcheck.store import Log
+from fieldcheck.tui.app import FieldcheckApp
+from fieldcheck.tui.visit import VisitScreen
+
+db, name, keys = sys.argv[1], sys.argv[2], sys.argv[3]
+with Log.open(db, readonly=True) as log:
+    vid = next(v.id for v in log.visits() if v.name == name)
+
+async def main():
+    app = FieldcheckApp(db=db, demo=False)
+    out = {}
+    async with app.run_test(size=(120, 40)) as pilot:
+        await pilot.pause()
+        await app.workers.wait_for_complete()
+        t0 = time.perf_counter()
+        screen = VisitScreen(vid)
+        await app.push_screen(screen)
+        from textual.widgets import DataTable, Input
+        table = screen.query_one("#posts", DataTable)
+        while not table.row_count:
+            await asyncio.sleep(0.002)
+        await pilot.pause()
+        out["open_s"] = time.perf_counter() - t0
+        inp = screen.query_one("#filter", Input)
+        inp.focus()
+        await pilot.pause()
+        filled = []
+        real = screen._fill
+        def timed(*a, **k):
+            real(*a, **k)
+            filled.append(time.perf_counter())
+        screen._fill = timed
+        samples = []
+        for ch in keys:
+            filled.clear()
+            t = time.perf_counter()
+            await pilot.press(ch)
+            while not filled:
+                await asyncio.sleep(0.001)
+            samples.append((filled[0] - t) * 1000.0)
+            await pilot.pause()
+        out["filter_key_ms"] = sorted(samples)[len(samples) // 2] if samples else None
+        out["shown"] = screen.shown
+    out["peak_mb"] = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0
+    print("VISIT", json.dumps(out), flush=True)
+
+asyncio.run(main())
+"""
+
+
+def large_visits(tmp: Path) -> dict:
+    """A log with visits of 10,000 and 100,000 posts (realistic, nearly every record distinct);
+    each visit opened in a fresh subprocess."""
+    sys.path.insert(0, str(ROOT))
+    from bench.store import synthetic
+    from fieldcheck.store import Log
+
+    db = str(tmp / "large.fieldcheck")
+    with Log.open(db, author="bench") as log:
+        log.import_rows(synthetic(10_000), "Large site", "ten thousand")
+        log.import_rows(synthetic(100_000, start=10_000), "Large site", "hundred thousand")
+
+    def visit(name: str, keys: str) -> dict:
+        out = subprocess.run(
+            [sys.executable, "-c", VISIT, db, name, keys],
+            cwd=ROOT,
+            capture_output=True,
+            text=True,
+            timeout=600,
+        )
+        for line in out.stdout.splitlines():
+            if line.startswith("VISIT"):
+                return json.loads(line[6:])
+        raise RuntimeError(f"no VISIT line: {out.stdout[-500:]} {out.stderr[-2000:]}")
+
+    small = visit("ten thousand", "doug no1 P12")
+    big = visit("hundred thousand", "")
+    return {
+        "visit_10k_open_s": round(small["open_s"], 3),
+        "visit_10k_filter_key_ms": round(small["filter_key_ms"], 1),
+        "visit_100k_open_s": round(big["open_s"], 3),
+        "visit_100k_peak_mb": round(big["peak_mb"]),
+        "visit_10k_peak_mb": round(small["peak_mb"]),
+    }
+
+
 def main() -> None:
+    large = "--no-large" not in sys.argv
     with tempfile.TemporaryDirectory() as tmp:
         db = str(Path(tmp) / "bench.fieldcheck")
         first_screen(OURS, db)  # makes and seeds the log once; warms the OS file cache
@@ -117,6 +213,7 @@ def main() -> None:
             bare.append(first_screen(BARE, db))
             ours.append(first_screen(OURS, db))
         keys = asyncio.run(keystrokes(db))
+        visits = large_visits(Path(tmp)) if large else {}
     result = {
         "first_screen_ratio": round(statistics.median(ours) / statistics.median(bare), 3),
         "keystroke_ms_median": round(statistics.median(keys), 2),
@@ -125,6 +222,7 @@ def main() -> None:
         "keystroke_ms_p90": round(sorted(keys)[int(0.9 * len(keys))], 2),
         "keystrokes": len(keys),
         "runs": RUNS,
+        **visits,
     }
     print(json.dumps(result))
 

@@ -229,10 +229,16 @@ def record_remedied(
     return obs
 
 
-def states(log: Log, visit_id: str | None = None) -> dict[str, RemedyState]:
-    """member id -> RemedyState for every current post (of ``visit_id``, or all)."""
-    posts = log.posts(visit_id)
-    heads = {p.member_id: p.observation_id for p in posts}
+def states(
+    log: Log, visit_id: str | None = None, *, marked_only: bool = False
+) -> dict[str, RemedyState]:
+    """member id -> RemedyState for every current post (of ``visit_id``, or all).
+    ``marked_only``: only the posts with a proposal or a remedy recorded (any other is as
+    found), so a large visit is not read post by post."""
+    if marked_only:
+        heads = _marked_heads(log, visit_id)
+    else:
+        heads = {p.member_id: p.observation_id for p in log.posts(visit_id)}
     done: dict[str, tuple[str, str | None]] = {}  # observation id -> (date, proposal id)
     for r in log.db.query("SELECT observation_id, done_on, proposal_id FROM remedied"):
         done[r["observation_id"]] = (r["done_on"], r["proposal_id"])
@@ -251,6 +257,25 @@ def states(log: Log, visit_id: str | None = None) -> dict[str, RemedyState]:
             continue
         open_ = tuple(reversed([p for p in mine if p.done_on is None]))
         out[member] = RemedyState(member, PROPOSED if open_ else AS_FOUND, open_)
+    return out
+
+
+def _marked_heads(log: Log, visit_id: str | None) -> dict[str, str]:
+    """member id -> current revision of the posts (of ``visit_id``) with a proposal or a
+    remedy recorded, not withdrawn."""
+    sql = "SELECT member_id FROM proposals UNION SELECT member_id FROM remedied"
+    params: list[str] = []
+    if visit_id is not None:
+        sql = (
+            f"SELECT member_id FROM ({sql}) WHERE member_id IN "
+            "(SELECT member_id FROM observations WHERE visit_id = ?)"
+        )
+        params.append(visit_id)
+    out: dict[str, str] = {}
+    for (member,) in log.db.conn.execute(sql, params).fetchall():
+        head = log.head(member)
+        if head is not None and not head.withdrawn:
+            out[member] = head.id
     return out
 
 

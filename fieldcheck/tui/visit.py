@@ -53,8 +53,15 @@ def _load_visit(log: Any, visit_id: str) -> dict[str, Any]:
         "visit": v,
         "site": log.site(v.site_id),
         "table": VisitTable(log.path, v.id, words),
-        "states": log.remedy_states(visit_id),  # as found / proposed / as remedied
+        "states": _states(log, visit_id),  # proposed / as remedied (the rest as found)
     }
+
+
+def _states(log: Any, visit_id: str) -> dict[str, Any]:
+    """Remedy states of the visit's posts with a proposal or a remedy (read those only)."""
+    from fieldcheck.store import proposals
+
+    return proposals.states(log, visit_id, marked_only=True)
 
 
 def remedy_mark(state: Any) -> str:
@@ -146,7 +153,7 @@ class VisitScreen(Screen[None]):
     async def _reload_states(self) -> None:
         """Remedy states (a proposal is not a revision of the post: read them again)."""
         states = await self.app.store.call(  # type: ignore[attr-defined]
-            lambda log: log.remedy_states(self.visit_id)
+            lambda log: _states(log, self.visit_id)
         )
         if states != self.states:
             self.states = states or {}

@@ -90,3 +90,18 @@ def test_the_invented_demo_is_marked_and_never_synced(tmp_path):
         with pytest.raises(TransferRefused, match="invented demo"):
             export_bundle(demo, tmp_path / "out.bundle")
     assert not (tmp_path / "office.db").exists()
+
+
+def test_marked_only_states_are_the_full_states_that_are_not_as_found(log, visit):
+    from fieldcheck.store import proposals
+
+    a = log.save_post(visit.id, SIX_BY_SIX)
+    b = log.save_post(visit.id, {**SIX_BY_SIX, "tag": "B4"})
+    log.save_post(visit.id, {**SIX_BY_SIX, "tag": "B5"})  # stays as found
+    log.propose_remedy(a.id, kind="replace", description="an 8x8", changes={"size": "8x8"})
+    p = log.propose_remedy(b.id, kind="replace", description="an 8x8", changes={"size": "8x8"})
+    log.record_remedied(b.member_id, visit.id, proposal_id=p.id, done_on="2026-03-14")
+    full = log.remedy_states(visit.id)
+    marked = proposals.states(log, visit.id, marked_only=True)
+    assert marked == {m: s for m, s in full.items() if s.state != "as found"}
+    assert set(marked) == {a.member_id, b.member_id}
