@@ -34,9 +34,9 @@ from __future__ import annotations
 import numpy as np
 
 from fieldcheck.engine import nds
+from fieldcheck.engine import quantities as q
 from fieldcheck.engine.batch import EC5, LRFD, PostBatch
 from fieldcheck.engine.blocks import at_least, distinct, filled, memo
-from fieldcheck.engine.customary import IN
 from fieldcheck.engine.refdata import table
 from fieldcheck.engine.result import Check, Step
 from fieldcheck.engine.sections import second_moments
@@ -955,10 +955,6 @@ def condition_flags(b: PostBatch, values: dict, flag: FlagSet) -> None:
 # =============================================================================================
 # Per post, on demand: reductions (for --json), working lines
 # =============================================================================================
-def _mm(x: float) -> str:
-    return f"{x:.1f} mm ({x / IN:.3f} in)"
-
-
 def reductions(r, i: int) -> list[dict]:
     """Each reduction applied to post i, in order, with its factor and clause."""
     b, v = r.batch, r.values
@@ -978,8 +974,8 @@ def reductions(r, i: int) -> list[dict]:
     if bool(v["loss"][i]):
         add(
             "residual section, middle part",
-            f"area {v['area'][i] / gross:.3f} of gross; d_eff {_mm(v['d_eff1'][i])} x {_mm(v['d_eff2'][i])}; "
-            f"centroid shift {_mm(v['shift1'][i])}, {_mm(v['shift2'][i])}; decay margin {_mm(b.decay_margin_mm[i])}"
+            f"area {v['area'][i] / gross:.3f} of gross; d_eff {q.length(v['d_eff1'][i])} x {q.length(v['d_eff2'][i])}; "
+            f"centroid shift {q.length(v['shift1'][i])}, {q.length(v['shift2'][i])}; decay margin {q.length(b.decay_margin_mm[i])}"
             " (judgement)",
             v["area"][i] / gross,
             "common practice: decayed wood has no strength; char + 7 mm (EN 1995-1-2 §4.2.2, from memory); NDS 2018 §3.6.3 (from memory)",
@@ -1021,7 +1017,7 @@ def reductions(r, i: int) -> list[dict]:
         parts = []
         if _nz(b.knot_mm[i : i + 1])[0] > 0:
             parts.append(
-                f"knot {_mm(b.knot_mm[i])} on a {FACE_NAMES[int(b.knot_face[i])]} face: {v['sr_knot'][i]:.3f}"
+                f"knot {q.length(b.knot_mm[i])} on a {FACE_NAMES[int(b.knot_face[i])]} face: {v['sr_knot'][i]:.3f}"
             )
         if np.isfinite(b.slope_n[i]):
             parts.append(
@@ -1060,8 +1056,8 @@ def reductions(r, i: int) -> list[dict]:
         col = r.checks["column"].capacity_n[i]
         add(
             "eccentricity and bow",
-            f"e1 {_mm(v['ecc1'][i])}, e2 {_mm(v['ecc2'][i])}, bow {_mm(v['bow1'][i])}, "
-            f"{_mm(v['bow2'][i])}",
+            f"e1 {q.length(v['ecc1'][i])}, e2 {q.length(v['ecc2'][i])}, bow {q.length(v['bow1'][i])}, "
+            f"{q.length(v['bow2'][i])}",
             ecc.capacity_n[i] / col,
             "NDS 2018 §3.9.2, §15.4.1",
         )
@@ -1105,7 +1101,7 @@ def working_lines(r, i: int) -> list:
         s.append(
             Step(
                 "d_eff = sqrt(12 I / A) per axis",
-                f"{_mm(v['d_eff1'][i])}, {_mm(v['d_eff2'][i])}",
+                f"{q.length(v['d_eff1'][i])}, {q.length(v['d_eff2'][i])}",
                 "mechanics; NDS 2018 §3.6.3 net section in Cp [M]",
             )
         )
@@ -1159,8 +1155,8 @@ def working_lines(r, i: int) -> list:
         s.append(
             Step(
                 "Eccentricity e1, e2; bow at mid-height",
-                f"{_mm(v['ecc1'][i])}, {_mm(v['ecc2'][i])}; "
-                f"{_mm(v['bow1'][i])}, {_mm(v['bow2'][i])}",
+                f"{q.length(v['ecc1'][i])}, {q.length(v['ecc2'][i])}; "
+                f"{q.length(v['bow1'][i])}, {q.length(v['bow2'][i])}",
                 "initially curved bar (Timoshenko & Gere ch. 1); judgement",
             )
         )

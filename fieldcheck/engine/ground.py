@@ -33,6 +33,7 @@ from functools import cache
 import numpy as np
 
 from fieldcheck.engine import loads, nds
+from fieldcheck.engine import quantities as q
 from fieldcheck.engine.batch import EC5, LRFD, PostBatch
 from fieldcheck.engine.blocks import filled
 from fieldcheck.engine.customary import LBF
@@ -313,10 +314,6 @@ def _summary(r: Rating, i: int, out: dict) -> None:
         out["bracing"] = br
 
 
-def _n(x: float) -> str:
-    return f"{x / 1000:.3f} kN ({x / LBF:,.0f} lbf)"
-
-
 def ground_steps(r: Rating, i: int) -> list[Step]:
     b, v = r.batch, r.values
     s: list[Step] = []
@@ -326,7 +323,7 @@ def ground_steps(r: Rating, i: int) -> list[Step]:
             Step(
                 f"Governing load combination (every combination rated for every check; this "
                 f"one gives the largest ratio of the governing check, {lc['factor_name']})",
-                f"{lc['name']}: {_n(b.load_n[i] * b.shared_by[i])}, {lc['factor_name']} = "
+                f"{lc['name']}: {q.force(b.load_n[i] * b.shared_by[i])}, {lc['factor_name']} = "
                 f"{lc['factor']}",
                 lc["clause"],
             )
@@ -335,7 +332,7 @@ def ground_steps(r: Rating, i: int) -> list[Step]:
         s.append(
             Step(
                 "Load per post, shared equally under a stiff cap",
-                f"1/{int(b.shared_by[i])}: {_n(b.load_n[i])}",
+                f"1/{int(b.shared_by[i])}: {q.force(b.load_n[i])}",
                 "judgement",
             )
         )
@@ -363,15 +360,19 @@ def ground_steps(r: Rating, i: int) -> list[Step]:
         s.append(Step("Soil: presumptive allowable pressure", qtxt, "IBC 2012 Table 1806.2"))
         if g["capacity_lbf"] is not None:
             s.append(
-                Step("Soil capacity q x A_eff", _n(v["soil_capacity"][i]), "IBC 2012 Table 1806.2")
+                Step(
+                    "Soil capacity q x A_eff",
+                    q.force(v["soil_capacity"][i]),
+                    "IBC 2012 Table 1806.2",
+                )
             )
     br = bracing_summary(r, i)
     if br is not None and br["total_lbf"] is not None:
         s.append(
             Step(
                 "Bracing must carry (minimum + out-of-plumb thrust)",
-                f"{_n(v['lateral_min_n'][i])} + {_n(v['lateral_thrust_n'][i])} = "
-                f"{_n(v['lateral_n'][i])}",
+                f"{q.force(v['lateral_min_n'][i])} + {q.force(v['lateral_thrust_n'][i])} = "
+                f"{q.force(v['lateral_n'][i])}",
                 br["clause"] + "; statics P x lean / h",
             )
         )

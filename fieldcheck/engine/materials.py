@@ -9,7 +9,6 @@ from __future__ import annotations
 
 from functools import cache
 
-
 from fieldcheck.engine.customary import PSI
 from fieldcheck.engine.refdata import table
 

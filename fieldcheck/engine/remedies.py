@@ -40,6 +40,7 @@ from functools import cache
 import numpy as np
 
 from fieldcheck.engine import materials, nds, sections
+from fieldcheck.engine import quantities as q
 from fieldcheck.engine.batch import DIMENSION, EC5, LRFD, RECT, TIMBER, PostBatch, make_batch
 from fieldcheck.engine.customary import IN, LBF
 from fieldcheck.engine.rating import FLAGS, rate
@@ -218,32 +219,32 @@ class Remedies:
         resets = False
         if k == BRACE_WEAK:
             desc = (
-                f"Brace at mid-height, {_mm(v1)} from the bottom, across the thin side; tie the "
+                f"Brace at mid-height, {q.length(v1, 0, 1)} from the bottom, across the thin side; tie the "
                 "brace to "
                 "something that cannot move (it must carry at least 2 % of the load, "
-                f"{_lbf(0.02 * load)})."
+                f"{q.force(0.02 * load, 2)})."
             )
             rec = {"brace_weak": f"{v1:.0f} mm"}
         elif k == BRACE_BOTH:
             desc = (
-                f"Brace at mid-height, {_mm(v1)} from the bottom, in both directions; each brace "
+                f"Brace at mid-height, {q.length(v1, 0, 1)} from the bottom, in both directions; each brace "
                 "tied to "
                 "something that cannot move, carrying at least 2 % of the load "
-                f"({_lbf(0.02 * load)})."
+                f"({q.force(0.02 * load, 2)})."
             )
             rec = {"brace_strong": f"{v1:.0f} mm"}
             if v2:
                 rec["brace_weak"] = f"{v1:.0f} mm"
         elif k == PLATE:
             desc = (
-                f"Steel bearing plates at the cap and the sill, {_mm(v1)} long along their "
+                f"Steel bearing plates at the cap and the sill, {q.length(v1, 0, 1)} long along their "
                 "grain, at least "
                 "1/2 in thick (judgement: an engineer confirms the plate)."
             )
             rec = {"plate": f"{v1:.0f} mm", "end_plate": "yes"}
         elif k == PAD:
             desc = (
-                f"A pad or mudsill {_mm(v1)} square and at least {_mm(v2)} thick (the load "
+                f"A pad or mudsill {q.length(v1, 0, 1)} square and at least {q.length(v2, 0, 1)} thick (the load "
                 "spreads 1:1 "
                 "through it, judgement) on the same soil, prepared and level."
             )
@@ -289,14 +290,6 @@ class Remedies:
             rec,
             resets,
         )
-
-
-def _mm(x: float) -> str:
-    return f"{x:.0f} mm ({x / IN:.1f} in)"
-
-
-def _lbf(x: float) -> str:
-    return f"{x / 1000:.2f} kN ({x / LBF:,.0f} lbf)"
 
 
 def remedies(batch: PostBatch, rating: Rating | None = None) -> Remedies:

@@ -9,8 +9,9 @@ from __future__ import annotations
 
 import numpy as np
 
+from fieldcheck.engine import quantities as q
 from fieldcheck.engine.batch import EC5, LRFD, METHOD_NAMES, PRODUCT_NAMES
-from fieldcheck.engine.customary import IN, LBF, PSI
+from fieldcheck.engine.customary import IN
 from fieldcheck.engine.ec5_rating import ec5_steps
 from fieldcheck.engine.loads import GIVEN
 from fieldcheck.engine.restraint import MODE_KEYS, MODES
@@ -31,18 +32,6 @@ def mode_label(i_mode: int) -> str:
     return f"NDS case ({key}) {MODES[key][0]}"
 
 
-def _mpa(x: float) -> str:
-    return f"{x:.3f} MPa ({x / PSI:,.1f} psi)"
-
-
-def _n(x: float) -> str:
-    return f"{x / 1000:.3f} kN ({x / LBF:,.0f} lbf)"
-
-
-def _mm(x: float) -> str:
-    return f"{x:.1f} mm ({x / IN:.3f} in)"
-
-
 def column_steps(r: Rating, i: int) -> list[Step]:
     """The method, the section, the material and the column's own steps (NDS or EC5)."""
     b, v = r.batch, r.values
@@ -53,7 +42,7 @@ def column_steps(r: Rating, i: int) -> list[Step]:
     add(
         Step(
             "Section d1 x d2 (measured or dressed)",
-            f"{_mm(b.d1_mm[i])} x {_mm(b.d2_mm[i])}",
+            f"{q.length(b.d1_mm[i])} x {q.length(b.d2_mm[i])}",
             "NDS 2018 §3.7.1.3",
         )
     )
@@ -69,8 +58,8 @@ def column_steps(r: Rating, i: int) -> list[Step]:
         s.extend(ec5_steps(r, i))
     else:
         fc = b.fc_mpa[i]
-        add(Step("Reference Fc", _mpa(fc), "NDS Supplement"))
-        add(Step("Reference Emin", _mpa(b.emin_mpa[i]), "NDS Supplement"))
+        add(Step("Reference Fc", q.stress(fc), "NDS Supplement"))
+        add(Step("Reference Emin", q.stress(b.emin_mpa[i]), "NDS Supplement"))
         tf = "KF phi lambda" if method == LRFD else "CD"
         add(
             Step(
@@ -80,11 +69,11 @@ def column_steps(r: Rating, i: int) -> list[Step]:
                 "NDS 2018 Table 4.3.1; §2.3.2; Supplement Table 4A",
             )
         )
-        add(Step("Fc* (all factors but Cp)", _mpa(v["fc_star"][i]), "NDS 2018 §3.7.1"))
+        add(Step("Fc* (all factors but Cp)", q.stress(v["fc_star"][i]), "NDS 2018 §3.7.1"))
         add(
             Step(
                 "Emin' = Emin x CM x Ct x Ci" + (" x KF phi" if method == LRFD else ""),
-                _mpa(v["emin_prime"][i]),
+                q.stress(v["emin_prime"][i]),
                 "NDS 2018 Table 4.3.1 (CD never applies to Emin)",
             )
         )
@@ -93,7 +82,7 @@ def column_steps(r: Rating, i: int) -> list[Step]:
             add(
                 Step(
                     f"Axis {ax}: Ke, unbraced length lu",
-                    f"Ke = {v[f'ke{ax}'][i]:.4g}, lu = {_mm(v[f'lu{ax}'][i])}",
+                    f"Ke = {v[f'ke{ax}'][i]:.4g}, lu = {q.length(v[f'lu{ax}'][i])}",
                     "NDS 2018 §3.7.1.2, Appendix G",
                 )
             )
@@ -101,7 +90,7 @@ def column_steps(r: Rating, i: int) -> list[Step]:
             add(
                 Step(
                     f"Axis {ax}: FcE = 0.822 Emin' / (le/d)^2",
-                    _mpa(v[f"fce{ax}"][i]),
+                    q.stress(v[f"fce{ax}"][i]),
                     "NDS 2018 §3.7.1",
                 )
             )
@@ -120,7 +109,7 @@ def column_steps(r: Rating, i: int) -> list[Step]:
                 "NDS 2018 §3.7.1",
             )
         )
-        add(Step("Fc' = Fc* x Cp", _mpa(v["fc_star"][i] * v["cp"][i]), "NDS 2018 §3.7.1"))
+        add(Step("Fc' = Fc* x Cp", q.stress(v["fc_star"][i] * v["cp"][i]), "NDS 2018 §3.7.1"))
         if b.knowledge[i] < 1:
             add(
                 Step(
@@ -172,18 +161,18 @@ def closing_steps(r: Rating, i: int) -> list[Step]:
             ""
             if np.isnan(ratio)
             else f", ratio {ratio:.3f} under {combo} ({fname} {factor:.3g}, demand "
-            f"{_n(c.demand_n[i])})"
+            f"{q.force(c.demand_n[i])})"
         )
         # every ASCE 7 combination is rated for every check; the largest ratio is kept
         given = combo == GIVEN
         clause = c.clause + ("" if given else "; ASCE 7 §2.4.1 / §2.3.1, NDS 2018 §2.3.2")
-        add(Step(f"Check: {c.label}", f"capacity {_n(cap)}{rtxt}", clause))
+        add(Step(f"Check: {c.label}", f"capacity {q.force(cap)}{rtxt}", clause))
     add(Step("Governing check", r.governing_name(i), ""))
     if not np.isnan(r.ratio[i]):
         add(
             Step(
                 "Demand / capacity",
-                f"{_n(r.demand_n[i])} / {_n(r.capacity_n[i])} = {r.ratio[i]:.3f}",
+                f"{q.force(r.demand_n[i])} / {q.force(r.capacity_n[i])} = {r.ratio[i]:.3f}",
                 "",
             )
         )
