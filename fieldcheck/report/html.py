@@ -513,9 +513,22 @@ def _checks(d: ReportData, p: PostEntry) -> str:
             f"<tr><td>{e(c.label)}{mark}</td>"
             f"<td class='num'>{e(format_force(cap, u))}</td>"
             f"<td class='num'>{e(format_force(float(c.demand_n[j]), u))}</td>"
-            f"<td class='num'>{e(ratio_text(ratio))}</td><td>{e(c.clause)}</td></tr>"
+            f"<td class='num'>{e(ratio_text(ratio))}</td><td>{e(_combination(r, name, j))}</td>"
+            f"<td>{e(c.clause)}</td></tr>"
         )
-    return table(["Check", "num:Capacity", "num:Demand", "num:Ratio", "Clause"], "".join(rows))
+    return table(
+        ["Check", "num:Capacity", "num:Demand", "num:Ratio", "Load combination", "Clause"],
+        "".join(rows),
+    )
+
+
+def _combination(r, name: str, j: int) -> str:
+    """The load combination that governs check ``name`` of post j, with its duration factor."""
+    fn = getattr(r, "check_combination", None)
+    if fn is None:
+        return ""
+    combo, factor = fn(name, j)
+    return f"{combo} ({sig(factor, 3)})" if math.isfinite(factor) else combo
 
 
 def _remedies(d: ReportData, p: PostEntry) -> str:
@@ -706,7 +719,8 @@ def _post(d: ReportData, p: PostEntry) -> str:
         f"{e(format_force(dem, u)) if math.isfinite(dem) else 'no load given'}</td></tr>"
         f'<tr><th>Demand / capacity</th><td data-k="ratio" data-post="{mid}">'
         f"{e(ratio_text(float(r.ratio[j])))}</td></tr>"
-        f"<tr><th>Governing check</th><td>{e(check_label(r, r.governing_name(j)))}</td></tr>"
+        f"<tr><th>Governing check</th><td>{e(check_label(r, r.governing_name(j)))}; "
+        f"{e(_combination(r, r.governing_name(j), j))}</td></tr>"
         f"<tr><th>Action</th><td>{badge(p.action)} {e(ACTION_TEXT[p.action])}</td></tr>"
         f"<tr><th>Due</th><td>{e(due_text(p))}</td></tr>" + _states_rows(d, p)
     )

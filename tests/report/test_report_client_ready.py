@@ -191,3 +191,17 @@ def test_review_and_remedy_states_are_shown(demo_log):
     s4 = out[out.index(f'id="m-{posts["S4"].member_id}"') :]
     assert "proposed: add a second shore beside it" in s4[: s4.index("</table>")]
     assert "tester" not in out[out.index("</style>") :]  # the reviewer's login is not shown
+
+
+def test_each_check_shows_its_governing_load_combination(demo_log):
+    posts = demo_log.posts()
+    r = rate(parse_records([p.record for p in posts]).batch)
+    out = render_report(demo_log)
+    j = [p.tag for p in posts].index("S4")
+    sec = out[out.index(f'id="m-{posts[j].member_id}"') :]
+    checks = sec[sec.index("<h3>Checks</h3>") : sec.index("</table>", sec.index("<h3>Checks</h3>"))]
+    assert "Load combination" in checks
+    for name, c in r.checks.items():
+        if c.capacity_n[j] == c.capacity_n[j]:  # made for this post
+            combo, _ = r.check_combination(name, j)
+            assert combo in checks, name
