@@ -16,6 +16,7 @@ drawn.
 
 from __future__ import annotations
 
+import asyncio
 import contextlib
 import math
 from typing import Any
@@ -121,6 +122,7 @@ class PostEditor(Screen[None]):
         self.draft_restored = False
         self.generation = 0
         self._full_timer: Any = None
+        self._writing = asyncio.Lock()  # one save at a time; leaving waits for it
         self._msg_boxes: dict[str, Static] = {}  # column -> its message line, once mounted
         self._detail_stale: bool | None = None  # stale state when the detail panel was drawn
 
@@ -658,6 +660,12 @@ class PostEditor(Screen[None]):
 
     # -- save, undo, leave, remedies ---------------------------------------------------------
     async def save(self, quiet: bool = False) -> bool:
+        """Save the post (a new revision); a second save waits for the first, so a quick
+        ctrl+s ctrl+s makes one revision, and leaving waits for a save in flight."""
+        async with self._writing:
+            return await self._save(quiet)
+
+    async def _save(self, quiet: bool) -> bool:
         focused = self.focused
         if isinstance(focused, FieldInput) and not isinstance(focused, DefectPicker):
             focused.complete()  # "s" for seven-days, as when leaving the field
@@ -866,7 +874,9 @@ class PostEditor(Screen[None]):
     def _remedy_chosen(self) -> None:
         self.action_propose_remedy()
 
-    def action_leave(self) -> None:
+    async def action_leave(self) -> None:
+        async with self._writing:  # a save in flight ends first: then "unsaved" is true
+            pass
         if not self.dirty:
             if self.app.drafts.pop(self.draft_key, None) is not None:  # type: ignore[attr-defined]
                 self.app.save_drafts()  # type: ignore[attr-defined]

@@ -23,7 +23,7 @@ from textual.suggester import SuggestFromList
 from textual.widget import Widget
 from textual.widgets import Collapsible, Input, Label, Static
 
-LABEL_WIDTH = 15  # app.tcss .field-name width: every label fits (a test checks)
+LABEL_WIDTH = 15  # the longest label; app.tcss gives .field-name one column more (a gap)
 
 # section id -> (title, registry groups it takes leftovers from, common fields, more fields)
 SECTIONS: tuple[tuple[str, str, tuple[str, ...], tuple[str, ...], tuple[str, ...]], ...] = (
@@ -233,7 +233,7 @@ class FieldInput(Input):
                 if release is not None:
                     release()
             return
-        await super()._on_key(event)
+        # other keys: Textual calls Input._on_key itself next (handlers run along the MRO)
 
     def _watch_value(self, value: str) -> None:
         self.set_reactive(Widget.virtual_size, Size(self.content_width, 1))

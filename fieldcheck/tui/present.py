@@ -237,10 +237,10 @@ def detail_lines(summary: dict[str, Any] | None) -> list[str]:
         return []
     lines = []
     if summary.get("action_text"):
-        lines.append(escape(summary["action_text"]))
+        lines.append(escape(plain(summary["action_text"])))
     comb = summary.get("load_combination")
     if isinstance(comb, dict) and comb.get("name"):
-        lines.append(f"Load case: {escape(comb['name'])}")
+        lines.append(f"Load case: {escape(plain(comb['name']))}")
     warnings = summary.get("warnings") or []
     if warnings:
         lines.append(f"[b]Warnings ({len(warnings)})[/b]")
@@ -252,7 +252,8 @@ def plain(text: str) -> str:
     """Text without command-line syntax: `--rain-duration` -> "rain duration"."""
     import re
 
-    return re.sub(r"--([a-z][a-z0-9-]*)", lambda m: m.group(1).replace("-", " "), str(text))
+    text = re.sub(r"\(--([a-z][a-z0-9-]*)\)", lambda m: "(" + m.group(1) + " field)", str(text))
+    return re.sub(r"--([a-z][a-z0-9-]*)", lambda m: m.group(1).replace("-", " "), text)
 
 
 def memory_note(label: str, clause: str, record: dict[str, str]) -> str:
