@@ -64,9 +64,20 @@ def test_working_values_keep_three_or_four_significant_figures():
 
 
 def test_from_memory_is_said_in_the_working():
-    # data/nds_reference_values.csv: status memory for every row held today
+    from fieldcheck.engine.refdata import table
+
+    rows = table("nds_reference_values")  # its status column: read, secondary or memory
+    for status, note in (("memory", " (from memory)"), ("secondary", "")):
+        row = next(r for r in rows if r["status"] == status)
+        rec = {"species": row["species"], "grade": row["grade"]}
+        # every row of that species and grade shares the status (both categories)
+        if {
+            r["status"]
+            for r in rows
+            if (r["species"], r["grade"]) == (row["species"], row["grade"])
+        } == {status}:
+            assert present.memory_note("Reference Fc", "NDS Supplement", rec) == note
     rec = {"species": "douglas-fir-larch", "grade": "no2"}
-    assert present.memory_note("Reference Fc", "NDS Supplement", rec) == " (from memory)"
     assert present.memory_note("d_eff", "NDS 2018 §3.6.3 [M]", rec) == " (from memory)"
     assert present.memory_note("le/d", "NDS 2018 §3.7.1.3", rec) == ""
 
