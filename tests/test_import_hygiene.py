@@ -20,6 +20,7 @@ from __future__ import annotations
 import ast
 import subprocess
 import sys
+from functools import cache
 from pathlib import Path
 
 import pytest
@@ -77,6 +78,7 @@ def _resolve(importer: str, node: ast.ImportFrom) -> str:
     return ".".join(base + ([node.module] if node.module else []))
 
 
+@cache
 def _imports(module: str) -> list[tuple[str, list[str], int]]:
     """(imported module, names imported from it, line) for every import of ours in a module."""
     tree = ast.parse(MODULES[module].read_text(encoding="utf-8"))
@@ -111,6 +113,7 @@ def _ours(name: str) -> bool:
     return name == ROOT or name.startswith(ROOT + ".")
 
 
+@cache
 def _is_command(module: str) -> bool:
     """A subcommand module: it defines run(args) (helpers such as log_option do not)."""
     if not module.startswith("fieldcheck.commands.") or module not in MODULES:
