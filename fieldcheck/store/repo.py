@@ -21,7 +21,6 @@ from pathlib import Path
 
 from sqlite_utils import Database
 
-from fieldcheck.records.columns import COLUMNS
 from fieldcheck.store import rated
 from fieldcheck.store.connection import APPLICATION_ID, LogError, connect, damaged, pragma
 from fieldcheck.store.paths import default_log_path
@@ -732,7 +731,7 @@ class Log:
     @staticmethod
     def record_columns() -> tuple[str, ...]:
         """Every record column the engine rates, in the registry's order."""
-        return tuple(COLUMNS)
+        return tuple(_registry_columns())
 
     def rating_for(self, observation_id: str) -> StoredRating | None:
         """The latest stored rating of a revision, exactly as it was stored."""
@@ -1492,6 +1491,8 @@ def _default_author() -> str:
 
 def _registry_columns() -> list[str]:
     """Record columns in the registry's order (fieldcheck.records.columns)."""
+    from fieldcheck.records.columns import COLUMNS  # here: opening a log loads no records layer
+
     return list(COLUMNS)
 
 
