@@ -219,7 +219,9 @@ class FieldcheckApp(App[None]):
     def action_sync(self) -> None:
         from fieldcheck.tui.dialogs import SyncDialog
 
-        self.push_screen(SyncDialog(self.office_path))
+        # the office view syncs its mirror with the hub it was opened on
+        hub = str(self.store.db) if self.store.office else ""
+        self.push_screen(SyncDialog(self.office_path or hub))
 
     def action_report(self) -> None:
         from fieldcheck.tui.dialogs import ReportDialog

@@ -359,7 +359,7 @@ class SyncDialog(ProgressDialog):
         self.office_path = office_path
 
     def compose_inputs(self) -> ComposeResult:
-        yield Label("Office log or folder (Enter starts, Esc closes):")
+        yield Label("Office log, folder or postgresql:// hub (Enter starts, Esc closes):")
         yield Input(self.office_path, placeholder="e.g. /mnt/office/survey.fieldcheck", id="office")
 
     def on_mount(self) -> None:
@@ -386,7 +386,8 @@ class SyncDialog(ProgressDialog):
         t0 = time.perf_counter()
         try:
             result = await self.app.store.call(  # type: ignore[attr-defined]
-                lambda log: sync(log, Path(path), progress=self.progress)
+                # the text as typed: a postgresql:// URL must not become a Path ("postgresql:/")
+                lambda log: sync(log, path, progress=self.progress)
             )
         except Exception as exc:
             self.finish(f"Sync failed: {exc}", ok=False)

@@ -4,8 +4,11 @@ post editor shows "reviewed by …, on …" with the engineer's instruction."""
 
 from __future__ import annotations
 
+from pathlib import Path
+
+import psycopg
 import pytest
-from textual.widgets import DataTable, Static
+from textual.widgets import DataTable, Input, Static
 
 from fieldcheck.store import Log
 from fieldcheck.store.sync import sync
@@ -47,6 +50,19 @@ async def test_office_view_reviews_reach_the_field(tmp_path, hub_url, shore, mon
         # the reviewed post moves below those still waiting; the cursor stays on the next one
         assert table.get_cell(weak.member_id, "review") == "remedy required"
         assert table.coordinate_to_cell_key((0, 0)).row_key.value != weak.member_id
+        # F9 syncs the office view with the hub it was opened on (the URL, never a folder)
+        await pilot.press("f9")
+        await _settle(app, pilot)
+        app.screen.query_one("#office", Input).focus()
+        await pilot.press("enter")
+        await _settle(app, pilot)
+        await pilot.pause(0.5)
+        await _settle(app, pilot)
+        with psycopg.connect(hub_url) as conn:
+            kinds = [r[0] for r in conn.execute("SELECT kind FROM fieldcheck.reviews")]
+        assert sorted(kinds) == ["note", "require-remedy"]
+        assert not any(p.name.startswith("postgres") for p in Path.cwd().iterdir())
+        await pilot.press("escape")
     # quitting sent the review to the hub; the inspector's next sync takes it back
     with Log.open(field) as log:
         assert sync(log, hub_url).received.get("reviews") == 1
