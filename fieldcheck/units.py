@@ -346,9 +346,16 @@ def _cache_folder() -> Any:
 
 
 def _factors() -> dict[tuple[str, str], tuple[float, float]]:
-    """(kind, pint expression) -> (scale, offset) into the internal unit, from pint."""
+    """(kind, pint expression) -> (scale, offset) into the internal unit, from pint; kept in
+    the user's cache folder (``_stored_factors``), so a later run parses without importing
+    pint at all."""
     global _FACTORS
     if _FACTORS is None:
+        stored = _stored_factors()
+        if stored is not None:
+            with _LOCK:
+                _FACTORS = _FACTORS or stored
+            return _FACTORS
         ureg = registry()
         with _LOCK:
             if _FACTORS is None:
@@ -363,7 +370,84 @@ def _factors() -> dict[tuple[str, str], tuple[float, float]]:
                         one = ureg.Quantity(1.0, unit).m_as(target)
                         table[(kind.name, expr)] = (one - zero, zero)
                 _FACTORS = table
+                _store_factors(table)
     return _FACTORS
+
+
+def _factors_file() -> Any:
+    """The stored factor table for this units table and this pint version (a change of either
+    names another file), or None when there is no usable cache folder."""
+    import hashlib
+    from importlib import metadata
+
+    folder = _cache_folder()
+    if folder is None:
+        return None
+    try:
+        pint_version = metadata.version("pint")
+    except metadata.PackageNotFoundError:
+        pint_version = "unknown"
+    spec = sorted(
+        (k.name, k.target, sorted(set(k.exact.values()) | set(k.anycase.values())))
+        for k in _KINDS.values()
+    )
+    key = hashlib.sha256(repr((pint_version, spec)).encode()).hexdigest()[:24]
+    return folder / f"unit-factors-{key}.json"
+
+
+def _factors_digest(rows: list) -> str:
+    import hashlib
+    import json
+
+    return hashlib.sha256(json.dumps(rows, separators=(",", ":")).encode()).hexdigest()
+
+
+def _stored_factors() -> dict[tuple[str, str], tuple[float, float]] | None:
+    """The stored table when it is whole: every expression of the units table present, finite
+    numbers, a positive scale and its checksum right; otherwise None (pint rebuilds it). A
+    cache never makes a command fail."""
+    import json
+
+    try:
+        path = _factors_file()
+        if path is None or not path.is_file():
+            return None
+        data = json.loads(path.read_text(encoding="utf-8"))
+        rows = data["factors"]
+        if data.get("sha256") != _factors_digest(rows):
+            return None
+        table = {(str(k), str(e)): (float(a), float(b)) for k, e, a, b in rows}
+    except (OSError, ValueError, TypeError, KeyError):
+        return None
+    want = {
+        (k.name, e)
+        for k in _KINDS.values()
+        for e in set(k.exact.values()) | set(k.anycase.values())
+    }
+    if set(table) != want or not all(
+        math.isfinite(a) and math.isfinite(b) and a > 0 for a, b in table.values()
+    ):
+        return None
+    return table
+
+
+def _store_factors(table: dict[tuple[str, str], tuple[float, float]]) -> None:
+    """Write the table beside pint's own cache (atomically; any failure only means no cache)."""
+    import json
+    import os
+
+    try:
+        path = _factors_file()
+        if path is None:
+            return
+        rows = [[k, e, a, b] for (k, e), (a, b) in sorted(table.items())]
+        tmp = path.with_name(f".{path.name}.{os.getpid()}.part")
+        tmp.write_text(
+            json.dumps({"factors": rows, "sha256": _factors_digest(rows)}), encoding="utf-8"
+        )
+        os.replace(tmp, path)
+    except (OSError, ValueError):
+        return
 
 
 def _factor(kind: str, expr: str) -> tuple[float, float]:
