@@ -23,6 +23,7 @@ from html import escape
 from pathlib import Path
 
 from fieldcheck.engine.cautions import CAUTIONS
+from fieldcheck.engine.loads import combination_name
 from fieldcheck.engine.rating import detail
 from fieldcheck.engine.result import ACTION_TEXT, ACTIONS, DUE_DAYS
 from fieldcheck.report.model import PostEntry, ReportData, ReportInfo, gather, visit_date
@@ -523,12 +524,20 @@ def _checks(d: ReportData, p: PostEntry) -> str:
 
 
 def _combination(r, name: str, j: int) -> str:
-    """The load combination that governs check ``name`` of post j, with its duration factor."""
-    fn = getattr(r, "check_combination", None)
-    if fn is None:
+    """The load combination that governs check ``name`` of post j, with its duration factor
+    (Rating.check_combination; the batch's duration factors worked out once per rating)."""
+    if not hasattr(r, "check_combination"):
         return ""
-    combo, factor = fn(name, j)
-    return f"{combo} ({sig(factor, 3)})" if math.isfinite(factor) else combo
+    c = r.checks[name]
+    if c.factor is None:
+        cache = r.__dict__.setdefault("_report_cache", {})
+        if "dfac" not in cache:
+            cache["dfac"] = r.duration_factor()
+        combo = int((r.batch.combo if c.combo is None else c.combo)[j])
+        combo_name, factor = combination_name(combo), float(cache["dfac"][j])
+    else:
+        combo_name, factor = r.check_combination(name, j)
+    return f"{combo_name} ({sig(factor, 3)})" if math.isfinite(factor) else combo_name
 
 
 def _remedies(d: ReportData, p: PostEntry) -> str:

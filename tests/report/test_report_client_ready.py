@@ -205,3 +205,15 @@ def test_each_check_shows_its_governing_load_combination(demo_log):
         if c.capacity_n[j] == c.capacity_n[j]:  # made for this post
             combo, _ = r.check_combination(name, j)
             assert combo in checks, name
+
+
+def test_the_reports_combination_is_the_engines(demo_log):
+    from fieldcheck.report.html import _combination
+    from fieldcheck.report.notation import sig
+
+    posts = demo_log.posts()
+    r = rate(parse_records([p.record for p in posts]).batch)
+    for j in range(r.n):
+        for name in r.checks:
+            combo, factor = r.check_combination(name, j)
+            assert _combination(r, name, j) == f"{combo} ({sig(factor, 3)})"
