@@ -31,7 +31,14 @@ class _Version(argparse.Action):
 
 class _Parser(argparse.ArgumentParser):
     def error(self, message: str) -> None:  # one sentence, exit 2 (argparse's own code too)
-        self.exit(2, f"fieldcheck: {message}. See `{self.prog} --help`.\n")
+        self.exit(2, f"fieldcheck: {_clean(message)}. See `{self.prog} --help`.\n")
+
+
+def _clean(message: object) -> str:
+    """One line, values shortened, terminal escapes and control characters removed."""
+    from fieldcheck import units
+
+    return units.clean_message(str(message))
 
 
 def build_parser(only: str | None = None) -> argparse.ArgumentParser:
@@ -76,14 +83,17 @@ def main(argv: list[str] | None = None) -> int:
             from fieldcheck.commands.about import default_units
 
             args.units = default_units()
+        from fieldcheck import units
+
+        units.set_message_system(getattr(args, "units_here", None) or args.units)
         if args.command is None:
             return _open_interface(args)
         return int(args._run(args) or 0)
     except UsageError as exc:
-        print(f"fieldcheck: {exc}", file=sys.stderr)
+        print(f"fieldcheck: {_clean(exc)}", file=sys.stderr)
         return 2
     except ValueError as exc:  # bad input from the engine or the unit parser
-        print(f"fieldcheck: {exc}", file=sys.stderr)
+        print(f"fieldcheck: {_clean(exc)}", file=sys.stderr)
         return 2
     except KeyboardInterrupt:
         return 130
@@ -95,6 +105,15 @@ def main(argv: list[str] | None = None) -> int:
             return _broken_pipe()
         print(f"fieldcheck: {store_error_sentence(exc, 'a file')}", file=sys.stderr)
         return 2
+
+
+def _config_units() -> str | None:
+    try:
+        from fieldcheck.config import load
+
+        return load().units
+    except Exception:  # a broken config file is reported by the command itself
+        return None
 
 
 def _broken_pipe() -> int:

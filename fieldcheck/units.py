@@ -660,14 +660,43 @@ def _in_range_example(kind: _Kind, lo: float | None, hi: float | None) -> str | 
     )
 
 
+MESSAGE_SYSTEM = ["us"]  # the unit system messages give ranges in (set_message_system)
+
+
+def set_message_system(system: str | None) -> None:
+    """Give ranges in messages in the user's unit system ("us" or "metric")."""
+    if system in ("us", "metric"):
+        MESSAGE_SYSTEM[0] = system
+
+
+def _in_units(kind: _Kind, value: float) -> str:
+    """A value of ``kind`` (internal unit) in the message system's units."""
+    system = MESSAGE_SYSTEM[0]
+    fmt = {
+        "length": format_length,
+        "force": format_force,
+        "stress": format_stress,
+        "area_load": format_area_load,
+    }.get(kind.name)
+    if fmt is None or not math.isfinite(value) or (system == "metric" and kind.name == "length"):
+        return f"{_num(value, sig=6)} {kind.si}"
+    if kind.name == "length" and 0 < abs(value) < 0.1 * IN_MM:  # below what format_length shows
+        return f"{_num(value / IN_MM, sig=2)} in"
+    return fmt(value, system)
+
+
 def _range_text(kind: _Kind, lo: float | None, hi: float | None) -> str:
-    """The accepted range in the internal unit, e.g. '300 to 30000 mm'; '' when open."""
+    """The accepted range in the user's units, e.g. '4 in to 65\' 7-3/8"'; '' when open."""
     if lo is not None and hi is not None:
-        return f"{_num(lo, sig=6)} to {_num(hi, sig=6)} {kind.si}"
+        a, b = _in_units(kind, lo), _in_units(kind, hi)
+        unit = f" {kind.si}"
+        if a.endswith(unit) and b.endswith(unit):  # one unit for both: '5 to 40 %'
+            a = a.removesuffix(unit)
+        return f"{a} to {b}"
     if lo is not None:
-        return f"at least {_num(lo, sig=6)} {kind.si}"
+        return f"at least {_in_units(kind, lo)}"
     if hi is not None:
-        return f"at most {_num(hi, sig=6)} {kind.si}"
+        return f"at most {_in_units(kind, hi)}"
     return ""
 
 
@@ -702,7 +731,8 @@ def _check_value(
             kind,
             field,
             text,
-            f"{what}is {_num(value, sig=4)} {kind.si}, outside the accepted range ({r})",
+            f"{what}is {_in_units(kind, value) if abs(value) < 1e9 else _num(value, sig=4)}"
+            f"{'' if abs(value) < 1e9 else ' ' + kind.si}, outside the accepted range ({r})",
             suggestion=_in_range_example(kind, lo, hi),
         )
     return value
@@ -785,8 +815,42 @@ def parse_stiffness(
 def parse_percent(
     text: str, field: str = "percent", *, lo: float | None = 0.0, hi: float | None = 200.0
 ) -> float:
-    """Percent from `24%`, `24 %` or a bare `24`; accepted range ``lo``..``hi`` (inclusive)."""
+    """Percent from `24%`, `24 %` or a bare `24`; accepted range ``lo``..``hi`` (inclusive). A
+    bare number between 0 and 1 (``0.24``) is refused: it reads as a fraction written for 24 %
+    as often as a true 0.24 %, and the two rate differently (wet or dry)."""
+    if isinstance(text, str):
+        bare = re.fullmatch(r"\s*(0?\.\d+)\s*", text)
+        if bare and 0 < float(bare.group(1)) < 1:
+            pct = _num(float(bare.group(1)) * 100)
+            raise ValueError(
+                f"{field}: '{text.strip()}' is ambiguous (a fraction or a percent?); write "
+                f"{pct}% for {pct} percent, or {text.strip()}% if you mean less than one percent."
+            )
     return _parse_checked("percent", text, field, lo=lo, hi=hi, positive=False, nonnegative=False)
+
+
+_ESCAPES = re.compile(r"\x1b\[[0-?]*[ -/]*[@-~]|\x1b\][^\x07\x1b]*(\x07|\x1b\\)?|\x1b.?")
+QUOTE_MAX = 60  # characters of a typed value quoted back in a message
+
+
+def shown(text: str, limit: int = QUOTE_MAX) -> str:
+    """A typed value as a message may quote it: terminal escape codes and control characters
+    removed, at most ``limit`` characters (an ellipsis marks the cut)."""
+    t = _ESCAPES.sub("", str(text))
+    t = "".join(ch if ch.isprintable() else "?" for ch in t)
+    return t if len(t) <= limit else t[: limit - 1] + "…"
+
+
+def clean_message(message: str, text: str | None = None) -> str:
+    """A message safe to print: the typed value in it shortened (``shown``), escape codes and
+    control characters removed from the whole."""
+    if text is not None and len(text) > 0 and text != shown(text):
+        message = message.replace(text, shown(text))
+        message = message.replace(text.strip(), shown(text.strip()))
+    message = _ESCAPES.sub("", message)
+    long_quote = "'([^']{" + str(QUOTE_MAX + 1) + ",})'"
+    message = re.sub(long_quote, lambda m: f"'{shown(m[1])}'", message)
+    return shown(message, limit=1000)
 
 
 def parse_area(

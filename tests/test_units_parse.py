@@ -128,7 +128,14 @@ def test_length_range():
     with pytest.raises(UnitInputError) as err:
         u.parse_length("500 ft", "height", lo=300.0, hi=30000.0)
     assert str(err.value).startswith("height: ")
-    assert "300 to 30000 mm" in str(err.value)
+    assert "11.81 in to 98' 5-1/8\"" in str(err.value)  # the range in the user's units (US)
+    u.set_message_system("metric")
+    try:
+        with pytest.raises(UnitInputError) as err:
+            u.parse_length("501 ft", "height", lo=300.0, hi=30000.0)
+        assert "300 to 30000 mm" in str(err.value)
+    finally:
+        u.set_message_system("us")
 
 
 def test_non_text_refused():

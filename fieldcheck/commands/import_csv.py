@@ -84,7 +84,7 @@ def run(args: argparse.Namespace) -> int:
             return 0 if not result.errors else 1
         for err in result.errors:
             print(
-                f"fieldcheck: row {err.row + 1}, column {err.column}: {err.message}",
+                f"fieldcheck: row {err.row + 1}: {field_sentence(err.column, err.message)}",
                 file=sys.stderr,
             )
         bad = len({e.row for e in result.errors})

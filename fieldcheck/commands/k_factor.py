@@ -1,4 +1,4 @@
-"""`fieldcheck k-factor`: effective-length factor of a post with spring-restrained or braced ends."""
+"""`fieldcheck k-factor`: effective-length factor of a post with spring or braced ends."""
 
 from __future__ import annotations
 
@@ -8,10 +8,16 @@ import math
 
 DESCRIPTION = (
     "Effective-length factor K of a prismatic post whose ends are rotational springs, "
-    "R = k L / (E I) (0 for a pin, inf for full fixity), braced (both ends held sideways) or free to "
-    "sway at the top, with optional braces. K is solved numerically (exact stability functions). "
-    "Give a section, species and grade with --height to get the elastic critical load too."
+    "R = k L / (E I) (0 for a pin, inf for full fixity), braced (both ends held sideways) or "
+    "free to sway at the top, with optional braces. K is solved numerically (exact stability "
+    "functions). Give a section, species and grade with --height to get the elastic critical "
+    "load too."
 )
+
+
+MAX_BRACES = 20  # judgement: more braces on one post than any shore carries
+MIN_SEGMENT_MM = 25.0  # judgement: a brace within an inch of an end or another brace is that one
+MIN_SEGMENT_FRACTION = 0.01
 
 
 def _ratio(s: str) -> float:
@@ -77,17 +83,38 @@ def run(args: argparse.Namespace) -> int:
     height = (
         units.parse_length(args.height, "height", lo=100.0, hi=30_000.0) if args.height else None
     )
+    if len(args.brace_at) > MAX_BRACES:
+        raise UsageError(
+            f"brace-at: {len(args.brace_at)} braces given; give at most {MAX_BRACES} (a post "
+            "braced that closely is rated as held along its length: check its segments instead)."
+        )
+    if args.brace_at and height is None:
+        raise UsageError(
+            "brace-at: give the post's --height too, so the brace can be placed along it."
+        )
+    if args.brace_axis != "both" and not args.brace_at:
+        raise UsageError("brace-axis: says which axis the braces hold; give --brace-at too.")
+    if (args.size or args.section or args.species or args.grade) and height is None:
+        raise UsageError(
+            "height: the critical load needs the post's --height; give it, or leave out "
+            "--size, --section, --species and --grade."
+        )
+    if args.size and args.section:
+        raise UsageError("section: give --size (nominal) or --section (measured), not both.")
     braces = []
     for text in args.brace_at:
-        h = units.parse_length(text, "brace-at")
-        if height is None:
+        h = units.parse_length(text, "brace-at", lo=0.0, hi=30_000.0)
+        gap = max(MIN_SEGMENT_MM, MIN_SEGMENT_FRACTION * height)
+        if not gap <= h <= height - gap:
             raise UsageError(
-                "brace-at: give the post's --height too, so the brace can be placed along it."
+                f"brace-at: a brace at {units.format_length(h)} is not between the bottom and the "
+                f"top ({units.format_length(height)}) with at least {units.format_length(gap)} to "
+                "either end."
             )
-        if not 0 < h < height:
+        if any(abs(h - b * height) < gap for b in braces):
             raise UsageError(
-                f"brace-at: a brace at {units.format_length(h)} is not between the bottom and the top "
-                f"({units.format_length(height)})."
+                f"brace-at: two braces lie closer than {units.format_length(gap)} "
+                f"(at {units.format_length(h)}); give each brace once."
             )
         braces.append(h / height)
     frac = np.array([braces]) if braces else None
@@ -175,7 +202,8 @@ def _critical(args, height, k_axes) -> dict:
     b = parsed.batch
     d1, d2, e = float(b.d1_mm[0]), float(b.d2_mm[0]), float(b.e_mpa[0])
     i1, i2 = d2 * d1**3 / 12.0, d1 * d2**3 / 12.0
-    # Euler: P_cr = pi^2 E I / (K L)^2 (Timoshenko & Gere ch. 2), mean E x 1.03 shear-free (NDS App. D)
+    # Euler: P_cr = pi^2 E I / (K L)^2 (Timoshenko & Gere ch. 2); mean E x 1.03 shear-free
+    # (NDS App. D)
     p = [
         math.pi**2 * 1.03 * e * i / (k * height) ** 2 for i, k in zip((i1, i2), k_axes, strict=True)
     ]

@@ -108,9 +108,13 @@ def run(args: argparse.Namespace) -> int:
     rec = _record(args)
     parsed = parse_records([rec])
     if parsed.errors:
-        # one sentence for the first problem; the rest follow on their own lines
-        for err in parsed.errors:
-            print(f"fieldcheck: {err.message}", file=sys.stderr)
+        # one sentence: the first problem, and which other fields have one too
+        first, rest = parsed.errors[0], parsed.errors[1:]
+        more = ""
+        if rest:
+            names = ", ".join(dict.fromkeys(f"--{e.column.replace('_', '-')}" for e in rest))
+            more = f" Also to correct: {names}."
+        print(f"fieldcheck: {first.sentence()}{more}", file=sys.stderr)
         return 2
     from fieldcheck.engine.rating import rate
 
@@ -211,7 +215,7 @@ def _run_batch(args: argparse.Namespace) -> int:
         print(f"fieldcheck: {err}", file=sys.stderr)
     errors_by_row: dict[int, list[str]] = {}
     for err in parsed.errors:
-        errors_by_row.setdefault(err.row, []).append(f"{err.column}: {err.message}")
+        errors_by_row.setdefault(err.row, []).append(err.sentence())
 
     def write(out) -> None:
         w = csv.writer(out)

@@ -165,6 +165,17 @@ def reference_values(
     row = _rows().get((species, grade, category))
     if row is None:
         held = sorted({gr for (s, gr, c) in _rows() if s == species and c == category})
+        if not held:  # the species has no values at all for this size category
+            words = {
+                "dimension": "dimension sizes (2 to 4 in nominal thick)",
+                "timber": "timber sizes (5x5 and larger)",
+            }
+            cats = sorted({words.get(c, c) for (s, _, c) in _rows() if s == species})
+            raise ValueError(
+                f"grade: the tables hold no {species} values for {words.get(category, category)},"
+                f" the size given; {species} is held for {' and '.join(cats) or 'no sizes'}: "
+                "give such a size, or another species."
+            )
         raise ValueError(
             f"grade: {species} {grade} is not held for {category} sizes; held grades: "
             f"{', '.join(held)}."

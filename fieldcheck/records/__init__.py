@@ -10,6 +10,7 @@ errors are rated together in one engine pass.
 
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass, field
 from functools import lru_cache
 from typing import Any
@@ -43,7 +44,16 @@ class FieldError:
     message: str
 
     def __str__(self) -> str:
-        return f"row {self.row + 1}, column {self.column}: {self.message}"
+        return f"row {self.row + 1}: {self.sentence()}"
+
+    def sentence(self) -> str:
+        """The message named for its column once (never "height: height: ...")."""
+        return field_sentence(self.column, self.message)
+
+
+def field_sentence(column: str, message: str) -> str:
+    """``column: message``, unless the message already names the column (or a field) first."""
+    return message if re.match(r"^[a-z][a-z0-9_ -]{0,30}: ", message) else f"{column}: {message}"
 
 
 @dataclass
@@ -83,7 +93,7 @@ def parse_row(
         try:
             values[name] = _parse_cell(name, text)
         except ValueError as exc:
-            problems.append((name, str(exc)))
+            problems.append((name, own_field(name, str(exc), text)))
     if problems:
         return {}, {}, problems
     fields: dict[str, Any] = {}
@@ -96,6 +106,19 @@ def parse_row(
         except ValueError as exc:
             return {}, {}, [(getattr(build, "column", "input"), str(exc))]
     return fields, meta, []
+
+
+_PREFIX = re.compile(r"^(?:[a-z][a-z0-9_ -]{0,30}: )+")
+
+
+def own_field(name: str, message: str, text: str | None = None) -> str:
+    """A column's message as the user should read it: named for the column itself (a parser
+    shared by two columns names its own field, e.g. ply's nominal size said "size:"), once
+    (never "height: height:"), the typed value quoted short and without terminal escapes."""
+    from fieldcheck import units
+
+    body = _PREFIX.sub("", message, count=1)
+    return units.clean_message(f"{name}: {body}", text)
 
 
 def _rated_key(rec: dict[str, str]) -> tuple:

@@ -8,7 +8,13 @@ A new module of columns is listed here, once, with its builder.
 
 from __future__ import annotations
 
-from fieldcheck.records import condition_columns, ec5_columns, load_columns, spring_columns
+from fieldcheck.records import (
+    condition_columns,
+    contradictions,
+    ec5_columns,
+    load_columns,
+    spring_columns,
+)
 from fieldcheck.records.builders import (
     bearing_fields,
     end_fields,
@@ -33,6 +39,7 @@ COLUMNS: dict[str, Column] = {
 }
 
 BUILDERS = (
+    contradictions.contradiction_fields,  # first: inputs that contradict each other
     section_fields,
     height_fields,
     end_fields,

@@ -28,9 +28,14 @@ def parse_ratio(text: str, field: str) -> float:
         v = float(t)
     except ValueError:
         raise ValueError(
-            f"{field}: '{text}' is not a number; give R = k L / (E I) from 0 (pin) to inf (fixed), e.g. 2."
+            f"{field}: '{text}' is not a number; give R = k L / (E I) from 0 (pin) to inf "
+            "(fixed), e.g. 2."
         ) from None
-    if math.isnan(v) or v < 0:
+    if math.isnan(v):
+        raise ValueError(
+            f"{field}: '{text}' is not a number; give R from 0 (pin) to inf (fixed), e.g. 2."
+        )
+    if v < 0:
         raise ValueError(
             f"{field}: {text} is negative; give R from 0 (pin) to inf (fixed), e.g. 2."
         )
@@ -100,7 +105,8 @@ def spring_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
     if translates(top)[0] and translates(bot)[0]:
         raise RowError(
             "top",
-            "ends: neither end is held sideways, so the post slides over as a whole; brace one end.",
+            "ends: neither end is held sideways, so the post slides over as a whole; brace one "
+            "end.",
         )
     flip = translates(bot)[0] and not translates(top)[0]
     up, down = (rb, rt) if flip else (rt, rb)

@@ -94,7 +94,7 @@ def test_commands_demo_import_export(tmp_path, capsys):
         ["import", "--db", db, str(src), "--site", "Yard", "--visit", "Day 1", "--inspector", "K"]
     )
     err = capsys.readouterr().err
-    assert rc == 1 and "row 2, column height" in err
+    assert rc == 1 and "row 2: height: " in err and "height: height" not in err
     out = tmp_path / "out.json"
     assert main(["export", "--db", db, "--format", "json", "--out", str(out)]) == 0
     data = json.loads(out.read_text())
