@@ -12,7 +12,13 @@ import sqlite3
 import sys
 
 from fieldcheck.commands import COMMANDS
-from fieldcheck.commands.usage import UsageError, store_error_sentence
+from fieldcheck.commands.usage import (
+    UsageError,
+    clean,
+    db_path,
+    set_message_units,
+    store_error_sentence,
+)
 
 
 class _Version(argparse.Action):
@@ -31,14 +37,7 @@ class _Version(argparse.Action):
 
 class _Parser(argparse.ArgumentParser):
     def error(self, message: str) -> None:  # one sentence, exit 2 (argparse's own code too)
-        self.exit(2, f"fieldcheck: {_clean(message)}. See `{self.prog} --help`.\n")
-
-
-def _clean(message: object) -> str:
-    """One line, values shortened, terminal escapes and control characters removed."""
-    from fieldcheck import units
-
-    return units.clean_message(str(message))
+        self.exit(2, f"fieldcheck: {clean(message)}. See `{self.prog} --help`.\n")
 
 
 def build_parser(only: str | None = None) -> argparse.ArgumentParser:
@@ -83,37 +82,26 @@ def main(argv: list[str] | None = None) -> int:
             from fieldcheck.commands.about import default_units
 
             args.units = default_units()
-        from fieldcheck import units
-
-        units.set_message_system(getattr(args, "units_here", None) or args.units)
+        set_message_units(getattr(args, "units_here", None) or args.units)
         if args.command is None:
             return _open_interface(args)
         return int(args._run(args) or 0)
     except UsageError as exc:
-        print(f"fieldcheck: {_clean(exc)}", file=sys.stderr)
+        print(f"fieldcheck: {clean(exc)}", file=sys.stderr)
         return 2
     except ValueError as exc:  # bad input from the engine or the unit parser
-        print(f"fieldcheck: {_clean(exc)}", file=sys.stderr)
+        print(f"fieldcheck: {clean(exc)}", file=sys.stderr)
         return 2
     except KeyboardInterrupt:
         return 130
     except sqlite3.Error as exc:  # named for what it is: busy, full disk, read-only, damaged
-        print(f"fieldcheck: {store_error_sentence(exc, _db_path(args))}", file=sys.stderr)
+        print(f"fieldcheck: {clean(store_error_sentence(exc, db_path(args)))}", file=sys.stderr)
         return 2
     except OSError as exc:
         if isinstance(exc, BrokenPipeError):
             return _broken_pipe()
-        print(f"fieldcheck: {store_error_sentence(exc, 'a file')}", file=sys.stderr)
+        print(f"fieldcheck: {clean(store_error_sentence(exc, 'a file'))}", file=sys.stderr)
         return 2
-
-
-def _config_units() -> str | None:
-    try:
-        from fieldcheck.config import load
-
-        return load().units
-    except Exception:  # a broken config file is reported by the command itself
-        return None
 
 
 def _broken_pipe() -> int:
@@ -122,15 +110,6 @@ def _broken_pipe() -> int:
 
     os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
     return 0
-
-
-def _db_path(args: argparse.Namespace) -> str:
-    from fieldcheck.commands.log_option import log_path
-
-    try:
-        return str(log_path(args))
-    except Exception:
-        return "the survey log"
 
 
 def _has_terminal() -> bool:

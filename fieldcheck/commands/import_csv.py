@@ -50,6 +50,7 @@ def run(args: argparse.Namespace) -> int:
         )
     from fieldcheck.commands.progress import counted, progress_bar
     from fieldcheck.config import load
+    from fieldcheck.records import field_sentence
     from fieldcheck.records.csv_file import CsvProblem
 
     inspector = args.inspector or load().inspector or None

@@ -16,3 +16,37 @@ def store_error_sentence(exc: sqlite3.Error | OSError, db: str) -> str:
     if isinstance(exc, sqlite3.Error):
         return sqlite_sentence(exc, db)
     return os_sentence(exc, exc.filename or "a file")
+
+
+def clean(message: object) -> str:
+    """One line, values shortened, terminal escapes and control characters removed."""
+    from fieldcheck import units
+
+    return units.clean_message(str(message))
+
+
+def set_message_units(system: str | None) -> None:
+    """Ranges in messages in the user's units: the option, else the config file, else US."""
+    from fieldcheck import units
+
+    if system is None:
+        try:
+            from fieldcheck.config import load
+
+            system = load().units
+        except Exception:  # a broken config file is reported by the command that reads it
+            system = None
+    units.set_message_system(system)
+
+
+def db_path(args) -> str:
+    """The survey log named by --db (or the default), for naming it in a message."""
+    try:
+        from pathlib import Path
+
+        from fieldcheck.store.paths import default_log_path
+
+        db = getattr(args, "db", None)
+        return str(Path(db).expanduser() if db else default_log_path())
+    except Exception:  # only for naming the file
+        return "the survey log"
