@@ -847,9 +847,6 @@ def clean_message(message: str, text: str | None = None) -> str:
     if text is not None and len(text) > 0 and text != shown(text):
         message = message.replace(text, shown(text))
         message = message.replace(text.strip(), shown(text.strip()))
-    message = _ESCAPES.sub("", message)
-    long_quote = "'([^']{" + str(QUOTE_MAX + 1) + ",})'"
-    message = re.sub(long_quote, lambda m: f"'{shown(m[1])}'", message)
     return shown(message, limit=1000)
 
 

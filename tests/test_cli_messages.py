@@ -59,7 +59,6 @@ def test_a_long_value_is_quoted_short_and_without_escapes(capsys):
         (["--out", "x.csv"], ["--batch"]),
         (["--split-at", "top"], ["--split"]),
         (["--hole-face", "wide"], ["--hole"]),
-        (["--top-ratio", "1", "--top-spring", "5 kip-in/rad"], ["--top-spring", "--top-ratio"]),
         (["--diameter", "8in"], ["--size", "--diameter"]),
     ],
 )

@@ -37,13 +37,12 @@ NEEDS: tuple[tuple[str, tuple[str, ...]], ...] = (
 )
 # (column, conflicts with) : two ways of saying one thing
 EITHER: tuple[tuple[str, str], ...] = (
-    ("top_ratio", "top_spring"),
-    ("bottom_ratio", "bottom_spring"),
     ("diameter", "size"),
     ("diameter", "section"),
 )
-# a spring says how the end turns; pinned and fixed say so too (guided and free say it sways)
-ROTATION_ENDS = ("pinned", "fixed")
+# a spring says how the end turns, and so does fixed; pinned (held sideways), guided and free
+# (may sway) say how it moves sideways beside a spring
+ROTATION_ENDS = ("fixed",)  # pinned with a spring: held sideways (the default end)
 SPRINGS = {"top": ("top_ratio", "top_spring"), "bottom": ("bottom_ratio", "bottom_spring")}
 EC5_ONLY = ("class", "service_class", "cap_class", "sill_class")
 

@@ -21,7 +21,10 @@ from fieldcheck.records.core_columns import Column
 
 def parse_ratio(text: str, field: str) -> float:
     """R = k L / (E I) as typed: a number from 0 (pin) to inf (fixed), or 'inf' / 'fixed'."""
+    from fieldcheck.units import shown
+
     t = text.strip().lower()
+    text = shown(text)
     if t in ("inf", "infinity", "fixed"):
         return math.inf
     try:
