@@ -69,6 +69,7 @@ MC_DECAY_RISK = (
 MC_SATURATED = (
     28.0  # % MC: near fibre saturation, meters unreliable (FPL-GTR-6 [V]; flag judgement)
 )
+NO_STRENGTH = 1e-6  # strength ratio where none is relied on (near 0, keeps the formulas finite)
 HANKINSON_Q_BENDING = 0.1  # Q/P for bending at an angle to grain (Wood Handbook ch. 5 range [M])
 LE_BENDING = (
     1.84  # le/lu for the bending check of a post with end moments (NDS 2018 Table 3.3.3 [M])
@@ -90,7 +91,7 @@ def _nz(a: np.ndarray) -> np.ndarray:
 # Strength ratios
 # =============================================================================================
 def slope_rows(name: str, prop: str) -> tuple[np.ndarray, np.ndarray, str]:
-    """(slope n ascending, ratio 0-1, status) for one table and property from data/slope_of_grain.csv."""
+    """(slope n ascending, ratio 0-1, status) for one table and property (slope_of_grain.csv)."""
     rows = [r for r in table("slope_of_grain") if r["table"] == name and r["property"] == prop]
     rows.sort(key=lambda r: float(r["slope_n"]))
     return (
@@ -113,7 +114,9 @@ def slope_ratio(
     """(strength ratio, steeper-than-table mask) for slope 1 in n (inf: straight).
 
     A slope between rows takes the row at or steeper than it (conservative). Steeper than the
-    steepest row: that row's ratio scaled by Hankinson's formula (continuous, judgement).
+    steepest row is outside the published data: no strength ratio is extrapolated (Hankinson's
+    formula was not calibrated to these tables); the strength is unknown and none is relied on
+    (ratio NO_STRENGTH, judgement). The records layer refuses such a slope in one sentence.
     """
     out = np.ones_like(n, dtype=np.float64)
     beyond = np.zeros(n.shape, dtype=bool)
@@ -126,14 +129,13 @@ def slope_ratio(
         idx = np.searchsorted(ns, n, side="right") - 1
         steep = idx < 0
         row = sr[np.clip(idx, 0, None)]
-        ext = sr[0] * _hankinson(n, q) / _hankinson(np.full_like(n, ns[0]), q)
-        out = np.where(m, np.where(steep, np.minimum(ext, sr[0]), row), out)
+        out = np.where(m, np.where(steep, NO_STRENGTH, row), out)
         beyond |= m & steep
     return out, beyond
 
 
 def strength_ratios(b: PostBatch) -> dict[str, np.ndarray]:
-    """Lowest strength ratio of the knot and the slope, for Fc and for Fb (D245: lowest, not product)."""
+    """Lowest strength ratio of the knot and the slope, for Fc and Fb (D245: lowest, no product)."""
     if not (
         np.any(b.knot_mm > 0) or np.any(np.isfinite(b.slope_n))
     ):  # nothing recorded in this block
@@ -323,7 +325,8 @@ def _sections(b, dec, chr_, parts, h, d1):
     return mid, net, top, bot
 
 
-LOSS_FIELDS = tuple(f"{k}_{f}_mm" for k in ("decay", "char") for f in DEPTH_FIELDS) + (
+LOSS_FIELDS = (
+    *tuple(f"{k}_{f}_mm" for k in ("decay", "char") for f in DEPTH_FIELDS),
     "hollow_mm",
     "wane_mm",
     "notch_mm",
@@ -525,13 +528,15 @@ def _interaction(x, a0, u1, u2, g1, h1, g2, h2, f1, f2, k):
 
 
 def eccentric_capacity(area, s1, s2, e1, e2, bow1, bow2, fc_prime, fb1p, fb2p, fce1, fce2, fbe):
-    """Largest P meeting the NDS 2018 §3.9.2 / §15.4.1 interaction (column-design.md §4.1, §4.2, §4.4).
+    """Largest P meeting the NDS 2018 §3.9.2 / §15.4.1 interaction (from memory).
 
         (fc/Fc')^2 + [fb1 + fc (6 e1/d1)(1 + 0.234 fc/FcE1)] / (Fb1' [1 - fc/FcE1])
-                   + [fb2 + fc (6 e2/d2)(1 + 0.234 fc/FcE2)] / (Fb2' [1 - fc/FcE2 - ((fb1 + fc 6e1/d1)/FbE)^2]) = 1
+          + [fb2 + fc (6 e2/d2)(1 + 0.234 fc/FcE2)]
+            / (Fb2' [1 - fc/FcE2 - ((fb1 + fc 6e1/d1)/FbE)^2]) = 1
 
-    with fc = P/A, fc 6e/d = P e / S (the end-moment stress of the residual section) and fb = P bow / S
-    (a measured initial bow, amplified by the same 1/(1 - fc/FcE) term: column-design.md §4.4).
+    with fc = P/A, fc 6e/d = P e / S (the end-moment stress of the residual section) and
+    fb = P bow / S (a measured initial bow, amplified by the same 1/(1 - fc/FcE) term:
+    mechanics, Timoshenko & Gere ch. 1).
     The left side grows with P, so the root lies between 0 and the concentric capacity A Fc' (or
     the first pole of the amplifiers, if sooner). Multiplied by both amplifier denominators the
     equation becomes a quartic without poles; Illinois (modified regula falsi) steps on the
@@ -776,8 +781,10 @@ FLAGS = (
     ),
     Flag(
         "slope_steep",
-        "Slope of grain steeper than the table covers: ratio extended by Hankinson's "
-        "formula; the member is outside structural grades, the engineer should assess it.",
+        "Slope of grain steeper than the published table (1 in 5 clear wood, 1 in 6 grading): "
+        "outside the published data, so the strength is unknown and none is relied on; "
+        "replace the member or have the engineer assess it.",
+        escalates_to=2,
     ),
     Flag(
         "checks",
@@ -796,7 +803,8 @@ FLAGS = (
     ),
     Flag(
         "end_split",
-        "Split at an end: the halves may act separately near the end; clamp it or replace the post.",
+        "Split at an end: the halves may act separately near the end; clamp it or replace the "
+        "post.",
         escalates_to=1,
     ),
     Flag(
@@ -974,11 +982,13 @@ def reductions(r, i: int) -> list[dict]:
     if bool(v["loss"][i]):
         add(
             "residual section, middle part",
-            f"area {v['area'][i] / gross:.3f} of gross; d_eff {q.length(v['d_eff1'][i])} x {q.length(v['d_eff2'][i])}; "
-            f"centroid shift {q.length(v['shift1'][i])}, {q.length(v['shift2'][i])}; decay margin {q.length(b.decay_margin_mm[i])}"
+            f"area {v['area'][i] / gross:.3f} of gross; d_eff {q.length(v['d_eff1'][i])} x "
+            f"{q.length(v['d_eff2'][i])}; centroid shift {q.length(v['shift1'][i])}, "
+            f"{q.length(v['shift2'][i])}; decay margin {q.length(b.decay_margin_mm[i])}"
             " (judgement)",
             v["area"][i] / gross,
-            "common practice: decayed wood has no strength; char + 7 mm (EN 1995-1-2 §4.2.2, from memory); NDS 2018 §3.6.3 (from memory)",
+            "common practice: decayed wood has no strength; char + 7 mm (EN 1995-1-2 §4.2.2, "
+            "from memory); NDS 2018 §3.6.3 (from memory)",
         )
         add(
             "net section (all losses together)",
@@ -1017,7 +1027,8 @@ def reductions(r, i: int) -> list[dict]:
         parts = []
         if _nz(b.knot_mm[i : i + 1])[0] > 0:
             parts.append(
-                f"knot {q.length(b.knot_mm[i])} on a {FACE_NAMES[int(b.knot_face[i])]} face: {v['sr_knot'][i]:.3f}"
+                f"knot {q.length(b.knot_mm[i])} on a {FACE_NAMES[int(b.knot_face[i])]} face: "
+                f"{v['sr_knot'][i]:.3f}"
             )
         if np.isfinite(b.slope_n[i]):
             parts.append(
@@ -1056,8 +1067,8 @@ def reductions(r, i: int) -> list[dict]:
         col = r.checks["column"].capacity_n[i]
         add(
             "eccentricity and bow",
-            f"e1 {q.length(v['ecc1'][i])}, e2 {q.length(v['ecc2'][i])}, bow {q.length(v['bow1'][i])}, "
-            f"{q.length(v['bow2'][i])}",
+            f"e1 {q.length(v['ecc1'][i])}, e2 {q.length(v['ecc2'][i])}, "
+            f"bow {q.length(v['bow1'][i])}, {q.length(v['bow2'][i])}",
             ecc.capacity_n[i] / col,
             "NDS 2018 §3.9.2, §15.4.1",
         )
@@ -1108,7 +1119,8 @@ def working_lines(r, i: int) -> list:
         s.append(
             Step(
                 "Net section (all losses), end areas top / bottom",
-                f"{v['area_net'][i]:,.0f} / {v['area_top'][i]:,.0f} / {v['area_bottom'][i]:,.0f} mm2",
+                f"{v['area_net'][i]:,.0f} / {v['area_top'][i]:,.0f} / {v['area_bottom'][i]:,.0f} "
+                "mm2",
                 "NDS 2018 §3.6.3 [M], §3.10.1",
             )
         )
@@ -1171,7 +1183,8 @@ def working_lines(r, i: int) -> list:
         s.append(
             Step(
                 "Stress wave: v = path / time; E_d = rho v^2; time / sound time",
-                f"{v['sw_velocity'][i]:,.0f} m/s; {v['sw_ed_mpa'][i]:,.0f} MPa; {v['sw_ratio'][i]:.2f}",
+                f"{v['sw_velocity'][i]:,.0f} m/s; {v['sw_ed_mpa'][i]:,.0f} MPa; "
+                f"{v['sw_ratio'][i]:.2f}",
                 "stress-wave timing practice (thresholds from memory)",
             )
         )
@@ -1190,42 +1203,42 @@ def bench_fields(
 ) -> dict[str, np.ndarray]:
     """Every condition input in use, for bench/engine.py --conditions."""
     u = rng.uniform
-    return dict(
-        decay_1p_mm=u(0, 0.1, n) * d1,
-        decay_2p_mm=u(0, 0.1, n) * d2,
-        decay_2m_mm=u(0, 0.05, n) * d2,
-        decay_zone=rng.integers(0, 4, n),
-        hollow_mm=u(0, 0.2, n) * d2,
-        char_1m_mm=u(0, 10, n),
-        char_zone=rng.integers(0, 4, n),
-        wane_mm=u(0, 10, n),
-        wane_corners=rng.integers(0, 5, n),
-        notch_mm=u(0, 0.1, n) * d2,
-        notch_face=rng.integers(0, 2, n),
-        notch_z_mm=u(0, 2000, n),
-        hole_mm=u(0, 0.1, n) * d2,
-        hole_face=rng.integers(0, 2, n),
-        hole_z_mm=u(0, 2000, n),
-        knot_mm=u(0, 0.3, n) * d2,
-        knot_face=rng.integers(0, 2, n),
-        slope_n=u(4, 30, n),
-        slope_table=rng.integers(0, 2, n),
-        split=rng.integers(0, 3, n),
-        split_faces=rng.integers(0, 3, n),
-        crushed_end=rng.integers(0, 4, n),
-        bow1_mm=u(0, 20, n),
-        bow2_mm=u(0, 20, n),
-        plumb1_mm=u(0, 30, n),
-        plumb2_mm=u(0, 30, n),
-        offset1_mm=u(0, 15, n),
-        offset2_mm=u(0, 15, n),
-        fb_mpa=u(5, 10, n),
-        sw_time_us=u(300, 900, n),
-        sw_path_mm=d2,
-        sw_sound_us=np.full(n, 400.0),
-        density_kgm3=u(400, 600, n),
-        end_contact=u(0.6, 1.0, n),
-    )
+    return {
+        "decay_1p_mm": u(0, 0.1, n) * d1,
+        "decay_2p_mm": u(0, 0.1, n) * d2,
+        "decay_2m_mm": u(0, 0.05, n) * d2,
+        "decay_zone": rng.integers(0, 4, n),
+        "hollow_mm": u(0, 0.2, n) * d2,
+        "char_1m_mm": u(0, 10, n),
+        "char_zone": rng.integers(0, 4, n),
+        "wane_mm": u(0, 10, n),
+        "wane_corners": rng.integers(0, 5, n),
+        "notch_mm": u(0, 0.1, n) * d2,
+        "notch_face": rng.integers(0, 2, n),
+        "notch_z_mm": u(0, 2000, n),
+        "hole_mm": u(0, 0.1, n) * d2,
+        "hole_face": rng.integers(0, 2, n),
+        "hole_z_mm": u(0, 2000, n),
+        "knot_mm": u(0, 0.3, n) * d2,
+        "knot_face": rng.integers(0, 2, n),
+        "slope_n": u(4, 30, n),
+        "slope_table": rng.integers(0, 2, n),
+        "split": rng.integers(0, 3, n),
+        "split_faces": rng.integers(0, 3, n),
+        "crushed_end": rng.integers(0, 4, n),
+        "bow1_mm": u(0, 20, n),
+        "bow2_mm": u(0, 20, n),
+        "plumb1_mm": u(0, 30, n),
+        "plumb2_mm": u(0, 30, n),
+        "offset1_mm": u(0, 15, n),
+        "offset2_mm": u(0, 15, n),
+        "fb_mpa": u(5, 10, n),
+        "sw_time_us": u(300, 900, n),
+        "sw_path_mm": d2,
+        "sw_sound_us": np.full(n, 400.0),
+        "density_kgm3": u(400, 600, n),
+        "end_contact": u(0.6, 1.0, n),
+    }
 
 
 CONDITION = Stage(

@@ -517,9 +517,18 @@ def condition_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]
                 f"({w / IN:.3g} in); measure the knot across the face, e.g. 1 in.",
             )
         f["knot_mm"], f["knot_face"] = g("knot"), face
-    if "slope" in row:
-        f["slope_n"] = row["slope"]
     f["slope_table"] = cond.SLOPE_TABLES.index(row.get("slope_table", "grading"))
+    if "slope" in row:
+        name = row.get("slope_table", "grading")
+        steepest = min(float(cond.slope_rows(name, p)[0][0]) for p in ("compression", "bending"))
+        if row["slope"] < steepest:
+            raise RowError(
+                "slope",
+                f"slope: 1 in {row['slope']:g} is steeper than the published {name} table "
+                f"(1 in {steepest:g}): outside the published data, treat it as unknown strength "
+                "(replace the member or ask the engineer).",
+            )
+        f["slope_n"] = row["slope"]
     f["sr_applies"] = bool(row.get("beyond_grade", unknown))
     f["material_assumed"] = unknown and row.get("method", "asd") != "ec5"
     f["split"] = cond.SPLIT_NAMES.index(row.get("split", "none"))
