@@ -118,6 +118,9 @@ def reference_values(
     collection; judgement). A data-collection level may raise kappa to at most 1.0, never the
     values above this bound.
     """
+    wide_stud = width_nom is not None and width_nom > 6
+    if grade == "stud" and wide_stud:
+        grade = "no3"  # NDS Supplement Table 4A note: Stud wider than 6 in takes No.3 values
     if species == "unknown" or grade == "unknown":
         pool = []
         for (s_, g_, c_), r in _rows().items():
@@ -127,6 +130,8 @@ def reference_values(
                 continue
             if width_nom is not None and g_ in NARROW_ONLY and width_nom > 4:
                 continue  # not graded at this width
+            if g_ == "stud" and wide_stud:
+                continue  # takes the No.3 values, which are in the pool
             cf_fc = cf_fb = 1.0
             if width_nom is not None and thick_nom is not None:
                 try:
@@ -160,8 +165,6 @@ def reference_values(
             cf_included=width_nom is not None and thick_nom is not None,
         )
         return out
-    if grade == "stud" and width_nom is not None and width_nom > 6:
-        grade = "no3"  # NDS Supplement Table 4A note: Stud wider than 6 in takes No.3 values
     row = _rows().get((species, grade, category))
     if row is None:
         held = sorted({gr for (s, gr, c) in _rows() if s == species and c == category})
