@@ -79,7 +79,9 @@ class FieldcheckApp(App[None]):
         self._drafts_seq = 0  # bumped on every change; a write never replaces a newer one
         self._drafts_written = 0
         self.office_path: str = ""
-        self._held: list[events.Key] | None = None  # keys waiting for a form key to be dealt with
+        self._held: list[events.Key] = []  # keys waiting (see on_event)
+        self._holds = 0  # reasons to hold keys still open
+        self._hold_timer: Any = None
         self.last_summary: str = ""  # the last sync or report summary (also notified)
 
     # -- life cycle --------------------------------------------------------------------------
@@ -170,30 +172,88 @@ class FieldcheckApp(App[None]):
 
     # -- keys: none lost or misplaced ---------------------------------------------------------
     # The app hands each key to the focused widget's own queue. A field handles Enter (or Tab)
-    # only after the keys typed before it, and only then moves the focus; keys typed meanwhile
-    # would go to the field just left. So from a form key until the field has dealt with it (and
-    # moved the focus), later keys wait here, in order, and then go where the focus now is.
+    # only after the keys typed before it, and only then moves the focus; a key for a list goes
+    # up to the screen's bindings later still; a new screen takes a moment to appear. Keys typed
+    # meanwhile would go to the field or the list just left (where a letter may be a command).
+    # So from such a key until it has been dealt with, and from a change of screen until the new
+    # screen is up, later keys wait here, in order, and then go where the focus is by then.
+    HOLD_LIMIT = 8.0  # seconds: never hold keys longer than this, whatever happened
+
     async def on_event(self, event: events.Event) -> None:
-        if isinstance(event, events.Key):
-            if self._held is not None:
-                self._held.append(event)
-                return
-            if event.key in FORM_KEYS and getattr(self.screen.focused, "holds_keys", False):
-                self._held = []
+        if not isinstance(event, events.Key) or event.is_forwarded:  # (a key bubbling back up)
+            await super().on_event(event)
+            return
+        if self._holds or self._held:  # waiting keys go first, in order
+            self._held.append(event)
+            return
+        await self._route_key(event)
+
+    async def _route_key(self, event: events.Key) -> None:
+        from textual.widgets import Input
+
+        focused = self.screen.focused
+        bubbles = False
+        if event.key in FORM_KEYS and getattr(focused, "holds_keys", False):
+            self.hold_keys()  # released by the field once it has dealt with the key
+        elif not (isinstance(focused, Input) and event.is_printable):
+            # a key for a list, a table or the screen: the next key waits until this one has
+            # bubbled up here and its binding has run (see _on_key)
+            bubbles = True
+            self.hold_keys()
+            event._fc_hold = True  # type: ignore[attr-defined]
         await super().on_event(event)
+        if bubbles and not event.is_forwarded:  # a priority binding took it here and now
+            event._fc_hold = False  # type: ignore[attr-defined]
+            self.release_keys()
+
+    async def _on_key(self, event: events.Key) -> None:
+        # Textual calls App._on_key (the bindings) after this one; the release is a message, so
+        # the held keys go on only after that, and after any screen it opened is up
+        if getattr(event, "_fc_hold", False):
+            event._fc_hold = False  # type: ignore[attr-defined]
+            self.release_keys()
+
+    def hold_keys(self) -> None:
+        self._holds += 1
+        if self._hold_timer is not None:
+            self._hold_timer.stop()
+        self._hold_timer = self.set_timer(self.HOLD_LIMIT, self._hold_expired)
 
     def release_keys(self) -> None:
-        """Called by a field once it has dealt with a form key: the held keys go on (after any
-        key already on its way, which joins them)."""
-        self.post_message(ReleaseKeys())
+        """One reason to hold keys is over (a field dealt with its key, a screen is up)."""
+        self._holds = max(0, self._holds - 1)
+        if not self._holds:
+            self.post_message(ReleaseKeys())
+
+    def _hold_expired(self) -> None:
+        self._hold_timer = None
+        if self._holds:
+            self._holds = 0
+            self.post_message(ReleaseKeys())
 
     async def on_release_keys(self, _message: ReleaseKeys) -> None:
-        held, self._held = self._held or [], None
-        while held:
-            await self.on_event(held.pop(0))
-            if self._held is not None:  # a form key again: the rest wait for it
-                self._held.extend(held)
-                return
+        while self._held and not self._holds:
+            await self._route_key(self._held.pop(0))
+
+    def screen_up(self, screen: Screen) -> None:
+        """A screen of ours is shown (pushed or uncovered): focus its first field if nothing
+        has focus yet (Textual waits for the terminal to report focus), then let keys go on."""
+        if screen.focused is None and screen.AUTO_FOCUS:
+            for widget in screen.query(screen.AUTO_FOCUS):
+                if widget.focusable:
+                    screen.set_focus(widget)
+                    break
+        screen.call_after_refresh(self.release_keys)
+
+    def push_screen(self, screen: Any, *args: Any, **kwargs: Any) -> Any:  # type: ignore[override]
+        if getattr(screen, "releases_keys", False):
+            self.hold_keys()
+        return super().push_screen(screen, *args, **kwargs)
+
+    def pop_screen(self) -> Any:
+        if len(self.screen_stack) > 1 and getattr(self.screen_stack[-2], "releases_keys", False):
+            self.hold_keys()
+        return super().pop_screen()
 
     # -- global actions ----------------------------------------------------------------------
     def action_help(self) -> None:

@@ -15,10 +15,11 @@ from textual.suggester import SuggestFromList
 from textual.widgets import Button, Input, Label, ProgressBar, Static
 
 from fieldcheck.tui.form import FieldInput
+from fieldcheck.tui.keyhold import ReleasesKeys
 from fieldcheck.tui.present import escape
 
 
-class HelpScreen(ModalScreen[None]):
+class HelpScreen(ReleasesKeys, ModalScreen[None]):
     """Every key of the screen behind, and of the app, with what it does."""
 
     BINDINGS = [Binding("escape,f1,q", "close", "Close", id="help_close")]
@@ -87,7 +88,7 @@ class HelpScreen(ModalScreen[None]):
         self.dismiss(None)
 
 
-class LeaveDialog(ModalScreen[str | None]):
+class LeaveDialog(ReleasesKeys, ModalScreen[str | None]):
     BINDINGS = [
         Binding("escape", "answer('stay')", "Stay", id="leave_stay"),
         Binding("ctrl+s", "answer('save')", "Save", id="leave_save"),
@@ -116,7 +117,7 @@ class LeaveDialog(ModalScreen[str | None]):
         self.dismiss(answer)
 
 
-class WithdrawDialog(ModalScreen[str | None]):
+class WithdrawDialog(ReleasesKeys, ModalScreen[str | None]):
     BINDINGS = [Binding("escape", "cancel", "Cancel", id="withdraw_cancel")]
 
     def __init__(self, tag: str) -> None:
@@ -143,7 +144,7 @@ class WithdrawDialog(ModalScreen[str | None]):
         self.dismiss(None)
 
 
-class RemedyDoneDialog(ModalScreen[str | None]):
+class RemedyDoneDialog(ReleasesKeys, ModalScreen[str | None]):
     """The date a proposed remedy was carried out: the post is then recorded as remedied."""
 
     BINDINGS = [Binding("escape", "cancel", "Cancel", id="done_cancel")]
@@ -184,7 +185,7 @@ class RemedyDoneDialog(ModalScreen[str | None]):
 VISIT_LEVELS = ("minimum", "standard", "detailed")  # the log's data-collection levels
 
 
-class NewVisitDialog(ModalScreen[str | None]):
+class NewVisitDialog(ReleasesKeys, ModalScreen[str | None]):
     """A new visit: the site address, the inspector (a person's name, not the login name), the
     date and the data-collection level. Enter moves on; Enter on the last field makes it."""
 
@@ -299,7 +300,7 @@ class NewVisitDialog(ModalScreen[str | None]):
         self.dismiss(None)
 
 
-class ProgressDialog(ModalScreen[None]):
+class ProgressDialog(ReleasesKeys, ModalScreen[None]):
     """Long work on the log's thread with a ProgressBar and a summary at the end."""
 
     BINDINGS = [Binding("escape", "close", "Close", id="progress_close")]
@@ -452,7 +453,7 @@ def _load_conflicts(log: Any) -> list[tuple[str, str, list[Any]]]:
     return out
 
 
-class ConflictsScreen(ModalScreen[None]):
+class ConflictsScreen(ReleasesKeys, ModalScreen[None]):
     BINDINGS = [Binding("escape", "close", "Close", id="conflicts_close")]
 
     def compose(self) -> ComposeResult:

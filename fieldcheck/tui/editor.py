@@ -57,6 +57,7 @@ from fieldcheck.tui.form import (
     field_ids,
     place,
 )
+from fieldcheck.tui.keyhold import ReleasesKeys
 from fieldcheck.tui.plot import braille_plot
 
 TABS = ("rating", "working", "shape", "remedies", "history")
@@ -80,7 +81,7 @@ def capacity_curve(batch: Any, heights_mm: np.ndarray) -> np.ndarray:
     return np.asarray(capacity_vs_height(batch, heights_mm), dtype=float).reshape(-1)
 
 
-class PostEditor(Screen[None]):
+class PostEditor(ReleasesKeys, Screen[None]):
     AUTO_FOCUS = "#form Input"
     BINDINGS = [
         # save, back and help first: the footer is cut at 80 columns (F1 and ctrl+p list all)
@@ -123,6 +124,7 @@ class PostEditor(Screen[None]):
         self.generation = 0
         self._full_timer: Any = None
         self._writing = asyncio.Lock()  # one save at a time; leaving waits for it
+        self._saves_pending = 0  # ctrl+s pressed, save not finished
         self._msg_boxes: dict[str, Static] = {}  # column -> its message line, once mounted
         self._detail_stale: bool | None = None  # stale state when the detail panel was drawn
 
@@ -704,9 +706,16 @@ class PostEditor(Screen[None]):
             self.notify(f"Saved {tag} as a new revision.", markup=False)
         return True
 
+    def action_save(self) -> None:
+        self._saves_pending += 1  # counted at once: a leave right after waits for it
+        self._run_save()
+
     @work(group="write", exit_on_error=False)
-    async def action_save(self) -> None:
-        await self.save()
+    async def _run_save(self) -> None:
+        try:
+            await self.save()
+        finally:
+            self._saves_pending -= 1
 
     def action_undo(self) -> None:
         if not self.undo_stack:
@@ -875,7 +884,9 @@ class PostEditor(Screen[None]):
         self.action_propose_remedy()
 
     async def action_leave(self) -> None:
-        async with self._writing:  # a save in flight ends first: then "unsaved" is true
+        while self._saves_pending:  # a save asked for ends first: then "unsaved" is true
+            await asyncio.sleep(0.02)
+        async with self._writing:
             pass
         if not self.dirty:
             if self.app.drafts.pop(self.draft_key, None) is not None:  # type: ignore[attr-defined]

@@ -10,6 +10,7 @@ from textual.binding import Binding
 from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Header, Static
 
+from fieldcheck.tui.keyhold import ReleasesKeys
 from fieldcheck.tui.present import ACTION_ORDER, escape
 
 # short headers so the counts fit at 80 columns; the help screen spells out each symbol
@@ -35,7 +36,7 @@ def _load_overview(log: Any) -> dict[str, Any]:
     return {"rows": rows, "conflicts": len(log.conflicts()), "path": str(log.path)}
 
 
-class SitesScreen(Screen[None]):
+class SitesScreen(ReleasesKeys, Screen[None]):
     """Sites and visits. Enter opens a visit."""
 
     AUTO_FOCUS = "#visits"

@@ -17,6 +17,7 @@ from textual.binding import Binding
 from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Header, Input, Static
 
+from fieldcheck.tui.keyhold import ReleasesKeys
 from fieldcheck.tui.present import (
     ACTION_ORDER,
     action_word,
@@ -99,7 +100,7 @@ def next_tag(tag: str, taken: set[str]) -> str:
             return cand
 
 
-class VisitScreen(Screen[None]):
+class VisitScreen(ReleasesKeys, Screen[None]):
     AUTO_FOCUS = "#posts"
     BINDINGS = [
         # open, add, back and help first: the footer is cut at 80 columns (F1 and ctrl+p list all)

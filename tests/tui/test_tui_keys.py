@@ -67,3 +67,25 @@ async def test_a_burst_in_the_new_visit_dialog(db, ui, own_log) -> None:
         assert visit.started_at.startswith("2026-03-14")
         assert visit.name == "before the wall comes out"
     assert own_log.exists()  # the user's own log, beside (never inside) the demo
+
+
+async def test_keys_typed_while_a_screen_opens_or_closes_wait_for_it(db, ui) -> None:
+    app = ui.app(db)
+    async with app.run_test(size=(100, 34)) as pilot:
+        await ui.open_visit(app, pilot)
+        visit = app.screen
+        before = len(visit.posts)
+        # from the list: a new post and its location at once ("c" and "w" are list commands)
+        ui.burst(app, ["ctrl+n", "enter", *"cellar, west wall", "enter", *"4x4", "enter"])
+        ui.burst(app, [*"8ft", "pagedown", "pagedown", *"d", "enter", *"no2", "pagedown"])
+        ui.burst(app, ["pagedown", *"2000 lbf", "ctrl+s", "escape", "ctrl+n", "enter", *"cove"])
+        await ui.drain(app, pilot)
+        await ui.settle(app, pilot)
+        editor = app.screen
+        assert type(editor).__name__ == "PostEditor"
+        assert editor.query_one("#f-location", Input).value == "cove"  # the second new post
+        posts = await app.store.call(lambda log: log.posts(visit.visit_id))
+        assert len(posts) == before + 1  # nothing copied or withdrawn by the letters typed
+        new = posts[-1].record
+        assert new["location"] == "cellar, west wall" and new["species"] == "douglas-fir-larch"
+        assert new["load"] == "2000 lbf" and "duration" not in new
