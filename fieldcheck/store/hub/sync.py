@@ -19,7 +19,9 @@ A sync cut off anywhere leaves each side with whole transactions only; the rerun
 from __future__ import annotations
 
 import contextlib
+import os
 import random
+import shutil
 import sqlite3
 import tempfile
 import time
@@ -369,8 +371,12 @@ def _receive(log, conn: psycopg.Connection, hub: HubInfo, progress: Progress | N
         ro.close()
     on_hub = _hub_columns(conn)
     tables = {t: sql for t, sql in tables.items() if t in on_hub}
-    # beside the log, like the folder sync's (never in $TMPDIR: a log may be big and /tmp small)
-    with tempfile.TemporaryDirectory(prefix=".fieldcheck-hub-", dir=field_path.parent) as tmp:
+    # beside the log, like the folder sync's (never in $TMPDIR: a log may be big and /tmp small);
+    # a killed sync's folder is removed by the next one (its process is gone)
+    _remove_stale_scratch(field_path.parent)
+    with tempfile.TemporaryDirectory(
+        prefix=f"{SCRATCH_PREFIX}{os.getpid()}-", dir=field_path.parent
+    ) as tmp:
         snap = Path(tmp) / "from-hub.sqlite"
         out = sqlite3.connect(str(snap), isolation_level=None)
         try:
@@ -411,6 +417,18 @@ def _receive(log, conn: psycopg.Connection, hub: HubInfo, progress: Progress | N
                         rw.execute("DETACH DATABASE bundle")
             finally:
                 rw.close()
+
+
+SCRATCH_PREFIX = ".fieldcheck-hub-"
+
+
+def _remove_stale_scratch(folder: Path) -> None:
+    from fieldcheck.store.sync import _pid_alive
+
+    for old in folder.glob(f"{SCRATCH_PREFIX}*"):
+        pid = old.name.removeprefix(SCRATCH_PREFIX).split("-", 1)[0]
+        if pid.isdigit() and not _pid_alive(int(pid)):
+            shutil.rmtree(old, ignore_errors=True)
 
 
 def _hub_firm(conn: psycopg.Connection) -> str:

@@ -112,3 +112,16 @@ def test_libpq_forms_env_and_password_file(tmp_path, shore, pg_cluster, hub_url,
     again = sync(log, f"postgres://{pg_cluster.user}@127.0.0.1:{pg_cluster.port}/{db}")
     assert again.moved == 0 and pg_cluster.password not in again.sentence()
     log.close()
+
+
+def test_a_killed_syncs_scratch_folder_is_removed(tmp_path, shore, hub_url):
+    stale = tmp_path / ".fieldcheck-hub-999999999-abc"  # no such process
+    stale.mkdir()
+    log, _ = _field(tmp_path, "ann", shore, 1)
+    sync(log, hub_url)
+    other, _ = _field(tmp_path, "ben", shore, 1)
+    sync(other, hub_url)  # takes ann's post back through a scratch file
+    assert not stale.exists()
+    assert not list(tmp_path.glob(".fieldcheck-hub-*"))
+    log.close()
+    other.close()
