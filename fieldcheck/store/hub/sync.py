@@ -422,12 +422,21 @@ def _receive(log, conn: psycopg.Connection, hub: HubInfo, progress: Progress | N
 SCRATCH_PREFIX = ".fieldcheck-hub-"
 
 
-def _remove_stale_scratch(folder: Path) -> None:
-    from fieldcheck.store.sync import _pid_alive
+def _gone(pid: int) -> bool:
+    """No such process (another user's process counts as alive)."""
+    try:
+        os.kill(pid, 0)
+    except ProcessLookupError:
+        return True
+    except OSError:
+        return False
+    return False
 
+
+def _remove_stale_scratch(folder: Path) -> None:
     for old in folder.glob(f"{SCRATCH_PREFIX}*"):
         pid = old.name.removeprefix(SCRATCH_PREFIX).split("-", 1)[0]
-        if pid.isdigit() and not _pid_alive(int(pid)):
+        if pid.isdigit() and _gone(int(pid)):
             shutil.rmtree(old, ignore_errors=True)
 
 
