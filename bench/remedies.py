@@ -1,6 +1,6 @@
 """Remedies for 10,000 failing posts: candidates built as one batch and rated in one engine call.
 
-Prints one JSON object on the last line: {"posts": ..., "seconds": ...} (ARCHITECTURE.md §7).
+Prints one JSON object on the last line: {"posts": ..., "seconds": ...} (DEVELOPERS.md, bench).
 """
 
 from __future__ import annotations
@@ -55,7 +55,8 @@ def main() -> None:
     secs = time.perf_counter() - t0
     per_post = np.bincount(rem.post, minlength=N)
     print(
-        f"failing {rem.failing.size} of {N}; options offered {len(rem)}; posts with none {(per_post[rem.failing] == 0).sum()}"
+        f"failing {rem.failing.size} of {N}; options offered {len(rem)}; posts with none "
+        f"{(per_post[rem.failing] == 0).sum()}"
     )
     print(
         json.dumps({"posts": int(rem.failing.size), "seconds": round(secs, 3), "options": len(rem)})

@@ -2,7 +2,7 @@
 
 Random end springs (pinned to fixed, some rigid), sway and braced posts, and a share of posts with
 one or two braces (rigid or elastic). Prints one JSON object on its last line:
-{"posts": ..., "seconds": ...} (ARCHITECTURE.md §7), plus the share braced and the K range.
+{"posts": ..., "seconds": ...} (DEVELOPERS.md, bench), plus the share braced and the K range.
 """
 
 from __future__ import annotations
@@ -47,7 +47,8 @@ def main() -> None:
     K = np.pi / args[1] * np.sqrt(args[0] / p)
     braced_share = float((~np.isnan(args[6])).any(axis=1).mean())
     print(
-        f"{N} posts, {braced_share:.0%} with braces, K from {np.nanmin(K):.3f} to {np.nanmax(K):.3f}"
+        f"{N} posts, {braced_share:.0%} with braces, K from {np.nanmin(K):.3f} to "
+        f"{np.nanmax(K):.3f}"
     )
     print(f"mechanisms: {int(is_mechanism(*args).sum())}")
     print(

@@ -8,7 +8,7 @@ that table (fast for bulk CSV imports, and cached per string).
 
 Why not hand the string to pint: pint 0.25 silently reads ``3 1/2 in`` as 1.5 in,
 ``8 ft 6 in`` as an area, ``3,5 mm`` as 35 mm, ``89 MM`` as megamolar and ``8' 6"`` as
-dimensionless (ecosystem-and-style.md §3.2). Here every unit spelling is on an allow-list,
+dimensionless (judgement). Here every unit spelling is on an allow-list,
 upper case is accepted only where it cannot mean a prefix, and commas in numbers are refused.
 
 Internal units (what the parse functions return): mm, N, MPa, kPa (area loads and soil

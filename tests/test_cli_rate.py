@@ -28,7 +28,8 @@ EXAMPLE_A = [
 def test_example_a_json(capsys):
     assert main([*EXAMPLE_A, "--json"]) == 0
     out = json.loads(capsys.readouterr().out)
-    # column-design.md worked example A at 10 ft (NDS 2018 §3.7.1): 4,665.07 lb, Cp 0.245296
+    # NDS 2018 §3.7.1, 4x4 No.2 DF-L pinned, computed by hand at 10 ft (NDS 2018 §3.7.1): 4,665.07
+    # lb, Cp 0.245296
     assert out["allowable_load_lbf"] == pytest.approx(4665.1, abs=0.05)
     assert out["allowable_load_kN"] == pytest.approx(4665.07 * LBF / 1000, rel=1e-5)
     assert out["stability_factor"] == pytest.approx(0.245296, abs=1e-6)

@@ -27,7 +27,7 @@ def _json(capsys, *args):
 
 
 def test_tributary_example_governing_combination(capsys):
-    # field-practice.md §5.4: 120 ft^2, D 10, L 40, S 30 psf -> D+0.75L+0.75S = 7,500 lb, CD 1.15 governs
+    # ASCE 7-10 §2.4.1: 120 ft^2, D 10, L 40, S 30 psf -> D+0.75L+0.75S = 7,500 lb, CD 1.15 governs
     out = _json(capsys, *BAY)
     lc = out["load_combination"]
     assert lc["name"] == "D+0.75L+0.75S" and lc["factor_name"] == "CD" and lc["factor"] == 1.15
@@ -37,7 +37,8 @@ def test_tributary_example_governing_combination(capsys):
 
 
 def test_tributary_with_spacing_and_presets(capsys):
-    # field-practice.md §5.1: 10 x 12 ft bay = 120 ft^2; floor-carpet 10 psf (HUD Table 3.2), residential 40 psf
+    # common practice, no source: 10 x 12 ft bay = 120 ft^2; floor-carpet 10 psf (HUD Table 3.2),
+    # residential 40 psf
     out = _json(
         capsys, "--spacing", "10ft x 12ft", "--dead", "floor-carpet", "--occupancy", "residential"
     )
@@ -62,7 +63,8 @@ def test_direct_load_reports_as_given(capsys):
 
 
 def test_failing_post_lists_remedies_json_and_text(capsys):
-    # column-design.md worked example A at 10 ft: 4x4 No.2 carries 4,665 lb; 6,000 lb fails
+    # NDS 2018 §3.7.1, 4x4 No.2 DF-L pinned, computed by hand at 10 ft: 4x4 No.2 carries 4,665 lb;
+    # 6,000 lb fails
     args = [
         "rate",
         "--size",

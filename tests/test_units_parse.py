@@ -40,8 +40,8 @@ LENGTHS = [
     ("8' 6\"", 8 * FT + 6 * IN),
     ("8'-6\"", 8 * FT + 6 * IN),
     ("8' 6", 8 * FT + 6 * IN),
-    ("8′ 6″", 8 * FT + 6 * IN),
-    ("8’ 6”", 8 * FT + 6 * IN),  # phone keyboards' smart quotes
+    ("8′ 6″", 8 * FT + 6 * IN),  # noqa: RUF001 (primes, as typed)
+    ("8’ 6”", 8 * FT + 6 * IN),  # noqa: RUF001 (phone keyboards' smart quotes)
     ("8' 6-1/2\"", 8 * FT + 6.5 * IN),
     ("8 ft 6 in", 8 * FT + 6 * IN),
     ("8ft6in", 8 * FT + 6 * IN),
@@ -79,7 +79,7 @@ def test_length_accepted(text, mm):
         ("11 m2", "is an area, not a length"),
         ("0 mm", "greater than zero"),
         ("-5 mm", "greater than zero"),
-        ("−5 mm", "greater than zero"),  # unicode minus
+        ("−5 mm", "greater than zero"),  # noqa: RUF001 (unicode minus, as typed)
         ("nan mm", "is not a length"),
         ("inf mm", "is not a length"),
         ("1e999 mm", "not a finite number"),
@@ -352,7 +352,7 @@ SECTIONS = [
     ("3½ x 5½ in", (3.5 * IN, 5.5 * IN)),
     ("89x89mm", (89.0, 89.0)),
     ("89 x 140 mm", (89.0, 140.0)),
-    ("89 × 140 mm", (89.0, 140.0)),
+    ("89 × 140 mm", (89.0, 140.0)),  # noqa: RUF001 (multiplication sign, as typed)
     ('3.5" x 5.5"', (3.5 * IN, 5.5 * IN)),
     ("3.5 in x 140 mm", (3.5 * IN, 140.0)),
 ]

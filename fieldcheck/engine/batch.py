@@ -163,7 +163,7 @@ class PostBatch:
     lean_mm: np.ndarray = _f()  # out of plumb over the height, for the bracing thrust (NaN: plumb)
     species_code: np.ndarray = _i(-1)  # index into materials.SPECIES (-1 unknown): remedies' stock
 
-    # --- condition: the post as found (engine/condition.py; field-practice.md §1-§3) -----------
+    # --- condition: the post as found (engine/condition.py; common practice, no source) -----------
     # Depths in mm from the original face, 0 or NaN: none. Faces: 1p/1m the two narrow faces
     # (loss there reduces d1), 2p/2m the two wide faces (reduces d2). Zones: condition.ZONE_NAMES
     # (0 full height, 1 middle half, 2 top end, 3 bottom end).

@@ -5,12 +5,13 @@ Pure numpy on PostBatch arrays (SI: mm, N, MPa), no per-post loops. The column s
 net-section checks (:func:`add_checks`), raises the condition's flags (:func:`condition_flags`)
 and explains them (:func:`summary_keys`, :func:`working_lines`).
 
-Model (field-practice.md §1.1, §1.13; column-design.md §4):
+Model (judgement on ASTM D245 principles, from memory; NDS 2018 §3.9.2, §15.4.1):
 
 * Section loss is deducted from the section (decayed, insect-damaged and charred wood has no
   strength): depth per face from the original face, a hollow core at the centre, char plus the
   zero-strength layer, a notch across one face, a bored hole, wane at the corners. Probed decay is
-  extended by a margin (``decay_margin_mm``, default 13 mm: judgement, field-practice.md §1.6 #119).
+  extended by a margin (``decay_margin_mm``, default 13 mm: judgement, decay reaches further
+  than probed).
 * Where along the height: loss in the middle half (or over the full height) enters the stability
   check through the residual I and A (d_eff = sqrt(12 I / A) per axis); loss at an end enters the
   bearing checks at that end; the crushing check uses the net section wherever the loss is
@@ -21,12 +22,12 @@ Model (field-practice.md §1.1, §1.13; column-design.md §4):
   knots and slope, so the ratio is applied only when the member is ungraded or of unknown grade,
   or the inspector states the defect is beyond the grade (``sr_applies``); it then multiplies the
   tabulated value as if it were clear wood: conservative by up to the grade's own ratio
-  (judgement, field-practice.md §1.1).
+  (judgement, ASTM D245 principle, from memory).
 * Eccentricity (load off-centre, the centroid shift of one-sided loss, partial end contact, the
   lean of a sway post) and bow at mid-height are checked with the NDS 2018 §3.9.2 interaction in
-  the eccentric-column form of §15.4.1 (column-design.md §4.1, §4.2, §4.4); the capacity is the
-  largest load meeting it. A centred straight post has no such check: it gives exactly the plain
-  column result.
+  the eccentric-column form of §15.4.1 (a bowed post: Timoshenko & Gere ch. 1, initially curved
+  bar); the capacity is the largest load meeting it. A centred straight post has no such check:
+  it gives exactly the plain column result.
 """
 
 from __future__ import annotations
@@ -412,7 +413,7 @@ def residual(
             _nz(getattr(b, f"decay_{f}_mm")) > 0, _nz(getattr(b, f"decay_{f}_mm")) + margin, 0.0
         )
         for f in DEPTH_FIELDS
-    ]  # judgement margin past the probed boundary (field-practice.md §1.6)
+    ]  # judgement: a margin past the probed boundary (decay reaches further than probed)
     chr_ = [
         np.where(
             _nz(getattr(b, f"char_{f}_mm")) > 0,
@@ -460,7 +461,7 @@ def residual(
         mid, net, top, bot = _sections(b, dec, chr_, parts, h, d1)
     loss_mid = loss_any & (mid["area"] < gross)
     # through split in the buckling-critical part: the halves act separately about one axis,
-    # I about it / 4 (mechanics, field-practice.md §1.4 [X]); unknown faces: the worse axis
+    # I about it / 4 (mechanics; judgement [X]); unknown faces: the worse axis
     split_mid = (b.split >= SPLIT_THROUGH) & _in_zone(b.split_zone, MIDDLE)
     with np.errstate(divide="ignore", invalid="ignore"):
         a_m = np.where(loss_mid, mid["area"], gross)
@@ -623,7 +624,8 @@ def eccentricities(b: PostBatch, values: dict) -> tuple[np.ndarray, ...]:
     cap; the centroid shift of one-sided loss; partial end contact, (1 - contact) d2 / 2 about the
     weak axis (judgement: the patch taken against one wide face); and for a sway post (a top or
     bottom free to move sideways) the lean over the height (P-delta; the sway Ke in FcE gives the
-    amplification, column-design.md §4.4). A post held at both ends gains no bending from its lean.
+    amplification, Timoshenko & Gere ch. 1, initially curved bar). A post held at both ends gains no
+    bending from its lean.
     """
     sway = values["sway"]
     contact = np.clip(b.end_contact, 0.0, 1.0)
@@ -883,7 +885,7 @@ MINOR = ("decay_risk", "saturated", "sw_suspect", "checks", "sr_not_applied", "l
 
 
 def stress_wave(b: PostBatch) -> dict[str, np.ndarray]:
-    """Velocity v = path / time (m/s), E_d = rho v^2 (MPa; field-practice.md §2, physics) and the
+    """Velocity v = path / time (m/s), E_d = rho v^2 (MPa; physics) and the
     ratio of the transit time to the sound reading on the same member and path."""
     with np.errstate(divide="ignore", invalid="ignore"):
         v = b.sw_path_mm / b.sw_time_us * 1000.0  # mm/us = 1000 m/s

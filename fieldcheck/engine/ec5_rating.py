@@ -76,7 +76,8 @@ def _combined(b: PostBatch, checks: dict, v: dict, m: np.ndarray, col, kappa: np
 
     The end eccentricity plus the measured bow (judgement: first-order moments at mid-height, taken
     together, conservative) give sigma_m = N e / W on the residual section. With lambda_rel > 0.3 on
-    an axis Eq. 6.23/6.24 are linear in N, so the largest N is 1 / (the sum of the terms per unit N);
+    an axis Eq. 6.23/6.24 are linear in N, so the largest N is 1 / (the sum of the terms per unit
+    N);
     otherwise Eq. 6.19/6.20 (§6.2.4) are quadratic in N, solved in closed form.
     """
     wanted = np.asarray(v.get("ecc_wanted", False)) & m
@@ -142,7 +143,8 @@ def ec5_steps(r: Rating, i: int) -> list[Step]:
         s.append(
             Step(
                 f"Axis {ax}: L_ef = Ke x lu",
-                f"{v[f'ke{ax}'][i] * v[f'lu{ax}'][i]:.0f} mm (Ke {v[f'ke{ax}'][i]:.3g}, NDS Table G1 values)",
+                f"{v[f'ke{ax}'][i] * v[f'lu{ax}'][i]:.0f} mm (Ke {v[f'ke{ax}'][i]:.3g}, NDS "
+                "Table G1 values)",
                 "EN 1995-1-1 §6.3.2; judgement",
             )
         )

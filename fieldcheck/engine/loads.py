@@ -154,18 +154,18 @@ def tributary_area_mm2(s1_mm, s2_mm, t1_mm, t2_mm) -> np.ndarray:
     ``s1, s2``: distances to the next support on either side in one direction; ``t1, t2`` in
     the other. Use 0 where there is no neighbour (edge and corner posts) or the overhang length
     where the floor cantilevers past the post.
-    A = (s1 + s2)/2 x (t1 + t2)/2  # field-practice.md §5.1, common practice
+    A = (s1 + s2)/2 x (t1 + t2)/2  # common practice, no source
     """
     s1 = _arr("s1_mm", s1_mm, "mm", "3048 (10 ft)")
     s2 = _arr("s2_mm", s2_mm, "mm", "3048 (10 ft)")
     t1 = _arr("t1_mm", t1_mm, "mm", "3658 (12 ft)")
     t2 = _arr("t2_mm", t2_mm, "mm", "3658 (12 ft)")
-    return (s1 + s2) / 2.0 * (t1 + t2) / 2.0  # field-practice.md §5.1
+    return (s1 + s2) / 2.0 * (t1 + t2) / 2.0  # common practice, no source
 
 
 def tributary_area_grid_mm2(spacing1_mm, spacing2_mm, position="interior") -> np.ndarray:
     """Tributary area of a post in a regular grid, mm^2: interior s1 x s2, edge s1 x s2/2,
-    corner s1/2 x s2/2 (no overhang).  # field-practice.md §5.1, common practice"""
+    corner s1/2 x s2/2 (no overhang).  # common practice, no source"""
     a = _arr("spacing1_mm", spacing1_mm, "mm", "3048 (10 ft)", allow_zero=False)
     b = _arr("spacing2_mm", spacing2_mm, "mm", "3658 (12 ft)", allow_zero=False)
     pos = _keys("position", position, POSITION_NAMES, "interior")
@@ -493,7 +493,7 @@ def wall_removal(
     """Joists spanning onto a bearing wall from each side; the wall replaced by a new beam.
 
     Line load on the wall: w = q x (L1/2 + L2/2) per floor, plus any wall weight above (dead)
-    # field-practice.md §5.6, common practice.
+    # common practice, no source: simple spans.
     New beam of span Lb, simple span: each end post carries R = w Lb / 2 (beam theory; beam
     self-weight not included: add it to ``wall_above_dead_n_per_mm``).
     Temporary shoring during the work (assumption, state it in the working): with
@@ -523,7 +523,8 @@ def wall_removal(
 
     half = (l1 + l2) / 2.0
     w = {
-        "D": qd * KPA_N_PER_MM2 * half * nf + wa,  # field-practice.md §5.6: w = q (L1/2 + L2/2)
+        # common practice, no source: simple spans: w = q (L1/2 + L2/2)
+        "D": qd * KPA_N_PER_MM2 * half * nf + wa,
         "L": ql * KPA_N_PER_MM2 * half * nf,
     }
     r = {k: v * lb / 2.0 for k, v in w.items()}  # beam theory: simple span, R = w Lb / 2
@@ -625,7 +626,7 @@ class LateralDemand:
 
     ``minimum_n``: minimum lateral design load of the rule; ``thrust_n``: out-of-plumb thrust
     P delta / h; ``total_n``: their sum (judgement: the thrust is added to the minimum,
-    field-practice.md §4.4); ``rule`` and ``clause`` name the source.
+    FEMA US&R and Cal/OSHA T8 §1717, secondary); ``rule`` and ``clause`` name the source.
     """
 
     minimum_n: np.ndarray
@@ -643,7 +644,7 @@ def _lateral_rules() -> dict[str, dict[str, str]]:
 
 def out_of_plumb_thrust_n(P_n, offset_mm, height_mm) -> np.ndarray:
     """Horizontal thrust from a post out of plumb by ``offset_mm`` over ``height_mm``:
-    H = P delta / h (statics, field-practice.md §1.11)."""
+    H = P delta / h (statics)."""
     p = _arr("P_n", P_n, "N", "26689 (6,000 lbf)")
     d = _arr("offset_mm", offset_mm, "mm", "25.4 (1 in)")
     h = _arr("height_mm", height_mm, "mm", "2438 (96 in)", allow_zero=False)
@@ -699,6 +700,6 @@ def lateral_demand(
     else:
         thrust = np.zeros(np.broadcast_shapes(p.shape, off.shape))
     minimum, thrust = np.broadcast_arrays(minimum, thrust)
-    total = minimum + thrust  # field-practice.md §4.4: add P delta/h to the minimum, judgement
+    total = minimum + thrust  # judgement: add P delta/h to the minimum
     frac_arr = np.full(total.shape, frac)
     return LateralDemand(minimum.copy(), thrust.copy(), total, frac_arr, rule, row["source"])

@@ -58,7 +58,7 @@ GRADE_ALIASES = {
     "unknown": "unknown",
     "?": "unknown",
 }
-# Lowest structural grade assumed when the grade is unknown (field-practice.md §3.2; judgement).
+# Lowest structural grade assumed when the grade is unknown (ASCE 41 data collection; judgement).
 DEFAULT_GRADE = "no2"
 # Knowledge factor with default (assumed) values: ASCE 41 data-collection table (secondary).
 KAPPA_DEFAULT_VALUES = 0.75

@@ -12,7 +12,7 @@ from fieldcheck.engine.batch import DIMENSION, GLULAM, POLE, TIMBER
 from fieldcheck.engine.customary import IN, PSI
 
 # LRFD format conversion and resistance factors (NDS 2018 Table 4.3.1 and Appendix N; from memory
-# except KF = 2.16/phi for Fc, which column-design.md §1.2 supports).
+# except KF = 2.16/phi for Fc, which NDS 2018 Table 4.3.1, Appendix N supports).
 KF_FC, PHI_C = 2.40, 0.90
 KF_EMIN, PHI_S = 1.76, 0.85
 KF_FCP, PHI_FCP = 1.67, 0.90

@@ -219,7 +219,8 @@ class Remedies:
         resets = False
         if k == BRACE_WEAK:
             desc = (
-                f"Brace at mid-height, {q.length(v1, 0, 1)} from the bottom, across the thin side; tie the "
+                f"Brace at mid-height, {q.length(v1, 0, 1)} from the bottom, across the thin "
+                "side; tie the "
                 "brace to "
                 "something that cannot move (it must carry at least 2 % of the load, "
                 f"{q.force(0.02 * load, 2)})."
@@ -227,7 +228,8 @@ class Remedies:
             rec = {"brace_weak": f"{v1:.0f} mm"}
         elif k == BRACE_BOTH:
             desc = (
-                f"Brace at mid-height, {q.length(v1, 0, 1)} from the bottom, in both directions; each brace "
+                f"Brace at mid-height, {q.length(v1, 0, 1)} from the bottom, in both "
+                "directions; each brace "
                 "tied to "
                 "something that cannot move, carrying at least 2 % of the load "
                 f"({q.force(0.02 * load, 2)})."
@@ -237,14 +239,16 @@ class Remedies:
                 rec["brace_weak"] = f"{v1:.0f} mm"
         elif k == PLATE:
             desc = (
-                f"Steel bearing plates at the cap and the sill, {q.length(v1, 0, 1)} long along their "
+                f"Steel bearing plates at the cap and the sill, {q.length(v1, 0, 1)} long along "
+                "their "
                 "grain, at least "
                 "1/2 in thick (judgement: an engineer confirms the plate)."
             )
             rec = {"plate": f"{v1:.0f} mm", "end_plate": "yes"}
         elif k == PAD:
             desc = (
-                f"A pad or mudsill {q.length(v1, 0, 1)} square and at least {q.length(v2, 0, 1)} thick (the load "
+                f"A pad or mudsill {q.length(v1, 0, 1)} square and at least "
+                f"{q.length(v2, 0, 1)} thick (the load "
                 "spreads 1:1 "
                 "through it, judgement) on the same soil, prepared and level."
             )

@@ -7,6 +7,8 @@ the recommended design Ke (larger where fixity is assumed, because field fixity 
 
 from __future__ import annotations
 
+import itertools
+
 import numpy as np
 
 from fieldcheck.engine.batch import END_NAMES, FIXED, FREE, GUIDED, PINNED
@@ -98,4 +100,4 @@ def unbraced_length(height_mm: float, brace_heights_mm: list[float], field: str)
                 f"({height_mm:.0f} mm); give brace heights measured up from the bottom."
             )
     edges = [0.0, *pts, height_mm]
-    return max(b - a for a, b in zip(edges, edges[1:], strict=False))
+    return max(b - a for a, b in itertools.pairwise(edges))

@@ -1,7 +1,7 @@
 """Cross-sections: nominal to dressed sizes, round posts, built-up plies. SI (mm) throughout.
 
 Measured dimensions always win: nominal sizes only fill in what was not measured (rough-sawn and
-old stock is often full size; column-design.md §2.3).
+old stock is often full size; NDS Supplement Table 1B).
 """
 
 from __future__ import annotations

@@ -18,7 +18,9 @@ SPRING_MODE = -2  # mode index for "spring-restrained ends, solved"
 
 
 def end_ratio(code: np.ndarray, r: np.ndarray) -> np.ndarray:
-    """R = k L / (E I) of an end: the spring where given, else 0 (pinned, free) or inf (fixed, guided)."""
+    """R = k L / (E I) of an end: the spring where given, else 0 (pinned, free) or inf (fixed,
+    guided).
+    """
     from_code = np.where((code == FIXED) | (code == GUIDED), np.inf, 0.0)
     return np.where(np.isnan(r), from_code, r)
 
@@ -33,7 +35,8 @@ def spring_ke(b: PostBatch, idx: np.ndarray) -> tuple[np.ndarray, np.ndarray, np
     rt, rb = end_ratio(top, b.r_top[idx]), end_ratio(bot, b.r_bottom[idx])
     t_top, t_bot = translates(top), translates(bot)
     sway = t_top | t_bot
-    # the solver's sway case moves the top; a swaying bottom under a held top is the same post upside down
+    # the solver's sway case moves the top; a swaying bottom under a held top is the same post
+    # upside down
     flip = t_bot & ~t_top
     r_up, r_down = np.where(flip, rb, rt), np.where(flip, rt, rb)
     both = t_top & t_bot  # nothing holds it sideways: a mechanism

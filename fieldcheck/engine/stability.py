@@ -20,7 +20,7 @@ matrices (2 x (braces + 2) rows), computed batched with ``np.linalg.eigvalsh``. 
 
 Units: EI in N mm^2, L and brace heights in mm, rotational stiffness in N mm / rad, lateral and
 brace stiffness in N / mm; the critical load in N. Dimensionless forms: R = k_rot L / EI (the
-stiffness ratio of column-design.md §7.2) and T = k_lat L^3 / EI.
+stiffness ratio of Timoshenko & Gere ch. 2, stability functions) and T = k_lat L^3 / EI.
 
 Public functions (all vectorised over posts; every stiffness argument broadcasts to length n):
 
@@ -53,10 +53,13 @@ __all__ = [
 _TWO_PI = 2.0 * math.pi
 _ITERATIONS = 52  # halvings of the bracket: 2**-52 ~ 2e-16 of the upper bound on u
 _SERIES_BELOW = 1.0
-_RIGID_RATIO = 1e9  # a spring this many times the segment stiffness (12EI/l^3, 4EI/l) is rigid  # use the Taylor series of the cancelling differences below this argument
+# a spring this many times the segment stiffness (12EI/l^3, 4EI/l) is rigid  # use the Taylor series
+# of the cancelling differences below this argument
+_RIGID_RATIO = 1e9
 
 # ---------------------------------------------------------------------------------------------
-# Ideal cases: NDS 2018 Appendix G, Table G1 (column-design.md §1.4). Theoretical K for (b) is the
+# Ideal cases: NDS 2018 Appendix G, Table G1 (NDS 2018 Appendix G Table G1). Theoretical K for (b)
+# is the
 # exact root of tan u = u (Timoshenko & Gere ch. 2), so a solved K equal to it maps onto 0.80.
 # (name, theoretical K, NDS recommended design Ke)
 IDEAL_CASES: tuple[tuple[str, float, float], ...] = (
@@ -92,7 +95,8 @@ def _as_float(name: str, value, n: int) -> np.ndarray:
         return np.full(n, float(arr))
     if arr.shape != (n,):
         raise ValueError(
-            f"{name} has shape {arr.shape} but every post needs one value: give {n} values or one scalar."
+            f"{name} has shape {arr.shape} but every post needs one value: give {n} values or "
+            "one scalar."
         )
     return arr
 
@@ -107,7 +111,8 @@ def _check_stiffness(name: str, arr: np.ndarray, unit: str, example: str) -> Non
     if bad.any():
         i = int(np.argmax(bad))
         raise ValueError(
-            f"{name}{_of_post(i, arr.size)} is {_fmt(arr[i])}: it must be 0 (no restraint) up to inf (rigid) {unit}, "
+            f"{name}{_of_post(i, arr.size)} is {_fmt(arr[i])}: it must be 0 (no restraint) up "
+            f"to inf (rigid) {unit}, "
             f"for example {example}."
         )
 
@@ -117,7 +122,8 @@ def _check_positive(name: str, arr: np.ndarray, unit: str, example: str) -> None
     if bad.any():
         i = int(np.argmax(bad))
         raise ValueError(
-            f"{name}{_of_post(i, arr.size)} is {_fmt(arr[i])}: it must be a positive finite number in {unit}, for example {example}."
+            f"{name}{_of_post(i, arr.size)} is {_fmt(arr[i])}: it must be a positive finite "
+            f"number in {unit}, for example {example}."
         )
 
 
@@ -128,7 +134,8 @@ def _prepare_braces(braces, brace_k, n: int, L: np.ndarray, unit: str = "mm"):
     h = np.atleast_2d(np.asarray(braces, dtype=np.float64))
     if h.ndim != 2 or h.shape[0] not in (1, n):
         raise ValueError(
-            f"braces has shape {np.shape(braces)}: give an (n, m) array of heights in {unit} from the bottom, "
+            f"braces has shape {np.shape(braces)}: give an (n, m) array of heights in {unit} "
+            "from the bottom, "
             f"NaN-padded, for example [[1200.0, nan]] for one brace."
         )
     h = np.broadcast_to(h, (n, h.shape[1]))
@@ -142,16 +149,19 @@ def _prepare_braces(braces, brace_k, n: int, L: np.ndarray, unit: str = "mm"):
     if bad.any():
         i, j = np.argwhere(bad)[0]
         raise ValueError(
-            f"brace height {_fmt(h[i, j])} {unit}{_of_post(i, n)} is not between the bottom (0) and the top "
+            f"brace height {_fmt(h[i, j])} {unit}{_of_post(i, n)} is not between the bottom (0) "
+            "and the top "
             f"({_fmt(L[i])}) of the post: a brace must lie strictly between the ends, for example "
-            f"{_fmt(0.5 * L[i])} for mid-height (restrain an end with its lateral stiffness instead)."
+            f"{_fmt(0.5 * L[i])} for mid-height (restrain an end with its lateral stiffness "
+            "instead)."
         )
     kb = np.where(given, k, np.inf)
     bad_k = given & ~(kb > 0)
     if bad_k.any():
         i, j = np.argwhere(bad_k)[0]
         raise ValueError(
-            f"brace stiffness {_fmt(kb[i, j])}{_of_post(i, n)} must be greater than 0 up to inf (rigid), "
+            f"brace stiffness {_fmt(kb[i, j])}{_of_post(i, n)} must be greater than 0 up to inf "
+            "(rigid), "
             f"for example inf; a brace with no stiffness is not a brace: leave it out."
         )
     order = np.argsort(h, axis=1, kind="stable")  # NaN sorts last
@@ -161,7 +171,8 @@ def _prepare_braces(braces, brace_k, n: int, L: np.ndarray, unit: str = "mm"):
     if dup.any():
         i, j = np.argwhere(dup)[0]
         raise ValueError(
-            f"The post{_of_post(i, n)} has two braces at the same height {_fmt(h[i, j])} {unit}: give each brace height once "
+            f"The post{_of_post(i, n)} has two braces at the same height {_fmt(h[i, j])} "
+            f"{unit}: give each brace height once "
             f"(add their stiffnesses if there really are two)."
         )
     m = int((~np.isnan(h)).sum(axis=1).max(initial=0))
@@ -288,13 +299,16 @@ def _mechanism_sentence(i: int, Rt, Rb, Tt, Tb, Tbr) -> str:
     points = int((Tt[i] > 0) + (Tb[i] > 0) + (Tbr[i] > 0).sum())
     if points == 0:
         return (
-            f"The post{_of_post(i, Rt.size)} is a mechanism about this axis: nothing holds it laterally (both end lateral "
+            f"The post{_of_post(i, Rt.size)} is a mechanism about this axis: nothing holds it "
+            "laterally (both end lateral "
             f"stiffnesses are 0 and there are no braces), so it slides sideways under any load; "
             f"hold at least one end laterally."
         )
     return (
-        f"The post{_of_post(i, Rt.size)} is a mechanism about this axis: it is held laterally at one point only and no end "
-        f"resists rotation (like a pinned base with a free top), so it tips over under any load; hold the "
+        f"The post{_of_post(i, Rt.size)} is a mechanism about this axis: it is held laterally "
+        "at one point only and no end "
+        "resists rotation (like a pinned base with a free top), so it tips over under any "
+        "load; hold the "
         f"other end laterally, add a brace, or give an end rotational stiffness."
     )
 
@@ -527,7 +541,8 @@ def bracketing_cases(R_top, R_bottom, sway=False) -> tuple[np.ndarray, np.ndarra
         if bad.any():
             i = int(np.argmax(bad.ravel()))
             raise ValueError(
-                f"{name}{_of_post(i, arr.size)} is {_fmt(arr.ravel()[i])}: it must be 0 (pin) up to inf (fixed), for example 2.0."
+                f"{name}{_of_post(i, arr.size)} is {_fmt(arr.ravel()[i])}: it must be 0 (pin) "
+                "up to inf (fixed), for example 2.0."
             )
 
     def case(top_fixed, bottom_fixed):
@@ -549,7 +564,7 @@ def bracketing_cases(R_top, R_bottom, sway=False) -> tuple[np.ndarray, np.ndarra
 def design_k(K_solved, R_top, R_bottom, sway=False, theoretical=False) -> np.ndarray:
     """The K to rate with: the solved K, raised to the NDS recommended design values.
 
-    Rule (judgement; column-design.md §7.4 last bullet; NDS 2018 Appendix G Table G1): the NDS
+    Rule (judgement; AISC 360-16 Commentary Appendix 7; NDS 2018 Appendix G Table G1): the NDS
     recommended Ke exceeds the theoretical K where fixity is relied on, because field fixity is
     imperfect. A spring end lies between pinned and fixed, so the post lies between two ideal
     cases (:func:`bracketing_cases`): the stiffer (springs fixed, theoretical K_s, recommended

@@ -1,4 +1,4 @@
-"""Columns and builder for the post as found (engine/condition.py; field-practice.md §1-§3).
+"""Columns and builder for the post as found (engine/condition.py; common practice, no source).
 
 Faces: a *wide* face is the face as wide as the post's larger side d1 (loss there reduces the
 thickness d2); a *narrow* face is d2 wide. On a square post, "wide" and "narrow" are any two

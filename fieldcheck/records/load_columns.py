@@ -336,7 +336,7 @@ def load_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
             "live", loads.live_load_kpa(row["occupancy"]) if "occupancy" in row else 0.0
         )
         k = loads.KPA_N_PER_MM2 * area
-        D = row.get("dead", 0.0) * k * nf + row.get("point", 0.0)  # field-practice.md §5.1
+        D = row.get("dead", 0.0) * k * nf + row.get("point", 0.0)  # common practice, no source
         L = q_live * k * nf + row.get("point_live", 0.0)
         Lr, S, R = (row.get(c, 0.0) * k for c in ("roof_live", "snow", "rain"))
         if R > 0 and "rain_duration" not in row:

@@ -34,7 +34,7 @@ def _post(**kw):
 
 
 def test_one_face_decay_hand_computed():
-    # field-practice.md §1.6 (#36, computed): 6x6 with 1 in decay on one face -> 5.5 x 4.5 in:
+    # judgement: decayed wood has no strength: 6x6 with 1 in decay on one face -> 5.5 x 4.5 in:
     # area ratio 0.818, weak-axis I ratio 0.548, least dimension 4.5 in, centroid shift 0.5 in
     r = rate(_post(decay_2p_mm=1.0 * IN, decay_margin_mm=0.0))
     v = r.values
@@ -49,7 +49,7 @@ def test_one_face_decay_hand_computed():
 
 
 def test_decay_margin_default_half_inch():
-    # judgement default 13 mm (field-practice.md §1.6 #119): 1 in probed acts as 1 in + 13 mm
+    # judgement default 13 mm (decay reaches further than probed): 1 in probed acts as 1 in + 13 mm
     v = rate(_post(decay_2p_mm=1.0 * IN)).values
     assert v["least_d2"][0] == pytest.approx(5.5 * IN - 1.0 * IN - 13.0)
 
@@ -90,7 +90,7 @@ def test_decay_at_an_end_enters_bearing_not_stability():
 
 
 def test_through_split_quarter_of_i():
-    # field-practice.md §1.4 (computed): halves acting separately: I / 4 about one axis
+    # mechanics; judgement: halves acting separately: I / 4 about one axis
     v = rate(_post(split=2, split_faces=2)).values
     assert v["res_i2"][0] == pytest.approx((5.5 * IN) ** 4 / 48)
     assert v["d_eff2"][0] == pytest.approx(5.5 * IN / 2)
@@ -101,14 +101,14 @@ def test_through_split_quarter_of_i():
     [{"split": 3}, {"crushing_active": True}, {"settling_sill": True}, {"post_moving": True}],
 )
 def test_make_safe_now_conditions(kw):
-    # field-practice.md §6.2 category D (judgement): always the last level, whatever the ratio
+    # judgement: always the last level, whatever the ratio
     r = rate(_post(load_n=100.0, **kw))
     assert int(r.action[0]) == 3
     assert explain.summary(r, 0)["condition"] == "severe"
 
 
 def test_moisture_flags():
-    # field-practice.md §1.9 (judgement [C]): > 19 CM, >= 20 decay risk, >= 28 saturated
+    # judgement: decay fungi need about 20 % MC: > 19 CM, >= 20 decay risk, >= 28 saturated
     r = rate(_post(moisture_pct=[19.0, 20.0, 28.0]))
     w = [explain.warnings(r, i) for i in range(3)]
     assert not any("decay risk" in t for t in w[0])
@@ -117,7 +117,7 @@ def test_moisture_flags():
 
 
 def test_stress_wave():
-    # E_d = rho v^2 (physics): 500 kg/m3 at 5000 m/s -> 12,500 MPa (field-practice.md §2)
+    # E_d = rho v^2 (physics): 500 kg/m3 at 5000 m/s -> 12,500 MPa (physics)
     r = rate(
         _post(
             sw_time_us=[200.0, 130.0, 150.0],

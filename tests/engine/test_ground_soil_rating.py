@@ -12,7 +12,7 @@ LBF = 4.4482216152605
 FT = 304.8
 PSF = loads.PSF_KPA
 PSI = 0.006894757293168361
-POST = dict(size="6x6", height="8ft", species="douglas-fir-larch", grade="no1")
+POST = {"size": "6x6", "height": "8ft", "species": "douglas-fir-larch", "grade": "no1"}
 
 
 def ground_bit(name: str) -> int:
@@ -39,7 +39,7 @@ def _one(**cols):
     ],
 )
 def test_soil_capacity_is_presumptive_value_times_pad_area(soil, psf):
-    # IBC 2012 Table 1806.2 (secondary, field-practice.md §4.7): capacity = q_allow x A, 2 ft x 2 ft pad
+    # IBC 2012 Table 1806.2 (secondary): capacity = q_allow x A, 2 ft x 2 ft pad
     r = _one(load="1000lbf", pad="2ft x 2ft", soil=soil)
     c = r.checks["soil_bearing"]
     assert c.capacity_n[0] / LBF == pytest.approx(psf * 4.0, rel=1e-9)
@@ -48,7 +48,8 @@ def test_soil_capacity_is_presumptive_value_times_pad_area(soil, psf):
 
 
 def test_6000_lb_on_clay_needs_4_ft2():
-    # field-practice.md §4.7: A = P / q = 6,000 / 1,500 = 4.0 ft^2 -> ratio 1.0 on a 4 ft^2 pad
+    # IBC 2012 Table 1806.2 (secondary): A = P / q = 6,000 / 1,500 = 4.0 ft^2 -> ratio 1.0 on a 4
+    # ft^2 pad
     r = _one(load="6000lbf", pad="4 ft2", soil="clay")
     assert r.checks["soil_bearing"].ratio[0] == pytest.approx(1.0)
     r = _one(load="9000lbf", pad="2ft x 2ft", soil="clay")
@@ -59,9 +60,9 @@ def test_6000_lb_on_clay_needs_4_ft2():
 @pytest.mark.parametrize(
     "cols, flag, level",
     [
-        (dict(soil="unknown"), ground_bit("soil_unknown"), 1),
-        (dict(), ground_bit("soil_unknown"), 1),  # a pad with no soil stated is unknown soil
-        (dict(soil="unprepared"), ground_bit("soil_unprepared"), 2),
+        ({"soil": "unknown"}, ground_bit("soil_unknown"), 1),
+        ({}, ground_bit("soil_unknown"), 1),  # a pad with no soil stated is unknown soil
+        ({"soil": "unprepared"}, ground_bit("soil_unprepared"), 2),
     ],
 )
 def test_unknown_and_unprepared_soil_never_pass_silently(cols, flag, level):
@@ -96,7 +97,8 @@ def test_no_pad_no_soil_no_ground_check():
 
 
 def test_pad_spread_through_thickness():
-    # judgement (ground.py): each side counts up to post side + 2 t; 6x6 (5.5 in) on a 4 ft pad 6 in thick
+    # judgement (ground.py): each side counts up to post side + 2 t; 6x6 (5.5 in) on a 4 ft pad 6 in
+    # thick
     r = _one(load="1000lbf", pad="4ft x 4ft", pad_thickness="6in", soil="sand")
     side = 5.5 * 25.4 + 2 * 6 * 25.4
     assert r.values["pad_area_eff"][0] == pytest.approx(side**2)
@@ -107,15 +109,16 @@ def test_pad_spread_through_thickness():
 
 
 def test_bearing_plate_spreads_on_the_sill():
-    # NDS 2018 §3.10.2, §3.10.4: Fc-perp x Cb x A; 4x4 on a DF-L sill (625 psi, from memory), 8 in plate
-    base = dict(
-        size="4x4",
-        height="8ft",
-        species="douglas-fir-larch",
-        grade="no2",
-        load="1000lbf",
-        sill_species="douglas-fir-larch",
-    )
+    # NDS 2018 §3.10.2, §3.10.4: Fc-perp x Cb x A; 4x4 on a DF-L sill (625 psi, from memory), 8 in
+    # plate
+    base = {
+        "size": "4x4",
+        "height": "8ft",
+        "species": "douglas-fir-larch",
+        "grade": "no2",
+        "load": "1000lbf",
+        "sill_species": "douglas-fir-larch",
+    }
     r0, _ = rate_records([base])
     r1, _ = rate_records([{**base, "plate": "8in"}])
     assert r0.checks["sill_bearing"].capacity_n[0] / LBF == pytest.approx(625 * 12.25, rel=1e-6)
@@ -126,7 +129,7 @@ def test_bearing_plate_spreads_on_the_sill():
 
 
 def test_bracing_demand_in_values_and_summary():
-    # FEMA US&R 2 % of P (secondary) + out-of-plumb P x 1 in / 96 in (statics), field-practice.md §4.4
+    # FEMA US&R 2 % of P (secondary) + out-of-plumb P x 1 in / 96 in (statics); judgement
     r = _one(load="8000lbf", lateral_rule="fema-minimum", lean="1in")
     br = explain.summary(r, 0)["bracing"]
     assert br["minimum_lbf"] == pytest.approx(160.0)
@@ -165,9 +168,9 @@ def test_vectorised_soil_matches_loads_soil_check():
 
 def test_bad_ground_input_one_sentence():
     for cols, col in (
-        (dict(soil="loam"), "soil"),
-        (dict(pad="big"), "pad"),
-        (dict(pad="-2 ft2"), "pad"),
+        ({"soil": "loam"}, "soil"),
+        ({"pad": "big"}, "pad"),
+        ({"pad": "-2 ft2"}, "pad"),
     ):
         p = parse_records([{**POST, **cols}])
         assert p.errors and p.errors[0].column == col

@@ -39,7 +39,7 @@ def test_kpa_column_matches_psf(name):
 
 
 def test_live_loads_table_4_3_1():
-    # ASCE 7 Table 4.3-1 / IRC R301.5 via field-practice.md §5.3 and §8 #69-#73, #110 (secondary)
+    # ASCE 7 Table 4.3-1 / IRC R301.5 (secondary)
     expect = {
         "residential": 40,
         "residential-sleeping": 30,
@@ -67,7 +67,7 @@ def test_live_loads_table_4_3_1():
 
 
 def test_dead_loads_hud_and_fema():
-    # HUD RSDG Table 3.2 via field-practice.md §5.2 / #78, #79, #106-#108 (secondary)
+    # HUD RSDG Table 3.2 (secondary)
     expect = {
         "roof-asphalt": 15,
         "floor-carpet": 10,
@@ -108,7 +108,7 @@ def test_unknown_keys_one_sentence():
 
 
 def test_tributary_areas():
-    # field-practice.md §5.1: A = (s1 + s2)/2 x (t1 + t2)/2; 10 x 12 ft bay -> 120 ft^2
+    # common practice, no source: A = (s1 + s2)/2 x (t1 + t2)/2; 10 x 12 ft bay -> 120 ft^2
     a = loads.tributary_area_mm2(10 * FT, 10 * FT, 12 * FT, 12 * FT)
     assert a[0] / FT**2 == pytest.approx(120)
     edge = loads.tributary_area_mm2(10 * FT, 0, 12 * FT, 12 * FT)  # edge post: half on one side
@@ -126,7 +126,7 @@ def test_tributary_areas():
 
 
 def test_live_load_reduction_example():
-    # ASCE 7 §4.7.2 Eq. 4.7-1 via field-practice.md §5.3 / #77: Lo 40, A_T 120, K_LL 4 -> 37.4 psf
+    # ASCE 7 §4.7.2 Eq. 4.7-1 (secondary): Lo 40, A_T 120, K_LL 4 -> 37.4 psf
     l = loads.reduced_live_kpa(40 * PSF, 120 * FT**2, kll=4)
     assert l[0] / PSF == pytest.approx(37.4, abs=0.05)
     # below K_LL A_T = 400 ft^2 no reduction (#74)

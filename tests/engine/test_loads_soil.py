@@ -12,7 +12,7 @@ PSF = 0.0478802589  # kPa
 
 
 def test_presumptive_values_table_1806_2():
-    # IBC 2012 Table 1806.2 via field-practice.md §4.7 / §8 #64-#66 (secondary)
+    # IBC 2012 Table 1806.2 (secondary)
     rows = {r["key"]: r for r in table("soil_bearing")}
     expect = {
         "crystalline-bedrock": (12000, 1200, "0.70", ""),
@@ -37,7 +37,7 @@ def test_presumptive_values_table_1806_2():
 
 
 def test_pad_area_6000_lb_on_1500_psf():
-    # field-practice.md §4.7 / §8 #68: A = P / q = 6,000 / 1,500 = 4.0 ft^2
+    # IBC 2012 Table 1806.2 (secondary); computed by hand: A = P / q = 6,000 / 1,500 = 4.0 ft^2
     a = loads.required_pad_area_mm2(6000 * LBF, 1500 * PSF)
     assert a[0] / FT**2 == pytest.approx(4.0, rel=1e-6)
     s = loads.soil_check(6000 * LBF, 4 * FT**2, "clay")
@@ -48,7 +48,8 @@ def test_pad_area_6000_lb_on_1500_psf():
 
 
 def test_unknown_and_unprepared_soil_get_no_capacity():
-    # IBC §1806.2: mud, organic soils, unprepared fill have no presumptive value (field-practice.md §4.7)
+    # IBC §1806.2: mud, organic soils, unprepared fill have no presumptive value (IBC 2012 Table
+    # 1806.2 (secondary))
     s = loads.soil_check(np.full(3, 6000 * LBF), 4 * FT**2, ["unknown", "unprepared", "sand"])
     assert np.isnan(s.allowable_kpa[:2]).all() and np.isnan(s.ratio[:2]).all()
     assert s.flags[0] & loads.SOIL_UNKNOWN and s.flags[1] & loads.SOIL_UNPREPARED
@@ -57,7 +58,7 @@ def test_unknown_and_unprepared_soil_get_no_capacity():
 
 
 def test_hud_default_only_when_chosen():
-    # 24 CFR 3285.202(e): 1,500 psf when the class cannot be determined (field-practice.md §8 #67, read)
+    # 24 CFR 3285.202(e): 1,500 psf when the class cannot be determined (read)
     s = loads.soil_check(8000 * LBF, 4 * FT**2, "unknown-hud-default")
     assert s.allowable_kpa[0] / PSF == pytest.approx(1500)
     assert s.flags[0] & loads.SOIL_ASSUMED and s.flags[0] & loads.SOIL_OVER

@@ -12,14 +12,14 @@ PLF = LBF / FT  # N/mm
 
 
 def _example():
-    # field-practice.md §5.6 example (§8 #86): joists 12 ft each side, D = 10, L = 40 psf,
+    # common practice, no source: simple spans: joists 12 ft each side, D = 10, L = 40 psf,
     # one floor, new 12 ft beam; temporary shores at 4 ft under a header (our assumption)
     return loads.wall_removal(12 * FT, 12 * FT, 10 * PSF, 40 * PSF, 12 * FT, 4 * FT)
 
 
 def test_line_load_600_plf():
     w = _example()
-    # field-practice.md §5.6 / #86: w = 50 psf x (12/2 + 12/2) ft = 600 plf
+    # common practice, no source: simple spans: w = 50 psf x (12/2 + 12/2) ft = 600 plf
     assert w.total("line_n_per_mm")[0] / PLF == pytest.approx(600, rel=1e-6)
     assert w.line_n_per_mm["D"][0] / PLF == pytest.approx(120, rel=1e-6)
     assert w.line_n_per_mm["L"][0] / PLF == pytest.approx(480, rel=1e-6)
@@ -27,7 +27,7 @@ def test_line_load_600_plf():
 
 def test_end_post_3600_lb():
     w = _example()
-    # field-practice.md §5.6 / #86: R = 600 plf x 12 ft / 2 = 3,600 lb per end post
+    # common practice, no source: simple spans: R = 600 plf x 12 ft / 2 = 3,600 lb per end post
     assert w.total("end_post_n")[0] / LBF == pytest.approx(3600, rel=1e-6)
     # the D/L split feeds asd_combinations: D + L is 3,600 lb at CD 1.0 (ASCE 7 §2.4.1 (2))
     c = loads.asd_combinations(w.end_post_n["D"], w.end_post_n["L"])
@@ -58,7 +58,8 @@ def test_unequal_spans_and_wall_above_vectorised():
         12 * FT,
         wall_above_dead_n_per_mm=60 * PLF,
     )
-    # (10/2 + 14/2) x 50 + 60 = 660 plf (field-practice.md §5.6 with wall weight above)
+    # (10/2 + 14/2) x 50 + 60 = 660 plf (common practice, no source: simple spans with wall weight
+    # above)
     assert np.allclose(w.total("line_n_per_mm") / PLF, 660)
     assert np.all(np.isnan(w.shore_n["D"]))  # no spacing given: shore loads not computed
     # most loaded side: 7 ft x 50 psf + 30 plf (half the wall above) = 380 plf (by hand)

@@ -35,21 +35,21 @@ post = st.fixed_dictionaries(
 
 def batch_of(p, **over):
     d1, d2 = max(p["d1"], p["d2"]), min(p["d1"], p["d2"])
-    kw = dict(
-        d1_mm=d1 * IN,
-        d2_mm=d2 * IN,
-        height_mm=p["h"] * IN,
-        fc_mpa=p["fc"] * PSI,
-        emin_mpa=p["emin"] * PSI,
-        fb_mpa=900 * PSI,
-        fc_perp_mpa=625 * PSI,
-        cd=p["cd"],
-        bottom=p["ends"][0],
-        top=p["ends"][1],
-        moisture_pct=p["mc"],
-        load_n=p["load"],
-        bottom_fc_perp_mpa=625 * PSI,
-    )
+    kw = {
+        "d1_mm": d1 * IN,
+        "d2_mm": d2 * IN,
+        "height_mm": p["h"] * IN,
+        "fc_mpa": p["fc"] * PSI,
+        "emin_mpa": p["emin"] * PSI,
+        "fb_mpa": 900 * PSI,
+        "fc_perp_mpa": 625 * PSI,
+        "cd": p["cd"],
+        "bottom": p["ends"][0],
+        "top": p["ends"][1],
+        "moisture_pct": p["mc"],
+        "load_n": p["load"],
+        "bottom_fc_perp_mpa": 625 * PSI,
+    }
     kw.update(over)
     return make_batch(**kw)
 

@@ -35,7 +35,8 @@ records = st.fixed_dictionaries(
 @settings(max_examples=60, deadline=None, suppress_health_check=[HealthCheck.too_slow])
 @given(records)
 def test_every_remedy_offered_passes_when_re_rated(rec):
-    # the brief of remedies.py: never offer an option that would itself fail (ratio <= 1, action < 2)
+    # the brief of remedies.py: never offer an option that would itself fail (ratio <= 1, action <
+    # 2)
     parsed = parse_records([rec])
     if parsed.errors:
         return
@@ -59,12 +60,13 @@ def test_every_remedy_offered_passes_when_re_rated(rec):
 
 
 def _rec(**kw):
-    base = dict(size="4x4", height="10ft", species="douglas-fir-larch", grade="no2")
+    base = {"size": "4x4", "height": "10ft", "species": "douglas-fir-larch", "grade": "no2"}
     return {**base, **kw}
 
 
 def test_ranked_by_cost_then_capacity():
-    # column-design.md worked example A at 10 ft: 4,665 lb; 6,000 lb fails (ratio 1.286)
+    # NDS 2018 §3.7.1, 4x4 No.2 DF-L pinned, computed by hand at 10 ft: 4,665 lb; 6,000 lb fails
+    # (ratio 1.286)
     p = parse_records([_rec(load="6000lbf")])
     rem = remedies(p.batch)
     kinds = [x.kind for x in rem.for_post(0)]
@@ -101,7 +103,8 @@ def test_pad_remedy_for_soil():
 
 
 def test_plate_lifts_end_bearing_limit():
-    # NDS 2018 §3.10.1.3 / §3.10.2: short 4x4 limited by a spruce-pine-fir sill (425 psi x 12.25 in^2)
+    # NDS 2018 §3.10.1.3 / §3.10.2: short 4x4 limited by a spruce-pine-fir sill (425 psi x 12.25
+    # in^2)
     p = parse_records([_rec(height="3ft", load="7000lbf", sill_species="spruce-pine-fir")])
     r = rate(p.batch)
     assert r.governing_name(0) == "sill_bearing"

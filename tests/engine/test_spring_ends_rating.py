@@ -44,7 +44,8 @@ def test_theoretical_k_only_when_asked():
             dict(BASE, top_ratio="2", bottom_ratio="2", k_theoretical="yes"),
         ]
     )
-    # AISC 360 Commentary App. 7 braced chart with G = 1 (R = 2/G = 2): K = 0.774265 (column-design.md §7.4)
+    # AISC 360 Commentary App. 7 braced chart with G = 1 (R = 2/G = 2): K = 0.774265 (AISC 360-16
+    # Commentary Appendix 7)
     assert r.values["k_solved"][1] == pytest.approx(0.774265, abs=1e-4)
     assert r.ke1[1] == pytest.approx(0.774265, abs=1e-4)
     assert r.ke1[0] > r.ke1[1]  # design value keeps the NDS margin for imperfect fixity
@@ -69,14 +70,16 @@ def test_bad_spring_input_one_sentence(kw, column):
 
 
 def test_k_factor_json_alignment_chart(capsys):
-    # AISC 360 Commentary Appendix 7, sway chart G_A = G_B = 1 -> R = 6/G = 6 ... table K sway 1.317275
+    # AISC 360 Commentary Appendix 7, sway chart G_A = G_B = 1 -> R = 6/G = 6 ... table K sway
+    # 1.317275
     assert main(["k-factor", "--top-ratio", "6", "--bottom-ratio", "6", "--sway", "--json"]) == 0
     out = json.loads(capsys.readouterr().out)
     assert out["K"] == pytest.approx(1.317275, abs=1e-4)
 
 
 def test_k_factor_mid_brace_halves_one_axis(capsys):
-    # a mid-height brace halves the effective length about that axis only (mechanics; NDS 2018 §3.7.1.1)
+    # a mid-height brace halves the effective length about that axis only (mechanics; NDS 2018
+    # §3.7.1.1)
     assert (
         main(
             ["k-factor", "--height", "10ft", "--brace-at", "5ft", "--brace-axis", "weak", "--json"]
@@ -107,13 +110,13 @@ def test_capacity_curve_is_the_batch_engine():
     parsed = parse_records([BASE])
     h = np.array([96.0, 120.0]) * 25.4
     curve = capacity_vs_height(parsed.batch, h)
-    # column-design.md worked example A: 6,959.64 and 4,665.07 lb
+    # NDS 2018 §3.7.1, 4x4 No.2 DF-L pinned, computed by hand: 6,959.64 and 4,665.07 lb
     assert curve[0] / 4.4482216152605 == pytest.approx([6959.64, 4665.07], rel=1e-5)
     assert (np.diff(capacity_vs_height(parsed.batch, np.linspace(600, 4000, 12))[0]) <= 0).all()
 
 
 def test_brace_curve_square_post_one_axis_does_not_help():
-    # field-practice.md §4.1: a square post braced in one direction only gains nothing
+    # mechanics: a square post braced in one direction only gains nothing
     parsed = parse_records([BASE])
     c = capacity_vs_brace(parsed.batch, np.array([0.25, 0.5, 0.75]), axis=2)
     assert c[0] == pytest.approx([cap()] * 3)

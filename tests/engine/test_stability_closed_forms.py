@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import itertools
 import math
 
 import numpy as np
@@ -41,7 +42,7 @@ TOL = 1e-4  # issue 4: agreement within 1e-4 in K
     ],
 )
 def test_ideal_cases(r_top, r_bottom, sway, expected, source):
-    # column-design.md §7.1 table (Timoshenko & Gere ch. 2)
+    # Timoshenko & Gere ch. 2
     K = k_from_ratios(r_top, r_bottom, sway)
     assert K[0] == pytest.approx(expected, abs=TOL), source
 
@@ -53,7 +54,7 @@ def test_fixed_pinned_root_of_tan_u_equals_u_with_scipy():
 
 
 def test_dimensional_call_matches_euler():
-    # Euler: P = pi^2 EI / L^2 for pinned-pinned (column-design.md §7.1)
+    # Euler: P = pi^2 EI / L^2 for pinned-pinned (Timoshenko & Gere ch. 2)
     EI, L = 1.1e11, 2440.0
     P = critical_load(EI, L, 0.0, 0.0, INF, INF)
     assert P[0] == pytest.approx(math.pi**2 * EI / L**2, rel=1e-9)
@@ -70,27 +71,27 @@ K_SWAY = [1.317275, 1.366766, 1.589488, 1.695356, 1.902969, 1.066454, 1.825799]
 
 
 def test_alignment_chart_braced_table():
-    # AISC 360 Commentary App. 7 Eq. C-A-7-1 with R = 2/G; values from column-design.md §7.4
+    # AISC 360 Commentary App. 7 Eq. C-A-7-1 with R = 2/G; AISC 360-16 Commentary Appendix 7
     ga, gb = np.array(G_PAIRS, dtype=float).T
     K = k_from_ratios(2 / ga, 2 / gb, False)
     np.testing.assert_allclose(K, K_BRACED, atol=TOL)
 
 
 def test_alignment_chart_sway_table():
-    # AISC 360 Commentary App. 7 Eq. C-A-7-2 with R = 6/G; values from column-design.md §7.4
+    # AISC 360 Commentary App. 7 Eq. C-A-7-2 with R = 6/G; AISC 360-16 Commentary Appendix 7
     ga, gb = np.array(G_PAIRS, dtype=float).T
     K = k_from_ratios(6 / ga, 6 / gb, True)
     np.testing.assert_allclose(K, K_SWAY, atol=TOL)
 
 
 def _chart_braced(K, ga, gb):
-    # AISC 360 Commentary App. 7 Eq. C-A-7-1 (column-design.md §7.4)
+    # AISC 360 Commentary App. 7 Eq. C-A-7-1 (AISC 360-16 Commentary Appendix 7)
     x = math.pi / K
     return ga * gb / 4 * x**2 + (ga + gb) / 2 * (1 - x / math.tan(x)) + 2 * math.tan(x / 2) / x - 1
 
 
 def _chart_sway(K, ga, gb):
-    # AISC 360 Commentary App. 7 Eq. C-A-7-2 (column-design.md §7.4)
+    # AISC 360 Commentary App. 7 Eq. C-A-7-2 (AISC 360-16 Commentary Appendix 7)
     x = math.pi / K
     return (ga * gb * x**2 - 36) / (6 * (ga + gb)) - x / math.tan(x)
 
@@ -109,46 +110,48 @@ def test_alignment_chart_equations_with_brentq(ga, gb):
     assert K[1] == pytest.approx(ks, abs=TOL)
 
 
-# --- the spring tables of column-design.md §7.4 -------------------------------------------------
+# --- AISC 360-16 Commentary Appendix 7 -------------------------------------------------
 
 R_COLS = [0.5, 1, 2, 5, 10, 20]
 
 
 def test_spring_table_braced_both_ends():
-    # column-design.md §7.4 "Reference K values for unit tests", braced, both ends R
+    # AISC 360-16 Commentary Appendix 7, braced, both ends R
     K = k_from_ratios(R_COLS, R_COLS, False)
     np.testing.assert_allclose(K, [0.91565, 0.85528, 0.77427, 0.65982, 0.59194, 0.54870], atol=TOL)
 
 
 def test_spring_table_braced_one_end():
-    # column-design.md §7.4, braced, one end R, other pinned
+    # AISC 360-16 Commentary Appendix 7, braced, one end R, other pinned
     K = k_from_ratios(R_COLS[:5], 0.0, False)
     np.testing.assert_allclose(K, [0.95605, 0.92248, 0.87488, 0.80377, 0.76024], atol=TOL)
 
 
 def test_spring_table_sway_both_ends():
-    # column-design.md §7.4, sway, both ends R
+    # AISC 360-16 Commentary Appendix 7, sway, both ends R
     K = k_from_ratios(R_COLS, R_COLS, True)
     np.testing.assert_allclose(K, [3.27185, 2.40451, 1.82580, 1.37521, 1.19558, 1.09933], atol=TOL)
 
 
 def test_spring_table_sway_base_fixed_top_spring():
-    # column-design.md §7.4, sway, base fixed, top R
+    # AISC 360-16 Commentary Appendix 7, sway, base fixed, top R
     K = k_from_ratios(R_COLS[:5], INF, True)
     np.testing.assert_allclose(K, [1.71055, 1.54853, 1.37252, 1.18387, 1.09740], atol=TOL)
 
 
 def test_spring_table_sway_base_spring_top_free():
-    # column-design.md §7.4, sway, base R, top free (u tan u = R, column-design.md §7.3)
+    # AISC 360-16 Commentary Appendix 7, sway, base R, top free (u tan u = R, Timoshenko & Gere ch.
+    # 2, stability functions)
     K = k_from_ratios(0.0, R_COLS[:5], True)
     np.testing.assert_allclose(K, [4.80902, 3.65160, 2.91733, 2.39116, 2.19866], atol=TOL)
 
 
 def test_large_finite_stiffness_tends_to_fixed():
-    # column-design.md §7.4 numerical notes: R of 1e6 to 1e8 behaves as fixed
+    # AISC 360-16 Commentary Appendix 7: R of 1e6 to 1e8 behaves as fixed
     K = k_from_ratios([1e8, 1e8, 1e8], [1e8, 0.0, 1e8], [False, False, True])
     np.testing.assert_allclose(K, [0.5, 0.699156, 1.0], atol=TOL)
-    # far beyond that (1e14) the answer must not be spoiled by round-off (common practice, no source)
+    # far beyond that (1e14) the answer must not be spoiled by round-off (common practice, no
+    # source)
     K = k_from_ratios([1e14, 1e14, 1e14], [1e14, 0.0, 1e14], [False, False, True])
     np.testing.assert_allclose(K, [0.5, 0.699156, 1.0], atol=TOL)
     K = effective_length_factor(1.0, 1.0, 0.0, 0.0, [1e12, 1e14], INF)
@@ -156,7 +159,7 @@ def test_large_finite_stiffness_tends_to_fixed():
 
 
 def _f_braced(u, ra, rb):
-    # column-design.md §7.2 characteristic equation (no poles)
+    # Timoshenko & Gere ch. 2, stability functions characteristic equation (no poles)
     return (
         u**3 * math.sin(u)
         + (ra + rb) * u * (math.sin(u) - u * math.cos(u))
@@ -165,7 +168,7 @@ def _f_braced(u, ra, rb):
 
 
 def _f_sway(u, ra, rb):
-    # column-design.md §7.3 characteristic equation
+    # Timoshenko & Gere ch. 2, stability functions characteristic equation
     return (u * u - ra * rb) * math.sin(u) - (ra + rb) * u * math.cos(u)
 
 
@@ -179,7 +182,8 @@ def _first_root(f, lo, hi, args, steps=4000):
 @settings(max_examples=40, deadline=None)
 @given(ra=st.floats(0.01, 1000.0), rb=st.floats(0.01, 1000.0))
 def test_characteristic_equations_with_brentq(ra, rb):
-    # column-design.md §7.2 and §7.3, first root bracketed on a grid then refined by scipy brentq
+    # Timoshenko & Gere ch. 2, stability functions, first root bracketed on a grid then refined by
+    # scipy brentq
     ub = _first_root(_f_braced, math.pi - 1e-9, 2 * math.pi - 1e-6, (ra, rb))
     us = _first_root(_f_sway, 1e-6, math.pi, (ra, rb))
     K = k_from_ratios([ra, ra], [rb, rb], [False, True])
@@ -207,7 +211,8 @@ def test_third_point_braces():
 
 
 def test_ideal_brace_stiffness_at_mid_height():
-    # Timoshenko & Gere ch. 2 (from memory): a mid-height brace forces the second mode (K = 0.5) once
+    # Timoshenko & Gere ch. 2 (from memory): a mid-height brace forces the second mode (K = 0.5)
+    # once
     # its stiffness reaches 16 pi^2 EI / L^3 (= 4 P / L with P the half-length Euler load)
     EI, L = 1.0, 1.0
     k_ideal = 16 * math.pi**2 * EI / L**3
@@ -228,12 +233,12 @@ def test_ideal_brace_stiffness_at_mid_height():
 def _fe_critical(EI, L, k_rt, k_rb, k_lt, k_lb, braces=(), brace_k=(), per_segment=40):
     """Independent check: Hermite beam elements with consistent geometric stiffness, scipy eigh.
 
-    Przemieniecki 1968 beam element and geometric stiffness (from memory); infinite springs by removing DOFs.
+    Przemieniecki 1968 beam element and geometric stiffness (from memory); infinite springs by
+    removing DOFs.
     """
     cuts = [0.0, *sorted(braces), L]
     x = np.concatenate(
-        [np.linspace(a, b, per_segment + 1)[:-1] for a, b in zip(cuts[:-1], cuts[1:], strict=True)]
-        + [[L]]
+        [np.linspace(a, b, per_segment + 1)[:-1] for a, b in itertools.pairwise(cuts)] + [[L]]
     )
     nn = len(x)
     K = np.zeros((2 * nn, 2 * nn))
@@ -317,7 +322,8 @@ def test_batch_with_mixed_brace_counts_matches_one_at_a_time():
         assert batch[i] == pytest.approx(one[0], rel=1e-10)
 
 
-# --- bad input and mechanisms: one clear sentence each ----------------------------------------------
+# --- bad input and mechanisms: one clear sentence each
+# ----------------------------------------------
 
 
 def _one_sentence(msg: str) -> None:
@@ -364,13 +370,13 @@ def test_bad_input_is_one_sentence_naming_the_field(kwargs, field):
         (
             (0.0, 0.0, 0.0, INF),
             "tips over",
-        ),  # pinned base, free top (column-design.md §7.3: R = 0, 0)
+        ),  # pinned base, free top (Timoshenko & Gere ch. 2, stability functions: R = 0, 0)
         ((0.0, INF, 0.0, 0.0), "slides sideways"),  # fixed base on rollers, free top
         ((0.0, 0.0, 0.0, 0.0), "slides sideways"),  # nothing at all
     ],
 )
 def test_mechanism_is_one_sentence(ends, words):
-    # column-design.md §7.3: R_A = R_B = 0 with sway is a mechanism (u -> 0)
+    # Timoshenko & Gere ch. 2, stability functions: R_A = R_B = 0 with sway is a mechanism (u -> 0)
     with pytest.raises(ValueError) as exc:
         critical_load(1e11, 3000.0, *ends)
     assert "mechanism" in str(exc.value) and words in str(exc.value)
@@ -429,7 +435,8 @@ def test_stiffer_spring_never_raises_k(rt, rb, tt, tb, which, factor, brace):
 @settings(max_examples=60, deadline=None)
 @given(rt=st.floats(1e-3, 1e4), rb=st.floats(1e-3, 1e4), sway=st.booleans())
 def test_spring_ends_lie_between_the_bracketing_ideal_cases(rt, rb, sway):
-    # column-design.md §1.4 and §7: a spring end lies between pinned and fixed
+    # NDS 2018 Appendix G Table G1; Timoshenko & Gere ch. 2: a spring end lies between pinned and
+    # fixed
     K = k_from_ratios(rt, rb, sway)[0]
     stiff_case, flex_case = bracketing_cases(rt, rb, sway)
     assert IDEAL_CASES[int(stiff_case)][1] - TOL <= K <= IDEAL_CASES[int(flex_case)][1] + TOL
@@ -453,7 +460,7 @@ def test_spring_ends_lie_between_the_bracketing_ideal_cases(rt, rb, sway):
     ],
 )
 def test_design_k_of_ideal_cases_is_the_nds_value(r_top, r_bottom, sway, recommended):
-    # NDS 2018 Appendix G Table G1 (column-design.md §1.4)
+    # NDS 2018 Appendix G Table G1
     K = k_from_ratios(r_top, r_bottom, sway)
     assert design_k(K, r_top, r_bottom, sway)[0] == pytest.approx(recommended, abs=1e-5)
     assert design_k(K, r_top, r_bottom, sway, theoretical=True)[0] == K[0]

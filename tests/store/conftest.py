@@ -1,4 +1,6 @@
-"""Fixtures for the survey-log tests: a fresh log with one site and visit (the shore record is in tests/conftest.py)."""
+"""Fixtures for the survey-log tests: a fresh log with one site and visit (the shore record is in
+tests/conftest.py).
+"""
 
 from __future__ import annotations
 

@@ -66,7 +66,7 @@ def verify(path: str, acks: list[str]) -> list[str]:
             return (
                 bad
                 if not any(a.startswith(("post", "batch")) for a in acks)
-                else bad + ["schema lost"]
+                else [*bad, "schema lost"]
             )
         obs = {r[0] for r in con.execute("SELECT id FROM observations")}
         rated = {r[0] for r in con.execute("SELECT observation_id FROM ratings")}
@@ -137,7 +137,7 @@ def main() -> None:
         os.waitpid(pid, 0)
         with os.fdopen(r) as fh:
             text = fh.read()
-        acks = [ln for ln in text.split("\n")[:-1]]  # an unterminated last line was not acked
+        acks = list(text.split("\n")[:-1])  # an unterminated last line was not acked
         total_acks += sum(a.startswith(("post", "batch")) for a in acks)
         bad = [a for a in acks if a.startswith("error")] + verify(path, acks)
         failures += [f"cycle {cycle}: {b}" for b in bad]

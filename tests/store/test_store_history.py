@@ -173,5 +173,5 @@ def test_device_seq_is_per_device_and_gap_free(tmp_path, shore):
             for t in ("sites", "visits", "members", "observations", "ratings")
             for r in lg.db.conn.execute(f"SELECT device_seq FROM {t}")
         )
-    # gap-free: a gap would tell the office that a transfer is missing (ecosystem-and-style §2.5)
+    # gap-free: a gap would tell the office that a transfer is missing
     assert seqs == list(range(1, len(seqs) + 1))

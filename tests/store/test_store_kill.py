@@ -1,5 +1,5 @@
 """Reliability: kill the writing process at random moments; nothing acknowledged is lost and no
-transaction is half-applied (ecosystem-and-style.md §2.7, the crash-test idea at our scale)."""
+transaction is half-applied (judgement)."""
 
 from __future__ import annotations
 

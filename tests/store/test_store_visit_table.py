@@ -11,8 +11,7 @@ def _posts(shore, n: int) -> list[dict[str, str]]:
     loads = ("2000lbf", "9000lbf", "30 kN", "4500lbf")
     places = ("north bay", "east wall", "stair core", "lift pit", "west bay")
     return [
-        {**shore, "tag": f"P{i}", "location": places[i % 5], "load": loads[i % 4]}
-        for i in range(n)
+        {**shore, "tag": f"P{i}", "location": places[i % 5], "load": loads[i % 4]} for i in range(n)
     ]
 
 

@@ -87,7 +87,7 @@ def test_folder_mode_moves_each_row_once(make_log, shore, tmp_path):
 
 
 def test_merge_rules_without_sqlite():
-    # vectors and ranges (ecosystem-and-style.md §2.5)
+    # vectors and ranges (judgement)
     assert delta({"a": 5, "b": 2}, {"a": 3}) == {"a": (4, 5), "b": (1, 2)}
     assert covered({"a": 5}, {"a": (4, 5)}) and not covered({"a": 4}, {"a": (4, 5)})
     assert floor([{"a": 5, "b": 1}, {"a": 3}]) == {"a": 3}

