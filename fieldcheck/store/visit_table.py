@@ -64,27 +64,33 @@ def _q(text: str) -> str:
 
 
 def _build_sql(words: dict[str, str]) -> str:
-    from fieldcheck.store.repo import HEAD_ROWID_OF, NHEADS
+    from fieldcheck.store.repo import HEAD_ROWID_OF
 
+    # each record's JSON is read once (a materialized step), the keys made from those values;
+    # the filter's text is the record as stored (values and names) and the action's words
     return f"""
+WITH base AS MATERIALIZED (
+    SELECT m.rowid AS rank, o.rowid AS obs_rowid, o.member_id, o.id, o.visit_id, m.site_id,
+        o.record_json,
+        coalesce(json_extract(o.record_json, '$.tag'), '') AS tag,
+        coalesce(json_extract(o.record_json, '$.location'), '') AS location,
+        coalesce(json_extract(o.record_json, '$.height'), '') AS height,
+        r.ratio, r.action, r.capacity_n, r.demand_n, coalesce(r.governing, '') AS governing,
+        r.engine_version, o.created_at, o.author
+    FROM members m
+    JOIN observations o ON o.rowid = {HEAD_ROWID_OF}
+    LEFT JOIN ratings r ON r.rowid = (SELECT max(rowid) FROM ratings WHERE observation_id = o.id)
+    WHERE o.withdrawn = 0 AND m.id IN (SELECT member_id FROM observations WHERE visit_id = ?)
+        {{members}}
+)
 INSERT INTO temp.visit_posts
-SELECT m.rowid AS rank, o.rowid AS obs_rowid, o.member_id, o.id, o.visit_id, m.site_id,
-    o.record_json, coalesce(json_extract(o.record_json, '$.tag'), ''),
-    coalesce(json_extract(o.record_json, '$.location'), ''),
-    r.ratio, r.action, r.capacity_n, r.demand_n, coalesce(r.governing, ''), r.engine_version,
-    o.created_at, o.author, {NHEADS} > 1,
-    coalesce(r.ratio, 9e999) AS worst,
-    lower(coalesce(json_extract(o.record_json, '$.tag'), '')) AS tag_key,
-    lower(coalesce(json_extract(o.record_json, '$.location'), '')) AS loc_key,
-    {_action_rank_sql()} AS action_key,
-    coalesce(json_extract(o.record_json, '$.height'), '') AS height_key,
-    lower((SELECT group_concat(j.value, ' ') FROM json_each(o.record_json) j) || ' '
-        || {_action_words_sql(words)}) AS hay
-FROM members m
-JOIN observations o ON o.rowid = {HEAD_ROWID_OF}
-LEFT JOIN ratings r ON r.rowid = (SELECT max(rowid) FROM ratings WHERE observation_id = o.id)
-WHERE o.withdrawn = 0 AND m.id IN (SELECT member_id FROM observations WHERE visit_id = ?)
-    {{members}}
+SELECT rank, obs_rowid, member_id, id, visit_id, site_id, record_json, tag, location,
+    ratio, action, capacity_n, demand_n, governing, engine_version, created_at, author,
+    member_id IN (SELECT value FROM json_each(?)),
+    coalesce(ratio, 9e999), lower(tag), lower(location),
+    {_action_rank_sql().replace("r.action", "action")}, height,
+    lower(record_json || ' ' || {_action_words_sql(words).replace("r.action", "action")})
+FROM base
 """
 
 
@@ -138,8 +144,11 @@ class VisitTable:
         transaction of this connection (a consistent snapshot of the log)."""
         with self.conn:
             top = self._top()
+            from fieldcheck.store.conflicts import open_conflicts
+
+            conflicted = json.dumps(open_conflicts(self.conn))
             if members is None:
-                self.conn.execute(self._sql.format(members=""), [self.visit_id])
+                self.conn.execute(self._sql.format(members=""), [self.visit_id, conflicted])
             else:
                 self._index("member")
                 arg = json.dumps(members)
@@ -150,7 +159,7 @@ class VisitTable:
                 )
                 self.conn.execute(
                     self._sql.format(members="AND m.id IN (SELECT value FROM json_each(?))"),
-                    [self.visit_id, arg],
+                    [self.visit_id, arg, conflicted],
                 )
             self.mark = top
             self._hits_for = None
