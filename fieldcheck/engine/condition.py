@@ -1264,7 +1264,7 @@ CONDITION = Stage(
         "sw_advanced",
         "data_level",
     ),
-    checks=("eccentric", "net_section"),
+    checks=("net_section", "eccentric"),
     flags=FLAGS,
     run=add_checks,
     raise_flags=condition_flags,
