@@ -75,6 +75,21 @@ def ec5_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
         return {}
     if "class" not in row:
         raise RowError("class", "class: an EC5 rating needs a strength class, e.g. --class C24.")
+    # EN 1995-1-1 has no temperature or incising factor in the checks fieldcheck makes: refused,
+    # never ignored (judgement; the NDS Ct and Ci are not EN 1995-1-1 factors)
+    if "temperature" in row:
+        raise RowError(
+            "temperature",
+            "temperature: an EC5 rating has no temperature factor here (EN 1995-1-1 covers "
+            "temperature through the service class only); leave --temperature out or rate it "
+            "with --method asd.",
+        )
+    if row.get("incised"):
+        raise RowError(
+            "incised",
+            "incised: an EC5 rating has no incising factor here (EN 1995-1-1 gives none); leave "
+            "--incised out or rate it with --method asd.",
+        )
     name = row["class"]
     f = dict(en338.batch_fields(name))
     out["_e_mpa"] = f["e_mpa"]

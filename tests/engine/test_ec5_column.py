@@ -183,3 +183,14 @@ def test_kc_never_above_euler(lam_rel, bc):
 def test_glulam_kc_not_below_solid(lam_rel):
     # EN 1995-1-1 Eq. 6.29: the straighter product (beta_c 0.1) buckles no earlier than solid (0.2)
     assert float(ec5.kc(lam_rel, 0.1)) >= float(ec5.kc(lam_rel, 0.2))
+
+
+@pytest.mark.parametrize("extra", [["--temperature", "50C"], ["--incised"]])
+def test_ec5_refuses_temperature_and_incising_in_one_sentence(capsys, extra):
+    # EN 1995-1-1 has no Ct or Ci (NDS 2018 Table 4.3.1 factors): refused, never ignored
+    from fieldcheck.cli import main
+
+    args = ["rate", "--method", "ec5", "--class", "C24", "--section", "100mm x 100mm"]
+    code = main([*args, "--height", "3m", "--load", "10kN", *extra])
+    err = capsys.readouterr().err
+    assert code == 2 and err.count("\n") == 1 and "EC5" in err
