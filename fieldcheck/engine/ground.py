@@ -36,12 +36,12 @@ from fieldcheck.engine import loads, nds
 from fieldcheck.engine import quantities as q
 from fieldcheck.engine.batch import EC5, LRFD, PostBatch
 from fieldcheck.engine.blocks import filled
-from fieldcheck.engine.customary import LBF
+from fieldcheck.engine.customary import FT, LBF
 from fieldcheck.engine.refdata import table
 from fieldcheck.engine.result import Check, Rating, Step
 from fieldcheck.engine.stage import Flag, FlagSet, Stage
 
-FT2 = 304.8**2  # mm^2 per ft^2
+FT2 = FT**2  # mm^2 per ft^2
 PSF = loads.PSF_KPA  # kPa per psf
 
 # judgement, see the module docstring: unknown class / no pad size -> monitor; unprepared -> repair

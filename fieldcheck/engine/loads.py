@@ -25,12 +25,13 @@ from functools import cache
 
 import numpy as np
 
+from fieldcheck.engine.customary import FT, IN, LBF
 from fieldcheck.engine.refdata import table
 
 # Exact unit constants (definitions), used only to read US-customary source tables.
 PSF_KPA = 0.0478802589803358  # 1 lbf/ft^2 in kPa = 4.4482216152605 N / (0.3048 m)^2 / 1000
-PLF_N_PER_MM = 4.4482216152605 / 304.8  # 1 lbf/ft in N/mm
-FT2_MM2 = 304.8**2  # 1 ft^2 in mm^2
+PLF_N_PER_MM = LBF / FT  # 1 lbf/ft in N/mm
+FT2_MM2 = FT**2  # 1 ft^2 in mm^2
 KPA_N_PER_MM2 = 1e-3  # 1 kPa = 1e-3 N/mm^2
 
 LOAD_TYPES = ("D", "L", "Lr", "S", "R", "W", "E")
@@ -138,7 +139,7 @@ def rubble_kpa(depth_mm) -> np.ndarray:
     """Weight of concrete/masonry rubble of the given depth, kPa (FEMA US&R: 10 psf per inch)."""
     d = _arr("rubble depth", depth_mm, "mm", "150 (6 in)")
     psf_per_in = float(_rows("dead_loads")["rubble-per-inch"]["psf"])
-    return psf_per_in * PSF_KPA * d / 25.4  # FEMA US&R Rescue Specialist manual, 10 psf/in
+    return psf_per_in * PSF_KPA * d / IN  # FEMA US&R Rescue Specialist manual, 10 psf/in
 
 
 # --------------------------------------------------------------------------- tributary area

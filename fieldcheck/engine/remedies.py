@@ -42,11 +42,9 @@ import numpy as np
 from fieldcheck.engine import materials, nds, sections
 from fieldcheck.engine import quantities as q
 from fieldcheck.engine.batch import DIMENSION, EC5, LRFD, RECT, TIMBER, PostBatch, make_batch
-from fieldcheck.engine.customary import IN, LBF
+from fieldcheck.engine.customary import FT, IN, LBF
 from fieldcheck.engine.rating import FLAGS, rate
 from fieldcheck.engine.result import ACTIONS, NOT_RATED, Rating
-
-FT = 304.8
 
 KINDS = (
     "brace-weak",

@@ -161,7 +161,7 @@ def rows(log, units: str = "us", visit_id: str | None = None) -> tuple[list[str]
 
     cols = columns(units, log.record_columns())
     us = units == "us"
-    height = _Reader(u.parse_length, 25.4 if us else 1.0, 2 if us else 0)
+    height = _Reader(u.parse_length, u.IN_MM if us else 1.0, 2 if us else 0)
     load = _Reader(u.parse_force, LBF if us else 1000.0, 0 if us else 2)
     fscale, fnd, f = (LBF, 0, "lbf") if us else (1000.0, 2, "kN")
     dates = _visit_dates(log)

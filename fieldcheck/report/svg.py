@@ -12,11 +12,10 @@ from html import escape
 
 import numpy as np
 
-from fieldcheck.units import LBF_N
+from fieldcheck.units import FT_MM, LBF_N
 
 W, H = 520, 270
 LEFT, RIGHT, TOP, BOTTOM = 70, 16, 44, 46  # the legend sits above the frame, never on the curve
-FT_MM = 304.8
 
 
 def nice_ticks(lo: float, hi: float, n: int = 5) -> list[float]:
