@@ -14,7 +14,7 @@ from __future__ import annotations
 import numpy as np
 
 from fieldcheck.engine import condition, nds, spring_ends
-from fieldcheck.engine.batch import LRFD, PostBatch
+from fieldcheck.engine.batch import EC5, LRFD, PostBatch
 from fieldcheck.engine.blocks import distinct, filled, prod
 from fieldcheck.engine.restraint import end_pair, modes_of_pairs
 from fieldcheck.engine.result import Check
@@ -269,7 +269,7 @@ def column_flags(b: PostBatch, values: dict, flag: FlagSet) -> None:
         & (load > nds.END_BEARING_PLATE_RATIO * values["fc_star"] * values["a_contact"]),
     )
     flag("dry_assumed", np.isnan(b.moisture_pct))
-    flag("wet", values["wet"])
+    flag("wet", values["wet"] & (b.method != EC5))  # NDS wet service: never on an EC5 rating
     if (u(kappa) < 1.0).any():
         flag("assumed_material", (kappa < 1.0) & (b.material_assumed | (b.data_level < 0)))
     if u(b.material_assumed).any():  # never dropped by a data-collection level (judgement)

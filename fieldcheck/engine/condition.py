@@ -1048,7 +1048,7 @@ def reductions(r, i: int) -> list[dict]:
             v["sr_bending"][i],
             "ASTM D245 principle (from memory)",
         )
-    if v["cm_fc"][i] < 1.0:
+    if v["cm_fc"][i] < 1.0 and int(b.method[i]) != EC5:  # EC5: the service class does it
         add(
             "wet service CM on Fc",
             f"moisture {b.moisture_pct[i]:.0f} %",

@@ -95,9 +95,22 @@ def ec5_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
     out["_e_mpa"] = f["e_mpa"]
     duration = EC5_DURATION[load_duration(row)]
     product = "solid"
-    f["kmod"] = float(
-        ec5.kmod(row.get("service_class", 1), duration, product)
-    )  # EN 1995-1-1 Table 3.1
+    # the service class follows the measured moisture (EN 1995-1-1 §2.3.1.3: class 1 about
+    # 12 % or less, class 2 about 20 % or less, class 3 wetter; from memory): a reading wetter
+    # than the class chosen uses the wetter class, and the material text says so
+    chosen = int(row.get("service_class", 1))
+    sc = chosen
+    moisture_note = ""
+    if "moisture" in row:
+        mc = float(row["moisture"])
+        by_moisture = 1 if mc <= 12.0 else 2 if mc <= 20.0 else 3
+        if by_moisture > chosen:
+            sc = by_moisture
+            moisture_note = (
+                f"; service class {sc}, not {chosen}: measured moisture {mc:g} % "
+                "(EN 1995-1-1 §2.3.1.3)"
+            )
+    f["kmod"] = float(ec5.kmod(sc, duration, product))  # EN 1995-1-1 Table 3.1
     f["gamma_m"] = float(ec5.gamma_m(product))  # EN 1995-1-1 Table 2.3
     f["knowledge"] = 1.0
     for end, col in (("top", "cap_class"), ("bottom", "sill_class")):
@@ -106,7 +119,7 @@ def ec5_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
     out["_values_status"] = en338.status(name)
     out["_values_source"] = en338.edition(name)
     out["_material"] = (
-        f"{name} ({en338.edition(name)}), k_mod {f['kmod']:.2f} ({duration}), gamma_M "
-        f"{f['gamma_m']}"
+        f"{name} ({en338.edition(name)}), k_mod {f['kmod']:.2f} ({duration}, service class "
+        f"{sc}), gamma_M {f['gamma_m']}{moisture_note}"
     )
     return f

@@ -194,3 +194,18 @@ def test_ec5_refuses_temperature_and_incising_in_one_sentence(capsys, extra):
     code = main([*args, "--height", "3m", "--load", "10kN", *extra])
     err = capsys.readouterr().err
     assert code == 2 and err.count("\n") == 1 and "EC5" in err
+
+
+def test_ec5_service_class_follows_measured_moisture(capsys):
+    # EN 1995-1-1 §2.3.1.3 (from memory): 24 % is service class 3 whatever class was chosen;
+    # kmod permanent, solid timber, class 3 is 0.50 (EN 1995-1-1 Table 3.1); no NDS wet text
+    import json
+
+    from fieldcheck.cli import main
+
+    args = ["rate", "--method", "ec5", "--class", "C24", "--section", "100mm x 100mm"]
+    assert main([*args, "--height", "3m", "--load", "10kN", "--moisture", "24%", "--json"]) == 0
+    out = json.loads(capsys.readouterr().out)
+    assert "service class 3, not 1" in out["material"] and "k_mod 0.50" in out["material"]
+    assert not any("NDS Supplement" in w or "CM applied" in w for w in out["warnings"])
+    assert not any("wet service CM" in r.get("reduction", "") for r in out.get("reductions", []))
