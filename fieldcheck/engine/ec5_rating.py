@@ -10,7 +10,8 @@ from __future__ import annotations
 import numpy as np
 
 from fieldcheck.engine import ec5
-from fieldcheck.engine.batch import EC5, PostBatch
+from fieldcheck.engine.batch import EC5, ROUND, PostBatch
+from fieldcheck.engine.blocks import distinct
 from fieldcheck.engine.result import Rating, Step
 from fieldcheck.engine.stage import Stage
 
@@ -23,6 +24,13 @@ def apply_ec5(b: PostBatch, checks: dict, values: dict) -> None:
     lef2 = v["ke2"] * v["lu2"]
     i1 = v.get("i_gyr1", b.d1_mm / np.sqrt(12.0))  # rectangle: i = h / sqrt(12)
     i2 = v.get("i_gyr2", b.d2_mm / np.sqrt(12.0))
+    round_post = b.shape == ROUND
+    if distinct(round_post).any():
+        # a round post's own radius of gyration is D/4 (mechanics: I = pi D^4/64, A = pi D^2/4),
+        # not that of the equivalent square (side D sqrt(pi)/2): i x (D/4) / (d/sqrt(12))
+        k_round = 0.25 * np.sqrt(12.0) / (np.sqrt(np.pi) / 2.0)
+        i1 = np.where(round_post, i1 * k_round, i1)
+        i2 = np.where(round_post, i2 * k_round, i2)
     fc0k = b.fc_mpa * v.get("strength_ratio", 1.0)
     col = ec5.column_resistance(
         area, lef1, lef2, i1, i2, fc0k, b.emin_mpa, b.kmod, b.gamma_m, b.product

@@ -209,3 +209,29 @@ def test_ec5_service_class_follows_measured_moisture(capsys):
     assert "service class 3, not 1" in out["material"] and "k_mod 0.50" in out["material"]
     assert not any("NDS Supplement" in w or "CM applied" in w for w in out["warnings"])
     assert not any("wet service CM" in r.get("reduction", "") for r in out.get("reductions", []))
+
+
+def test_ec5_round_post_radius_of_gyration_is_d_over_4():
+    # EN 1995-1-1 §6.3.2: lambda = L_ef / i; a round post has i = D/4 (mechanics), so at
+    # D = 150 mm, L = 3 m: lambda = 3000 / 37.5 = 80
+    import math
+
+    from fieldcheck.engine.batch import ROUND, make_batch
+    from fieldcheck.engine.rating import rate
+
+    d = 150.0 * math.sqrt(math.pi) / 2.0  # the equivalent square's side (NDS 2018 §3.7.2)
+    b = make_batch(
+        d1_mm=d,
+        d2_mm=d,
+        shape=ROUND,
+        height_mm=3000.0,
+        method=2,
+        fc_mpa=21.0,
+        emin_mpa=7400.0,
+        kmod=0.8,
+        gamma_m=1.3,
+        load_n=10_000.0,
+    )
+    v = rate(b).values
+    lam_rel = 80.0 / math.pi * math.sqrt(21.0 / 7400.0)  # EN 1995-1-1 Eq. 6.21
+    assert v["ec5_lam_rel1"][0] == pytest.approx(lam_rel, rel=1e-9)
