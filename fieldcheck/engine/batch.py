@@ -7,7 +7,7 @@ batch of length one: there is no separate single-post path.
 
 Axis convention: axis 1 buckles in the plane of ``d1_mm`` (the larger side), axis 2 in the
 plane of ``d2_mm`` (the smaller side, and the total thickness of a built-up post). For a
-round post both are the side of the equivalent square (NDS 2018 §3.7.2).
+round post both are the side of the equivalent square (NDS 2018 §3.7.3).
 
 A NaN in an optional field means "not given": the check that needs it is skipped (and the
 rating says so), never silently filled with a guess.

@@ -53,7 +53,7 @@ def nominal_width_in(d1_mm: np.ndarray) -> np.ndarray:
 
 
 def round_equivalent_side(diameter_mm: np.ndarray) -> np.ndarray:
-    """Side of the square with the same area as a round post: d = D sqrt(pi)/2 (NDS 2018 §3.7.2)."""
+    """Side of the square with the same area as a round post: d = D sqrt(pi)/2 (NDS 2018 §3.7.3)."""
     return np.asarray(diameter_mm, dtype=np.float64) * (np.sqrt(np.pi) / 2.0)
 
 

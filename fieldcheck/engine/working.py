@@ -10,7 +10,7 @@ from __future__ import annotations
 import numpy as np
 
 from fieldcheck.engine import quantities as q
-from fieldcheck.engine.batch import EC5, LRFD, METHOD_NAMES, PRODUCT_NAMES
+from fieldcheck.engine.batch import EC5, LRFD, METHOD_NAMES, PRODUCT_NAMES, ROUND
 from fieldcheck.engine.customary import IN
 from fieldcheck.engine.ec5_rating import ec5_steps
 from fieldcheck.engine.loads import GIVEN
@@ -46,6 +46,16 @@ def column_steps(r: Rating, i: int) -> list[Step]:
             "NDS 2018 §3.7.1.3",
         )
     )
+    if int(b.shape[i]) == ROUND:
+        add(
+            Step(
+                "Round post: the square of equal area, d = D sqrt(pi) / 2",
+                f"D = {q.length(b.d1_mm[i] * 2.0 / np.sqrt(np.pi))}",
+                "NDS 2018 §3.7.3 (EC5: i = D/4, EN 1995-1-1 §6.3.2)"
+                if int(b.method[i]) == EC5
+                else "NDS 2018 §3.7.3",
+            )
+        )
     add(
         Step(
             "Area A used by the column check",

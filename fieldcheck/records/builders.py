@@ -78,7 +78,7 @@ def section_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
     elif "diameter" in row:
         d1 = d2 = float(
             sections.round_equivalent_side(np.array([row["diameter"]]))[0]
-        )  # NDS 2018 §3.7.2
+        )  # NDS 2018 §3.7.3
         f.update(shape=ROUND)
     elif "section" in row:
         d1, d2 = max(row["section"]), min(row["section"])

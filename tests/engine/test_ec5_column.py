@@ -219,7 +219,7 @@ def test_ec5_round_post_radius_of_gyration_is_d_over_4():
     from fieldcheck.engine.batch import ROUND, make_batch
     from fieldcheck.engine.rating import rate
 
-    d = 150.0 * math.sqrt(math.pi) / 2.0  # the equivalent square's side (NDS 2018 §3.7.2)
+    d = 150.0 * math.sqrt(math.pi) / 2.0  # the equivalent square's side (NDS 2018 §3.7.3)
     b = make_batch(
         d1_mm=d,
         d2_mm=d,

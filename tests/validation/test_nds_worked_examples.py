@@ -220,7 +220,7 @@ def test_example_a_through_records_matches_engine():
 
 
 def test_round_post_equivalent_square():
-    # NDS 2018 §3.7.2: a round post as the square of equal area; d = D sqrt(pi)/2
+    # NDS 2018 §3.7.3: a round post as the square of equal area; d = D sqrt(pi)/2
     r, _ = rate_records([{"diameter": "6 in", "height": "8ft", "species": "df-l", "grade": "no2"}])
     assert r.batch.d1_mm[0] / IN == pytest.approx(5.3174, abs=1e-4)
     assert r.values["area"][0] / IN**2 == pytest.approx(28.274, abs=1e-3)
