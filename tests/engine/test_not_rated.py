@@ -10,6 +10,8 @@ import json
 
 import numpy as np
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from fieldcheck.cli import main
 from fieldcheck.engine import explain
@@ -108,3 +110,35 @@ def test_pad_without_thickness_raises_the_action():
     thick = rate_records([{**base, "pad_thickness": "3in"}])
     get = lambda r: r[0]  # noqa: E731
     assert int(get(thin).action[0]) >= 2 > int(get(thick).action[0])
+
+
+@settings(max_examples=40, deadline=None)
+@given(
+    st.floats(20, 300),  # side, mm
+    st.floats(300, 8000),  # height, mm
+    st.one_of(st.just(float("nan")), st.floats(0, 5e5)),  # load, N
+    st.sampled_from([FIXED, FREE, PINNED]),
+    st.sampled_from([FIXED, FREE, PINNED]),
+    st.floats(0, 1),  # end contact
+    st.floats(0, 60),  # moisture
+    st.floats(0, 100),  # bow, mm
+)
+def test_json_never_nan_or_infinity_property(side, h, load, bottom, top, contact, mc, bow):
+    # RFC 8259: JSON has no NaN or Infinity; no input may put one in a rating's summary
+    from fieldcheck.engine.explain import summary
+
+    r = rate(
+        _batch(
+            d1_mm=side,
+            d2_mm=side,
+            height_mm=h,
+            load_n=load,
+            bottom=bottom,
+            top=top,
+            end_contact=contact,
+            moisture_pct=mc,
+            bow2_mm=bow,
+            fb_mpa=900 * PSI,
+        )
+    )
+    json.dumps(summary(r, 0, with_remedies=False), allow_nan=False)
