@@ -1,4 +1,5 @@
-"""Dialogs: help, leave with changes, withdraw, new visit, sync, report, conflicts."""
+"""Dialogs: help, leave with changes, withdraw, remedy done, photo, new visit, sync, report,
+conflicts."""
 
 from __future__ import annotations
 
@@ -46,7 +47,7 @@ class HelpScreen(ReleasesKeys, ModalScreen[None]):
             "section. The rating beside it follows every valid change.",
             "  4. ctrl+s saves the post as found. A remedy (F5, then Enter or ctrl+r) is stored as "
             "a proposal beside it; the post stays rated as found until ctrl+o records it as "
-            "remedied, with the date.",
+            "remedied, with the date. ctrl+t attaches a photo to the saved post.",
             "",
             "[b]Keys on this screen[/b]",
         ]
@@ -177,6 +178,53 @@ class RemedyDoneDialog(ReleasesKeys, ModalScreen[str | None]):
             )
             return
         self.dismiss(day.isoformat())
+
+    def action_cancel(self) -> None:
+        self.dismiss(None)
+
+
+class PhotoDialog(ReleasesKeys, ModalScreen[tuple[str, str] | None]):
+    """A photo for the post as saved: the file and a caption (the log keeps a copy and its
+    SHA-256; the report shows a reduced copy)."""
+
+    BINDINGS = [Binding("escape", "cancel", "Cancel", id="photo_cancel")]
+
+    def __init__(self, tag: str) -> None:
+        super().__init__()
+        self.tag = tag
+
+    def compose(self) -> ComposeResult:
+        with Vertical(classes="dialog"):
+            yield Static(f"Attach a photo to post {escape(self.tag)}", classes="title")
+            yield Label("Photo file (Enter moves on):")
+            yield Input(placeholder="e.g. ~/DCIM/IMG_0412.jpg", id="photo-path")
+            yield Label("Caption (Enter attaches, Esc cancels):")
+            yield Input(placeholder="e.g. decay at the sill, east face", id="photo-caption")
+
+    @on(Input.Submitted, "#photo-path")
+    def _path_done(self, event: Input.Submitted) -> None:
+        if self._photo() is not None:
+            self.query_one("#photo-caption", Input).focus()
+
+    @on(Input.Submitted, "#photo-caption")
+    def _done(self, event: Input.Submitted) -> None:
+        path = self._photo()
+        if path is not None:
+            self.dismiss((str(path), event.value.strip()))
+
+    def _photo(self) -> Path | None:
+        text = self.query_one("#photo-path", Input).value.strip()
+        path = Path(text).expanduser() if text else None
+        if path is None or not path.is_file():
+            shown = escape(text[:60]) if text else "nothing"
+            self.notify(
+                f"photo: {shown} is not a file here; give the path of a JPEG or PNG.",
+                severity="warning",
+                markup=False,
+            )
+            self.query_one("#photo-path", Input).focus()
+            return None
+        return path
 
     def action_cancel(self) -> None:
         self.dismiss(None)

@@ -91,6 +91,7 @@ class PostEditor(ReleasesKeys, Screen[None]):
         Binding("ctrl+z", "undo", "Undo", id="undo"),
         Binding("ctrl+r", "propose_remedy", "Propose remedy", id="propose_remedy"),
         Binding("ctrl+o", "remedy_done", "Remedy done", id="remedy_done"),
+        Binding("ctrl+t", "attach_photo", "Attach photo", id="attach_photo"),
         Binding("f2", "tab('rating')", "Rating", id="tab_rating"),
         Binding("f3", "tab('working')", "Working", id="tab_working"),
         Binding("f4", "tab('shape')", "Shape", id="tab_shape"),
@@ -858,6 +859,34 @@ class PostEditor(ReleasesKeys, Screen[None]):
                 self._record_done(prop.id, day)
 
         self.app.push_screen(RemedyDoneDialog(prop.description), chosen)
+
+    def action_attach_photo(self) -> None:
+        if self.head_id is None or self.dirty:
+            self.notify(
+                "Save the post first (ctrl+s): a photo belongs to a saved revision.", markup=False
+            )
+            return
+        from fieldcheck.tui.dialogs import PhotoDialog
+
+        head = self.head_id
+
+        def chosen(answer: tuple[str, str] | None) -> None:
+            if answer:
+                self._store_photo(head, *answer)
+
+        self.app.push_screen(PhotoDialog(self.record.get("tag", "")), chosen)
+
+    @work(group="write", exit_on_error=False)
+    async def _store_photo(self, observation_id: str, path: str, caption: str) -> None:
+        try:
+            att = await self.app.store.call(  # type: ignore[attr-defined]
+                lambda log: log.attach_photo(observation_id, path, caption)
+            )
+        except (OSError, ValueError) as exc:
+            self.notify(f"Photo not attached: {exc}", severity="error", markup=False)
+            return
+        tag = self.record.get("tag", "the post")
+        self.notify(f"Photo attached to {tag} (SHA-256 {att.sha256[:12]}…).", markup=False)
 
     @work(group="write", exit_on_error=False)
     async def _record_done(self, proposal_id: str, day: str) -> None:

@@ -239,3 +239,32 @@ async def test_ratio_action_and_governing_check_stay_on_screen_while_typing(db, 
                     assert lines[k].startswith(word)
                     assert screen.y <= head.region.y + k < screen.bottom, (size, field, word)
                 assert head.region.right <= size[0]
+
+
+async def test_ctrl_t_attaches_a_photo_to_the_saved_post(db, ui, tmp_path) -> None:
+    from PIL import Image
+
+    photo = tmp_path / "sill.jpg"
+    Image.new("RGB", (64, 48), (120, 90, 60)).save(photo)
+    app = ui.app(db)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await ui.open_post(app, pilot, "B3")
+        editor = app.screen
+        member = editor.member_id
+        await pilot.press("ctrl+t")
+        await ui.settle(app, pilot)
+        assert type(app.screen).__name__ == "PhotoDialog"
+        app.screen.query_one("#photo-path", Input).value = str(tmp_path / "missing.jpg")
+        await pilot.press("enter")
+        await ui.settle(app, pilot)
+        assert type(app.screen).__name__ == "PhotoDialog"  # not a file: asked again, kept open
+        app.screen.query_one("#photo-path", Input).value = str(photo)
+        await pilot.press("enter")
+        await ui.settle(app, pilot)
+        app.screen.query_one("#photo-caption", Input).value = "decay at the sill"
+        await pilot.press("enter")
+        await ui.settle(app, pilot, 0.2)
+        assert app.screen is editor
+        atts = await app.store.call(lambda log: log.attachments(member))
+        assert [a.caption for a in atts] == ["decay at the sill"]
+        assert len(atts[0].sha256) == 64  # SHA-256 of the file, hex
