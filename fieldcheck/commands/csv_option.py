@@ -5,45 +5,29 @@ from __future__ import annotations
 import argparse
 import sys
 
-# columns an export or a rated batch file adds beside the record: known, never rated, so a file
-# fieldcheck wrote reads back without --ignore-unknown-columns
-WRITTEN_BY_FIELDCHECK = (
-    # fieldcheck.store.repo.EXPORT_ONLY_COLUMNS
-    "site",
-    "visit",
-    "member_id",
-    "observation_id",
-    "revised_at",
-    "revised_by",
-    "ratio",
-    "action",
-    "capacity_kN",
-    "demand_kN",
-    "governing",
-    "engine_version",
-    # fieldcheck.commands.rate.RESULT_COLUMNS
+# the result columns `rate --batch --out` writes beside each record
+RESULT_COLUMNS = (
     "allowable_load_lbf",
     "allowable_load_kN",
     "demand_capacity_ratio",
     "governing_check",
+    "action",
     "effective_length_factor",
     "slenderness_ratio",
     "stability_factor",
     "within_slenderness_limit",
     "warnings",
     "error",
-    # fieldcheck.report.export_format.ADDED (the office export's own columns)
-    "visit_date",
-    "height_in",
-    "height_mm",
-    "load_lbf",
-    "load_kN",
-    "state",
-    "due_date",
-    "capacity_lbf",
-    "demand_lbf",
-    "schema_version",
 )
+
+
+def written_by_fieldcheck() -> tuple[str, ...]:
+    """Columns an export or a rated batch file adds beside the record: known, never rated, so a
+    file fieldcheck wrote reads back without --ignore-unknown-columns."""
+    from fieldcheck.report.export_format import ADDED
+    from fieldcheck.store.repo import EXPORT_ONLY_COLUMNS
+
+    return tuple(dict.fromkeys((*EXPORT_ONLY_COLUMNS, *RESULT_COLUMNS, *ADDED)))
 
 
 def add_csv_options(p: argparse.ArgumentParser) -> None:
@@ -63,7 +47,7 @@ def open_posts(args: argparse.Namespace, path: str):
     try:
         table = _open(
             path,
-            also=WRITTEN_BY_FIELDCHECK,
+            also=written_by_fieldcheck(),
             ignore_unknown=getattr(args, "ignore_unknown_columns", False),
         )
     except CsvProblem as exc:

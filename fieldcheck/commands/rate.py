@@ -7,6 +7,7 @@ import csv
 import json
 import sys
 
+from fieldcheck.commands.csv_option import RESULT_COLUMNS
 from fieldcheck.engine import explain
 from fieldcheck.records.columns import COLUMNS
 
@@ -19,19 +20,6 @@ DESCRIPTION = (
 # action levels in order of severity (engine ACTIONS 0-3), for --fail-on
 FAIL_ON = ("monitor", "repair-or-brace", "make-safe-now")
 FAILED = 3  # exit code of --fail-on (0 fine, 1 rows with errors, 2 usage)
-RESULT_COLUMNS = (
-    "allowable_load_lbf",
-    "allowable_load_kN",
-    "demand_capacity_ratio",
-    "governing_check",
-    "action",
-    "effective_length_factor",
-    "slenderness_ratio",
-    "stability_factor",
-    "within_slenderness_limit",
-    "warnings",
-    "error",
-)
 
 
 # columns naming an EN 338 strength class: their values are listed from the table we hold
