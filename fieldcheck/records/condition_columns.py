@@ -569,7 +569,59 @@ def condition_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]
     if "data_level" in row:
         f["data_level"] = cond.DATA_LEVELS.index(row["data_level"])
         f["knowledge"] = _kappa(row["data_level"])  # ASCE 41 data collection (secondary)
+    _refuse_no_section(row, f, d1, d2, h)
     return f
+
+
+# the loss columns, in the order a message names them
+_LOSS_COLUMNS = (
+    "decay_wide",
+    "decay_wide2",
+    "decay_narrow",
+    "decay_narrow2",
+    "char_wide",
+    "char_wide2",
+    "char_narrow",
+    "char_narrow2",
+    "hollow",
+    "wane",
+    "notch",
+    "hole",
+)
+
+
+def _refuse_no_section(row: dict[str, Any], f: dict[str, Any], d1, d2, h) -> None:
+    """Several losses that each fit the post may together leave nothing of it at some height
+    (decay with its margin from two faces, a hole and wane...): such a post is refused in one
+    sentence, never rated as a capacity of 0 (geometry; the engine's own residual section)."""
+    given = [c for c in _LOSS_COLUMNS if row.get(c, 0.0) > 0]
+    if not given:
+        return
+    from fieldcheck.engine.batch import DEFAULTS, FIELD_NAMES, make_batch
+
+    post = make_batch(
+        n=1, d1_mm=d1, d2_mm=d2, height_mm=h, **{k: v for k, v in f.items() if k in FIELD_NAMES}
+    )
+    with np.errstate(divide="ignore", invalid="ignore"):
+        res = cond.residual(post)
+    left = min(float(res[k][0]) for k in ("area", "area_net", "area_top", "area_bottom"))
+    if left > 0:
+        return
+    rest = given[1:]
+    others = ", ".join(rest[:-1]) + f" and {rest[-1]}" if len(rest) > 1 else "".join(rest)
+    margin = float(f.get("decay_margin_mm", DEFAULTS["decay_margin_mm"]))
+    past = (
+        f" (decay counts {margin / IN:.3g} in past the probe)"
+        if any(c.startswith("decay") for c in given)
+        else ""
+    )
+    raise RowError(
+        given[0],
+        f"{given[0]}: {f'with {others} the losses' if others else 'the loss'} leave no section "
+        f"of the {d2 / IN:.3g} x {d1 / IN:.3g} in post at some height{past}, so it cannot be "
+        "rated; check the measurements, and if they are right make the post safe now and "
+        "replace it.",
+    )
 
 
 condition_fields.column = "condition"  # type: ignore[attr-defined]

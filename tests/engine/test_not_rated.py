@@ -84,6 +84,30 @@ def test_wane_leaving_no_section_is_refused(capsys):
     assert "wane" in err and err.count("\n") <= 1 and "Traceback" not in err
 
 
+def test_losses_together_leaving_no_section_are_refused(capsys):
+    # geometry: decay 1.5 in from both wide faces, each taken 1/2 in past the probe (the
+    # default margin, judgement), meets across the 3.5 in thickness: nothing is left to rate
+    args = [*POST, "--load", "1000lbf", "--decay-wide", "1.5in", "--decay-wide2", "1.5in"]
+    assert main([*args, "--json"]) == 2
+    captured = capsys.readouterr()
+    assert captured.out == ""
+    err = captured.err.strip()
+    assert "no section" in err and err.count("\n") == 0 and "Traceback" not in err
+    assert err.count(". ") == 0  # one sentence
+
+
+def test_losses_together_leaving_no_section_are_refused_in_a_batch():
+    # geometry: 1 in of decay (+ 1/2 in margin) on a wide face, a 1.7 in hole from a narrow
+    # face and 1.7 in wane at all four corners of a 3.5 in post: no section at the hole
+    post = {"size": "4x4", "height": "8ft", "species": "dfl", "grade": "no2", "load": "1000lbf"}
+    gone = {**post, "decay_wide": "1in", "hole": "1.7in", "hole_face": "narrow"}
+    gone.update(wane="1.7in", wane_corners="4")
+    rating, errors = rate_records([post, gone, {**post, "decay_wide": "1in"}])
+    assert rating.n == 2  # the other posts are rated
+    assert [(e.row, e.column) for e in errors] == [(1, "decay_wide")]
+    assert "no section" in errors[0].sentence() and "wane and hole" in errors[0].sentence()
+
+
 def test_json_never_holds_nan_or_infinity():
     # a mechanism (free-free ends) has no capacity: the JSON says null, never NaN
     r = rate(_batch(load_n=1000.0, top=FREE, bottom=FREE))
