@@ -10,6 +10,7 @@ errors are rated together in one engine pass.
 
 from __future__ import annotations
 
+import operator
 import re
 from dataclasses import dataclass, field
 from functools import lru_cache
@@ -18,7 +19,7 @@ from typing import Any
 import numpy as np
 
 from fieldcheck.engine.batch import PostBatch, make_batch
-from fieldcheck.records.builders import RowError
+from fieldcheck.records.builders import RowError, bearing_wet
 from fieldcheck.records.columns import BUILDERS, COLUMNS, GROUPS, Column
 
 UNRATED_COLUMNS = ("tag", "location", "notes")  # kept in the log, not seen by the engine
@@ -130,43 +131,224 @@ def _rated_key(rec: dict[str, str]) -> tuple:
 
 PARSE_CACHE_LIMIT = 1 << 14  # distinct records a caller's cache keeps across chunks
 
+# The column-wise path. The measured numbers that differ on nearly every post are lifted: each
+# column's distinct texts are parsed once, and the values go into their PostBatch fields as one
+# array. The builders run once per distinct combination of the other columns (a representative
+# record of each, through parse_row), never per record. A lifted number reaches the fields named
+# here and nothing else ONLY while the record holds no column outside LIFT_SAFE (braces, springs,
+# condition, tributary loads and EC5 read the height, load or moisture in other ways): any other
+# record takes the distinct-record path. tests/records/test_columnwise.py holds the two paths
+# equal.
+LIFTED: dict[str, tuple[tuple[str, Any], ...]] = {
+    "height": (("height_mm", None),),
+    "load": (("load_n", None),),
+    "moisture": (("moisture_pct", None), ("bearing_wet", bearing_wet)),
+    "temperature": (("temp_c", None),),
+}
+LIFT_SAFE = frozenset(
+    (
+        *UNRATED_COLUMNS,
+        *LIFTED,
+        "size",
+        "section",
+        "diameter",
+        "plies",
+        "ply",
+        "fastening",
+        "top",
+        "bottom",
+        "k_theoretical",
+        "species",
+        "grade",
+        "method",
+        "duration",
+        "incised",
+        "construction",
+        "cap_species",
+        "cap_bearing",
+        "cap_end_distance",
+        "sill_species",
+        "sill_bearing",
+        "sill_end_distance",
+        "end_contact",
+        "end_plate",
+    )
+)
+_NOT_LIFT_SAFE = frozenset(COLUMNS) - LIFT_SAFE  # unknown columns are kept, never rated
+_NO_LIFT_METHODS = frozenset({"ec5"})  # EC5 reads the moisture and temperature in its own way
+
+
+class _Units:
+    """The distinct parses of one call: (fields, meta, problems) per unit, each row's unit, and
+    per lifted column the rows whose unit's fields take the row's own value."""
+
+    def __init__(self, n: int):
+        self.uniq: list[tuple[dict[str, Any], dict[str, Any], list[tuple[str, str]]]] = []
+        self.row_uid = np.full(n, -1, dtype=np.intp)
+        self.lifted: dict[str, tuple[np.ndarray, np.ndarray]] = {}
+
+    def add(self, parse: tuple) -> int:
+        self.uniq.append(parse)
+        return len(self.uniq) - 1
+
+
+def _distinct(texts: list) -> tuple[list, np.ndarray]:
+    """A column's distinct texts (first-seen order) and each row's index into them."""
+    index = {t: j for j, t in enumerate(dict.fromkeys(texts))}
+    codes = np.fromiter(map(index.__getitem__, texts), dtype=np.intp, count=len(texts))
+    return list(index), codes
+
+
+def _blank(t: object) -> bool:
+    return t is None or not str(t).strip()
+
+
+def _lift_shape(
+    rows: list, idx: list[int], names: tuple[str, ...], units: _Units, cache: dict | None
+) -> list[int]:
+    """Rows sharing one column order (``names``: no rated column outside LIFT_SAFE) through the
+    column-wise path; returns the rows left for the distinct-record path (a text that does not
+    parse, or a combination the builders refuse: those get their errors row by row)."""
+    n = len(idx)
+    recs = list(map(rows.__getitem__, idx))
+    cols = [list(map(operator.itemgetter(c), recs)) for c in names]
+    del recs
+    bad = np.zeros(n, dtype=bool)
+    key_codes: list[np.ndarray] = []
+    key_names: list[str] = []
+    lifted: dict[str, tuple[np.ndarray, np.ndarray]] = {}  # column -> (value, present) per row
+    for name, texts in zip(names, cols, strict=True):
+        if name in _UNRATED or name not in COLUMNS:
+            continue
+        distinct, codes = _distinct(texts)
+        if name in LIFTED:
+            vals = np.full(len(distinct), np.nan)
+            present = np.zeros(len(distinct), dtype=bool)
+            fails = np.zeros(len(distinct), dtype=bool)
+            for j, t in enumerate(distinct):
+                if _blank(t):
+                    continue
+                try:
+                    vals[j] = float(_parse_cell(name, str(t)))
+                    present[j] = True
+                except (ValueError, TypeError):
+                    fails[j] = True
+            bad |= fails[codes]
+            lifted[name] = (vals[codes], present[codes])
+            key_codes.append(present[codes].astype(np.intp))
+        else:
+            if name == "method":
+                for j, t in enumerate(distinct):
+                    try:
+                        if not _blank(t) and _parse_cell(name, str(t)) in _NO_LIFT_METHODS:
+                            bad |= codes == j
+                    except ValueError:
+                        bad |= codes == j
+            key_codes.append(codes)
+        key_names.append(name)
+    good = np.flatnonzero(~bad)
+    left = [idx[k] for k in np.flatnonzero(bad).tolist()]
+    if good.size == 0:
+        return left
+    # one dense code per distinct combination, column by column
+    inverse = np.zeros(good.size, dtype=np.int64)
+    for c in key_codes:
+        combined = inverse * (int(c.max(initial=0)) + 1) + c[good]
+        _, inverse = np.unique(combined, return_inverse=True)
+    inverse = inverse.reshape(-1)
+    n_groups = int(inverse.max(initial=-1)) + 1
+    first = np.full(n_groups, good.size, dtype=np.intp)
+    np.minimum.at(first, inverse, np.arange(good.size))
+    group_uid = np.empty(n_groups, dtype=np.intp)
+    refused = np.zeros(n_groups, dtype=bool)
+    for g in range(n_groups):
+        rep = idx[int(good[first[g]])]
+        key = (
+            "\0columns",
+            tuple(sorted((c, rows[rep][c]) for c in key_names if c not in LIFTED)),
+            tuple(sorted(c for c in LIFTED if c in key_names and not _blank(rows[rep][c]))),
+        )
+        got = None if cache is None else cache.get(key)
+        if got is None:
+            got = parse_row(rows[rep])
+            # a lifted column given must have reached every field it names, or the rows take
+            # the distinct-record path
+            lift_ok = all(f in got[0] for c in key[2] for f, _ in LIFTED[c])
+            got = (got, lift_ok)
+            if cache is not None:
+                cache[key] = got
+        parse, lift_ok = got
+        if parse[2] or not lift_ok:
+            refused[g] = True
+        else:
+            group_uid[g] = units.add(parse)
+    sel = ~refused[inverse]
+    for k in np.flatnonzero(~sel).tolist():
+        left.append(idx[int(good[k])])
+    rows_here = np.asarray(idx, dtype=np.intp)[good[sel]]
+    units.row_uid[rows_here] = group_uid[inverse[sel]]
+    for name, (vals, present) in lifted.items():
+        v, p = units.lifted.setdefault(
+            name, (np.full(len(units.row_uid), np.nan), np.zeros(len(units.row_uid), dtype=bool))
+        )
+        v[rows_here] = vals[good[sel]]
+        p[rows_here] = present[good[sel]]
+    return left
+
 
 def parse_records(rows: list[dict[str, str]], cache: dict | None = None) -> Parsed:
-    """Rows -> one PostBatch. Identical records (a row of identical shores, a re-rated log) are
-    parsed once: the builders run per distinct record, the arrays are gathered by index.
+    """Rows -> one PostBatch, column-wise: rows are taken by their column order; each column's
+    distinct texts are parsed once, the measured numbers lifted into the arrays, and the
+    builders run per distinct combination of the other columns (see LIFTED). Other records are
+    parsed once per distinct record (a row of identical shores, a re-rated log) and gathered by
+    index. Every record's errors are its own, row by row.
 
-    ``cache`` (a dict the caller keeps) carries the distinct records' parses from one call to
-    the next, so a file read in chunks parses each distinct record once; it is emptied when it
-    holds PARSE_CACHE_LIMIT records (memory stays flat)."""
-    errors: list[FieldError] = []
-    uid_of: dict[tuple, int] = {}
-    uniq: list[tuple[dict[str, Any], dict[str, Any], list[tuple[str, str]]]] = []
-    row_uid = np.empty(len(rows), dtype=np.intp)
+    ``cache`` (a dict the caller keeps) carries the distinct parses from one call to the next,
+    so a file read in chunks parses each distinct record (or combination) once; it is emptied
+    when it holds PARSE_CACHE_LIMIT entries (memory stays flat)."""
+    n = len(rows)
     if cache is not None and len(cache) > PARSE_CACHE_LIMIT:
         cache.clear()
+    units = _Units(n)
+    shapes: dict[tuple, list[int]] = {}
     for i, rec in enumerate(rows):
+        shapes.setdefault(tuple(rec), []).append(i)
+    slow: list[int] = []
+    for names, idx in shapes.items():
+        if _NOT_LIFT_SAFE.isdisjoint(names):
+            try:
+                slow.extend(_lift_shape(rows, idx, names, units, cache))
+                continue
+            except TypeError:  # a value that is not text (unhashable): record by record
+                pass
+        slow.extend(idx)
+    uid_of: dict[tuple, int] = {}
+    for i in sorted(slow):
+        rec = rows[i]
         key = _rated_key(rec)
         u = uid_of.get(key)
         if u is None:
-            u = uid_of[key] = len(uniq)
-            if cache is None:
-                uniq.append(parse_row(rec))
-            else:
-                got = cache.get(key)
-                if got is None:
-                    got = cache[key] = parse_row(rec)
-                uniq.append(got)
-        row_uid[i] = u
-        problems = uniq[u][2]
-        if problems:
-            errors.extend(FieldError(i, c, m) for c, m in problems)
+            got = None if cache is None else cache.get(key)
+            if got is None:
+                got = parse_row(rec)
+                if cache is not None:
+                    cache[key] = got
+            u = uid_of[key] = units.add(got)
+        units.row_uid[i] = u
+    uniq, row_uid = units.uniq, units.row_uid
+    errors: list[FieldError] = []
+    if slow:
+        for i in sorted(slow):
+            problems = uniq[row_uid[i]][2]
+            if problems:
+                errors.extend(FieldError(i, c, m) for c, m in problems)
     bad_u = np.array([bool(p) for _, _, p in uniq], dtype=bool)
-    ok = ~bad_u[row_uid] if len(rows) else np.zeros(0, dtype=bool)
+    ok = ~bad_u[row_uid] if n else np.zeros(0, dtype=bool)
     good_rows = row_uid[ok]
     metas = [uniq[u][1] for u in good_rows.tolist()]
     if good_rows.size == 0:
         return Parsed(make_batch(n=0), errors, ok, metas)
-    # arrays over the distinct good records, then gathered per row
+    # arrays over the distinct good units, then gathered per row
     good_u = np.flatnonzero(~bad_u)
     remap = np.full(len(uniq), -1, dtype=np.intp)
     remap[good_u] = np.arange(good_u.size)
@@ -178,9 +360,15 @@ def parse_records(rows: list[dict[str, str]], cache: dict | None = None) -> Pars
         k: np.asarray([f.get(k, DEFAULTS[k]) for f in fields_u], dtype=DTYPES[k]) for k in keys
     }
     take = remap[good_rows]
-    return Parsed(
-        make_batch(n=int(take.size), **{k: a[take] for k, a in per_u.items()}), errors, ok, metas
-    )
+    arrays = {k: a[take] for k, a in per_u.items()}
+    for name, (vals, present) in units.lifted.items():
+        here = present[ok]
+        if not here.any():
+            continue
+        v = vals[ok][here]
+        for fld, rule in LIFTED[name]:
+            arrays[fld][here] = v if rule is None else rule(v)
+    return Parsed(make_batch(n=int(take.size), **arrays), errors, ok, metas)
 
 
 def rate_records(rows: list[dict[str, str]], cache: dict | None = None):

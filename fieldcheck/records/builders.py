@@ -184,13 +184,20 @@ def material_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
     return f
 
 
+WET_MOISTURE_PCT = 19.0  # NDS Supplement: dry service is 19 % moisture content or less
+
+
+def bearing_wet(moisture_pct):
+    """The cap and sill share the post's exposure (judgement): wet above 19 % (a number or an
+    array of them, so the column-wise path lifts the same rule)."""
+    return moisture_pct > WET_MOISTURE_PCT
+
+
 def service_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
     f: dict[str, Any] = {}
     if "moisture" in row:
         f["moisture_pct"] = row["moisture"]
-        f["bearing_wet"] = (
-            row["moisture"] > 19.0
-        )  # the cap and sill share the post's exposure (judgement)
+        f["bearing_wet"] = bearing_wet(row["moisture"])
     if "temperature" in row:
         f["temp_c"] = row["temperature"]
     f["incised"] = bool(row.get("incised", False))
