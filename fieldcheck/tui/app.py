@@ -85,6 +85,12 @@ class FieldcheckApp(App[None]):
         self.last_summary: str = ""  # the last sync or report summary (also notified)
 
     # -- life cycle --------------------------------------------------------------------------
+    def get_driver_class(self) -> Any:
+        """Textual's driver for this terminal, reading Esc as Esc (see keyparse.py)."""
+        from fieldcheck.tui.keyparse import escape_first
+
+        return escape_first(super().get_driver_class())
+
     def on_mount(self) -> None:
         self.push_screen(SitesScreen())
         if self.store.office:  # --db postgresql://...: the review queue first, Esc for the sites

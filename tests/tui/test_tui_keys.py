@@ -89,3 +89,68 @@ async def test_keys_typed_while_a_screen_opens_or_closes_wait_for_it(db, ui) -> 
         new = posts[-1].record
         assert new["location"] == "cellar, west wall" and new["species"] == "douglas-fir-larch"
         assert new["load"] == "2000 lbf" and "duration" not in new
+
+
+TERMINAL_BYTES = {
+    "ctrl+n": "\x0e",
+    "ctrl+s": "\x13",
+    "escape": "\x1b",
+    "enter": "\r",
+    "tab": "\t",
+    "pagedown": "\x1b[6~",
+}  # what an xterm-like terminal (tmux too) sends for these keys
+
+
+def post_burst(location: str, size: str, load: str, defect: list[str]) -> list[str]:
+    """One post typed from the visit's list to back on it, every key of it."""
+    keys = ["ctrl+n", "enter", *location, "enter", "enter", *size, "enter", *"7ft 4in"]
+    keys += ["pagedown", "pagedown", "d", "enter", *"no2", "enter", *"18%", "enter"]
+    return [*keys, *defect, "pagedown", *load, "ctrl+s", "escape"]
+
+
+async def test_posts_typed_in_one_burst_on_a_slow_machine(db, ui, monkeypatch) -> None:
+    """The whole of two posts, ctrl+s, Esc and the next ctrl+n included, sent as one burst of
+    terminal bytes while saving and rating are slow (a loaded machine): each post gets exactly
+    its own keys. (Esc straight before ctrl+n once read as Alt+ctrl+n: the Esc was lost.)"""
+    import time
+
+    from fieldcheck.store import Log
+    from fieldcheck.tui.editor import PostEditor
+
+    save_post, rerate = Log.save_post, PostEditor.rerate
+
+    def slow_save(self, *args, **kwargs):
+        time.sleep(0.3)
+        return save_post(self, *args, **kwargs)
+
+    def slow_rerate(self):
+        time.sleep(0.01)
+        rerate(self)
+
+    monkeypatch.setattr(Log, "save_post", slow_save)
+    monkeypatch.setattr(PostEditor, "rerate", slow_rerate)
+    app = ui.app(db)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await ui.open_visit(app, pilot)
+        visit = app.screen
+        before = len(visit.posts)
+        keys = post_burst("cellar, north bay", "6x6", "9000 lbf", [*"decay", "enter", *"1in"])
+        keys += post_burst("cellar, middle", "4x4", "5000 lbf", [*"bow", "enter", *"3/4in"])
+        # as the terminal sends them: bytes, all read at once, through the app's own parser
+        parser = app.driver_class.run_input_thread.__globals__["XTermParser"]()
+        for event in parser.feed("".join(TERMINAL_BYTES.get(k, k) for k in keys)):
+            app.post_message(event)
+        await pilot.pause(0.15)  # the last Esc: the terminal sends nothing after it
+        for event in parser.tick():
+            app.post_message(event)
+        await ui.drain(app, pilot)
+        await ui.settle(app, pilot, 0.4)
+        assert app.screen is visit
+        posts = await app.store.call(lambda log: log.posts(visit.visit_id))
+        assert len(posts) == before + 2
+        first, second = (p.record for p in posts[-2:])
+        assert first["location"] == "cellar, north bay" and first["load"] == "9000 lbf"
+        assert first["decay_wide"] == "1in" and first["size"] == "6x6"
+        assert second["location"] == "cellar, middle" and second["load"] == "5000 lbf"
+        assert second["bow_weak"] == "3/4in" and second["size"] == "4x4"
+        assert first["species"] == second["species"] == "douglas-fir-larch"
