@@ -102,6 +102,7 @@ class PostBatch:
     product: np.ndarray = _i(DIMENSION)
     wet_tabulated: np.ndarray = _b()  # values already for wet service (no further CM)
     knowledge: np.ndarray = _f(1.0)  # knowledge factor kappa (ASCE 41), 0.75 for default values
+    strength_row: np.ndarray = _i(-1)  # EC5: en338.row_code of the class and edition (-1 none)
 
     # --- service conditions
     method: np.ndarray = _i(ASD)

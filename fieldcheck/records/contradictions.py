@@ -44,7 +44,7 @@ EITHER: tuple[tuple[str, str], ...] = (
 # (may sway) say how it moves sideways beside a spring
 ROTATION_ENDS = ("fixed",)  # pinned with a spring: held sideways (the default end)
 SPRINGS = {"top": ("top_ratio", "top_spring"), "bottom": ("bottom_ratio", "bottom_spring")}
-EC5_ONLY = ("class", "service_class", "cap_class", "sill_class")
+EC5_ONLY = ("class", "en338_edition", "service_class", "cap_class", "sill_class")
 
 
 def contradiction_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:

@@ -5,7 +5,7 @@ from __future__ import annotations
 from typing import Any
 
 from fieldcheck.engine import ec5, en338
-from fieldcheck.engine.batch import EC5, METHOD_NAMES
+from fieldcheck.engine.batch import EC5, GLULAM, METHOD_NAMES
 from fieldcheck.records.builders import RowError, load_duration
 from fieldcheck.records.core_columns import Column
 
@@ -21,15 +21,18 @@ EC5_DURATION = {
 
 
 def _class(s: str) -> str:
-    name = s.strip().upper()
-    try:
-        en338.strength_class(name)
-    except ValueError:
+    key = s.strip().upper().replace(" ", "")
+    names = {n.upper(): n for n in en338.class_names()}
+    if key not in names:
         raise ValueError(
-            f"class: '{s}' is not an EN 338 strength class we hold; use one of "
+            f"class: '{s}' is not an EN 338 or EN 14080 strength class we hold; use one of "
             f"{', '.join(en338.class_names())}."
-        ) from None
-    return name
+        )
+    return names[key]  # as the standard writes it (C24, GL24h)
+
+
+def _edition(s: str) -> str:
+    return en338.edition_name(s)
 
 
 def _service(s: str) -> int:
@@ -42,7 +45,21 @@ def _service(s: str) -> int:
 
 
 COLUMNS: tuple[Column, ...] = (
-    Column("class", "material", "EN 338 strength class (method ec5)", "C24", _class),
+    Column(
+        "class",
+        "material",
+        "EN 338 strength class, or EN 14080 glulam class GL20h to GL32h (method ec5)",
+        "C24",
+        _class,
+    ),
+    Column(
+        "en338_edition",
+        "material",
+        "edition of the EN 338 values: 2016 (the default) or 2009 (method ec5)",
+        "2016",
+        _edition,
+        "2016",
+    ),
     Column(
         "service_class",
         "material",
@@ -91,10 +108,33 @@ def ec5_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
             "--incised out or rate it with --method asd.",
         )
     name = row["class"]
-    f = dict(en338.batch_fields(name))
+    glulam = en338.is_glulam(name)
+    if glulam and "en338_edition" in row:
+        raise RowError(
+            "en338_edition",
+            f"en338_edition: {name} is a glulam class of EN 14080:2013, not of EN 338; leave "
+            "--en338-edition out.",
+        )
+    edition = row.get("en338_edition", en338.DEFAULT_EDITION)
+    try:
+        f = dict(en338.batch_fields(name, edition))
+    except ValueError as e:
+        raise RowError("class", f"class: {e}") from None
+    bearing = {}  # end -> the row of the cap or sill class
+    for end, col in (("top", "cap_class"), ("bottom", "sill_class")):
+        if col in row:
+            try:
+                bearing[end] = en338.row(en338.row_code(row[col], edition))
+            except ValueError as e:
+                raise RowError(col, f"{col}: {e}") from None
     out["_e_mpa"] = f["e_mpa"]
     duration = EC5_DURATION[load_duration(row)]
-    product = "solid"
+    # EN 14080 classes are glued laminated timber: gamma_M 1.25 (EN 1995-1-1 Table 2.3,
+    # recommended value; a National Annex may set another), beta_c 0.1 (§6.3.2 Eq. 6.29) and the
+    # glulam rows of k_mod (Table 3.1), through the PostBatch product
+    product = "glulam" if glulam else "solid"
+    if glulam:
+        f["product"] = GLULAM
     # the service class follows the measured moisture (EN 1995-1-1 §2.3.1.3: class 1 about
     # 12 % or less, class 2 about 20 % or less, class 3 wetter; from memory): a reading wetter
     # than the class chosen uses the wetter class, and the material text says so
@@ -113,13 +153,36 @@ def ec5_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
     f["kmod"] = float(ec5.kmod(sc, duration, product))  # EN 1995-1-1 Table 3.1
     f["gamma_m"] = float(ec5.gamma_m(product))  # EN 1995-1-1 Table 2.3
     f["knowledge"] = 1.0
-    for end, col in (("top", "cap_class"), ("bottom", "sill_class")):
-        if col in row:
-            f[f"{end}_fc_perp_mpa"] = en338.strength_class(row[col])["fc90k_mpa"]
-    out["_values_status"] = en338.status(name)
-    out["_values_source"] = en338.edition(name)
+    bearing_note = ""
+    for end, r in bearing.items():
+        f[f"{end}_fc_perp_mpa"] = r["values"]["fc90k_mpa"]  # f_c,90,k of the cap or sill
+        bearing_note += (
+            f"; {'cap' if end == 'top' else 'sill'} {r['class']} ({r['edition']}, f_c,90,k "
+            f"{r['values']['fc90k_mpa']:g} MPa {r['statuses']['fc90k_mpa']})"
+        )
+    held = en338.row(f["strength_row"])
+    out["_values_status"] = held["status"]
+    out["_values_source"] = held["edition"]
     out["_material"] = (
-        f"{name} ({en338.edition(name)}), k_mod {f['kmod']:.2f} ({duration}, service class "
-        f"{sc}), gamma_M {f['gamma_m']}{moisture_note}"
+        f"{name} ({held['edition']}, values {_statuses(held)}), k_mod {f['kmod']:.2f} "
+        f"({duration}, service class {sc}), gamma_M {f['gamma_m']}{moisture_note}{bearing_note}"
     )
     return f
+
+
+def _statuses(held: dict) -> str:
+    """'secondary' when every value has one status, else each value's: 'f_c,0,k secondary, ...'."""
+    st = held["statuses"]
+    if len(set(st.values())) == 1:
+        return next(iter(st.values()))
+    return ", ".join(f"{SYMBOLS[c]} {s}" for c, s in st.items() if c in SYMBOLS)
+
+
+# the values the EC5 checks use, as EN 338 writes them
+SYMBOLS = {
+    "fmk_mpa": "f_m,k",
+    "fc0k_mpa": "f_c,0,k",
+    "fc90k_mpa": "f_c,90,k",
+    "e0mean_mpa": "E_0,mean",
+    "e005_mpa": "E_0,05",
+}
