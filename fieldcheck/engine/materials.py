@@ -90,14 +90,63 @@ def normalise_grade(text: str) -> str:
     return key
 
 
+PROPERTIES = ("fb", "fc", "fc_perp", "e", "emin")  # psi columns of the table, MPa out
+_WIDE = 10**6  # an empty max_width_in: every width
+
+
 @cache
-def _rows() -> dict[tuple[str, str, str], dict[str, str]]:
-    return {(r["species"], r["grade"], r["category"]): r for r in table("nds_reference_values")}
+def _rows() -> dict[tuple[str, str, str], tuple[dict[str, str], ...]]:
+    """(species, grade, category) -> its rows, narrowest width first (one row unless by width)."""
+    out: dict[tuple[str, str, str], list[dict[str, str]]] = {}
+    for r in table("nds_reference_values"):
+        out.setdefault((r["species"], r["grade"], r["category"]), []).append(r)
+    return {k: tuple(sorted(v, key=_max_width)) for k, v in out.items()}
+
+
+def _max_width(r: dict[str, str]) -> int:
+    return int(r["max_width_in"]) if r.get("max_width_in") else _WIDE
+
+
+def _at_width(rows: tuple[dict[str, str], ...], width_nom: int | None) -> dict[str, str]:
+    """The row for a nominal width (NDS Supplement Table 4B rows by width); wider than the last
+    row: the last row (its size factor is size_factors'). No width known: the lowest value of
+    every property over the rows, each with the weakest status of its column (conservative)."""
+    if len(rows) == 1:
+        return rows[0]
+    if width_nom is not None:
+        return next((r for r in rows if width_nom <= _max_width(r)), rows[-1])
+    low = dict(rows[-1])
+    for p in PROPERTIES:
+        low[f"{p}_psi"] = str(min(float(r[f"{p}_psi"]) for r in rows))
+        low[f"{p}_status"] = max((r[f"{p}_status"] for r in rows), key=_STATUS_ORDER.index)
+    low["table"] = rows[0]["table"].split(" (")[0] + " (lowest of every width)"
+    return low
 
 
 # Grades held only for 2" to 4" wide dimension lumber (NDS Supplement Table 4A)
 NARROW_ONLY = ("construction", "standard")
 _STATUS_ORDER = ("read", "secondary", "memory")  # weakest last
+# Product classes by nominal size (NDS 2018 §4.1.3; NDS Supplement Tables 4A, 4D)
+CATEGORY_WORDS = {
+    "dimension": "dimension lumber (2 to 4 in nominal thick)",
+    "timber": "Posts and Timbers (5x5 and larger, width not more than 2 in over thickness)",
+    "beams-stringers": "Beams and Stringers (5 in and thicker, width more than 2 in over "
+    "thickness)",
+}
+
+
+def size_class(thick_nom: int, width_nom: int) -> str:
+    """The product class of a nominal size (NDS 2018 §4.1.3; NDS Supplement Table 4D):
+    'dimension' 2 to 4 in thick; 'beams-stringers' 5 in and thicker with the width more than
+    2 in greater than the thickness; 'timber' (Posts and Timbers) the other 5 in and thicker."""
+    if thick_nom < 5:
+        return "dimension"
+    return "beams-stringers" if width_nom > thick_nom + 2 else "timber"
+
+
+def weakest(statuses) -> str:
+    """The weakest of some statuses (read < secondary < memory)."""
+    return max(statuses, key=_STATUS_ORDER.index)
 
 
 @cache
@@ -107,8 +156,12 @@ def reference_values(
     category: str,
     width_nom: int | None = None,
     thick_nom: int | None = None,
-) -> dict[str, float | str | bool]:
-    """Reference values in MPa for a species group, grade and category (dimension | timber).
+) -> dict:
+    """Reference values in MPa for a species group, grade and category (dimension | timber |
+    beams-stringers), at a nominal width where the table gives values by width (Southern Pine,
+    NDS Supplement Table 4B; no width: the lowest over the widths).
+
+    ``statuses``: each value's own status (read, secondary or memory); ``status`` the weakest.
 
     ``species`` or ``grade`` 'unknown': a true lower bound. Each property is the lowest over
     every species group and every grade held for that size and category (No.3, Stud,
@@ -116,14 +169,15 @@ def reference_values(
     own size factor CF folded in when the nominal size is given (``cf_included``: the caller
     takes CF = 1.0), with the knowledge factor for default values on top (ASCE 41 data
     collection; judgement). A data-collection level may raise kappa to at most 1.0, never the
-    values above this bound.
+    values above this bound. Each bound value takes the weakest status of the values it is the
+    lowest of.
     """
     wide_stud = width_nom is not None and width_nom > 6
     if grade == "stud" and wide_stud:
         grade = "no3"  # NDS Supplement Table 4A note: Stud wider than 6 in takes No.3 values
     if species == "unknown" or grade == "unknown":
         pool = []
-        for (s_, g_, c_), r in _rows().items():
+        for (s_, g_, c_), rows in _rows().items():
             if c_ != category or (species != "unknown" and s_ != species):
                 continue
             if grade != "unknown" and g_ != grade:
@@ -138,14 +192,14 @@ def reference_values(
                     cf_fc, cf_fb = size_factors(s_, g_, width_nom, thick_nom)
                 except ValueError:
                     continue  # not graded at this width
-            pool.append((r, cf_fc, cf_fb))
+            pool.append((_at_width(rows, width_nom), cf_fc, cf_fb))
         if not pool:
             raise ValueError(
                 f"grade: no {category} values held for {species} {grade}; choose another grade."
             )
         cf = {"fc": 1, "fb": 2}  # CF applies to Fc and Fb only (NDS Supplement Table 4A)
         out: dict = {}
-        for p in ("fb", "fc", "fc_perp", "e", "emin"):
+        for p in PROPERTIES:
             k = cf.get(p)
             out[p] = (
                 min(
@@ -154,24 +208,27 @@ def reference_values(
                 )
                 * PSI
             )
-        statuses = {r["status"] for r, _, _ in pool}
+        statuses = {p: weakest(r[f"{p}_status"] for r, _, _ in pool) for p in (*PROPERTIES, "g")}
         out.update(
             g=min(float(r["g"]) for r, _, _ in pool),
             wet_tabulated=False,
             knowledge=KAPPA_DEFAULT_VALUES,
             table="lowest of " + ", ".join(sorted({r["table"] for r, _, _ in pool})),
-            status=max(statuses, key=_STATUS_ORDER.index),
+            statuses=statuses,
+            status=weakest(statuses.values()),
             assumed=True,
             cf_included=width_nom is not None and thick_nom is not None,
         )
         return out
-    row = _rows().get((species, grade, category))
-    if row is None:
+    rows = _rows().get((species, grade, category))
+    if rows is None:
         held = sorted({gr for (s, gr, c) in _rows() if s == species and c == category})
         if not held:  # the species has no values at all for this size category
             words = {
                 "dimension": "dimension sizes (2 to 4 in nominal thick)",
                 "timber": "timber sizes (5x5 and larger)",
+                "beams-stringers": "Beams and Stringers sizes (5 in and thicker, width more "
+                "than 2 in over thickness)",
             }
             cats = sorted({words.get(c, c) for (s, _, c) in _rows() if s == species})
             raise ValueError(
@@ -183,30 +240,52 @@ def reference_values(
             f"grade: {species} {grade} is not held for {category} sizes; held grades: "
             f"{', '.join(held)}."
         )
-    out = {p: float(row[f"{p}_psi"]) * PSI for p in ("fb", "fc", "fc_perp", "e", "emin")}
+    row = _at_width(rows, width_nom)
+    out = {p: float(row[f"{p}_psi"]) * PSI for p in PROPERTIES}
+    statuses = {p: row[f"{p}_status"] for p in (*PROPERTIES, "g")}
     out.update(
         g=float(row["g"]),
         wet_tabulated=row["wet_tabulated"] == "1",
         knowledge=1.0,
         table=row["table"],
-        status=row["status"],
+        statuses=statuses,
+        status=weakest(statuses.values()),
         assumed=False,
         cf_included=False,
     )
     return out
 
 
+# Flat use factor Cfu on Fb of Beams and Stringers loaded on the wide face (NDS Supplement
+# Table 4D adjustment factors; from memory). The engine has one Fb for bending about either
+# axis, so Beams and Stringers take it always (conservative).
+CFU_BEAMS_STRINGERS = {"select-structural": 0.86, "no1": 0.74, "no2": 1.0}
+CF_WIDER_THAN_12_SP = 0.9  # NDS Supplement Table 4B footnote: over 12 in, the 12 in row x 0.9
+
+
 @cache
 def size_factors(
     species: str, grade: str, nominal_width_in: int, thickness_in: int
 ) -> tuple[float, float]:
-    """(CF for Fc, CF for Fb) for dimension lumber (NDS Supplement Table 4A size factors).
+    """(CF for Fc, CF for Fb): NDS Supplement Table 4A size factors for dimension lumber.
 
-    Southern Pine (Table 4B) and timbers (Table 4D, Fc) take 1.0. Stud grade wider than 6 in takes
-    the No.3 factors (the table's own rule), which are the 'structural' row here.
+    Southern Pine dimension lumber (Table 4B): values by width already, CF 1.0; wider than
+    12 in, the 12 in row x 0.9 on Fc and Fb (the Table 4B footnote, from memory; the
+    permitted 1.1 on Fb for 4 in thick, 8 in and wider is not taken: conservative).
+    Timbers (Table 4D): CF 1.0 for Fc; for Fb (12/d)^(1/9) when the depth d exceeds 12 in
+    (NDS 2018 §4.3.6.2), and for Beams and Stringers the flat use factor Cfu on top.
+    Stud grade wider than 6 in takes the No.3 factors (the table's own rule), which are the
+    'structural' row here.
     """
-    if species == "southern-pine" or thickness_in >= 5:
-        return 1.0, 1.0
+    if thickness_in >= 5:
+        depth_in = float(nominal_width_in) - 0.5  # dressed depth (NDS Supplement Table 1B)
+        cf_fb = (12.0 / depth_in) ** (1.0 / 9.0) if depth_in > 12.0 else 1.0
+        if size_class(thickness_in, nominal_width_in) == "beams-stringers":
+            # a grade without its own factor (unknown) takes the lowest
+            cf_fb *= CFU_BEAMS_STRINGERS.get(grade, min(CFU_BEAMS_STRINGERS.values()))
+        return 1.0, cf_fb
+    if species == "southern-pine":
+        return (CF_WIDER_THAN_12_SP,) * 2 if nominal_width_in > 12 else (1.0, 1.0)
     if grade == "unknown" or species == "unknown":
         return 1.0, 1.0  # the unknown lower bound carries each candidate's own CF
     g = grade
@@ -225,6 +304,12 @@ def size_factors(
 
 def fc_perp_of(species: str) -> float:
     """Fc-perp (MPa) of a species group, for a cap, beam or sill it bears on (any grade)."""
-    if species == "unknown":
-        return min(float(r["fc_perp_psi"]) for r in _rows().values()) * PSI
-    return min(float(r["fc_perp_psi"]) for (s, _, _), r in _rows().items() if s == species) * PSI
+    return (
+        min(
+            float(r["fc_perp_psi"])
+            for (s, _, _), rows in _rows().items()
+            for r in rows
+            if species == "unknown" or s == species
+        )
+        * PSI
+    )

@@ -155,10 +155,10 @@ def _stock(species: str) -> tuple[tuple, dict[str, np.ndarray]]:
     )
     for a, b in STOCK_SIZES:
         d1, d2 = sections.nominal_dressed_mm(a, b)
-        cat = "timber" if min(a, b) >= 5 else "dimension"  # NDS Supplement Table 4D scope
+        cat = materials.size_class(min(a, b), max(a, b))  # NDS 2018 §4.1.3
         for g in STOCK_GRADES:
             try:
-                rv = materials.reference_values(species, g, cat)
+                rv = materials.reference_values(species, g, cat, max(a, b))
                 cf_fc, cf_fb = materials.size_factors(species, g, max(a, b), min(a, b))
             except ValueError:
                 continue  # grade not held for this size
@@ -173,7 +173,7 @@ def _stock(species: str) -> tuple[tuple, dict[str, np.ndarray]]:
                 ("emin_mpa", rv["emin"]),
                 ("cf_fc", cf_fc),
                 ("cf_fb", cf_fb),
-                ("product", TIMBER if cat == "timber" else DIMENSION),
+                ("product", DIMENSION if cat == "dimension" else TIMBER),
                 ("wet_tabulated", rv["wet_tabulated"]),
             ):
                 cols[k].append(v)

@@ -97,7 +97,8 @@ def section_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
         width_nom = int(sections.nominal_width_in(np.array([d1]))[0])
     f.update(d1_mm=d1, d2_mm=d2)
     out["_d1"], out["_d2"] = d1, d2
-    out["_category"] = "timber" if thick_nom >= 5 else "dimension"
+    # NDS 2018 §4.1.3: dimension lumber, Posts and Timbers or Beams and Stringers by size
+    out["_category"] = materials.size_class(int(thick_nom), int(width_nom))
     out["_width_nom"], out["_thick_nom"] = int(width_nom), int(thick_nom)
     f["product"] = TIMBER if thick_nom >= 5 else DIMENSION
     return f
@@ -177,7 +178,12 @@ def material_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
     # where the values came from and how sure (read / secondary / memory), for every person
     # who sees the rating: CLI, --json, interface, report (meta of parse_records)
     out["_values_status"] = rv["status"]
-    out["_values_source"] = f"NDS Supplement 2018 Table {rv['table']}"
+    tables = rv["table"].removeprefix("lowest of ")
+    out["_values_source"] = (
+        f"NDS Supplement 2018 Table {tables}"
+        if tables == rv["table"]
+        else f"NDS Supplement 2018, the lowest of Tables {tables}"
+    )
     out["_e_mpa"] = rv["e"]
     if method == LRFD:
         f["lam"] = LAMBDA[duration]
