@@ -1,11 +1,12 @@
 """The layers import one way, as DEVELOPERS.md states them, and nothing loads what it must not.
 
-    tui      -> report, store, records, engine, units
-    report   -> engine, units (and config, the user's config file)
-    store    -> records, engine
-    records  -> units, engine
-    engine   -> nothing of ours
-    units    -> nothing of ours
+    tui       -> report, store, records, engine, units, row_error
+    report    -> engine, units, row_error (and config, the user's config file)
+    store     -> records, engine, row_error
+    records   -> units, engine, row_error
+    engine    -> nothing of ours
+    units     -> nothing of ours
+    row_error -> nothing of ours (a refused field, named by records and store alike)
     commands -> any layer below the interface (thin: parse, call, print), never cli.py, and one
                 command never imports another (shared helpers live in modules that are no command)
     cli      -> commands (and the interface, to open it)
@@ -32,11 +33,12 @@ ALLOWED: dict[str, set[str]] = {
     "engine": set(),
     "units": set(),
     "config": set(),  # the user's config file (report title block, defaults)
-    "records": {"units", "engine"},
-    "store": {"records", "engine"},
-    "report": {"engine", "units", "config"},
-    "tui": {"report", "store", "records", "engine", "units", "config"},
-    "commands": {"tui", "report", "store", "records", "engine", "units", "config"},
+    "row_error": set(),  # RowError: the store names it without loading records or the engine
+    "records": {"units", "engine", "row_error"},
+    "store": {"records", "engine", "row_error"},
+    "report": {"engine", "units", "config", "row_error"},
+    "tui": {"report", "store", "records", "engine", "units", "config", "row_error"},
+    "commands": {"tui", "report", "store", "records", "engine", "units", "config", "row_error"},
     "cli": {"commands", "tui"},
     "root": set(),  # fieldcheck/__init__.py: the version
     "main": {"cli"},  # python -m fieldcheck
@@ -251,3 +253,18 @@ def test_engine_has_no_pint_or_sqlite():
     )
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "False"
+
+
+def test_opening_a_log_loads_neither_records_nor_the_engine(tmp_path):
+    # the store names refused fields with fieldcheck.row_error, which imports nothing of ours
+    code = (
+        "import sys; from fieldcheck.store import Log;"
+        "Log.open(sys.argv[1]).close();"
+        "print(sorted(m for m in sys.modules if m.startswith(('fieldcheck.records',"
+        " 'fieldcheck.engine'))))"
+    )
+    path = str(tmp_path / "light.fieldcheck")
+    out = subprocess.run(
+        [sys.executable, "-c", code, path], capture_output=True, text=True, check=True
+    )
+    assert out.stdout.strip() == "[]"

@@ -50,7 +50,6 @@ def run(args: argparse.Namespace) -> int:
         )
     from fieldcheck.commands.progress import counted, progress_bar
     from fieldcheck.config import load
-    from fieldcheck.records import field_sentence
     from fieldcheck.records.csv_file import CsvProblem
 
     inspector = args.inspector or load().inspector or None
@@ -84,10 +83,7 @@ def run(args: argparse.Namespace) -> int:
             print(json.dumps(out, ensure_ascii=False, indent=1))
             return 0 if not result.errors else 1
         for err in result.errors:
-            print(
-                f"fieldcheck: row {err.row + 1}: {field_sentence(err.column, err.message)}",
-                file=sys.stderr,
-            )
+            print(f"fieldcheck: {err}", file=sys.stderr)
         bad = len({e.row for e in result.errors})
         print(
             f"Imported {result.imported} of {result.read} posts into {result.site.name!r}, visit "

@@ -1,7 +1,7 @@
 """Posts as typed -> one PostBatch, and rating in one call.
 
 A record is a ``dict[str, str]`` keyed by column name (see columns.py). Bad values never stop the
-other rows: each problem is a :class:`FieldError` naming its row and column, and the rows without
+other rows: each problem is a :class:`RowError` naming its row and column, and the rows without
 errors are rated together in one engine pass.
 
     parsed = parse_records(rows)        # Parsed(batch, errors, ok, rows, meta)
@@ -19,8 +19,9 @@ from typing import Any
 import numpy as np
 
 from fieldcheck.engine.batch import PostBatch, make_batch
-from fieldcheck.records.builders import RowError, bearing_wet
+from fieldcheck.records.builders import bearing_wet
 from fieldcheck.records.columns import BUILDERS, COLUMNS, GROUPS, Column
+from fieldcheck.row_error import RowError
 
 UNRATED_COLUMNS = ("tag", "location", "notes")  # kept in the log, not seen by the engine
 _UNRATED = frozenset(UNRATED_COLUMNS)
@@ -30,37 +31,18 @@ __all__ = [
     "GROUPS",
     "UNRATED_COLUMNS",
     "Column",
-    "FieldError",
     "Parsed",
+    "RowError",
     "parse_records",
     "parse_row",
     "rate_records",
 ]
 
 
-@dataclass(frozen=True)
-class FieldError:
-    row: int  # 0-based index into the rows given
-    column: str
-    message: str
-
-    def __str__(self) -> str:
-        return f"row {self.row + 1}: {self.sentence()}"
-
-    def sentence(self) -> str:
-        """The message named for its column once (never "height: height: ...")."""
-        return field_sentence(self.column, self.message)
-
-
-def field_sentence(column: str, message: str) -> str:
-    """``column: message``, unless the message already names the column (or a field) first."""
-    return message if re.match(r"^[a-z][a-z0-9_ -]{0,30}: ", message) else f"{column}: {message}"
-
-
 @dataclass
 class Parsed:
     batch: PostBatch  # the rows without errors, in order
-    errors: list[FieldError]
+    errors: list[RowError]
     ok: np.ndarray  # bool per input row
     meta: list[dict[str, Any]] = field(default_factory=list)  # per rated row: material text etc.
 
@@ -103,7 +85,7 @@ def parse_row(
         try:
             fields.update(build(values, meta))
         except RowError as exc:
-            return {}, {}, [(exc.column, str(exc))]
+            return {}, {}, [(exc.column, exc.message)]
         except ValueError as exc:
             return {}, {}, [(getattr(build, "column", "input"), str(exc))]
     return fields, meta, []
@@ -336,12 +318,12 @@ def parse_records(rows: list[dict[str, str]], cache: dict | None = None) -> Pars
             u = uid_of[key] = units.add(got)
         units.row_uid[i] = u
     uniq, row_uid = units.uniq, units.row_uid
-    errors: list[FieldError] = []
+    errors: list[RowError] = []
     if slow:
         for i in sorted(slow):
             problems = uniq[row_uid[i]][2]
             if problems:
-                errors.extend(FieldError(i, c, m) for c, m in problems)
+                errors.extend(RowError(c, m, row=i) for c, m in problems)
     bad_u = np.array([bool(p) for _, _, p in uniq], dtype=bool)
     ok = ~bad_u[row_uid] if n else np.zeros(0, dtype=bool)
     good_rows = row_uid[ok]

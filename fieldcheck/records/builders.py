@@ -26,6 +26,7 @@ from fieldcheck.engine.batch import (
 )
 from fieldcheck.engine.customary import IN
 from fieldcheck.engine.restraint import mechanism_reason, unbraced_length
+from fieldcheck.row_error import RowError
 
 Row = dict[str, Any]
 Builder = Callable[[Row, dict[str, Any]], dict[str, Any]]
@@ -47,12 +48,6 @@ LAMBDA = {
     "impact": 1.25,
 }  # NDS 2018 Appendix N Table N3 (from memory), by the shortest load
 CB_MIN_END_DISTANCE_MM = 3.0 * IN  # NDS 2018 §3.10.4
-
-
-class RowError(ValueError):
-    def __init__(self, column: str, message: str):
-        super().__init__(message)
-        self.column = column
 
 
 def section_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:

@@ -16,8 +16,8 @@ import numpy as np
 from fieldcheck import units
 from fieldcheck.engine import condition as cond
 from fieldcheck.engine.refdata import table
-from fieldcheck.records.builders import RowError
 from fieldcheck.records.core_columns import Column, choice, yes_no
+from fieldcheck.row_error import RowError
 
 IN = units.IN_MM  # mm per inch
 

@@ -7,7 +7,7 @@ from __future__ import annotations
 
 from typing import Any
 
-from fieldcheck.records.builders import RowError
+from fieldcheck.row_error import RowError
 
 
 def _opt(column: str) -> str:

@@ -6,8 +6,9 @@ from typing import Any
 
 from fieldcheck.engine import ec5, en338
 from fieldcheck.engine.batch import EC5, GLULAM, METHOD_NAMES
-from fieldcheck.records.builders import RowError, load_duration
+from fieldcheck.records.builders import load_duration
 from fieldcheck.records.core_columns import Column
+from fieldcheck.row_error import RowError
 
 # NDS durations -> EN 1995-1-1 Table 2.1 load-duration classes (nearest; judgement)
 EC5_DURATION = {

@@ -19,7 +19,6 @@ from fieldcheck.engine import loads, materials
 from fieldcheck.engine.batch import EC5, METHOD_NAMES
 from fieldcheck.engine.ground import lateral_rows
 from fieldcheck.engine.refdata import table
-from fieldcheck.records.builders import RowError
 from fieldcheck.records.core_columns import (
     DURATION_ALIASES,
     DURATIONS,
@@ -28,6 +27,7 @@ from fieldcheck.records.core_columns import (
     count,
     yes_no,
 )
+from fieldcheck.row_error import RowError
 
 AREA_LOADS = ("dead", "live", "occupancy", "snow", "roof_live", "rain")
 POINT_LOADS = ("point", "point_live")

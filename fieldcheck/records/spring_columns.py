@@ -15,8 +15,8 @@ import numpy as np
 from fieldcheck import units
 from fieldcheck.engine import stability
 from fieldcheck.engine.spring_ends import end_ratio, translates
-from fieldcheck.records.builders import RowError
 from fieldcheck.records.core_columns import Column
+from fieldcheck.row_error import RowError
 
 
 def parse_ratio(text: str, field: str) -> float:

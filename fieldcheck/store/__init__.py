@@ -44,7 +44,7 @@ dataclasses from ``fieldcheck.store.repo``)::
     log.import_rows(rows, site, visit, inspector=None)
         -> ImportResult(imported, errors, site, visit)
         # rows: iterable of dict[str, str] (the `rate --batch` column set); one transaction, one
-        # engine call; bad rows are left out and reported as RowError(row, column, message)
+        # engine call; bad rows are left out and reported as RowError(column, message, row=)
     log.export_rows(visit_id=None) -> ExportTable(columns, rows)   # record columns + rating columns
 
     log.attach(observation_id, photo_path, caption="") -> Attachment   # path + sha256 + size
@@ -125,7 +125,7 @@ def __getattr__(name: str) -> Any:  # lazy: `import fieldcheck.store` stays chea
 
         return LogError
     if name == "RowError":
-        from fieldcheck.store.rated import RowError
+        from fieldcheck.row_error import RowError
 
         return RowError
     if name in __all__:

@@ -16,18 +16,11 @@ from functools import cache
 
 import numpy as np
 
+from fieldcheck.row_error import RowError
+
 # the engine's names (fieldcheck.engine.rating.ACTIONS); repeated here so reading a log never
 # needs the engine
 ACTION_LABELS = ("no-action", "monitor", "repair-or-brace", "make-safe-now")
-
-
-@dataclass(frozen=True)
-class RowError:
-    """A field the records layer refused: 0-based row of the input, the column, one sentence."""
-
-    row: int
-    column: str
-    message: str
 
 
 @dataclass(frozen=True)
@@ -126,7 +119,7 @@ def rate(
     if n == 0:
         return RatedRows([], [])
     rating, errors = rate_records(records, cache)
-    errs = [RowError(int(e.row), str(e.column), str(e.message)) for e in errors]
+    errs = list(errors)  # RowError, placed at their row by the records layer
     bad = {e.row for e in errs}
     ok_rows = [i for i in range(n) if i not in bad]
     m = len(ok_rows)

@@ -21,10 +21,11 @@ from pathlib import Path
 
 from sqlite_utils import Database
 
+from fieldcheck.row_error import RowError
 from fieldcheck.store import rated
 from fieldcheck.store.connection import APPLICATION_ID, LogError, connect, damaged, pragma
 from fieldcheck.store.paths import default_log_path
-from fieldcheck.store.rated import RowError, action_label
+from fieldcheck.store.rated import action_label
 from fieldcheck.store.rows import (
     HEAD,
     ORIGIN_COLS,
@@ -841,7 +842,7 @@ class Log:
                     if row is not None:
                         good.append((oid, row))
                     elif errs_k:
-                        errors.extend(RowError(n + k, c, m) for c, m in errs_k)
+                        errors.extend(RowError(c, m, row=n + k) for c, m in errs_k)
                 seqs = self._seqs(len(good))
                 rids = new_ids(len(good))
                 self._insert(
@@ -913,7 +914,7 @@ class Log:
                 records = [_import_record(r) for r in batch]
                 del batch
                 result = rated.rate(records, summaries=False, cache=cache)
-                errors.extend(RowError(read + e.row, e.column, e.message) for e in result.errors)
+                errors.extend(e.at(read + e.row) for e in result.errors)
                 ok = [i for i, row in enumerate(result.rows) if row is not None]
                 seqs = iter(self._seqs(3 * len(ok)))
                 ids = new_ids(3 * len(ok))

@@ -8,7 +8,7 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from fieldcheck.engine.batch import DEFAULTS, DTYPES, FIELD_NAMES
-from fieldcheck.records import FieldError, parse_records, parse_row
+from fieldcheck.records import RowError, parse_records, parse_row
 
 # texts an inspector might type, a few of them refused (judgement: the common columns of a
 # survey, with the numbers that differ on every post)
@@ -60,7 +60,7 @@ def one_by_one(rows):
     out = []
     for i, rec in enumerate(rows):
         fields, meta, problems = parse_row(rec)
-        out.append((fields, meta, [FieldError(i, c, m) for c, m in problems]))
+        out.append((fields, meta, [RowError(c, m, row=i) for c, m in problems]))
     return out
 
 
