@@ -48,7 +48,7 @@ def run(args: argparse.Namespace) -> int:
     units = getattr(args, "units", None) or load().units
     to_file = bool(args.out) and args.out != "-"
     with open_log(args, readonly=True, must_exist=True) as log:
-        cols, rows = ef.rows(log, units)
+        cols, rows = ef.rows(log, units, spreadsheet_safe=args.format == "csv")
         total = log.count_members()  # for the progress bar: quick, never a pass over the posts
         written = []
 

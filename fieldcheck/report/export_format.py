@@ -32,8 +32,12 @@ from __future__ import annotations
 import csv
 import datetime as _dt
 import json
+import math
 import re
 from collections.abc import Iterable, Iterator
+from itertools import compress
+from json.encoder import encode_basestring as _encode_text
+from operator import is_not
 
 from fieldcheck.engine.customary import LBF
 from fieldcheck.engine.result import ACTIONS, DUE_DAYS, NOT_RATED
@@ -70,6 +74,7 @@ ADDED = (
     "schema_version",
 )
 _FORMULA = ("=", "+", "-", "@", "\t", "\r")
+_FORMULA_FIRST = frozenset("".join(_FORMULA))
 _NUMBER = re.compile(r"^[+-]?(\d+(\.\d*)?|\.\d+)([eE][+-]?\d+)?$")
 
 
@@ -123,104 +128,179 @@ class _Reader:
         self.parse, self.scale, self.nd, self.seen = parse, scale, nd, {}
 
     def __call__(self, text: object):
-        if not isinstance(text, str) or not text.strip():
+        if not isinstance(text, str):
             return None
         if text not in self.seen:
             try:
-                self.seen[text] = _round(self.parse(text) / self.scale, self.nd)
+                got = _round(self.parse(text) / self.scale, self.nd) if text.strip() else None
             except ValueError:
-                self.seen[text] = None
+                got = None
+            self.seen[text] = got
         return self.seen[text]
 
 
-def _visit_dates(log) -> dict[tuple[str, str], str]:
-    """(site name, visit name) -> visit date (YYYY-MM-DD)."""
-    sites = {s.id: s.name for s in log.sites()}
-    out = {}
-    for v in log.visits():
-        try:
-            day = _dt.datetime.fromisoformat(v.started_at).date().isoformat()
-        except (TypeError, ValueError):
-            day = ""
-        out[(sites.get(v.site_id, ""), v.name)] = day
-    return out
+def rows(
+    log, units: str = "us", visit_id: str | None = None, *, spreadsheet_safe: bool = False
+) -> tuple[list[str], Iterator[list]]:
+    """(header, iterator of one list per current post: its values in header order, None for a
+    blank), from the log's streamed export (store: Log.export_chunks). ``spreadsheet_safe``:
+    every text from the log that a spreadsheet would run as a formula is ``neutralise``d (for
+    CSV).
 
-
-def _action(label: object) -> int | None:
-    if label in ACTIONS:
-        return ACTIONS.index(label)
-    if isinstance(label, str) and label.isdigit():
-        return int(label)
-    return None
-
-
-def rows(log, units: str = "us", visit_id: str | None = None) -> tuple[list[str], Iterator[dict]]:
-    """(header, iterator of one dict per current post in header order), from the log's streamed
-    export (store: Log.export_iter)."""
+    Built for a million posts: each row starts as a copy of a blank row and only the cells the
+    post fills are set; what many posts share (names, dates, due dates, the readings of a typed
+    height or load) is worked out once."""
     from fieldcheck import units as u
 
     cols = columns(units, log.record_columns())
     us = units == "us"
     height = _Reader(u.parse_length, u.IN_MM if us else 1.0, 2 if us else 0)
     load = _Reader(u.parse_force, LBF if us else 1000.0, 0 if us else 2)
+    heights, loads = height.seen, load.seen
     fscale, fnd, f = (LBF, 0, "lbf") if us else (1000.0, 2, "kN")
-    dates = _visit_dates(log)
-    _, src = log.export_iter(visit_id, record_columns=False)  # the columns are fixed here
+    at = {c: i for i, c in enumerate(cols)}
+    # the cells a record fills as typed (every other column is set below, whatever it holds)
+    typed = {c: i for c, i in at.items() if c not in ADDED}.get
+    i_height, i_load = at[UNIT_COLUMNS[units]["height"]], at[UNIT_COLUMNS[units]["load"]]
+    i_site, i_visit, i_day, i_tail = at["site"], at["visit"], at["visit_date"], at["state"]
+    tail = ("state", "action", "due_date", "ratio", f"capacity_{f}", f"demand_{f}", "governing")
+    tail += ("engine_version", "revised_at", "member_id", "observation_id", "schema_version")
+    if tuple(cols[i_tail:]) != tail:  # the row's end is written in one step below
+        raise AssertionError(f"the export's last columns changed: {cols[i_tail:]}")
+    blank: list = [None] * len(cols)
+    danger = _FORMULA_FIRST if spreadsheet_safe else frozenset()
 
-    def gen() -> Iterator[dict]:
-        for r in src:
-            row = {c: r.get(c, "") for c in cols}
-            row[UNIT_COLUMNS[units]["height"]] = height(r.get("height"))
-            row[UNIT_COLUMNS[units]["load"]] = load(r.get("load"))
-            day = dates.get((r.get("site", ""), r.get("visit", "")), "")
-            row["visit_date"] = day
-            act = _action(r.get("action"))
-            ratio = r.get("ratio")
-            if act is None:
-                state, act_text = "not rated", ""
-            elif act == NOT_RATED:
-                state, act_text = "not rated: load missing", ACTIONS[NOT_RATED]
-            else:
-                state, act_text = "rated", ACTIONS[act]
-            row["state"], row["action"] = state, act_text
-            due = ""
-            if act is not None and act < len(DUE_DAYS) and DUE_DAYS[act] is not None and day:
-                due = (_dt.date.fromisoformat(day) + _dt.timedelta(days=DUE_DAYS[act])).isoformat()
-            row["due_date"] = due
-            row["ratio"] = _round(ratio, 3) if isinstance(ratio, float | int) else None
-            for k in ("capacity", "demand"):
-                kn = r.get(f"{k}_kN")
-                row[f"{k}_{f}"] = None if kn is None else _round(kn * 1000.0 / fscale, fnd)
-            row["schema_version"] = SCHEMA_VERSION
-            yield row
+    def cell(v):  # a value from the log: blank text is None
+        if v.__class__ is str:
+            return None if not v else neutralise(v) if v[0] in danger else v
+        return v
+
+    site_cell = {k: cell(n) for k, n in ((s.id, s.name) for s in log.sites())}
+    visit_cell, days = {}, {}
+    for v in log.visits():
+        visit_cell[v.id] = cell(v.name)
+        try:
+            days[v.id] = _dt.datetime.fromisoformat(v.started_at).date().isoformat()
+        except (TypeError, ValueError):
+            days[v.id] = None
+    states: dict[tuple, tuple] = {}  # (action, visit id) -> (state, action, due date)
+
+    def state(act, vid) -> tuple:
+        day = days.get(vid)
+        if act == NOT_RATED:
+            out = ("not rated: load missing", ACTIONS[NOT_RATED], None)
+        elif act is None or not 0 <= act < NOT_RATED:  # no rating, or a code unknown here
+            out = ("not rated", None, None)
+        elif DUE_DAYS[act] is None or not day:
+            out = ("rated", ACTIONS[act], None)
+        else:
+            due = _dt.date.fromisoformat(day) + _dt.timedelta(days=DUE_DAYS[act])
+            out = ("rated", ACTIONS[act], due.isoformat())
+        states[act, vid] = out
+        return out
+
+    stamps: dict[tuple, tuple] = {}  # (governing, engine version) -> their cells
+
+    def gen() -> Iterator[list]:
+        for part in log.export_chunks(visit_id):
+            for rec, (_, site, vid, mid, oid, when, _by, ratio, act, cap, dem, gov, ev) in part:
+                row = blank.copy()
+                for k, v in rec.items():
+                    i = typed(k)
+                    if i is not None and v != "":
+                        row[i] = neutralise(v) if v.__class__ is str and v[0] in danger else v
+                h, w = rec.get("height"), rec.get("load")
+                if h.__class__ is str:
+                    row[i_height] = heights[h] if h in heights else height(h)
+                if w.__class__ is str:
+                    row[i_load] = loads[w] if w in loads else load(w)
+                row[i_site] = site_cell.get(site)
+                row[i_visit] = visit_cell.get(vid)
+                row[i_day] = days.get(vid)
+                st = states.get((act, vid)) or state(act, vid)
+                ge = stamps.get((gov, ev))
+                if ge is None:
+                    ge = stamps[gov, ev] = (cell(gov), cell(ev))
+                rc = ratio.__class__
+                if rc is float:  # 3 decimals; NaN or infinite: blank
+                    ratio = round(ratio, 3) if ratio - ratio == 0 else None
+                elif rc is not int:
+                    ratio = None
+                if cap is not None:  # N -> kN -> the unit, as the office export always did
+                    cap = cap / 1000.0 * 1000.0 / fscale
+                    cap = (round(cap, fnd) if fnd else round(cap)) if cap - cap == 0 else None
+                if dem is not None:
+                    dem = dem / 1000.0 * 1000.0 / fscale
+                    dem = (round(dem, fnd) if fnd else round(dem)) if dem - dem == 0 else None
+                if danger and (when[:1] in danger or mid[:1] in danger or oid[:1] in danger):
+                    when, mid, oid = cell(when), cell(mid), cell(oid)
+                row[i_tail:] = (
+                    *st,
+                    ratio,
+                    cap,
+                    dem,
+                    *ge,
+                    when or None,
+                    mid or None,
+                    oid or None,
+                    SCHEMA_VERSION,
+                )
+                yield row
 
     return cols, gen()
 
 
-def write_csv(out, cols: list[str], data: Iterable[dict], *, bom: bool = False, progress=None):
-    """CSV, streamed; formula-like text neutralised; None written empty. Returns rows written."""
+def write_csv(out, cols: list[str], data: Iterable[list], *, bom: bool = False, progress=None):
+    """CSV, streamed; None written empty (``data``: rows as from ``rows(..., text=neutralise)``,
+    so formula-like text is already neutralised). Returns rows written."""
     if bom:
         out.write("\ufeff")
     w = csv.writer(out)
     w.writerow(cols)
     n = 0
-    for row in data:
-        w.writerow(["" if v is None else neutralise(v) for v in row.values()])
-        n += 1
+    for n, row in enumerate(data, 1):
+        w.writerow(row)
         if progress is not None and n % 1000 == 0:
             progress(n, 0, "exporting")
     return n
 
 
-def write_json(out, cols: list[str], data: Iterable[dict], *, units: str = "us", progress=None):
-    """The JSON form (see the module docstring), one post per line, streamed."""
+def _json_float(v: float) -> str:
+    """A float as the json module writes it."""
+    if v != v:
+        return "NaN"
+    if v in (math.inf, -math.inf):
+        return "Infinity" if v > 0 else "-Infinity"
+    return float.__repr__(v)
+
+
+def _json_value(v) -> str:
+    """One value as ``json.dumps(v, ensure_ascii=False)`` writes it."""
+    if v is None:
+        return "null"
+    if v.__class__ is str:
+        return _encode_text(v)
+    if v.__class__ is float:
+        return _json_float(v)
+    if v.__class__ is int:
+        return int.__repr__(v)
+    return json.dumps(v, ensure_ascii=False)
+
+
+def write_json(out, cols: list[str], data: Iterable[list], *, units: str = "us", progress=None):
+    """The JSON form (see the module docstring), one post per line, streamed; each post written
+    exactly as ``json.dumps(dict(zip(cols, row)), ensure_ascii=False)`` would write it."""
     head = {"schema": SCHEMA, "schema_version": SCHEMA_VERSION, "units": units, "columns": cols}
     out.write(json.dumps(head, ensure_ascii=False)[:-1] + ',\n "posts": [')
+    keys = [_encode_text(c) + ": " for c in cols]
+    nulls = [k + "null" for k in keys]
+    every, no = range(len(cols)), [None] * len(cols)
     n = 0
-    for row in data:
-        clean = {k: (None if v == "" else v) for k, v in row.items()}
-        out.write(("\n  " if n == 0 else ",\n  ") + json.dumps(clean, ensure_ascii=False))
-        n += 1
+    for n, row in enumerate(data, 1):
+        parts = nulls.copy()  # most cells are blank: only the filled ones are encoded
+        for i in compress(every, map(is_not, row, no)):
+            parts[i] = keys[i] + _json_value(row[i])
+        out.write(("\n  {" if n == 1 else ",\n  {") + ", ".join(parts) + "}")
         if progress is not None and n % 1000 == 0:
             progress(n, 0, "exporting")
     out.write("\n ]\n}\n")

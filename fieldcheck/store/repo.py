@@ -967,14 +967,13 @@ class Log:
         skips the pass over the log that finds the record columns (a caller with its own fixed
         columns): each row then holds its record's own keys before the rating columns. The rows
         come from SQLite ``chunk`` at a time: consume them before closing the log."""
-        where, params = _member_filter(visit_id, None)
         if not record_columns:  # a fixed column set: each row holds its record's keys only
-            return list(EXPORT_ONLY_COLUMNS), self._export_rows([], where, params, chunk)
-        seen = self._record_keys(where, params)
+            return list(EXPORT_ONLY_COLUMNS), self._export_rows([], visit_id, chunk)
+        seen = self._record_keys(*_member_filter(visit_id, None))
         order = [c for c in _registry_columns() if c in seen]
         known = set(order)
         cols = order + [c for c in seen if c not in known]
-        return cols + list(EXPORT_ONLY_COLUMNS), self._export_rows(cols, where, params, chunk)
+        return cols + list(EXPORT_ONLY_COLUMNS), self._export_rows(cols, visit_id, chunk)
 
     def _record_keys(self, where: str, params: list) -> dict[str, None]:
         """Every key of the current records (in order of first appearance), found in SQLite."""
@@ -985,13 +984,15 @@ class Log:
             ).fetchall()
         return dict.fromkeys(k for (k,) in keys)
 
-    def _export_rows(
-        self, cols: list[str], where: str, params: list, chunk: int
-    ) -> Iterator[dict[str, object]]:
+    def export_chunks(
+        self, visit_id: str | None = None, *, chunk: int = STORE_CHUNK
+    ) -> Iterator[list[tuple[dict, tuple]]]:
+        """Current posts (withdrawn ones left out) in member order, ``chunk`` at a time, as pairs
+        (record dict, row) where row holds EXPORT_FIELDS in order; the rating fields are None
+        where the revision has no rating. The bulk path under every export: consume it before
+        closing the log."""
+        where, params = _member_filter(visit_id, None)
         cur = self.db.conn.execute(_EXPORT_SQL.format(filter=where), params)
-        blank = dict.fromkeys(cols, "")
-        sites = dict(self.db.conn.execute("SELECT id, name FROM sites").fetchall())
-        visits = dict(self.db.conn.execute("SELECT id, name FROM visits").fetchall())
         while rows := cur.fetchmany(chunk):
             try:
                 recs = _loads_many([r[0] for r in rows])
@@ -999,9 +1000,16 @@ class Log:
                     raise ValueError("a record is not an object")
             except (ValueError, TypeError):
                 raise self._bad_record() from None
-            for rec, (_, site, visit, mid, oid, at, by, ratio, act, cap, dem, gov, ev) in zip(
-                recs, rows, strict=True
-            ):
+            yield list(zip(recs, rows, strict=True))
+
+    def _export_rows(
+        self, cols: list[str], visit_id: str | None, chunk: int
+    ) -> Iterator[dict[str, object]]:
+        blank = dict.fromkeys(cols, "")
+        sites = dict(self.db.conn.execute("SELECT id, name FROM sites").fetchall())
+        visits = dict(self.db.conn.execute("SELECT id, name FROM visits").fetchall())
+        for part in self.export_chunks(visit_id, chunk=chunk):
+            for rec, (_, site, visit, mid, oid, at, by, ratio, act, cap, dem, gov, ev) in part:
                 row: dict[str, object] = {**blank, **rec} if blank else rec  # column order
                 row["site"] = sites.get(site, "")
                 row["visit"] = visits.get(visit, "")
@@ -1299,6 +1307,21 @@ ORDER BY m.rowid
 """
 # the export's rows: as _POSTS_SQL without the head count (site and visit names are looked up
 # in Python: a join per row costs a third of the query)
+EXPORT_FIELDS = (
+    "record_json",
+    "site_id",
+    "visit_id",
+    "member_id",
+    "observation_id",
+    "revised_at",
+    "revised_by",
+    "ratio",
+    "action",
+    "capacity_n",
+    "demand_n",
+    "governing",
+    "engine_version",
+)
 _EXPORT_SQL = f"""
 SELECT o.record_json, m.site_id, o.visit_id, o.member_id, o.id, o.created_at, o.author,
     r.ratio, r.action, r.capacity_n, r.demand_n, r.governing, r.engine_version

@@ -104,3 +104,51 @@ def test_an_export_imports_again(demo_log, tmp_path):
     assert main(["import", "--db", str(db), str(out), "--site", "A", "--visit", "V"]) == 0
     with Log.open(db, readonly=True) as lg:
         assert sorted(p.tag for p in lg.posts()) == sorted(p.tag for p in demo_log.posts())
+
+
+def test_a_post_with_no_load_says_so(empty_log, capsys):
+    # the documented state of a post the engine could not rate for want of a load (module doc)
+    v = empty_log.add_visit(empty_log.add_site("S").id, "R. Okafor", name="V")
+    base = {"size": "4x4", "height": "8ft", "species": "spf", "grade": "no2"}
+    empty_log.save_post(v.id, {"tag": "L0", **base, "load": ""}, allow_errors=True)
+    empty_log.save_post(v.id, {"tag": "L1", **base, "load": "1kip"})
+    rows = {r["tag"]: r for r in _csv(capsys, ["export", "--db", str(empty_log.path)])}
+    assert (rows["L0"]["state"], rows["L0"]["action"]) == ("not rated: load missing", "not-rated")
+    assert rows["L0"]["due_date"] == "" and rows["L0"]["ratio"] == ""
+    assert rows["L1"]["state"] == "rated"
+
+
+def test_visits_of_the_same_name_keep_their_own_dates(empty_log, capsys):
+    # a weekly visit named the same each time: each post's visit date and due date follow the
+    # visit it was recorded on, never another visit of that name
+    site = empty_log.add_site("S")
+    base = {"size": "4x4", "height": "8ft", "species": "spf", "grade": "no2", "load": "9kip"}
+    for day, tag in (("2026-01-05", "A"), ("2026-02-02", "B")):
+        v = empty_log.add_visit(site.id, "R. Okafor", name="weekly", started_at=f"{day}T09:00:00Z")
+        empty_log.save_post(v.id, {"tag": tag, **base})
+    rows = {r["tag"]: r for r in _csv(capsys, ["export", "--db", str(empty_log.path)])}
+    assert rows["A"]["visit_date"] == "2026-01-05" and rows["B"]["visit_date"] == "2026-02-02"
+    for r in rows.values():
+        days = DUE_DAYS[
+            ("no-action", "monitor", "repair-or-brace", "make-safe-now").index(r["action"])
+        ]
+        assert days is not None  # 9 kip on a 4x4 at 8 ft is not adequate as found
+        want = dt.date.fromisoformat(r["visit_date"]) + dt.timedelta(days=days)
+        assert r["due_date"] == want.isoformat()
+
+
+def test_json_posts_are_what_the_json_module_writes():
+    # the JSON writer encodes only the filled cells; each post must still read back exactly as
+    # json.dumps writes it (RFC 8259 text, the json module's spacing)
+    cols = ["a", "b", "c", "d", "e", "f", "g"]
+    data = [
+        ["x", None, 1, 2.5, 'é "q" \\ \n\t\u2028', True, [1, "z"]],
+        [None] * 7,
+        ["", 0, -0.0, 1e300, 12345678901234567890, False, {"k": None}],
+    ]
+    out = io.StringIO()
+    assert ef.write_json(out, cols, [list(r) for r in data]) == 3
+    text = out.getvalue()
+    for r in data:
+        assert json.dumps(dict(zip(cols, r, strict=True)), ensure_ascii=False) in text
+    assert json.loads(text)["posts"][0]["e"] == data[0][4]
