@@ -15,7 +15,7 @@ import numpy as np
 
 from fieldcheck.engine import condition, nds, spring_ends
 from fieldcheck.engine.batch import EC5, LRFD, PostBatch
-from fieldcheck.engine.blocks import distinct, filled, prod
+from fieldcheck.engine.blocks import broadcast, distinct, filled, is_one, prod
 from fieldcheck.engine.restraint import end_pair, modes_of_pairs
 from fieldcheck.engine.result import Check
 from fieldcheck.engine.stage import Flag, FlagSet, Stage
@@ -122,7 +122,8 @@ def run_column(b: PostBatch, checks: dict, values: dict) -> None:
     # ASD: x CD (NDS 2018 §2.3.2); LRFD: x KF phi lambda (NDS 2018 Appendix N)
     any_lrfd = bool(lrfd.any())
     time_fc = np.where(lrfd, nds.KF_FC * nds.PHI_C * b.lam, b.cd) if any_lrfd else b.cd
-    fc_star = prod(b.fc_mpa, cm_fc, ct_f, b.cf_fc, ci_f, time_fc)  # NDS 2018 §3.7.1: Fc*
+    fc_untimed = prod(b.fc_mpa, cm_fc, ct_f, b.cf_fc, ci_f)  # all but the duration factor
+    fc_star = prod(fc_untimed, time_fc)  # NDS 2018 §3.7.1: Fc*
     emin_p = prod(
         b.emin_mpa,
         cm_e,
@@ -207,6 +208,7 @@ def run_column(b: PostBatch, checks: dict, values: dict) -> None:
     )
     values.update(
         fc_star=fc_star,
+        fc_untimed=fc_untimed,
         emin_prime=emin_p,
         cm_fc=cm_fc,
         cm_e=cm_e,
@@ -236,6 +238,25 @@ def run_column(b: PostBatch, checks: dict, values: dict) -> None:
     )
     values.update(cond)
     values["area"] = area
+
+
+def capacity_at(b: PostBatch, v: dict, idx: np.ndarray, time_fc: np.ndarray):
+    """(column capacity, Cp, Fc*) of posts ``idx`` of a rated block with the duration part of
+    Fc* (CD, or KF phi lambda) replaced by ``time_fc``: the steps of run_column, in the same
+    order, for another load combination (engine/combinations.py)."""
+
+    def at(a):
+        return a[0] if broadcast(a) else a.take(idx)
+
+    fc_star = at(v["fc_untimed"]) * time_fc
+    sr = v["strength_ratio"]
+    if not is_one(sr):
+        fc_star = fc_star * at(sr)
+    c = at(v["c"])
+    cp1 = nds.column_stability_factor(at(v["fce1"]), fc_star, c)  # NDS 2018 §3.7.1
+    cp2 = at(b.kf) * nds.column_stability_factor(at(v["fce2"]), fc_star, c)  # §15.3.2: Kf
+    cp = np.where(cp2 < cp1, cp2, cp1)
+    return cp * fc_star * at(v["area"]) * at(b.knowledge), cp, fc_star
 
 
 def column_flags(b: PostBatch, values: dict, flag: FlagSet) -> None:

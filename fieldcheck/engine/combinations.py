@@ -3,17 +3,27 @@
 No one combination can be picked in advance by the largest load / CD (or / lambda): capacity is
 not proportional to the duration factor for every check. The column's Cp depends on Fc* through
 FcE / Fc* (NDS 2018 §3.7.1), and bearing perpendicular to grain and the soil take no CD at all
-(NDS 2018 Table 2.3.2 footnotes; IBC 2012 Table 1806.2). So each post is rated under every
-combination that could govern, all in one engine pass over an expanded batch (rows = posts x
-combinations), and each check keeps its largest ratio and the combination that gave it
-(ASD: ASCE 7 §2.4.1 with CD per NDS 2018 §2.3.2 and Appendix B; LRFD: ASCE 7 §2.3.1 with lambda
-per NDS 2018 Appendix N Table N3).
+(NDS 2018 Table 2.3.2 footnotes; IBC 2012 Table 1806.2). So each check keeps its largest ratio
+over every combination and the combination that gave it (ASD: ASCE 7 §2.4.1 with CD per NDS 2018
+§2.3.2 and Appendix B; LRFD: ASCE 7 §2.3.1 with lambda per NDS 2018 Appendix N Table N3).
 
-A combination is left out only when another combination of the same post has a load at least
-as large and a duration factor no larger. Every check's capacity is non-decreasing in CD (or
-lambda) and every demand rises with the load, so the other one's ratio is at least as large in
-every check: leaving it out changes no ratio (monotonicity, exact). What is left is at most one
-combination per distinct factor, usually one to three per post.
+How, without rating the whole pipeline once per combination: only what takes the duration
+factor changes from one combination to the next, and each check says how its capacity takes it
+(``SCALING``). The stages run once per post, at its reference combination: the one with the
+largest load / factor (``ref``). Then, on arrays of posts x combinations:
+
+- a capacity proportional to Fc* (end grain, net section): ratio = load / (factor x capacity
+  at factor 1), largest where load / factor is, which is the reference itself;
+- a capacity that takes no factor (soil; bearing across the grain in ASD): largest load;
+- bearing across the grain in LRFD: largest load / min(lambda, 1) (NDS 2018 Appendix N);
+- the column (Cp through Fc*) and the combined interaction: evaluated again, a few vectorised
+  lines per combination, only where a combination can beat the reference. Every capacity rises
+  with the factor and its capacity / factor falls with it (Cp falls as Fc* rises), so a
+  combination with a smaller factor than the reference has load / capacity no larger; one with
+  a larger factor can beat it only with a larger load (monotonicity, exact).
+
+The working of a post shows the values of the governing check's combination: where that is not
+the reference, the block is rated once more at it (only when the values are kept).
 """
 
 from __future__ import annotations
@@ -22,8 +32,9 @@ from functools import cache
 
 import numpy as np
 
-from fieldcheck.engine.batch import ASD, EC5, FIELD_NAMES, LRFD, PostBatch
-from fieldcheck.engine.blocks import distinct, filled
+from fieldcheck.engine import column, condition, nds
+from fieldcheck.engine.batch import ASD, EC5, LRFD, PostBatch
+from fieldcheck.engine.blocks import absent, distinct, filled
 from fieldcheck.engine.loads import combination_rows as rows
 from fieldcheck.engine.refdata import table
 from fieldcheck.engine.result import Check, Rating
@@ -81,20 +92,70 @@ def _block_rows(method: int, present: tuple[bool, ...]) -> tuple[np.ndarray, np.
     return idx[keep], coef[keep]
 
 
-def candidates(b: PostBatch):
-    """The combinations that could govern each post, as rows of an expanded rating.
+# how each check's capacity takes the duration factor (see the module docstring); a check not
+# listed here is refused (tests/engine/test_combinations_every_check.py lists the stages' checks)
+FC, PERP, NONE, STABILITY, INTERACTION = "fc", "perp", "none", "stability", "interaction"
+SCALING = {
+    "column": STABILITY,  # NDS 2018 §3.7.1: Cp depends on Fc*
+    "end_bearing": FC,  # NDS 2018 §3.10.1: Fc*
+    "cap_bearing": PERP,  # NDS 2018 Table 2.3.2 footnote: no CD on Fc-perp
+    "sill_bearing": PERP,
+    "net_section": FC,  # Fc* on the net section
+    "eccentric": INTERACTION,  # NDS 2018 §3.9.2, §15.4.1: Fc', Fb' and Cp
+    "soil_bearing": NONE,  # IBC 2012 Table 1806.2: no duration factor
+}
 
-    Returns (ii, kk, k, load_r, factor_r, combo_r): the post and the combination slot of each
-    expanded row (slot-major), the number of slots, and each expanded row's load, factor and
-    combination. A post with no nominal loads keeps one row: its load_n with its cd or lam and
-    combo as given.
-    """
+_COLS: dict[int, np.ndarray] = {}
+
+
+def _cols(n: int) -> np.ndarray:
+    a = _COLS.get(n)
+    if a is None:
+        if len(_COLS) > 64:
+            _COLS.clear()
+        a = _COLS[n] = np.arange(n)
+        a.flags.writeable = False
+    return a
+
+
+@cache
+def _asd_factor_table(rws: tuple[int, ...], cd_l: float, cd_r: float) -> np.ndarray:
+    """(k, 128): the CD of each ASD row for each pattern of non-zero nominal loads (bit t: type
+    t), NDS 2018 §2.3.2: the CD of the shortest-duration load present; nothing present: dead
+    load alone, permanent."""
+    asd, _, coef_a, _, _, cd_type, cd_perm = _tables()
+    pos = np.searchsorted(asd, np.array(rws, dtype=np.intp))
+    cdt = cd_type.copy()
+    cdt[1], cdt[4] = cd_l, cd_r
+    pats = np.arange(128)
+    bits = (pats[:, None] >> np.arange(len(TYPES))[None, :]) & 1  # (128, 7)
+    on = (coef_a[pos][:, None, :] != 0) & (bits[None, :, :] != 0)  # (k, 128, 7)
+    fac = np.where(on, np.nan_to_num(cdt, nan=0.0)[None, None, :], 0.0).max(axis=2)
+    fac[fac == 0] = cd_perm
+    return fac
+
+
+def _dense(b: PostBatch):
+    """Every combination of every post as (k, n) arrays, slot-major: load (NaN where a slot
+    has no combination for that post: NaN never wins a comparison), factor (CD, lambda; kmod
+    for EC5) and combination row. A post with no nominal loads (or an EC5 post) has one slot,
+    slot 0: its load_n, factor and combo as given."""
     n = b.n
     _, lrfd_idx, _, _, lam_t, cd_type, cd_perm = _tables()
-    stack = np.stack([np.nan_to_num(getattr(b, f), nan=0.0) for f in NOMINAL_FIELDS])  # (7, n)
-    present = tuple(bool((distinct(stack[t]) > 0).any()) for t in range(len(TYPES)))
+    noms, gts = {}, {}
+    for t, f in enumerate(NOMINAL_FIELDS):
+        a = getattr(b, f)
+        d = distinct(a)
+        if d.shape[0] == 1 and not d[0] > 0:  # nobody gave it in this block (NaN or 0)
+            continue
+        x = np.fmax(a, 0.0)  # NaN (not given) is no load
+        gt = x > 0
+        if gt.any():
+            noms[t], gts[t] = x, gt
+    present = tuple(t in noms for t in range(len(TYPES)))
+    kinds = list(noms)
+    stack = [noms[t] for t in kinds]
     methods = distinct(b.method)
-    is_lrfd = b.method == LRFD
     loads, facs, combos = [], [], []
     for method in (ASD, LRFD):
         if method == LRFD and not (methods == LRFD).any():
@@ -102,164 +163,286 @@ def candidates(b: PostBatch):
         if method == ASD and (methods == LRFD).all():
             continue
         rws, coef = _block_rows(method, present)
-        load = coef @ stack  # ASCE 7 §2.4.1 / §2.3.1: sum of coefficient x nominal load
+        # ASCE 7 §2.4.1 / §2.3.1: sum of coefficient x nominal load
+        load = _sum_rows(coef[:, kinds], stack) if kinds else np.zeros((len(rws), n))
         if method == LRFD:
             pos = np.searchsorted(lrfd_idx, rws)
-            fac = lam_t[pos][:, b.live_kind.astype(np.intp)]  # NDS 2018 App. N Table N3
+            lam_k = lam_t[pos]  # NDS 2018 App. N Table N3: by row and kind of live load
+            kind = distinct(b.live_kind)
+            if kind.shape[0] == 1:
+                fac = np.broadcast_to(lam_k[:, int(kind[0])][:, None], load.shape)
+            else:
+                fac = lam_k[:, b.live_kind.astype(np.intp)]
         else:
-            # NDS 2018 §2.3.2: CD of the shortest-duration load present with a non-zero value
-            fac = np.zeros_like(load)
-            for t in range(len(TYPES)):
-                if not present[t]:
-                    continue
-                cdt = b.cd_l if t == 1 else b.cd_r if t == 4 else cd_type[t]
-                on = (coef[:, t, None] != 0) & (stack[t] > 0)[None, :]
-                np.maximum(fac, on * cdt, out=fac)
-            fac[fac == 0] = cd_perm  # nothing present: dead load alone, permanent
+            cl, cr = distinct(b.cd_l), distinct(b.cd_r)
+            if cl.shape[0] == 1 and cr.shape[0] == 1:  # one CD of live and rain for the block
+                pat = np.zeros(n, dtype=np.intp)
+                for t in kinds:
+                    pat += np.multiply(gts[t], 1 << t, dtype=np.intp)
+                fac = _asd_factor_table(tuple(int(r) for r in rws), float(cl[0]), float(cr[0]))
+                fac = fac.take(pat, axis=1)
+            else:  # NDS 2018 §2.3.2, post by post
+                fac = np.zeros_like(load)
+                for t in kinds:
+                    cdt = b.cd_l if t == 1 else b.cd_r if t == 4 else cd_type[t]
+                    on = (coef[:, t, None] != 0) & gts[t][None, :]
+                    np.maximum(fac, on * cdt, out=fac)
+                fac[fac == 0] = cd_perm
         loads.append(load)
         facs.append(fac)
         combos.append(np.broadcast_to(rws[:, None], load.shape))
     if len(loads) == 2:  # both methods in the block: each post takes its own method's rows
+        is_lrfd = b.method == LRFD
         k = max(x.shape[0] for x in loads)
         pad = lambda a, v: np.concatenate([a, np.full((k - a.shape[0], n), v)])  # noqa: E731
-        load = np.where(is_lrfd, pad(loads[1], -np.inf), pad(loads[0], -np.inf))
+        load = np.where(is_lrfd, pad(loads[1], np.nan), pad(loads[0], np.nan))
         fac = np.where(is_lrfd, pad(facs[1], 1.0), pad(facs[0], 1.0))
-        combo = np.where(is_lrfd, pad(combos[1], -1), pad(combos[0], -1)).astype(np.intp)
+        combo = np.where(is_lrfd, pad(combos[1], -1), pad(combos[0], -1))
     else:
         load, fac, combo = loads[0], facs[0], combos[0]
-    # a combination is left out where another one has a load at least as large and a factor no
-    # larger (ties: the earlier row stays): every check's ratio is then no larger (monotone)
-    k = load.shape[0]
-    keep = np.isfinite(load)
-    for a in range(k):
-        for c in range(k):
-            if a == c:
-                continue
-            dom = (load[c] >= load[a]) & (fac[c] <= fac[a])
-            if c > a:
-                dom &= (load[c] > load[a]) | (fac[c] < fac[a])
-            keep[a] &= ~(dom & keep[c])
     has = ~np.isnan(b.nom_d_n) & (b.method != EC5)
-    all_have = bool(distinct(has).all())
-    if not all_have:
-        keep &= has[None, :]
-        keep[0] |= ~has  # a post given by load_n alone: one row, as given
-    kk, ii = np.nonzero(keep)
-    load_r, fac_r, combo_r = load[kk, ii], fac[kk, ii], combo[kk, ii]
-    if not all_have:
-        given = ~has[ii]
-        load_r = np.where(given, b.load_n[ii], load_r)
-        combo_r = np.where(given, b.combo[ii], combo_r)
-    return ii, kk, k, load_r, fac_r, combo_r
+    if not bool(distinct(has).all()):  # posts given by load_n alone (or EC5): one slot, as given
+        given = ~has
+        load = np.where(has, load, np.nan)
+        load[0] = np.where(given, b.load_n, load[0])
+        fac = np.array(fac)
+        fac[0] = np.where(given, _factor(b), fac[0])
+        combo = np.array(combo)
+        combo[0] = np.where(given, b.combo, combo[0])
+    return load, fac, combo, has
 
 
-def _take(b: PostBatch, ii: np.ndarray) -> PostBatch:
-    """The rows ``ii`` of a block; a field of one value stays one broadcast value (no copy of
-    it per row: the expanded batch has a new length for every block)."""
-    out = {}
-    m = ii.shape[0]
-    for name in FIELD_NAMES:
-        a = getattr(b, name)
-        out[name] = filled(a[0], m) if distinct(a).shape[0] == 1 < a.shape[0] else a[ii]
-    return PostBatch(**out)
+# the lowest set bit of a 16-bit mask (0 for none): the first row holding the largest value
+_FIRST_BIT = np.array([(x & -x).bit_length() - 1 if x else 0 for x in range(1 << 16)], np.uint8)
 
 
-def _argmax_rows(key: np.ndarray) -> np.ndarray:
-    """argmax over axis 0 of a (k, n) array, one contiguous row at a time (numpy's argmax
-    along axis 0 walks the array with a stride)."""
-    best = key[0].copy()
-    arg = np.zeros(key.shape[1], dtype=np.intp)
-    for j in range(1, key.shape[0]):
-        better = key[j] > best
-        if better.any():
-            arg[better] = j
-            np.maximum(best, key[j], out=best)
-    return arg
+def _argmax_rows(key: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """(argmax, max) over axis 0 of a (k, n) array; NaN never wins (all NaN: row 0, max NaN);
+    ties keep the earlier row.
+
+    numpy's argmax along axis 0 walks the array with a stride; here the largest value comes from
+    a reduction over whole rows, then each row equal to it sets its bit in a mask, and the
+    lowest bit is looked up (a few passes over contiguous rows)."""
+    k = key.shape[0]
+    best = np.fmax.reduce(key, axis=0)
+    if k == 1:
+        return np.zeros(key.shape[1], dtype=np.intp), best
+    if k > 16:
+        return np.argmax(np.where(np.isnan(key), -np.inf, key), axis=0), best
+    mask = np.zeros(key.shape[1], dtype=np.uint16)
+    for j in range(k):
+        mask |= np.left_shift(key[j] == best, j, dtype=np.uint16)
+    return _FIRST_BIT.take(mask).astype(np.intp), best
 
 
-def expand(b: PostBatch):
-    """(expanded batch, ii, kk, k): the block's posts x candidate combinations."""
-    ii, kk, k, load_r, fac_r, combo_r = candidates(b)
-    sub = _take(b, ii)
-    has = ~np.isnan(sub.nom_d_n) & (sub.method != EC5)
-    sub.load_n = load_r
-    asd = has & (sub.method == ASD)
-    lrfd = has & (sub.method == LRFD)
-    if asd.any():
-        sub.cd = np.where(asd, fac_r, sub.cd)
-    if lrfd.any():
-        sub.lam = np.where(lrfd, fac_r, sub.lam)
-    sub.combo = combo_r.astype(np.int8)
-    return sub, ii, kk, k
+def _sum_rows(coef: np.ndarray, stack: list[np.ndarray]) -> np.ndarray:
+    """coef @ stack, (k, p) @ (p, n), as sums over the non-zero coefficients (no BLAS call)."""
+    k, n = coef.shape[0], stack[0].shape[0]
+    out = np.empty((k, n))
+    for j in range(k):
+        row = out[j]
+        terms = np.flatnonzero(coef[j])
+        if not terms.size:
+            row.fill(0.0)
+        for m, t in enumerate(terms):
+            c = coef[j, t]
+            if m == 0:
+                np.multiply(stack[t], c, out=row)
+            elif c == 1.0:
+                row += stack[t]
+            else:
+                row += c * stack[t]
+    return out
 
 
-def rate_with_combinations(b: PostBatch, rate_block, finish):
-    """Rate a block under every candidate combination in one ``rate_block`` call and keep, for
-    each check, the largest ratio and its combination; the rating's batch holds the governing
-    combination of the governing check (load_n, cd or lam, combo)."""
+def _at_rows(b: PostBatch, load, fac, combo) -> PostBatch:
+    """The block with each post's load, duration factor and combination replaced."""
+    m = distinct(b.method)
+    out = {"load_n": load, "combo": combo.astype(np.int8)}
+    if (m == ASD).any():
+        out["cd"] = fac if (m == ASD).all() else np.where(b.method == ASD, fac, b.cd)
+    if (m == LRFD).any():
+        out["lam"] = fac if (m == LRFD).all() else np.where(b.method == LRFD, fac, b.lam)
+    return b.replace_arrays(**out)
+
+
+def rate_with_combinations(b: PostBatch, run_stages, finish, keep_values: bool = True):
+    """Rate a block under every combination of every post and keep, for each check, the largest
+    ratio and its combination; the rating's batch holds the governing combination of the
+    governing check (load_n, cd or lam, combo). ``run_stages`` rates a block without finishing
+    it; ``keep_values`` False: the intermediates are left at the reference combination (a large
+    batch keeps none of them)."""
     n = b.n
-    sub, ii, kk, k = expand(b)
-    r = rate_block(sub)
-    m = sub.n
-    row_of = np.zeros((k, n), dtype=np.intp)
-    row_of[kk, ii] = np.arange(m)
-    cols = np.arange(n)
-    factor = _factor(sub)
+    cols = _cols(n)
+    load, fac, combo, has = _dense(b)
+    k = load.shape[0]
+    picked: dict[tuple[int, int], tuple] = {}
+
+    def pick(a: np.ndarray, slot: np.ndarray) -> np.ndarray:  # a[slot[i], i], once per pair
+        key = (id(a), id(slot))
+        got = picked.get(key)
+        if got is None:
+            if a.strides[1] == 0:  # one value per slot (e.g. the combination rows)
+                got = a[:, 0].take(slot)
+            else:
+                flat = picked.get((0, id(slot)))
+                if flat is None:
+                    flat = picked[(0, id(slot))] = (slot * n + cols, slot)
+                got = a.ravel().take(flat[0])
+            picked[key] = (got, a, slot)  # a and slot kept alive: their ids stay theirs
+            return got
+        return got[0]
+
+    with np.errstate(divide="ignore", invalid="ignore"):
+        ref = _argmax_rows(load / fac)[0]  # the reference: the largest load / factor
+    l_ref, f_ref = pick(load, ref), pick(fac, ref)
+    r = run_stages(_at_rows(b, l_ref, f_ref, pick(combo, ref)))
+    v = r.values
+    # the combinations that can beat the reference in a check whose capacity rises with the
+    # factor: a larger factor and a larger load (see the module docstring)
+    upper = []
+    all_have = bool(distinct(has).all())
+    for j in range(k if k > 1 else 0):
+        u = (load[j] > l_ref) & (fac[j] > f_ref)
+        u = np.flatnonzero(u if all_have else u & has)
+        if u.size:
+            upper.append((j, u))
+    lrfd = b.method == LRFD
+    any_lrfd = bool((distinct(b.method) == LRFD).any())
     checks: dict[str, Check] = {}
-    ratios, rows_by_check = [], []
-    for name, c in r.checks.items():
-        if c.capacity_n.strides == (0,) and np.isnan(c.capacity_n[0]):  # not made in this block
+    by_load = None
+    made, keys, caps, dems, facs, combos = [], [], [], [], [], []
+    for pos, (name, c) in enumerate(r.checks.items()):
+        how = SCALING.get(name)
+        if how is None:
+            raise KeyError(
+                f"check {name!r}: how its capacity takes the duration factor is not declared "
+                "(combinations.SCALING)"
+            )
+        if absent(c.capacity_n):  # not made in this block
             nan = filled(np.nan, n)
             checks[name] = Check(c.name, c.label, c.clause, nan, nan)
             continue
+        cap = c.capacity_n
+        if how == FC:
+            slot = ref
+        elif how in (NONE, PERP) and not (how == PERP and any_lrfd):
+            if by_load is None:
+                by_load = _argmax_rows(load)[0]
+            slot = by_load
+        elif how == PERP:  # LRFD: KF phi min(lambda, 1) on Fc-perp (NDS 2018 Appendix N)
+            pt = np.where(lrfd, np.minimum(fac, 1.0), 1.0)
+            slot = _argmax_rows(load / pt)[0]
+            with np.errstate(divide="ignore", invalid="ignore"):
+                cap = cap * (pick(pt, slot) / pick(pt, ref))
+        else:
+            slot, cap = _beat_reference(how, b, v, cap, load, fac, ref, upper)
+        none = ~(cap > 0)  # NaN or 0: every combination gives the same ratio (NaN or inf)
+        if none.any():  # the first combination of the post (slot 0), as ties go
+            slot = np.where(none, 0, slot)
+        demand = pick(load, slot)
         with np.errstate(divide="ignore", invalid="ignore"):
-            ratio = c.demand_n / c.capacity_n
-        key = np.full((k, n), -np.inf)
-        # NaN (no capacity or no load) ranks below any number but above a missing row
-        key[kk, ii] = np.where(np.isnan(ratio), -1e300, ratio)
-        rows_c = row_of[_argmax_rows(key), cols]
-        ratios.append(ratio[rows_c])
-        rows_by_check.append(rows_c)
-        checks[name] = Check(
-            c.name,
-            c.label,
-            c.clause,
-            c.capacity_n[rows_c],
-            c.demand_n[rows_c],
-            combo=sub.combo[rows_c],
-            factor=factor[rows_c],
-        )
-    flags = np.zeros(n, dtype=np.int64)
-    for j in range(k):  # a flag raised under any combination stands
-        sel = kk == j
-        if sel.any():
-            flags[ii[sel]] |= r.flags[sel]
-    # the row kept for the working: that of the check with the largest ratio
-    stack = np.stack(ratios)
-    gov_made = _argmax_rows(np.where(np.isnan(stack), -np.inf, stack))
-    rows = np.stack(rows_by_check)[gov_made, cols]
-    gov = {f: getattr(sub, f)[rows] for f in ("load_n", "cd", "lam", "combo")}
+            ratio = demand / cap
+        c_combo, c_fac = pick(combo, slot), pick(fac, slot)
+        checks[name] = Check(c.name, c.label, c.clause, cap, demand, combo=c_combo, factor=c_fac)
+        made.append(pos)
+        keys.append(ratio)
+        caps.append(cap)
+        dems.append(demand)
+        facs.append(c_fac)
+        combos.append(c_combo)
+    # the governing check: the largest ratio (a NaN never governs; ties keep the earlier)
+    gm, g_ratio = _argmax_rows(np.stack(keys))
+    flat = gm * n + cols
+
+    def gov_of(parts):
+        return np.stack(parts).ravel().take(flat) if len(parts) > 1 else parts[0]
+
+    g_cap, g_dem = gov_of(caps), gov_of(dems)
+    gov = np.array(made, dtype=np.int8).take(gm)
+    # the combination kept for the working: that of the governing check
+    g_fac, g_combo = gov_of(facs), gov_of(combos)
+    batch = _at_rows(b, g_dem, g_fac, g_combo)
+    values = v
+    if keep_values and bool(((g_dem != l_ref) | (g_fac != f_ref)).any()):  # not the reference
+        values = run_stages(batch).values
     out = Rating(
-        batch=b.replace_arrays(**gov),
+        batch=batch,
         checks=checks,
-        capacity_n=b.load_n,
-        demand_n=b.load_n,
-        ratio=b.load_n,
-        governing=np.zeros(n, dtype=np.int8),
+        capacity_n=g_cap,
+        demand_n=g_dem,
+        ratio=g_ratio,
+        governing=gov,
         action=np.zeros(n, dtype=np.int8),
-        flags=flags,
-        values={
-            key_: (
-                (filled(v[0], n) if v.strides == (0,) else v[rows])
-                if isinstance(v, np.ndarray) and v.shape[:1] == (m,)
-                else v
-            )
-            for key_, v in r.values.items()
-        },
+        flags=r.flags,  # a flag that takes the load (end plate) is largest at the reference
+        values=values,
     )
-    return finish(out)
+    no_load = np.isnan(batch.load_n)
+    if no_load.any():  # a post given no load: its smallest capacity governs
+        _smallest_capacity(out, no_load)
+    return finish(out, governed=True)
 
 
-def _factor(sub: PostBatch) -> np.ndarray:
-    """The duration factor of each row: CD (ASD), lambda (LRFD), kmod (EC5)."""
-    return np.where(sub.method == LRFD, sub.lam, np.where(sub.method == EC5, sub.kmod, sub.cd))
+def _smallest_capacity(r: Rating, where: np.ndarray) -> None:
+    """Posts ``where`` (no load): the governing check is the smallest capacity (NaN: none)."""
+    caps = np.stack([c.capacity_n for c in r.checks.values()])
+    demands = np.stack([c.demand_n for c in r.checks.values()])
+    by_cap = np.argmin(np.where(np.isnan(caps), np.inf, caps), axis=0).astype(np.int8)
+    cols = _cols(r.n)
+    r.governing = np.where(where, by_cap, r.governing)
+    r.capacity_n = np.where(where, caps[by_cap, cols], r.capacity_n)
+    r.demand_n = np.where(where, demands[by_cap, cols], r.demand_n)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        r.ratio = np.where(where, r.demand_n / r.capacity_n, r.ratio)
+
+
+def _beat_reference(how, b, v, cap, load, fac, ref, upper):
+    """(slot, capacity) of a check evaluated again at each combination that can beat the
+    reference: the column (Cp through Fc*) or the combined interaction."""
+    slot = ref
+    ecc = None
+    if how == INTERACTION:
+        ecc = v.get("ecc_checked")
+        if ecc is None or not bool(distinct(ecc).any()):
+            return slot, cap
+    n = b.n
+    best = None
+    for j, idx in upper:
+        if ecc is not None:
+            idx = idx[ecc[idx]]
+        ok = ~np.isnan(cap[idx])
+        idx = idx if ok.all() else idx[ok]
+        if not idx.size:
+            continue
+        time_fc, time_fb = _time(b, fac[j].take(idx), idx)
+        p, cp, fc_star = column.capacity_at(b, v, idx, time_fc)
+        if ecc is not None:
+            p = condition.eccentric_at(b, v, idx, cp, fc_star, time_fb)
+        if best is None:
+            with np.errstate(divide="ignore", invalid="ignore"):
+                best = load.ravel().take(ref * n + _cols(n)) / cap
+            slot, cap = slot.copy(), cap.copy()
+        with np.errstate(divide="ignore", invalid="ignore"):
+            rj = load[j].take(idx) / p
+        win = rj > best[idx]
+        if win.any():
+            w = idx[win]
+            best[w], slot[w], cap[w] = rj[win], j, p[win]
+    return slot, cap
+
+
+def _time(b: PostBatch, f: np.ndarray, idx: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """The duration part of Fc* and of Fb* at factor f for posts idx: CD (ASD, NDS 2018
+    §2.3.2) or KF phi lambda (LRFD, NDS 2018 Appendix N), as the pipeline forms them."""
+    if not bool((distinct(b.method) == LRFD).any()):
+        return f, f
+    lrfd = b.method.take(idx) == LRFD
+    return (
+        np.where(lrfd, nds.KF_FC * nds.PHI_C * f, f),
+        np.where(lrfd, nds.KF_FB * nds.PHI_B * f, f),
+    )
+
+
+def _factor(b: PostBatch) -> np.ndarray:
+    """The duration factor of each post: CD (ASD), lambda (LRFD), kmod (EC5)."""
+    return np.where(b.method == LRFD, b.lam, np.where(b.method == EC5, b.kmod, b.cd))

@@ -604,6 +604,40 @@ def eccentric_capacity(area, s1, s2, e1, e2, bow1, bow2, fc_prime, fb1p, fb2p, f
     return out
 
 
+def _beam_stability(fbe: np.ndarray, fb_star: np.ndarray, deep: np.ndarray) -> np.ndarray:
+    """CL (NDS 2018 Eq. 3.3-6) where the post is deep (d1 > 2 d2), else 1.0."""
+    with np.errstate(divide="ignore", invalid="ignore"):
+        r = fbe / fb_star
+        hh = (1.0 + r) / 1.9
+        return np.where(deep, hh - np.sqrt(hh * hh - r / 0.95), 1.0)  # NDS 2018 Eq. 3.3-6
+
+
+def eccentric_at(b: PostBatch, v: dict, idx: np.ndarray, cp, fc_star, time_fb) -> np.ndarray:
+    """The eccentric capacity of posts ``idx`` of a rated block (every one of them checked) at
+    another load combination: its Cp and Fc* (column.capacity_at) and the duration part of Fb*
+    ``time_fb``; the steps of add_checks, in the same order (engine/combinations.py)."""
+    kappa = b.knowledge.take(idx)
+    fb_star = v["fb_untimed"].take(idx) * time_fb
+    deep = b.d1_mm.take(idx) > 2.0 * b.d2_mm.take(idx)
+    fbe = v["fbe"].take(idx)
+    cl = _beam_stability(fbe, fb_star, deep)
+    return eccentric_capacity(
+        v["area"].take(idx),
+        v["s1"].take(idx),
+        v["s2"].take(idx),
+        v["ecc1"].take(idx),
+        v["ecc2"].take(idx),
+        v["bow1"].take(idx),
+        v["bow2"].take(idx),
+        cp * fc_star * kappa,
+        fb_star * cl * kappa,
+        fb_star * kappa,
+        v["fce1"].take(idx),
+        v["fce2"].take(idx),
+        fbe,
+    )
+
+
 ECC_FIELDS = ("offset1_mm", "offset2_mm", "bow1_mm", "bow2_mm", "plumb1_mm", "plumb2_mm")
 
 
@@ -689,15 +723,14 @@ def add_checks(b: PostBatch, checks: dict, values: dict) -> None:
     e1, e2, bow1, bow2 = eccentricities(b, v)
     time_fb = np.where(lrfd, nds.KF_FB * nds.PHI_B * b.lam, b.cd)
     cm_fb = nds.wet_bending_factor(b.product, b.fb_mpa, b.cf_fb, v["wet"], b.wet_tabulated)
-    fb_star = b.fb_mpa * time_fb * cm_fb * v["ct_f"] * b.cf_fb * v["ci_f"] * v["sr_bending"]
+    # every factor but the duration one, which goes last (another combination changes only it)
+    fb_untimed = b.fb_mpa * cm_fb * v["ct_f"] * b.cf_fb * v["ci_f"] * v["sr_bending"]
+    fb_star = fb_untimed * time_fb
     # lateral-torsional buckling only for d1/d2 > 2 (NDS 2018 §4.4.1: CL = 1.0 up to 2, from memory)
     deep = b.d1_mm > 2.0 * b.d2_mm
     rb2 = LE_BENDING * v["lu1"] * b.d1_mm / (b.d2_mm * b.d2_mm)  # RB^2 (NDS 2018 §3.3.3)
     fbe = np.where(deep, 1.20 * v["emin_prime"] / rb2, np.inf)  # FbE (NDS 2018 §3.3.3)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        r = fbe / fb_star
-        hh = (1.0 + r) / 1.9
-        cl = np.where(deep, hh - np.sqrt(hh * hh - r / 0.95), 1.0)  # NDS 2018 Eq. 3.3-6
+    cl = _beam_stability(fbe, fb_star, deep)
     want = (e1 > 0) | (e2 > 0) | (bow1 > 0) | (bow2 > 0)
     m = want & nds_m & np.isfinite(fb_star) & (fb_star > 0) & (v["area"] > 0)
     p_ecc = np.full(n, np.nan)
@@ -732,6 +765,7 @@ def add_checks(b: PostBatch, checks: dict, values: dict) -> None:
         bow1=bow1,
         bow2=bow2,
         fb_star=fb_star,
+        fb_untimed=fb_untimed,
         fbe=fbe,
         cl=cl,
         ecc_checked=m,

@@ -44,7 +44,7 @@ def rate(b: PostBatch, keep: tuple[str, ...] = ()) -> Rating:
         return _rate_any(b)
     starts = range(0, n, BLOCK)
     first_blk = b.take(slice(0, BLOCK))
-    first = _rate_any(first_blk)
+    first = _rate_any(first_blk, bool(keep))
     # Results are written block by block into arrays of the batch's length. Two kinds are made
     # only when a block needs them (each full-length array costs page faults): a check's
     # capacities stay one broadcast NaN until a block makes that check, and a demand stays the
@@ -69,7 +69,7 @@ def rate(b: PostBatch, keep: tuple[str, ...] = ()) -> Rating:
     def put(start: int, first_block: tuple | None = None) -> None:
         if first_block is None:
             blk = b.take(slice(start, start + BLOCK))
-            r = _rate_any(blk)
+            r = _rate_any(blk, bool(keep))
         else:
             blk, r = first_block
         sl = slice(start, start + r.n)
@@ -82,12 +82,12 @@ def rate(b: PostBatch, keep: tuple[str, ...] = ()) -> Rating:
             if c.combo is not None:  # the combination of this check, where combinations ran
                 made_once((k, "combo"), lambda: np.full(n, -1, dtype=np.int8))[sl] = c.combo
                 made_once((k, "factor"), lambda: np.full(n, np.nan))[sl] = c.factor
+            if c.clause not in clauses[k]:  # e.g. a block with EC5 posts names both clauses
+                with lock:
+                    clauses[k] += f" / {c.clause}"
         if r.batch is not blk:  # combinations ran: the governing one's load and factor
             for f in ("load_n", "cd", "lam", "combo"):
                 made_once(("batch", f), lambda f=f: getattr(b, f).copy())[sl] = getattr(r.batch, f)
-            if c.clause not in clauses[k]:
-                with lock:
-                    clauses[k] += f" / {c.clause}"
         for k, a in out.items():
             a[sl] = r.values[k]
         for k, a in core.items():
@@ -123,17 +123,19 @@ def detail(r: Rating, i: int) -> tuple[Rating, int]:
     return _rate_any(r.batch.take(np.array([i]))), 0
 
 
-def _rate_any(b: PostBatch) -> Rating:
-    """Rate one block: under every candidate load combination where nominal loads are given
-    (combinations.py: one pass over posts x combinations, each check its largest ratio), else
-    with the load and duration factor as given."""
+def _rate_any(b: PostBatch, keep_values: bool = True) -> Rating:
+    """Rate one block: under every load combination where nominal loads are given
+    (combinations.py: each check its largest ratio over the combinations), else with the load
+    and duration factor as given. ``keep_values`` False: a large batch keeps none of the
+    intermediates, so they need not be those of each post's governing combination."""
     if combinations.used(b):
-        return combinations.rate_with_combinations(b, _rate_block, finish)
-    return _rate_block(b)
+        return combinations.rate_with_combinations(b, _run_stages, finish, keep_values)
+    return finish(_run_stages(b))
 
 
-def _rate_block(b: PostBatch) -> Rating:
-    """Rate one block of posts (every stage, every check, all intermediates kept)."""
+def _run_stages(b: PostBatch) -> Rating:
+    """Rate one block of posts (every stage, every check, all intermediates kept), before the
+    governing check and the action (:func:`finish`)."""
     checks: dict[str, Check] = {}
     values: dict[str, np.ndarray] = {}
     for stage in STAGES:
@@ -156,16 +158,24 @@ def _rate_block(b: PostBatch) -> Rating:
         flags=flags,
         values=values,
     )
-    return finish(rating)
+    return rating
 
 
-def finish(r: Rating) -> Rating:
+def finish(r: Rating, governed: bool = False) -> Rating:
     """Governing check, ratio and action from the checks (run again after adding checks).
 
     The governing check has the largest demand/capacity ratio; with one demand for every check
     (the usual case) that is the smallest capacity, found without a ratio per check. A check
-    with a NaN capacity was not made and never governs.
+    with a NaN capacity was not made and never governs. ``governed``: the caller has set the
+    governing check, capacity, demand and ratio already (combinations.py); only the action.
     """
+    if not governed:
+        _govern(r)
+    r.action = action_from(r.ratio, r.flags, r.values.get("le_d_max"), r.values.get("le_d_limit"))
+    return r
+
+
+def _govern(r: Rating) -> None:
     checks = list(r.checks.values())
     demand = checks[0].demand_n
     if all(c.demand_n is demand for c in checks):
@@ -204,8 +214,6 @@ def finish(r: Rating) -> Rating:
         cap, demand, ratio = caps[gov, cols], demands[gov, cols], ratios[gov, cols]
     r.governing = gov
     r.capacity_n, r.demand_n, r.ratio = cap, demand, ratio
-    r.action = action_from(r.ratio, r.flags, r.values.get("le_d_max"), r.values.get("le_d_limit"))
-    return r
 
 
 def action_from(ratio, flags, le_d_max=None, limit=None) -> np.ndarray:

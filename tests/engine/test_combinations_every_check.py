@@ -103,18 +103,30 @@ loads_st = st.floats(0, 20_000)
 
 
 @settings(max_examples=10, deadline=None)
-@given(loads_st, loads_st, loads_st, loads_st, st.floats(60, 200), st.sampled_from([0, 1]))
-def test_each_check_ratio_is_the_max_over_combinations(d, l_, lr, s, height_in, method):
+@given(
+    loads_st,
+    loads_st,
+    loads_st,
+    loads_st,
+    st.floats(60, 200),
+    st.sampled_from([0, 1]),
+    st.sampled_from([0.0, 0.25, 1.0]),
+)
+def test_each_check_ratio_is_the_max_over_combinations(d, l_, lr, s, height_in, method, bow_in):
     # property: every check's ratio is the largest of that check over every combination, each
-    # combination rated on its own as a load given with its factor (ASCE 7 §2.4.1 / §2.3.1)
+    # combination rated on its own as a load given with its factor (ASCE 7 §2.4.1 / §2.3.1);
+    # a bowed post adds the combined check (NDS 2018 §3.9.2, §15.4.1), whose Cp, Fc' and Fb'
+    # all take the factor
     base = {
         "d1_mm": 3.5 * IN,
         "d2_mm": 3.5 * IN,
         "height_mm": height_in * IN,
         "fc_mpa": 1350 * PSI,
         "emin_mpa": 580e3 * PSI,
+        "fb_mpa": 900 * PSI,
         "cf_fc": 1.15,
         "top_fc_perp_mpa": 625 * PSI,
+        "bow2_mm": bow_in * IN,
         "method": method,
     }
     r = rate(make_batch(**base, nom_d_n=d, nom_l_n=l_, nom_lr_n=lr, nom_s_n=s, load_n=0.0))
@@ -166,3 +178,11 @@ def test_large_batch_matches_posts_rated_alone():
         assert r.ratio[i] == alone.ratio[0]
         assert r.combination_name(i) == alone.combination_name(0)
         assert r.batch.cd[i] == alone.batch.cd[0]
+
+
+def test_every_check_declares_how_it_takes_the_duration_factor():
+    # a new check must say how its capacity takes CD / lambda before combinations can rate it
+    from fieldcheck.engine.combinations import SCALING
+    from fieldcheck.engine.rating import STAGES
+
+    assert {c for stage in STAGES for c in stage.checks} <= set(SCALING)
