@@ -36,6 +36,7 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from fieldcheck.store import signing
+from fieldcheck.store.demo_rows import demo_site_ids, kept_out
 from fieldcheck.store.merge import (
     SYNC_TABLES,
     MergeResult,
@@ -217,6 +218,8 @@ def write_bundle(
         conn.execute("PRAGMA out.synchronous=OFF")
         conn.execute("BEGIN")  # one read snapshot of the log for everything below
         have = _tables(conn)
+        # the invented demo, where an older version wrote it into this log: never sent
+        demo = "sites" in have and bool(demo_site_ids(conn))
         totals = {}
         for t in SYNC_TABLES:
             if t.name not in have:
@@ -229,7 +232,7 @@ def write_bundle(
                 counts = [
                     conn.execute(
                         f"SELECT count(*) FROM main.{t.name} WHERE device_id = ? AND device_seq "
-                        "BETWEEN ? AND ?",
+                        f"BETWEEN ? AND ?{kept_out(t.name) if demo else ''}",
                         [dev, lo, hi],
                     ).fetchone()[0]
                     for dev, (lo, hi) in ranges.items()
@@ -245,7 +248,8 @@ def write_bundle(
             for dev, (lo, hi) in ranges.items():
                 conn.execute(
                     f"INSERT INTO out.{t.name} SELECT * FROM main.{t.name} "
-                    "WHERE device_id = ? AND device_seq BETWEEN ? AND ? ORDER BY device_seq",
+                    f"WHERE device_id = ? AND device_seq BETWEEN ? AND ?"
+                    f"{kept_out(t.name) if demo else ''} ORDER BY device_seq",
                     [dev, lo, hi],
                 )
                 done += conn.execute("SELECT changes()").fetchone()[0]

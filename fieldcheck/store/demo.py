@@ -9,6 +9,12 @@ with the wheel. Seeding also makes one correction and one withdrawn post, so his
 The demo lives in a file of its own (``default_demo_path()``, beside the user's survey log), marked
 as invented in its meta table: sync refuses it both ways, so it never reaches an office nor
 another inspector's log, and the user's own log never holds it.
+
+Older versions wrote the demo into the user's own log (and synced it, so offices and other
+inspectors' logs may hold it too). Those rows stay (the log is append-only), recognised by the
+demo's site (its address says "(invented)", its notes begin "Invented demo:") and everything
+recorded under it (``fieldcheck.store.demo_rows``): bundles and hub syncs leave them out both
+ways, and ``Log`` leaves them out of its lists, counts and exports (``Log.demo_kept_out``).
 """
 
 from __future__ import annotations
@@ -16,6 +22,7 @@ from __future__ import annotations
 import csv
 from pathlib import Path
 
+from fieldcheck.store.demo_rows import DEMO_META
 from fieldcheck.store.repo import Log, Site, Visit
 
 SITE_NAME = "14 Alder Row"
@@ -25,9 +32,6 @@ VISITS = {
     "basement": ("Basement survey", "standard", ("tape", "moisture meter", "awl")),
     "shoring": ("Shoring check before the wall comes out", "minimum", ("tape", "level")),
 }
-
-
-DEMO_META = "demo"  # meta key: the log holds the invented demo survey
 
 
 def default_demo_path() -> Path:

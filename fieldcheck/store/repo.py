@@ -15,7 +15,7 @@ import os
 import shutil
 import sqlite3
 import threading
-from collections.abc import Iterable, Iterator, Mapping
+from collections.abc import Iterable, Iterator, Mapping, Sequence
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -24,6 +24,7 @@ from sqlite_utils import Database
 from fieldcheck.row_error import RowError
 from fieldcheck.store import rated
 from fieldcheck.store.connection import APPLICATION_ID, LogError, connect, damaged, pragma
+from fieldcheck.store.demo_rows import DEMO_KEPT_OUT, DEMO_META, DEMO_TOLD, demo_site_ids
 from fieldcheck.store.paths import default_log_path
 from fieldcheck.store.rated import action_label
 from fieldcheck.store.rows import (
@@ -271,6 +272,7 @@ class Log:
         self.lock_wait_s = lock_wait_s()
         self.notices: list[str] = []  # sentences for the user from opening (e.g. a new device)
         self.wrote = False  # a transaction committed (or rows taken by sync): seal at close
+        self._demo_sites: tuple[str, ...] | None = None  # see demo_kept_out
 
     # ---- opening
 
@@ -351,6 +353,10 @@ class Log:
         log = cls(db, path, dev, who, readonly)
         log.backup_path = backup
         log.notices = notices if not readonly else []
+        if not readonly and log.demo_kept_out and not meta.get(DEMO_TOLD):
+            log.notices.append(DEMO_KEPT_OUT)  # said once: the next opening is quiet
+            with log._write():
+                db.execute("INSERT OR REPLACE INTO meta VALUES (?, ?)", [DEMO_TOLD, now()])
         return log
 
     def close(self) -> None:
@@ -373,6 +379,17 @@ class Log:
 
     def __exit__(self, *exc) -> None:
         self.close()
+
+    @property
+    def demo_kept_out(self) -> tuple[str, ...]:
+        """The invented demo's sites, where an older version wrote the demo into this log
+        (``fieldcheck.store.demo_rows``): kept in the file, left out of ``sites()``,
+        ``visits()``, ``posts()``, the counts and the exports. Empty in most logs, and in the
+        demo's own file (there the demo is the survey)."""
+        if self._demo_sites is None:
+            own_file = bool(self.meta().get(DEMO_META))
+            self._demo_sites = () if own_file else tuple(demo_site_ids(self.db.conn))
+        return self._demo_sites
 
     @property
     def schema_version(self) -> int:
@@ -517,7 +534,12 @@ class Log:
         return site
 
     def sites(self) -> list[Site]:
-        return [_site(r) for r in self.db.query("SELECT * FROM sites ORDER BY rowid")]
+        hidden = set(self.demo_kept_out)
+        return [
+            s
+            for s in (_site(r) for r in self.db.query("SELECT * FROM sites ORDER BY rowid"))
+            if s.id not in hidden
+        ]
 
     def site(self, site_id: str) -> Site:
         r = self._one("SELECT * FROM sites WHERE id = ?", [site_id])
@@ -588,7 +610,8 @@ class Log:
             rows = self.db.query("SELECT * FROM visits ORDER BY rowid")
         else:
             rows = self.db.query("SELECT * FROM visits WHERE site_id = ? ORDER BY rowid", [site_id])
-        return [_visit(r) for r in rows]
+        hidden = set(self.demo_kept_out) - {site_id}
+        return [v for v in (_visit(r) for r in rows) if v.site_id not in hidden]
 
     def visit(self, visit_id: str) -> Visit:
         r = self._one("SELECT * FROM visits WHERE id = ?", [visit_id])
@@ -760,7 +783,7 @@ class Log:
     ) -> list[PostView]:
         """Current revision of each member (seen on ``visit_id`` / at ``site_id`` / all), in the
         order the members were first recorded, with the latest rating of that revision."""
-        where, params = _member_filter(visit_id, site_id)
+        where, params = _member_filter(visit_id, site_id, self.demo_kept_out)
         sql = _POSTS_SQL.format(
             filter=where, withdrawn="" if include_withdrawn else "AND o.withdrawn = 0"
         )
@@ -781,7 +804,7 @@ class Log:
         """{action label: number of current posts}, every label present (for the first screen)."""
         out = {action_label(a): 0 for a in range(len(rated.ACTION_LABELS))}
         out[action_label(None)] = 0
-        where, params = _member_filter(visit_id, None)
+        where, params = _member_filter(visit_id, None, self.demo_kept_out)
         sql = _EXPORT_SQL.format(filter=where)  # counted in SQLite: no post held in memory
         for act, n in self.db.conn.execute(
             f"SELECT e.action, count(*) FROM ({sql}) e GROUP BY 1", params
@@ -969,7 +992,7 @@ class Log:
         come from SQLite ``chunk`` at a time: consume them before closing the log."""
         if not record_columns:  # a fixed column set: each row holds its record's keys only
             return list(EXPORT_ONLY_COLUMNS), self._export_rows([], visit_id, chunk)
-        seen = self._record_keys(*_member_filter(visit_id, None))
+        seen = self._record_keys(*_member_filter(visit_id, None, self.demo_kept_out))
         order = [c for c in _registry_columns() if c in seen]
         known = set(order)
         cols = order + [c for c in seen if c not in known]
@@ -991,7 +1014,7 @@ class Log:
         (record dict, row) where row holds EXPORT_FIELDS in order; the rating fields are None
         where the revision has no rating. The bulk path under every export: consume it before
         closing the log."""
-        where, params = _member_filter(visit_id, None)
+        where, params = _member_filter(visit_id, None, self.demo_kept_out)
         cur = self.db.conn.execute(_EXPORT_SQL.format(filter=where), params)
         while rows := cur.fetchmany(chunk):
             try:
@@ -1333,9 +1356,16 @@ ORDER BY m.rowid
 """
 
 
-def _member_filter(visit_id: str | None, site_id: str | None) -> tuple[str, list]:
-    """SQL (``AND ...``) and parameters keeping the members seen on a visit / at a site."""
+def _member_filter(
+    visit_id: str | None, site_id: str | None, hidden: Sequence[str] = ()
+) -> tuple[str, list]:
+    """SQL (``AND ...``) and parameters keeping the members seen on a visit / at a site, and
+    none at the ``hidden`` sites (the demo's, see ``Log.demo_kept_out``) unless asked for."""
     where, params = "", []
+    hidden = [h for h in hidden if h != site_id]
+    if hidden:
+        where += f" AND m.site_id NOT IN ({','.join('?' * len(hidden))})"
+        params.extend(hidden)
     if visit_id is not None:
         where += " AND m.id IN (SELECT member_id FROM observations WHERE visit_id = ?)"
         params.append(visit_id)

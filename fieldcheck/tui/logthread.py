@@ -18,14 +18,15 @@ T = TypeVar("T")
 
 
 def _holds_survey(path: Path) -> bool:
-    """True when the user's own log exists and holds a site (then it opens, not the demo)."""
+    """True when the user's own log exists and holds a site of the user's (then it opens, not
+    the demo; an invented demo an older version wrote into it does not count)."""
     if not path.exists():
         return False
     from fieldcheck.store import Log
 
     try:
         with Log.open(path, readonly=True) as log:
-            return not log.is_empty()
+            return bool(log.sites())
     except Exception:
         return True  # open it, so its own message shows
 

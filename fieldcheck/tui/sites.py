@@ -33,7 +33,13 @@ def _load_overview(log: Any) -> dict[str, Any]:
     for v in log.visits():
         counts = log.counts_by_action(v.id)
         rows.append((v, sites.get(v.site_id), counts))
-    return {"rows": rows, "conflicts": len(log.conflicts()), "path": str(log.path)}
+    notices, log.notices = list(log.notices), []  # said once (e.g. the old demo kept out)
+    return {
+        "rows": rows,
+        "conflicts": len(log.conflicts()),
+        "path": str(log.path),
+        "notices": notices,
+    }
 
 
 class SitesScreen(ReleasesKeys, Screen[None]):
@@ -78,6 +84,8 @@ class SitesScreen(ReleasesKeys, Screen[None]):
         if first:
             app.load_drafts()
         self._fill(data)
+        for notice in data["notices"]:
+            self.notify(notice, title="Your survey log", timeout=20, markup=False)
         if first and app.store.is_demo:
             self.notify(
                 "This is the invented demo survey, in a file of its own. ctrl+n starts your own.",

@@ -223,3 +223,25 @@ async def test_report_and_sync_from_the_users_own_log(own_log, tmp_path, ui) -> 
         summary = app.last_summary
         assert summary.startswith("Sent 1 site, 1 visit, 3 new posts, 3 post records"), summary
         assert "observations" not in summary and "members" not in summary
+
+
+async def test_an_old_demo_in_the_users_log_is_left_out_and_said_once(own_log, ui) -> None:
+    # an older version wrote the demo into the user's own log (unmarked), then the user's survey
+    from fieldcheck.store import Log, seed_demo
+    from fieldcheck.store.demo_rows import DEMO_KEPT_OUT
+
+    own_log.parent.mkdir(parents=True)
+    with Log.open(own_log) as log:
+        seed_demo(log)
+        with log._write():
+            log.db.execute("DELETE FROM meta WHERE key = 'demo'")
+        site = log.add_site("9 Birch Lane", "9 Birch Lane")
+        log.add_visit(site.id, "J. Ortiz", "standard", name="cellar")
+    app = ui.app(None)  # `fieldcheck` with no --db: the user's log holds a survey of theirs
+    app.store.demo = None
+    async with app.run_test(size=(80, 24)) as pilot:
+        await ui.settle(app, pilot)
+        assert not app.store.is_demo and app.store.path == own_log
+        assert app.screen.query_one("#visits", DataTable).row_count == 1  # cellar only
+        said = [n.message for n in app._notifications]
+        assert said.count(DEMO_KEPT_OUT) == 1

@@ -169,10 +169,11 @@ class PgTarget:
         sel = ",".join(columns)
         sql = f"INSERT INTO {SCHEMA}.{table} ({sel}) VALUES ({','.join(['%s'] * len(columns))})"
         n = 0
+        keep = _not_demo(self.src, table)
         for dev, (lo, hi) in sorted(self.ranges.items()):
             rows = self.src.execute(
                 f"SELECT {sel} FROM main.{table} WHERE device_id = ? "
-                "AND device_seq BETWEEN ? AND ? ORDER BY device_seq",
+                f"AND device_seq BETWEEN ? AND ?{keep} ORDER BY device_seq",
                 [dev, lo, hi],
             ).fetchall()
             if rows:
@@ -209,13 +210,22 @@ class PgTarget:
         return [r[0] for r in self.conn.execute(sql, [members])]
 
 
+def _not_demo(conn, table: str, schema: str = "main") -> str:
+    """SQL leaving out the invented demo's rows where an older version wrote the demo into a log
+    or a hub (``fieldcheck.store.demo_rows``): "" when it holds none."""
+    from fieldcheck.store.demo_rows import demo_site_ids, kept_out
+
+    return kept_out(table, schema) if demo_site_ids(conn, schema) else ""
+
+
 def _field_batches(src, table: str, cols: Sequence[str], ranges) -> Iterator[list[tuple]]:
-    """The field log's rows in ``ranges``, 20,000 at a time."""
+    """The field log's rows in ``ranges``, 20,000 at a time (never the demo's)."""
     sel = ",".join(cols)
+    keep = _not_demo(src, table)
     for dev, (lo, hi) in sorted(ranges.items()):
         cur = src.execute(
-            f"SELECT {sel} FROM main.{table} WHERE device_id = ? AND device_seq BETWEEN ? AND ? "
-            "ORDER BY device_seq",
+            f"SELECT {sel} FROM main.{table} WHERE device_id = ? AND device_seq BETWEEN ? AND ?"
+            f"{keep} ORDER BY device_seq",
             [dev, lo, hi],
         )
         while batch := cur.fetchmany(20_000):
@@ -456,11 +466,12 @@ def _pull(conn, out: sqlite3.Connection, tables, cols, ranges) -> dict[str, int]
         sel = ",".join(cols[t.name])
         ins = f"INSERT INTO {t.name} ({sel}) VALUES ({','.join('?' * len(cols[t.name]))})"
         n = 0
+        keep = _not_demo(conn, t.name, SCHEMA).replace("%", "%%")  # a hub that took the demo
         for dev, (lo, hi) in sorted(ranges.items()):
             with conn.cursor() as cur:
                 cur.execute(
                     f"SELECT {sel} FROM {SCHEMA}.{t.name} WHERE device_id = %s AND device_seq "
-                    "BETWEEN %s AND %s ORDER BY device_seq",
+                    f"BETWEEN %s AND %s{keep} ORDER BY device_seq",
                     [dev, lo, hi],
                 )
                 while batch := cur.fetchmany(10_000):
