@@ -44,6 +44,7 @@ def test_the_demo_stays_in_the_file_but_out_of_the_users_lists(tmp_path) -> None
         assert [p.tag for p in log.posts()] == ["B1"]
         assert sum(log.counts_by_action().values()) == 1
         assert [r["tag"] for r in log.export_rows().rows] == ["B1"]
+        assert [rec["tag"] for part in log.export_chunks() for rec, _ in part] == ["B1"]
         assert raw_counts(log) == before  # nothing deleted or rewritten
         assert before["sites"] == 2 and before["members"] > 1
 
