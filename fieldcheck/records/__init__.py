@@ -193,40 +193,47 @@ def _lift_shape(
     parse, or a combination the builders refuse: those get their errors row by row)."""
     n = len(idx)
     recs = list(map(rows.__getitem__, idx))
-    cols = [list(map(operator.itemgetter(c), recs)) for c in names]
+    rated = [k for k, c in enumerate(names) if c not in _UNRATED and c in COLUMNS]
+    cols = {k: list(map(operator.itemgetter(names[k]), recs)) for k in rated}
     del recs
     bad = np.zeros(n, dtype=bool)
     key_codes: list[np.ndarray] = []
-    key_names: list[str] = []
+    key_names: list[str] = []  # the rated columns: the keyed ones first, then the lifted ones
     lifted: dict[str, tuple[np.ndarray, np.ndarray]] = {}  # column -> (value, present) per row
-    for name, texts in zip(names, cols, strict=True):
-        if name in _UNRATED or name not in COLUMNS:
-            continue
-        distinct, codes = _distinct(texts)
-        if name in LIFTED:
-            vals = np.full(len(distinct), np.nan)
-            present = np.zeros(len(distinct), dtype=bool)
-            fails = np.zeros(len(distinct), dtype=bool)
-            for j, t in enumerate(distinct):
-                if _blank(t):
-                    continue
+    keyed = [k for k in rated if names[k] not in LIFTED]
+    if keyed:
+        # the other columns together: one code per distinct combination of their texts
+        combos, codes = _distinct(list(zip(*(cols[k] for k in keyed), strict=True)))
+        key_codes.append(codes)
+        key_names.extend(names[k] for k in keyed)
+        if "method" in key_names:
+            m = key_names.index("method")
+            for j, combo in enumerate(combos):
+                t = combo[m]
                 try:
-                    vals[j] = float(_parse_cell(name, str(t)))
-                    present[j] = True
-                except (ValueError, TypeError):
-                    fails[j] = True
-            bad |= fails[codes]
-            lifted[name] = (vals[codes], present[codes])
-            key_codes.append(present[codes].astype(np.intp))
-        else:
-            if name == "method":
-                for j, t in enumerate(distinct):
-                    try:
-                        if not _blank(t) and _parse_cell(name, str(t)) in _NO_LIFT_METHODS:
-                            bad |= codes == j
-                    except ValueError:
+                    if not _blank(t) and _parse_cell("method", str(t)) in _NO_LIFT_METHODS:
                         bad |= codes == j
-            key_codes.append(codes)
+                except ValueError:
+                    bad |= codes == j
+    for k in rated:
+        name = names[k]
+        if name not in LIFTED:
+            continue
+        distinct, codes = _distinct(cols[k])
+        vals = np.full(len(distinct), np.nan)
+        present = np.zeros(len(distinct), dtype=bool)
+        fails = np.zeros(len(distinct), dtype=bool)
+        for j, t in enumerate(distinct):
+            if _blank(t):
+                continue
+            try:
+                vals[j] = float(_parse_cell(name, str(t)))
+                present[j] = True
+            except (ValueError, TypeError):
+                fails[j] = True
+        bad |= fails[codes]
+        lifted[name] = (vals[codes], present[codes])
+        key_codes.append(present[codes].astype(np.intp))
         key_names.append(name)
     good = np.flatnonzero(~bad)
     left = [idx[k] for k in np.flatnonzero(bad).tolist()]

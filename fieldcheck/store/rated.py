@@ -31,6 +31,7 @@ class RatedRows:
     errors: list[RowError]
 
 
+# the columns of a stored rating that come from the engine, in RATING_COLS order
 RATING_COLUMNS = (
     "capacity_n",
     "demand_n",
@@ -108,34 +109,56 @@ def parse_and_rate(records: list[dict[str, str]]):
     return parsed, (rate_batch(parsed.batch) if parsed.batch.n else None)
 
 
+@dataclass(frozen=True)
+class RatedColumns:
+    """The ratings of many records as columns: ``ok`` lists the input rows rated (in order) and
+    ``columns`` holds one list per RATING_COLUMNS entry, over those rows; the other rows have
+    errors."""
+
+    ok: list[int]
+    columns: tuple[list, ...]
+    errors: list[RowError]
+
+
+def rate_columns(
+    records: list[dict[str, str]], *, summaries: bool = True, cache: dict | None = None
+) -> RatedColumns:
+    """Rate every record in ONE engine call, lifted into columns (``tolist`` per array: no
+    per-post work but the summaries' JSON, when asked). ``cache``: the records layer's distinct
+    parses, kept by the caller across chunks."""
+    from fieldcheck.engine.rating import rate as rate_batch
+    from fieldcheck.records import parse_records
+
+    parsed = parse_records(records, cache)
+    errs = list(parsed.errors)  # RowError, placed at their row by the records layer
+    m = parsed.batch.n
+    if m == 0:
+        return RatedColumns([], tuple([] for _ in RATING_COLUMNS), errs)
+    rating = rate_batch(parsed.batch)
+    cap = _floats(rating.capacity_n)
+    if len(cap) != m:
+        raise RuntimeError(f"the engine returned {len(cap)} ratings for {m} valid records")
+    names = np.asarray(list(rating.check_names), dtype=object)
+    summ = [summary_json(rating, j) for j in range(m)] if summaries else [None] * m
+    columns = (
+        cap,
+        _floats(rating.demand_n),
+        _floats(rating.ratio),
+        np.asarray(rating.action).astype(np.int64).tolist(),
+        names[np.asarray(rating.governing, dtype=np.int64)].tolist(),
+        np.asarray(rating.flags).astype(np.int64).tolist(),
+        summ,
+    )
+    return RatedColumns(parsed.index.tolist(), columns, errs)
+
+
 def rate(
     records: list[dict[str, str]], *, summaries: bool = True, cache: dict | None = None
 ) -> RatedRows:
     """Rate every record in ONE engine call; rows with field errors get None and their errors.
     ``cache``: the records layer's distinct-record parses, kept by the caller across chunks."""
-    from fieldcheck.records import rate_records
-
-    n = len(records)
-    if n == 0:
-        return RatedRows([], [])
-    rating, errors = rate_records(records, cache)
-    errs = list(errors)  # RowError, placed at their row by the records layer
-    bad = {e.row for e in errs}
-    ok_rows = [i for i in range(n) if i not in bad]
-    m = len(ok_rows)
-    out: list[tuple | None] = [None] * n
-    if m == 0:
-        return RatedRows(out, errs)
-    cap = _floats(rating.capacity_n)
-    dem = _floats(rating.demand_n)
-    ratio = _floats(rating.ratio)
-    action = np.asarray(rating.action).astype(np.int64).tolist()
-    names = np.asarray(list(rating.check_names), dtype=object)
-    gov = names[np.asarray(rating.governing, dtype=np.int64)].tolist()
-    flags = np.asarray(rating.flags).astype(np.int64).tolist()
-    if len(cap) != m:
-        raise RuntimeError(f"the engine returned {len(cap)} ratings for {m} valid records")
-    summ = [summary_json(rating, j) for j in range(m)] if summaries else [None] * m
-    for j, i in enumerate(ok_rows):
-        out[i] = (cap[j], dem[j], ratio[j], action[j], gov[j], flags[j], summ[j])
-    return RatedRows(out, errs)
+    got = rate_columns(records, summaries=summaries, cache=cache)
+    out: list[tuple | None] = [None] * len(records)
+    for i, row in zip(got.ok, zip(*got.columns, strict=True), strict=True):
+        out[i] = row
+    return RatedRows(out, got.errors)

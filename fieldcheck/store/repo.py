@@ -17,6 +17,7 @@ import sqlite3
 import threading
 from collections.abc import Iterable, Iterator, Mapping, Sequence
 from dataclasses import dataclass, field
+from itertools import repeat
 from pathlib import Path
 
 from sqlite_utils import Database
@@ -84,7 +85,7 @@ def _loads(text: str | None):
 
 def _dumps_many(objs: list) -> list[str]:
     """Compact JSON text of each object, as ``dumps`` writes it."""
-    return [dumps(o) for o in objs]
+    return list(map(dumps, objs))
 
 
 def _loads_many(texts: list[str]) -> list:
@@ -820,17 +821,11 @@ class Log:
     def rerate_all(self, *, chunk: int = STORE_CHUNK) -> RerateResult:
         """Re-rate every current revision and store the new ratings (with this engine's version
         and data editions) in ONE transaction; old ratings are kept. The heads stream from
-        SQLite in chunks of ``chunk`` (memory flat in the size of the log), each chunk one
-        engine call."""
-        from fieldcheck.records import PARSE_CACHE_LIMIT, UNRATED_COLUMNS
-
-        # What the engine sees of each record: its JSON without the columns the records layer
-        # leaves out (tag, location, notes). A log repeats such records (a run of identical
-        # shores), so each distinct one is decoded, parsed and rated once, and its rating row
-        # kept across chunks; SQLite strips the keys in C.
-        strip = ", ".join(f"'$.{c}'" for c in UNRATED_COLUMNS)
+        SQLite in chunks of ``chunk`` (memory flat in the size of the log), each chunk decoded in
+        one call, parsed column-wise (the distinct parses kept from chunk to chunk) and rated in
+        one engine call."""
         stamp, version, _ = rated.engine_stamp()
-        done: dict[str, tuple[tuple | None, list[tuple[str, str]]]] = {}
+        cache: dict = {}  # the records layer's distinct parses, kept from chunk to chunk
         errors: list[RowError] = []
         n = good_n = 0
         with self._write():
@@ -839,45 +834,43 @@ class Log:
             dev, who = self.device_id, self.author
             with self._reading_records():
                 cur = self.db.conn.execute(
-                    f"SELECT id, json_remove(record_json, {strip}) "
-                    "FROM observations o WHERE withdrawn = 0 AND " + HEAD + " ORDER BY rowid"
+                    "SELECT id, record_json FROM observations o WHERE withdrawn = 0 AND "
+                    + HEAD
+                    + " ORDER BY rowid"
                 )
             while heads := self._fetch_records(cur, chunk):
-                if len(done) > PARSE_CACHE_LIMIT:
-                    done.clear()
-                fresh = list(dict.fromkeys(t for _, t in heads if t not in done))
-                if fresh:
-                    try:
-                        records = _loads_many(fresh)
-                        if not all(isinstance(r, dict) for r in records):
-                            raise ValueError("a record is not an object")
-                    except (ValueError, TypeError):
-                        raise self._bad_record() from None
-                    result = rated.rate(records, summaries=False)
-                    errs: dict[int, list[tuple[str, str]]] = {}
-                    for e in result.errors:
-                        errs.setdefault(e.row, []).append((e.column, e.message))
-                    for u, text in enumerate(fresh):
-                        done[text] = (result.rows[u], errs.get(u, []))
-                got = [done[t] for _, t in heads]
-                good = []
-                for k, ((oid, _), (row, errs_k)) in enumerate(zip(heads, got, strict=True)):
-                    if row is not None:
-                        good.append((oid, row))
-                    elif errs_k:
-                        errors.extend(RowError(c, m, row=n + k) for c, m in errs_k)
-                seqs = self._seqs(len(good))
-                rids = new_ids(len(good))
-                self._insert(
-                    "ratings",
-                    RATING_COLS,
-                    [
-                        (rid, oid, version, stamp, *row, dev, seq, who, created)
-                        for (oid, row), seq, rid in zip(good, seqs, rids, strict=True)
-                    ],
-                )
-                n += len(heads)
-                good_n += len(good)
+                oids, texts = zip(*heads, strict=True)
+                del heads
+                try:
+                    records = _loads_many(texts)
+                    if len(records) != len(texts) or not all(isinstance(r, dict) for r in records):
+                        raise ValueError("a record is not an object")
+                except (ValueError, TypeError):
+                    raise self._bad_record() from None
+                del texts
+                result = rated.rate_columns(records, summaries=False, cache=cache)
+                errors.extend(e.at(n + e.row) for e in result.errors)
+                ok = result.ok
+                k = len(ok)
+                if k:
+                    first = self._seqs(k).start
+                    self._insert(
+                        "ratings",
+                        RATING_COLS,
+                        zip(
+                            new_ids(k),
+                            oids if k == len(oids) else [oids[i] for i in ok],
+                            repeat(version),
+                            repeat(stamp),
+                            *result.columns,
+                            repeat(dev),
+                            range(first, first + k),
+                            repeat(who),
+                            repeat(created),
+                        ),
+                    )
+                n += len(records)
+                good_n += k
         return RerateResult(good_n, n - good_n, version, errors)
 
     def _fetch_records(self, cur: sqlite3.Cursor, n: int) -> list:
@@ -936,40 +929,64 @@ class Log:
             while batch := list(itertools.islice(source, chunk)):
                 records = [_import_record(r) for r in batch]
                 del batch
-                result = rated.rate(records, summaries=False, cache=cache)
+                result = rated.rate_columns(records, summaries=False, cache=cache)
                 errors.extend(e.at(read + e.row) for e in result.errors)
-                ok = [i for i, row in enumerate(result.rows) if row is not None]
-                seqs = iter(self._seqs(3 * len(ok)))
-                ids = new_ids(3 * len(ok))
-                member_ids, obs_ids, rating_ids = ids[0::3], ids[1::3], ids[2::3]
-                self._insert(
-                    "members",
-                    _MEMBER_COLS,
-                    [
-                        (mid, s.id, records[i].get("tag", ""), dev, next(seqs), who, created)
-                        for mid, i in zip(member_ids, ok, strict=True)
-                    ],
-                )
-                texts = _dumps_many([records[i] for i in ok])
-                self._insert(
-                    "observations",
-                    _OBS_COLS,
-                    [
-                        (oid, mid, v.id, None, 0, "", text, dev, next(seqs), who, created)
-                        for oid, mid, text in zip(obs_ids, member_ids, texts, strict=True)
-                    ],
-                )
-                rows_ = result.rows
-                self._insert(
-                    "ratings",
-                    RATING_COLS,
-                    [
-                        (rid, oid, version, stamp, *rows_[i], dev, next(seqs), who, created)
-                        for rid, oid, i in zip(rating_ids, obs_ids, ok, strict=True)
-                    ],
-                )
+                ok = result.ok
+                k = len(ok)
+                if k:
+                    kept = records if k == len(records) else [records[i] for i in ok]
+                    # rows built column by column (zip): no per-post Python frame
+                    first = self._seqs(3 * k).start
+                    ids = new_ids(3 * k)
+                    member_ids, obs_ids = ids[0::3], ids[1::3]
+                    tags = [r.get("tag", "") for r in kept]
+                    self._insert(
+                        "members",
+                        _MEMBER_COLS,
+                        zip(
+                            member_ids,
+                            repeat(s.id),
+                            tags,
+                            repeat(dev),
+                            range(first, first + k),
+                            repeat(who),
+                            repeat(created),
+                        ),
+                    )
+                    self._insert(
+                        "observations",
+                        _OBS_COLS,
+                        zip(
+                            obs_ids,
+                            member_ids,
+                            repeat(v.id),
+                            repeat(None),
+                            repeat(0),
+                            repeat(""),
+                            _dumps_many(kept),
+                            repeat(dev),
+                            range(first + k, first + 2 * k),
+                            repeat(who),
+                            repeat(created),
+                        ),
+                    )
+                    self._insert(
+                        "ratings",
+                        RATING_COLS,
+                        zip(
+                            ids[2::3],
+                            obs_ids,
+                            repeat(version),
+                            repeat(stamp),
+                            *result.columns,
+                            repeat(dev),
+                            range(first + 2 * k, first + 3 * k),
+                            repeat(who),
+                            repeat(created),
+                        ),
+                    )
                 read += len(records)
-                imported += len(ok)
+                imported += k
         return ImportResult(imported, errors, s, v, read)
 
     def export_rows(self, visit_id: str | None = None) -> ExportTable:

@@ -88,8 +88,13 @@ def new_id() -> str:
     return new_ids(1)[0]
 
 
+# what json.dumps(obj, ensure_ascii=False, separators=(",", ":")) gives, without building an
+# encoder per call (a bulk import writes one record text per post)
+_ENCODE = json.JSONEncoder(ensure_ascii=False, separators=(",", ":")).encode
+
+
 def dumps(obj) -> str:
-    return json.dumps(obj, ensure_ascii=False, separators=(",", ":"))
+    return _ENCODE(obj)
 
 
 def clean_record(record: Mapping[str, object]) -> dict[str, str]:
