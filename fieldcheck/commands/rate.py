@@ -137,24 +137,49 @@ def _fails(args: argparse.Namespace, actions, unrated: int = 0) -> bool:
     return unrated > 0 or any(a == NOT_RATED or a >= at for a in actions)
 
 
+def _ec5_force(n: float, system: str) -> str:
+    """An EC5 force: kN first, lbf beside it in US units ('40.87 kN (9,189 lbf)')."""
+    from fieldcheck.units import format_force
+
+    kn = format_force(n, "metric")
+    return kn if system == "metric" else f"{kn} ({format_force(n, 'us')})"
+
+
 def _text(s: dict, system: str) -> str:
     from fieldcheck.units import format_force
 
     lines = []
-    force = lambda kn: "none" if kn is None else format_force(kn * 1000.0, system)  # noqa: E731
-    lines.append(
-        f"Capacity      {force(s['allowable_load_kN'])}   governed by {s['governing_check']}"
-    )
+    ec5 = s.get("method") == "ec5"
+    fmt = (lambda n: _ec5_force(n, system)) if ec5 else (lambda n: format_force(n, system))
+    force = lambda kn: "none" if kn is None else fmt(kn * 1000.0)  # noqa: E731
+    if ec5:  # EN 1995-1-1's own terms: N_Rd, N_Ed, lambda, lambda_rel, k_c, beta_c
+        lines.append(f"N_Rd          {force(s['N_Rd_kN'])}   governed by {s['governing_check']}")
+    else:
+        lines.append(
+            f"Capacity      {force(s['allowable_load_kN'])}   governed by {s['governing_check']}"
+        )
     if s["state"] != "rated":
         lines.append(f"STATE         {s['state'].upper()}")
     if s["demand_capacity_ratio"] is not None:
         lines.append(f"Combination   {s['governing_combination']}")
-        lines.append(f"Demand        {format_force(s['demand_kN'] * 1000.0, system)}")
-        lines.append(f"Ratio         {s['demand_capacity_ratio']:.3f}")
-    lines.append(
-        f"Ke {s['effective_length_factor']}, le/d {s['slenderness_ratio']:.1f} "
-        f"(limit {s['slenderness_limit']:.0f}), stability factor {s['stability_factor']:.3f}"
-    )
+        if ec5:
+            lines.append(f"N_Ed          {force(s['N_Ed_kN'])}")
+            lines.append(f"N_Ed / N_Rd   {s['demand_capacity_ratio']:.3f}")
+        else:
+            lines.append(f"Demand        {force(s['demand_kN'])}")
+            lines.append(f"Ratio         {s['demand_capacity_ratio']:.3f}")
+    if ec5:
+        ax = s["governing_axis"] - 1
+        lines.append(
+            f"\u03bb {s['lambda'][ax]:.1f}, \u03bb_rel {s['lambda_rel'][ax]:.3f}, "
+            f"k_c {s['k_c_governing']:.3f}, \u03b2_c {s['beta_c']:.1f} (axis {ax + 1}; "
+            f"EN 1995-1-1 §6.3.2), k_mod {s['k_mod']:.2f}, \u03b3_M {s['gamma_M']:.2f}"
+        )
+    else:
+        lines.append(
+            f"Ke {s['effective_length_factor']}, le/d {s['slenderness_ratio']:.1f} "
+            f"(limit {s['slenderness_limit']:.0f}), stability factor {s['stability_factor']:.3f}"
+        )
     lines.append(f"Material      {s.get('material', '')}")
     lines.append(f"ACTION        {s['action_text']}")
     for c in s["checks"]:
@@ -170,13 +195,11 @@ def _text(s: dict, system: str) -> str:
         )
     if s.get("bracing") and s["bracing"]["total_kN"] is not None:
         br = s["bracing"]
-        lines.append(
-            f"Bracing must carry {format_force(br['total_kN'] * 1000.0, system)}  [{br['clause']}]"
-        )
+        lines.append(f"Bracing must carry {force(br['total_kN'])}  [{br['clause']}]")
     if s.get("remedies"):
         lines.append("What would make it pass (cheapest first):")
         for k, rem in enumerate(s["remedies"], 1):
-            cap = format_force(rem["capacity_kN"] * 1000.0, system)
+            cap = force(rem["capacity_kN"])
             lines.append(f"  {k}. {rem['description']} Capacity {cap}, ratio {rem['ratio']:.3f}.")
     elif s.get("remedies_note"):
         lines.append(f"Remedies      {s['remedies_note']}")

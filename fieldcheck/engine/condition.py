@@ -1149,7 +1149,9 @@ def working_lines(r, i: int) -> list:
             Step(
                 "d_eff = sqrt(12 I / A) per axis",
                 f"{q.length(v['d_eff1'][i])}, {q.length(v['d_eff2'][i])}",
-                "mechanics; NDS 2018 §3.6.3 net section in Cp [M]",
+                "mechanics; used for λ (EN 1995-1-1 §6.3.2)"
+                if b.method[i] == EC5
+                else "mechanics; NDS 2018 §3.6.3 net section in Cp [M]",
             )
         )
         s.append(
@@ -1199,7 +1201,7 @@ def working_lines(r, i: int) -> list:
                 "ASCE 41 data collection (secondary); judgement",
             )
         )
-    if v["ecc_checked"][i]:
+    if v["ecc_checked"][i] and b.method[i] != EC5:  # EC5: in the EN 1995-1-1 working
         s.append(
             Step(
                 "Eccentricity e1, e2; bow at mid-height",

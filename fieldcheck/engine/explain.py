@@ -17,9 +17,10 @@ from __future__ import annotations
 import numpy as np
 
 from fieldcheck.engine import remedies
-from fieldcheck.engine.batch import METHOD_NAMES
+from fieldcheck.engine.batch import EC5, METHOD_NAMES
 from fieldcheck.engine.cautions import CAUTIONS
 from fieldcheck.engine.customary import LBF
+from fieldcheck.engine.ec5_rating import EC5_WARNINGS
 from fieldcheck.engine.rating import FLAGS, STAGES, detail
 from fieldcheck.engine.result import ACTION_TEXT, ACTIONS, DUE_DAYS, NOT_RATED, Rating, Step
 from fieldcheck.engine.working import closing_steps, column_steps
@@ -44,8 +45,12 @@ def finite(obj):
 
 
 def warnings(r: Rating, i: int) -> list[str]:
-    """The warnings of post i, in the order of the flag table."""
-    return FLAGS.texts(int(r.flags[i]))
+    """The warnings of post i, in the order of the flag table (an EC5 post's in EN 1995-1-1's
+    terms: ec5_rating.EC5_WARNINGS)."""
+    flags = int(r.flags[i])
+    if int(r.batch.method[i]) != EC5:
+        return FLAGS.texts(flags)
+    return [EC5_WARNINGS.get(f.name, f.text) for k, f in enumerate(FLAGS.flags) if flags >> k & 1]
 
 
 def working(r: Rating, i: int) -> list[Step]:

@@ -38,12 +38,23 @@ def column_steps(r: Rating, i: int) -> list[Step]:
     method = int(b.method[i])
     s: list[Step] = []
     add = s.append
-    add(Step("Method", METHOD_NAMES[method].upper() + ("" if method == EC5 else " (NDS 2018)"), ""))
+    ec = method == EC5
+    add(
+        Step(
+            "Method",
+            "EC5 (EN 1995-1-1:2004+A1:2008)"
+            if ec
+            else METHOD_NAMES[method].upper() + " (NDS 2018)",
+            "",
+        )
+    )
     add(
         Step(
             "Section d1 x d2 (measured or dressed)",
             f"{q.length(b.d1_mm[i])} x {q.length(b.d2_mm[i])}",
-            "NDS 2018 §3.7.1.3",
+            "axis 1 bends in the plane of d1 (EC5 y), axis 2 of d2 (z)"
+            if ec
+            else "NDS 2018 §3.7.1.3",
         )
     )
     if int(b.shape[i]) == ROUND:
@@ -63,8 +74,9 @@ def column_steps(r: Rating, i: int) -> list[Step]:
             "",
         )
     )
-    add(Step("Product", PRODUCT_NAMES[int(b.product[i])], ""))
-    if method == EC5:
+    if not ec:  # EC5: the strength class step names the product
+        add(Step("Product", PRODUCT_NAMES[int(b.product[i])], ""))
+    if ec:
         s.extend(ec5_steps(r, i))
     else:
         fc = b.fc_mpa[i]
@@ -166,7 +178,7 @@ def closing_steps(r: Rating, i: int) -> list[Step]:
             continue
         ratio = c.ratio[i]
         combo, factor = r.check_combination(name, i)
-        fname = "lambda" if method == LRFD else "kmod" if method == EC5 else "CD"
+        fname = "lambda" if method == LRFD else "k_mod" if method == EC5 else "CD"
         rtxt = (
             ""
             if np.isnan(ratio)
@@ -181,7 +193,7 @@ def closing_steps(r: Rating, i: int) -> list[Step]:
     if not np.isnan(r.ratio[i]):
         add(
             Step(
-                "Demand / capacity",
+                "N_Ed / N_Rd" if method == EC5 else "Demand / capacity",
                 f"{q.force(r.demand_n[i])} / {q.force(r.capacity_n[i])} = {r.ratio[i]:.3f}",
                 "",
             )

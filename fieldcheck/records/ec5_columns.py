@@ -166,7 +166,7 @@ def ec5_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
     out["_values_source"] = held["edition"]
     out["_material"] = (
         f"{name} ({held['edition']}, values {_statuses(held)}), k_mod {f['kmod']:.2f} "
-        f"({duration}, service class {sc}), gamma_M {f['gamma_m']}{moisture_note}{bearing_note}"
+        f"({duration}, service class {sc}), \u03b3_M {f['gamma_m']}{moisture_note}{bearing_note}"
     )
     return f
 

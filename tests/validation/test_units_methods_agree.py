@@ -66,4 +66,4 @@ def test_nds_and_ec5_differ_only_as_their_working_explains():
     # EN 1995-1-1 §6.3.2, C24 100 x 100 mm 3 m, computed by hand: C24 100 x 100, 3.0 m, medium-term,
     # SC1 -> N_Rd = 36.7747 kN
     assert r.capacity_n[1] / 1000 == pytest.approx(36.7747, rel=1e-5)
-    assert explain.summary(r, 1)["stability_factor"] == pytest.approx(0.284566, abs=1e-6)
+    assert explain.summary(r, 1)["k_c_governing"] == pytest.approx(0.284566, abs=1e-6)
