@@ -2,7 +2,14 @@
 
 from __future__ import annotations
 
+import os
+
 import pytest
+
+try:
+    import fcntl
+except ImportError:  # no flock: the workers never wait for one another
+    fcntl = None
 
 # a sound temporary shore (values as typed on site; common practice, no source)
 SHORE = {
@@ -41,3 +48,25 @@ def office_key(tmp_path_factory, monkeypatch):
     monkeypatch.setenv("FIELDCHECK_OFFICE_KEY_FILE", str(path))
     monkeypatch.setenv("FIELDCHECK_STATE_DIR", str(folder / "state"))
     return path
+
+
+@pytest.fixture(autouse=True)
+def _alone_when_marked(request, tmp_path_factory):
+    """Under pytest-xdist, a test marked ``alone`` runs while no other worker runs a test: the
+    kill tests time their kills against the machine's speed, which another busy worker would
+    halve. A reader-writer lock on two files every worker sees: a test holds ``run`` shared, an
+    ``alone`` test holds it exclusive; ``gate`` keeps new tests from starting while an ``alone``
+    test waits, so it is never starved."""
+    if fcntl is None or not os.environ.get("PYTEST_XDIST_WORKER"):
+        yield
+        return
+    shared = tmp_path_factory.getbasetemp().parent  # one folder for the whole run
+    alone = request.node.get_closest_marker("alone") is not None
+    with open(shared / "gate.lock", "a") as gate, open(shared / "run.lock", "a") as run:
+        fcntl.flock(gate, fcntl.LOCK_EX)
+        try:
+            fcntl.flock(run, fcntl.LOCK_EX if alone else fcntl.LOCK_SH)
+        finally:
+            if not alone:
+                fcntl.flock(gate, fcntl.LOCK_UN)
+        yield  # both files close after the test: every lock is released

@@ -15,6 +15,7 @@ ROOT = Path(__file__).resolve().parents[2]
 
 
 @pytest.mark.slow
+@pytest.mark.alone  # kills timed against this machine's speed: no other test beside it
 @pytest.mark.skipif(not hasattr(os, "fork"), reason="needs fork")
 def test_kill_writer_at_random_moments_over_100_cycles(tmp_path):
     env = {

@@ -55,6 +55,7 @@ def _timed_sync(field: Path, office: Path) -> float:
 
 
 @pytest.mark.slow
+@pytest.mark.alone  # kills timed against this machine's speed: no other test beside it
 def test_killed_sync_rerun_loses_and_duplicates_nothing(tmp_path, shore, canon, monkeypatch):
     rng = random.Random(8)  # fixed seed: the same fractions on every run
     tmpdir = tmp_path / "tmpdir"  # the syncs' own $TMPDIR, to see what they leave there
