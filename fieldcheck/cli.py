@@ -8,7 +8,6 @@ from __future__ import annotations
 
 import argparse
 import importlib
-import sqlite3
 import sys
 
 from fieldcheck.commands import COMMANDS
@@ -16,6 +15,7 @@ from fieldcheck.commands.usage import (
     UsageError,
     clean,
     db_path,
+    is_sqlite_error,
     set_message_units,
     store_error_sentence,
 )
@@ -94,13 +94,16 @@ def main(argv: list[str] | None = None) -> int:
         return 2
     except KeyboardInterrupt:
         return 130
-    except sqlite3.Error as exc:  # named for what it is: busy, full disk, read-only, damaged
-        print(f"fieldcheck: {clean(store_error_sentence(exc, db_path(args)))}", file=sys.stderr)
-        return 2
     except OSError as exc:
         if isinstance(exc, BrokenPipeError):
             return _broken_pipe()
         print(f"fieldcheck: {clean(store_error_sentence(exc, 'a file'))}", file=sys.stderr)
+        return 2
+    except Exception as exc:
+        if not is_sqlite_error(exc):  # sqlite3 is imported only by commands that open a log
+            raise
+        # named for what it is: busy, full disk, read-only, damaged
+        print(f"fieldcheck: {clean(store_error_sentence(exc, db_path(args)))}", file=sys.stderr)
         return 2
 
 

@@ -24,7 +24,6 @@ one sentence, exit 2); it is never ignored silently.
 from __future__ import annotations
 
 import os
-import tomllib
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -69,6 +68,8 @@ def load(path: Path | None = None) -> Config:
     data: dict = {}
     read: Path | None = None
     if path.is_file():
+        import tomllib  # only when there is a file to read (start-up speed)
+
         try:
             data = tomllib.loads(path.read_text(encoding="utf-8"))
         except (OSError, UnicodeDecodeError) as exc:

@@ -374,19 +374,37 @@ def _factors() -> dict[tuple[str, str], tuple[float, float]]:
     return _FACTORS
 
 
-def _factors_file() -> Any:
-    """The stored factor table for this units table and this pint version (a change of either
-    names another file), or None when there is no usable cache folder."""
-    import hashlib
+def _pint_stamp() -> str:
+    """Which pint is installed, found without importing pint or importlib.metadata (start-up
+    speed): the path, size and modification time of the pint package that ``import pint`` would
+    load (an upgrade or reinstall writes it anew), else its distribution's version."""
+    import os
+    import sys
+
+    for entry in sys.path:
+        init = os.path.join(entry or os.curdir, "pint", "__init__.py")
+        try:
+            st = os.stat(init)
+        except OSError:
+            continue
+        return f"{os.path.abspath(init)} {st.st_size} {st.st_mtime_ns}"
     from importlib import metadata
+
+    try:
+        return metadata.version("pint")
+    except metadata.PackageNotFoundError:
+        return "unknown"
+
+
+def _factors_file() -> Any:
+    """The stored factor table for this units table and this pint (a change of either names
+    another file), or None when there is no usable cache folder."""
+    import hashlib
 
     folder = _cache_folder()
     if folder is None:
         return None
-    try:
-        pint_version = metadata.version("pint")
-    except metadata.PackageNotFoundError:
-        pint_version = "unknown"
+    pint_version = _pint_stamp()
     spec = sorted(
         (k.name, k.target, sorted(set(k.exact.values()) | set(k.anycase.values())))
         for k in _KINDS.values()

@@ -2,20 +2,28 @@
 
 from __future__ import annotations
 
-import sqlite3
+import sys
 
 
 class UsageError(Exception):
     """A problem with what the user asked for: printed as one sentence, exit code 2."""
 
 
-def store_error_sentence(exc: sqlite3.Error | OSError, db: str) -> str:
-    """A database or file error named for what it is (busy, full disk, read-only, damaged)."""
+def is_sqlite_error(exc: BaseException) -> bool:
+    """Whether ``exc`` is an sqlite3.Error, without importing sqlite3 (start-up speed: a command
+    that never opened a database cannot have raised one)."""
+    sqlite3 = sys.modules.get("sqlite3")
+    return sqlite3 is not None and isinstance(exc, sqlite3.Error)
+
+
+def store_error_sentence(exc: Exception, db: str) -> str:
+    """A database or file error (sqlite3.Error or OSError) named for what it is (busy, full disk,
+    read-only, damaged)."""
     from fieldcheck.store.faults import os_sentence, sqlite_sentence
 
-    if isinstance(exc, sqlite3.Error):
+    if is_sqlite_error(exc):
         return sqlite_sentence(exc, db)
-    return os_sentence(exc, exc.filename or "a file")
+    return os_sentence(exc, getattr(exc, "filename", None) or "a file")
 
 
 def clean(message: object) -> str:
