@@ -1,7 +1,7 @@
 """The office view (``fieldcheck --db postgresql://...``): every current post of every site on
 the hub, those awaiting review first (worst first among them), with the review keys.
 
-a accept the rating; o override the action (the action, then the reason); r require a remedy;
+a accept the rating; v override the action (the action, then the reason); r require a remedy;
 n a note; Enter opens the post. Each review is recorded at once (append-only, with the
 reviewer's name and the time) and goes to the hub when the interface closes or syncs (F9), so
 the inspector sees it beside the post at the next sync.
@@ -76,10 +76,11 @@ class OfficeScreen(Screen[None]):
     AUTO_FOCUS = "#review-queue"
     BINDINGS = [
         Binding("a", "review('accept')", "Accept", id="office_accept"),
-        Binding("o", "review('override')", "Override", id="office_override"),
+        # "v" (o is Open on every other screen: a key means one thing everywhere)
+        Binding("v", "review('override')", "Override", id="office_override"),
         Binding("r", "review('require-remedy')", "Remedy", id="office_remedy"),
         Binding("n", "review('note')", "Note", id="office_note"),
-        Binding("escape", "app.pop_screen", "Sites", id="office_back"),
+        Binding("escape", "app.pop_screen", "Back", id="office_back"),
         Binding("f1", "app.help", "Help", id="office_help"),
     ]
 

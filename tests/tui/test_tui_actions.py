@@ -1,13 +1,19 @@
 """The interface driven with Textual's Pilot, part two: a remedy proposed and later recorded as
-done, units, conflicts from a real two-log sync, defects added by kind, the working and the plot,
-the footer at 80 x 24, and the rating on screen at 60 x 20, 80 x 24 and 120 x 40."""
+done and a photo attached, conflicts from a real two-log sync, defects added by kind, the working
+and the plot, the footer at 80 x 24 and units, and the rating on screen at 60 x 20, 80 x 24 and
+120 x 40. Each test starts the app once and checks what only the screen shows; the logic behind
+it is tested headless (tests/tui/test_tui_model.py, tests/store)."""
 
 from __future__ import annotations
 
 from textual.widgets import DataTable, Footer, Input, Static
 
 
-async def test_a_remedy_is_a_proposal_and_the_post_stays_rated_as_found(db, ui) -> None:
+async def test_a_remedy_is_a_proposal_and_the_post_stays_rated_as_found(db, ui, tmp_path) -> None:
+    from PIL import Image
+
+    photo = tmp_path / "sill.jpg"
+    Image.new("RGB", (64, 48), (120, 90, 60)).save(photo)
     app = ui.app(db)
     async with app.run_test(size=(120, 40)) as pilot:
         await ui.open_post(app, pilot, "B3")  # bowed, over-loaded  # store/demo.py
@@ -57,18 +63,24 @@ async def test_a_remedy_is_a_proposal_and_the_post_stays_rated_as_found(db, ui) 
         assert state.state == "as remedied" and state.done_on == "2026-03-14"
         assert editor.summary["demand_capacity_ratio"] <= 1.0  # the remedied post passes
         assert "as remedied 2026-03-14" in str(editor.query_one("#editor-title", Static).content)
-
-
-async def test_f8_switches_the_displayed_units(db, ui) -> None:
-    app = ui.app(db, units="us")
-    async with app.run_test(size=(120, 30)) as pilot:
-        await ui.open_visit(app, pilot)
-        table = app.screen.query_one("#posts", DataTable)
-        assert any("lbf" in str(table.get_row_at(i)[-1]) for i in range(table.row_count))
-        await pilot.press("f8")
+        # ctrl+t: a photo of the saved post (asked again while the path is not a file)
+        await pilot.press("ctrl+t")
         await ui.settle(app, pilot)
-        assert app.units == "metric"
-        assert any("kN" in str(table.get_row_at(i)[-1]) for i in range(table.row_count))
+        assert type(app.screen).__name__ == "PhotoDialog"
+        app.screen.query_one("#photo-path", Input).value = str(tmp_path / "missing.jpg")
+        await pilot.press("enter")
+        await ui.settle(app, pilot)
+        assert type(app.screen).__name__ == "PhotoDialog"  # not a file: asked again, kept open
+        app.screen.query_one("#photo-path", Input).value = str(photo)
+        await pilot.press("enter")
+        await ui.settle(app, pilot)
+        app.screen.query_one("#photo-caption", Input).value = "decay at the sill"
+        await pilot.press("enter")
+        await ui.settle(app, pilot, 0.2)
+        assert app.screen is editor
+        atts = await app.store.call(lambda log: log.attachments(member))
+        assert [a.caption for a in atts] == ["decay at the sill"]
+        assert len(atts[0].sha256) == 64  # SHA-256 of the file, hex
 
 
 async def test_conflicts_screen_lists_a_post_revised_in_two_places(own_log, tmp_path, ui) -> None:
@@ -209,6 +221,16 @@ async def test_footer_at_80_by_24_and_one_meaning_per_key(db, ui) -> None:
         for needed in ("Open", "New post", "Back", "Help"):
             assert needed in footer_keys(app), needed
         same_everywhere()
+        # F8 switches the units the list shows (the load column, last)
+        table = app.screen.query_one("#posts", DataTable)
+        loads = [str(table.get_row_at(i)[-1]) for i in range(table.row_count)]
+        assert any("lbf" in x for x in loads)
+        await pilot.press("f8")
+        await ui.settle(app, pilot)
+        assert app.units == "metric"
+        assert any("kN" in str(table.get_row_at(i)[-1]) for i in range(table.row_count))
+        await pilot.press("f8")
+        await ui.settle(app, pilot)
         await pilot.press("f1")
         await ui.settle(app, pilot)
         helptext = "\n".join(str(w.content) for w in app.screen.query(Static))
@@ -239,32 +261,3 @@ async def test_ratio_action_and_governing_check_stay_on_screen_while_typing(db, 
                     assert lines[k].startswith(word)
                     assert screen.y <= head.region.y + k < screen.bottom, (size, field, word)
                 assert head.region.right <= size[0]
-
-
-async def test_ctrl_t_attaches_a_photo_to_the_saved_post(db, ui, tmp_path) -> None:
-    from PIL import Image
-
-    photo = tmp_path / "sill.jpg"
-    Image.new("RGB", (64, 48), (120, 90, 60)).save(photo)
-    app = ui.app(db)
-    async with app.run_test(size=(120, 40)) as pilot:
-        await ui.open_post(app, pilot, "B3")
-        editor = app.screen
-        member = editor.member_id
-        await pilot.press("ctrl+t")
-        await ui.settle(app, pilot)
-        assert type(app.screen).__name__ == "PhotoDialog"
-        app.screen.query_one("#photo-path", Input).value = str(tmp_path / "missing.jpg")
-        await pilot.press("enter")
-        await ui.settle(app, pilot)
-        assert type(app.screen).__name__ == "PhotoDialog"  # not a file: asked again, kept open
-        app.screen.query_one("#photo-path", Input).value = str(photo)
-        await pilot.press("enter")
-        await ui.settle(app, pilot)
-        app.screen.query_one("#photo-caption", Input).value = "decay at the sill"
-        await pilot.press("enter")
-        await ui.settle(app, pilot, 0.2)
-        assert app.screen is editor
-        atts = await app.store.call(lambda log: log.attachments(member))
-        assert [a.caption for a in atts] == ["decay at the sill"]
-        assert len(atts[0].sha256) == 64  # SHA-256 of the file, hex

@@ -109,9 +109,10 @@ def post_burst(location: str, size: str, load: str, defect: list[str]) -> list[s
 
 
 async def test_posts_typed_in_one_burst_on_a_slow_machine(db, ui, monkeypatch) -> None:
-    """The whole of two posts, ctrl+s, Esc and the next ctrl+n included, sent as one burst of
-    terminal bytes while saving and rating are slow (a loaded machine): each post gets exactly
-    its own keys. (Esc straight before ctrl+n once read as Alt+ctrl+n: the Esc was lost.)"""
+    """A whole post, ctrl+s, Esc, the next ctrl+n and the next post's first field, sent as one
+    burst of terminal bytes while saving and rating are slow (a loaded machine): each post gets
+    exactly its own keys. (Esc straight before ctrl+n once read as Alt+ctrl+n: the Esc was lost
+    and the next post's text went into this post's last field.)"""
     import time
 
     from fieldcheck.store import Log
@@ -120,7 +121,7 @@ async def test_posts_typed_in_one_burst_on_a_slow_machine(db, ui, monkeypatch) -
     save_post, rerate = Log.save_post, PostEditor.rerate
 
     def slow_save(self, *args, **kwargs):
-        time.sleep(0.3)
+        time.sleep(0.2)
         return save_post(self, *args, **kwargs)
 
     def slow_rerate(self):
@@ -135,22 +136,19 @@ async def test_posts_typed_in_one_burst_on_a_slow_machine(db, ui, monkeypatch) -
         visit = app.screen
         before = len(visit.posts)
         keys = post_burst("cellar, north bay", "6x6", "9000 lbf", [*"decay", "enter", *"1in"])
-        keys += post_burst("cellar, middle", "4x4", "5000 lbf", [*"bow", "enter", *"3/4in"])
+        keys += ["ctrl+n", "enter", *"cellar, middle"]
         # as the terminal sends them: bytes, all read at once, through the app's own parser
         parser = app.driver_class.run_input_thread.__globals__["XTermParser"]()
         for event in parser.feed("".join(TERMINAL_BYTES.get(k, k) for k in keys)):
             app.post_message(event)
-        await pilot.pause(0.15)  # the last Esc: the terminal sends nothing after it
-        for event in parser.tick():
-            app.post_message(event)
         await ui.drain(app, pilot)
-        await ui.settle(app, pilot, 0.4)
-        assert app.screen is visit
+        await ui.settle(app, pilot)
+        editor = app.screen
+        assert type(editor).__name__ == "PostEditor" and editor.member_id is None
+        assert editor.query_one("#f-location", Input).value == "cellar, middle"
         posts = await app.store.call(lambda log: log.posts(visit.visit_id))
-        assert len(posts) == before + 2
-        first, second = (p.record for p in posts[-2:])
+        assert len(posts) == before + 1
+        first = posts[-1].record
         assert first["location"] == "cellar, north bay" and first["load"] == "9000 lbf"
         assert first["decay_wide"] == "1in" and first["size"] == "6x6"
-        assert second["location"] == "cellar, middle" and second["load"] == "5000 lbf"
-        assert second["bow_weak"] == "3/4in" and second["size"] == "4x4"
-        assert first["species"] == second["species"] == "douglas-fir-larch"
+        assert first["species"] == "douglas-fir-larch"

@@ -130,3 +130,34 @@ def test_sync_summary_in_the_inspectors_words():
     assert "ratings" not in s and "observations" not in s
     quiet = SimpleNamespace(sent={}, received={}, conflicts=[], refused=[])
     assert "nothing to send" in present.sync_sentence(quiet)
+
+
+def test_a_key_means_one_thing_on_every_screen():
+    # F5 was Reload on one screen and Remedies on another; "New visit" / "New post" is one
+    # meaning (new, of what the screen lists): compared by the description's first word
+    from fieldcheck.tui.app import FieldcheckApp
+    from fieldcheck.tui.editor import PostEditor
+    from fieldcheck.tui.office import OfficeScreen
+    from fieldcheck.tui.sites import SitesScreen
+    from fieldcheck.tui.visit import VisitScreen
+
+    meaning: dict[str, tuple[str, str]] = {}
+    for cls in (FieldcheckApp, SitesScreen, VisitScreen, PostEditor, OfficeScreen):
+        for b in cls.BINDINGS:
+            if not b.description:
+                continue
+            first = b.description.split()[0]
+            for key in b.key.split(","):
+                seen = meaning.setdefault(key.strip(), (first, cls.__name__))
+                assert seen[0] == first, (key, seen, cls.__name__, b.description)
+    assert meaning["f5"][0] == "Remedies" and meaning["ctrl+l"][0] == "Reload"
+
+
+def test_tab_names_carry_the_keys_that_open_them():
+    from fieldcheck.tui.editor import PostEditor
+
+    keys = {b.action: b.key for b in PostEditor.BINDINGS if b.action.startswith("tab(")}
+    names = {b.action: b.description for b in PostEditor.BINDINGS if b.action.startswith("tab(")}
+    assert len(keys) == 5
+    for action, key in keys.items():
+        assert key.startswith("f") and names[action]
