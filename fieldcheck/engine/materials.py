@@ -7,6 +7,7 @@ are returned in MPa.
 
 from __future__ import annotations
 
+import math
 from functools import cache
 
 from fieldcheck.engine.customary import PSI
@@ -253,6 +254,181 @@ def reference_values(
         assumed=False,
         cf_included=False,
     )
+    return out
+
+
+def _lower(parts: list[dict], table_words: str) -> dict:
+    """Each property the lowest over some value sets, with the weakest status of its column."""
+    out: dict = {p: min(v[p] for v in parts) for p in (*PROPERTIES, "g")}
+    statuses = {p: weakest(v["statuses"][p] for v in parts) for p in (*PROPERTIES, "g")}
+    out.update(
+        wet_tabulated=all(v["wet_tabulated"] for v in parts),  # else CM applies: conservative
+        knowledge=min(v["knowledge"] for v in parts),
+        table=table_words + " of " + ", ".join(dict.fromkeys(v["table"] for v in parts)),
+        statuses=statuses,
+        status=weakest(statuses.values()),
+        assumed=any(v["assumed"] for v in parts),
+        cf_included=True,
+        timber=any(v.get("timber", False) for v in parts),
+    )
+    return out
+
+
+@cache
+def round_values(species: str, grade: str) -> dict:
+    """Values for a round post (MPa): no table is for round sawn posts, so each property is the
+    lower of the dimension-lumber value (the lowest over the widths, no size factor) and the
+    Posts and Timbers value of the species and grade, where each is held (judgement,
+    conservative; NDS 2018 §3.7.3 stays for its stability). The same at every diameter, so a
+    larger round post never rates lower. ``timber``: the Posts and Timbers values are among them
+    (the wet service factors of timbers then apply).
+    """
+    parts = []
+    for cat in ("dimension", "timber"):
+        try:
+            v = dict(reference_values(species, grade, cat))
+        except ValueError:
+            if cat == "dimension":
+                raise
+            v = _lowest_timber(species)  # a grade not held as timber: never above a timber
+        v["timber"] = cat == "timber"
+        parts.append(v)
+    return _lower(parts, "round post: lower")
+
+
+def _lowest_timber(species: str) -> dict:
+    """The lowest Posts and Timbers value of each property over the grades held for the species,
+    or over every species where the species has none (a round post of a grade or species not
+    held as timber is never rated above a timber; judgement, conservative)."""
+    pool = [
+        r for (s, _, c), rows in _rows().items() if c == "timber" and s == species for r in rows
+    ]
+    if not pool:
+        pool = [r for (_, _, c), rows in _rows().items() if c == "timber" for r in rows]
+    out: dict = {p: min(float(r[f"{p}_psi"]) for r in pool) * PSI for p in PROPERTIES}
+    statuses = {p: weakest(r[f"{p}_status"] for r in pool) for p in (*PROPERTIES, "g")}
+    out.update(
+        g=min(float(r["g"]) for r in pool),
+        wet_tabulated=all(r["wet_tabulated"] == "1" for r in pool),
+        knowledge=1.0,
+        table="the lowest " + ", ".join(sorted({r["table"] for r in pool})),
+        statuses=statuses,
+        status=weakest(statuses.values()),
+        assumed=False,
+        cf_included=False,
+    )
+    return out
+
+
+def _folded(species: str, grade: str, category: str, width_nom: int, thick_nom: int):
+    """Values (MPa) with the size factors folded into Fc and Fb, or None where the species and
+    grade are not graded at that size."""
+    try:
+        rv = dict(reference_values(species, grade, category, width_nom, thick_nom))
+        cf_fc, cf_fb = (
+            (1.0, 1.0) if rv["cf_included"] else size_factors(species, grade, width_nom, thick_nom)
+        )
+    except ValueError:
+        return None
+    rv["fc"] *= cf_fc
+    rv["fb"] *= cf_fb
+    rv["timber"] = category != "dimension"
+    return rv
+
+
+def _timber_lower(species: str, grade: str, depth_in: float):
+    """A timber of unknown class (a measured one): the lower of Posts and Timbers and Beams and
+    Stringers values (Cfu on Fb of the latter), with CF = (12/d)^(1/9) on Fb for the depth d
+    past 12 in taken continuously (NDS 2018 §4.3.6.2). None where no timber values are held."""
+    parts = [
+        v
+        for v in (
+            _folded(species, grade, "timber", 12, 12),
+            _folded(species, grade, "beams-stringers", 12, 5),
+        )
+        if v is not None
+    ]
+    if not parts:
+        return None
+    out = _lower(parts, "lower")
+    if depth_in > 12.0:
+        out["fb"] *= (12.0 / depth_in) ** (1.0 / 9.0)
+    return out
+
+
+def dressed_width_in(nominal: int) -> float:
+    """Dressed width of dimension lumber (NDS Supplement Table 1A): nominal - 1/2 in up to 6 in,
+    - 3/4 in from 8 in."""
+    return nominal - 0.5 if nominal <= 6 else nominal - 0.75
+
+
+TIMBER_MIN_IN = 4.5 - 1.0 / 25.4  # sections.is_timber: 5 in nominal, 4.5 in dressed, 1 mm slack
+_WIDEST_STEP = 14  # no size factor or width row changes past 12 in nominal
+
+
+@cache
+def measured_values(species: str, grade: str, d1_in: float, d2_in: float) -> dict:
+    """Values (MPa, size factors folded in) for a measured section with no nominal size.
+
+    Its grading class is not known, so a measured post never rates above a larger section of the
+    same description (judgement, conservative): each value is no more than that of any larger
+    section where the values step down, scaled by what the check takes of the section (area for
+    Fc; area x d^2 for E and Emin, the Euler load about the thin side d, which governs when both
+    axes are restrained alike; the smaller section modulus for Fb). Those sections are
+    the start of every wider nominal-width band (its size factor or Southern Pine width row,
+    NDS Supplement Tables 4A, 4B) and the smallest timber that holds the post (4.5 in thick,
+    NDS Supplement Table 4D; the lower of Posts and Timbers and Beams and Stringers). A measured
+    timber takes that lower of the two timber classes. ``capped``: the values a larger section
+    held down ('' none, 'wider', 'timber').
+    """
+    if d2_in >= TIMBER_MIN_IN:
+        own = _timber_lower(species, grade, d1_in)
+        if own is None:
+            reference_values(species, grade, "timber")  # raises the message naming what is held
+            raise ValueError(f"grade: no timber values held for {species} {grade}.")
+        return {**own, "capped": "", "table": own["table"] + " (measured timber)"}
+    n = math.ceil(d1_in + (0.5 if d1_in <= 5.5 + 1e-6 else 0.75) - 1e-6)
+    own = _folded(species, grade, "dimension", n, 4)
+    if own is None:
+        reference_values(species, grade, "dimension", n, 4)  # raises its own message
+        size_factors(species, grade, n, 4)
+        raise ValueError(f"size: {species} {grade} is not graded at {n} in nominal width.")
+    corners = []
+    for m in range(n + 1, _WIDEST_STEP + 1):
+        v = _folded(species, grade, "dimension", m, 4)
+        if v is not None:
+            corners.append(("wider", dressed_width_in(m - 1), d2_in, v))
+    big = max(d1_in, TIMBER_MIN_IN)  # the thinnest section rated as a timber
+    tl = _timber_lower(species, grade, big)
+    if tl is not None:
+        corners.append(("timber", big, TIMBER_MIN_IN, tl))
+    out = dict(own)
+    out["capped"] = ""
+    a = d1_in * d2_in
+    s1, s2 = d2_in * d1_in * d1_in, d1_in * d2_in * d2_in
+    for why, c1, c2, v in corners:
+        ac = c1 * c2
+        euler = ac / a * (c2 / d2_in) ** 2  # about the thin side, which buckles first
+        bend = min(c2 * c1 * c1 / s1, c1 * c2 * c2 / s2)
+        for p, scale in (
+            ("fc", ac / a),
+            ("fc_perp", ac / a),
+            ("e", euler),
+            ("emin", euler),
+            ("fb", bend),
+        ):
+            cap = v[p] * scale
+            if cap < out[p] * (1.0 - 1e-12):
+                out[p] = cap
+                out["statuses"] = {
+                    **out["statuses"],
+                    p: weakest((out["statuses"][p], v["statuses"][p])),
+                }
+                if p == "fc":  # Fc decides the class the post is rated in
+                    out["capped"], out["timber"] = why, v["timber"]
+                elif not out["capped"]:
+                    out["capped"] = why
+    out["status"] = weakest(out["statuses"].values())
     return out
 
 

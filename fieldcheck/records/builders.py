@@ -86,12 +86,16 @@ def section_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
         raise RowError(
             "size", "size: give a nominal size (e.g. 4x4), a measured --section or a --diameter."
         )
+    class_from = "round" if "diameter" in row else "measured" if thick_nom is None else "nominal"
     if thick_nom is None:
         timber = bool(sections.is_timber(np.array([d2]))[0])
         thick_nom = 5 if timber else 4
         width_nom = int(sections.nominal_width_in(np.array([d1]))[0])
     f.update(d1_mm=d1, d2_mm=d2)
     out["_d1"], out["_d2"] = d1, d2
+    # where the grading class comes from: the nominal size (its own table), a round post or a
+    # measured section with no nominal size (materials.round_values / measured_values)
+    out["_class_from"] = class_from
     # NDS 2018 §4.1.3: dimension lumber, Posts and Timbers or Beams and Stringers by size
     out["_category"] = materials.size_class(int(thick_nom), int(width_nom))
     out["_width_nom"], out["_thick_nom"] = int(width_nom), int(thick_nom)
@@ -147,16 +151,24 @@ def material_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
     species = row.get("species", "unknown")
     grade = row.get("grade", "unknown")
     cat = out["_category"]
+    class_from = out.get("_class_from", "nominal")
+    w, t = out["_width_nom"], out["_thick_nom"]
     try:
-        # a round post takes no size factor, so its unknown bound is over the raw values
-        round_post = "diameter" in row
-        w, t = (None, None) if round_post else (out["_width_nom"], out["_thick_nom"])
-        rv = materials.reference_values(species, grade, cat, w, t)
-        cf_fc, cf_fb = materials.size_factors(species, grade, out["_width_nom"], out["_thick_nom"])
+        if class_from == "round":  # no table for round sawn posts: the lower class, no CF
+            rv = materials.round_values(species, grade)
+        elif class_from == "measured":  # class unknown: never above a larger section
+            rv = materials.measured_values(
+                species, grade, round(out["_d1"] / IN, 6), round(out["_d2"] / IN, 6)
+            )
+        else:
+            rv = materials.reference_values(species, grade, cat, w, t)
+            cf_fc, cf_fb = materials.size_factors(species, grade, w, t)
     except ValueError as exc:
         raise RowError("grade", str(exc)) from None
-    if round_post or rv["cf_included"]:
-        cf_fc, cf_fb = 1.0, 1.0  # round: no CF; unknown bound: each candidate's CF included
+    if class_from != "nominal":
+        f["product"] = TIMBER if rv["timber"] else DIMENSION
+    if rv["cf_included"] or class_from != "nominal":
+        cf_fc, cf_fb = 1.0, 1.0  # folded into the values (unknown bound, round, measured)
     f.update(
         fc_mpa=rv["fc"],
         fc_perp_mpa=rv["fc_perp"],
@@ -168,16 +180,21 @@ def material_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
         wet_tabulated=rv["wet_tabulated"],
         knowledge=rv["knowledge"],
     )
-    took = " (No.3 values: Stud wider than 6 in)" if grade == "stud" and w and w > 6 else ""
-    out["_material"] = f"{species} {grade}{took} ({rv['table']}, {rv['status']})"
+    took = ""
+    if grade == "stud" and w > 6 and class_from == "nominal":
+        took = " (No.3 values: Stud wider than 6 in)"
+    capped = {
+        "wider": "; measured, no nominal size: no more than a wider piece's",
+        "timber": "; measured, no nominal size: no more than the 4.5 in thick timber's",
+    }.get(rv.get("capped", ""), "")
+    out["_material"] = f"{species} {grade}{took} ({rv['table']}{capped}, {rv['status']})"
+    out["_value_statuses"] = dict(rv["statuses"])
     # where the values came from and how sure (read / secondary / memory), for every person
     # who sees the rating: CLI, --json, interface, report (meta of parse_records)
     out["_values_status"] = rv["status"]
-    tables = rv["table"].removeprefix("lowest of ")
+    tab = rv["table"]  # '4A', '4B (5-6 in wide)', 'lowest of 4A, 4D ...', 'round post: ...'
     out["_values_source"] = (
-        f"NDS Supplement 2018 Table {tables}"
-        if tables == rv["table"]
-        else f"NDS Supplement 2018, the lowest of Tables {tables}"
+        f"NDS Supplement 2018 Table {tab}" if tab[:1].isdigit() else f"NDS Supplement 2018, {tab}"
     )
     out["_e_mpa"] = rv["e"]
     if method == LRFD:
