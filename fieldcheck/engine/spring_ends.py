@@ -60,21 +60,31 @@ def braced_ke(b: PostBatch, idx: np.ndarray, axis: int) -> tuple[np.ndarray, np.
     klt, klb = np.where(t_top, 0.0, np.inf), np.where(t_bot, 0.0, np.inf)
     frac = braces / h[:, None]
 
-    def solve(r_top, r_bot):
+    def solve(r_top, r_bot, copies=1):
+        # several cases of the same posts in one solver call (the solver's cost is mostly per
+        # call; each post is solved on its own, so the numbers are those of separate calls)
         return stability.effective_length_factor(
-            1.0, 1.0, r_top, r_bot, klt, klb, frac, on_mechanism="nan"
+            1.0,
+            1.0,
+            r_top,
+            r_bot,
+            np.tile(klt, copies),
+            np.tile(klb, copies),
+            np.tile(frac, (copies, 1)),
+            on_mechanism="nan",
         )
 
-    k = solve(rt, rb)
     if b.theoretical_k[idx].all():
+        k = solve(rt, rb)
         return k, k
     # the bracketing ideal cases WITH the same braces: spring ends taken as fixed (stiff) and as
     # pinned (flexible); each gets the NDS margin of its ideal case (recommended / theoretical Ke,
     # NDS 2018 Appendix G), and the solved K is mapped linearly between them (judgement, as
     # stability.design_k does for posts without braces)
     spring_t, spring_b = ~np.isnan(b.r_top[idx]), ~np.isnan(b.r_bottom[idx])
-    k_s = solve(np.where(spring_t, np.inf, rt), np.where(spring_b, np.inf, rb))
-    k_f = solve(np.where(spring_t, 0.0, rt), np.where(spring_b, 0.0, rb))
+    r_tops = (rt, np.where(spring_t, np.inf, rt), np.where(spring_t, 0.0, rt))
+    r_bots = (rb, np.where(spring_b, np.inf, rb), np.where(spring_b, 0.0, rb))
+    k, k_s, k_f = np.split(solve(np.concatenate(r_tops), np.concatenate(r_bots), 3), 3)
     m_s = _margin(_stiff_code(top, spring_t), _stiff_code(bot, spring_b))
     m_f = _margin(_flex_code(top, spring_t), _flex_code(bot, spring_b))
     m_f = np.where(
