@@ -5,6 +5,12 @@ from __future__ import annotations
 import os
 
 import pytest
+from hypothesis import settings
+
+# No timing asserts in tests (DEVELOPERS.md): hypothesis's deadline per example is one, and a
+# loaded machine or the other test worker can trip it. Each test sets its own example count.
+settings.register_profile("fieldcheck", deadline=None)
+settings.load_profile("fieldcheck")
 
 try:
     import fcntl
