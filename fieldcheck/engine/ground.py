@@ -1,4 +1,4 @@
-"""The ground under a post, bearing plates, the governing load combination and bracing demand.
+"""The ground under a post and bearing plates.
 
 The ``GROUND`` stage of the rating (rating.STAGES), so these are part of the same rating:
 
@@ -14,9 +14,8 @@ The ``GROUND`` stage of the rating (rating.STAGES), so these are part of the sam
   post's thickness across (the cap or sill may be no wider than the post: judgement), with Cb
   for the plate length (NDS 2018 §3.10.2, §3.10.4); the plate is assumed stiff enough to spread
   the load (judgement: at least 1/2 in steel, engineer to confirm).
-- bracing demand (not a capacity check): what the shore's bracing must carry, from
-  :func:`fieldcheck.engine.loads.lateral_demand`, in ``values['lateral_n']``.
-- the JSON summary: ``load_combination``, ``ground`` and ``bracing`` keys.
+- the JSON summary: the ``ground`` key. (The governing load combination, a shared load and the
+  bracing demand are the load stages', engine/load_stages.py.)
 
 Why these action levels (judgement): unprepared ground (mud, organic soil, uncompacted fill) has
 no presumptive value at all in IBC 2012 §1806.2 and soft ground under a mudsill is a
@@ -28,16 +27,13 @@ flagged and the post is at least monitored until the soil is classified or the 1
 
 from __future__ import annotations
 
-from functools import cache
-
 import numpy as np
 
 from fieldcheck.engine import loads, nds
 from fieldcheck.engine import quantities as q
-from fieldcheck.engine.batch import EC5, LRFD, PostBatch
+from fieldcheck.engine.batch import EC5, PostBatch
 from fieldcheck.engine.blocks import filled
 from fieldcheck.engine.customary import FT, LBF
-from fieldcheck.engine.refdata import table
 from fieldcheck.engine.result import Check, Rating, Step
 from fieldcheck.engine.stage import Flag, FlagSet, Stage
 
@@ -88,24 +84,7 @@ FLAGS = (
         "the "
         "post's thickness across; plates assumed stiff enough to spread the load (judgement).",
     ),
-    Flag(
-        "shared",
-        "Load shared by posts side by side: each carries an equal share only under a stiff cap "
-        "(judgement); check the cap.",
-    ),
 )
-
-
-@cache
-def combination_rows() -> tuple[dict[str, str], ...]:
-    """Rows of data/load_combinations.csv; PostBatch.combo indexes this tuple."""
-    return tuple(table("load_combinations"))
-
-
-@cache
-def lateral_rows() -> tuple[dict[str, str], ...]:
-    """Rows of data/shore_lateral.csv; PostBatch.lateral_rule indexes this tuple."""
-    return tuple(table("shore_lateral"))
 
 
 def effective_pad_area_mm2(b: PostBatch) -> np.ndarray:
@@ -126,14 +105,12 @@ def effective_pad_area_mm2(b: PostBatch) -> np.ndarray:
 
 
 def _block_is_plain(b: PostBatch) -> bool:
-    """No pad, soil, plate, lateral rule or shared load anywhere in this block."""
+    """No pad, soil or plate anywhere in this block."""
     return (
         np.isnan(b.pad_area_mm2).all()
         and np.isnan(b.soil_kpa).all()
         and not b.soil_flags.any()
         and np.isnan(b.plate_lb_mm).all()
-        and not np.any(b.lateral_rule >= 0)
-        and not np.any(b.shared_by > 1)
     )
 
 
@@ -144,9 +121,6 @@ def _ground_checks(b: PostBatch, checks: dict, values: dict) -> None:
             pad_area_eff=nan,
             soil_capacity=nan,
             soil_given=filled(False, b.n),
-            lateral_n=nan,
-            lateral_min_n=nan,
-            lateral_thrust_n=nan,
             ground_plain=True,
         )
         checks["soil_bearing"] = Check(
@@ -180,35 +154,6 @@ def _ground_checks(b: PostBatch, checks: dict, values: dict) -> None:
                 c.capacity_n = np.where(plate, p, c.capacity_n)
         values["plate_area"] = np.where(plate, a_plate, np.nan)
 
-    # bracing demand: what the bracing must carry, not a capacity (loads.lateral_demand)
-    lat = np.full(b.n, np.nan)
-    lat_min = np.full(b.n, np.nan)
-    lat_thrust = np.full(b.n, np.nan)
-    has_load = ~np.isnan(b.load_n)
-    for r, row in enumerate(lateral_rows()):
-        m = (b.lateral_rule == r) & has_load
-        if not m.any():
-            continue
-        edge = b.lateral_edge_mm[m]
-        lean = np.nan_to_num(b.lean_mm[m], nan=0.0)
-        d = loads.lateral_demand(
-            b.load_n[m],
-            row["key"],
-            offset_mm=lean,
-            height_mm=b.height_mm[m],
-            dead_n=b.load_n[m],
-            floor_edge_mm=np.nan_to_num(edge, nan=0.0) if row["key"] == "cal-osha" else None,
-        )
-        bad = np.isnan(edge) if row["key"] == "cal-osha" else np.zeros(edge.shape, bool)
-        lat[m] = np.where(bad, np.nan, d.total_n)
-        lat_min[m] = np.where(bad, np.nan, d.minimum_n)
-        lat_thrust[m] = d.thrust_n
-    values["lateral_n"], values["lateral_min_n"], values["lateral_thrust_n"] = (
-        lat,
-        lat_min,
-        lat_thrust,
-    )
-
 
 def _ground_flags(b: PostBatch, values: dict, flag: FlagSet) -> None:
     if values.get("ground_plain"):
@@ -225,7 +170,6 @@ def _ground_flags(b: PostBatch, values: dict, flag: FlagSet) -> None:
     flag("pad_missing", soil_given & ~np.isnan(b.soil_kpa) & ~has_pad)
     flag("pad_rigid", has_pad & np.isnan(b.pad_t_mm))
     flag("plate", ~np.isnan(b.plate_lb_mm) & (b.method != EC5))
-    flag("shared", b.shared_by > 1)
 
 
 # ---- per post, on demand: working and summary ------------------------------------------------
@@ -237,33 +181,6 @@ def _lbf(x: float) -> float | None:
 
 def _kn(x: float) -> float | None:
     return None if np.isnan(x) else round(float(x) / 1000.0, 4)
-
-
-def _factor_name(method: int) -> str:
-    return {LRFD: "lambda", EC5: "kmod"}.get(method, "CD")
-
-
-def load_combination(r: Rating, i: int) -> dict:
-    """The governing combination of post i (or the load as given) with its factor."""
-    b = r.batch
-    method = int(b.method[i])
-    fname = _factor_name(method)
-    factor = float({LRFD: b.lam, EC5: b.kmod}.get(method, b.cd)[i])
-    k = int(b.combo[i])
-    out = {
-        "factor_name": fname,
-        "factor": round(factor, 4),
-        "load_lbf": _lbf(b.load_n[i]),
-        "load_kN": _kn(b.load_n[i]),
-        "shared_by": int(b.shared_by[i]),
-    }
-    if k < 0:
-        out.update(name="as given (--load)", key=None, clause="")
-    else:
-        row = combination_rows()[k]
-        clause = row["clause"] + ("; NDS 2018 §2.3.2" if fname == "CD" else "")
-        out.update(name=row["name"], key=row["key"], clause=clause)
-    return out
 
 
 def ground_summary(r: Rating, i: int) -> dict | None:
@@ -287,55 +204,15 @@ def ground_summary(r: Rating, i: int) -> dict | None:
     }
 
 
-def bracing_summary(r: Rating, i: int) -> dict | None:
-    b, v = r.batch, r.values
-    k = int(b.lateral_rule[i])
-    if k < 0:
-        return None
-    row = lateral_rows()[k]
-    return {
-        "rule": row["key"],
-        "clause": row["source"],
-        "minimum_lbf": _lbf(v["lateral_min_n"][i]),
-        "thrust_lbf": _lbf(v["lateral_thrust_n"][i]),
-        "total_lbf": _lbf(v["lateral_n"][i]),
-        "total_kN": _kn(v["lateral_n"][i]),
-        "note": "what the bracing must carry in each direction; not a capacity check",
-    }
-
-
 def _summary(r: Rating, i: int, out: dict) -> None:
-    out["load_combination"] = load_combination(r, i)
     g = ground_summary(r, i)
     if g is not None:
         out["ground"] = g
-    br = bracing_summary(r, i)
-    if br is not None:
-        out["bracing"] = br
 
 
 def ground_steps(r: Rating, i: int) -> list[Step]:
     b, v = r.batch, r.values
     s: list[Step] = []
-    lc = load_combination(r, i)
-    if lc["key"] is not None:
-        s.append(
-            Step(
-                f"Governing load combination (every combination rated for every check; this "
-                f"one gives the largest ratio of the governing check, {lc['factor_name']})",
-                f"{lc['name']}: {q.force(b.load_n[i] * b.shared_by[i])}, {lc['factor_name']} = "
-                f"{lc['factor']}",
-                lc["clause"],
-            )
-        )
-    if b.shared_by[i] > 1:
-        s.append(
-            Step(
-                "Load per post, shared equally under a stiff cap",
-                f"1/{int(b.shared_by[i])}: {q.force(b.load_n[i])}",
-                "judgement",
-            )
-        )
     g = ground_summary(r, i)
     if g is not None:
         if g["pad_area_ft2"] is not None:
@@ -366,21 +243,10 @@ def ground_steps(r: Rating, i: int) -> list[Step]:
                     "IBC 2012 Table 1806.2",
                 )
             )
-    br = bracing_summary(r, i)
-    if br is not None and br["total_lbf"] is not None:
-        s.append(
-            Step(
-                "Bracing must carry (minimum + out-of-plumb thrust)",
-                f"{q.force(v['lateral_min_n'][i])} + {q.force(v['lateral_thrust_n'][i])} = "
-                f"{q.force(v['lateral_n'][i])}",
-                br["clause"] + "; statics P x lean / h",
-            )
-        )
     return s
 
 
-# the ground under the post, and the loads it carries: the governing combination, a load shared
-# under a stiff cap, and what the bracing must carry
+# the ground under the post (soil, pad) and steel bearing plates at the cap and sill
 GROUND = Stage(
     name="ground",
     inputs=(
@@ -391,13 +257,13 @@ GROUND = Stage(
         "soil_kpa",
         "soil_flags",
         "plate_lb_mm",
-        "lateral_rule",
-        "lateral_edge_mm",
-        "lean_mm",
-        "shared_by",
-        "combo",
         "load_n",
-        "height_mm",
+        "d1_mm",
+        "d2_mm",
+        "top_fc_perp_mpa",
+        "bottom_fc_perp_mpa",
+        "top_cb",
+        "bottom_cb",
         "method",
     ),
     checks=("soil_bearing",),

@@ -20,14 +20,15 @@ from fieldcheck.engine.column import COLUMN, ENDS
 from fieldcheck.engine.condition import CONDITION
 from fieldcheck.engine.ec5_rating import EC5_STAGE
 from fieldcheck.engine.ground import GROUND
+from fieldcheck.engine.load_stages import BRACING, LOADS
 from fieldcheck.engine.result import NOT_RATED, RATIO_BANDS, Check, Rating
 from fieldcheck.engine.stage import FlagSet, FlagTable
 
 # The rating, in order: end conditions and effective lengths; the column and bearing checks on
 # the section as found; the condition's own checks (eccentricity and bow, net section); EN
-# 1995-1-1 in place of NDS for the EC5 posts; the ground, the governing load combination and
-# the bracing demand.
-STAGES = (ENDS, COLUMN, CONDITION, EC5_STAGE, GROUND)
+# 1995-1-1 in place of NDS for the EC5 posts; the load combinations (the governing one, a
+# shared load); the ground and bearing plates; the bracing demand.
+STAGES = (ENDS, COLUMN, CONDITION, EC5_STAGE, LOADS, GROUND, BRACING)
 FLAGS = FlagTable(STAGES)
 
 

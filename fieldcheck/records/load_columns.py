@@ -17,7 +17,7 @@ import numpy as np
 from fieldcheck import units
 from fieldcheck.engine import loads, materials
 from fieldcheck.engine.batch import EC5, METHOD_NAMES
-from fieldcheck.engine.ground import lateral_rows
+from fieldcheck.engine.load_stages import lateral_rows
 from fieldcheck.engine.refdata import table
 from fieldcheck.records.core_columns import (
     DURATION_ALIASES,
