@@ -277,7 +277,8 @@ def choices_text(col: Any) -> str:
 def field_row(col: Any, value: str) -> Horizontal:
     """One field: its name and its input (the message line is added on demand)."""
     fid, _ = field_ids(col.name)
-    hint = choices_text(col) or col.default or (f"e.g. {col.example}" if col.example else "")
+    hint = choices_text(col) or (f"{col.default} (default)" if col.default else "")
+    hint = hint or (f"e.g. {col.example}" if col.example else "")  # never read as typed
     if col.choices:
         suggester = SuggestFromList(col.choices, case_sensitive=False)
     elif col.flag:

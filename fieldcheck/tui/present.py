@@ -223,7 +223,8 @@ def check_lines(summary: dict[str, Any] | None) -> list[str]:
     out = ["[b]Checks[/b] (ratio, clause)"]
     for c in (summary or {}).get("checks") or []:
         r = c.get("ratio")
-        mark = "✖" if (r is not None and r > 1.0) else "✓"
+        # no ratio (no load: not rated) is never a tick
+        mark = "?" if r is None or r != r else ("✖" if r > 1.0 else "✓")
         out.append(
             f" {mark} {ratio_text(r)} {escape(c.get('label', c.get('name', '')))} "
             f"({escape(c.get('clause', ''))})"

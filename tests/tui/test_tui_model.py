@@ -161,3 +161,22 @@ def test_tab_names_carry_the_keys_that_open_them():
     assert len(keys) == 5
     for action, key in keys.items():
         assert key.startswith("f") and names[action]
+
+
+def test_a_check_with_no_ratio_is_never_ticked():
+    # a post with no load is not rated: its checks have no ratio, and a tick would read as safe
+    checks = [
+        {"label": "column buckling and crushing", "clause": "NDS 2018 §3.7.1", "ratio": None},
+        {"label": "bearing", "clause": "NDS 2018 §3.10.1", "ratio": float("nan")},
+        {"label": "bending", "clause": "NDS 2018 §3.9.2", "ratio": 0.5},
+        {"label": "net section", "clause": "NDS 2018 §3.1.2", "ratio": 1.2},
+    ]
+    lines = present.check_lines({"checks": checks})[1:]
+    assert [ln.split()[0] for ln in lines] == ["?", "?", "✓", "✖"]
+
+
+def test_an_empty_field_with_a_default_says_it_is_the_default():
+    # "1/2 in" alone in an empty field read as a value typed; the hint says "(default)"
+    row = form.field_row(COLUMNS["decay_margin"], "")
+    field = row._pending_children[1]
+    assert field.placeholder == "1/2 in (default)" and field.value == ""
