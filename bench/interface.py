@@ -12,6 +12,9 @@
    < 0.5 s), the time a filter keystroke takes to refill the table (``visit_10k_filter_key_ms``,
    median, target < 100 ms), and a visit of 100,000 posts opened the same way
    (``visit_100k_open_s``, target < 2 s; ``visit_100k_peak_mb``, the process's peak, < 300 MB).
+   Then one post gets a revision while another screen covers the visit, and the time from
+   leaving that screen to the table being filled again is ``visit_10k_return_ms`` /
+   ``visit_100k_return_ms`` (the visit is never read again: only that post).
    ``--no-large`` leaves these out.
 
 Prints one JSON object on its last line.
@@ -159,6 +162,22 @@ async def main():
             await pilot.pause()
         out["filter_key_ms"] = sorted(samples)[len(samples) // 2] if samples else None
         out["shown"] = screen.shown
+        # back from a post: another screen over the visit while one post gets a revision, then
+        # the time from leaving that screen to the visit's table being filled again
+        from textual.screen import Screen
+        await app.push_screen(Screen())
+        await pilot.pause()
+        with Log.open(db) as w:
+            (mid,) = w.db.conn.execute(
+                "SELECT member_id FROM observations WHERE visit_id = ? LIMIT 1", [vid]
+            ).fetchone()
+            w.save_post(vid, {**w.head(mid).record, "load": "1234 lbf"}, mid)
+        filled.clear()
+        t = time.perf_counter()
+        await app.pop_screen()
+        while not filled:
+            await asyncio.sleep(0.001)
+        out["return_ms"] = (filled[0] - t) * 1000.0
     out["peak_mb"] = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0
     print("VISIT", json.dumps(out), flush=True)
 
@@ -196,7 +215,9 @@ def large_visits(tmp: Path) -> dict:
     return {
         "visit_10k_open_s": round(small["open_s"], 3),
         "visit_10k_filter_key_ms": round(small["filter_key_ms"], 1),
+        "visit_10k_return_ms": round(small["return_ms"], 1),
         "visit_100k_open_s": round(big["open_s"], 3),
+        "visit_100k_return_ms": round(big["return_ms"], 1),
         "visit_100k_peak_mb": round(big["peak_mb"]),
         "visit_10k_peak_mb": round(small["peak_mb"]),
     }

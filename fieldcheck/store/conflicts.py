@@ -39,8 +39,10 @@ def _all(conn: sqlite3.Connection) -> set[str]:
     }
 
 
-def _among(conn: sqlite3.Connection, members: list[str]) -> set[str]:
-    """Those of ``members`` with more than one head (member index: a few rows each)."""
+def among(conn: sqlite3.Connection, members: list[str]) -> set[str]:
+    """Those of ``members`` with more than one head (member index: a few rows each). A
+    member's heads change only with a revision of its own, so a reader that takes in new
+    revisions asks this for their members alone."""
     return {
         r[0]
         for r in conn.execute(
@@ -100,7 +102,7 @@ def open_conflicts(conn: sqlite3.Connection, *, store: bool = False) -> list[str
         return sorted(known)
     else:
         touched = _touched(conn, int(mark[0]))
-        members = (known - set(touched)) | _among(conn, touched)
+        members = (known - set(touched)) | among(conn, touched)
     if store:
         _store(conn, f"{top[0]} {top[1]}", sorted(members))
     return sorted(members)

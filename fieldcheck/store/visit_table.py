@@ -63,6 +63,14 @@ def _q(text: str) -> str:
     return text.replace("'", "''")
 
 
+# which members a read takes: every member seen on the visit, or those of a JSON list that were
+_VISIT_MEMBERS = "m.id IN (SELECT member_id FROM observations WHERE visit_id = ?)"
+_THESE_MEMBERS = (
+    "m.id IN (SELECT value FROM json_each(?)) AND EXISTS (SELECT 1 FROM observations s "
+    "WHERE s.member_id = m.id AND +s.visit_id = ?)"  # +: by the member's few rows, not the visit's
+)
+
+
 def _build_sql(words: dict[str, str]) -> str:
     from fieldcheck.store.repo import HEAD_ROWID_OF
 
@@ -80,8 +88,7 @@ WITH base AS MATERIALIZED (
     FROM members m
     JOIN observations o ON o.rowid = {HEAD_ROWID_OF}
     LEFT JOIN ratings r ON r.rowid = (SELECT max(rowid) FROM ratings WHERE observation_id = o.id)
-    WHERE o.withdrawn = 0 AND m.id IN (SELECT member_id FROM observations WHERE visit_id = ?)
-        {{members}}
+    WHERE o.withdrawn = 0 AND {{members}}
 )
 INSERT INTO temp.visit_posts
 SELECT rank, obs_rowid, member_id, id, visit_id, site_id, record_json, tag, location,
@@ -144,22 +151,24 @@ class VisitTable:
         transaction of this connection (a consistent snapshot of the log)."""
         with self.conn:
             top = self._top()
-            from fieldcheck.store.conflicts import open_conflicts
+            from fieldcheck.store.conflicts import among, open_conflicts
 
-            conflicted = json.dumps(open_conflicts(self.conn))
-            if members is None:
-                self.conn.execute(self._sql.format(members=""), [self.visit_id, conflicted])
-            else:
+            if members is None:  # the whole visit: its members listed once, in one pass
+                conflicted = json.dumps(open_conflicts(self.conn))
+                self.conn.execute(
+                    self._sql.format(members=_VISIT_MEMBERS), [self.visit_id, conflicted]
+                )
+            else:  # a few members: each looked up by id (never a list of the whole visit)
                 self._index("member")
                 arg = json.dumps(members)
+                conflicted = json.dumps(sorted(among(self.conn, members)))
                 self.conn.execute(
                     "DELETE FROM temp.visit_posts WHERE member_id IN "
                     "(SELECT value FROM json_each(?))",
                     [arg],
                 )
                 self.conn.execute(
-                    self._sql.format(members="AND m.id IN (SELECT value FROM json_each(?))"),
-                    [self.visit_id, arg, conflicted],
+                    self._sql.format(members=_THESE_MEMBERS), [arg, self.visit_id, conflicted]
                 )
             self.mark = top
             self._hits_for = None
@@ -170,12 +179,16 @@ class VisitTable:
         belong to are read again. Returns their ids."""
         if self._top() == self.mark:
             return []
-        members = [
-            r[0]
-            for r in self.conn.execute(
-                "SELECT DISTINCT member_id FROM observations WHERE rowid > ?", [self.mark]
+        # the rowid range, deduplicated here (DISTINCT in SQL would walk the member index)
+        members = list(
+            dict.fromkeys(
+                r[0]
+                for r in self.conn.execute(
+                    "SELECT member_id FROM observations WHERE rowid > ? ORDER BY rowid",
+                    [self.mark],
+                )
             )
-        ]
+        )
         self._take(members)
         return members
 

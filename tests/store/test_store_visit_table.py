@@ -58,3 +58,29 @@ def test_refresh_reads_only_what_was_written_since(log, shore):
         assert "P5" not in vt.tags()
     finally:
         vt.close()
+
+
+def test_refresh_sees_a_conflict_made_since(log, shore):
+    # a revision from another device made without seeing the current one forks the post: the
+    # refresh that takes it in marks that post in conflict, and only that post
+    from fieldcheck.store.repo import new_id
+
+    res = log.import_rows(_posts(shore, 6), "Site", "Visit")
+    vt = VisitTable(log.path, res.visit.id, {})
+    try:
+        p2 = next(p for p in log.posts(res.visit.id) if p.tag == "P2")
+        log.save_post(res.visit.id, {**p2.record, "load": "1000lbf"}, p2.member_id)
+        assert len(vt.refresh()) == 1
+        with log.db.conn:  # device B revises the first revision, not knowing of the second
+            log.db.conn.execute(
+                "INSERT INTO observations (id, member_id, visit_id, supersedes, merges, "
+                "withdrawn, reason, record_json, device_id, device_seq, author, created_at) "
+                "SELECT ?, member_id, visit_id, id, NULL, 0, '', record_json, 'device-B', 1, "
+                "'b', created_at FROM observations WHERE id = ?",
+                [new_id(), p2.observation_id],
+            )
+        assert vt.refresh() == [p2.member_id]
+        flagged = {p.tag for p in vt.page("added", "", 0, 100) if p.conflict}
+        assert flagged == {"P2"} and log.conflicts() == [p2.member_id]
+    finally:
+        vt.close()
