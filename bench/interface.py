@@ -162,6 +162,7 @@ async def main():
             await pilot.pause()
         out["filter_key_ms"] = sorted(samples)[len(samples) // 2] if samples else None
         out["shown"] = screen.shown
+        out["peak_mb"] = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0
         # back from a post: another screen over the visit while one post gets a revision, then
         # the time from leaving that screen to the visit's table being filled again
         from textual.screen import Screen
@@ -178,7 +179,6 @@ async def main():
         while not filled:
             await asyncio.sleep(0.001)
         out["return_ms"] = (filled[0] - t) * 1000.0
-    out["peak_mb"] = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0
     print("VISIT", json.dumps(out), flush=True)
 
 asyncio.run(main())

@@ -33,7 +33,6 @@ _ORDER_BY = {
     "added": "rank",
 }
 _INDEXES = {  # made when first needed (building one costs about a fifth of the table's copy)
-    "member": "member_id",
     "worst": "worst DESC, rank",
     "tag": "tag_key, rank",
     "location": "loc_key, rank",
@@ -102,7 +101,7 @@ FROM base
 
 
 _COLUMNS = (
-    "rank INTEGER, obs_rowid INTEGER, member_id TEXT, observation_id TEXT, "
+    "rank INTEGER PRIMARY KEY, obs_rowid INTEGER, member_id TEXT, observation_id TEXT, "
     "visit_id TEXT, site_id TEXT, record_json TEXT, tag TEXT, location TEXT, ratio REAL, "
     "action INTEGER, capacity_n REAL, demand_n REAL, governing TEXT, engine_version TEXT, "
     "revised_at TEXT, revised_by TEXT, conflict INTEGER, worst REAL, tag_key TEXT, "
@@ -159,12 +158,11 @@ class VisitTable:
                     self._sql.format(members=_VISIT_MEMBERS), [self.visit_id, conflicted]
                 )
             else:  # a few members: each looked up by id (never a list of the whole visit)
-                self._index("member")
                 arg = json.dumps(members)
                 conflicted = json.dumps(sorted(among(self.conn, members)))
-                self.conn.execute(
-                    "DELETE FROM temp.visit_posts WHERE member_id IN "
-                    "(SELECT value FROM json_each(?))",
+                self.conn.execute(  # by rank, the member's rowid: the table's own key
+                    "DELETE FROM temp.visit_posts WHERE rank IN (SELECT rowid FROM main.members "
+                    "WHERE id IN (SELECT value FROM json_each(?)))",
                     [arg],
                 )
                 self.conn.execute(
