@@ -181,6 +181,9 @@ def _text(s: dict, system: str) -> str:
             f"(limit {s['slenderness_limit']:.0f}), stability factor {s['stability_factor']:.3f}"
         )
     lines.append(f"Material      {s.get('material', '')}")
+    values = explain.status_line(s)  # each reference value's status: read, secondary, memory
+    if values:
+        lines.append(f"Values        {values}")
     lines.append(f"ACTION        {s['action_text']}")
     for c in s["checks"]:
         r = "" if c["ratio"] is None else f"  ratio {c['ratio']:.3f} under {c['combination']}"

@@ -103,6 +103,11 @@ class PostBatch:
     wet_tabulated: np.ndarray = _b()  # values already for wet service (no further CM)
     knowledge: np.ndarray = _f(1.0)  # knowledge factor kappa (ASCE 41), 0.75 for default values
     strength_row: np.ndarray = _i(-1)  # EC5: en338.row_code of the class and edition (-1 none)
+    # NDS: each reference value's status (read, secondary, memory), packed two bits a value by
+    # materials.pack_statuses (-1: none given); the working and the summary say it per value
+    value_status: np.ndarray = field(
+        default_factory=lambda: np.array([-1], dtype=np.int16), metadata={"default": -1}
+    )
 
     # --- service conditions
     method: np.ndarray = _i(ASD)

@@ -16,7 +16,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from fieldcheck.engine import remedies
+from fieldcheck.engine import materials, remedies
 from fieldcheck.engine.batch import EC5, METHOD_NAMES
 from fieldcheck.engine.cautions import CAUTIONS
 from fieldcheck.engine.customary import LBF
@@ -51,6 +51,18 @@ def warnings(r: Rating, i: int) -> list[str]:
     if int(r.batch.method[i]) != EC5:
         return FLAGS.texts(flags)
     return [EC5_WARNINGS.get(f.name, f.text) for k, f in enumerate(FLAGS.flags) if flags >> k & 1]
+
+
+def status_line(summary: dict) -> str | None:
+    """Each reference value's status in words, for any place a rating reaches a person ('all
+    secondary' or 'Fb memory, Fc secondary, ...'); None where the summary has none."""
+    st = summary.get("value_statuses")
+    if st:
+        return materials.status_text(st)
+    st = summary.get("strength_values_status")  # EC5: the EN 338 / EN 14080 values'
+    if st:
+        return materials.status_text({k.split("_")[0]: v for k, v in st.items()})
+    return None
 
 
 def working(r: Rating, i: int) -> list[Step]:
@@ -123,6 +135,11 @@ def summary(r: Rating, i: int, with_remedies: bool = True) -> dict:
         "warnings": warnings(r, i),
         "cautions": list(CAUTIONS),
     }
+    # each NDS reference value's status (read, secondary, memory), where the value came from a
+    # table (EC5: strength_values_status, the EC5 stage's)
+    st = materials.unpack_statuses(int(r.batch.value_status[i]))
+    if st and int(r.batch.method[i]) != EC5:
+        out["value_statuses"] = {materials.STATUS_NAMES[k]: v for k, v in st.items()}
     for stage in STAGES:  # each stage's keys (the condition, the ground and the loads)
         if stage.summary is not None:
             stage.summary(r, i, out)

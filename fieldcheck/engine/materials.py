@@ -136,6 +136,35 @@ CATEGORY_WORDS = {
 }
 
 
+# Each reference value's status, packed into one small integer per post (PostBatch.value_status)
+STATUS_KEYS = ("fb", "fc", "fc_perp", "e", "emin", "g")
+STATUS_NAMES = {"fb": "Fb", "fc": "Fc", "fc_perp": "Fc-perp", "e": "E", "emin": "Emin", "g": "G"}
+# what a value's status adds where the value is shown (as the EN 338 values in the EC5 working)
+STATUS_NOTE = {"read": "", "secondary": " (secondary)", "memory": " (from memory)"}
+
+
+def pack_statuses(statuses: dict[str, str]) -> int:
+    """{fb: 'secondary', ...} -> an int (2 bits a value, in STATUS_KEYS order)."""
+    code = 0
+    for k, key in enumerate(STATUS_KEYS):
+        code |= _STATUS_ORDER.index(statuses[key]) << (2 * k)
+    return code
+
+
+def unpack_statuses(code: int) -> dict[str, str] | None:
+    """The inverse of pack_statuses; None for -1 (no NDS values, e.g. EC5)."""
+    if code < 0:
+        return None
+    return {key: _STATUS_ORDER[(code >> (2 * k)) & 3] for k, key in enumerate(STATUS_KEYS)}
+
+
+def status_text(statuses: dict[str, str]) -> str:
+    """'all secondary', or each value's: 'Fb memory, Fc secondary, ...'."""
+    if len(set(statuses.values())) == 1:
+        return "all " + next(iter(statuses.values()))
+    return ", ".join(f"{STATUS_NAMES.get(k, k)} {v}" for k, v in statuses.items())
+
+
 def size_class(thick_nom: int, width_nom: int) -> str:
     """The product class of a nominal size (NDS 2018 §4.1.3; NDS Supplement Table 4D):
     'dimension' 2 to 4 in thick; 'beams-stringers' 5 in and thicker with the width more than

@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from fieldcheck.engine import materials
 from fieldcheck.engine import quantities as q
 from fieldcheck.engine.batch import EC5, LRFD, METHOD_NAMES, PRODUCT_NAMES, ROUND
 from fieldcheck.engine.customary import IN
@@ -80,8 +81,19 @@ def column_steps(r: Rating, i: int) -> list[Step]:
         s.extend(ec5_steps(r, i))
     else:
         fc = b.fc_mpa[i]
-        add(Step("Reference Fc", q.stress(fc), "NDS Supplement"))
-        add(Step("Reference Emin", q.stress(b.emin_mpa[i]), "NDS Supplement"))
+        st = materials.unpack_statuses(int(b.value_status[i]))
+        note = (lambda k: materials.STATUS_NOTE[st[k]]) if st else (lambda k: "")
+        add(Step("Reference Fc", q.stress(fc) + note("fc"), "NDS Supplement"))
+        add(Step("Reference Emin", q.stress(b.emin_mpa[i]) + note("emin"), "NDS Supplement"))
+        if st:
+            add(
+                Step(
+                    "Status of the reference values",
+                    materials.status_text(st),
+                    "read: from the source; secondary: from a reproduction of it; memory: "
+                    "recalled, not read (check before release)",
+                )
+            )
         tf = "KF phi lambda" if method == LRFD else "CD"
         add(
             Step(

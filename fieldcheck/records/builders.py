@@ -179,6 +179,7 @@ def material_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
         cf_fb=cf_fb,
         wet_tabulated=rv["wet_tabulated"],
         knowledge=rv["knowledge"],
+        value_status=materials.pack_statuses(rv["statuses"]),
     )
     took = ""
     if grade == "stud" and w > 6 and class_from == "nominal":

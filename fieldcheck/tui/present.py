@@ -262,12 +262,7 @@ def memory_note(label: str, clause: str, record: dict[str, str]) -> str:
     (the status column of the reference table; [M] in a clause)."""
     if "[M]" in clause:
         return " (from memory)"
-    if (
-        label.startswith("Reference")
-        and "Supplement" in clause
-        and reference_status(record.get("species", ""), record.get("grade", "")) == "memory"
-    ):
-        return " (from memory)"
+    # an NDS reference value's own status is in the step's value (explain/working.py)
     if "EN 338" in clause and record.get("class"):
         from fieldcheck.engine.refdata import table
 

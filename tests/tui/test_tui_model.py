@@ -64,19 +64,17 @@ def test_working_values_keep_three_or_four_significant_figures():
 
 
 def test_from_memory_is_said_in_the_working():
-    from fieldcheck.engine.refdata import table
+    from fieldcheck.engine import explain
+    from fieldcheck.engine.rating import rate
+    from fieldcheck.records import parse_records
 
-    rows = table("nds_reference_values")  # its status column: read, secondary or memory
-    for status, note in (("memory", " (from memory)"), ("secondary", "")):
-        row = next(r for r in rows if r["status"] == status)
-        rec = {"species": row["species"], "grade": row["grade"]}
-        # every row of that species and grade shares the status (both categories)
-        if {
-            r["status"]
-            for r in rows
-            if (r["species"], r["grade"]) == (row["species"], row["grade"])
-        } == {status}:
-            assert present.memory_note("Reference Fc", "NDS Supplement", rec) == note
+    # each NDS reference value carries its status in the working (the table's status columns):
+    # DF-L No.2 Beams and Stringers values are from memory, DF-L No.2 dimension values secondary
+    for size, note in (("6x10", " (from memory)"), ("4x4", " (secondary)")):
+        rec = {"size": size, "species": "douglas-fir-larch", "grade": "no2", "height": "8ft"}
+        steps = explain.working(rate(parse_records([rec]).batch), 0)
+        fc = next(s for s in steps if s.label == "Reference Fc")
+        assert fc.value.endswith(note)
     rec = {"species": "douglas-fir-larch", "grade": "no2"}
     assert present.memory_note("d_eff", "NDS 2018 §3.6.3 [M]", rec) == " (from memory)"
     assert present.memory_note("le/d", "NDS 2018 §3.7.1.3", rec) == ""
