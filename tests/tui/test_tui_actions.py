@@ -251,11 +251,12 @@ async def test_ratio_action_and_governing_check_stay_on_screen_while_typing(db, 
             for field in ("tag", "load"):  # the top and the bottom of the form
                 inp = editor.query_one(f"#f-{field}", Input)
                 editor.set_focus(inp)
-                ui.burst(app, ["end", "1", "backspace", "1"])
-                await ui.drain(app, pilot)
+                await pilot.press("end", "1", "backspace")  # typed, re-rated, repainted
+                await pilot.pause()
                 assert screen.contains_region(inp.region) and inp.region.height == 1, field
                 head = editor.query_one("#rating-head")
                 lines = str(head.content).splitlines()
+                assert not editor.stale and "not rated" not in lines[1]  # rated, values shown
                 # action, ratio and governing check: lines 2, 5 and 6 of the head, on screen
                 for k, word in ((1, "Action"), (4, "Ratio"), (5, "Governs")):
                     assert lines[k].startswith(word)
