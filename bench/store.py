@@ -13,6 +13,9 @@ distinct-record parse cache does not carry the figure.
   and its latest rating (one row per post, as the export writes), each record decoded and
   written with the csv or json module under the export's own header, so both write the same
   rows and columns (the larger ratio of the two is ``export_*_ratio``, target <= 1.5).
+- log tables (not a floor, for reading the ratios): SQLite alone writing the same posts into
+  the log's own tables, rows made ready beforehand (``import_*_log_tables_cpu_s``: members,
+  observations and ratings; ``rerate_*_log_tables_cpu_s``: ratings alone).
 - peak memory: the largest peak resident set of import, re-rate and export (target < 300 MB at
   1,000,000 posts).
 
@@ -146,6 +149,51 @@ def export_header() -> list[str]:
     return columns("us", COLUMNS)
 
 
+# Not a floor of the issue: what SQLite alone takes to write the same posts into the log's own
+# tables (three tables with their keys, indexes and checks; one table for a re-rate), the rows
+# made ready before the clock starts. It says how much of a ratio the log's schema holds.
+LOG_TABLES = """
+import itertools, sys, time
+from fieldcheck.store.repo import Log, _MEMBER_COLS, _OBS_COLS
+from fieldcheck.store.rows import RATING_COLS, dumps, new_ids, now
+from fieldcheck.store import rated
+sys.path.insert(0, "bench")
+from store import synthetic
+n, ratings_only = int(sys.argv[2]), sys.argv[3] == "rerate"
+log = Log.open(sys.argv[1])
+stamp, version, _ = rated.engine_stamp()
+cpu = 0.0
+with log._write():
+    log._ensure_stamp()
+    site = log.add_site("Bench")
+    visit = log.add_visit(site.id, None, name="One")
+    dev, who, created = log.device_id, log.author, now()
+    rating = (1000.0, 500.0, 0.5, 0, "compression", 0, None)
+    src = synthetic(n)
+    while recs := [{k: v for k, v in r.items() if v} for r in itertools.islice(src, 16384)]:
+        k = len(recs)
+        ids = new_ids(3 * k)
+        first = log._seqs(3 * k).start
+        seq = iter(range(first, first + 3 * k))
+        m = [(i, site.id, r["tag"], dev, next(seq), who, created) for i, r in zip(ids[0::3], recs)]
+        o = [(i, mid, visit.id, None, 0, "", dumps(r), dev, next(seq), who, created)
+             for i, mid, r in zip(ids[1::3], ids[0::3], recs)]
+        g = [(i, oid, version, stamp, *rating, dev, next(seq), who, created)
+             for i, oid in zip(ids[2::3], ids[1::3])]
+        t0 = time.process_time()
+        log._insert("members", _MEMBER_COLS, m)
+        log._insert("observations", _OBS_COLS, o)
+        if ratings_only:  # a re-rate writes only the ratings: the posts are there already
+            t0 = time.process_time()
+        log._insert("ratings", RATING_COLS, g)
+        cpu += time.process_time() - t0
+    t0 = time.process_time()
+cpu += time.process_time() - t0  # the commit
+log.close()
+print("CPU", cpu)
+"""
+
+
 def run(argv: list[str]) -> dict:
     """Run argv: its CPU seconds (user + system, or the part the floor timed itself), wall
     seconds and peak resident MB (the child's own rusage, from wait4)."""
@@ -209,6 +257,12 @@ def bench(n: int, tmp: Path, repeats: int) -> dict:
         exp[fmt] = run([*CLI, "export", "--db", str(db), "--format", fmt, "--out", str(out)])
         exp_floor[fmt] = run([PY, "-c", FLOOR_EXPORT, str(db), str(out), fmt, header])
         out.unlink()
+    tables = {
+        what: run([PY, "-c", LOG_TABLES, str(tmp / f"tables-{what}-{n}.db"), str(n), what])
+        for what in ("import", "rerate")
+    }
+    for p in tmp.glob("tables-*"):
+        p.unlink()
     ratio_imp = statistics.median(a["cpu"] / b["cpu"] for a, b in zip(imp, imp_floor, strict=True))
     exp_ratio = {f: exp[f]["cpu"] / exp_floor[f]["cpu"] for f in exp}
     peaks = [max(r["peak_mb"] for r in imp), rr["peak_mb"], *(r["peak_mb"] for r in exp.values())]
@@ -222,6 +276,8 @@ def bench(n: int, tmp: Path, repeats: int) -> dict:
         "rerate_cpu_s": round(rr["cpu"], 2),
         "rerate_floor_cpu_s": round(rr_floor["cpu"], 2),
         "rerate_peak_mb": round(rr["peak_mb"]),
+        "import_log_tables_cpu_s": round(tables["import"]["cpu"], 2),
+        "rerate_log_tables_cpu_s": round(tables["rerate"]["cpu"], 2),
         "export_ratio": round(max(exp_ratio.values()), 2),
         "export_csv_ratio": round(exp_ratio["csv"], 2),
         "export_json_ratio": round(exp_ratio["json"], 2),

@@ -181,6 +181,18 @@ def _distinct(texts: list) -> tuple[list, np.ndarray]:
     return list(index), codes
 
 
+@lru_cache(maxsize=1 << 16)
+def _lifted_cell(name: str, text: object) -> float | None:
+    """A lifted column's value: the number, NaN when the cell is blank (not given), None when
+    the text does not parse (the row then takes the record-by-record path for its error)."""
+    if _blank(text):
+        return np.nan
+    try:
+        return float(_parse_cell(name, str(text)))
+    except (ValueError, TypeError):
+        return None
+
+
 def _blank(t: object) -> bool:
     return t is None or not str(t).strip()
 
@@ -220,17 +232,10 @@ def _lift_shape(
         if name not in LIFTED:
             continue
         distinct, codes = _distinct(cols[k])
-        vals = np.full(len(distinct), np.nan)
-        present = np.zeros(len(distinct), dtype=bool)
-        fails = np.zeros(len(distinct), dtype=bool)
-        for j, t in enumerate(distinct):
-            if _blank(t):
-                continue
-            try:
-                vals[j] = float(_parse_cell(name, str(t)))
-                present[j] = True
-            except (ValueError, TypeError):
-                fails[j] = True
+        got = [_lifted_cell(name, t) for t in distinct]
+        fails = np.fromiter((g is None for g in got), dtype=bool, count=len(got))
+        vals = np.array([np.nan if g is None else g for g in got], dtype=np.float64)
+        present = ~fails & ~np.isnan(vals)
         bad |= fails[codes]
         lifted[name] = (vals[codes], present[codes])
         key_codes.append(present[codes].astype(np.intp))
