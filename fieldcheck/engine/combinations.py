@@ -34,7 +34,7 @@ import numpy as np
 
 from fieldcheck.engine import column, condition, nds
 from fieldcheck.engine.batch import ASD, EC5, LRFD, PostBatch
-from fieldcheck.engine.blocks import absent, distinct, filled
+from fieldcheck.engine.blocks import absent, broadcast, distinct, filled
 from fieldcheck.engine.loads import combination_rows as rows
 from fieldcheck.engine.refdata import table
 from fieldcheck.engine.result import Check, Rating
@@ -66,10 +66,12 @@ def used(b: PostBatch) -> bool:
 @cache
 def _block_rows(method: int, present: tuple[bool, ...]) -> tuple[np.ndarray, np.ndarray]:
     """(rows, coef) of the combinations of one method that can govern a block whose nominal
-    loads of each type are non-zero somewhere (``present``). A row is left out when another row
-    of the same method carries every load type at least as much and can have no larger factor:
-    ASD, the same types (so the same CD, NDS 2018 §2.3.2); LRFD, a lambda no larger for every
-    kind of live load (NDS 2018 Appendix N Table N3)."""
+    loads of each type are non-zero somewhere (``present``). A row is left out when an earlier
+    row of the same method carries every load type at least as much and can have no larger
+    factor: ASD, the same types (so the same CD, NDS 2018 §2.3.2); LRFD, a lambda no larger for
+    every kind of live load (NDS 2018 Appendix N Table N3). Only an earlier one: where the two
+    tie for a post, the earlier row names the combination, whatever other posts share the
+    block (the single-post path names the same one)."""
     asd, lrfd, coef_a, coef_l, lam, _, _ = _tables()
     idx, coef = (lrfd, coef_l) if method == LRFD else (asd, coef_a)
     lam_rows = lam if method == LRFD else np.zeros((len(idx), 1))
@@ -85,8 +87,7 @@ def _block_rows(method: int, present: tuple[bool, ...]) -> tuple[np.ndarray, np.
                 no_larger = bool(np.all(lam_rows[c] <= lam_rows[a]))
             else:
                 no_larger = bool(np.array_equal(coef[c] != 0, coef[a] != 0))
-            same = np.array_equal(coef[c], coef[a]) and np.array_equal(lam_rows[c], lam_rows[a])
-            if more and no_larger and (not same or c < a):
+            if more and no_larger and c < a:
                 keep[a] = False
                 break
     return idx[keep], coef[keep]
@@ -364,8 +365,10 @@ def rate_with_combinations(b: PostBatch, run_stages, finish, keep_values: bool =
     g_fac, g_combo = gov_of(facs), gov_of(combos)
     batch = _at_rows(b, g_dem, g_fac, g_combo)
     values = v
-    if keep_values and bool(((g_dem != l_ref) | (g_fac != f_ref)).any()):  # not the reference
-        values = run_stages(batch).values
+    if keep_values:  # the intermediates of the governing combination, where it is not the ref
+        moved = np.flatnonzero((g_dem != l_ref) | (g_fac != f_ref))
+        if moved.size:
+            values = _values_at(v, run_stages, batch, moved)
     out = Rating(
         batch=batch,
         checks=checks,
@@ -381,6 +384,30 @@ def rate_with_combinations(b: PostBatch, run_stages, finish, keep_values: bool =
     if no_load.any():  # a post given no load: its smallest capacity governs
         _smallest_capacity(out, no_load)
     return finish(out, governed=True)
+
+
+def _values_at(v: dict, run_stages, batch: PostBatch, moved: np.ndarray) -> dict:
+    """The block's intermediates ``v`` with those of posts ``moved`` rated again on ``batch``
+    (their governing combination). A few posts are rated alone and put in place; most of the
+    block, or an intermediate the few make that the block did not, and the block is rated
+    again."""
+    n = batch.n
+    if 2 * moved.size > n:
+        return run_stages(batch).values
+    sub = run_stages(batch.take(moved)).values
+    if not set(sub) <= set(v):
+        return run_stages(batch).values
+    out = dict(v)
+    for key, a in v.items():
+        s = sub.get(key)
+        if s is None or not isinstance(a, np.ndarray) or a.shape[:1] != (n,):
+            continue  # not made for these posts, or not per post
+        if broadcast(a) and broadcast(s) and np.array_equal(a[:1], s[:1], equal_nan=True):
+            continue  # one value for every post, the same one
+        merged = np.array(a, dtype=np.result_type(a, s))
+        merged[moved] = s
+        out[key] = merged
+    return out
 
 
 def _smallest_capacity(r: Rating, where: np.ndarray) -> None:

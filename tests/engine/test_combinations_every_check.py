@@ -186,3 +186,56 @@ def test_every_check_declares_how_it_takes_the_duration_factor():
     from fieldcheck.engine.rating import STAGES
 
     assert {c for stage in STAGES for c in stage.checks} <= set(SCALING)
+
+
+def test_a_posts_combination_does_not_depend_on_its_neighbours():
+    # ASCE 7 §2.3.1 (2): with no roof live, snow or rain load, 1.2D + 1.6L + 0.5(Lr or S or R)
+    # are one load; the earlier row names it, whether or not a neighbour carries snow
+    b = make_batch(
+        d1_mm=3.5 * IN,
+        d2_mm=3.5 * IN,
+        height_mm=96 * IN,
+        fc_mpa=1350 * PSI,
+        emin_mpa=580e3 * PSI,
+        cf_fc=1.15,
+        method=LRFD,
+        nom_d_n=np.array([3000.0, 3000.0]) * LBF,
+        nom_l_n=np.array([3000.0, 3000.0]) * LBF,
+        nom_s_n=np.array([0.0, 500.0]) * LBF,
+        load_n=0.0,
+    )
+    together = rate(b)
+    for i in (0, 1):
+        alone = rate(b.take(np.array([i])))
+        assert together.check_combination("column", i) == alone.check_combination("column", 0)
+    assert together.check_combination("column", 0)[0] == "1.2D+1.6L+0.5Lr"
+
+
+def test_a_batch_explains_each_post_as_rated_alone():
+    # the working and the summary of a post rated among others are those of the post alone
+    # (the single-post path is the batch path), with every combination rated for every check
+    from fieldcheck.engine import explain
+    from fieldcheck.records import parse_records
+
+    rng = np.random.default_rng(4)
+    rows = []
+    for k in range(24):
+        row = {"size": ["4x4", "4x6", "6x6"][k % 3], "height": f"{6 + k % 9}ft"}
+        row.update(species="dfl", grade="no2", tributary=f"{10 + 3 * k} sq ft", dead="15 psf")
+        if rng.random() < 0.6:
+            row["live"] = "40 psf"
+        if rng.random() < 0.4:
+            row["snow"] = "25 psf"
+        if k % 3 == 0:
+            row["method"] = "lrfd"
+        if k % 4 == 0:
+            row["bow_weak"] = "0.5 in"
+        rows.append(row)
+    batch = parse_records(rows).batch
+    r = rate(batch)
+    for i in range(batch.n):
+        alone = rate(batch.take(np.array([i])))
+        assert explain.working(r, i) == explain.working(alone, 0)
+        assert explain.summary(r, i, with_remedies=False) == explain.summary(
+            alone, 0, with_remedies=False
+        )
