@@ -8,6 +8,7 @@ are returned in MPa.
 from __future__ import annotations
 
 import math
+import re
 from functools import cache
 
 from fieldcheck.engine.customary import PSI
@@ -286,6 +287,16 @@ def reference_values(
     return out
 
 
+def _table_names(parts: list[dict]) -> list[str]:
+    """The tables some value sets came from, once each ('lowest of' and the like left out)."""
+    names = (
+        t
+        for v in parts
+        for t in re.sub(r"^(the lowest|lowest of|lower of) ", "", v["table"]).split(", ")
+    )
+    return list(dict.fromkeys(names))
+
+
 def _lower(parts: list[dict], table_words: str) -> dict:
     """Each property the lowest over some value sets, with the weakest status of its column."""
     out: dict = {p: min(v[p] for v in parts) for p in (*PROPERTIES, "g")}
@@ -293,7 +304,7 @@ def _lower(parts: list[dict], table_words: str) -> dict:
     out.update(
         wet_tabulated=all(v["wet_tabulated"] for v in parts),  # else CM applies: conservative
         knowledge=min(v["knowledge"] for v in parts),
-        table=table_words + " of " + ", ".join(dict.fromkeys(v["table"] for v in parts)),
+        table=table_words + " of " + ", ".join(_table_names(parts)),
         statuses=statuses,
         status=weakest(statuses.values()),
         assumed=any(v["assumed"] for v in parts),

@@ -188,6 +188,8 @@ def material_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
         "wider": "; measured, no nominal size: no more than a wider piece's",
         "timber": "; measured, no nominal size: no more than the 4.5 in thick timber's",
     }.get(rv.get("capped", ""), "")
+    if capped:  # the nominal size names the grading class, and its own table then applies
+        capped += " (give the nominal size to rate it in its own class)"
     out["_material"] = f"{species} {grade}{took} ({rv['table']}{capped}, {rv['status']})"
     out["_value_statuses"] = dict(rv["statuses"])
     # where the values came from and how sure (read / secondary / memory), for every person

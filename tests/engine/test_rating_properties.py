@@ -64,6 +64,9 @@ def test_capacity_never_rises_with_height(p, factor):
 @settings(max_examples=200, deadline=None)
 @given(post, st.floats(1.0, 2.0), st.floats(1.0, 2.0))
 def test_capacity_never_falls_with_a_larger_section(p, f1, f2):
+    # the same reference values at both sizes; where the values depend on the size (the product
+    # class, size factors, Southern Pine widths, round posts) from the records to the rating:
+    # tests/validation/test_larger_section_never_lower.py
     d1, d2 = max(p["d1"], p["d2"]), min(p["d1"], p["d2"])
     r = rate(batch_of(p, d1_mm=np.array([d1, d1 * f1]) * IN, d2_mm=np.array([d2, d2 * f2]) * IN))
     assert r.capacity_n[1] >= r.capacity_n[0] * (1 - 1e-12)
