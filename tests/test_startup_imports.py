@@ -9,6 +9,8 @@ import subprocess
 import sys
 from pathlib import Path
 
+import pytest
+
 ROOT = Path(__file__).resolve().parents[1]
 # what a rating of one post never needs: the log and its layers, the interface, the report
 # renderer, pint once the factor table is kept, the user-folder and metadata machinery
@@ -35,27 +37,35 @@ RATE = (
 )
 
 
-def _rate(cache: Path) -> tuple[int, bool, list[str]]:
-    env = {**os.environ, "PYTHONPATH": str(ROOT), "XDG_CACHE_HOME": str(cache)}
+def _rate(cache: Path, **env_vars: str) -> tuple[int, bool, list[str]]:
+    env = {**os.environ, "PYTHONPATH": str(ROOT), "XDG_CACHE_HOME": str(cache), **env_vars}
     out = subprocess.run(
         [sys.executable, "-c", RATE], env=env, capture_output=True, text=True, check=True
     )
     return tuple(json.loads(out.stdout))
 
 
-def test_rating_one_post_loads_only_what_it_needs(tmp_path):
+@pytest.fixture(scope="module")
+def cache(tmp_path_factory) -> Path:
+    """A cache folder where the first run ever has kept the unit factor table (built with
+    pint, once for this module's tests)."""
+    folder = tmp_path_factory.mktemp("cache")
+    _rate(folder, FIELDCHECK_CONFIG=str(folder / "no-config.toml"))  # never the user's own
+    return folder
+
+
+def test_rating_one_post_loads_only_what_it_needs(cache):
     # the autouse fixture points FIELDCHECK_CONFIG at a file that does not exist
-    _rate(tmp_path)  # the first run ever builds the unit factor table with pint and keeps it
-    code, rated, modules = _rate(tmp_path)
+    code, rated, modules = _rate(cache)
     assert code == 0 and rated
     loaded = [m for m in modules if m.startswith(NOT_NEEDED)]
     assert loaded == []
 
 
-def test_a_config_file_is_still_read(tmp_path, monkeypatch):
+def test_a_config_file_is_still_read(cache, tmp_path, monkeypatch):
     # tomllib is left out only when there is no file to read
     cfg = tmp_path / "config.toml"
     cfg.write_text('units = "metric"\n', encoding="utf-8")
     monkeypatch.setenv("FIELDCHECK_CONFIG", str(cfg))
-    code, rated, modules = _rate(tmp_path)
+    code, rated, modules = _rate(cache)
     assert code == 0 and rated and "tomllib" in modules
