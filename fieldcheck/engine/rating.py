@@ -10,6 +10,7 @@ warnings, working) is the explain layer's (explain.py), made for the posts a per
 from __future__ import annotations
 
 import threading
+from typing import Any
 
 import numpy as np
 
@@ -59,13 +60,28 @@ def rate(b: PostBatch, keep: tuple[str, ...] = ()) -> Rating:
     }
     clauses = {k: c.clause for k, c in first.checks.items()}
     made: dict[tuple[str, str], np.ndarray] = {}
+    wrote: dict[tuple[str, str], set[int]] = {}
+    fills: dict[tuple[str, str], Any] = {}
     lock = threading.Lock()
+    f64 = np.dtype(np.float64)
 
-    def made_once(key: tuple[str, str], fill) -> np.ndarray:
-        with lock:  # whichever thread needs it first makes it
-            if key not in made:
-                made[key] = fill()
-            return made[key]
+    def write(key: tuple[str, str], dtype, fill, sl: slice, value) -> None:
+        """Block ``sl`` of the full-length array ``key``, made (empty) by whichever block needs
+        it first; the blocks that never write it get ``fill(sl)`` at the end (each part is
+        written once: a full-length fill first would fault every page in twice)."""
+        with lock:
+            a = made.get(key)
+            if a is None:
+                a = made[key] = np.empty(n, dtype=dtype)
+                wrote[key], fills[key] = set(), fill
+            wrote[key].add(sl.start)
+        a[sl] = value
+
+    def nan_fill(sl: slice) -> float:
+        return np.nan
+
+    def load_fill(sl: slice) -> np.ndarray:
+        return load[sl]
 
     def put(start: int, first_block: tuple | None = None) -> None:
         if first_block is None:
@@ -76,28 +92,35 @@ def rate(b: PostBatch, keep: tuple[str, ...] = ()) -> Rating:
         sl = slice(start, start + r.n)
         own_load = r.batch.load_n
         for k, c in r.checks.items():
-            if not absent(c.capacity_n):
-                made_once((k, "capacity"), lambda: np.full(n, np.nan))[sl] = c.capacity_n
+            if absent(c.capacity_n):  # not made in this block: no capacity, no demand of its own
+                continue
+            write((k, "capacity"), f64, nan_fill, sl, c.capacity_n)
             if c.demand_n is not own_load:
-                made_once((k, "demand"), load.copy)[sl] = c.demand_n
+                write((k, "demand"), f64, load_fill, sl, c.demand_n)
             if c.combo is not None:  # the combination of this check, where combinations ran
-                made_once((k, "combo"), lambda: np.full(n, -1, dtype=np.int8))[sl] = c.combo
-                made_once((k, "factor"), lambda: np.full(n, np.nan))[sl] = c.factor
+                write((k, "combo"), np.int8, lambda sl: -1, sl, c.combo)
+                write((k, "factor"), f64, nan_fill, sl, c.factor)
             if c.clause not in clauses[k]:  # e.g. a block with EC5 posts names both clauses
                 with lock:
                     clauses[k] += f" / {c.clause}"
         if r.batch is not blk:  # combinations ran: the governing one's load and factor
             for f in ("load_n", "cd", "lam", "combo"):
-                made_once(("batch", f), lambda f=f: getattr(b, f).copy())[sl] = getattr(r.batch, f)
+                own = getattr(b, f)
+                write(("batch", f), own.dtype, lambda sl, own=own: own[sl], sl, getattr(r.batch, f))
         for k, a in out.items():
             a[sl] = r.values[k]
         for k, a in core.items():
             a[sl] = getattr(r, k)
         if r.demand_n is not own_load:
-            made_once(("", "demand"), load.copy)[sl] = r.demand_n
+            write(("", "demand"), f64, load_fill, sl, r.demand_n)
 
     put(0, (first_blk, first))
     share_blocks(put, starts[1:])
+    for key, a in made.items():  # the blocks that never wrote an array: its fill
+        for start in starts:
+            if start not in wrote[key]:
+                sl = slice(start, start + BLOCK)
+                a[sl] = fills[key](sl)
     checks = {
         k: Check(
             c.name,
