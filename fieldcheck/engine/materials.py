@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import math
 import re
-from functools import cache
+from functools import cache, lru_cache
 
 from fieldcheck.engine.customary import PSI
 from fieldcheck.engine.refdata import table
@@ -406,7 +406,7 @@ TIMBER_MIN_IN = 4.5 - 1.0 / 25.4  # sections.is_timber: 5 in nominal, 4.5 in dre
 _WIDEST_STEP = 14  # no size factor or width row changes past 12 in nominal
 
 
-@cache
+@lru_cache(maxsize=4096)  # measured sizes vary: a bounded cache
 def measured_values(species: str, grade: str, d1_in: float, d2_in: float) -> dict:
     """Values (MPa, size factors folded in) for a measured section with no nominal size.
 
