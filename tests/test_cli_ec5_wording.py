@@ -103,3 +103,24 @@ def test_metric_units_show_kn_only(capsys):
     rc, out, _ = _run(capsys, [*POST, *SECTIONS["square"], "--units", "metric"])
     assert rc == 0
     assert re.search(r"^N_Rd +[\d.,]+ kN +governed", out, re.M) and "lbf" not in out
+
+
+def test_a_mixed_block_shows_each_post_its_own_clauses():
+    # an NDS and an EC5 post rated together share one clause text per check; each post's
+    # summary and working show only its own method's clause
+    from fieldcheck.engine import explain
+    from fieldcheck.records import rate_records
+
+    common = {"section": "100x100mm", "height": "3 m", "load": "20 kN", "bow_weak": "20 mm"}
+    r, errors = rate_records(
+        [
+            dict(common, species="douglas-fir-larch", grade="no2", duration="two-months"),
+            dict(common, method="ec5", **{"class": "C24"}, duration="two-months"),
+        ]
+    )
+    assert errors == []
+    nds, ec = explain.summary(r, 0), explain.summary(r, 1)
+    assert all("EN 1995-1-1" not in c["clause"] for c in nds["checks"])
+    assert all("NDS" not in c["clause"] for c in ec["checks"])
+    ec_checks = [s for s in explain.working(r, 1) if s.label.startswith("Check:")]
+    assert ec_checks and all("NDS 2018 §3" not in s.clause for s in ec_checks)

@@ -1015,6 +1015,7 @@ def reductions(r, i: int) -> list[dict]:
         )
 
     gross = float(v["area_gross"][i])
+    ec5 = int(b.method[i]) == EC5  # EN 1995-1-1 clauses in place of the NDS ones
     if bool(v["loss"][i]):
         add(
             "residual section, middle part",
@@ -1024,13 +1025,18 @@ def reductions(r, i: int) -> list[dict]:
             " (judgement)",
             v["area"][i] / gross,
             "common practice: decayed wood has no strength; char + 7 mm (EN 1995-1-2 §4.2.2, "
-            "from memory); NDS 2018 §3.6.3 (from memory)",
+            "from memory); "
+            + (
+                "EN 1995-1-1 §6.3.2 on the residual section"
+                if ec5
+                else "NDS 2018 §3.6.3 (from memory)"
+            ),
         )
         add(
             "net section (all losses together)",
             f"area {v['area_net'][i] / gross:.3f} of gross",
             v["area_net"][i] / gross,
-            "NDS 2018 §3.6.3 as remembered",
+            "EN 1995-1-1 §6.1.4 on the net section" if ec5 else "NDS 2018 §3.6.3 as remembered",
         )
     for end, key in (("top", "a_top"), ("bottom", "a_bottom")):
         f = v[key][i] / gross
@@ -1044,7 +1050,8 @@ def reductions(r, i: int) -> list[dict]:
                     else ""
                 ),
                 f,
-                "NDS 2018 §3.10.1; judgement for partial contact",
+                ("EN 1995-1-1 §6.1.4, §6.1.5" if ec5 else "NDS 2018 §3.10.1")
+                + "; judgement for partial contact",
             )
     if int(v["split_axis"][i]):
         add(
@@ -1071,13 +1078,13 @@ def reductions(r, i: int) -> list[dict]:
                 f"slope 1 in {b.slope_n[i]:g} ({tname} table, {src}): {v['sr_slope'][i]:.3f}"
             )
         add(
-            "strength ratio on Fc (lowest, not the product)",
+            f"strength ratio on {'f_c,0,k' if ec5 else 'Fc'} (lowest, not the product)",
             "; ".join(parts),
             v["strength_ratio"][i],
             "ASTM D245 principle (from memory); Wood Handbook Table 5-12",
         )
         add(
-            "strength ratio on Fb",
+            f"strength ratio on {'f_m,k' if ec5 else 'Fb'}",
             "lowest of knot and slope (bending column)",
             v["sr_bending"][i],
             "ASTM D245 principle (from memory)",
@@ -1106,7 +1113,7 @@ def reductions(r, i: int) -> list[dict]:
             f"e1 {q.length(v['ecc1'][i])}, e2 {q.length(v['ecc2'][i])}, "
             f"bow {q.length(v['bow1'][i])}, {q.length(v['bow2'][i])}",
             ecc.capacity_n[i] / col,
-            "NDS 2018 §3.9.2, §15.4.1",
+            "EN 1995-1-1 §6.3.2(3), §10.2" if ec5 else "NDS 2018 §3.9.2, §15.4.1",
         )
     return out
 

@@ -16,7 +16,7 @@ instantaneous. Service classes (EN 1995-1-1 §2.3.1.3): 1, 2, 3. Unknown values 
 with one sentence naming the field, the accepted values and an example.
 
 Edition: EN 1995-1-1:2004+A1:2008, recommended values (a National Annex may change gamma_M and
-k_c,90). Reference tables: data/ec5_kmod.csv, data/ec5_gamma_m.csv.
+k_c,90). Reference tables: data/ec5_kmod.csv, data/ec5_kdef.csv, data/ec5_gamma_m.csv.
 """
 
 from __future__ import annotations
@@ -187,6 +187,31 @@ def _gamma_m_table() -> np.ndarray:
         )
     out.setflags(write=False)
     return out
+
+
+@cache
+def _kdef_table() -> np.ndarray:
+    """k_def as an array [product, service class - 1] (EN 1995-1-1 Table 3.2)."""
+    out = np.full((len(PRODUCTS), len(SERVICE_CLASSES)), np.nan)
+    for r in table("ec5_kdef"):
+        out[PRODUCTS.index(r["product"]), int(r["service_class"]) - 1] = float(r["kdef"])
+    if np.isnan(out).any():
+        raise RuntimeError(
+            "data/ec5_kdef.csv is incomplete: every product and service class needs a row"
+        )
+    out.setflags(write=False)
+    return out
+
+
+def kdef(service_class, product="solid") -> np.ndarray:
+    """k_def (-) by service class (1-3) and product; EN 1995-1-1 Table 3.2 (creep, §2.3.2.2).
+
+    The same for solid timber and glulam: 0.6, 0.8, 2.0 in service classes 1, 2, 3.
+    """
+    sc = service_class_index(service_class)
+    pr = product_code(product)
+    sc, pr = np.broadcast_arrays(sc, pr)
+    return _kdef_table()[pr, sc]  # EN 1995-1-1 Table 3.2
 
 
 def kmod(service_class, duration_class, product="solid") -> np.ndarray:

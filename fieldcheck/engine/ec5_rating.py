@@ -68,6 +68,15 @@ def apply_ec5(b: PostBatch, checks: dict, values: dict) -> None:
         )
         checks[key].capacity_n = np.where(m, br.n_rd, checks[key].capacity_n)
         checks[key].clause = _mixed(m, checks[key].clause, "EN 1995-1-1 §6.1.5")
+    # crushing of the net section where a loss near an end leaves less than the middle part:
+    # sigma_c,0,d <= f_c,0,d on the net area (EN 1995-1-1 §6.1.4), as the NDS path checks it
+    net = checks.get("net_section")
+    if net is not None and "area_net" in v:
+        short = m & (v["area_net"] < area)
+        if short.any():
+            p_net = np.where(short, col.fc0d * v["area_net"] * kappa, np.nan)
+            net.capacity_n = np.where(m, p_net, net.capacity_n)
+            net.clause = _mixed(m, net.clause, "EN 1995-1-1 §6.1.4 (net section)")
     values.update(
         ec5_mask=m,
         ec5_lef1=lef1,
@@ -204,6 +213,16 @@ def _combined(b: PostBatch, checks: dict, v: dict, m: np.ndarray, col, kappa: np
         full = np.full(n, False) if part.dtype == bool else np.full(n, np.nan)
         full[idx] = part
         v[name] = full
+
+
+def clause_for(clause: str, method: int) -> str:
+    """A check's clause for one post: a block of NDS and EC5 posts shares one clause text
+    ("NDS ... / EN 1995-1-1 ..."); each post is shown only its own method's part."""
+    if " / " not in clause:
+        return clause
+    parts = clause.split(" / ")
+    own = [p for p in parts if p.startswith("EN 1995-1-1") == (method == EC5)]
+    return " / ".join(own) if own else clause
 
 
 def _mixed(mask: np.ndarray, nds_clause: str, ec5_clause: str) -> str:
@@ -533,7 +552,7 @@ EC5_STAGE = Stage(
         "e_mpa",
         "height_mm",
     ),
-    checks=("column", "end_bearing", "cap_bearing", "sill_bearing", "eccentric"),
+    checks=("column", "end_bearing", "cap_bearing", "sill_bearing", "eccentric", "net_section"),
     flags=(),
     run=run_ec5,
     summary=ec5_summary,

@@ -20,7 +20,7 @@ from fieldcheck.engine import materials, remedies
 from fieldcheck.engine.batch import EC5, METHOD_NAMES
 from fieldcheck.engine.cautions import CAUTIONS
 from fieldcheck.engine.customary import LBF
-from fieldcheck.engine.ec5_rating import EC5_WARNINGS
+from fieldcheck.engine.ec5_rating import EC5_WARNINGS, clause_for
 from fieldcheck.engine.rating import FLAGS, STAGES, detail
 from fieldcheck.engine.result import ACTION_TEXT, ACTIONS, DUE_DAYS, NOT_RATED, Rating, Step
 from fieldcheck.engine.working import closing_steps, column_steps
@@ -103,7 +103,7 @@ def summary(r: Rating, i: int, with_remedies: bool = True) -> dict:
                 "capacity_lbf": num(capn / LBF, 1),
                 "demand_kN": num(c.demand_n[i] / 1000.0, 4),
                 "ratio": num(float(c.ratio[i]), 4),
-                "clause": c.clause,
+                "clause": clause_for(c.clause, int(r.batch.method[i])),
             }
         )
     act = int(r.action[i])

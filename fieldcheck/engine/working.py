@@ -13,7 +13,7 @@ from fieldcheck.engine import materials
 from fieldcheck.engine import quantities as q
 from fieldcheck.engine.batch import EC5, LRFD, METHOD_NAMES, PRODUCT_NAMES, ROUND
 from fieldcheck.engine.customary import IN
-from fieldcheck.engine.ec5_rating import ec5_steps
+from fieldcheck.engine.ec5_rating import clause_for, ec5_steps
 from fieldcheck.engine.loads import GIVEN
 from fieldcheck.engine.restraint import MODE_KEYS, MODES
 from fieldcheck.engine.result import ACTION_TEXT, Rating, Step
@@ -199,7 +199,9 @@ def closing_steps(r: Rating, i: int) -> list[Step]:
         )
         # every ASCE 7 combination is rated for every check; the largest ratio is kept
         given = combo == GIVEN
-        clause = c.clause + ("" if given else "; ASCE 7 §2.4.1 / §2.3.1, NDS 2018 §2.3.2")
+        clause = clause_for(c.clause, method) + (
+            "" if given else "; ASCE 7 §2.4.1 / §2.3.1, NDS 2018 §2.3.2"
+        )
         add(Step(f"Check: {c.label}", f"capacity {q.force(cap)}{rtxt}", clause))
     add(Step("Governing check", r.governing_name(i), ""))
     if not np.isnan(r.ratio[i]):

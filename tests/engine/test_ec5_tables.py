@@ -36,6 +36,24 @@ def test_kmod_vectorised_mixed_inputs():
     assert ec5.kmod(["1", "SC3"], "long-term").tolist() == [0.70, 0.55]
 
 
+@pytest.mark.parametrize("product", ["solid", "glulam", "lvl"])
+def test_kdef_table_3_2(product):
+    # EN 1995-1-1 Table 3.2 (TU Delft open textbook reproduction for solid timber and glulam;
+    # LVL from memory): k_def 0.6 / 0.8 / 2.0 in service classes 1 / 2 / 3, glulam as solid
+    np.testing.assert_array_equal(ec5.kdef([1, 2, 3], product), [0.6, 0.8, 2.0])
+    assert float(ec5.kdef("SC2", GLULAM)) == 0.8
+
+
+def test_glulam_gamma_m_beta_c_and_kmod():
+    # EN 1995-1-1 Table 2.3: gamma_M 1.25 for glued laminated timber (recommended value);
+    # §6.3.2 Eq. 6.29: beta_c 0.1 for glulam (0.2 solid); Table 3.1: k_mod as solid timber
+    assert float(ec5.gamma_m("glulam")) == 1.25 and float(ec5.beta_c("glulam")) == 0.1
+    assert float(ec5.beta_c("solid")) == 0.2
+    np.testing.assert_array_equal(
+        ec5.kmod(2, list(ec5.DURATIONS), "glulam"), ec5.kmod(2, list(ec5.DURATIONS), "solid")
+    )
+
+
 def test_gamma_m_table_2_3():
     # EN 1995-1-1 Table 2.3 recommended values (EN 1995-1-1 Table 2.3)
     np.testing.assert_array_equal(ec5.gamma_m(["solid", "glulam", "lvl"]), [1.3, 1.25, 1.2])
@@ -195,6 +213,7 @@ def test_reference_tables_carry_source_edition_status():
         "en338_classes",
         "en14080_glulam",
         "ec5_kmod",
+        "ec5_kdef",
         "ec5_gamma_m",
         "visual_grade_to_class",
     ):

@@ -98,3 +98,14 @@ def test_decay_reduces_the_ec5_capacity():
     assert errors == []
     # judgement: decayed wood has no strength: residual section
     assert decayed.capacity_n[0] < sound.capacity_n[0]
+
+
+def test_net_section_near_an_end_checked_on_ec5():
+    # a 50 mm hole bored through a 100 x 100 mm post near its top: the net section 100 x (100 -
+    # 50) = 5000 mm2 crushes at f_c,0,d A_net (EN 1995-1-1 §6.1.4), f_c,0,d = 0.8 x 21 / 1.3
+    # (C24, medium-term, SC1): 64.615 kN by hand
+    post = dict(BASE, height="1 m", load="20 kN", hole="50 mm", hole_height="0.95 m")
+    r, errors = rate_records([post])
+    assert errors == []
+    assert r.checks["net_section"].capacity_n[0] == pytest.approx(FC0D * 5000.0, rel=1e-9)
+    assert "EN 1995-1-1 §6.1.4" in r.checks["net_section"].clause
