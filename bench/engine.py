@@ -92,17 +92,9 @@ def floor(b) -> float:
 
 def combinations_per_post(b) -> float:
     """Mean number of combinations per post that differ in load or duration factor."""
-    from fieldcheck.engine.combinations import _dense
+    from fieldcheck.engine.combinations import distinct_per_post
 
-    load, fac, _, _ = _dense(b)
-    fac = np.broadcast_to(fac, load.shape)
-    count = np.zeros(b.n)
-    for j in range(load.shape[0]):
-        new = np.isfinite(load[j])
-        for i in range(j):
-            new &= (load[j] != load[i]) | (fac[j] != fac[i])
-        count += new
-    return round(float(count.mean()), 3)
+    return round(float(distinct_per_post(b).mean()), 3)
 
 
 def loop(b, sample: int) -> float:

@@ -213,6 +213,19 @@ def _dense(b: PostBatch):
     return load, fac, combo, has
 
 
+def distinct_per_post(b: PostBatch) -> np.ndarray:
+    """How many combinations of each post differ in load or duration factor (bench/engine.py)."""
+    load, fac, _, _ = _dense(b)
+    fac = np.broadcast_to(fac, load.shape)
+    count = np.zeros(b.n, dtype=np.intp)
+    for j in range(load.shape[0]):
+        new = ~np.isnan(load[j])
+        for i in range(j):
+            new &= (load[j] != load[i]) | (fac[j] != fac[i])
+        count += new
+    return count
+
+
 # the lowest set bit of a 16-bit mask (0 for none): the first row holding the largest value
 _FIRST_BIT = np.array([(x & -x).bit_length() - 1 if x else 0 for x in range(1 << 16)], np.uint8)
 
