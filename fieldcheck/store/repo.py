@@ -549,7 +549,14 @@ class Log:
         return _site(r)
 
     def find_site(self, name: str) -> Site | None:
-        r = self._one("SELECT * FROM sites WHERE name = ? ORDER BY rowid LIMIT 1", [name])
+        """The first site of that name, never the invented demo's (``demo_kept_out``): a new
+        visit or an import named like it makes a site of the user's own."""
+        hidden = list(self.demo_kept_out)
+        r = self._one(
+            "SELECT * FROM sites WHERE name = ? "
+            f"AND id NOT IN ({','.join('?' * len(hidden))}) ORDER BY rowid LIMIT 1",
+            [name, *hidden],
+        )
         return None if r is None else _site(r)
 
     def add_visit(

@@ -96,3 +96,13 @@ def test_every_synced_table_has_a_rule_for_the_demos_rows(table) -> None:
     from fieldcheck.store.demo_rows import kept_out
 
     assert kept_out(table).startswith(" AND NOT (")
+
+
+def test_a_site_named_like_the_demo_is_the_users_own(tmp_path) -> None:
+    path = tmp_path / "survey.fieldcheck"
+    older_log(path)
+    with Log.open(path) as log:
+        assert log.find_site("14 Alder Row") is None  # the demo's site is not offered
+        mine = log.add_site("14 Alder Row", "14 Alder Row, Eastfield")
+        assert log.find_site("14 Alder Row") == mine
+        assert "14 Alder Row" in [s.name for s in log.sites()]
