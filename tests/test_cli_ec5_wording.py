@@ -124,3 +124,13 @@ def test_a_mixed_block_shows_each_post_its_own_clauses():
     assert all("NDS" not in c["clause"] for c in ec["checks"])
     ec_checks = [s for s in explain.working(r, 1) if s.label.startswith("Check:")]
     assert ec_checks and all("NDS 2018 §3" not in s.clause for s in ec_checks)
+
+
+def test_values_line_names_en338_symbols(capsys):
+    # each value's status as EN 338 names the value (EN 338:2009 C35: f_m,k from the class name,
+    # the rest recalled)
+    rc, out, _ = _run(
+        capsys, [*POST, "--section", "140mmx140mm", "--class", "C35", "--en338-edition", "2009"]
+    )
+    assert rc == 0
+    assert re.search(r"^Values +f_m,k secondary, f_c,0,k memory", out, re.M), out

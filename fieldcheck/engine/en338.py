@@ -30,6 +30,16 @@ _VALUE_COLUMNS = (
     "rhok_kgm3",
     "rhomean_kgm3",
 )
+# the values as EN 338 and EN 14080 write them (glulam adds g: f_m,g,k ...; judgement: one name)
+SYMBOLS = {
+    "fmk_mpa": "f_m,k",
+    "fc0k_mpa": "f_c,0,k",
+    "fc90k_mpa": "f_c,90,k",
+    "e0mean_mpa": "E_0,mean",
+    "e005_mpa": "E_0,05",
+    "rhok_kgm3": "rho_k",
+    "rhomean_kgm3": "rho_mean",
+}
 EN338_2016, EN338_2009 = "EN 338:2016", "EN 338:2009"
 EN14080 = "EN 14080:2013"
 EDITIONS = (EN338_2016, EN338_2009)  # EN 338 editions held; the first is the default

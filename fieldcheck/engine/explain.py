@@ -16,7 +16,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from fieldcheck.engine import materials, remedies
+from fieldcheck.engine import en338, materials, remedies
 from fieldcheck.engine.batch import EC5, METHOD_NAMES
 from fieldcheck.engine.cautions import CAUTIONS
 from fieldcheck.engine.customary import LBF
@@ -61,7 +61,7 @@ def status_line(summary: dict) -> str | None:
         return materials.status_text(st)
     st = summary.get("strength_values_status")  # EC5: the EN 338 / EN 14080 values'
     if st:
-        return materials.status_text({k.split("_")[0]: v for k, v in st.items()})
+        return materials.status_text({en338.SYMBOLS.get(k, k): v for k, v in st.items()})
     return None
 
 

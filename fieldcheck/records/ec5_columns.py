@@ -180,10 +180,4 @@ def _statuses(held: dict) -> str:
 
 
 # the values the EC5 checks use, as EN 338 writes them
-SYMBOLS = {
-    "fmk_mpa": "f_m,k",
-    "fc0k_mpa": "f_c,0,k",
-    "fc90k_mpa": "f_c,90,k",
-    "e0mean_mpa": "E_0,mean",
-    "e005_mpa": "E_0,05",
-}
+SYMBOLS = {k: v for k, v in en338.SYMBOLS.items() if not k.startswith("rho")}
