@@ -203,26 +203,26 @@ def _govern(r: Rating) -> None:
     checks = list(r.checks.values())
     demand = checks[0].demand_n
     if all(c.demand_n is demand for c in checks):
-        # the smallest capacity that was computed (fmin passes over NaN: a check not made never
-        # governs); a NaN first (column) capacity stays NaN, as for a mechanism
         # in check order, a strictly smaller capacity takes over (ties keep the earlier check);
-        # fmin passes over NaN, so a check not made never governs. The governing index is
-        # updated by arithmetic on int8 (gov += lower * (k - gov)), cheaper than a masked copy.
+        # fmin passes over NaN, so a check not made never governs, and a column with no
+        # capacity (a mechanism, no section) never hides another check that fails: the
+        # smallest capacity made governs, as the largest ratio does below (NaN only when no
+        # check was made). The governing index is updated by arithmetic on int8
+        # (gov += lower * (k - gov)), cheaper than a masked copy.
         first = checks[0].capacity_n
         cap = first
         gov = np.zeros(r.n, dtype=np.int8)
+        some_nan = bool(np.isnan(first).any())
         for k in range(1, len(checks)):
             c = checks[k].capacity_n
             if absent(c):
                 continue
             lower = c < cap  # NaN compares False
+            if some_nan:  # a capacity made takes over from none
+                lower |= np.isnan(cap) & ~np.isnan(c)
             if lower.any():
                 gov += lower * (np.int8(k) - gov)
             cap = np.fmin(cap, c)
-        nan_first = np.isnan(first)
-        if nan_first.any():  # no column capacity (a mechanism): NaN, as the column check says
-            cap = np.where(nan_first, first, cap)
-            gov = np.where(nan_first, np.int8(0), gov)
         with np.errstate(divide="ignore", invalid="ignore"):
             ratio = demand / cap
     else:

@@ -166,3 +166,12 @@ def test_json_never_nan_or_infinity_property(side, h, load, bottom, top, contact
         )
     )
     json.dumps(summary(r, 0, with_remedies=False), allow_nan=False)
+
+
+def test_a_column_with_no_capacity_never_hides_another_check():
+    # judgement: a mechanism (free-free ends) has no column capacity; the bearing checks that
+    # were made still govern the ratio, alone as in a batch, and the action is make-safe-now
+    one = _batch(load_n=1000.0, top=FREE, bottom=FREE, bottom_fc_perp_mpa=100 * PSI)
+    r = rate(one)
+    assert r.governing_name(0) == "sill_bearing" and np.isfinite(r.ratio[0])
+    assert ACTIONS[int(r.action[0])] == "make-safe-now"
