@@ -286,8 +286,8 @@ def kc(lam_rel, beta_c) -> np.ndarray:
 
 
 def compression_design_strength(fc0k, kmod, gamma_m) -> np.ndarray:
-    """f_c,0,d (MPa) = k_mod f_c,0,k / gamma_M; EN 1995-1-1 §2.4.1 Eq. 2.17."""
-    return _f64(kmod) * _f64(fc0k) / _f64(gamma_m)  # §2.4.1 Eq. 2.17
+    """f_c,0,d (MPa) = k_mod f_c,0,k / gamma_M; EN 1995-1-1 §2.4.1 Eq. 2.14."""
+    return _f64(kmod) * _f64(fc0k) / _f64(gamma_m)  # §2.4.1 Eq. 2.14
 
 
 class ColumnResistance(NamedTuple):
@@ -302,7 +302,7 @@ class ColumnResistance(NamedTuple):
     k2: np.ndarray
     kc1: np.ndarray  # Eq. 6.25/6.26
     kc2: np.ndarray
-    fc0d: np.ndarray  # f_c,0,d (MPa), Eq. 2.17
+    fc0d: np.ndarray  # f_c,0,d (MPa), §2.4.1 Eq. 2.14
     n_rd1: np.ndarray  # k_c,1 f_c,0,d A (N)
     n_rd2: np.ndarray
     n_rd: np.ndarray  # governing: min(n_rd1, n_rd2) (N)
@@ -330,7 +330,7 @@ def column_resistance(
     k2 = k_factor(lr2, bc)  # Eq. 6.28
     kc1 = kc(lr1, bc)  # Eq. 6.25
     kc2 = kc(lr2, bc)  # Eq. 6.26
-    fc0d = compression_design_strength(fc0k, kmod, gamma_m)  # Eq. 2.17
+    fc0d = compression_design_strength(fc0k, kmod, gamma_m)  # §2.4.1 Eq. 2.14
     n1 = kc1 * fc0d * area  # §6.3.2(3): sigma_c,0,d <= k_c,y f_c,0,d
     n2 = kc2 * fc0d * area  # §6.3.2(3): sigma_c,0,d <= k_c,z f_c,0,d
     gov = np.where(n1 < n2, 1, 2).astype(np.int8)
@@ -416,7 +416,7 @@ def bearing_perp_resistance(
     enhanced = np.where(sup == 1, cont, np.where(sup == 2, disc, 1.0))
     kc90 = np.where(spaced & soft, enhanced, 1.0)  # §6.1.5(2): 1.0 otherwise, never above 1.75
 
-    fc90d = compression_design_strength(fc90k, kmod, gamma_m)  # §2.4.1 Eq. 2.17 with f_c,90,k
+    fc90d = compression_design_strength(fc90k, kmod, gamma_m)  # §2.4.1 Eq. 2.14 with f_c,90,k
     n_rd = kc90 * fc90d * aef  # §6.1.5 Eq. 6.3
     arrs = np.broadcast_arrays(lef, aef, kc90, fc90d, n_rd)
     return BearingResistance(*(np.array(x) for x in arrs))
@@ -450,11 +450,11 @@ def km(shape=_batch.RECT) -> np.ndarray:
 
 
 def bending_design_strength(fmk, kmod, gamma_m, kh=1.0) -> np.ndarray:
-    """f_m,d (MPa) = k_h k_mod f_m,k / gamma_M; EN 1995-1-1 §2.4.1 Eq. 2.17 with §3.2(3) k_h.
+    """f_m,d (MPa) = k_h k_mod f_m,k / gamma_M; EN 1995-1-1 §2.4.1 Eq. 2.14 with §3.2(3) k_h.
 
     k_h defaults to 1.0 (conservative); see :func:`kh_bending`.
     """
-    return _f64(kh) * _f64(kmod) * _f64(fmk) / _f64(gamma_m)  # §2.4.1 Eq. 2.17, §3.2(3)
+    return _f64(kh) * _f64(kmod) * _f64(fmk) / _f64(gamma_m)  # §2.4.1 Eq. 2.14, §3.2(3)
 
 
 def kh_bending(depth_mm, product="solid") -> np.ndarray:

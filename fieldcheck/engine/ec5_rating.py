@@ -290,7 +290,7 @@ def ec5_steps(r: Rating, i: int) -> list[Step]:
         Step(
             f"f_c,0,d = k_mod f_c,0,k / {GAMMA_M}",
             f"{v['ec5_fc0d'][i]:.3f} MPa",
-            "EN 1995-1-1 §2.4.1 Eq. 2.17",
+            "EN 1995-1-1 §2.4.1 Eq. 2.14",
         )
     )
     s.append(
@@ -374,7 +374,7 @@ def _combined_steps(r: Rating, i: int) -> list[Step]:
         Step(
             f"f_m,d = k_mod f_m,k / {GAMMA_M} (k_h = 1)",
             f"{v['ec5_fmd'][i]:.3f} MPa",
-            "EN 1995-1-1 §2.4.1 Eq. 2.17, §3.2",
+            "EN 1995-1-1 §2.4.1 Eq. 2.14, §3.2",
         ),
         Step(
             "Bow limit (straightness)",

@@ -6,7 +6,7 @@ import pytest
 from fieldcheck.engine import ec5
 from fieldcheck.engine.batch import BUILT_UP, RECT, ROUND
 
-FC90D = 0.8 * 2.5 / 1.3  # C24 sill, medium-term, SC1: EN 1995-1-1 Eq. 2.17 with f_c,90,k
+FC90D = 0.8 * 2.5 / 1.3  # C24 sill, medium-term, SC1: EN 1995-1-1 §2.4.1 Eq. 2.14 with f_c,90,k
 
 
 def test_bearing_general_adds_30mm_each_side():

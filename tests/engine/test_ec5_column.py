@@ -31,7 +31,7 @@ def test_example_d_c24_100x100_3m_medium_term_sc1():
     assert float(r.lam_rel1) == pytest.approx(1.762202, rel=1e-6)  # Eq. 6.21
     assert float(r.k1) == pytest.approx(2.198899, rel=1e-6)  # Eq. 6.27
     assert float(r.kc1) == pytest.approx(0.284566, rel=1e-5)  # Eq. 6.25
-    assert float(r.fc0d) == pytest.approx(12.923077, rel=1e-7)  # Eq. 2.17
+    assert float(r.fc0d) == pytest.approx(12.923077, rel=1e-7)  # §2.4.1 Eq. 2.14
     assert float(r.n_rd) == pytest.approx(36774.75, rel=REL)
     assert float(r.n_rd) == pytest.approx(36774.75, abs=0.05)
     assert float(r.kc) == pytest.approx(0.284566, rel=1e-5)  # stability_factor
@@ -61,7 +61,7 @@ def test_variant_d3_c24_2400mm():
 def test_variant_d4_c16_3m():
     # EN 1995-1-1 §6.3.2, C24 100 x 100 mm 3 m, computed by hand from EN 1995-1-1 §6.3.2
     v = en338.strength_class("C16")
-    assert (v["fc0k_mpa"], v["e005_mpa"]) == (17.0, 5400.0)  # EN 338:2009
+    assert (v["fc0k_mpa"], v["e005_mpa"]) == (17.0, 5400.0)  # EN 338:2016 Table 1 (as 2009)
     r = _square_post(100.0, 3000.0, "C16", 1, "medium-term")
     assert float(r.lam_rel1) == pytest.approx(1.856050, rel=1e-6)
     assert float(r.k1) == pytest.approx(2.378065, rel=1e-6)

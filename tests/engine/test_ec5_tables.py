@@ -65,8 +65,8 @@ def test_gamma_m_table_2_3():
     assert rows[("connections", "fundamental")] == 1.3  # EN 1995-1-1 Table 2.3
 
 
-def test_compression_design_strength_eq_2_17():
-    # EN 1995-1-1 §2.4.1 Eq. 2.17; EN 1995-1-1 §6.3.2, C24 100 x 100 mm 3 m, computed by hand: 0.8 x
+def test_compression_design_strength_eq_2_14():
+    # EN 1995-1-1 §2.4.1 Eq. 2.14; EN 1995-1-1 §6.3.2, C24 100 x 100 mm 3 m, computed by hand: 0.8 x
     # 21 / 1.3
     assert float(ec5.compression_design_strength(21.0, 0.8, 1.3)) == pytest.approx(
         12.923077, rel=1e-7
