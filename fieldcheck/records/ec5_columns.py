@@ -60,6 +60,7 @@ COLUMNS: tuple[Column, ...] = (
         "2016",
         _edition,
         "2016",
+        ("2016", "2009"),  # the editions held (en338.EDITIONS), shown as choices in the form
     ),
     Column(
         "service_class",

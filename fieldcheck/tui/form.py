@@ -55,7 +55,15 @@ SECTIONS: tuple[tuple[str, str, tuple[str, ...], tuple[str, ...], tuple[str, ...
         "Material",
         ("material",),
         ("species", "grade", "moisture"),
-        ("method", "class", "service_class", "data_level", "incised", "temperature"),
+        (
+            "method",
+            "class",
+            "en338_edition",
+            "service_class",
+            "data_level",
+            "incised",
+            "temperature",
+        ),
     ),
     ("seen", "What is seen", ("condition",), (), ()),
     ("load", "Load", ("load",), ("load", "duration"), ("construction",)),
@@ -147,6 +155,7 @@ LABELS = {
     "slope_table": "slope table",
     "beyond_grade": "beyond grade",
     "service_class": "service class",
+    "en338_edition": "EN 338 edition",
     "data_level": "data level",
     "live_reduction": "live reduction",
     "rain_duration": "rain duration",
@@ -274,31 +283,53 @@ def choices_text(col: Any) -> str:
     return ""
 
 
+# columns naming a strength class (EN 338 or EN 14080): the classes held are suggested in place
+STRENGTH_CLASS = ("class", "cap_class", "sill_class")
+
+
+def class_ranges(names: Iterable[str]) -> str:
+    """The classes held as ranges by family: "C14 to C50 · D18 to D80 · GL20h to GL32h"."""
+    families: dict[str, list[str]] = {}
+    for n in names:
+        families.setdefault(n.rstrip("h").rstrip("0123456789"), []).append(n)
+    return " · ".join(f"{v[0]} to {v[-1]}" if len(v) > 1 else v[0] for v in families.values())
+
+
 def field_row(col: Any, value: str) -> Horizontal:
     """One field: its name and its input (the message line is added on demand)."""
+    return Horizontal(
+        Label(label(col.name), classes="field-name"), field_input(col, value), classes="field"
+    )
+
+
+def field_input(col: Any, value: str) -> FieldInput:
+    """A field's input: its hint (choices, default or example), tooltip and suggestions."""
     fid, _ = field_ids(col.name)
     hint = choices_text(col) or (f"{col.default} (default)" if col.default else "")
     hint = hint or (f"e.g. {col.example}" if col.example else "")  # never read as typed
+    tip = plain(col.help) + (f". Example: {col.example}" if col.example else "")
     if col.choices:
         suggester = SuggestFromList(col.choices, case_sensitive=False)
     elif col.flag:
         suggester = SuggestFromList(("yes", "no"), case_sensitive=False)
+    elif col.name in STRENGTH_CLASS:
+        from fieldcheck.engine.en338 import class_names
+
+        held = class_names()
+        hint = class_ranges(held)
+        tip += ". Classes held: " + ", ".join(held)
+        suggester = SuggestFromList(held, case_sensitive=False)
     else:
         suggester = None
-    tip = plain(col.help) + (f". Example: {col.example}" if col.example else "")
-    return Horizontal(
-        Label(label(col.name), classes="field-name"),
-        FieldInput(
-            value=value,
-            placeholder=hint,
-            id=fid,
-            compact=True,
-            tooltip=tip,
-            suggester=suggester,
-            select_on_focus=False,
-            choices=col.choices or (("yes", "no") if col.flag else ()),
-        ),
-        classes="field",
+    return FieldInput(
+        value=value,
+        placeholder=hint,
+        id=fid,
+        compact=True,
+        tooltip=tip,
+        suggester=suggester,
+        select_on_focus=False,
+        choices=col.choices or (("yes", "no") if col.flag else ()),
     )
 
 

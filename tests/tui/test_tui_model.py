@@ -178,3 +178,38 @@ def test_an_empty_field_with_a_default_says_it_is_the_default():
     row = form.field_row(COLUMNS["decay_margin"], "")
     field = row._pending_children[1]
     assert field.placeholder == "1/2 in (default)" and field.value == ""
+
+
+def test_a_eurocode_post_is_enterable_from_the_form_edition_and_glulam_included():
+    from fieldcheck.engine import explain
+    from fieldcheck.engine.rating import rate
+    from fieldcheck.records import parse_records
+
+    common, more = form.layout(COLUMNS)["material"]
+    names = [c.name for c in common + more]
+    # the EC5 fields sit together under the material section
+    assert names.index("class") + 1 == names.index("en338_edition")
+    assert names.index("en338_edition") + 1 == names.index("service_class")
+    assert form.label("en338_edition") == "EN 338 edition"
+    # its choices in place, the default first: EN 338:2016 is the current edition, 2009 the one
+    # it replaced (EN 338:2016 foreword)
+    assert form.choices_text(COLUMNS["en338_edition"]) == "2016 (default) · 2009"
+    assert form.field_input(COLUMNS["en338_edition"], "").choices == ("2016", "2009")
+    # the strength-class field names the glulam classes of EN 14080:2013 too
+    hint = form.field_input(COLUMNS["class"], "").placeholder
+    assert "C14 to C50" in hint and "GL20h to GL32h" in hint
+    # what the form holds (field name -> text) rates with the edition chosen
+    post = {"section": "150x150mm", "height": "3m", "method": "ec5", "load": "40kN"}
+    for cls, edition, named in (
+        ("C18", "2009", "EN 338:2009"),
+        ("C18", "", "EN 338:2016"),  # left empty: the default edition
+        ("GL24h", "", "EN 14080:2013"),
+    ):
+        rec = {**post, "class": cls, **({"en338_edition": edition} if edition else {})}
+        parsed = parse_records([rec])
+        assert not parsed.errors
+        summary = explain.summary(rate(parsed.batch), 0, with_remedies=False)
+        assert (summary["strength_class"], summary["strength_class_edition"]) == (cls, named)
+    # a glulam class with an EN 338 edition is refused at the edition field, in one sentence
+    parsed = parse_records([{**post, "class": "GL24h", "en338_edition": "2016"}])
+    assert [e.column for e in parsed.errors] == ["en338_edition"]
