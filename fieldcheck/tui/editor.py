@@ -30,7 +30,6 @@ from textual.css.query import NoMatches
 from textual.screen import Screen
 from textual.widgets import (
     Collapsible,
-    Footer,
     Header,
     Input,
     OptionList,
@@ -46,6 +45,7 @@ from fieldcheck.engine.rating import rate
 from fieldcheck.records import COLUMNS, parse_records
 from fieldcheck.tui import present, remedy_words
 from fieldcheck.tui.drawing import ends_drawing
+from fieldcheck.tui.footer import FittedFooter
 from fieldcheck.tui.form import (
     DefectGroup,
     DefectPicker,
@@ -84,7 +84,8 @@ def capacity_curve(batch: Any, heights_mm: np.ndarray) -> np.ndarray:
 class PostEditor(ReleasesKeys, Screen[None]):
     AUTO_FOCUS = "#form Input"
     BINDINGS = [
-        # save, back and help first: the footer is cut at 80 columns (F1 and ctrl+p list all)
+        # save, back and help first: the footer shows the keys that fit whole, in this order
+        # (F1 and ctrl+p list all)
         Binding("ctrl+s", "save", "Save", id="save"),
         Binding("escape", "leave", "Back", id="leave"),
         Binding("f1", "app.help", "Help", id="editor_help"),
@@ -164,7 +165,7 @@ class PostEditor(ReleasesKeys, Screen[None]):
                     yield OptionList(id="remedy-list")
                 with TabPane("History F6", id="history"), VerticalScroll():
                     yield Static("", id="history-panel")
-        yield Footer()
+        yield FittedFooter()
 
     def on_mount(self) -> None:
         self.set_class(self.app.size.width < self.NARROW, "-narrow")

@@ -17,8 +17,9 @@ from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Vertical
 from textual.screen import ModalScreen, Screen
-from textual.widgets import DataTable, Footer, Header, Input, Label, Static
+from textual.widgets import DataTable, Header, Input, Label, Static
 
+from fieldcheck.tui.footer import FittedFooter
 from fieldcheck.tui.present import action_word, escape, ratio_text
 
 KINDS = {
@@ -93,7 +94,7 @@ class OfficeScreen(Screen[None]):
         yield Static("Office review: loading the hub…", id="office-title", classes="title")
         yield DataTable(id="review-queue", cursor_type="row", zebra_stripes=True)
         yield Static("", id="office-status", classes="status")
-        yield Footer()
+        yield FittedFooter()
 
     def on_mount(self) -> None:
         table = self.query_one("#review-queue", DataTable)

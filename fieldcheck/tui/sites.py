@@ -8,8 +8,9 @@ from textual import on, work
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.screen import Screen
-from textual.widgets import DataTable, Footer, Header, Static
+from textual.widgets import DataTable, Header, Static
 
+from fieldcheck.tui.footer import FittedFooter
 from fieldcheck.tui.keyhold import ReleasesKeys
 from fieldcheck.tui.present import ACTION_ORDER, escape
 
@@ -62,7 +63,7 @@ class SitesScreen(ReleasesKeys, Screen[None]):
         table: DataTable[Any] = DataTable(id="visits", cursor_type="row", zebra_stripes=True)
         yield table
         yield Static("", id="sites-status", classes="status")
-        yield Footer()
+        yield FittedFooter()
 
     def on_mount(self) -> None:
         table = self.query_one("#visits", DataTable)

@@ -15,8 +15,9 @@ from textual import on, work
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.screen import Screen
-from textual.widgets import DataTable, Footer, Header, Input, Static
+from textual.widgets import DataTable, Header, Input, Static
 
+from fieldcheck.tui.footer import FittedFooter
 from fieldcheck.tui.keyhold import ReleasesKeys
 from fieldcheck.tui.present import (
     ACTION_ORDER,
@@ -136,7 +137,7 @@ class VisitScreen(ReleasesKeys, Screen[None]):
         )
         yield DataTable(id="posts", cursor_type="row", zebra_stripes=True)
         yield Static("", id="visit-status", classes="status")
-        yield Footer()
+        yield FittedFooter()
 
     def on_mount(self) -> None:
         table = self.query_one("#posts", DataTable)

@@ -190,6 +190,23 @@ def footer_keys(app) -> dict[str, str]:
     }
 
 
+def footer_line(app) -> str:
+    """The footer as drawn: its keys, whole, and none cut by the palette key or the edge."""
+    line = app.screen._compositor.render_strips()[-1].text
+    left, bar, right = line.partition("▏")  # the palette key is docked right, after a bar
+    assert bar and "palette" in right, line
+    shown = [
+        k
+        for k in app.screen.query_one(Footer).query("FooterKey")
+        if k.display and not k.has_class("-command-palette")
+    ]
+    labels = [f"{k.key_display or k.key} {k.description}" for k in shown]
+    for text in labels:
+        assert f" {text} " in left, (text, line)  # every label whole
+    assert left.rstrip().endswith(labels[-1]), line  # nothing after the last whole label
+    return line
+
+
 async def test_footer_at_80_by_24_and_one_meaning_per_key(db, ui) -> None:
     app = ui.app(db)
     async with app.run_test(size=(80, 24)) as pilot:
@@ -210,6 +227,17 @@ async def test_footer_at_80_by_24_and_one_meaning_per_key(db, ui) -> None:
         await ui.open_post(app, pilot, "B1")
         for needed in ("Save", "Back", "Help", "Undo"):
             assert needed in footer_keys(app), needed
+        assert "Propose remedy" in footer_line(app)  # issue 14 item 3: labels never cut
+        await pilot.resize_terminal(60, 20)
+        await ui.settle(app, pilot)
+        assert "Propose" not in footer_line(app)  # left out whole: F1 and ctrl+p list it
+        for needed in ("Save", "Back", "Help", "Undo"):
+            assert needed in footer_keys(app), needed
+        await pilot.resize_terminal(120, 40)  # wider again: the keys left out come back
+        await ui.settle(app, pilot)
+        assert "Remedy done" in footer_line(app)
+        await pilot.resize_terminal(80, 24)
+        await ui.settle(app, pilot)
         same_everywhere()
         tabs = [str(t.label) for t in app.screen.query("Tab")]
         keys = {b.description: b.key for b in app.screen.BINDINGS if b.key.startswith("f")}
@@ -220,6 +248,7 @@ async def test_footer_at_80_by_24_and_one_meaning_per_key(db, ui) -> None:
         await ui.settle(app, pilot)
         for needed in ("Open", "New post", "Back", "Help"):
             assert needed in footer_keys(app), needed
+        footer_line(app)
         same_everywhere()
         # F8 switches the units the list shows (the load column, last)
         table = app.screen.query_one("#posts", DataTable)
