@@ -238,17 +238,23 @@ def _section(
         hol = parts["hollow"] * inc_hollow
         a_h = (np.pi / 4.0) * hol * hol
         area -= a_h
+    xc, yc = 0.5 * (a1m - a1p), 0.5 * (a2m - a2p)  # centre of the rectangle left by the faces
     if parts["has_hole"]:
         hole = parts["hole"] * inc_hole
         tw = parts["hole_wide"]  # 1.0: bored through the wide faces (runs along d2), else 0.0
-        a_bore = hole * (tw * b2 + (1.0 - tw) * b1)
+        # the bore is on the original centre line; only its part inside the rectangle the face
+        # losses left is taken off (a part in wood already lost is not taken twice: geometry)
+        lo = np.maximum(-0.5 * hole, np.where(tw > 0, xc - 0.5 * b1, yc - 0.5 * b2))
+        hi = np.minimum(0.5 * hole, np.where(tw > 0, xc + 0.5 * b1, yc + 0.5 * b2))
+        h_in = np.maximum(hi - lo, 0.0)  # the bore's diameter inside the rectangle
+        m_in = np.where(h_in > 0, 0.5 * (lo + hi), 0.0)  # and the centre of that part
+        a_bore = h_in * (tw * b2 + (1.0 - tw) * b1)
         area -= a_bore
     np.maximum(area, 0.0, out=area)
     out = {"area": area}
     if not full:
         return out
     # first and second moments about the original centre, then about the new centroid
-    xc, yc = 0.5 * (a1m - a1p), 0.5 * (a2m - a2p)
     sx_, sy_ = ar * xc, ar * yc
     i1 = b2 * b1 * b1 * b1 / 12.0 + ar * xc * xc
     i2 = b1 * b2 * b2 * b2 / 12.0 + ar * yc * yc
@@ -266,12 +272,13 @@ def _section(
         i1 -= i_h
         i2 -= i_h
     if parts["has_hole"]:
-        xb, yb = (1.0 - tw) * xc, tw * yc
+        xb = tw * m_in + (1.0 - tw) * xc
+        yb = tw * yc + (1.0 - tw) * m_in
         sx_ -= a_bore * xb
         sy_ -= a_bore * yb
-        h3 = hole * hole * hole / 12.0
-        i1 -= tw * b2 * h3 + (1.0 - tw) * hole * b1 * b1 * b1 / 12.0 + a_bore * xb * xb
-        i2 -= tw * hole * b2 * b2 * b2 / 12.0 + (1.0 - tw) * b1 * h3 + a_bore * yb * yb
+        h3 = h_in * h_in * h_in / 12.0
+        i1 -= tw * b2 * h3 + (1.0 - tw) * h_in * b1 * b1 * b1 / 12.0 + a_bore * xb * xb
+        i2 -= tw * h_in * b2 * b2 * b2 / 12.0 + (1.0 - tw) * b1 * h3 + a_bore * yb * yb
     safe = np.maximum(area, 1e-9)
     xbar, ybar = sx_ / safe, sy_ / safe
     i1 = np.maximum(i1 - area * xbar * xbar, 0.0)

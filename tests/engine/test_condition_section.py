@@ -48,6 +48,22 @@ def test_one_face_decay_hand_computed():
     assert v["le_d2"][0] / (120 / 5.5) == pytest.approx(5.5 / 4.5)  # le/d up by 22 %
 
 
+def test_a_bore_is_not_taken_twice_where_decay_already_took_the_wood():
+    # geometry: 6x6 (5.5 in), 2 in of decay on one wide face leaves y from -2.75 to +0.75 in;
+    # a 2 in bore through the narrow faces on the centre line spans y from -1 to +1 in, of
+    # which only -1 to +0.75 is wood still there. What is left: y from -2.75 to -1 in, a
+    # 5.5 x 1.75 in rectangle (area, I and depth by hand)
+    r = rate(_post(decay_2p_mm=2.0 * IN, decay_margin_mm=0.0, hole_mm=2.0 * IN, hole_face=1))
+    v = r.values
+    assert v["area"][0] == pytest.approx(5.5 * 1.75 * IN**2)
+    assert v["res_i2"][0] == pytest.approx(5.5 * 1.75**3 / 12 * IN**4)
+    assert v["d_eff2"][0] == pytest.approx(1.75 * IN)
+    assert np.isfinite(r.checks["column"].capacity_n[0])
+    # a bore wholly inside what is left is taken off whole, as before: 1 in bore, same decay
+    r = rate(_post(decay_2p_mm=2.0 * IN, decay_margin_mm=0.0, hole_mm=1.0 * IN, hole_face=1))
+    assert r.values["area"][0] == pytest.approx((5.5 * 3.5 - 5.5 * 1.0) * IN**2)
+
+
 def test_decay_margin_default_half_inch():
     # judgement default 13 mm (decay reaches further than probed): 1 in probed acts as 1 in + 13 mm
     v = rate(_post(decay_2p_mm=1.0 * IN)).values

@@ -97,15 +97,15 @@ def test_losses_together_leaving_no_section_are_refused(capsys):
 
 
 def test_losses_together_leaving_no_section_are_refused_in_a_batch():
-    # geometry: 1 in of decay (+ 1/2 in margin) on a wide face, a 1.7 in hole from a narrow
-    # face and 1.7 in wane at all four corners of a 3.5 in post: no section at the hole
+    # geometry: 1.2 in of decay (+ 1/2 in margin) on both wide faces of a 3.5 in post leaves
+    # 0.08 in at the centre, and a 1/2 in bore through the narrow faces takes that: no section
     post = {"size": "4x4", "height": "8ft", "species": "dfl", "grade": "no2", "load": "1000lbf"}
-    gone = {**post, "decay_wide": "1in", "hole": "1.7in", "hole_face": "narrow"}
-    gone.update(wane="1.7in", wane_corners="4")
+    gone = {**post, "decay_wide": "1.2in", "decay_wide2": "1.2in", "hole": "0.5in"}
+    gone.update(hole_face="narrow")
     rating, errors = rate_records([post, gone, {**post, "decay_wide": "1in"}])
     assert rating.n == 2  # the other posts are rated
     assert [(e.row, e.column) for e in errors] == [(1, "decay_wide")]
-    assert "no section" in errors[0].sentence() and "wane and hole" in errors[0].sentence()
+    assert "no section" in errors[0].sentence() and "decay_wide2 and hole" in errors[0].sentence()
 
 
 def test_json_never_holds_nan_or_infinity():
