@@ -215,6 +215,12 @@ class FieldInput(Input):
         super().__init__(*args, **kwargs)
         self.choices = tuple(choices)
 
+    def update_node_styles(self, animate: bool = True) -> None:
+        # the stylesheet is applied as the field is mounted: the classes Input sets while it is
+        # made (compact, valid) need no restyle of their own before (2 ms a field, judgement)
+        if self.is_attached:
+            super().update_node_styles(animate=animate)
+
     def complete(self) -> None:
         """A fixed-choice field: the first letters of exactly one choice stand for it."""
         v = self.value.strip().lower()
