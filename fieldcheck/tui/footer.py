@@ -34,12 +34,17 @@ class FittedFooter(Footer):
         )
         return (self.size.width, *keys)
 
+    _pending = False  # a rebuild is on its way (it reads the bindings as it runs)
+
     def bindings_changed(self, screen: Any) -> None:
+        if self.is_attached and screen is self.screen and self._pending:
+            return
         if self.is_attached and screen is self.screen and self._shown == self.shown():
             self._bindings_ready = True
             self.call_after_refresh(self.fit)  # e.g. its screen shown again, laid out anew
             return  # the keys on show are the keys to show
         super().bindings_changed(screen)
+        self._pending = self.is_attached and screen is self.screen and screen.app.app_focus
 
     def compose(self) -> ComposeResult:
         for widget in super().compose():
@@ -51,6 +56,7 @@ class FittedFooter(Footer):
             yield widget
 
     async def recompose(self) -> None:
+        self._pending = False
         if self.is_attached:
             self._shown = self.shown()
         await super().recompose()
@@ -59,6 +65,7 @@ class FittedFooter(Footer):
     def on_resize(self, _event: Any) -> None:
         # a wider screen may hold keys left out before: lay them all out again, then fit
         if self._shown is not None and self._shown[0] != self.size.width:
+            self._pending = True
             self.call_after_refresh(self.recompose)
         else:
             self.call_after_refresh(self.fit)
