@@ -636,6 +636,13 @@ def _stored(p: PostEntry, units: str) -> str:
 
 # working steps the post's result and checks tables already show (the report prints them once)
 SHOWN_ABOVE = ("Governing check", "Demand / capacity", "Action")
+# steps whose clause column is a legend: the report prints the legend once, in the section on the
+# engine and reference data, and points to it from each post
+LEGEND_ONCE = {"Status of the reference values": "key under Engine and reference data"}
+STATUS_KEY = (
+    "Status of each reference value: read, from the source; secondary, from a reproduction of "
+    "it; from memory, recalled, not read (to be checked against the source before release)."
+)
 
 
 def working_rows(steps) -> list[tuple[str, str, str]]:
@@ -643,7 +650,7 @@ def working_rows(steps) -> list[tuple[str, str, str]]:
     tables above already show are left out; the two axes' steps are written once when they are
     equal (a square post); a step repeated with the same value is written once."""
     rows = [
-        (st.label, st.value, st.clause)
+        (st.label, st.value, LEGEND_ONCE.get(st.label, st.clause))
         for st in steps
         if not st.label.startswith("Check:") and st.label not in SHOWN_ABOVE
     ]
@@ -777,7 +784,8 @@ def _engine(d: ReportData) -> str:
     return (
         '<section id="engine"><h2>Engine and reference data</h2>'
         f"<p>fieldcheck engine version {e(d.engine_version)}. Reference-data editions used for "
-        f'every re-rating in this report:</p><ul class="editions small">{items}</ul></section>'
+        f'every re-rating in this report:</p><ul class="editions small">{items}</ul>'
+        f'<p class="small">{e(STATUS_KEY)}</p></section>'
     )
 
 

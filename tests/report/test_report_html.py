@@ -7,7 +7,7 @@ import re
 import pytest
 
 from fieldcheck.engine.cautions import CAUTIONS
-from fieldcheck.report.html import render_report, write_report
+from fieldcheck.report.html import STATUS_KEY, render_report, write_report
 from fieldcheck.report.style import FOOTER_CAUTION, css_string
 
 
@@ -214,3 +214,15 @@ def test_a_large_batch_reports_the_same_as_a_small_one(demo_log, monkeypatch):
     whole = render_report(demo_log, now=now)
     monkeypatch.setattr(rating_mod, "BLOCK", 2)  # the demo's posts in blocks of two: partial
     assert render_report(demo_log, now=now) == whole
+
+
+def test_reference_value_status_key_is_printed_once_and_each_post_points_to_it(demo_log):
+    # judgement: the key to read/secondary/memory is a legend, not a clause; printed once it keeps
+    # the nine-post demo within its page limit while every post still shows each value's status
+    out = render_report(demo_log)
+    assert out.count(STATUS_KEY) == 1
+    assert "read: from the source" not in out
+    assert out.count("Status of the reference values") == out.count(
+        "key under Engine and reference data"
+    )
+    assert out.count("Status of the reference values") >= 1
