@@ -93,18 +93,6 @@ def _loads_many(texts: list[str]) -> list:
     return json.loads("[" + ",".join(texts) + "]")
 
 
-def _import_record(r: Mapping[str, object]) -> dict[str, str]:
-    """A row to import as its record: the export-only columns dropped, empty cells left out."""
-    out: dict[str, str] = {}
-    for k, v in r.items():
-        if v is None or k in _EXPORT_ONLY:
-            continue
-        t = v if isinstance(v, str) else str(v)
-        if t.strip():
-            out[str(k)] = t
-    return out
-
-
 # ----------------------------------------------------------------------------- dataclasses
 
 
@@ -934,7 +922,7 @@ class Log:
             created = now()
             dev, who = self.device_id, self.author
             while batch := list(itertools.islice(source, chunk)):
-                records = [_import_record(r) for r in batch]
+                records = [clean_record(r, _EXPORT_ONLY) for r in batch]
                 del batch
                 result = rated.rate_columns(records, summaries=False, cache=cache)
                 errors.extend(e.at(read + e.row) for e in result.errors)

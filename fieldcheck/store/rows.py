@@ -97,11 +97,14 @@ def dumps(obj) -> str:
     return _ENCODE(obj)
 
 
-def clean_record(record: Mapping[str, object]) -> dict[str, str]:
-    """The record as typed, minus cells left empty (an empty cell means "not given")."""
+def clean_record(
+    record: Mapping[str, object], drop: frozenset[str] = frozenset()
+) -> dict[str, str]:
+    """The record as typed, minus cells left empty (an empty cell means "not given") and the
+    columns in ``drop`` (an import leaves out the columns only an export writes)."""
     out: dict[str, str] = {}
     for k, v in record.items():
-        if v is None:
+        if v is None or k in drop:
             continue
         s = v if isinstance(v, str) else str(v)
         if s.strip():

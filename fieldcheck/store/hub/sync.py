@@ -46,6 +46,7 @@ from fieldcheck.store.merge import (
     merge,
 )
 from fieldcheck.store.schema import SCHEMA_VERSION
+from fieldcheck.store.sync_summary import locked
 
 RETRIES = 30
 CLASH_RETRIES = 3  # a unique (device_id, device_seq) race between two syncs of the same rows
@@ -409,7 +410,7 @@ def _receive(log, conn: psycopg.Connection, hub: HubInfo, progress: Progress | N
             ranges=dict(ranges),
             row_counts=counts,
         )
-        with _locked(log):
+        with locked(log):
             rw = bf.connect_rw(field_path)
             try:
                 rw.execute("ATTACH DATABASE ? AS bundle", [bf._uri(snap, "ro")])
@@ -489,16 +490,6 @@ def _pull(conn, out: sqlite3.Connection, tables, cols, ranges) -> dict[str, int]
         out.executemany(f"INSERT INTO engine_stamps ({ec}) VALUES ({marks})", rows)
         counts["engine_stamps"] = len(rows)
     return counts
-
-
-@contextlib.contextmanager
-def _locked(log):
-    lock = getattr(log, "_lock", None)
-    if lock is None:
-        yield
-    else:
-        with lock:
-            yield
 
 
 # ----------------------------------------------------------------------------- sync
