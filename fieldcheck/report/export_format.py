@@ -49,30 +49,37 @@ UNIT_COLUMNS = {
     "us": {"height": "height_in", "load": "load_lbf", "force": "lbf"},
     "metric": {"height": "height_mm", "load": "load_kN", "force": "kN"},
 }
+
+
+def _result_columns(force: str) -> tuple[str, ...]:
+    """The columns after the record's, in an export whose forces are in ``force``."""
+    return (
+        "notes",
+        "state",
+        "action",
+        "due_date",
+        "ratio",
+        f"capacity_{force}",
+        f"demand_{force}",
+        "governing",
+        "engine_version",
+        "revised_at",
+        "member_id",
+        "observation_id",
+        "schema_version",
+    )
+
+
 # every column an export adds beside the record (both unit systems): an importer knows them
-ADDED = (
-    "site",
-    "visit",
-    "visit_date",
-    "height_in",
-    "height_mm",
-    "load_lbf",
-    "load_kN",
-    "state",
-    "action",
-    "due_date",
-    "ratio",
-    "capacity_lbf",
-    "capacity_kN",
-    "demand_lbf",
-    "demand_kN",
-    "governing",
-    "engine_version",
-    "revised_at",
-    "member_id",
-    "observation_id",
-    "schema_version",
+ADDED = tuple(
+    dict.fromkeys(
+        c
+        for u in UNIT_COLUMNS.values()
+        for c in (*FIRST[2:], u["height"], u["load"], *_result_columns(u["force"]))
+        if c != "notes"  # a record column
+    )
 )
+
 _FORMULA = ("=", "+", "-", "@", "\t", "\r")
 _FORMULA_FIRST = frozenset("".join(_FORMULA))
 _NUMBER = re.compile(r"^[+-]?(\d+(\.\d*)?|\.\d+)([eE][+-]?\d+)?$")
@@ -89,22 +96,7 @@ def columns(units: str, record_columns: Iterable[str]) -> list[str]:
         out.append(c)
         if c in ("height", "load"):
             out.append(u[c])
-    f = u["force"]
-    out += [
-        "notes",
-        "state",
-        "action",
-        "due_date",
-        "ratio",
-        f"capacity_{f}",
-        f"demand_{f}",
-        "governing",
-        "engine_version",
-        "revised_at",
-        "member_id",
-        "observation_id",
-        "schema_version",
-    ]
+    out += _result_columns(u["force"])
     return out
 
 
