@@ -5,7 +5,9 @@ from __future__ import annotations
 import argparse
 import sys
 
-# the result columns `rate --batch --out` writes beside each record
+# the result columns `rate --batch --out` writes beside each record: the NDS terms (blank on an
+# EC5 row), the neutral ones, where the values came from, EN 1995-1-1's terms (blank on an NDS
+# row), and the row's error last
 RESULT_COLUMNS = (
     "allowable_load_lbf",
     "allowable_load_kN",
@@ -17,6 +19,18 @@ RESULT_COLUMNS = (
     "stability_factor",
     "within_slenderness_limit",
     "warnings",
+    "material",
+    "values_source",
+    "values_status",
+    "N_Rd_kN",
+    "N_Ed_kN",
+    "buckling_length_factor",
+    "lambda",
+    "lambda_rel",
+    "k_c",
+    "beta_c",
+    "k_mod",
+    "gamma_M",
     "error",
 )
 

@@ -219,12 +219,13 @@ def _run_batch(args: argparse.Namespace) -> int:
 
     with open_posts(args, args.batch) as table:
         rows = read_all(table)
-        fieldnames = table.columns
+        # a file rate --batch wrote before: its old results are replaced, never written twice
+        fieldnames = [c for c in table.columns if c not in RESULT_COLUMNS]
     parsed = parse_records(rows)
     from fieldcheck.engine.rating import rate
 
     rating = rate(parsed.batch, keep=KEEP)
-    results = result_columns(rating)
+    results = result_columns(rating, parsed.meta)
     for err in parsed.errors:
         print(f"fieldcheck: {err}", file=sys.stderr)
     errors_by_row: dict[int, list[str]] = {}

@@ -47,8 +47,12 @@ def finite(obj):
 def warnings(r: Rating, i: int) -> list[str]:
     """The warnings of post i, in the order of the flag table (an EC5 post's in EN 1995-1-1's
     terms: ec5_rating.EC5_WARNINGS)."""
-    flags = int(r.flags[i])
-    if int(r.batch.method[i]) != EC5:
+    return flag_texts(int(r.flags[i]), int(r.batch.method[i]))
+
+
+def flag_texts(flags: int, method: int) -> list[str]:
+    """The warnings of a flag mask under a method (an EC5 post's in EN 1995-1-1's terms)."""
+    if method != EC5:
         return FLAGS.texts(flags)
     return [EC5_WARNINGS.get(f.name, f.text) for k, f in enumerate(FLAGS.flags) if flags >> k & 1]
 

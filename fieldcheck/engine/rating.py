@@ -53,7 +53,8 @@ def rate(b: PostBatch, keep: tuple[str, ...] = ()) -> Rating:
     # batch's own load column until a block's demand differs from its load.
     load = b.load_n
     nan = filled(np.nan, n)
-    out = {k: np.empty(n, dtype=np.asarray(first.values[k]).dtype) for k in keep}
+    # a kept value a block never made (an EC5 value in a block with no EC5 post) is NaN there
+    out = {k: np.empty(n, dtype=np.asarray(first.values.get(k, np.nan)).dtype) for k in keep}
     core = {
         k: np.empty(n, dtype=getattr(first, k).dtype)
         for k in ("capacity_n", "ratio", "governing", "action", "flags")
@@ -108,7 +109,7 @@ def rate(b: PostBatch, keep: tuple[str, ...] = ()) -> Rating:
                 own = getattr(b, f)
                 write(("batch", f), own.dtype, lambda sl, own=own: own[sl], sl, getattr(r.batch, f))
         for k, a in out.items():
-            a[sl] = r.values[k]
+            a[sl] = r.values.get(k, np.nan)
         for k, a in core.items():
             a[sl] = getattr(r, k)
         if r.demand_n is not own_load:

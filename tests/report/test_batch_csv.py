@@ -1,0 +1,123 @@
+"""`rate --batch` result columns: an NDS row keeps the columns its users read; an EC5 row speaks
+EN 1995-1-1 (N_Rd, N_Ed, lambda, lambda_rel, k_c, beta_c, k_mod, gamma_M) and leaves the NDS
+terms (Ke, le/d and its limit, Cp, allowable load) blank; every row says which table its values
+came from and how sure they are (read, secondary, memory)."""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+import re
+
+import pytest
+
+from fieldcheck.cli import main
+from fieldcheck.commands.csv_option import RESULT_COLUMNS
+
+# NDS words that must not reach a person reading an EC5 row (as tests/test_cli_ec5_wording.py)
+NDS_WORDS = re.compile(
+    r"\bKe\b|le/d|limit 50|\bCp\b|\bCD\b|Fc\*|Fc'|Emin|dry service|19 %|wet.service"
+)
+HEADER = ["tag", "method", "class", "section", "height", "load", "size", "species", "grade"]
+NDS_ROW = ["N1", "", "", "", "10ft", "4000lbf", "4x4", "douglas-fir-larch", "no2"]
+EC5_ROW = ["E1", "ec5", "C24", "100mmx100mm", "2.5m", "40kN", "", "", ""]
+NDS_ONLY = (
+    "allowable_load_lbf",
+    "allowable_load_kN",
+    "effective_length_factor",
+    "slenderness_ratio",
+    "stability_factor",
+    "within_slenderness_limit",
+)
+# EN 1995-1-1's terms, after the values' source and status, before the error
+EC5_ONLY = RESULT_COLUMNS[RESULT_COLUMNS.index("values_status") + 1 : -1]
+
+
+def _batch(tmp_path, capsys, rows, name="in.csv") -> list[dict[str, str]]:
+    src = tmp_path / name
+    with src.open("w", newline="") as fh:
+        w = csv.writer(fh)
+        w.writerow(HEADER)
+        w.writerows(rows)
+    out = tmp_path / f"out-{name}"
+    assert main(["rate", "--batch", str(src), "--out", str(out)]) == 0, capsys.readouterr().err
+    capsys.readouterr()
+    return list(csv.DictReader(out.open()))
+
+
+def _json(capsys, row: list[str]) -> dict:
+    args = ["rate", "--json"]
+    for k, v in zip(HEADER, row, strict=True):
+        if v:
+            args += [f"--{k}", v]
+    assert main(args) == 0
+    return json.loads(capsys.readouterr().out)
+
+
+def test_ec5_row_speaks_ec5(tmp_path, capsys):
+    nds, ec = _batch(tmp_path, capsys, [NDS_ROW, EC5_ROW])
+    # computed by hand, EN 1995-1-1 §6.3.2 Eq. 6.21-6.26 with EN 338:2016 C24 (f_c,0,k 21 MPa,
+    # E_0,05 7400 MPa), 100 x 100 mm, L_ef 2.5 m: lambda = 2500 / (100 / sqrt 12) = 86.60,
+    # lambda_rel = 86.60 / pi * sqrt(21 / 7400) = 1.4685, k = 1.6951, k_c = 0.39343; k_mod 0.6
+    # (permanent, service class 1, EN 1995-1-1 Table 3.1), gamma_M 1.3 (Table 2.3):
+    # N_Rd = 0.39343 * 0.6 * 21 / 1.3 * 10000 mm2 = 38.13 kN
+    assert float(ec["N_Rd_kN"]) == pytest.approx(38.132, abs=0.002)
+    assert float(ec["N_Ed_kN"]) == pytest.approx(40.0)
+    assert float(ec["lambda"]) == pytest.approx(86.603, abs=1e-3)
+    assert float(ec["lambda_rel"]) == pytest.approx(1.4685, abs=1e-4)
+    assert float(ec["k_c"]) == pytest.approx(0.39343, abs=1e-5)
+    assert float(ec["beta_c"]) == 0.2  # EN 1995-1-1 Eq. 6.29, solid timber
+    assert float(ec["buckling_length_factor"]) == 1.0  # pinned both ends (judgement, as NDS G1)
+    assert float(ec["k_mod"]) == 0.6 and float(ec["gamma_M"]) == 1.3
+    assert float(ec["demand_capacity_ratio"]) == pytest.approx(40.0 / 38.132, abs=1e-3)
+    for col in NDS_ONLY:  # the NDS terms are not an EC5 post's
+        assert ec[col] == "", col
+    assert ec["warnings"] and not NDS_WORDS.search(ec["warnings"]), ec["warnings"]
+    assert "EN 1995-1-1 §2.3.1.3" in ec["warnings"]  # moisture: the service class, not NDS
+    assert EC5_ONLY[0] == "N_Rd_kN" and "lambda_rel" in EC5_ONLY and "gamma_M" in EC5_ONLY
+    for col in EC5_ONLY:  # and an NDS row has none of EC5's
+        assert nds[col] == "", col
+
+
+def test_nds_row_keeps_its_columns(tmp_path, capsys):
+    (nds,) = _batch(tmp_path, capsys, [NDS_ROW])
+    s = _json(capsys, NDS_ROW)
+    # the batch row and the single post's --json agree, column for column (NDS 2018 §3.7.1)
+    assert float(nds["allowable_load_lbf"]) == s["allowable_load_lbf"]
+    assert float(nds["slenderness_ratio"]) == s["slenderness_ratio"]
+    assert float(nds["stability_factor"]) == s["stability_factor"]
+    assert float(nds["effective_length_factor"]) == s["effective_length_factor"]
+    assert nds["within_slenderness_limit"] == "true"
+    assert nds["warnings"] == " | ".join(s["warnings"])
+
+
+@pytest.mark.parametrize("row", [NDS_ROW, EC5_ROW], ids=["nds", "ec5"])
+def test_every_row_names_its_table_and_values_status(tmp_path, capsys, row):
+    (got,) = _batch(tmp_path, capsys, [row])
+    s = _json(capsys, row)
+    # the status of the values reaches the person reading the batch file, as in --json
+    assert got["values_status"] == s["values_status"] in ("read", "secondary", "memory")
+    assert got["material"] == s["material"] and got["material"]
+    assert got["values_source"] == s["values_source"]
+
+
+def test_mixed_batch_is_the_same_in_engine_blocks(tmp_path, capsys, monkeypatch):
+    # blocks with no EC5 post (the first) and blocks with one: the same columns, same numbers
+    from fieldcheck.engine import rating as rating_mod
+
+    rows = [NDS_ROW] * 4 + [EC5_ROW, NDS_ROW, EC5_ROW]
+    whole = _batch(tmp_path, capsys, rows, "a.csv")
+    monkeypatch.setattr(rating_mod, "BLOCK", 3)
+    assert _batch(tmp_path, capsys, rows, "b.csv") == whole
+    assert whole[4]["N_Rd_kN"] and whole[4]["slenderness_ratio"] == ""
+
+
+def test_a_rated_batch_file_reads_back(tmp_path, capsys):
+    # the result columns are known columns: the output of rate --batch is valid input
+    _batch(tmp_path, capsys, [NDS_ROW, EC5_ROW])
+    out = tmp_path / "out-in.csv"
+    again = tmp_path / "again.csv"
+    assert main(["rate", "--batch", str(out), "--out", str(again)]) == 0
+    rows = list(csv.DictReader(io.StringIO(again.read_text())))
+    assert len(rows) == 2
