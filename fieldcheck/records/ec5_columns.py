@@ -163,6 +163,7 @@ def ec5_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
             f"{r['values']['fc90k_mpa']:g} MPa {r['statuses']['fc90k_mpa']})"
         )
     held = en338.row(f["strength_row"])
+    out["_service_class"] = sc  # the class used (EN 1995-1-1 §2.3.1.3), for the report
     out["_values_status"] = held["status"]
     out["_values_source"] = held["edition"]
     out["_material"] = (

@@ -22,10 +22,12 @@ from functools import cache
 from html import escape
 from pathlib import Path
 
+from fieldcheck.engine.batch import EC5, END_NAMES
 from fieldcheck.engine.cautions import CAUTIONS
 from fieldcheck.engine.loads import combination_name
 from fieldcheck.engine.rating import detail
 from fieldcheck.engine.result import ACTION_TEXT, ACTIONS, DUE_DAYS
+from fieldcheck.engine.spring_ends import SPRING_MODE
 from fieldcheck.report.model import PostEntry, ReportData, ReportInfo, gather, visit_date
 from fieldcheck.report.notation import notation, sig, symbols
 from fieldcheck.report.photos import data_uri
@@ -466,33 +468,49 @@ def _assumptions(d: ReportData, p: PostEntry) -> str:
             f"{float(b.knowledge[j]):g} (ASCE 41 data collection; visit level {p.visit.level})",
         ),
         ("Load duration", f"{rec.get('duration', 'not given: default')}; {dur}"),
-        ("Moisture", rec.get("moisture") or "not measured: dry service assumed"),
+        ("Moisture", _moisture(rec, p.meta, method)),
         ("Construction-stage member", "yes" if bool(b.construction[j]) else "no"),
     ]
+    # the buckling lengths in the method's own terms: NDS Ke, lu, le/d; EN 1995-1-1 §6.3.2
+    # beta, L, L_ef, lambda
+    ec5 = method == "ec5"
+    words = "β, L, L_ef = β L, λ" if ec5 else "Ke, lu, le = Ke lu, le/d"
     axes = []
     for ax in (1, 2):
         ke = v.get(f"ke{ax}")
         lu = v.get(f"lu{ax}")
-        led = v.get(f"le_d{ax}")
+        led = v.get(f"ec5_lam{ax}" if ec5 else f"le_d{ax}")
         if ke is None:
             continue
         kev = float(ke[jv])
         luv = float(lu[jv]) if lu is not None else float(b.height_mm[j])
+        k, length, le, slender = ("β", "L", "L_ef", "λ") if ec5 else ("Ke", "lu", "le", "le/d")
         axes.append(
-            f"Ke = {sig(kev, 3)}, lu = {format_length(luv, u)}, "
-            f"le = {format_length(kev * luv, u)}, le/d = {sig(float(led[jv]), 4)}"
+            f"{k} = {sig(kev, 3)}, {length} = {format_length(luv, u)}, "
+            f"{le} = {format_length(kev * luv, u)}, {slender} = {sig(float(led[jv]), 4)}"
             if led is not None
             else ""
         )
     if len(axes) == 2 and axes[0] == axes[1]:
-        rows.append(("Axes 1 and 2: Ke, lu, le = Ke lu, le/d", axes[0]))
+        rows.append((f"Axes 1 and 2: {words}", axes[0]))
     else:
-        rows += [(f"Axis {k}: Ke, lu, le = Ke lu, le/d", a) for k, a in enumerate(axes, 1)]
+        rows += [(f"Axis {k}: {words}", a) for k, a in enumerate(axes, 1)]
     lc = s.get("load_combination")
     if isinstance(lc, dict) and lc.get("name"):
         rows.append(("Load", f"{lc.get('name')}{'; ' + lc['clause'] if lc.get('clause') else ''}"))
     body = "".join(f"<tr><th>{symbols(k)}</th><td>{symbols(val)}</td></tr>" for k, val in rows)
     return kv(body)
+
+
+def _moisture(rec: dict, meta: dict, method: str) -> str:
+    """The moisture row: as measured, or what was assumed, in the method's own terms."""
+    if method != "ec5":
+        return rec.get("moisture") or "not measured: dry service assumed"
+    # EN 1995-1-1 §2.3.1.3: the service class the rating used (a wetter reading takes its own)
+    sc = meta.get("_service_class", 1)
+    if rec.get("moisture"):
+        return f"{rec['moisture']}: service class {sc} (EN 1995-1-1 §2.3.1.3)"
+    return f"not measured: service class {sc} used (EN 1995-1-1 §2.3.1.3)"
 
 
 def _warnings(p: PostEntry) -> str:
@@ -706,7 +724,18 @@ def _sketch(d: ReportData, p: PostEntry) -> str:
     elif "ke1" in v:
         ke = float(v["ke1"][jv])
     rec = p.view.record
-    return end_sketch(rec.get("top"), rec.get("bottom"), ke)
+    b, j = p.rating.batch, p.j
+    symbol = "β" if int(b.method[j]) == EC5 else "K<sub>e</sub>"
+    if int(v["mode"][jv]) == SPRING_MODE:  # spring ends: the record's words, not drawn
+        return end_sketch(rec.get("top"), rec.get("bottom"), ke, k_symbol=symbol)
+    # the ends the post was rated with (pinned where none was typed), and whether they were typed
+    return end_sketch(
+        END_NAMES[int(b.top[j])],
+        END_NAMES[int(b.bottom[j])],
+        ke,
+        given=(bool(rec.get("top")), bool(rec.get("bottom"))),
+        k_symbol=symbol,
+    )
 
 
 def _post(d: ReportData, p: PostEntry) -> str:

@@ -179,21 +179,39 @@ def _end_symbol(kind: str | None, y: float, at_top: bool) -> list[str]:
     return [f'<text x="{x + 6}" y="{y + 5}">?</text>']
 
 
-def end_sketch(top: str | None, bottom: str | None, ke: float | None = None) -> str:
-    """See ``_end_sketch``; posts share few end pairs, so the drawing is cached."""
+def end_sketch(
+    top: str | None,
+    bottom: str | None,
+    ke: float | None = None,
+    *,
+    given: tuple[bool, bool] = (True, True),
+    k_symbol: str = "K<sub>e</sub>",
+) -> str:
+    """See ``_end_sketch``; posts share few end pairs, so the drawing is cached. ``given``: the
+    top and bottom were typed (else the ends named are those the post was rated with, and the
+    caption says they were not given); ``k_symbol``: the factor's symbol (EC5: β)."""
     k = None if ke is None or not math.isfinite(ke) else round(ke, 2)
-    return _end_sketch(top, bottom, k)
+    return _end_sketch(top, bottom, k, given, k_symbol)
 
 
 @lru_cache(maxsize=1024)
-def _end_sketch(top: str | None, bottom: str | None, ke: float | None = None) -> str:
+def _end_sketch(
+    top: str | None,
+    bottom: str | None,
+    ke: float | None,
+    given: tuple[bool, bool],
+    k_symbol: str,
+) -> str:
     """The post's end conditions and its buckled first mode as a small SVG (the drawing model of
     the interface's text drawing: report.endshape), with its words in a caption beside it.
     Straight post dotted, buckled shape solid."""
     from fieldcheck.report.endshape import buckled_shape, end_kind
 
     tk, bk = end_kind(top), end_kind(bottom)
-    top_t, bot_t = top or "not given", bottom or "not given"
+    top_t, bot_t = (
+        (name or "not given") + ("" if typed or not name else " (not given)")
+        for name, typed in ((top, given[0]), (bottom, given[1]))
+    )
     parts = [
         f'<svg class="sketch" viewBox="0 0 {SK_W} {SK_H}" role="img" '
         f'aria-label="end conditions: top {escape(top_t)}, bottom {escape(bot_t)}">',
@@ -219,7 +237,7 @@ def _end_sketch(top: str | None, bottom: str | None, ke: float | None = None) ->
     else:
         words = "not drawn: an end is not one of pinned, fixed, free, guided"
     parts.append("</svg>")
-    ke_t = f"; K<sub>e</sub> = {ke:.2f}" if ke is not None and math.isfinite(ke) else ""
+    ke_t = f"; {k_symbol} = {ke:.2f}" if ke is not None and math.isfinite(ke) else ""
     return (
         f'<figure class="sketchbox">{"".join(parts)}<figcaption>top {escape(top_t)}, '
         f"bottom {escape(bot_t)}{ke_t}; {escape(words)}</figcaption></figure>"
