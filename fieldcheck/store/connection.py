@@ -1,9 +1,11 @@
 """One SQLite connection per log, set up for a laptop whose battery may die at any moment.
 
-Every connection gets the same PRAGMAs (they are per connection, except journal_mode which the
-file keeps): WAL, synchronous=FULL (a commit that returned survives a power cut), foreign keys
-on. sqlite-utils sits on our own sqlite3 connection in the legacy transaction mode (sqlite-utils
-4 refuses ``autocommit=`` connections); every user action is one ``db.atomic()`` block.
+Every connection gets the same PRAGMAs (they are per connection, except journal_mode and
+page_size which the file keeps): WAL, synchronous=FULL (a commit that returned survives a power
+cut), foreign keys on. A new log is made with 16 KiB pages (``PAGE_SIZE``); an existing one keeps
+the page size it was made with. sqlite-utils sits on our own sqlite3 connection in the legacy
+transaction mode (sqlite-utils 4 refuses ``autocommit=`` connections); every user action is one
+``db.atomic()`` block.
 """
 
 from __future__ import annotations
@@ -17,6 +19,12 @@ from sqlite_utils import Database
 # "fchk" as a 32-bit integer: marks the file as a fieldcheck survey log (PRAGMA application_id).
 APPLICATION_ID = 0x6663686B
 BUSY_TIMEOUT_S = 5.0
+# A new log's page size. An import or re-rate writes three rows and a dozen index entries per
+# post in one transaction: 16 KiB pages hold four times the rows of SQLite's default 4 KiB, so
+# a bulk write splits, spills and commits fewer pages (measured: the log's own tables written
+# about a tenth faster, the commit about half). A save of one post writes a few pages more to
+# the WAL. Only a file with no table yet takes it; an existing log keeps its own.
+PAGE_SIZE = 16384
 
 
 class LogError(ValueError):
@@ -95,6 +103,7 @@ def connect(path: Path | str, *, readonly: bool = False, inspect=None) -> Databa
         if inspect is not None:
             inspect(db)
         if not readonly:
+            conn.execute(f"PRAGMA page_size={PAGE_SIZE}")  # a no-op unless the file is new
             mode = conn.execute("PRAGMA journal_mode=WAL").fetchone()[0]
             if str(mode).lower() != "wal":
                 raise LogError(

@@ -7,8 +7,8 @@ import sqlite3
 
 import pytest
 
-from fieldcheck.store import Log, LogError
-from fieldcheck.store.connection import connect, pragma
+from fieldcheck.store import Log, LogError, connection
+from fieldcheck.store.connection import PAGE_SIZE, connect, pragma
 from fieldcheck.store.schema import MIGRATION_NAMES, SCHEMA_VERSION, migrations
 
 
@@ -38,6 +38,7 @@ def test_every_connection_gets_the_field_pragmas(log):
     assert pragma(log.db, "journal_mode") == "wal"
     assert pragma(log.db, "synchronous") == 2  # FULL
     assert pragma(log.db, "foreign_keys") == 1
+    assert pragma(log.db, "page_size") == PAGE_SIZE == 16384  # a new log; judgement
     strict = [
         r[0]
         for r in log.db.conn.execute(
@@ -89,6 +90,20 @@ def test_upgrade_from_version_1_keeps_data_and_leaves_a_backup(tmp_path):
     with Log.open(path) as log:
         assert log.backup_path is None
     assert len(list(tmp_path.glob("survey.db.v1-backup-*"))) == 1
+
+
+def test_an_older_log_keeps_its_page_size_and_upgrades(tmp_path, monkeypatch):
+    # a log made before new logs took 16 KiB pages (SQLite's default then, 4 KiB)
+    path = tmp_path / "survey.db"
+    monkeypatch.setattr(connection, "PAGE_SIZE", 4096)
+    _make_v1(path)
+    monkeypatch.undo()
+    with Log.open(path) as log:
+        assert pragma(log.db, "page_size") == 4096  # SQLite cannot change it in WAL mode
+        assert log.schema_version == SCHEMA_VERSION
+        assert len(log.posts()) == 1
+        assert log.rerate_all().rated == 1
+        assert pragma(log.db, "integrity_check") == "ok"
 
 
 def test_newer_schema_is_refused_and_the_file_left_unchanged(tmp_path):
