@@ -629,6 +629,124 @@ def _parse(kind_name: str, text: str) -> float:
     return _to_si(kind, value, unit)
 
 
+# --- a column of plain quantities at once --------------------------------------------------
+
+_MANY_DIGITS = 15  # digits of a number the column parser reads itself (below 2**53, exact)
+_MANY_UNIT = 8  # characters of a unit it reads itself (one 64-bit key of ASCII)
+_MANY_WIDTH = 40  # characters of a text it reads itself
+
+
+def _char_classes() -> Any:
+    """Byte -> what it is in a plain quantity: 1 a digit or the point, 2 a space, 3 a unit's
+    letter (or %), 9 anything else (NUL too: the end of a text is marked apart, 4)."""
+    import numpy as np
+
+    table = np.full(256, 9, dtype=np.int8)
+    table[ord("0") : ord("9") + 1] = 1
+    table[ord(".")] = 1
+    table[ord(" ")] = 2
+    table[ord("a") : ord("z") + 1] = 3
+    table[ord("A") : ord("Z") + 1] = 3
+    table[ord("%")] = 3
+    return table
+
+
+def parse_many(
+    kind_name: str, texts: list, *, lo: float | None = None, hi: float | None = None
+) -> tuple[Any, Any]:
+    """A column of texts -> (values, ok), two numpy arrays: where ``ok``, the value is exactly
+    what this kind's own parser (parse_length, parse_force, parse_percent, parse_temperature)
+    gives for that text with this ``lo`` and ``hi``; elsewhere nothing is claimed and the caller
+    parses that cell on its own (for its value or its message).
+
+    Read here, column-wise, is only the plain form: optional spaces, an unsigned decimal number
+    of at most 15 digits (no exponent), optional spaces, an ASCII unit of letters or % (at most
+    8) that the kind accepts, nothing after; a value above zero, finite, inside ``lo``..``hi``.
+    The number is the integer of its digits divided by a power of ten: both exact in binary, so
+    the one rounding is the division's, which is what ``float`` of the text gives. The unit's
+    factor is the same table lookup as the cell parser's (``value * scale + offset``)."""
+    import numpy as np
+
+    kind = _KINDS[kind_name]
+    n = len(texts)
+    values = np.zeros(n)
+    ok = np.zeros(n, dtype=bool)
+    if n == 0:
+        return values, ok
+    # the texts one after another, one byte per character (anything not ASCII is "?": not
+    # plain), each followed by a line feed; a text holding one is measured alone
+    try:
+        joined = "\n".join(texts)
+    except TypeError:  # a cell that is not text: the cell parser says so
+        return values, ok
+    raw = np.frombuffer((joined + "\n").encode("ascii", "replace"), dtype=np.uint8)
+    ends = np.flatnonzero(raw == 10)
+    if ends.size == n:
+        start = np.empty(n, dtype=np.intp)
+        start[0] = 0
+        start[1:] = ends[:-1] + 1
+        lens = ends - start
+    else:
+        lens = np.fromiter(map(len, texts), np.intp, count=n)
+        start = np.cumsum(lens + 1) - lens - 1
+    classes = _char_classes()[raw]
+    classes[ends] = 9  # a line feed inside a text is not plain
+    classes = np.append(classes, np.int8(4))  # one past the last text: a text's end
+    chars = np.append(raw, np.uint8(0))
+    width = min(int(lens.max()), _MANY_WIDTH)
+    end_at = raw.size
+    # one position of every text at a time (vectors over the rows): the phase may only grow:
+    # leading spaces 0, number 1, spaces 2, unit 3, past the end 4
+    last = np.zeros(n, dtype=np.int8)
+    whole = np.zeros(n, dtype=np.int64)
+    decimals = np.zeros(n, dtype=np.int64)
+    digits = np.zeros(n, dtype=np.int64)
+    points = np.zeros(n, dtype=np.int64)
+    key = np.zeros(n, dtype=np.uint64)
+    unit_len = np.zeros(n, dtype=np.uint64)
+    form = lens <= _MANY_WIDTH
+    for j in range(width):
+        at = np.where(j < lens, start + j, end_at)
+        ph = classes[at]
+        ch = chars[at]
+        ph = np.where(ph == 2, np.where(last >= 1, 2, 0), ph).astype(np.int8)
+        form &= ph >= last
+        is_digit = (ph == 1) & (ch != 46)
+        is_point = ch == 46
+        whole = np.where(is_digit, whole * 10 + (ch.astype(np.int64) - 48), whole)
+        decimals += is_digit & (points > 0)
+        digits += is_digit
+        points += is_point
+        is_unit = ph == 3
+        shift = np.minimum(unit_len, np.uint64(_MANY_UNIT - 1)) * np.uint64(8)
+        key |= np.where(is_unit, ch.astype(np.uint64) << shift, np.uint64(0))
+        unit_len += is_unit
+        last = ph
+    form &= (last >= 3) & (last != 9) & (unit_len <= _MANY_UNIT)
+    form &= (digits >= 1) & (digits <= _MANY_DIGITS) & (points <= 1)
+    ten = 10.0 ** np.arange(_MANY_DIGITS + 1)  # exact in binary
+    number = whole.astype(np.float64) / ten[np.minimum(decimals, _MANY_DIGITS)]
+    # the unit: its characters packed into one integer, looked up once per distinct unit
+    key = np.where(form, key, np.uint64(0))
+    keys, which = np.unique(key, return_inverse=True)
+    scale = np.full(keys.size, np.nan)
+    offset = np.zeros(keys.size)
+    for u, k in enumerate(keys.tolist()):
+        unit = "".join(chr((k >> (8 * i)) & 0xFF) for i in range(_MANY_UNIT)).rstrip("\0")
+        expr = _lookup(kind, unit) if unit else None
+        if expr is not None:
+            scale[u], offset[u] = _factor(kind_name, expr)
+    which = which.reshape(-1)
+    with np.errstate(invalid="ignore", over="ignore"):
+        values = number * scale[which] + offset[which]  # as _to_si: value * scale + offset
+        ok = form & np.isfinite(values) & (values > 0)
+        if lo is not None:
+            ok &= values >= lo
+        if hi is not None:
+            ok &= values <= hi
+    return values, ok
+
+
 # --- public parsers ------------------------------------------------------------------------
 
 

@@ -193,6 +193,29 @@ def _lifted_cell(name: str, text: object) -> float | None:
         return None
 
 
+def _lift_column(name: str, texts: list) -> tuple[np.ndarray, np.ndarray]:
+    """A lifted column's values per row (NaN: blank) and the rows whose text does not parse.
+    The plain texts are read at once by the column's own ``many`` (units.parse_many: the same
+    numbers as its cell parser); the rest, distinct text by distinct text, by the cell parser."""
+    many = getattr(COLUMNS[name].parse, "many", None)
+    if many is not None:
+        vals, done = many(texts)
+        rest = np.flatnonzero(~done)
+    else:
+        vals, rest = np.empty(len(texts)), np.arange(len(texts))
+    fails = np.zeros(len(texts), dtype=bool)
+    if rest.size:
+        distinct, codes = _distinct(
+            texts if rest.size == len(texts) else list(map(texts.__getitem__, rest.tolist()))
+        )
+        got = [_lifted_cell(name, t) for t in distinct]
+        fail = np.fromiter((g is None for g in got), dtype=bool, count=len(got))
+        v = np.array([np.nan if g is None else g for g in got], dtype=np.float64)
+        vals[rest] = v[codes]
+        fails[rest] = fail[codes]
+    return vals, fails
+
+
 def _blank(t: object) -> bool:
     return t is None or not str(t).strip()
 
@@ -231,14 +254,11 @@ def _lift_shape(
         name = names[k]
         if name not in LIFTED:
             continue
-        distinct, codes = _distinct(cols[k])
-        got = [_lifted_cell(name, t) for t in distinct]
-        fails = np.fromiter((g is None for g in got), dtype=bool, count=len(got))
-        vals = np.array([np.nan if g is None else g for g in got], dtype=np.float64)
+        vals, fails = _lift_column(name, cols[k])
         present = ~fails & ~np.isnan(vals)
-        bad |= fails[codes]
-        lifted[name] = (vals[codes], present[codes])
-        key_codes.append(present[codes].astype(np.intp))
+        bad |= fails
+        lifted[name] = (vals, present)
+        key_codes.append(present.astype(np.intp))
         key_names.append(name)
     good = np.flatnonzero(~bad)
     left = [idx[k] for k in np.flatnonzero(bad).tolist()]

@@ -89,8 +89,34 @@ def _nominal(s: str) -> tuple[int, int]:
     return v
 
 
-def _length(field: str, lo: float = 1.0, hi: float = 30_000.0):
-    return lambda s: units.parse_length(s, field, lo=lo, hi=hi)
+@dataclass(frozen=True)
+class Quantity:
+    """A column of one kind of quantity with its accepted range (in the kind's internal unit):
+    called on one cell, the kind's parser; ``many`` reads a whole column of plain texts at once
+    (units.parse_many: the same numbers), leaving the other cells to the cell parser."""
+
+    kind: str  # "length", "force", "percent" or "temperature"
+    field: str
+    lo: float | None = None
+    hi: float | None = None
+
+    def __call__(self, s: str) -> float:
+        return _CELL_PARSERS[self.kind](s, self.field, lo=self.lo, hi=self.hi)
+
+    def many(self, texts: list) -> tuple[Any, Any]:
+        return units.parse_many(self.kind, texts, lo=self.lo, hi=self.hi)
+
+
+_CELL_PARSERS: dict[str, Callable[..., float]] = {
+    "length": units.parse_length,
+    "force": units.parse_force,
+    "percent": units.parse_percent,
+    "temperature": units.parse_temperature,
+}
+
+
+def _length(field: str, lo: float = 1.0, hi: float = 30_000.0) -> Quantity:
+    return Quantity("length", field, lo, hi)
 
 
 DURATIONS = ("permanent", "ten-years", "two-months", "seven-days", "ten-minutes", "impact")
@@ -239,14 +265,14 @@ CORE: tuple[Column, ...] = (
         "condition",
         "moisture content measured at depth",
         "24%",
-        lambda s: units.parse_percent(s, "moisture", lo=0.0, hi=200.0),
+        Quantity("percent", "moisture", 0.0, 200.0),
     ),
     Column(
         "temperature",
         "condition",
         "sustained service temperature (up to 150 F)",
         "70 F",
-        lambda s: units.parse_temperature(s, "temperature", lo=-60.0, hi=65.6),
+        Quantity("temperature", "temperature", -60.0, 65.6),
     ),
     Column(
         "incised",
@@ -271,7 +297,7 @@ CORE: tuple[Column, ...] = (
         "load",
         "axial load on the post (service load; factored for LRFD)",
         "4000lbf",
-        lambda s: units.parse_force(s, "load", lo=0.0, hi=1e8),
+        Quantity("force", "load", 0.0, 1e8),
     ),
     Column(
         "cap_species",
