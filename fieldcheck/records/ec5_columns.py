@@ -83,6 +83,19 @@ COLUMNS: tuple[Column, ...] = (
 )
 
 
+# the NDS material inputs an EC5 record refuses, and what to give instead
+NDS_MATERIAL = {
+    "species": "an EC5 rating takes its material from --class (an EN 338 or EN 14080 class), "
+    "not an NDS species; leave --species out.",
+    "grade": "an EC5 rating takes its material from --class (an EN 338 or EN 14080 class), "
+    "not an NDS grade; leave --grade out.",
+    "cap_species": "an NDS species gives no EN 338 f_c,90,k for the cap (its Fc-perp is not "
+    "on the same basis); give the cap's strength class with --cap-class, e.g. C16.",
+    "sill_species": "an NDS species gives no EN 338 f_c,90,k for the sill (its Fc-perp is "
+    "not on the same basis); give the sill's strength class with --sill-class, e.g. C16.",
+}
+
+
 def ec5_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
     if row.get("method", "asd") != METHOD_NAMES[EC5]:
         if "class" in row:
@@ -94,6 +107,11 @@ def ec5_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
         return {}
     if "class" not in row:
         raise RowError("class", "class: an EC5 rating needs a strength class, e.g. --class C24.")
+    # NDS material inputs are refused, never ignored or misused: an NDS reference Fc-perp is not
+    # an EN 338 f_c,90,k (judgement: not the same basis), and a strength class is a material known
+    for col, say in NDS_MATERIAL.items():
+        if col in row and row[col] != "unknown":
+            raise RowError(col, f"{col}: {say}")
     # EN 1995-1-1 has no temperature or incising factor in the checks fieldcheck makes: refused,
     # never ignored (judgement; the NDS Ct and Ci are not EN 1995-1-1 factors)
     if "temperature" in row:
