@@ -50,7 +50,7 @@ from fieldcheck.store.merge import (
     merge,
     prepare,
 )
-from fieldcheck.store.schema import SCHEMA_VERSION
+from fieldcheck.store.schema import SCHEMA_VERSION, TRANSFER_SCHEMA_VERSION
 from fieldcheck.store.signing import Keyring
 
 FORMAT = "fieldcheck-bundle"
@@ -277,7 +277,7 @@ def write_bundle(
         "format_version": FORMAT_VERSION,
         "firm_id": meta.get("firm_id", ""),
         "sender_device": meta.get("device_id", ""),
-        "schema_version": SCHEMA_VERSION,
+        "schema_version": TRANSFER_SCHEMA_VERSION,  # what the rows' tables need of a reader
         "created_at": time.strftime("%Y-%m-%dT%H:%M:%S%z"),
         "snapshot": out.name,
         "snapshot_bytes": size,

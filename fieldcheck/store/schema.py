@@ -21,6 +21,10 @@ Version history
   5  views for the office to query the file directly (no tables change): current_posts (each
      current post with the fields of its record pulled out and its latest rating), latest_ratings
      and photos
+  6  the index of observations by the revision they supersede holds only the revisions that
+     supersede one (most revisions are a post's first and supersede none): the head queries ask
+     for ``supersedes = <id>`` alone, so they use it as before, and an import of n posts writes n
+     index entries fewer (no table changes; the office hub's index was already so)
 """
 
 from __future__ import annotations
@@ -29,7 +33,12 @@ from sqlite_utils import Database, Migrations
 
 from fieldcheck.store.connection import APPLICATION_ID
 
-SCHEMA_VERSION = 5
+SCHEMA_VERSION = 6
+# The schema version a transfer (a bundle) names: the last version that changed the columns of a
+# synced table (merge.SYNC_TABLES). A version that changes only indexes or views (6) leaves it,
+# so an older fieldcheck whose tables are the same still takes this one's bundles; a migration
+# that adds or changes a synced table's columns raises it to its own number.
+TRANSFER_SCHEMA_VERSION = 5
 MIGRATION_SET = "fieldcheck"
 migrations = Migrations(MIGRATION_SET)
 
@@ -293,10 +302,23 @@ def _v5(db: Database) -> None:
     db.execute("PRAGMA user_version = 5")
 
 
+@migrations(name="0006_lean_indexes")
+def _v6(db: Database) -> None:
+    # a head is a revision nobody supersedes: NOT EXISTS (... WHERE c.supersedes = o.id) implies
+    # supersedes IS NOT NULL, so SQLite uses a partial index for it (as observations_merges)
+    db.execute("DROP INDEX observations_supersedes")
+    db.execute(
+        "CREATE INDEX observations_supersedes ON observations(supersedes) "
+        "WHERE supersedes IS NOT NULL"
+    )
+    db.execute("PRAGMA user_version = 6")
+
+
 MIGRATION_NAMES = (
     "0001_initial",
     "0002_reviews_sync",
     "0003_remedies",
     "0004_review_records",
     "0005_office_views",
+    "0006_lean_indexes",
 )  # index + 1 = the version it makes

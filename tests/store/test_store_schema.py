@@ -106,6 +106,77 @@ def test_an_older_log_keeps_its_page_size_and_upgrades(tmp_path, monkeypatch):
         assert pragma(log.db, "integrity_check") == "ok"
 
 
+def _make_v5(path):
+    """A log as schema version 5 left it: post P1 revised once (o2 supersedes o1), P2 not."""
+    db = connect(path)
+    migrations.apply(db, stop_before="0006_lean_indexes")
+    at = "'2026-06-01T09:00:00+01:00'"
+    obs = "id, member_id, visit_id, supersedes, record_json, device_id, device_seq, author, "
+    obs += "created_at"
+    rec = '\'{"tag": "%s", "size": "4x4", "height": "8ft", "load": "%s"}\''
+    with db.atomic():
+        db.execute("INSERT INTO meta VALUES ('device_id', 'dev-old')")
+        db.execute(f"INSERT INTO sites VALUES ('s1', 'Old site', '', '', 'dev-old', 1, 'a', {at})")
+        db.execute(
+            f"INSERT INTO visits VALUES ('v1', 's1', 'June', 'A. B.', {at}, '[]', 'minimum', '', "
+            f"'dev-old', 2, 'a', {at})"
+        )
+        for seq, (mid, tag) in enumerate((("m1", "P1"), ("m2", "P2")), start=3):
+            db.execute(
+                f"INSERT INTO members VALUES ('{mid}', 's1', '{tag}', 'dev-old', {seq}, 'a', {at})"
+            )
+        for seq, (oid, mid, sup, tag, load) in enumerate(
+            (
+                ("o1", "m1", "NULL", "P1", "2000lbf"),
+                ("o2", "m1", "'o1'", "P1", "3000lbf"),
+                ("o3", "m2", "NULL", "P2", "1000lbf"),
+            ),
+            start=5,
+        ):
+            db.execute(
+                f"INSERT INTO observations ({obs}) VALUES ('{oid}', '{mid}', 'v1', {sup}, "
+                f"{rec % (tag, load)}, 'dev-old', {seq}, 'a', {at})"
+            )
+    assert pragma(db, "user_version") == 5
+    db.close()
+
+
+def _index_sql(log, name):
+    return log.db.conn.execute(
+        "SELECT sql FROM sqlite_master WHERE type = 'index' AND name = ?", [name]
+    ).fetchone()[0]
+
+
+def test_upgrade_from_version_5_keeps_the_heads_with_a_partial_supersedes_index(tmp_path):
+    path = tmp_path / "survey.db"
+    _make_v5(path)
+    with Log.open(path) as log:
+        assert log.schema_version == SCHEMA_VERSION == 6
+        assert log.backup_path is not None
+        assert _index_sql(log, "observations_supersedes").endswith("WHERE supersedes IS NOT NULL")
+        # the heads are found as before: P1's revision, P2's first record
+        assert {p.tag: p.record["load"] for p in log.posts()} == {"P1": "3000lbf", "P2": "1000lbf"}
+        assert [o.id for o in log.history(log.posts()[0].member_id)] == ["o1", "o2"]
+        # and the head query still reaches the revision it supersedes through the index
+        plan = " ".join(
+            r[3]
+            for r in log.db.conn.execute(
+                "EXPLAIN QUERY PLAN SELECT o.id FROM observations o WHERE NOT EXISTS "
+                "(SELECT 1 FROM observations c WHERE c.supersedes = o.id)"
+            )
+        )
+        assert "USING COVERING INDEX observations_supersedes" in plan
+        assert pragma(log.db, "integrity_check") == "ok"
+
+
+def test_a_new_log_indexes_only_the_revisions_that_supersede_one(log, visit, shore):
+    first = log.save_post(visit.id, shore)
+    log.save_post(visit.id, dict(shore, load="3000 lbf"), member_id=first.member_id)
+    log.save_post(visit.id, dict(shore, tag="S2"))
+    assert _index_sql(log, "observations_supersedes").endswith("WHERE supersedes IS NOT NULL")
+    assert {p.tag: p.record["load"] for p in log.posts()} == {"S1": "3000 lbf", "S2": shore["load"]}
+
+
 def test_newer_schema_is_refused_and_the_file_left_unchanged(tmp_path):
     path = tmp_path / "future.db"
     Log.open(path).close()

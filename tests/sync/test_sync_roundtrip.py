@@ -2,8 +2,20 @@
 
 from __future__ import annotations
 
+import json
+
 from fieldcheck.store import Log
-from fieldcheck.store.merge import conflicted, covered, delta, firm_after, floor
+from fieldcheck.store.connection import connect
+from fieldcheck.store.merge import (
+    SYNC_TABLES,
+    check_schema,
+    conflicted,
+    covered,
+    delta,
+    firm_after,
+    floor,
+)
+from fieldcheck.store.schema import TRANSFER_SCHEMA_VERSION, migrations
 from fieldcheck.store.sync import export_bundle, import_bundle, open_conflicts, sync
 
 
@@ -104,3 +116,24 @@ def test_merge_rules_without_sqlite():
 
     with pytest.raises(TransferRefused, match="another firm"):
         firm_after("F", "G", office=True)
+
+
+def test_a_bundle_names_the_version_of_its_tables_so_an_older_reader_takes_it(
+    make_log, shore, tmp_path
+):
+    # schema 6 changed an index, no synced table: a bundle names 5, the last version that
+    # changed a synced table's columns, and a log at 5 has the same columns (judgement: a
+    # reader up to 5 takes rows of tables it has; merge.check_schema refuses only newer)
+    field = make_log("ann")
+    site = field.add_site("Alder Row")
+    field.save_post(field.add_visit(site.id, "ann").id, shore)
+    export_bundle(field, tmp_path / "a.fcbundle")
+    manifest = json.loads((tmp_path / "a.fcbundle.json").read_text())
+    assert manifest["schema_version"] == TRANSFER_SCHEMA_VERSION == 5
+    check_schema(manifest["schema_version"], 5)  # a fieldcheck reading up to 5: not refused
+    old = connect(tmp_path / "v5.db")
+    migrations.apply(old, stop_before="0006_lean_indexes")
+    for t in SYNC_TABLES:
+        cols = f"PRAGMA table_info({t.name})"
+        assert old.conn.execute(cols).fetchall() == field.db.conn.execute(cols).fetchall()
+    old.close()
