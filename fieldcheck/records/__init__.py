@@ -227,7 +227,7 @@ def _lift_shape(
     column-wise path; returns the rows left for the distinct-record path (a text that does not
     parse, or a combination the builders refuse: those get their errors row by row)."""
     n = len(idx)
-    recs = list(map(rows.__getitem__, idx))
+    recs = rows if n == len(rows) else list(map(rows.__getitem__, idx))
     rated = [k for k, c in enumerate(names) if c not in _UNRATED and c in COLUMNS]
     cols = {k: list(map(operator.itemgetter(names[k]), recs)) for k in rated}
     del recs
@@ -324,9 +324,15 @@ def parse_records(rows: list[dict[str, str]], cache: dict | None = None) -> Pars
     if cache is not None and len(cache) > PARSE_CACHE_LIMIT:
         cache.clear()
     units = _Units(n)
-    shapes: dict[tuple, list[int]] = {}
-    for i, rec in enumerate(rows):
-        shapes.setdefault(tuple(rec), []).append(i)
+    order = list(map(tuple, rows))  # each record's columns, in order
+    shapes: dict[tuple, list[int]] = dict.fromkeys(order)  # type: ignore[assignment]
+    if len(shapes) == 1:  # one column order (a file, a log's import): no grouping
+        shapes[order[0]] = list(range(n))
+    else:
+        shapes = {}
+        for i, names in enumerate(order):
+            shapes.setdefault(names, []).append(i)
+    del order
     slow: list[int] = []
     for names, idx in shapes.items():
         if _NOT_LIFT_SAFE.isdisjoint(names):

@@ -40,6 +40,7 @@ from fieldcheck.store.rows import (
     new_id,
     new_ids,
     now,
+    record_texts,
 )
 from fieldcheck.store.schema import (
     MIGRATION_NAMES,
@@ -81,11 +82,6 @@ def lock_wait_s() -> float:
 
 def _loads(text: str | None):
     return None if text is None else json.loads(text)
-
-
-def _dumps_many(objs: list) -> list[str]:
-    """Compact JSON text of each object, as ``dumps`` writes it."""
-    return list(map(dumps, objs))
 
 
 def _loads_many(texts: list[str]) -> list:
@@ -958,7 +954,7 @@ class Log:
                             repeat(None),
                             repeat(0),
                             repeat(""),
-                            _dumps_many(kept),
+                            record_texts(kept),
                             repeat(dev),
                             range(first + k, first + 2 * k),
                             repeat(who),

@@ -6,8 +6,11 @@ write reviews and proposals into it (reviews.py, proposals.py).
 from __future__ import annotations
 
 import datetime as _dt
+import itertools
 import json
+import operator
 import os
+import re
 import threading
 import time
 from collections.abc import Mapping
@@ -91,10 +94,54 @@ def new_id() -> str:
 # what json.dumps(obj, ensure_ascii=False, separators=(",", ":")) gives, without building an
 # encoder per call (a bulk import writes one record text per post)
 _ENCODE = json.JSONEncoder(ensure_ascii=False, separators=(",", ":")).encode
+# the string encoder of that JSONEncoder (ensure_ascii=False): what it writes for each text
+_QUOTE = json.encoder.encode_basestring
 
 
 def dumps(obj) -> str:
     return _ENCODE(obj)
+
+
+def record_texts(records: list[dict[str, str]]) -> list[str]:
+    """``dumps`` of each record (text keys and values, as ``clean_record`` makes them), written
+    column-wise: the records that share their columns, in order, share one template; values
+    with nothing to escape (no quote, backslash or control character: one search over them
+    all) are put in as they are, others quoted by the encoder ``dumps`` itself uses."""
+    shapes = list(map(tuple, records))
+    if len(dict.fromkeys(shapes)) == 1:
+        return _texts(shapes[0], records)
+    groups: dict[tuple, list[int]] = {}
+    for i, names in enumerate(shapes):
+        groups.setdefault(names, []).append(i)
+    out: list[str] = [""] * len(records)
+    for names, idx in groups.items():
+        for i, text in zip(idx, _texts(names, list(map(records.__getitem__, idx))), strict=True):
+            out[i] = text
+    return out
+
+
+_ESCAPED = re.compile(r'["\\\x00-\x1f]')  # what that encoder escapes (ensure_ascii=False)
+
+
+def _texts(names: tuple, records: list[dict[str, str]]) -> list[str]:
+    """``dumps`` of records that share their columns (``names``, in order)."""
+    if not names:
+        return ["{}"] * len(records)
+    try:
+        keys = [_QUOTE(k).replace("%", "%%") for k in names]
+        if len(names) == 1:
+            cells = [(r[names[0]],) for r in records]
+        else:
+            cells = list(map(operator.itemgetter(*names), records))
+        plain = _ESCAPED.search("".join(itertools.chain.from_iterable(cells))) is None
+        if plain:
+            template = "{" + ",".join(k + ':"%s"' for k in keys) + "}"
+            return list(map(template.__mod__, cells))
+        template = "{" + ",".join(k + ":%s" for k in keys) + "}"
+        quoted = zip(*(map(_QUOTE, col) for col in zip(*cells, strict=True)), strict=True)
+        return list(map(template.__mod__, quoted))
+    except TypeError:  # a key or value that is not text: the encoder's own way
+        return list(map(dumps, records))
 
 
 def clean_record(
