@@ -134,3 +134,15 @@ def test_values_line_names_en338_symbols(capsys):
     )
     assert rc == 0
     assert re.search(r"^Values +f_m,k secondary, f_c,0,k memory", out, re.M), out
+
+
+def test_condition_speaks_ec5(capsys):
+    # a knot, a slope of grain and decay on an EC5 post: the strength ratios reduce f_c,0,k and
+    # f_m,k (EN 338's symbols), never the NDS Fc and Fb; the net section is EN 1995-1-1 §6.1.4
+    args = [*POST, "--section", "140mmx140mm", "--knot", "30mm", "--slope", "1:10"]
+    rc, out, _ = _run(capsys, [*args, "--decay-wide", "20mm", "--working"])
+    assert rc == 0
+    assert not re.search(r"\bF[cb]\b", out), re.search(r".*\bF[cb]\b.*", out).group(0)
+    assert re.search(r"Strength ratio.*: f_c,0,k x 0\.\d+, f_m,k x 0\.\d+", out), out
+    net = re.search(r"^  Net section.*$", out, re.M).group(0)
+    assert "EN 1995-1-1 §6.1.4" in net and "NDS" not in net, net

@@ -1168,12 +1168,13 @@ def working_lines(r, i: int) -> list:
                 else "mechanics; NDS 2018 §3.6.3 net section in Cp [M]",
             )
         )
+        ec5 = b.method[i] == EC5
         s.append(
             Step(
-                "Net section (all losses), end areas top / bottom",
+                "Net section (all losses) / end area at the top / at the bottom",
                 f"{v['area_net'][i]:,.0f} / {v['area_top'][i]:,.0f} / {v['area_bottom'][i]:,.0f} "
                 "mm2",
-                "NDS 2018 §3.6.3 [M], §3.10.1",
+                "EN 1995-1-1 §6.1.4" if ec5 else "NDS 2018 §3.6.3 [M], §3.10.1",
             )
         )
     if int(v["split_axis"][i]):
@@ -1186,13 +1187,15 @@ def working_lines(r, i: int) -> list:
         )
     if v["sr_recorded"][i]:
         tname = SLOPE_TABLES[int(b.slope_table[i])]
+        # the values the ratios reduce, as the method writes them (EC5: EN 338's symbols)
+        fc, fb = ("f_c,0,k", "f_m,k") if b.method[i] == EC5 else ("Fc", "Fb")
         applied = (
             "applied" if b.sr_applies[i] else "not applied (graded member; grade allows for it)"
         )
         s.append(
             Step(
                 f"Strength ratio, lowest of knot and slope ({tname} table), {applied}",
-                f"Fc x {v['strength_ratio'][i]:.4f}, Fb x {v['sr_bending'][i]:.4f}",
+                f"{fc} x {v['strength_ratio'][i]:.4f}, {fb} x {v['sr_bending'][i]:.4f}",
                 "ASTM D245 principle (from memory); "
                 + (
                     "ASTM D245 slope table (from memory)"

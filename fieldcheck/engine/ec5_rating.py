@@ -511,6 +511,10 @@ EC5_WARNINGS = {
         "judgement); a base that can rotate makes the post a mechanism. Confirm the fixity "
         "(embedment, bolted base, moment connection) on site."
     ),
+    "sr_applied": (
+        "Knots or slope of grain reduce f_c,0,k and f_m,k by the lowest strength ratio (ASTM "
+        "D245 principle, from memory; EN 338 classes assume graded timber: judgement)."
+    ),
     "eccentric": (
         "Eccentric load or bow: combined axial load and bending checked (EN 1995-1-1 §6.3.2(3) "
         "Eq. 6.23/6.24); a bow beyond the §10.2 straightness limit (L/300 solid timber, L/500 "
