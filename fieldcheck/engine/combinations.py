@@ -177,9 +177,9 @@ def _dense(b: PostBatch):
         else:
             cl, cr = distinct(b.cd_l), distinct(b.cd_r)
             if cl.shape[0] == 1 and cr.shape[0] == 1:  # one CD of live and rain for the block
-                pat = np.zeros(n, dtype=np.intp)
+                pat = np.zeros(n, dtype=np.uint8)
                 for t in kinds:
-                    pat += np.multiply(gts[t], 1 << t, dtype=np.intp)
+                    pat |= np.left_shift(gts[t], t, dtype=np.uint8)
                 fac = _asd_factor_table(tuple(int(r) for r in rws), float(cl[0]), float(cr[0]))
                 fac = fac.take(pat, axis=1)
             else:  # NDS 2018 §2.3.2, post by post
@@ -191,11 +191,11 @@ def _dense(b: PostBatch):
                 fac[fac == 0] = cd_perm
         loads.append(load)
         facs.append(fac)
-        combos.append(np.broadcast_to(rws[:, None], load.shape))
+        combos.append(np.broadcast_to(rws.astype(np.int8)[:, None], load.shape))
     if len(loads) == 2:  # both methods in the block: each post takes its own method's rows
         is_lrfd = b.method == LRFD
         k = max(x.shape[0] for x in loads)
-        pad = lambda a, v: np.concatenate([a, np.full((k - a.shape[0], n), v)])  # noqa: E731
+        pad = lambda a, v: np.concatenate([a, np.full((k - a.shape[0], n), v, a.dtype)])  # noqa: E731
         load = np.where(is_lrfd, pad(loads[1], np.nan), pad(loads[0], np.nan))
         fac = np.where(is_lrfd, pad(facs[1], 1.0), pad(facs[0], 1.0))
         combo = np.where(is_lrfd, pad(combos[1], -1), pad(combos[0], -1))
@@ -226,27 +226,46 @@ def distinct_per_post(b: PostBatch) -> np.ndarray:
     return count
 
 
-# the lowest set bit of a 16-bit mask (0 for none): the first row holding the largest value
-_FIRST_BIT = np.array([(x & -x).bit_length() - 1 if x else 0 for x in range(1 << 16)], np.uint8)
+def _first_max(k: int, n: int, row) -> tuple[np.ndarray, np.ndarray]:
+    """(slot, max) over k rows of n values: each post's largest value and the first row holding
+    it (int8; NaN never wins; all NaN: slot 0, max NaN), the max as ``np.fmax`` reduces it.
+
+    ``row(j, out)`` gives row j (worked out into ``out``, or a view). One pass per row over
+    contiguous arrays: a row takes over where it is strictly larger than every row before it,
+    and j is then larger than any slot so far, so the slot is a running maximum."""
+    best = np.empty(n)
+    got = row(0, best)
+    if got is not best:
+        np.copyto(best, got)
+    slot = np.zeros(n, dtype=np.int8)
+    nan_best = bool(np.isnan(best).any())  # a post with no value yet: its first value wins
+    buf = np.empty(n)
+    for j in range(1, k):
+        x = row(j, buf)
+        win = x > best
+        if nan_best:
+            win |= np.isnan(best) & ~np.isnan(x)
+        if win.any():
+            np.maximum(slot, np.multiply(win, j, dtype=np.int8), out=slot)
+        np.fmax(best, x, out=best)
+        if nan_best:
+            nan_best = bool(np.isnan(best).any())
+    return slot, best
 
 
-def _argmax_rows(key: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """(argmax, max) over axis 0 of a (k, n) array; NaN never wins (all NaN: row 0, max NaN);
-    ties keep the earlier row.
+def _at_slot(a: np.ndarray, slot: np.ndarray, flat: np.ndarray | None) -> np.ndarray:
+    """a[slot[i], i] of a (k, n) array; ``flat`` the flat index slot * n + i (made by
+    :func:`_flat`), not needed where ``a`` holds one value per slot (the combination rows)."""
+    if a.strides[1] == 0:
+        return a[:, 0].take(slot)
+    return a.ravel().take(flat)
 
-    numpy's argmax along axis 0 walks the array with a stride; here the largest value comes from
-    a reduction over whole rows, then each row equal to it sets its bit in a mask, and the
-    lowest bit is looked up (a few passes over contiguous rows)."""
-    k = key.shape[0]
-    best = np.fmax.reduce(key, axis=0)
-    if k == 1:
-        return np.zeros(key.shape[1], dtype=np.intp), best
-    if k > 16:
-        return np.argmax(np.where(np.isnan(key), -np.inf, key), axis=0), best
-    mask = np.zeros(key.shape[1], dtype=np.uint16)
-    for j in range(k):
-        mask |= np.left_shift(key[j] == best, j, dtype=np.uint16)
-    return _FIRST_BIT.take(mask).astype(np.intp), best
+
+def _flat(slot: np.ndarray, n: int) -> np.ndarray:
+    """slot * n + i: the flat index of each post's slot in a (k, n) array."""
+    flat = np.multiply(slot, n, dtype=np.intp)
+    flat += _cols(n)
+    return flat
 
 
 def _sum_rows(coef: np.ndarray, stack: list[np.ndarray]) -> np.ndarray:
@@ -272,7 +291,7 @@ def _sum_rows(coef: np.ndarray, stack: list[np.ndarray]) -> np.ndarray:
 def _at_rows(b: PostBatch, load, fac, combo) -> PostBatch:
     """The block with each post's load, duration factor and combination replaced."""
     m = distinct(b.method)
-    out = {"load_n": load, "combo": combo.astype(np.int8)}
+    out = {"load_n": load, "combo": combo.astype(np.int8, copy=False)}
     if (m == ASD).any():
         out["cd"] = fac if (m == ASD).all() else np.where(b.method == ASD, fac, b.cd)
     if (m == LRFD).any():
@@ -287,44 +306,22 @@ def rate_with_combinations(b: PostBatch, run_stages, finish, keep_values: bool =
     it; ``keep_values`` False: the intermediates are left at the reference combination (a large
     batch keeps none of them)."""
     n = b.n
-    cols = _cols(n)
     load, fac, combo, has = _dense(b)
     k = load.shape[0]
-    picked: dict[tuple[int, int], tuple] = {}
 
-    def pick(a: np.ndarray, slot: np.ndarray) -> np.ndarray:  # a[slot[i], i], once per pair
-        key = (id(a), id(slot))
-        got = picked.get(key)
-        if got is None:
-            if a.strides[1] == 0:  # one value per slot (e.g. the combination rows)
-                got = a[:, 0].take(slot)
-            else:
-                flat = picked.get((0, id(slot)))
-                if flat is None:
-                    flat = picked[(0, id(slot))] = (slot * n + cols, slot)
-                got = a.ravel().take(flat[0])
-            picked[key] = (got, a, slot)  # a and slot kept alive: their ids stay theirs
-            return got
-        return got[0]
+    def at(slot: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        flat = _flat(slot, n)  # (load, factor, combination) of each post at its slot
+        return _at_slot(load, slot, flat), _at_slot(fac, slot, flat), _at_slot(combo, slot, flat)
 
-    with np.errstate(divide="ignore", invalid="ignore"):
-        ref = _argmax_rows(load / fac)[0]  # the reference: the largest load / factor
-    l_ref, f_ref = pick(load, ref), pick(fac, ref)
-    r = run_stages(_at_rows(b, l_ref, f_ref, pick(combo, ref)))
+    with np.errstate(divide="ignore", invalid="ignore"):  # the largest load / factor
+        ref = _first_max(k, n, lambda j, out: np.divide(load[j], fac[j], out=out))[0]
+    at_ref = at(ref)
+    l_ref, f_ref, c_ref = at_ref
+    r = run_stages(_at_rows(b, l_ref, f_ref, c_ref))
     v = r.values
-    # the combinations that can beat the reference in a check whose capacity rises with the
-    # factor: a larger factor and a larger load (see the module docstring)
-    upper = []
-    all_have = bool(distinct(has).all())
-    for j in range(k if k > 1 else 0):
-        u = (load[j] > l_ref) & (fac[j] > f_ref)
-        u = np.flatnonzero(u if all_have else u & has)
-        if u.size:
-            upper.append((j, u))
-    lrfd = b.method == LRFD
     any_lrfd = bool((distinct(b.method) == LRFD).any())
     checks: dict[str, Check] = {}
-    by_load = None
+    upper = by_load = None
     made, keys, caps, dems, facs, combos = [], [], [], [], [], []
     for pos, (name, c) in enumerate(r.checks.items()):
         how = SCALING.get(name)
@@ -338,26 +335,32 @@ def rate_with_combinations(b: PostBatch, run_stages, finish, keep_values: bool =
             checks[name] = Check(c.name, c.label, c.clause, nan, nan)
             continue
         cap = c.capacity_n
-        if how == FC:
-            slot = ref
-        elif how in (NONE, PERP) and not (how == PERP and any_lrfd):
+        if how == FC:  # largest where load / factor is: the reference
+            got = at_ref
+        elif how in (NONE, PERP) and not (how == PERP and any_lrfd):  # the largest load
             if by_load is None:
-                by_load = _argmax_rows(load)[0]
-            slot = by_load
+                slot, l_max = _first_max(k, n, lambda j, out: load[j])
+                flat = _flat(slot, n)
+                by_load = l_max, _at_slot(fac, slot, flat), _at_slot(combo, slot, flat)
+            got = by_load
         elif how == PERP:  # LRFD: KF phi min(lambda, 1) on Fc-perp (NDS 2018 Appendix N)
-            pt = np.where(lrfd, np.minimum(fac, 1.0), 1.0)
-            slot = _argmax_rows(load / pt)[0]
+            pt = np.where(b.method == LRFD, np.minimum(fac, 1.0), 1.0)
             with np.errstate(divide="ignore", invalid="ignore"):
-                cap = cap * (pick(pt, slot) / pick(pt, ref))
+                slot = _first_max(k, n, lambda j, out, pt=pt: np.divide(load[j], pt[j], out=out))[0]
+                cap = cap * (_at_slot(pt, slot, _flat(slot, n)) / _at_slot(pt, ref, _flat(ref, n)))
+            got = at(slot)
         else:
-            slot, cap = _beat_reference(how, b, v, cap, load, fac, ref, upper)
+            if upper is None:
+                upper = _upper(load, fac, has, l_ref, f_ref)
+            cap, *got = _beat_reference(how, b, v, cap, load, fac, combo, at_ref, upper)
+        demand, c_fac, c_combo = got
         none = ~(cap > 0)  # NaN or 0: every combination gives the same ratio (NaN or inf)
         if none.any():  # the first combination of the post (slot 0), as ties go
-            slot = np.where(none, 0, slot)
-        demand = pick(load, slot)
+            demand = np.where(none, load[0], demand)
+            c_fac = np.where(none, fac[0], c_fac)
+            c_combo = np.where(none, combo[0], c_combo)
         with np.errstate(divide="ignore", invalid="ignore"):
             ratio = demand / cap
-        c_combo, c_fac = pick(combo, slot), pick(fac, slot)
         checks[name] = Check(c.name, c.label, c.clause, cap, demand, combo=c_combo, factor=c_fac)
         made.append(pos)
         keys.append(ratio)
@@ -366,16 +369,9 @@ def rate_with_combinations(b: PostBatch, run_stages, finish, keep_values: bool =
         facs.append(c_fac)
         combos.append(c_combo)
     # the governing check: the largest ratio (a NaN never governs; ties keep the earlier)
-    gm, g_ratio = _argmax_rows(np.stack(keys))
-    flat = gm * n + cols
-
-    def gov_of(parts):
-        return np.stack(parts).ravel().take(flat) if len(parts) > 1 else parts[0]
-
-    g_cap, g_dem = gov_of(caps), gov_of(dems)
-    gov = np.array(made, dtype=np.int8).take(gm)
+    gm, g_ratio, (g_cap, g_dem, g_fac, g_combo) = _govern(keys, (caps, dems, facs, combos))
+    gov = gm if made == list(range(len(made))) else np.array(made, dtype=np.int8).take(gm)
     # the combination kept for the working: that of the governing check
-    g_fac, g_combo = gov_of(facs), gov_of(combos)
     batch = _at_rows(b, g_dem, g_fac, g_combo)
     values = v
     if keep_values:  # the intermediates of the governing combination, where it is not the ref
@@ -397,6 +393,54 @@ def rate_with_combinations(b: PostBatch, run_stages, finish, keep_values: bool =
     if no_load.any():  # a post given no load: its smallest capacity governs
         _smallest_capacity(out, no_load)
     return finish(out, governed=True)
+
+
+def _govern(keys: list, parts: tuple[list, ...]):
+    """(m, max, the parts of m): the first of the ratios ``keys`` holding each post's largest
+    (int8; a NaN never governs, all NaN: 0 and NaN), and each list of ``parts`` at it.
+
+    One pass per check: a check takes over where its ratio is strictly larger (the max is
+    ``np.fmax``'s, as a reduction gives it), and those posts' parts are put in place (cheaper
+    than ``np.where`` unless nearly every post changes)."""
+    n = keys[0].shape[0]
+    best = keys[0].copy()
+    got = [p[0] for p in parts]
+    owned = False
+    gm = np.zeros(n, dtype=np.int8)
+    nan_best = bool(np.isnan(best).any())
+    for m in range(1, len(keys)):
+        key = keys[m]
+        win = key > best
+        if nan_best:
+            win |= np.isnan(best) & ~np.isnan(key)
+        np.fmax(best, key, out=best)
+        if nan_best:
+            nan_best = bool(np.isnan(best).any())
+        idx = np.flatnonzero(win)
+        if not idx.size:
+            continue
+        gm[idx] = m
+        if not owned:  # the checks' own arrays stay as they are
+            got, owned = [a.copy() for a in got], True
+        for a, p in zip(got, parts, strict=True):
+            a[idx] = p[m].take(idx)
+    return gm, best, got
+
+
+def _upper(load, fac, has, l_ref, f_ref) -> list[tuple[int, np.ndarray]]:
+    """(slot, posts) of the combinations that can beat the reference in a check whose capacity
+    rises with the factor: a larger factor and a larger load (see the module docstring)."""
+    all_have = bool(distinct(has).all())
+    upper = []
+    for j in range(load.shape[0] if load.shape[0] > 1 else 0):
+        u = load[j] > l_ref
+        u &= fac[j] > f_ref
+        if not all_have:
+            u &= has
+        idx = np.flatnonzero(u)
+        if idx.size:
+            upper.append((j, idx))
+    return upper
 
 
 def _values_at(v: dict, run_stages, batch: PostBatch, moved: np.ndarray) -> dict:
@@ -436,39 +480,57 @@ def _smallest_capacity(r: Rating, where: np.ndarray) -> None:
         r.ratio = np.where(where, r.demand_n / r.capacity_n, r.ratio)
 
 
-def _beat_reference(how, b, v, cap, load, fac, ref, upper):
-    """(slot, capacity) of a check evaluated again at each combination that can beat the
-    reference: the column (Cp through Fc*) or the combined interaction."""
-    slot = ref
+def _beat_reference(how, b, v, cap, load, fac, combo, at_ref, upper):
+    """(capacity, demand, factor, combination) of the column (Cp through Fc*) or the combined
+    interaction: those at the reference, except where the check evaluated again at a combination
+    that can beat it (``upper``) gives a larger ratio (the first such slot on a tie)."""
+    l_ref, f_ref, c_ref = at_ref
+    same = (cap, l_ref, f_ref, c_ref)
     ecc = None
     if how == INTERACTION:
         ecc = v.get("ecc_checked")
         if ecc is None or not bool(distinct(ecc).any()):
-            return slot, cap
+            return same
+    if not upper:
+        return same
     n = b.n
-    best = None
-    for j, idx in upper:
-        if ecc is not None:
-            idx = idx[ecc[idx]]
-        ok = ~np.isnan(cap[idx])
-        idx = idx if ok.all() else idx[ok]
+    # every (slot, post) pair at once, in slot order
+    idx = np.concatenate([u for _, u in upper])
+    slot = np.repeat(np.array([j for j, _ in upper], dtype=np.intp), [u.size for _, u in upper])
+    keep = ~np.isnan(cap.take(idx))  # no capacity: none at any combination
+    if ecc is not None:
+        keep &= ecc.take(idx)
+    if not keep.all():
+        idx, slot = idx[keep], slot[keep]
         if not idx.size:
+            return same
+    flat = slot * n + idx
+    time_fc, time_fb = _time(b, _at_slot(fac, slot, flat), idx)
+    p, cp, fc_star = column.capacity_at(b, v, idx, time_fc)
+    if ecc is not None:
+        p = condition.eccentric_at(b, v, idx, cp, fc_star, time_fb)
+    pair_load = load.ravel().take(flat)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        best = l_ref / cap  # the ratio at the reference
+        ratio = pair_load / p
+    win = ratio > best.take(idx)  # a pair that does not beat the reference never wins
+    if not win.any():
+        return same
+    idx, slot, flat, ratio, p, pair_load = (a[win] for a in (idx, slot, flat, ratio, p, pair_load))
+    # slot by slot (a post may beat the reference in several): strictly larger takes over
+    cap, demand, factor, cmb = (a.copy() for a in same)
+    ends = np.flatnonzero(np.diff(slot)) + 1
+    for s, e in zip(np.r_[0, ends], np.r_[ends, slot.size], strict=True):
+        w = s + np.flatnonzero(ratio[s:e] > best.take(idx[s:e]))
+        if not w.size:
             continue
-        time_fc, time_fb = _time(b, fac[j].take(idx), idx)
-        p, cp, fc_star = column.capacity_at(b, v, idx, time_fc)
-        if ecc is not None:
-            p = condition.eccentric_at(b, v, idx, cp, fc_star, time_fb)
-        if best is None:
-            with np.errstate(divide="ignore", invalid="ignore"):
-                best = load.ravel().take(ref * n + _cols(n)) / cap
-            slot, cap = slot.copy(), cap.copy()
-        with np.errstate(divide="ignore", invalid="ignore"):
-            rj = load[j].take(idx) / p
-        win = rj > best[idx]
-        if win.any():
-            w = idx[win]
-            best[w], slot[w], cap[w] = rj[win], j, p[win]
-    return slot, cap
+        posts = idx[w]
+        best[posts] = ratio[w]
+        cap[posts] = p[w]
+        demand[posts] = pair_load[w]
+        factor[posts] = _at_slot(fac, slot[w], flat[w])
+        cmb[posts] = _at_slot(combo, slot[w], flat[w])
+    return cap, demand, factor, cmb
 
 
 def _time(b: PostBatch, f: np.ndarray, idx: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
