@@ -97,7 +97,7 @@ def connect(path: Path | str, *, readonly: bool = False, inspect=None) -> Databa
     except sqlite3.Error as exc:
         raise damaged(path, exc) from None
     try:
-        db = Database(conn)
+        db = Database(conn, execute_plugins=False)  # no third-party plugin on a survey log
         # a file that is not SQLite at all fails on the first read
         conn.execute("PRAGMA schema_version").fetchone()
         if inspect is not None:
