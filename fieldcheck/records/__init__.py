@@ -228,19 +228,21 @@ def _lift_shape(
     parse, or a combination the builders refuse: those get their errors row by row)."""
     n = len(idx)
     recs = rows if n == len(rows) else list(map(rows.__getitem__, idx))
-    rated = [k for k, c in enumerate(names) if c not in _UNRATED and c in COLUMNS]
-    cols = {k: list(map(operator.itemgetter(names[k]), recs)) for k in rated}
+    rated = [c for c in names if c not in _UNRATED and c in COLUMNS]
+    keyed = [c for c in rated if c not in LIFTED]
+    cols = {c: list(map(operator.itemgetter(c), recs)) for c in rated if c in LIFTED}
+    if keyed:
+        # the other columns together: one code per distinct combination of their texts
+        get = operator.itemgetter(*keyed)
+        combos, codes = _distinct(list(map(get, recs) if len(keyed) > 1 else zip(map(get, recs))))
     del recs
     bad = np.zeros(n, dtype=bool)
     key_codes: list[np.ndarray] = []
     key_names: list[str] = []  # the rated columns: the keyed ones first, then the lifted ones
     lifted: dict[str, tuple[np.ndarray, np.ndarray]] = {}  # column -> (value, present) per row
-    keyed = [k for k in rated if names[k] not in LIFTED]
     if keyed:
-        # the other columns together: one code per distinct combination of their texts
-        combos, codes = _distinct(list(zip(*(cols[k] for k in keyed), strict=True)))
         key_codes.append(codes)
-        key_names.extend(names[k] for k in keyed)
+        key_names.extend(keyed)
         if "method" in key_names:
             m = key_names.index("method")
             for j, combo in enumerate(combos):
@@ -250,11 +252,8 @@ def _lift_shape(
                         bad |= codes == j
                 except ValueError:
                     bad |= codes == j
-    for k in rated:
-        name = names[k]
-        if name not in LIFTED:
-            continue
-        vals, fails = _lift_column(name, cols[k])
+    for name, col in cols.items():
+        vals, fails = _lift_column(name, col)
         present = ~fails & ~np.isnan(vals)
         bad |= fails
         lifted[name] = (vals, present)
@@ -264,11 +263,19 @@ def _lift_shape(
     left = [idx[k] for k in np.flatnonzero(bad).tolist()]
     if good.size == 0:
         return left
-    # one dense code per distinct combination, column by column
-    inverse = np.zeros(good.size, dtype=np.int64)
+    # one dense code per distinct combination: the columns' codes combined as digits of one
+    # number (made dense again only before it could overflow), then one np.unique
+    combined = np.zeros(good.size, dtype=np.int64)
+    span = 1
     for c in key_codes:
-        combined = inverse * (int(c.max(initial=0)) + 1) + c[good]
-        _, inverse = np.unique(combined, return_inverse=True)
+        base = int(c.max(initial=0)) + 1
+        if span * base >= 1 << 62:
+            _, combined = np.unique(combined, return_inverse=True)
+            combined = combined.reshape(-1)
+            span = int(combined.max(initial=0)) + 1
+        combined = combined * base + c[good]
+        span *= base
+    _, inverse = np.unique(combined, return_inverse=True)
     inverse = inverse.reshape(-1)
     n_groups = int(inverse.max(initial=-1)) + 1
     first = np.full(n_groups, good.size, dtype=np.intp)
