@@ -292,7 +292,9 @@ def _table_names(parts: list[dict]) -> list[str]:
     names = (
         t
         for v in parts
-        for t in re.sub(r"^(the lowest|lowest of|lower of) ", "", v["table"]).split(", ")
+        for t in re.sub(
+            r"^(the lowest|lowest of|lower of|round post: lower of) ", "", v["table"]
+        ).split(", ")
     )
     return list(dict.fromkeys(names))
 
@@ -333,6 +335,14 @@ def round_values(species: str, grade: str) -> dict:
             v = _lowest_timber(species)  # a grade not held as timber: never above a timber
         v["timber"] = cat == "timber"
         parts.append(v)
+    if species == "unknown":
+        # never above a species held: one whose grade is not held as timber takes the lowest
+        # timber of all (_lowest_timber), lower than the timbers of the species that hold it
+        for sp in SPECIES:
+            try:
+                parts.append(round_values(sp, grade))
+            except ValueError:
+                continue  # the grade is not held for this species
     return _lower(parts, "round post: lower")
 
 

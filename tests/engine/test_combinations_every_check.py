@@ -130,30 +130,35 @@ def test_each_check_ratio_is_the_max_over_combinations(d, l_, lr, s, height_in, 
         "method": method,
     }
     r = rate(make_batch(**base, nom_d_n=d, nom_l_n=l_, nom_lr_n=lr, nom_s_n=s, load_n=0.0))
-    meth = "asd" if method == 0 else "lrfd"
-    coef = {"D": d, "L": l_, "Lr": lr, "S": s}
-    cd_of = {"D": 0.9, "L": 1.0, "Lr": 1.25, "S": 1.15}  # NDS 2018 Table 2.3.2
+    alone = _each_combination_alone(base, {"D": d, "L": l_, "Lr": lr, "S": s}, method)
     for name, check in r.checks.items():
-        best = -1.0
-        for row in rows():
-            if row["method"] != meth:
-                continue
-            load = sum(float(row[t]) * v for t, v in coef.items())
-            if meth == "asd":
-                present = [cd_of[t] for t, v in coef.items() if float(row[t]) and v > 0]
-                factor = max(present, default=0.9)
-                one = rate(make_batch(**base, load_n=load, cd=factor))
-            else:
-                one = rate(make_batch(**base, load_n=load, lam=float(row["lam_occupancy"])))
-            ratio = float(one.checks[name].ratio[0])
-            best = max(best, ratio) if not math.isnan(ratio) else best
+        made = [x for o in alone if not math.isnan(x := float(o.checks[name].ratio[0]))]
         got = float(check.ratio[0])
-        if best < 0:  # the check is not made for this post (no capacity): NaN every time
+        if not made:  # the check is not made for this post (no capacity): NaN every time
             assert math.isnan(got)
         else:
-            assert got == pytest.approx(best, rel=1e-12, abs=1e-15)
+            assert got == pytest.approx(max(made), rel=1e-12, abs=1e-15)
     made = [float(c.ratio[0]) for c in r.checks.values() if not math.isnan(float(c.ratio[0]))]
     assert float(r.ratio[0]) == pytest.approx(max(made))
+
+
+def _each_combination_alone(base: dict, coef: dict[str, float], method: int) -> list:
+    """The post rated once per ASCE 7 combination of its method (§2.4.1 ASD, §2.3.1 LRFD), each
+    as a load given with its factor: ASD the CD of the shortest load present (NDS 2018 Table
+    2.3.2), LRFD the time effect factor of the combination (NDS 2018 Appendix N Table N3)."""
+    meth = "asd" if method == 0 else "lrfd"
+    cd_of = {"D": 0.9, "L": 1.0, "Lr": 1.25, "S": 1.15}  # NDS 2018 Table 2.3.2
+    out = []
+    for row in rows():
+        if row["method"] != meth:
+            continue
+        load = sum(float(row[t]) * v for t, v in coef.items())
+        if meth == "asd":
+            present = [cd_of[t] for t, v in coef.items() if float(row[t]) and v > 0]
+            out.append(rate(make_batch(**base, load_n=load, cd=max(present, default=0.9))))
+        else:
+            out.append(rate(make_batch(**base, load_n=load, lam=float(row["lam_occupancy"]))))
+    return out
 
 
 def test_large_batch_matches_posts_rated_alone():
@@ -239,3 +244,68 @@ def test_a_batch_explains_each_post_as_rated_alone():
         assert explain.summary(r, i, with_remedies=False) == explain.summary(
             alone, 0, with_remedies=False
         )
+
+
+@pytest.mark.slow
+@settings(max_examples=40, deadline=None)
+@given(
+    st.fixed_dictionaries(
+        {
+            "d": loads_st,
+            "l": loads_st,
+            "lr": loads_st,
+            "s": loads_st,
+            "side_in": st.floats(2.5, 9.5),
+            "height_in": st.floats(24, 240),
+            "method": st.sampled_from([0, 1]),
+            "round": st.booleans(),
+            "bow_in": st.sampled_from([0.0, 0.5]),
+            "wet": st.booleans(),
+            "sill_lb_in": st.sampled_from([float("nan"), 1.5, 3.0]),
+            "soil_kpa": st.sampled_from([float("nan"), 72.0, 144.0]),
+            "pad_t_in": st.sampled_from([float("nan"), 1.5]),
+        }
+    )
+)
+def test_every_check_of_any_post_is_the_max_over_combinations(p):
+    # the property of test_each_check_ratio_is_the_max_over_combinations over more of the
+    # paths: round posts (NDS 2018 §3.7.3), any size and height, wet service, bearing on a sill
+    # of a given length (NDS 2018 §3.10.4), a pad on soil (IBC 2012 Table 1806.2 pressures),
+    # a bow (the combined check); each check's ratio is its largest over every combination
+    # (ASCE 7 §2.4.1 / §2.3.1), each combination rated alone as a load given with its factor
+    from fieldcheck.engine.batch import RECT, ROUND
+
+    side = p["side_in"] * IN
+    base = {
+        "d1_mm": side,
+        "d2_mm": side,
+        "shape": ROUND if p["round"] else RECT,
+        "height_mm": p["height_in"] * IN,
+        "fc_mpa": 1350 * PSI,
+        "emin_mpa": 580e3 * PSI,
+        "fb_mpa": 900 * PSI,
+        "fc_perp_mpa": 625 * PSI,
+        "top_fc_perp_mpa": 405 * PSI,
+        "bottom_fc_perp_mpa": 625 * PSI,
+        "bottom_lb_mm": p["sill_lb_in"] * IN,
+        "bow2_mm": p["bow_in"] * IN,
+        "moisture_pct": 25.0 if p["wet"] else float("nan"),
+        "soil_kpa": p["soil_kpa"],
+        "pad_area_mm2": (24 * IN) ** 2 if p["soil_kpa"] == p["soil_kpa"] else float("nan"),
+        "pad_t_mm": p["pad_t_in"] * IN,
+        "method": p["method"],
+    }
+    r = rate(make_batch(**base, nom_d_n=p["d"], nom_l_n=p["l"], nom_lr_n=p["lr"], nom_s_n=p["s"]))
+    coef = {"D": p["d"], "L": p["l"], "Lr": p["lr"], "S": p["s"]}
+    alone = _each_combination_alone(base, coef, p["method"])
+    for name, check in r.checks.items():
+        ratios = [float(o.checks[name].ratio[0]) for o in alone]
+        made = [x for x in ratios if not math.isnan(x)]
+        got = float(check.ratio[0])
+        if not made:
+            assert math.isnan(got), name
+        else:
+            assert got == pytest.approx(max(made), rel=1e-9, abs=1e-15), name
+    made = [float(c.ratio[0]) for c in r.checks.values() if not math.isnan(float(c.ratio[0]))]
+    if made:  # the governing ratio is the largest of the checks'
+        assert float(r.ratio[0]) == pytest.approx(max(made), rel=1e-12)
