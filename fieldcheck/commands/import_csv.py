@@ -51,6 +51,7 @@ def run(args: argparse.Namespace) -> int:
     from fieldcheck.commands.progress import counted, progress_bar
     from fieldcheck.config import load
     from fieldcheck.records.csv_file import CsvProblem
+    from fieldcheck.store.repo import EXPORT_ONLY_COLUMNS
 
     inspector = args.inspector or load().inspector or None
     with (
@@ -62,7 +63,11 @@ def run(args: argparse.Namespace) -> int:
         # problem found on a later line leaves the log as it was (one transaction)
         try:
             result = log.import_rows(
-                counted(table, bar, "importing"), args.site, args.visit, inspector=inspector
+                counted(table.records(drop=EXPORT_ONLY_COLUMNS), bar, "importing"),
+                args.site,
+                args.visit,
+                inspector=inspector,
+                kept=True,  # blank cells and the columns only an export writes left out
             )
         except CsvProblem as exc:
             raise UsageError(str(exc)) from None

@@ -173,8 +173,23 @@ class PostsFile:
     # ---- the rows
 
     def __iter__(self) -> Iterator[dict[str, str]]:
+        keep = self._keep
+        for cells in self._cells():
+            n = len(cells)
+            yield {k: (cells[i] if i < n else "") for i, k in keep}
+
+    def records(self, drop: Collection[str] = ()) -> Iterator[dict[str, str]]:
+        """The rows as a survey log keeps a record: blank cells (not given) and the columns in
+        ``drop`` left out; the same checks as iterating the file."""
+        keep = [(i, k) for i, k in self._keep if k not in drop]
+        for cells in self._cells():
+            n = len(cells)
+            yield {k: c for i, k in keep if i < n and (c := cells[i]).strip()}
+
+    def _cells(self) -> Iterator[list[str]]:
+        """Each data row's cells, checked (blank lines skipped)."""
         reader = self._reader
-        keep, width, unnamed = self._keep, self._width, self._unnamed
+        width, unnamed = self._width, self._unnamed
         while True:
             try:
                 cells = next(reader)
@@ -208,8 +223,7 @@ class PostsFile:
                         f"{_short(cells[i])!r} sits under a column with no header; name the "
                         "column or move the value"
                     )
-            n = len(cells)
-            yield {k: (cells[i] if i < n else "") for i, k in keep}
+            yield cells
 
     def chunks(self, size: int) -> Iterator[list[dict[str, str]]]:
         chunk: list[dict[str, str]] = []

@@ -900,12 +900,15 @@ class Log:
         inspector: str | None = None,
         *,
         chunk: int = STORE_CHUNK,
+        kept: bool = False,
     ) -> ImportResult:
         """Add many posts in ONE transaction: the site and visit are found by name (or created);
         rows the records layer refuses are reported (0-based row, column, message) and left
         out, the others imported as new members. ``rows`` may be any iterable (a file read as
         it goes): it is taken ``chunk`` rows at a time, one engine call each, the distinct
-        records' parses kept from chunk to chunk, so memory stays flat in the number of rows."""
+        records' parses kept from chunk to chunk, so memory stays flat in the number of rows.
+        ``kept``: the rows are already records as the log keeps them (text values, no blank
+        cell, no EXPORT_ONLY_COLUMNS: ``PostsFile.records``), taken as they are."""
         stamp, version, _ = rated.engine_stamp()
         source = iter(rows)
         cache: dict = {}
@@ -918,7 +921,7 @@ class Log:
             created = now()
             dev, who = self.device_id, self.author
             while batch := list(itertools.islice(source, chunk)):
-                records = [clean_record(r, _EXPORT_ONLY) for r in batch]
+                records = batch if kept else [clean_record(r, _EXPORT_ONLY) for r in batch]
                 del batch
                 result = rated.rate_columns(records, summaries=False, cache=cache)
                 errors.extend(e.at(read + e.row) for e in result.errors)

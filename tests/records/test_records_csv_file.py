@@ -172,3 +172,27 @@ def test_batch_out_in_a_missing_folder_is_one_sentence(tmp_path, capsys):
 def test_out_without_batch_is_refused(capsys):
     assert main(["rate", "--size", "4x4", "--height", "8ft", "--out", "x.csv"]) == 2
     assert "--batch" in capsys.readouterr().err
+
+
+def test_records_are_the_rows_as_the_log_keeps_them(tmp_path):
+    # judgement: what an import stores is each row cleaned (store.rows.clean_record): blank and
+    # whitespace-only cells and the columns only an export writes left out, short rows padded
+    from fieldcheck.store.repo import EXPORT_ONLY_COLUMNS
+    from fieldcheck.store.rows import clean_record
+
+    text = (
+        "tag,size,height,notes,ratio,load\n"
+        "P1,4x4,8ft,,0.5,3000lbf\n"
+        "P2, ,  9 ft ,\t,1.2,\n"
+        "P3,6x6\n"
+        "\n"
+        'P4,4x4,"8ft",  leaning ,,2 kip\n'
+    )
+    src = _write(tmp_path / "p.csv", text)
+    with open_posts(src, also=EXPORT_ONLY_COLUMNS) as table:
+        want = [clean_record(r, frozenset(EXPORT_ONLY_COLUMNS)) for r in table]
+    with open_posts(src, also=EXPORT_ONLY_COLUMNS) as table:
+        got = list(table.records(drop=EXPORT_ONLY_COLUMNS))
+    assert got == want
+    assert [list(r) for r in got] == [list(r) for r in want]  # the same column order
+    assert got[1] == {"tag": "P2", "height": "  9 ft "}  # kept as typed, never stripped
