@@ -117,6 +117,7 @@ class PostEditor(ReleasesKeys, Screen[None]):
         self.batch: Any = None
         self.rating: Any = None
         self.summary: dict[str, Any] | None = None
+        self.material = ""  # the records' material text of the post rated (table, status)
         self.stale = False  # the rating shown is the last valid one
         self.remedies: list[dict[str, Any]] = []  # as listed: ranked, no margin last
         self.head_id: str | None = None  # the saved revision the form started from / saved as
@@ -404,8 +405,9 @@ class PostEditor(ReleasesKeys, Screen[None]):
             self.render_rating()
             return
         self.batch = parsed.batch
+        self.material = parsed.meta[0].get("_material", "")
         self.rating = rate(parsed.batch)
-        self.summary = quick_summary(self.rating)
+        self.summary = self._with_material(quick_summary(self.rating))
         self.stale = False
         self.render_rating(detail=False)
         # the full summary (load combination, remedies: ~20 ms) follows once typing pauses
@@ -431,10 +433,17 @@ class PostEditor(ReleasesKeys, Screen[None]):
         summary = explain.summary(rating, 0)
         self.app.call_from_thread(self._full_done, summary, generation)
 
+    def _with_material(self, summary: dict[str, Any]) -> dict[str, Any]:
+        """The summary with the material as the records name it (the table and row the values
+        came from) and each value's status in words, as the command line prints them."""
+        summary["material"] = self.material
+        summary["values_text"] = explain.status_line(summary)
+        return summary
+
     def _full_done(self, summary: dict[str, Any], generation: int) -> None:
         if generation != self.generation or self.stale:
             return  # typed on since: a newer rating is on its way
-        self.summary = summary
+        self.summary = self._with_material(summary)
         self.render_rating()
 
     def _parses(self, name: str) -> bool:
@@ -788,7 +797,8 @@ class PostEditor(ReleasesKeys, Screen[None]):
             and self.rating is not None
             and not self.stale
         ):
-            self.summary = explain.summary(self.rating, 0)  # typed since the last full summary
+            # typed since the last full summary
+            self.summary = self._with_material(explain.summary(self.rating, 0))
             self.render_rating()
         rems = [] if self.stale else remedy_words.ranked((self.summary or {}).get("remedies") or [])
         if not rems:

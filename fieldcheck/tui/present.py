@@ -239,6 +239,11 @@ def detail_lines(summary: dict[str, Any] | None) -> list[str]:
     lines = []
     if summary.get("action_text"):
         lines.append(escape(plain(summary["action_text"])))
+    # the table the values came from, and how sure each value is (read, secondary, memory)
+    if summary.get("material"):
+        lines.append(f"Material: {escape(summary['material'])}")
+    if summary.get("values_text"):  # explain.status_line, added by the editor
+        lines.append(f"Values: {escape(summary['values_text'])}")
     comb = summary.get("load_combination")
     if isinstance(comb, dict) and comb.get("name"):
         lines.append(f"Load case: {escape(plain(comb['name']))}")

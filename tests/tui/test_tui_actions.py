@@ -291,3 +291,23 @@ async def test_ratio_action_and_governing_check_stay_on_screen_while_typing(db, 
                     assert lines[k].startswith(word)
                     assert screen.y <= head.region.y + k < screen.bottom, (size, field, word)
                 assert head.region.right <= size[0]
+
+
+async def test_rating_pane_names_the_material_table_and_values_status(db, ui) -> None:
+    # the table a post's values came from and how sure they are (read, secondary, memory)
+    # reach the person at the interface as at the command line (the --json "material" and the
+    # values' statuses)
+    from fieldcheck.engine import explain
+    from fieldcheck.records import parse_records
+
+    app = ui.app(db)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await ui.edit_post(app, pilot, "S1")
+        editor = app.screen
+        await ui.settle(app, pilot, 0.3)
+        panel = ui.text(app, "#rating-panel")
+        meta = parse_records([editor.record]).meta[0]
+        summary = explain.summary(editor.rating, 0, with_remedies=False)
+        assert f"Material: {meta['_material']}" in " ".join(panel.split())
+        assert f"Values: {explain.status_line(summary)}" in " ".join(panel.split())
+        assert meta["_values_status"] in panel
