@@ -37,7 +37,7 @@ from fieldcheck.engine.batch import ASD, EC5, LRFD, PostBatch
 from fieldcheck.engine.blocks import absent, broadcast, distinct, filled
 from fieldcheck.engine.loads import combination_rows as rows
 from fieldcheck.engine.refdata import table
-from fieldcheck.engine.result import Check, Rating
+from fieldcheck.engine.result import Check, Rating, duration_factor
 
 TYPES = ("D", "L", "Lr", "S", "R", "W", "E")
 NOMINAL_FIELDS = ("nom_d_n", "nom_l_n", "nom_lr_n", "nom_s_n", "nom_r_n", "nom_w_n", "nom_e_n")
@@ -547,4 +547,4 @@ def _time(b: PostBatch, f: np.ndarray, idx: np.ndarray) -> tuple[np.ndarray, np.
 
 def _factor(b: PostBatch) -> np.ndarray:
     """The duration factor of each post: CD (ASD), lambda (LRFD), kmod (EC5)."""
-    return np.where(b.method == LRFD, b.lam, np.where(b.method == EC5, b.kmod, b.cd))
+    return duration_factor(b.method, b.cd, b.lam, b.kmod)

@@ -10,19 +10,19 @@ warnings, working) is the explain layer's (explain.py), made for the posts a per
 from __future__ import annotations
 
 import threading
-from typing import Any
 
 import numpy as np
 
 from fieldcheck.engine import combinations
 from fieldcheck.engine.batch import PostBatch
-from fieldcheck.engine.blocks import BLOCK, absent, at_least, filled, share_blocks
+from fieldcheck.engine.block_results import BlockResults
+from fieldcheck.engine.blocks import BLOCK, absent, at_least, share_blocks
 from fieldcheck.engine.column import COLUMN, ENDS
 from fieldcheck.engine.condition import CONDITION
 from fieldcheck.engine.ec5_rating import EC5_STAGE
 from fieldcheck.engine.ground import GROUND
 from fieldcheck.engine.load_stages import BRACING, LOADS
-from fieldcheck.engine.result import NOT_RATED, RATIO_BANDS, Check, Rating
+from fieldcheck.engine.result import NOT_RATED, RATIO_BANDS, Check, Rating, duration_factor
 from fieldcheck.engine.stage import FlagSet, FlagTable
 
 # The rating, in order: end conditions and effective lengths; the column and bearing checks on
@@ -31,6 +31,8 @@ from fieldcheck.engine.stage import FlagSet, FlagTable
 # shared load); the ground and bearing plates; the bracing demand.
 STAGES = (ENDS, COLUMN, CONDITION, EC5_STAGE, LOADS, GROUND, BRACING)
 FLAGS = FlagTable(STAGES)
+# the batch fields the load combinations replace in a rating's batch (combinations._at_rows)
+BATCH_FIELDS = ("load_n", "cd", "lam", "combo")
 
 
 def rate(b: PostBatch, keep: tuple[str, ...] = ()) -> Rating:
@@ -47,12 +49,11 @@ def rate(b: PostBatch, keep: tuple[str, ...] = ()) -> Rating:
     starts = range(0, n, BLOCK)
     first_blk = b.take(slice(0, BLOCK))
     first = _rate_any(first_blk, bool(keep))
-    # Results are written block by block into arrays of the batch's length. Two kinds are made
-    # only when a block needs them (each full-length array costs page faults): a check's
-    # capacities stay one broadcast NaN until a block makes that check, and a demand stays the
-    # batch's own load column until a block's demand differs from its load.
-    load = b.load_n
-    nan = filled(np.nan, n)
+    # The rating, the kept values and the core arrays are copied block by block into arrays of
+    # the batch's length; the checks' arrays and the governing combination's load, factor and
+    # combination (the rating's batch) are put together by BlockResults, which copies only a
+    # block's own arrays: each full-length array costs page faults, and a check's demand is
+    # often the batch's load column or another check's (block_results.py).
     # a kept value a block never made (an EC5 value in a block with no EC5 post) is NaN there
     out = {k: np.empty(n, dtype=np.asarray(first.values.get(k, np.nan)).dtype) for k in keep}
     core = {
@@ -60,29 +61,16 @@ def rate(b: PostBatch, keep: tuple[str, ...] = ()) -> Rating:
         for k in ("capacity_n", "ratio", "governing", "action", "flags")
     }
     clauses = {k: c.clause for k, c in first.checks.items()}
-    made: dict[tuple[str, str], np.ndarray] = {}
-    wrote: dict[tuple[str, str], set[int]] = {}
-    fills: dict[tuple[str, str], Any] = {}
     lock = threading.Lock()
-    f64 = np.dtype(np.float64)
+    results = BlockResults(n, starts, BLOCK)
 
-    def write(key: tuple[str, str], dtype, fill, sl: slice, value) -> None:
-        """Block ``sl`` of the full-length array ``key``, made (empty) by whichever block needs
-        it first; the blocks that never write it get ``fill(sl)`` at the end (each part is
-        written once: a full-length fill first would fault every page in twice)."""
-        with lock:
-            a = made.get(key)
-            if a is None:
-                a = made[key] = np.empty(n, dtype=dtype)
-                wrote[key], fills[key] = set(), fill
-            wrote[key].add(sl.start)
-        a[sl] = value
+    def batch_combo(sl: slice) -> np.ndarray:  # a check with no combination of its own
+        return results.get(("batch", "combo"))[sl]
 
-    def nan_fill(sl: slice) -> float:
-        return np.nan
-
-    def load_fill(sl: slice) -> np.ndarray:
-        return load[sl]
+    def batch_factor(sl: slice) -> np.ndarray:  # nor a factor: the batch's (Rating.duration_factor)
+        return duration_factor(
+            b.method[sl], *(results.get(("batch", f))[sl] for f in ("cd", "lam")), b.kmod[sl]
+        )
 
     def put(start: int, first_block: tuple | None = None) -> None:
         if first_block is None:
@@ -91,52 +79,41 @@ def rate(b: PostBatch, keep: tuple[str, ...] = ()) -> Rating:
         else:
             blk, r = first_block
         sl = slice(start, start + r.n)
-        own_load = r.batch.load_n
+        part = results.block(start, {id(getattr(blk, f)): getattr(b, f) for f in BATCH_FIELDS})
+        for f in BATCH_FIELDS:  # the governing combination's, where combinations ran
+            part(("batch", f), getattr(r.batch, f))
         for k, c in r.checks.items():
-            if absent(c.capacity_n):  # not made in this block: no capacity, no demand of its own
-                continue
-            write((k, "capacity"), f64, nan_fill, sl, c.capacity_n)
-            if c.demand_n is not own_load:
-                write((k, "demand"), f64, load_fill, sl, c.demand_n)
-            if c.combo is not None:  # the combination of this check, where combinations ran
-                write((k, "combo"), np.int8, lambda sl: -1, sl, c.combo)
-                write((k, "factor"), f64, nan_fill, sl, c.factor)
+            part((k, "capacity"), c.capacity_n)
+            part((k, "demand"), c.demand_n)
+            part((k, "combo"), c.combo, batch_combo)
+            part((k, "factor"), c.factor, batch_factor)
             if c.clause not in clauses[k]:  # e.g. a block with EC5 posts names both clauses
                 with lock:
                     clauses[k] += f" / {c.clause}"
-        if r.batch is not blk:  # combinations ran: the governing one's load and factor
-            for f in ("load_n", "cd", "lam", "combo"):
-                own = getattr(b, f)
-                write(("batch", f), own.dtype, lambda sl, own=own: own[sl], sl, getattr(r.batch, f))
+        part(("", "demand"), r.demand_n)
         for k, a in out.items():
             a[sl] = r.values.get(k, np.nan)
         for k, a in core.items():
             a[sl] = getattr(r, k)
-        if r.demand_n is not own_load:
-            write(("", "demand"), f64, load_fill, sl, r.demand_n)
 
     put(0, (first_blk, first))
     share_blocks(put, starts[1:])
-    for key, a in made.items():  # the blocks that never wrote an array: its fill
-        for start in starts:
-            if start not in wrote[key]:
-                sl = slice(start, start + BLOCK)
-                a[sl] = fills[key](sl)
     checks = {
         k: Check(
             c.name,
             c.label,
             clauses[k],
-            made.get((k, "capacity"), nan),
-            made.get((k, "demand"), load),
-            made.get((k, "combo")),
-            made.get((k, "factor")),
+            results.get((k, "capacity")),
+            results.get((k, "demand")),
+            results.get((k, "combo")),
+            results.get((k, "factor")),
         )
         for k, c in first.checks.items()
     }
-    demand = made.get(("", "demand"), load)
-    if any(key[0] == "batch" for key in made):
-        b = b.replace_arrays(**{f: a for (kind, f), a in made.items() if kind == "batch"})
+    own = {f: results.get(("batch", f)) for f in BATCH_FIELDS}
+    if any(a is not getattr(b, f) for f, a in own.items()):
+        b = b.replace_arrays(**{f: a for f, a in own.items() if a is not getattr(b, f)})
+    demand = results.get(("", "demand"))
     return Rating(batch=b, checks=checks, values=out, partial=True, demand_n=demand, **core)
 
 

@@ -34,6 +34,11 @@ STATE_LOAD_MISSING = "not rated: load missing"
 RATIO_BANDS = (0.8, 1.0, 1.25)  # <= 0.8 none, <= 1.0 monitor, <= 1.25 repair, above: make safe
 
 
+def duration_factor(method, cd, lam, kmod) -> np.ndarray:
+    """The duration factor per post: CD (ASD), lambda (LRFD), kmod (EC5)."""
+    return np.where(method == LRFD, lam, np.where(method == EC5, kmod, cd))
+
+
 @dataclass
 class Check:
     name: str
@@ -101,7 +106,7 @@ class Rating:
     def duration_factor(self) -> np.ndarray:
         """The batch's duration factor per post: CD (ASD), lambda (LRFD), kmod (EC5)."""
         b = self.batch
-        return np.where(b.method == LRFD, b.lam, np.where(b.method == EC5, b.kmod, b.cd))
+        return duration_factor(b.method, b.cd, b.lam, b.kmod)
 
     def check_combination(self, name: str, i: int) -> tuple[str, float]:
         """(name of the load combination that governs check ``name`` for post i, its duration
