@@ -530,12 +530,20 @@ def size_factors(
 
 def fc_perp_of(species: str) -> float:
     """Fc-perp (MPa) of a species group, for a cap, beam or sill it bears on (any grade)."""
-    return (
-        min(
-            float(r["fc_perp_psi"])
-            for (s, _, _), rows in _rows().items()
-            for r in rows
-            if species == "unknown" or s == species
-        )
-        * PSI
-    )
+    return fc_perp_held(species)[0]
+
+
+@cache
+def fc_perp_held(species: str) -> tuple[float, str]:
+    """Fc-perp (MPa) of a species group for a cap, beam or sill (the lowest over its grades and
+    sizes: the grade of a cap is rarely known; judgement) and its status: the weakest of every
+    row's, since the lowest is only as sure as each value it was taken over."""
+    pool = [
+        r
+        for (s, _, _), rows in _rows().items()
+        for r in rows
+        if species == "unknown" or s == species
+    ]
+    low = min(float(r["fc_perp_psi"]) for r in pool)
+    status = weakest(r["fc_perp_status"] for r in pool)
+    return low * PSI, status

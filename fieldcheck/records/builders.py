@@ -233,7 +233,13 @@ def bearing_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
     for end, col in (("top", "cap"), ("bottom", "sill")):
         sp = row.get(f"{col}_species")
         if sp:
-            f[f"{end}_fc_perp_mpa"] = materials.fc_perp_of(sp)
+            fc_perp, status = materials.fc_perp_held(sp)
+            f[f"{end}_fc_perp_mpa"] = fc_perp
+            # the cap's or sill's reference value and its status reach the person too
+            out["_material"] = (
+                f"{out.get('_material', '')}; {col} {sp}: Fc-perp {fc_perp / materials.PSI:.0f} "
+                f"psi ({status}, the lowest of its grades)"
+            )
         if f"{col}_bearing" in row:
             f[f"{end}_lb_mm"] = row[f"{col}_bearing"]
         dist = row.get(f"{col}_end_distance")

@@ -60,3 +60,21 @@ def test_identical_records_parse_once_and_rate_alike(shore):
 def test_unknown_columns_are_kept_out_of_the_rating(shore):
     fields, _, problems = parse_row({**shore, "site_own_note": "blue paint"})
     assert problems == [] and fields == parse_row(shore)[0]
+
+
+@pytest.mark.parametrize(("column", "end"), [("cap_species", "cap"), ("sill_species", "sill")])
+def test_cap_and_sill_species_name_their_value_and_its_status(column, end):
+    # the cap's or sill's Fc-perp is a reference value too: the material text names it and its
+    # status (NDS Supplement Table 4A: Hem-Fir Fc-perp 405 psi, every grade); the lowest over
+    # the species' rows is as sure as the least sure of them
+    from fieldcheck.engine.materials import weakest
+    from fieldcheck.engine.refdata import table
+
+    rec = {"size": "4x4", "height": "8ft", "species": "douglas-fir-larch", "grade": "no2"}
+    parsed = parse_records([{**rec, column: "hem-fir"}])
+    assert parsed.ok[0]
+    material = parsed.meta[0]["_material"]
+    rows = [r for r in table("nds_reference_values") if r["species"] == "hem-fir"]
+    assert min(float(r["fc_perp_psi"]) for r in rows) == 405
+    status = weakest(r["fc_perp_status"] for r in rows)
+    assert f"{end} hem-fir: Fc-perp 405 psi ({status}" in material, material
