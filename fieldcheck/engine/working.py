@@ -11,13 +11,28 @@ import numpy as np
 
 from fieldcheck.engine import materials
 from fieldcheck.engine import quantities as q
-from fieldcheck.engine.batch import EC5, LRFD, METHOD_NAMES, PRODUCT_NAMES, ROUND
+from fieldcheck.engine.batch import (
+    DIMENSION,
+    EC5,
+    LRFD,
+    METHOD_NAMES,
+    PRODUCT_NAMES,
+    ROUND,
+    TIMBER,
+)
 from fieldcheck.engine.customary import IN
 from fieldcheck.engine.ec5_rating import clause_for, ec5_steps
 from fieldcheck.engine.loads import GIVEN
 from fieldcheck.engine.restraint import MODE_KEYS, MODES
 from fieldcheck.engine.result import ACTION_TEXT, Rating, Step
 from fieldcheck.engine.spring_ends import SPRING_MODE
+
+# the NDS Supplement tables of each product class's reference values (NDS 2018 §4.1.3); the
+# table and row a post took are named in full by its material text (records)
+PRODUCT_TABLES = {
+    DIMENSION: "NDS Supplement Tables 4A, 4B (dimension lumber)",
+    TIMBER: "NDS Supplement Table 4D (Posts and Timbers; Beams and Stringers)",
+}
 
 
 def mode_label(i_mode: int) -> str:
@@ -75,16 +90,18 @@ def column_steps(r: Rating, i: int) -> list[Step]:
             "",
         )
     )
+    product = int(b.product[i])
+    tables = PRODUCT_TABLES.get(product, "NDS Supplement")
     if not ec:  # EC5: the strength class step names the product
-        add(Step("Product", PRODUCT_NAMES[int(b.product[i])], ""))
+        add(Step("Product", PRODUCT_NAMES[product], f"NDS 2018 §4.1.3; {tables}"))
     if ec:
         s.extend(ec5_steps(r, i))
     else:
         fc = b.fc_mpa[i]
         st = materials.unpack_statuses(int(b.value_status[i]))
         note = (lambda k: materials.STATUS_NOTE[st[k]]) if st else (lambda k: "")
-        add(Step("Reference Fc", q.stress(fc) + note("fc"), "NDS Supplement"))
-        add(Step("Reference Emin", q.stress(b.emin_mpa[i]) + note("emin"), "NDS Supplement"))
+        add(Step("Reference Fc", q.stress(fc) + note("fc"), tables))
+        add(Step("Reference Emin", q.stress(b.emin_mpa[i]) + note("emin"), tables))
         if st:
             add(
                 Step(
@@ -100,7 +117,12 @@ def column_steps(r: Rating, i: int) -> list[Step]:
                 f"Factors on Fc: {tf} x CM x Ct x CF x Ci",
                 f"{v['time_fc'][i]:.4g} x {v['cm_fc'][i]:.3g} x {v['ct_f'][i]:.3g} x "
                 f"{b.cf_fc[i]:.3g} x {v['ci_f'][i]:.3g}",
-                "NDS 2018 Table 4.3.1; §2.3.2; Supplement Table 4A",
+                "NDS 2018 Table 4.3.1; §2.3.2; "
+                + (
+                    "Supplement Table 4A size factor"
+                    if b.cf_fc[i] != 1.0
+                    else "CF 1 (in the values, or none at this size)"
+                ),
             )
         )
         add(Step("Fc* (all factors but Cp)", q.stress(v["fc_star"][i]), "NDS 2018 §3.7.1"))
