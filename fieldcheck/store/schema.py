@@ -306,7 +306,7 @@ def _v5(db: Database) -> None:
 def _v6(db: Database) -> None:
     # a head is a revision nobody supersedes: NOT EXISTS (... WHERE c.supersedes = o.id) implies
     # supersedes IS NOT NULL, so SQLite uses a partial index for it (as observations_merges)
-    db.execute("DROP INDEX observations_supersedes")
+    db.execute("DROP INDEX IF EXISTS observations_supersedes")  # a log edited by hand may lack it
     db.execute(
         "CREATE INDEX observations_supersedes ON observations(supersedes) "
         "WHERE supersedes IS NOT NULL"

@@ -169,6 +169,19 @@ def test_upgrade_from_version_5_keeps_the_heads_with_a_partial_supersedes_index(
         assert pragma(log.db, "integrity_check") == "ok"
 
 
+def test_a_version_5_log_missing_the_supersedes_index_still_upgrades(tmp_path):
+    path = tmp_path / "survey.db"
+    _make_v5(path)
+    con = sqlite3.connect(path)
+    con.execute("DROP INDEX observations_supersedes")  # edited by hand
+    con.commit()
+    con.close()
+    with Log.open(path) as log:
+        assert log.schema_version == SCHEMA_VERSION
+        assert _index_sql(log, "observations_supersedes").endswith("WHERE supersedes IS NOT NULL")
+        assert {p.tag: p.record["load"] for p in log.posts()} == {"P1": "3000lbf", "P2": "1000lbf"}
+
+
 def test_a_new_log_indexes_only_the_revisions_that_supersede_one(log, visit, shore):
     first = log.save_post(visit.id, shore)
     log.save_post(visit.id, dict(shore, load="3000 lbf"), member_id=first.member_id)
