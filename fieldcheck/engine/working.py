@@ -29,10 +29,7 @@ from fieldcheck.engine.spring_ends import SPRING_MODE
 
 # the NDS Supplement tables of each product class's reference values (NDS 2018 §4.1.3); the
 # table and row a post took are named in full by its material text (records)
-PRODUCT_TABLES = {
-    DIMENSION: "NDS Supplement Tables 4A, 4B (dimension lumber)",
-    TIMBER: "NDS Supplement Table 4D (Posts and Timbers; Beams and Stringers)",
-}
+PRODUCT_TABLES = {DIMENSION: "NDS Supplement Tables 4A, 4B", TIMBER: "NDS Supplement Table 4D"}
 
 
 def mode_label(i_mode: int) -> str:
@@ -93,7 +90,7 @@ def column_steps(r: Rating, i: int) -> list[Step]:
     product = int(b.product[i])
     tables = PRODUCT_TABLES.get(product, "NDS Supplement")
     if not ec:  # EC5: the strength class step names the product
-        add(Step("Product", PRODUCT_NAMES[product], f"NDS 2018 §4.1.3; {tables}"))
+        add(Step("Product", PRODUCT_NAMES[product], "NDS 2018 §4.1.3"))
     if ec:
         s.extend(ec5_steps(r, i))
     else:
@@ -117,12 +114,9 @@ def column_steps(r: Rating, i: int) -> list[Step]:
                 f"Factors on Fc: {tf} x CM x Ct x CF x Ci",
                 f"{v['time_fc'][i]:.4g} x {v['cm_fc'][i]:.3g} x {v['ct_f'][i]:.3g} x "
                 f"{b.cf_fc[i]:.3g} x {v['ci_f'][i]:.3g}",
-                "NDS 2018 Table 4.3.1; §2.3.2; "
-                + (
-                    "Supplement Table 4A size factor"
-                    if b.cf_fc[i] != 1.0
-                    else "CF 1 (in the values, or none at this size)"
-                ),
+                # Table 4A's size factor only where one other than 1 is applied
+                "NDS 2018 Table 4.3.1; §2.3.2"
+                + ("; Supplement Table 4A" if b.cf_fc[i] != 1 else ""),
             )
         )
         add(Step("Fc* (all factors but Cp)", q.stress(v["fc_star"][i]), "NDS 2018 §3.7.1"))
