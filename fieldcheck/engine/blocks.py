@@ -88,6 +88,13 @@ def prod(first: np.ndarray, *factors: np.ndarray) -> np.ndarray:
     return out if out is not first else first.copy()
 
 
+def scaled(x: np.ndarray, f) -> np.ndarray:
+    """x * f, or x itself where f is exactly 1.0 for every post (a factor nobody gave: its one
+    value is looked at once, see :func:`distinct`); ``f`` an array or one value."""
+    f = np.asarray(f)
+    return x if bool((distinct(f) == 1.0).all()) else x * f
+
+
 def set_bits(flags: np.ndarray, bit: int, where: np.ndarray) -> None:
     """OR the flag value ``bit`` into ``flags`` where ``where`` holds (in place).
 

@@ -15,7 +15,7 @@ import numpy as np
 
 from fieldcheck.engine import condition, nds, spring_ends
 from fieldcheck.engine.batch import EC5, LRFD, PostBatch
-from fieldcheck.engine.blocks import broadcast, distinct, filled, is_one, prod
+from fieldcheck.engine.blocks import broadcast, distinct, filled, is_one, prod, scaled
 from fieldcheck.engine.restraint import end_pair, modes_of_pairs
 from fieldcheck.engine.result import Check
 from fieldcheck.engine.stage import Flag, FlagSet, Stage
@@ -136,22 +136,19 @@ def run_column(b: PostBatch, checks: dict, values: dict) -> None:
     # ---- the post as found: residual section and strength ratios (engine/condition.py) ------
     # loss in the middle part enters the stability check through d_eff = sqrt(12 I / A);
     # knots and slope reduce Fc* by the lowest strength ratio (exactly 1.0 and d for a sound post)
-    cond = condition.residual(b, ke1 * lu1, ke2 * lu2)
+    le1, le2 = ke1 * lu1, ke2 * lu2  # effective lengths
+    cond = condition.residual(b, le1, le2)
     fc_star = prod(fc_star, cond["strength_ratio"])
-    le_d1 = ke1 * lu1 / cond["d_eff1"]
-    le_d2 = ke2 * lu2 / cond["d_eff2"]
+    le_d1 = le1 / cond["d_eff1"]
+    le_d2 = le2 / cond["d_eff2"]
 
     # ---- column stability (NDS 2018 §3.7.1; built-up §15.3) ---------------------------------
     c = nds.C_BY_PRODUCT.take(b.product.astype(np.intp))
-    fce1 = nds.euler_stress(emin_p, le_d1)
-    fce2 = nds.euler_stress(emin_p, le_d2)
-    cp1 = nds.column_stability_factor(fce1, fc_star, c)
-    cp2 = b.kf * nds.column_stability_factor(fce2, fc_star, c)  # NDS 2018 §15.3.2: Kf
-    axis2 = cp2 < cp1
-    cp = np.where(axis2, cp2, cp1)
+    fce1, fce2 = nds.euler_stresses(emin_p, le_d1, le_d2)
+    cp1, cp2, axis2, cp = _stability(fce1, fce2, fc_star, c, b.kf)
     area = cond["area"]  # residual area of the middle part (NDS 2018 §3.6.3 as remembered [M])
     kappa = b.knowledge
-    p_column = cp * fc_star * area * kappa
+    p_column = scaled(cp * fc_star * area, kappa)
 
     # ---- end-grain bearing on the post (NDS 2018 §3.10.1) ------------------------------------
     # each end's residual area x contact share; a crushed or broomed end bears on part of it
@@ -167,7 +164,7 @@ def run_column(b: PostBatch, checks: dict, values: dict) -> None:
         np.where(b.crushed_end & 2, condition.CRUSHED_AREA, 1.0) if crushed else one,
     )
     a_contact = np.minimum(a_top, a_bot)
-    p_end = fc_star * a_contact * kappa
+    p_end = scaled(fc_star * a_contact, kappa)
 
     # ---- bearing perpendicular to grain on the cap and the sill (NDS 2018 §3.10.2, §3.10.4) --
     # CD does not apply to Fc-perp (NDS 2018 Table 2.3.2 footnote); LRFD KF phi (Appendix N);
@@ -180,12 +177,12 @@ def run_column(b: PostBatch, checks: dict, values: dict) -> None:
     # never more than the post (it bears only where it stands). It sets Cb and the bearing area
     # (NDS 2018 §3.10.4: Cb for lb < 6 in; §3.10.2: fc-perp = P / bearing area): the post's end
     # area x lb / d1 (NaN compares False: the post's width)
-    lb_top = np.where(b.top_lb_mm > 0, np.minimum(b.top_lb_mm, b.d1_mm), b.d1_mm)
-    lb_bot = np.where(b.bottom_lb_mm > 0, np.minimum(b.bottom_lb_mm, b.d1_mm), b.d1_mm)
-    cb_top = nds.bearing_area_factor(lb_top, b.top_cb)
-    cb_bot = nds.bearing_area_factor(lb_bot, b.bottom_cb)
-    share_top = lb_top / b.d1_mm if (distinct(b.top_lb_mm) > 0).any() else one
-    share_bot = lb_bot / b.d1_mm if (distinct(b.bottom_lb_mm) > 0).any() else one
+    lb_top, share_top = _bearing_length(b.top_lb_mm, b.d1_mm, one)
+    lb_bot, share_bot = _bearing_length(b.bottom_lb_mm, b.d1_mm, one)
+    ratio_top = nds.bearing_area_ratio(lb_top)
+    ratio_bot = ratio_top if lb_bot is lb_top else None  # both the post's width: once
+    cb_top = nds.bearing_area_factor(lb_top, b.top_cb, ratio_top)
+    cb_bot = nds.bearing_area_factor(lb_bot, b.bottom_cb, ratio_bot)
     p_cap = prod(b.top_fc_perp_mpa, cm_bear, ct_f, perp_time, cb_top, a_top, share_top)
     p_sill = prod(b.bottom_fc_perp_mpa, cm_bear, ct_f, perp_time, cb_bot, a_bot, share_bot)
 
@@ -240,6 +237,30 @@ def run_column(b: PostBatch, checks: dict, values: dict) -> None:
     values["area"] = area
 
 
+def _stability(fce1, fce2, fc_star, c, kf):
+    """(Cp1, Cp2, axis 2 governs, Cp) about both axes (NDS 2018 §3.7.1; built-up §15.3.2: Kf
+    on Cp2). A Kf of exactly 1.0 throughout is not multiplied; Cp is the smaller of the two
+    (np.minimum: the same value as choosing it), Cp1 where either is NaN (as chosen)."""
+    two_c = 2.0 * c
+    cp1 = nds.column_stability_factor(fce1, fc_star, c, two_c)
+    cp2 = nds.column_stability_factor(fce2, fc_star, c, two_c)
+    cp2 = scaled(cp2, kf)  # NDS 2018 §15.3.2: Kf
+    axis2 = cp2 < cp1
+    if np.isnan(cp2).any():
+        return cp1, cp2, axis2, np.where(axis2, cp2, cp1)
+    return cp1, cp2, axis2, np.minimum(cp1, cp2)
+
+
+def _bearing_length(lb: np.ndarray, d1: np.ndarray, one: np.ndarray):
+    """(lb, lb / d1): the bearing length along the cap's or sill's grain, the post's width d1
+    unless given and never more (NaN compares False), and its share of the end area (one: d1
+    throughout)."""
+    if not (distinct(lb) > 0).any():
+        return d1, one
+    lb = np.where(lb > 0, np.minimum(lb, d1), d1)
+    return lb, lb / d1
+
+
 def capacity_at(b: PostBatch, v: dict, idx: np.ndarray, time_fc: np.ndarray):
     """(column capacity, Cp, Fc*) of posts ``idx`` of a rated block with the duration part of
     Fc* (CD, or KF phi lambda) replaced by ``time_fc``: the steps of run_column, in the same
@@ -252,11 +273,8 @@ def capacity_at(b: PostBatch, v: dict, idx: np.ndarray, time_fc: np.ndarray):
     sr = v["strength_ratio"]
     if not is_one(sr):
         fc_star = fc_star * at(sr)
-    c = at(v["c"])
-    cp1 = nds.column_stability_factor(at(v["fce1"]), fc_star, c)  # NDS 2018 §3.7.1
-    cp2 = at(b.kf) * nds.column_stability_factor(at(v["fce2"]), fc_star, c)  # §15.3.2: Kf
-    cp = np.where(cp2 < cp1, cp2, cp1)
-    return cp * fc_star * at(v["area"]) * at(b.knowledge), cp, fc_star
+    _, _, _, cp = _stability(at(v["fce1"]), at(v["fce2"]), fc_star, at(v["c"]), at(b.kf))
+    return scaled(cp * fc_star * at(v["area"]), at(b.knowledge)), cp, fc_star
 
 
 def column_flags(b: PostBatch, values: dict, flag: FlagSet) -> None:

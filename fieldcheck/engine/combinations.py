@@ -505,7 +505,8 @@ def _beat_reference(how, b, v, cap, load, fac, combo, at_ref, upper):
         if not idx.size:
             return same
     flat = slot * n + idx
-    time_fc, time_fb = _time(b, _at_slot(fac, slot, flat), idx)
+    pair_fac = _at_slot(fac, slot, flat)
+    time_fc, time_fb = _time(b, pair_fac, idx)
     p, cp, fc_star = column.capacity_at(b, v, idx, time_fc)
     if ecc is not None:
         p = condition.eccentric_at(b, v, idx, cp, fc_star, time_fb)
@@ -513,10 +514,12 @@ def _beat_reference(how, b, v, cap, load, fac, combo, at_ref, upper):
     with np.errstate(divide="ignore", invalid="ignore"):
         best = l_ref / cap  # the ratio at the reference
         ratio = pair_load / p
-    win = ratio > best.take(idx)  # a pair that does not beat the reference never wins
-    if not win.any():
+    win = np.flatnonzero(ratio > best.take(idx))  # a pair not beating the reference never wins
+    if not win.size:
         return same
-    idx, slot, flat, ratio, p, pair_load = (a[win] for a in (idx, slot, flat, ratio, p, pair_load))
+    idx, slot, ratio, p = idx.take(win), slot.take(win), ratio.take(win), p.take(win)
+    pair_load, pair_fac = pair_load.take(win), pair_fac.take(win)
+    pair_combo = _at_slot(combo, slot, flat.take(win))
     # slot by slot (a post may beat the reference in several): strictly larger takes over
     cap, demand, factor, cmb = (a.copy() for a in same)
     ends = np.flatnonzero(np.diff(slot)) + 1
@@ -524,12 +527,12 @@ def _beat_reference(how, b, v, cap, load, fac, combo, at_ref, upper):
         w = s + np.flatnonzero(ratio[s:e] > best.take(idx[s:e]))
         if not w.size:
             continue
-        posts = idx[w]
-        best[posts] = ratio[w]
-        cap[posts] = p[w]
-        demand[posts] = pair_load[w]
-        factor[posts] = _at_slot(fac, slot[w], flat[w])
-        cmb[posts] = _at_slot(combo, slot[w], flat[w])
+        posts = idx.take(w)
+        best[posts] = ratio.take(w)
+        cap[posts] = p.take(w)
+        demand[posts] = pair_load.take(w)
+        factor[posts] = pair_fac.take(w)
+        cmb[posts] = pair_combo.take(w)
     return cap, demand, factor, cmb
 
 

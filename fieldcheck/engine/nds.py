@@ -30,11 +30,19 @@ CB_REACH_MM = 0.375 * IN  # NDS 2018 §3.10.4: Cb = (lb + 0.375 in)/lb
 CB_MAX_LB_MM = 6.0 * IN
 
 
-def column_stability_factor(fce: np.ndarray, fc_star: np.ndarray, c: np.ndarray) -> np.ndarray:
-    """Cp (NDS 2018 §3.7.1, Eq. 3.7-1), Ylinen's column curve."""
+def column_stability_factor(
+    fce: np.ndarray, fc_star: np.ndarray, c: np.ndarray, two_c: np.ndarray | None = None
+) -> np.ndarray:
+    """Cp (NDS 2018 §3.7.1, Eq. 3.7-1), Ylinen's column curve: h - sqrt(h^2 - a / c) with
+    a = FcE / Fc*, h = (1 + a) / 2c (``two_c``: 2c, given when it serves both axes). The same
+    operations in the same order, into as few arrays as they need."""
     a = fce / fc_star
-    h = (1.0 + a) / (2.0 * c)
-    return h - np.sqrt(h * h - a / c)
+    h = 1.0 + a
+    h /= 2.0 * c if two_c is None else two_c
+    r = h * h
+    r -= a / c
+    np.sqrt(r, out=r)
+    return np.subtract(h, r, out=h)
 
 
 def euler_stress(emin_prime: np.ndarray, le_d: np.ndarray) -> np.ndarray:
@@ -42,7 +50,14 @@ def euler_stress(emin_prime: np.ndarray, le_d: np.ndarray) -> np.ndarray:
     return FCE_COEFF * emin_prime / (le_d * le_d)
 
 
+def euler_stresses(emin_prime: np.ndarray, le_d1: np.ndarray, le_d2: np.ndarray):
+    """FcE about both axes (NDS 2018 §3.7.1), 0.822 Emin' worked out once."""
+    k = FCE_COEFF * emin_prime
+    return k / (le_d1 * le_d1), k / (le_d2 * le_d2)
+
+
 _CM_FC = np.array([1.0, 0.91, 0.8])  # dry or tabulated wet; wet timber; wet dimension lumber
+_CM_E = np.array([1.0, 0.9])  # all but wet dimension lumber; wet dimension lumber
 
 
 def wet_service_factors(product, fc, cf_fc, wet, wet_tabulated):
@@ -52,15 +67,15 @@ def wet_service_factors(product, fc, cf_fc, wet, wet_tabulated):
     already tabulated for wet service take 1.0. CM for Fc-perp (0.67) belongs to each bearing: the
     rating applies it where the bearing is wet; CM for Fb is wet_bending_factor (bending checks).
     """
-    apply = wet & ~wet_tabulated
+    apply = wet & ~wet_tabulated if wet_tabulated.any() else wet
     timber = product != DIMENSION
     dim = apply & ~timber
-    # Fc: 1.0 dry, 0.91 wet timber, 0.8 wet dimension lumber above 750 psi; one table lookup
-    # (nested np.where with scalars costs three times as much)
-    code = np.multiply(apply & timber, 1, dtype=np.intp)
-    code += np.multiply(dim & ~(fc * cf_fc <= 750 * PSI), 2, dtype=np.intp)
+    # Fc: 1.0 dry, 0.91 wet timber, 0.8 wet dimension lumber above 750 psi; E: 0.9 wet
+    # dimension lumber; table lookups by a one-byte code (np.where with scalars costs more)
+    code = np.left_shift(dim & ~(fc * cf_fc <= 750 * PSI), 1, dtype=np.uint8)
+    code |= apply & timber
     cm_fc = _CM_FC.take(code)
-    cm_e = np.where(dim, 0.9, 1.0)
+    cm_e = _CM_E.take(dim.view(np.uint8))
     return cm_fc, cm_e
 
 
@@ -90,10 +105,18 @@ def incising_factors(incised: np.ndarray):
     return np.where(incised, 0.80, 1.0), np.where(incised, 0.95, 1.0)
 
 
-def bearing_area_factor(lb_mm: np.ndarray, eligible: np.ndarray) -> np.ndarray:
+def bearing_area_factor(
+    lb_mm: np.ndarray, eligible: np.ndarray, cb: np.ndarray | None = None
+) -> np.ndarray:
     """Cb = (lb + 0.375 in)/lb for lb < 6 in and bearing >= 3 in from the member end, else 1.0
-    (NDS 2018 §3.10.4)."""
+    (NDS 2018 §3.10.4). ``cb``: (lb + 0.375 in)/lb already worked out (bearing_area_ratio)."""
     ok = eligible & (lb_mm < CB_MAX_LB_MM) & (lb_mm > 0)
-    with np.errstate(divide="ignore", invalid="ignore"):  # lb 0 or NaN only where not ok
-        cb = (lb_mm + CB_REACH_MM) / lb_mm
+    if cb is None:
+        cb = bearing_area_ratio(lb_mm)
     return np.where(ok, cb, 1.0)
+
+
+def bearing_area_ratio(lb_mm: np.ndarray) -> np.ndarray:
+    """(lb + 0.375 in)/lb (NDS 2018 §3.10.4), wherever lb is (0 or NaN: inf or NaN)."""
+    with np.errstate(divide="ignore", invalid="ignore"):  # lb 0 or NaN only where not ok
+        return (lb_mm + CB_REACH_MM) / lb_mm
