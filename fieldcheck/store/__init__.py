@@ -44,7 +44,8 @@ dataclasses from ``fieldcheck.store.repo``)::
     log.import_rows(rows, site, visit, inspector=None)
         -> ImportResult(imported, errors, site, visit)
         # rows: iterable of dict[str, str] (the `rate --batch` column set); one transaction, one
-        # engine call; bad rows are left out and reported as RowError(column, message, row=)
+        # engine call; bad rows are left out and reported as RowError(column, message, row=);
+        # kept=True: the rows are already as the log keeps them (PostsFile.records), not cleaned
     log.export_rows(visit_id=None) -> ExportTable(columns, rows)   # record columns + rating columns
 
     log.attach(observation_id, photo_path, caption="") -> Attachment   # path + sha256 + size
