@@ -18,6 +18,7 @@ import math
 import os
 import re
 import tempfile
+from dataclasses import replace
 from functools import cache
 from html import escape
 from pathlib import Path
@@ -739,6 +740,10 @@ def _sketch(d: ReportData, p: PostEntry) -> str:
 
 
 def _post(d: ReportData, p: PostEntry) -> str:
+    if p.j is not None and int(p.rating.batch.method[p.j]) == EC5 and d.units != "metric":
+        # an EC5 post's section speaks EN 1995-1-1: kN and mm first, whatever the report's units
+        # (the tables over every post keep one unit: the report's)
+        d = replace(d, units="metric")
     mid = e(p.view.member_id)
     head = (
         f'<section class="post" id="m-{mid}" data-post="{mid}"><div class="keep">'
@@ -757,12 +762,18 @@ def _post(d: ReportData, p: PostEntry) -> str:
         )
     r, j, u = p.rating, p.j, d.units
     dem = float(r.demand_n[j])
+    # EN 1995-1-1 §6.3.2: the design resistance N_Rd against the design load N_Ed
+    cap_w, dem_w, ratio_w = (
+        ("N_Rd (governing)", "N_Ed", "N_Ed / N_Rd")
+        if int(r.batch.method[j]) == EC5
+        else ("Capacity (governing)", "Demand", "Demand / capacity")
+    )
     result = kv(
-        f'<tr><th>Capacity (governing)</th><td data-k="capacity" data-post="{mid}">'
+        f'<tr><th>{cap_w}</th><td data-k="capacity" data-post="{mid}">'
         f"{e(format_force(r.capacity_n[j], u))}</td></tr>"
-        f"<tr><th>Demand</th><td>"
+        f"<tr><th>{dem_w}</th><td>"
         f"{e(format_force(dem, u)) if math.isfinite(dem) else 'no load given'}</td></tr>"
-        f'<tr><th>Demand / capacity</th><td data-k="ratio" data-post="{mid}">'
+        f'<tr><th>{ratio_w}</th><td data-k="ratio" data-post="{mid}">'
         f"{e(ratio_text(float(r.ratio[j])))}</td></tr>"
         f"<tr><th>Governing check</th><td>{e(check_label(r, r.governing_name(j)))}; "
         f"{e(_combination(r, r.governing_name(j), j))}</td></tr>"

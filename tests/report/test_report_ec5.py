@@ -65,3 +65,20 @@ def test_ends_not_given_are_drawn_as_rated(tmp_path, row):
     text = _sections(tmp_path, [{**row, "tag": "P1", "load": "1000lbf"}])["P1"]
     assert "not drawn" not in text
     assert "top pinned (not given), bottom pinned (not given)" in text
+
+
+def test_ec5_post_gives_n_rd_and_n_ed_in_kn_first(tmp_path):
+    # EN 1995-1-1 §6.3.2: the design resistance N_Rd against the design load N_Ed, in kN, in a
+    # report whose units are US customary (an NDS post beside it keeps lbf and its words)
+    text = _sections(
+        tmp_path,
+        [
+            {**EC5, "tag": "E1", "load": "20kN", "duration": "seven-days"},
+            {**NDS, "tag": "N1", "load": "1000lbf"},
+        ],
+    )
+    ec, nds = text["E1"], text["N1"]
+    assert re.search(r"N_Rd \(governing\) ?[\d.,]+ kN", ec), ec[:600]
+    assert re.search(r"N_Ed ?20(\.0+)? kN", ec) and "N_Ed / N_Rd" in ec
+    assert "lbf" not in ec.split("Inputs as measured")[0]  # kN first: the result in kN
+    assert re.search(r"Capacity \(governing\) ?[\d.,]+ lbf", nds) and "N_Rd" not in nds
