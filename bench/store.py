@@ -165,7 +165,7 @@ log = Log.open(sys.argv[1])
 stamp, version, _ = rated.engine_stamp()
 rating = (1000.0, 500.0, 0.5, 0, "compression", 0, None)
 cpu = 0.0
-with log._write():  # the posts, as an import writes them (timed only for "import")
+with log._write(refs_made_here=True):  # the posts as an import writes them (timed: "import")
     log._ensure_stamp()
     site = log.add_site("Bench")
     visit = log.add_visit(site.id, None, name="One")

@@ -5,6 +5,7 @@ from __future__ import annotations
 
 import csv
 import json
+import sqlite3
 
 import pytest
 
@@ -22,6 +23,42 @@ def test_import_rows_reports_bad_rows_and_imports_the_rest(log, shore):
     # same site and visit found by name on a second import
     res2 = log.import_rows([{**shore, "tag": "S4"}], "Alder Row", "Shoring")
     assert res2.visit == res.visit and len(log.posts(res.visit.id)) == 3
+
+
+def _fk_problems(log) -> list:
+    return log.db.conn.execute("PRAGMA foreign_key_check").fetchall()
+
+
+def test_import_writes_no_dangling_reference_and_leaves_the_check_on(log, shore):
+    # an import writes without SQLite's per-row foreign-key check (its ids refer to rows it
+    # found or wrote itself): what it wrote must pass the full check (judgement)
+    rows = [{**shore, "tag": f"S{i}"} for i in range(40)] + [{**shore, "height": "tall"}]
+    log.import_rows(rows, "Alder Row", "Shoring", chunk=16)  # a new site and visit
+    log.import_rows(rows[:5], "Alder Row", "Shoring", chunk=16)  # found by name
+    other = log.add_site("Birch Lane")
+    log.import_rows(rows[:3], "Birch Lane", "Props")  # an existing site, a new visit
+    assert other.id in {s.id for s in log.sites()}
+    assert log.db.conn.execute("SELECT count(*) FROM ratings").fetchone()[0] == 48
+    assert _fk_problems(log) == []
+    assert log.db.conn.execute("PRAGMA foreign_keys").fetchone()[0] == 1
+    # the check is back for every other write
+    with pytest.raises(sqlite3.IntegrityError, match="FOREIGN KEY"), log._write():
+        log.db.conn.execute(
+            "INSERT INTO members (id, site_id, tag, device_id, device_seq, author, created_at) "
+            "VALUES ('m-x', 'no-such-site', 'X', 'd', 999999, 'a', '2026-06-01T09:00:00Z')"
+        )
+
+
+def test_an_import_that_fails_part_way_writes_nothing_and_leaves_the_check_on(log, shore):
+    def rows():
+        yield from ({**shore, "tag": f"S{i}"} for i in range(20))
+        raise OSError("the file went away")
+
+    before = log.db.conn.execute("SELECT count(*) FROM observations").fetchone()[0]
+    with pytest.raises(OSError, match="went away"):
+        log.import_rows(rows(), "Alder Row", "Shoring", chunk=8)
+    assert log.db.conn.execute("SELECT count(*) FROM observations").fetchone()[0] == before
+    assert log.db.conn.execute("PRAGMA foreign_keys").fetchone()[0] == 1
 
 
 def test_export_round_trip_through_csv(log, shore, tmp_path):
