@@ -7,6 +7,7 @@ from __future__ import annotations
 import math
 
 import numpy as np
+import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
@@ -62,11 +63,10 @@ def cell(kind: str, text: str, lo, hi) -> float | None:
         return None
 
 
-@settings(max_examples=300, deadline=None)
-@given(
-    st.data(), st.one_of(st.none(), st.floats(-100, 1000)), st.one_of(st.none(), st.floats(0, 1e6))
-)
-def test_every_value_claimed_is_the_cell_parsers_own(data, lo, hi):
+LIMITS = (st.one_of(st.none(), st.floats(-100, 1000)), st.one_of(st.none(), st.floats(0, 1e6)))
+
+
+def check_claims(data, lo, hi) -> None:
     kind = data.draw(st.sampled_from(sorted(CELL)))
     column = data.draw(st.lists(texts(kind), min_size=1, max_size=30))
     values, ok = units.parse_many(kind, column, lo=lo, hi=hi)
@@ -77,6 +77,19 @@ def test_every_value_claimed_is_the_cell_parsers_own(data, lo, hi):
             assert want is not None, text  # never claims a text the cell parser refuses
             assert math.copysign(1, v) == math.copysign(1, want)
             assert v.hex() == float(want).hex(), text  # bit for bit
+
+
+@settings(max_examples=80, deadline=None)
+@given(st.data(), *LIMITS)
+def test_every_value_claimed_is_the_cell_parsers_own(data, lo, hi):
+    check_claims(data, lo, hi)
+
+
+@pytest.mark.slow
+@settings(max_examples=1000, deadline=None)
+@given(st.data(), *LIMITS)
+def test_every_value_claimed_is_the_cell_parsers_own_many_columns(data, lo, hi):
+    check_claims(data, lo, hi)
 
 
 def test_the_plain_forms_of_a_survey_are_read_column_wise():

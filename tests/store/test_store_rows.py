@@ -5,6 +5,7 @@ from __future__ import annotations
 
 import json
 
+import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
@@ -20,9 +21,16 @@ KEYS = st.sampled_from(["tag", "size", "height", "load", "notes", "%s", 'a"b', "
 RECORD = st.dictionaries(KEYS, TEXT, max_size=5)
 
 
-@settings(max_examples=200, deadline=None)
+@settings(max_examples=60, deadline=None)
 @given(st.lists(RECORD, max_size=20))
 def test_record_texts_are_dumps_of_each_record(records):
+    assert record_texts(records) == [dumps(r) for r in records]
+
+
+@pytest.mark.slow
+@settings(max_examples=600, deadline=None)
+@given(st.lists(RECORD, max_size=40))
+def test_record_texts_are_dumps_of_each_record_many(records):
     assert record_texts(records) == [dumps(r) for r in records]
 
 
