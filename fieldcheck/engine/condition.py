@@ -19,8 +19,9 @@ Model (judgement on ASTM D245 principles, from memory; NDS 2018 §3.9.2, §15.4.
   where the reduction is in the buckling-critical part) [M].
 * Knots and slope of grain reduce Fc (and Fb) through the lowest strength ratio (ASTM D245
   principle, from memory). A graded member's tabulated values already allow its grade's own
-  knots and slope, so the ratio is applied only when the member is ungraded or of unknown grade,
-  or the inspector states the defect is beyond the grade (``sr_applies``); it then multiplies the
+  knots and slope, so the ratio is left out only where the inspector states the defect is within
+  the grade (beyond_grade no); unstated, it is applied (``sr_applies``: whether it is within the
+  grade is a decision input, never read as the safe answer; judgement); it then multiplies the
   tabulated value as if it were clear wood: conservative by up to the grade's own ratio
   (judgement, ASTM D245 principle, from memory).
 * Eccentricity (load off-centre, the centroid shift of one-sided loss, partial end contact, the
@@ -815,12 +816,13 @@ FLAGS = (
     Flag(
         "sr_applied",
         "Knots or slope of grain reduce Fc and Fb by the lowest strength ratio "
-        "(ASTM D245 principle, from memory).",
+        "(ASTM D245 principle, from memory); on a graded member they are deducted unless "
+        "stated within its grade (give beyond_grade no).",
     ),
     Flag(
         "sr_not_applied",
-        "Knots or slope recorded on a graded member but not deducted: the grade "
-        "allows for its own; give beyond_grade yes if they exceed the grade.",
+        "Knots or slope recorded on a graded member and stated within its grade "
+        "(beyond_grade no): not deducted, the grade allows for its own.",
     ),
     Flag(
         "slope_steep",
@@ -1190,7 +1192,7 @@ def working_lines(r, i: int) -> list:
         # the values the ratios reduce, as the method writes them (EC5: EN 338's symbols)
         fc, fb = ("f_c,0,k", "f_m,k") if b.method[i] == EC5 else ("Fc", "Fb")
         applied = (
-            "applied" if b.sr_applies[i] else "not applied (graded member; grade allows for it)"
+            "applied" if b.sr_applies[i] else "not applied (graded member, stated within its grade)"
         )
         s.append(
             Step(

@@ -245,8 +245,8 @@ COLUMNS: tuple[Column, ...] = (
     Column(
         "beyond_grade",
         "condition",
-        "knots or slope exceed the stamped grade (default: yes if the grade is "
-        "unknown, no if stamped)",
+        "knots or slope exceed the stamped grade (default yes: deducted unless you "
+        "state no, within the grade)",
         "no",
         yes_no("beyond_grade"),
     ),
@@ -529,7 +529,9 @@ def condition_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]
                 "(replace the member or ask the engineer).",
             )
         f["slope_n"] = row["slope"]
-    f["sr_applies"] = bool(row.get("beyond_grade", unknown))
+    # a graded member's knots and slope are deducted unless stated within its grade: whether
+    # they are is a decision input, never read as the safe answer (judgement)
+    f["sr_applies"] = bool(row.get("beyond_grade", True))
     f["material_assumed"] = unknown and row.get("method", "asd") != "ec5"
     f["split"] = cond.SPLIT_NAMES.index(row.get("split", "none"))
     f["split_faces"] = cond.SPLIT_FACE_NAMES.index(row.get("split_faces", "unknown"))

@@ -78,3 +78,24 @@ def test_cap_and_sill_species_name_their_value_and_its_status(column, end):
     assert min(float(r["fc_perp_psi"]) for r in rows) == 405
     status = weakest(r["fc_perp_status"] for r in rows)
     assert f"{end} hem-fir: Fc-perp 405 psi ({status}" in material, material
+
+
+def test_a_knot_on_a_graded_member_is_deducted_unless_stated_within_the_grade():
+    # a missing decision input is never read as safe (judgement): a knot or slope of grain
+    # recorded on a graded member is deducted (ASTM D245 strength ratio, from memory) unless the
+    # inspector states it is within the grade (beyond_grade no)
+    from fieldcheck.engine import explain
+    from fieldcheck.engine.rating import rate
+
+    rec = {"size": "4x4", "height": "8ft", "species": "douglas-fir-larch", "grade": "no2"}
+    rec.update(load="2000lbf", knot="2in")
+    caps = {}
+    for stated in (None, "yes", "no"):
+        row = {**rec, **({"beyond_grade": stated} if stated else {})}
+        r = rate(parse_records([row]).batch)
+        caps[stated] = float(r.capacity_n[0])
+        if stated is None:
+            assert any("beyond_grade no" in w for w in explain.warnings(r, 0))
+    rec.pop("knot")
+    clear = float(rate(parse_records([rec]).batch).capacity_n[0])
+    assert caps[None] == caps["yes"] < caps["no"] == clear
