@@ -15,7 +15,7 @@ import numpy as np
 
 from fieldcheck.engine import condition, nds, spring_ends
 from fieldcheck.engine.batch import EC5, LRFD, PostBatch
-from fieldcheck.engine.blocks import broadcast, distinct, filled, is_one, prod, scaled
+from fieldcheck.engine.blocks import distinct, filled, is_one, prod, scaled
 from fieldcheck.engine.restraint import end_pair, modes_of_pairs
 from fieldcheck.engine.result import Check
 from fieldcheck.engine.stage import Flag, FlagSet, Stage
@@ -23,7 +23,7 @@ from fieldcheck.engine.stage import Flag, FlagSet, Stage
 
 def _unbraced(lu: np.ndarray, h: np.ndarray, sway: np.ndarray) -> np.ndarray:
     """Unbraced length: the given one, or the full height where none is given or the ends sway."""
-    if np.isnan(lu).all():
+    if np.isnan(distinct(lu)).all():
         return h.copy()  # a fresh array: braced solutions write into it
     return np.where(sway | np.isnan(lu), h, lu)
 
@@ -32,7 +32,7 @@ def _axis_ke(
     ke_given: np.ndarray, braced: np.ndarray, sway: np.ndarray, k_ends: np.ndarray
 ) -> np.ndarray:
     """Ke about one axis: as given; 1.0 between brace points of a no-sway post; else the ends."""
-    if np.isnan(ke_given).all() and not braced.any():
+    if np.isnan(distinct(ke_given)).all() and not distinct(braced).any():
         return k_ends.copy()
     return np.where(np.isnan(ke_given), np.where(braced & ~sway, 1.0, k_ends), ke_given)
 
@@ -40,9 +40,15 @@ def _axis_ke(
 def run_ends(b: PostBatch, checks: dict, values: dict) -> None:
     """Effective length factors and unbraced lengths (NDS 2018 §3.7.1.2, Appendix G)."""
     n = b.n
-    mode, sway, k_ends = modes_of_pairs(end_pair(b.bottom, b.top), b.theoretical_k)
+    theoretical = distinct(b.theoretical_k)  # one answer for the block: one value
+    mode, sway, k_ends = modes_of_pairs(
+        end_pair(b.bottom, b.top), theoretical[0] if theoretical.size == 1 else theoretical
+    )
     k_solved = np.full(n, np.nan)
-    springs = ~(np.isnan(b.r_top) & np.isnan(b.r_bottom))
+    if np.isnan(distinct(b.r_top)).all() and np.isnan(distinct(b.r_bottom)).all():
+        springs = filled(False, n)  # no spring-restrained end in the block
+    else:
+        springs = ~(np.isnan(b.r_top) & np.isnan(b.r_bottom))
     if springs.any():  # spring-restrained ends: K solved numerically (stability.py)
         idx = np.flatnonzero(springs)
         kd, ks, sway_s = spring_ends.spring_ke(b, idx)
@@ -56,8 +62,13 @@ def run_ends(b: PostBatch, checks: dict, values: dict) -> None:
     ke2 = _axis_ke(b.ke2, b.braced2, sway, k_ends)
     # braces on a post that sways or has spring ends: solved with the braces (stability.py), K
     # over the full height, with the NDS margins of the bracketing ideal cases (design_k)
-    solve_braced = (b.braced1 | b.braced2) & (sway | springs) & np.isnan(b.ke1) & np.isnan(b.ke2)
     braced_solved = np.zeros(n, dtype=bool)
+    if distinct(b.braced1).any() or distinct(b.braced2).any():
+        solve_braced = (
+            (b.braced1 | b.braced2) & (sway | springs) & np.isnan(b.ke1) & np.isnan(b.ke2)
+        )
+    else:
+        solve_braced = filled(False, n)  # no braces in the block: nothing to solve
     if solve_braced.any():
         for axis, ke_ax, lu_ax, braced_ax in ((1, ke1, lu1, b.braced1), (2, ke2, lu2, b.braced2)):
             idx = np.flatnonzero(solve_braced & braced_ax)
@@ -266,8 +277,9 @@ def capacity_at(b: PostBatch, v: dict, idx: np.ndarray, time_fc: np.ndarray):
     Fc* (CD, or KF phi lambda) replaced by ``time_fc``: the steps of run_column, in the same
     order, for another load combination (engine/combinations.py)."""
 
-    def at(a):
-        return a[0] if broadcast(a) else a.take(idx)
+    def at(a):  # one value for the block (distinct): that value, else the posts' own
+        d = distinct(a)
+        return d[0] if d.shape[0] == 1 and a.shape[0] > 1 else a.take(idx)
 
     fc_star = at(v["fc_untimed"]) * time_fc
     sr = v["strength_ratio"]

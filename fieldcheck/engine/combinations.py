@@ -201,7 +201,10 @@ def _dense(b: PostBatch):
         combo = np.where(is_lrfd, pad(combos[1], -1), pad(combos[0], -1))
     else:
         load, fac, combo = loads[0], facs[0], combos[0]
-    has = ~np.isnan(b.nom_d_n) & (b.method != EC5)
+    if (distinct(b.method) != EC5).all() and not np.isnan(b.nom_d_n).any():
+        has = filled(True, n)  # every post given by nominal loads
+    else:
+        has = ~np.isnan(b.nom_d_n) & (b.method != EC5)
     if not bool(distinct(has).all()):  # posts given by load_n alone (or EC5): one slot, as given
         given = ~has
         load = np.where(has, load, np.nan)
