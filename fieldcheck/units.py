@@ -772,8 +772,10 @@ def _fail(
 
 def _in_range_example(kind: _Kind, lo: float | None, hi: float | None) -> str | None:
     """A round value inside the accepted range, in US and metric units (lengths and forces)."""
-    if lo is None or hi is None or lo <= 0 or kind.name not in ("length", "force"):
-        return None  # no lower bound to centre on: the unit's own example
+    if hi is None or hi <= 0 or kind.name not in ("length", "force"):
+        return None  # no upper bound to keep under: the unit's own example
+    if lo is None or lo <= 0:  # a range from nothing (a bow, an offset): a tenth of the top
+        lo = hi / 100.0
     mid = math.sqrt(lo * hi)  # a typical middle on a log scale
 
     def snap(step: float) -> float:

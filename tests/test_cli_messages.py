@@ -5,6 +5,8 @@ of `rate` and `k-factor`."""
 
 from __future__ import annotations
 
+import re
+
 import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
@@ -186,3 +188,20 @@ def test_fuzz_every_k_factor_option(capsys, pairs):
     for opt, value in pairs:
         argv += [f"{opt}={value}"]
     _exit_ok(capsys, argv)
+
+
+@pytest.mark.parametrize(
+    ("option", "value"),
+    [("--bow-weak", "10ft"), ("--plumb-strong", "5ft"), ("--offset-weak", "3ft")],
+)
+def test_an_out_of_range_example_is_itself_in_range(capsys, option, value):
+    # a message names the accepted range and an example the field accepts (DEVELOPERS.md, bad
+    # input): a range from 0 takes its example inside it, not the unit's own "10 ft"
+    from fieldcheck.records import parse_records
+
+    line = _err(capsys, [*BASE, option, value])
+    assert "accepted range" in line, line
+    example = re.search(r"e\.g\. ([^,;]+?)(?: or |,|\.$)", line).group(1)
+    column = option[2:].replace("-", "_")
+    parsed = parse_records([{"size": "8x8", "height": "8ft", column: example}])
+    assert parsed.ok[0], (line, example, parsed.errors)
