@@ -62,6 +62,8 @@ def test_a_long_value_is_quoted_short_and_without_escapes(capsys):
         (["--split-at", "top"], ["--split"]),
         (["--hole-face", "wide"], ["--hole"]),
         (["--diameter", "8in"], ["--size", "--diameter"]),
+        # density only gives the stress wave's dynamic E (E_d = rho v^2): alone it was ignored
+        (["--density", "500kg/m3"], ["--density", "--stress-wave"]),
     ],
 )
 def test_contradictory_options_refused(capsys, extra, words):

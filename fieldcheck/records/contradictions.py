@@ -34,6 +34,7 @@ NEEDS: tuple[tuple[str, tuple[str, ...]], ...] = (
     ("split_at", ("split",)),
     ("stress_wave_path", ("stress_wave",)),
     ("stress_wave_sound", ("stress_wave",)),
+    ("density", ("stress_wave",)),  # only for the stress wave's E_d = rho v^2
 )
 # (column, conflicts with) : two ways of saying one thing
 EITHER: tuple[tuple[str, str], ...] = (
