@@ -5,7 +5,7 @@ from __future__ import annotations
 import argparse
 import sys
 
-from fieldcheck.commands.csv_option import add_csv_options, open_posts
+from fieldcheck.commands.csv_option import add_csv_options, open_posts, written_by_fieldcheck
 from fieldcheck.commands.log_option import add_db_option, open_log
 
 DESCRIPTION = (
@@ -50,8 +50,12 @@ def run(args: argparse.Namespace) -> int:
         )
     from fieldcheck.commands.progress import counted, progress_bar
     from fieldcheck.config import load
+    from fieldcheck.records.columns import COLUMNS
     from fieldcheck.records.csv_file import CsvProblem
-    from fieldcheck.store.repo import EXPORT_ONLY_COLUMNS
+
+    # what fieldcheck itself wrote beside the records (an export's or a rated batch's columns:
+    # old ratings, derived) is never kept as part of what was found on site
+    derived = tuple(c for c in written_by_fieldcheck() if c not in COLUMNS)
 
     inspector = args.inspector or load().inspector or None
     with (
@@ -63,7 +67,7 @@ def run(args: argparse.Namespace) -> int:
         # problem found on a later line leaves the log as it was (one transaction)
         try:
             result = log.import_rows(
-                counted(table.records(drop=EXPORT_ONLY_COLUMNS), bar, "importing"),
+                counted(table.records(drop=derived), bar, "importing"),
                 args.site,
                 args.visit,
                 inspector=inspector,

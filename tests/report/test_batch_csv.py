@@ -121,3 +121,21 @@ def test_a_rated_batch_file_reads_back(tmp_path, capsys):
     assert main(["rate", "--batch", str(out), "--out", str(again)]) == 0
     rows = list(csv.DictReader(io.StringIO(again.read_text())))
     assert len(rows) == 2
+
+
+def test_a_rated_batch_file_imports_as_the_records_alone(tmp_path, capsys):
+    # the log keeps what was found on site, append-only: a rated file's result columns (the
+    # old ratings, derived) are never stored as part of a post's record (judgement)
+    import sqlite3
+
+    _batch(tmp_path, capsys, [NDS_ROW, EC5_ROW])
+    db = tmp_path / "log.db"
+    args = ["import", "--db", str(db), str(tmp_path / "out-in.csv"), "--site", "S"]
+    assert main([*args, "--visit", "V"]) == 0
+    capsys.readouterr()
+    with sqlite3.connect(db) as con:
+        records = [json.loads(r) for (r,) in con.execute("select record_json from observations")]
+    assert len(records) == 2
+    for rec in records:
+        assert not set(rec) & set(RESULT_COLUMNS), rec
+        assert set(rec) <= set(HEADER), rec
