@@ -44,6 +44,18 @@ def written_by_fieldcheck() -> tuple[str, ...]:
     return tuple(dict.fromkeys((*EXPORT_ONLY_COLUMNS, *RESULT_COLUMNS, *ADDED)))
 
 
+# columns fieldcheck writes that say which post a row is (an export's): kept beside a re-rating
+IDENTIFYING = ("site", "visit", "visit_date", "member_id", "observation_id", "revised_at")
+
+
+def derived_columns(keep: tuple[str, ...] = ()) -> tuple[str, ...]:
+    """The columns fieldcheck writes that are no record column (results, ratings, units, ids),
+    but those in ``keep``: never kept as found on site, never written back beside new results."""
+    from fieldcheck.records.columns import COLUMNS
+
+    return tuple(c for c in written_by_fieldcheck() if c not in COLUMNS and c not in keep)
+
+
 def add_csv_options(p: argparse.ArgumentParser) -> None:
     p.add_argument(
         "--ignore-unknown-columns",

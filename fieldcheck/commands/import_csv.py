@@ -5,7 +5,7 @@ from __future__ import annotations
 import argparse
 import sys
 
-from fieldcheck.commands.csv_option import add_csv_options, open_posts, written_by_fieldcheck
+from fieldcheck.commands.csv_option import add_csv_options, derived_columns, open_posts
 from fieldcheck.commands.log_option import add_db_option, open_log
 
 DESCRIPTION = (
@@ -50,12 +50,11 @@ def run(args: argparse.Namespace) -> int:
         )
     from fieldcheck.commands.progress import counted, progress_bar
     from fieldcheck.config import load
-    from fieldcheck.records.columns import COLUMNS
     from fieldcheck.records.csv_file import CsvProblem
 
     # what fieldcheck itself wrote beside the records (an export's or a rated batch's columns:
     # old ratings, derived) is never kept as part of what was found on site
-    derived = tuple(c for c in written_by_fieldcheck() if c not in COLUMNS)
+    derived = derived_columns()
 
     inspector = args.inspector or load().inspector or None
     with (

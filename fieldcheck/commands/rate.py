@@ -7,7 +7,7 @@ import csv
 import json
 import sys
 
-from fieldcheck.commands.csv_option import RESULT_COLUMNS
+from fieldcheck.commands.csv_option import IDENTIFYING, RESULT_COLUMNS, derived_columns
 from fieldcheck.engine import explain
 from fieldcheck.records.columns import COLUMNS
 
@@ -219,8 +219,10 @@ def _run_batch(args: argparse.Namespace) -> int:
 
     with open_posts(args, args.batch) as table:
         rows = read_all(table)
-        # a file rate --batch wrote before: its old results are replaced, never written twice
-        fieldnames = [c for c in table.columns if c not in RESULT_COLUMNS]
+        # a file fieldcheck wrote before (a rated batch, an export): its old results are left
+        # out, the new ones written once; the columns naming the post are kept
+        old = {*derived_columns(keep=IDENTIFYING), *RESULT_COLUMNS}
+        fieldnames = [c for c in table.columns if c not in old]
     parsed = parse_records(rows)
     from fieldcheck.engine.rating import rate
 

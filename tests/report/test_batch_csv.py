@@ -13,7 +13,7 @@ import re
 import pytest
 
 from fieldcheck.cli import main
-from fieldcheck.commands.csv_option import RESULT_COLUMNS
+from fieldcheck.commands.csv_option import IDENTIFYING, RESULT_COLUMNS
 
 # NDS words that must not reach a person reading an EC5 row (as tests/test_cli_ec5_wording.py)
 NDS_WORDS = re.compile(
@@ -139,3 +139,25 @@ def test_a_rated_batch_file_imports_as_the_records_alone(tmp_path, capsys):
     for rec in records:
         assert not set(rec) & set(RESULT_COLUMNS), rec
         assert set(rec) <= set(HEADER), rec
+
+
+def test_an_export_rated_as_a_batch_keeps_no_old_rating_beside_the_new(tmp_path, capsys):
+    # an office export (its ratio, capacity, state, due date: the log's stored rating) rated
+    # again with rate --batch: the old results are left out, the new ones written once
+    from fieldcheck.report.export_format import ADDED
+
+    _batch(tmp_path, capsys, [NDS_ROW, EC5_ROW])
+    db = tmp_path / "log.db"
+    args = ["import", "--db", str(db), str(tmp_path / "out-in.csv"), "--site", "S"]
+    assert main([*args, "--visit", "V"]) == 0
+    export = tmp_path / "export.csv"
+    assert main(["export", "--db", str(db), "--out", str(export)]) == 0
+    again = tmp_path / "again.csv"
+    assert main(["rate", "--batch", str(export), "--out", str(again)]) == 0
+    capsys.readouterr()
+    header = next(csv.reader(again.open()))
+    assert len(header) == len(set(header))
+    old = set(ADDED) - set(IDENTIFYING) - set(RESULT_COLUMNS)
+    assert "capacity_lbf" in old and "state" in old and "ratio" in old
+    assert not set(header) & old, set(header) & old  # the export's stored rating
+    assert "member_id" in header  # which post it is stays
