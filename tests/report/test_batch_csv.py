@@ -161,3 +161,43 @@ def test_an_export_rated_as_a_batch_keeps_no_old_rating_beside_the_new(tmp_path,
     assert "capacity_lbf" in old and "state" in old and "ratio" in old
     assert not set(header) & old, set(header) & old  # the export's stored rating
     assert "member_id" in header  # which post it is stays
+
+
+@pytest.mark.slow
+def test_batch_columns_agree_with_each_posts_json_over_the_corpus():
+    # the batch file and --json are two views of one rating: over the frozen corpus's records
+    # (every method, shape, condition, load kind) each rated row's ratio, capacity (N_Rd for
+    # EC5), action, governing check and warnings are those of its --json (no source: identity)
+    import sys
+    import warnings
+    from pathlib import Path
+
+    from fieldcheck.engine import explain
+    from fieldcheck.engine.rating import rate
+    from fieldcheck.records import parse_records
+    from fieldcheck.report.batch_csv import KEEP, result_columns
+
+    sys.path.insert(0, str(Path(__file__).parents[1] / "engine"))
+    from frozen_corpus import records
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", RuntimeWarning)
+        parsed = parse_records(records(1500))
+        r = rate(parsed.batch, keep=KEEP)
+        cols = result_columns(r, parsed.meta)
+        for j in range(r.n):
+            s = explain.summary(r, j, with_remedies=False)
+            cap_col = "N_Rd_kN" if s["method"] == "ec5" else "allowable_load_kN"
+            cap = s.get("N_Rd_kN") if s["method"] == "ec5" else s["allowable_load_kN"]
+            for cell, want in (
+                (cols["demand_capacity_ratio"][j], s["demand_capacity_ratio"]),
+                (cols[cap_col][j], cap),
+            ):
+                assert (cell == "") == (want is None), (j, cell, want)
+                if want is not None:
+                    assert float(cell) == pytest.approx(want, rel=6e-5, abs=6e-5), j
+            assert cols["action"][j] == s["action"], j
+            assert cols["governing_check"][j] == s["governing_check"], j
+            assert cols["warnings"][j] == " | ".join(s["warnings"]), j
+            assert cols["material"][j] == parsed.meta[j].get("_material", ""), j
+    assert r.n > 1000
