@@ -39,7 +39,7 @@ class BlockResults:
         ``value`` None: the key has no value of its own in this block; ``fallback(sl)`` gives
         it if another block has one (else the key stays None)."""
         sl = slice(start, min(start + self.size, self.n))
-        seen: dict[int, Key] = {}
+        seen: dict[int, tuple[Key, np.ndarray]] = {}  # the array kept: its id stays its own
 
         def put(key: Key, value: np.ndarray | None, fallback: Callable | None = None) -> None:
             with self.lock:
@@ -51,9 +51,9 @@ class BlockResults:
                 self.dtypes.setdefault(key, value.dtype)
                 source = seen.get(id(value))
                 if source is not None:
-                    parts[start] = ("key", source)
+                    parts[start] = ("key", source[0])
                     return
-                seen[id(value)] = key
+                seen[id(value)] = key, value
                 column = columns.get(id(value))
                 if column is not None:
                     parts[start] = ("column", column)
