@@ -93,6 +93,17 @@ _HUB_EXISTS = (
     f"WHERE n.nspname = '{SCHEMA}' AND c.relname = 'hub_meta'"
 )
 
+# both questions in one statement, so one snapshot answers them: asked one after the other, a
+# first sync committing in between made an empty database look like one holding other tables
+_HUB_AND_OTHERS = f"SELECT ({_HUB_EXISTS}), ({_OTHER_TABLES})"
+
+
+def _not_a_hub(where: str) -> HubError:
+    return HubError(
+        f"the database at {where} is not a fieldcheck hub (it holds other tables and no "
+        "fieldcheck schema); give a hub or an empty database, nothing was changed"
+    )
+
 
 def _meta(conn: psycopg.Connection) -> dict[str, str]:
     return dict(conn.execute(f"SELECT key, value FROM {SCHEMA}.hub_meta").fetchall())
@@ -104,12 +115,10 @@ def ensure_hub(conn: psycopg.Connection, url: str) -> HubInfo:
     holding other tables, and a hub of a newer schema."""
     where = redact(url)
     try:
-        if not conn.execute(_HUB_EXISTS).fetchone()[0]:
-            if conn.execute(_OTHER_TABLES).fetchone()[0]:
-                raise HubError(
-                    f"the database at {where} is not a fieldcheck hub (it holds other tables and "
-                    "no fieldcheck schema); give a hub or an empty database, nothing was changed"
-                )
+        hub, others = conn.execute(_HUB_AND_OTHERS).fetchone()
+        if not hub:
+            if others:
+                raise _not_a_hub(where)
             _migrate(conn, url, 0)
         meta = _meta(conn)
         version = int(meta.get("schema_version", "0") or 0)
@@ -134,7 +143,9 @@ def _migrate(conn: psycopg.Connection, url: str, have: int) -> None:
     try:
         with conn.transaction():
             conn.execute("SELECT pg_advisory_xact_lock(%s)", [LOCK_KEY])
-            exists = conn.execute(_HUB_EXISTS).fetchone()[0]
+            exists, others = conn.execute(_HUB_AND_OTHERS).fetchone()
+            if not exists and others:  # tables appeared while this sync waited for the lock
+                raise _not_a_hub(redact(url))
             now = int(_meta(conn).get("schema_version", "0")) if exists else 0
             for v in sorted(MIGRATIONS):
                 if v > now:
