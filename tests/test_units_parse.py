@@ -516,3 +516,11 @@ def test_property_never_bad_number_dense(text):
         assert str(e).startswith("h: ")
     else:
         assert math.isfinite(v) and v > 0
+
+
+def test_a_tiny_value_outside_the_range_is_shown_in_powers_of_ten():
+    # judgement: a message names the value in a form a person can read, not 300 zeros
+    with pytest.raises(UnitInputError) as err:
+        u.parse_percent("1e-320", "end_contact", lo=1, hi=100)
+    msg = str(err.value)
+    assert "e-32" in msg and "0000000" not in msg and "1 to 100 %" in msg
