@@ -201,12 +201,12 @@ def _govern(r: Rating) -> None:
             if lower.any():
                 gov += lower * (np.int8(k) - gov)
             cap = np.fmin(cap, c)
-        with np.errstate(divide="ignore", invalid="ignore"):
+        with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
             ratio = demand / cap
     else:
         caps = np.stack([c.capacity_n for c in checks])
         demands = np.stack([c.demand_n for c in checks])
-        with np.errstate(divide="ignore", invalid="ignore"):
+        with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
             ratios = demands / caps
         has_load = ~np.isnan(r.batch.load_n)
         by_ratio = np.argmax(np.where(np.isnan(ratios), -np.inf, ratios), axis=0)

@@ -53,7 +53,8 @@ class Check:
 
     @property
     def ratio(self) -> np.ndarray:
-        with np.errstate(divide="ignore", invalid="ignore"):
+        # a capacity too small to divide by is an infinite ratio: make safe now, said quietly
+        with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
             return self.demand_n / self.capacity_n
 
 
