@@ -348,9 +348,20 @@ def load_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
         reduce = (
             {"live_reduction_area_mm2": area, "floors": nf} if row.get("live_reduction") else {}
         )
+        # NDS 2018 Appendix N Table N3: lambda of 1.2D+1.6L+0.5(Lr or S or R) by the kind of
+        # live load: 0.7 from storage (a storage occupancy; a live load stated permanent,
+        # judgement), 1.25 from impact, 0.8 from occupancy
+        live_duration = row.get("live_duration", "ten-years")
+        if live_duration == "impact":
+            live_kind = "impact"
+        elif live_duration == "permanent" or row.get("occupancy", "").startswith("storage"):
+            live_kind = "storage"
+        else:
+            live_kind = "occupancy"
+        f["live_kind"] = loads.LIVE_KINDS.index(live_kind)
         try:
             if method == "lrfd":
-                c = loads.lrfd_combinations(D, L, Lr, S, R, **reduce)
+                c = loads.lrfd_combinations(D, L, Lr, S, R, live_kind=live_kind, **reduce)
             else:
                 durations = {
                     "L": row.get("live_duration", "ten-years"),
