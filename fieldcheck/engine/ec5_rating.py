@@ -50,16 +50,22 @@ def apply_ec5(b: PostBatch, checks: dict, values: dict) -> None:
     end = col.fc0d * v["a_contact"] * kappa
     checks["end_bearing"].capacity_n = np.where(m, end, checks["end_bearing"].capacity_n)
     checks["end_bearing"].clause = _mixed(m, checks["end_bearing"].clause, "EN 1995-1-1 §6.1.4")
-    # bearing across the grain of the cap and sill (EN 1995-1-1 §6.1.5), k_c,90 = 1 (general)
-    for end_name, key, lb in (
-        ("top", "cap_bearing", "top_lb_mm"),
-        ("bottom", "sill_bearing", "bottom_lb_mm"),
+    # bearing across the grain of the cap and sill (EN 1995-1-1 §6.1.5), k_c,90 = 1 (general).
+    # The contact area is the post's end as the NDS path takes it: its residual area at that end
+    # (decay, char, a crushed end) x the contact share, over the bearing length along the
+    # cap's or sill's grain, which is never more than the post's width d1 (it bears only where
+    # it stands): A = a_end x l / d1, as b = a_end / d1 times l (no 30 mm extension: the end
+    # distance and the next contact are not known, judgement)
+    for end_name, key, lb, a_end in (
+        ("top", "cap_bearing", "top_lb_mm", v["a_top"]),
+        ("bottom", "sill_bearing", "bottom_lb_mm", v["a_bottom"]),
     ):
         fc90k = getattr(b, f"{end_name}_fc_perp_mpa")
-        length = np.where(np.isnan(getattr(b, lb)), b.d1_mm, getattr(b, lb))
+        given = getattr(b, lb)
+        length = np.where(given > 0, np.minimum(given, b.d1_mm), b.d1_mm)  # NaN: the width
         br = ec5.bearing_perp_resistance(
-            b.d2_mm * np.sqrt(b.end_contact),
-            length * np.sqrt(b.end_contact),
+            a_end / b.d1_mm,
+            length,
             fc90k,
             b.kmod,
             b.gamma_m,
