@@ -189,6 +189,9 @@ def _dense(b: PostBatch):
                     on = (coef[:, t, None] != 0) & gts[t][None, :]
                     np.maximum(fac, on * cdt, out=fac)
                 fac[fac == 0] = cd_perm
+        if distinct(b.incised).any():  # treated: NDS 2018 Table 2.3.2 / Table N3 footnotes
+            cap = nds.TREATED_CD_MAX if method == ASD else nds.TREATED_LAMBDA_MAX
+            fac = np.where(b.incised, np.minimum(fac, cap), fac)
         loads.append(load)
         facs.append(fac)
         combos.append(np.broadcast_to(rws.astype(np.int8)[:, None], load.shape))

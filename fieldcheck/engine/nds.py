@@ -18,6 +18,12 @@ KF_EMIN, PHI_S = 1.76, 0.85
 KF_FCP, PHI_FCP = 1.67, 0.90
 KF_FB, PHI_B = 2.54, 0.85
 
+# NDS 2018 Table 2.3.2 footnote: CD above 1.6 does not apply to members pressure-treated with
+# waterborne preservatives (or fire retardants); Appendix N Table N3 footnote: lambda above 1.0
+# likewise. An incised member was incised to take a preservative: taken as treated (judgement,
+# conservative: the treatment is rarely known on site).
+TREATED_CD_MAX, TREATED_LAMBDA_MAX = 1.6, 1.0
+
 # Column constant c by product (NDS 2018 §3.7.1): sawn 0.8, round poles 0.85, glulam/SCL 0.9.
 C_BY_PRODUCT = np.array([0.8, 0.8, 0.85, 0.9])
 assert (DIMENSION, TIMBER, POLE, GLULAM) == (0, 1, 2, 3)

@@ -12,13 +12,12 @@ from typing import Any
 
 import numpy as np
 
-from fieldcheck.engine import materials, sections
+from fieldcheck.engine import materials, nds, sections
 from fieldcheck.engine.batch import (
     BUILT_UP,
     DIMENSION,
     EC5,
     END_NAMES,
-    LRFD,
     METHOD_NAMES,
     RECT,
     ROUND,
@@ -145,6 +144,9 @@ def material_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
     method = METHOD_NAMES.index(row.get("method", "asd"))
     duration = load_duration(row)
     f: dict[str, Any] = {"method": method, "cd": CD[duration], "lam": LAMBDA[duration]}
+    if row.get("incised"):  # taken as treated: NDS 2018 Table 2.3.2 and Table N3 footnotes
+        f["cd"] = min(f["cd"], nds.TREATED_CD_MAX)
+        f["lam"] = min(f["lam"], nds.TREATED_LAMBDA_MAX)
     f["duration_assumed"] = "load" in row and "duration" not in row
     if method == EC5:
         return f  # the EC5 builder fills the material
@@ -200,8 +202,6 @@ def material_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
         f"NDS Supplement 2018 Table {tab}" if tab[:1].isdigit() else f"NDS Supplement 2018, {tab}"
     )
     out["_e_mpa"] = rv["e"]
-    if method == LRFD:
-        f["lam"] = LAMBDA[duration]
     return f
 
 

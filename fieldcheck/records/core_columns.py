@@ -277,7 +277,8 @@ CORE: tuple[Column, ...] = (
     Column(
         "incised",
         "material",
-        "incised for preservative treatment (yes/no)",
+        "incised for preservative treatment (yes/no); taken as treated: CD at most 1.6, "
+        "lambda at most 1.0",
         "no",
         yes_no("incised"),
         "no",
