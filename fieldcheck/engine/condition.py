@@ -37,7 +37,7 @@ import numpy as np
 
 from fieldcheck.engine import nds
 from fieldcheck.engine import quantities as q
-from fieldcheck.engine.batch import EC5, LRFD, PostBatch
+from fieldcheck.engine.batch import EC5, LRFD, ROUND, PostBatch
 from fieldcheck.engine.blocks import at_least, distinct, filled, memo
 from fieldcheck.engine.refdata import table
 from fieldcheck.engine.result import Check, Step
@@ -381,6 +381,20 @@ def _sound(b: PostBatch) -> dict[str, np.ndarray]:
     return out
 
 
+# A round post bends as the round section it is: its elastic section modulus pi D^3 / 32 is
+# 3 / (2 sqrt(pi)) = 0.846 of the d^3 / 6 of the square of equal area (side d = D sqrt(pi) / 2;
+# mechanics). NDS 2018 §3.7.3 takes that square for the column's stability only. Losses on a
+# round post are worked out on the square and their modulus scaled the same way (judgement).
+ROUND_S = 3.0 / (2.0 * np.sqrt(np.pi))
+
+
+def _round_s(b: PostBatch):
+    """ROUND_S for round posts, 1.0 for the others (None: no round post in the block)."""
+    if not (distinct(b.shape) == ROUND).any():
+        return None
+    return np.where(b.shape == ROUND, ROUND_S, 1.0)
+
+
 def gross_bending_properties(b: PostBatch, v: dict) -> None:
     """res_i1, res_i2, i_gyr1, i_gyr2, s1, s2 of the gross section, where a sound block left them
     out (the same formulas as the residual path gives a sound post)."""
@@ -388,13 +402,17 @@ def gross_bending_properties(b: PostBatch, v: dict) -> None:
         return
     d1, d2 = b.d1_mm, b.d2_mm
     i1, i2 = second_moments(d1, d2)
+    s1, s2 = i1 / (0.5 * d1), i2 / (0.5 * d2)
+    rs = _round_s(b)
+    if rs is not None:
+        s1, s2 = s1 * rs, s2 * rs
     v.update(
         res_i1=i1,
         res_i2=i2,
         i_gyr1=d1 / np.sqrt(12.0),
         i_gyr2=d2 / np.sqrt(12.0),
-        s1=i1 / (0.5 * d1),
-        s2=i2 / (0.5 * d2),
+        s1=s1,
+        s2=s2,
     )
 
 
@@ -519,6 +537,9 @@ def residual(
         "loss_mid": loss_mid,
         "split_axis": np.where(s_axis1, 1, np.where(s_axis2, 2, 0)).astype(np.int8),
     }
+    rs = _round_s(b)
+    if rs is not None:
+        out["s1"], out["s2"] = out["s1"] * rs, out["s2"] * rs
     out.update(strength_ratios(b))
     return out
 
