@@ -25,6 +25,7 @@ from pathlib import Path
 
 from fieldcheck.engine.batch import EC5, END_NAMES
 from fieldcheck.engine.cautions import CAUTIONS
+from fieldcheck.engine.ec5_rating import clause_for
 from fieldcheck.engine.loads import combination_name
 from fieldcheck.engine.rating import detail
 from fieldcheck.engine.result import ACTION_TEXT, ACTIONS, DUE_DAYS
@@ -534,7 +535,7 @@ def _checks(d: ReportData, p: PostEntry) -> str:
             f"<td class='num'>{e(format_force(cap, u))}</td>"
             f"<td class='num'>{e(format_force(float(c.demand_n[j]), u))}</td>"
             f"<td class='num'>{e(ratio_text(ratio))}</td><td>{e(_combination(r, name, j))}</td>"
-            f"<td>{e(c.clause)}</td></tr>"
+            f"<td>{e(clause_for(c.clause, int(r.batch.method[j])))}</td></tr>"
         )
     return table(
         ["Check", "num:Capacity", "num:Demand", "num:Ratio", "Load combination", "Clause"],

@@ -82,3 +82,19 @@ def test_ec5_post_gives_n_rd_and_n_ed_in_kn_first(tmp_path):
     assert re.search(r"N_Ed ?20(\.0+)? kN", ec) and "N_Ed / N_Rd" in ec
     assert "lbf" not in ec.split("Inputs as measured")[0]  # kN first: the result in kN
     assert re.search(r"Capacity \(governing\) ?[\d.,]+ lbf", nds) and "N_Rd" not in nds
+
+
+def test_each_post_cites_its_own_methods_clauses_in_a_mixed_log(tmp_path):
+    # an NDS and an EC5 post rated in one chunk share a check's clause text; each post's check
+    # table cites only its own method (EN 1995-1-1 §6.3.2 for EC5, NDS 2018 §3.7.1 for NDS)
+    text = _sections(
+        tmp_path,
+        [
+            {**EC5, "tag": "E1", "load": "20kN", "duration": "seven-days"},
+            {**NDS, "tag": "N1", "load": "1000lbf"},
+        ],
+    )
+    ec = text["E1"].split("Checks")[1].split("Working")[0]
+    nds = text["N1"].split("Checks")[1].split("Working")[0]
+    assert "EN 1995-1-1 §6.3.2" in ec and "NDS 2018" not in ec, ec
+    assert "NDS 2018 §3.7.1" in nds and "EN 1995-1-1" not in nds, nds
