@@ -7,6 +7,7 @@ from __future__ import annotations
 
 import contextlib
 import datetime as _dt
+import gc
 import getpass
 import hashlib
 import itertools
@@ -78,6 +79,24 @@ def lock_wait_s() -> float:
         return max(0.0, float(os.environ.get("FIELDCHECK_LOCK_WAIT_S", LOCK_WAIT_S)))
     except ValueError:
         return LOCK_WAIT_S
+
+
+@contextlib.contextmanager
+def _cyclic_gc_paused() -> Iterator[None]:
+    """Python's cyclic garbage collector paused for a bulk loop (import, re-rate), on again
+    after, whatever happens. Each chunk makes tens of thousands of records (dicts) that die
+    with the chunk by reference counting, yet every 700 of them set off a collection that walks
+    the young objects, and now and then all of them (measured, 100,000 posts, min of 5 runs
+    alternated: re-rate 1.70 -> 1.54 CPU-s, import 2.50 -> 2.38). The loops make no cycle that
+    outlives a chunk (peak memory of a 1,000,000-post re-rate the same, 168 MB); a collector
+    already paused by the caller stays paused."""
+    was = gc.isenabled()
+    gc.disable()
+    try:
+        yield
+    finally:
+        if was:
+            gc.enable()
 
 
 def _loads(text: str | None):
@@ -834,7 +853,7 @@ class Log:
         cache: dict = {}  # the records layer's distinct parses, kept from chunk to chunk
         errors: list[RowError] = []
         n = good_n = 0
-        with self._write():
+        with self._write(), _cyclic_gc_paused():
             self._ensure_stamp()
             created = now()
             dev, who = self.device_id, self.author
@@ -931,7 +950,7 @@ class Log:
         read = imported = 0
         # every id written refers to the site, visit and stamp found or made here, or to the
         # members and revisions written just before it: no per-row foreign-key check
-        with self._write(refs_made_here=True):
+        with self._write(refs_made_here=True), _cyclic_gc_paused():
             self._ensure_stamp()
             s = self.find_site(site) or self.add_site(site)
             v = self.find_visit(s.id, visit) or self.add_visit(s.id, inspector, name=visit)

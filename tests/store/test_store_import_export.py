@@ -61,6 +61,36 @@ def test_an_import_that_fails_part_way_writes_nothing_and_leaves_the_check_on(lo
     assert log.db.conn.execute("PRAGMA foreign_keys").fetchone()[0] == 1
 
 
+def test_the_garbage_collector_is_paused_only_while_a_bulk_write_runs(log, shore):
+    # import and re-rate pause Python's cyclic collector for their loops (a speed measure): it
+    # must be on again after them, also after an import that fails part way, and one the
+    # caller paused stays paused (common practice, no source)
+    import gc
+
+    seen = []
+
+    def rows(fail: bool):
+        for i in range(20):
+            seen.append(gc.isenabled())
+            yield {**shore, "tag": f"S{i}"}
+        if fail:
+            raise OSError("the file went away")
+
+    assert gc.isenabled()
+    log.import_rows(rows(False), "Alder Row", "Shoring", chunk=8)
+    assert seen and not any(seen) and gc.isenabled()
+    with pytest.raises(OSError, match="went away"):
+        log.import_rows(rows(True), "Alder Row", "Shoring", chunk=8)
+    assert gc.isenabled()
+    assert log.rerate_all(chunk=8).rated == 20 and gc.isenabled()
+    gc.disable()
+    try:
+        log.rerate_all(chunk=8)
+        assert not gc.isenabled()
+    finally:
+        gc.enable()
+
+
 def test_export_round_trip_through_csv(log, shore, tmp_path):
     seed_demo(log)
     table = log.export_rows()
