@@ -16,6 +16,10 @@ distinct-record parse cache does not carry the figure.
 - log tables (not a floor, for reading the ratios): SQLite alone writing the same posts into
   the log's own tables, rows made ready beforehand (``import_*_log_tables_cpu_s``: members,
   observations and ratings; ``rerate_*_log_tables_cpu_s``: ratings alone).
+- records (not a floor either): reading every current record as the re-rate does before it
+  rates (the heads query, JSON decoding, the records layer's column-wise parse, chunk by chunk;
+  ``rerate_*_records_cpu_s``). With the log tables it says how much of ``rerate_ratio`` the
+  log's stored form holds: the floor starts from rows already decoded.
 - peak memory: the largest peak resident set of import, re-rate and export (target < 300 MB at
   1,000,000 posts).
 - fieldcheck's bytecode is compiled first (``compiled``), as an installed copy has it.
@@ -208,6 +212,26 @@ print("CPU", cpu)
 """
 
 
+# Not a floor: the re-rate's reading of the records, the engine and the inserts left out (the
+# same query, chunks, decoding, parse cache and paused collector as Log.rerate_all).
+RECORDS = """
+import gc, sys, time
+from fieldcheck.records import parse_records
+from fieldcheck.store.repo import HEAD, STORE_CHUNK, Log, _loads_many
+log = Log.open(sys.argv[1], readonly=True)
+gc.disable()
+t0 = time.process_time()
+cur = log.db.conn.execute(
+    "SELECT id, record_json FROM observations o WHERE withdrawn = 0 AND " + HEAD + " ORDER BY rowid"
+)
+cache, n = {}, 0
+while heads := cur.fetchmany(STORE_CHUNK):
+    n += parse_records(_loads_many([t for _, t in heads]), cache).batch.n
+print("CPU", time.process_time() - t0)
+assert n == int(sys.argv[2]), n
+"""
+
+
 def run(argv: list[str]) -> dict:
     """Run argv: its CPU seconds (user + system, or the part the floor timed itself), wall
     seconds and peak resident MB (the child's own rusage, from wait4)."""
@@ -263,6 +287,7 @@ def bench(n: int, tmp: Path, repeats: int) -> dict:
         )
     rr = run([*CLI, "rerate", "--db", str(db)])
     rr_floor = run([PY, "-c", FLOOR_RERATE, str(db), str(tmp / f"rr-floor-{n}.db")])
+    records = run([PY, "-c", RECORDS, str(db), str(n)])
     exp: dict[str, dict] = {}
     exp_floor: dict[str, dict] = {}
     header = json.dumps(export_header())
@@ -292,6 +317,7 @@ def bench(n: int, tmp: Path, repeats: int) -> dict:
         "rerate_peak_mb": round(rr["peak_mb"]),
         "import_log_tables_cpu_s": round(tables["import"]["cpu"], 2),
         "rerate_log_tables_cpu_s": round(tables["rerate"]["cpu"], 2),
+        "rerate_records_cpu_s": round(records["cpu"], 2),
         "export_ratio": round(max(exp_ratio.values()), 2),
         "export_csv_ratio": round(exp_ratio["csv"], 2),
         "export_json_ratio": round(exp_ratio["json"], 2),
