@@ -55,7 +55,11 @@ def apply_ec5(b: PostBatch, checks: dict, values: dict) -> None:
     # (decay, char, a crushed end) x the contact share, over the bearing length along the
     # cap's or sill's grain, which is never more than the post's width d1 (it bears only where
     # it stands): A = a_end x l / d1, as b = a_end / d1 times l (no 30 mm extension: the end
-    # distance and the next contact are not known, judgement)
+    # distance and the next contact are not known, judgement). Steel plates at both ends: the
+    # plate length along the grain (at least the post's width) x the post's thickness across,
+    # as the NDS path takes them (plates stiff enough to spread the load, judgement)
+    plate = ~np.isnan(b.plate_lb_mm)
+    plate = plate if distinct(plate).any() else None
     for end_name, key, lb, a_end in (
         ("top", "cap_bearing", "top_lb_mm", v["a_top"]),
         ("bottom", "sill_bearing", "bottom_lb_mm", v["a_bottom"]),
@@ -63,8 +67,12 @@ def apply_ec5(b: PostBatch, checks: dict, values: dict) -> None:
         fc90k = getattr(b, f"{end_name}_fc_perp_mpa")
         given = getattr(b, lb)
         length = np.where(given > 0, np.minimum(given, b.d1_mm), b.d1_mm)  # NaN: the width
+        width = a_end / b.d1_mm
+        if plate is not None:
+            length = np.where(plate, np.maximum(b.plate_lb_mm, b.d1_mm), length)
+            width = np.where(plate, b.d2_mm, width)
         br = ec5.bearing_perp_resistance(
-            a_end / b.d1_mm,
+            width,
             length,
             fc90k,
             b.kmod,
@@ -556,6 +564,7 @@ EC5_STAGE = Stage(
         "d2_mm",
         "top_lb_mm",
         "bottom_lb_mm",
+        "plate_lb_mm",
         "top_fc_perp_mpa",
         "bottom_fc_perp_mpa",
         "strength_row",

@@ -169,7 +169,7 @@ def _ground_flags(b: PostBatch, values: dict, flag: FlagSet) -> None:
     flag("soil_assumed", involved & ((sf & loads.SOIL_ASSUMED) != 0))
     flag("pad_missing", soil_given & ~np.isnan(b.soil_kpa) & ~has_pad)
     flag("pad_rigid", has_pad & np.isnan(b.pad_t_mm))
-    flag("plate", ~np.isnan(b.plate_lb_mm) & (b.method != EC5))
+    flag("plate", ~np.isnan(b.plate_lb_mm))  # NDS here, EC5 in ec5_rating: both apply them
 
 
 # ---- per post, on demand: working and summary ------------------------------------------------

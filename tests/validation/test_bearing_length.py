@@ -71,3 +71,12 @@ def test_ec5_bearing_takes_the_residual_end_area(capsys):
     assert _ec5_cap_kn(capsys, "--decay-wide", "1in", "--decay-at", "bottom") == pytest.approx(
         sound, rel=1e-4
     )
+
+
+def test_ec5_steel_plates_spread_the_bearing_as_in_the_nds_path(capsys):
+    # --plate is applied in EC5 too (never ignored silently): the plate length along the grain
+    # (200 mm) x the post's thickness across (100 mm), EN 1995-1-1 §6.1.5 with k_c,90 = 1
+    expected = FC90D * 200.0 * 100.0 / 1000.0
+    assert _ec5_cap_kn(capsys, "--plate", "200mm") == pytest.approx(expected, rel=1e-4)
+    # a plate shorter than the post bears on the post's width (as the NDS path takes it)
+    assert _ec5_cap_kn(capsys, "--plate", "50mm") == pytest.approx(_ec5_cap_kn(capsys), rel=1e-4)
