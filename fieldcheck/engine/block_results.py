@@ -3,10 +3,12 @@
 A block's result for an array is one of: a block array of its own (copied into the full-length
 array, made empty by the first block that has one), the same block array as a key put before it
 in this block (checks sharing one demand), a slice of an array of the batch (its own load
-column), or one value (a check not made there: NaN). Only the first kind is copied as the blocks
-come; the others are resolved at the end, and an array whose every block is the same key, the
-same column of the batch or the same value is that key's array, that column or one broadcast
-value: no copy and no page faults for it. The result equals the blocks' results side by side.
+column), one value (a check not made there: NaN), or an array made only when the full-length
+array is asked for (:class:`Later`: a check's demand at its load combination). Only the first
+kind is copied as the blocks come; the others are resolved at the end, and an array whose every
+block is the same key, the same column of the batch or the same value is that key's array, that
+column or one broadcast value: no copy and no page faults for it. The result equals the blocks'
+results side by side.
 """
 
 from __future__ import annotations
@@ -20,6 +22,14 @@ import numpy as np
 from fieldcheck.engine.blocks import broadcast, filled
 
 Key = tuple[str, str]
+
+
+class Later:
+    """A block's array made when the full-length array is first asked for: ``make()`` gives
+    it, of ``dtype``."""
+
+    def __init__(self, make: Callable[[], np.ndarray], dtype=np.float64) -> None:
+        self.make, self.dtype = make, np.dtype(dtype)
 
 
 class BlockResults:
@@ -46,6 +56,10 @@ class BlockResults:
                 parts = self.parts.setdefault(key, {})
                 if value is None:
                     parts[start] = ("fallback", fallback)
+                    return
+                if isinstance(value, Later):
+                    self.dtypes.setdefault(key, value.dtype)
+                    parts[start] = ("later", value)
                     return
                 value = np.asarray(value)
                 self.dtypes.setdefault(key, value.dtype)
@@ -99,6 +113,8 @@ class BlockResults:
                 a[sl] = src[sl]
             elif kind == "value":
                 a[sl] = src
+            elif kind == "later":
+                a[sl] = src.make()
             else:
                 a[sl] = src(sl)
         self.done[key] = a
@@ -111,4 +127,6 @@ def _source(kind: str, src: Any) -> tuple:
         return kind, id(src)
     if kind == "value":
         return kind, np.asarray(src).tobytes()
+    if kind == "later":  # each block's own
+        return kind, id(src)
     return kind, src

@@ -219,6 +219,27 @@ def _dense(b: PostBatch):
     return load, fac, combo, has
 
 
+def load_at(b: PostBatch, combo: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """(load, duration factor) of each post of a block at the combination ``combo`` that
+    rate_with_combinations gave one of its checks: the block's combinations formed again and
+    each post's taken from the first slot holding its ``combo`` (a post's slots hold distinct
+    combinations; a post given by its load alone has its own in slot 0), so the very numbers
+    the check had. A large batch makes its checks' demands and factors so, when they are read
+    (engine/rating.py)."""
+    load, fac, rows, _ = _dense(b)
+    n = b.n
+    slot = np.zeros(n, dtype=np.int8)
+    found = rows[0] == combo
+    for j in range(1, load.shape[0]):
+        hit = rows[j] == combo
+        hit &= ~found
+        if hit.any():
+            slot += np.multiply(hit, j, dtype=np.int8)
+            found |= hit
+    flat = _flat(slot, n)
+    return _at_slot(load, slot, flat), _at_slot(fac, slot, flat)
+
+
 def distinct_per_post(b: PostBatch) -> np.ndarray:
     """How many combinations of each post differ in load or duration factor (bench/engine.py)."""
     load, fac, _, _ = _dense(b)

@@ -15,14 +15,21 @@ import numpy as np
 
 from fieldcheck.engine import combinations
 from fieldcheck.engine.batch import PostBatch
-from fieldcheck.engine.block_results import BlockResults
+from fieldcheck.engine.block_results import BlockResults, Later
 from fieldcheck.engine.blocks import BLOCK, absent, at_least, share_blocks
 from fieldcheck.engine.column import COLUMN, ENDS
 from fieldcheck.engine.condition import CONDITION
 from fieldcheck.engine.ec5_rating import EC5_STAGE
 from fieldcheck.engine.ground import GROUND
 from fieldcheck.engine.load_stages import BRACING, LOADS
-from fieldcheck.engine.result import NOT_RATED, RATIO_BANDS, Check, Rating, duration_factor
+from fieldcheck.engine.result import (
+    NOT_RATED,
+    RATIO_BANDS,
+    Check,
+    DeferredCheck,
+    Rating,
+    duration_factor,
+)
 from fieldcheck.engine.stage import FlagSet, FlagTable
 
 # The rating, in order: end conditions and effective lengths; the column and bearing checks on
@@ -84,9 +91,14 @@ def rate(b: PostBatch, keep: tuple[str, ...] = ()) -> Rating:
             part(("batch", f), getattr(r.batch, f))
         for k, c in r.checks.items():
             part((k, "capacity"), c.capacity_n)
-            part((k, "demand"), c.demand_n)
             part((k, "combo"), c.combo, batch_combo)
-            part((k, "factor"), c.factor, batch_factor)
+            if c.combo is None:
+                part((k, "demand"), c.demand_n)
+                part((k, "factor"), c.factor, batch_factor)
+            else:  # made from the check's combination when read (DeferredCheck)
+                demand, factor = _at_combination(blk, c.combo)
+                part((k, "demand"), demand)
+                part((k, "factor"), factor)
             if c.clause not in clauses[k]:  # e.g. a block with EC5 posts names both clauses
                 with lock:
                     clauses[k] += f" / {c.clause}"
@@ -98,23 +110,43 @@ def rate(b: PostBatch, keep: tuple[str, ...] = ()) -> Rating:
 
     put(0, (first_blk, first))
     share_blocks(put, starts[1:])
-    checks = {
-        k: Check(
-            c.name,
-            c.label,
-            clauses[k],
-            results.get((k, "capacity")),
-            results.get((k, "demand")),
-            results.get((k, "combo")),
-            results.get((k, "factor")),
-        )
-        for k, c in first.checks.items()
-    }
+    checks = {k: _check(c, clauses[k], results) for k, c in first.checks.items()}
     own = {f: results.get(("batch", f)) for f in BATCH_FIELDS}
     if any(a is not getattr(b, f) for f, a in own.items()):
         b = b.replace_arrays(**{f: a for f, a in own.items() if a is not getattr(b, f)})
     demand = results.get(("", "demand"))
     return Rating(batch=b, checks=checks, values=out, partial=True, demand_n=demand, **core)
+
+
+def _at_combination(blk: PostBatch, combo: np.ndarray) -> tuple[Later, Later]:
+    """A check's demand and duration factor in a block where combinations ran, both made when
+    first read, from the check's combination (combinations.load_at): a large batch's checks
+    keep four full-length arrays fewer each, and their page faults."""
+    got: list = []
+
+    def pair() -> tuple[np.ndarray, np.ndarray]:
+        if not got:
+            got.append(combinations.load_at(blk, combo))
+        return got[0]
+
+    return Later(lambda: pair()[0]), Later(lambda: pair()[1])
+
+
+def _check(c: Check, clause: str, results: BlockResults) -> Check:
+    """The full-length check ``c`` of a large batch; its demand and factor made when read where
+    any block left them to its combination (_at_combination)."""
+    parts = results.parts
+    name = c.name
+    later = any(kind == "later" for kind, _ in parts.get((name, "demand"), {}).values())
+    capacity, combo = results.get((name, "capacity")), results.get((name, "combo"))
+    if not later:
+        demand, factor = results.get((name, "demand")), results.get((name, "factor"))
+        return Check(c.name, c.label, clause, capacity, demand, combo, factor)
+
+    def make() -> tuple[np.ndarray, np.ndarray]:
+        return results.get((name, "demand")), results.get((name, "factor"))
+
+    return DeferredCheck(c.name, c.label, clause, capacity, combo, make)
 
 
 def detail(r: Rating, i: int) -> tuple[Rating, int]:

@@ -58,6 +58,40 @@ class Check:
             return self.demand_n / self.capacity_n
 
 
+class DeferredCheck(Check):
+    """A check of a large batch whose demand and duration factor per post are made when first
+    read: ``make() -> (demand_n, factor)``. Both follow from the check's combination (``combo``)
+    and the batch's nominal loads (combinations.load_at), and are seldom read for every post of
+    a large batch, while each full-length array costs its page faults (engine/rating.py)."""
+
+    def __init__(self, name, label, clause, capacity_n, combo, make) -> None:
+        self._make, self._made = make, None
+        super().__init__(name, label, clause, capacity_n, None, combo, None)
+
+    def _pair(self) -> tuple[np.ndarray, np.ndarray]:
+        if self._made is None:
+            self._made = self._make()
+        return self._made
+
+    @property  # type: ignore[override]
+    def demand_n(self) -> np.ndarray:
+        return self._pair()[0]
+
+    @demand_n.setter
+    def demand_n(self, value) -> None:
+        if value is not None:  # None: made when read
+            self._made = (value, self._pair()[1])
+
+    @property  # type: ignore[override]
+    def factor(self) -> np.ndarray:
+        return self._pair()[1]
+
+    @factor.setter
+    def factor(self, value) -> None:
+        if value is not None:
+            self._made = (self._pair()[0], value)
+
+
 @dataclass
 class Step:
     """One line of the working: what, its value and unit, and where it comes from."""

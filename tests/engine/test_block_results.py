@@ -103,3 +103,18 @@ def test_demand_is_the_governing_combinations(corpus: PostBatch) -> None:
     with np.errstate(divide="ignore", invalid="ignore"):
         ratio = r.demand_n / r.capacity_n
     assert np.array_equal(ratio, r.ratio, equal_nan=True)
+
+
+def test_checks_demand_and_factor_are_made_when_read(corpus: PostBatch) -> None:
+    """A large batch's checks with load combinations leave their demand and duration factor to
+    be made when first read (result.DeferredCheck); read, they are their blocks' own (computed
+    by the engine both ways; no source)."""
+    from fieldcheck.engine.result import DeferredCheck
+
+    b = _tile(corpus.take(np.flatnonzero(~np.isnan(corpus.nom_d_n))), 2 * BLOCK + 30)
+    r = rate(b)
+    column = r.checks["column"]
+    assert isinstance(column, DeferredCheck) and column._made is None
+    blocks = _by_block(b)
+    assert np.array_equal(column.demand_n, blocks["column.demand"], equal_nan=True)
+    assert np.array_equal(column.factor, blocks["column.factor"], equal_nan=True)
