@@ -257,10 +257,19 @@ class PostBatch:
         return PostBatch(**out)
 
     def replace_arrays(self, **arrays) -> PostBatch:
-        """A copy with some fields replaced by the arrays given (length n, not broadcast)."""
-        out = {f.name: getattr(self, f.name) for f in fields(self)}
-        out.update(arrays)
-        return PostBatch(**out)
+        """A copy with some fields replaced by the arrays given (length n, not broadcast).
+
+        The fields are copied as they are, without the dataclass's __init__ (it only assigns
+        them): the load combinations replace a block's load twice per block. Whatever was kept
+        on this batch (blocks.memo) is not carried over."""
+        unknown = arrays.keys() - FIELD_SET
+        if unknown:
+            raise TypeError(f"unknown PostBatch fields: {sorted(unknown)}")
+        out = object.__new__(PostBatch)
+        d = self.__dict__
+        out.__dict__.update({name: d[name] for name in FIELD_NAMES})
+        out.__dict__.update(arrays)
+        return out
 
     @staticmethod
     def concat(batches: list[PostBatch]) -> PostBatch:
@@ -273,6 +282,7 @@ class PostBatch:
 
 
 FIELD_NAMES = tuple(f.name for f in fields(PostBatch))
+FIELD_SET = frozenset(FIELD_NAMES)
 DEFAULTS = {f.name: f.metadata["default"] for f in fields(PostBatch)}
 DTYPES = {f.name: f.default_factory().dtype for f in fields(PostBatch)}  # type: ignore[misc]
 

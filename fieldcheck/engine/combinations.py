@@ -176,7 +176,13 @@ def _dense(b: PostBatch):
                 fac = lam_k[:, b.live_kind.astype(np.intp)]
         else:
             cl, cr = distinct(b.cd_l), distinct(b.cd_r)
-            if cl.shape[0] == 1 and cr.shape[0] == 1:  # one CD of live and rain for the block
+            cdt = cd_type.copy()
+            if cl.shape[0] == 1 and cr.shape[0] == 1:
+                cdt[1], cdt[4] = float(cl[0]), float(cr[0])
+            if cl.shape[0] == 1 and cr.shape[0] == 1 and not (cdt < cd_perm).any():
+                # one CD of live and rain for the block, none below permanent: row by row
+                fac = _asd_factors(coef, gts, cdt, cd_perm, n)
+            elif cl.shape[0] == 1 and cr.shape[0] == 1:  # one CD of live and rain for the block
                 pat = np.zeros(n, dtype=np.uint8)
                 for t in kinds:
                     pat |= np.left_shift(gts[t], t, dtype=np.uint8)
@@ -296,22 +302,57 @@ def _flat(slot: np.ndarray, n: int) -> np.ndarray:
 
 
 def _sum_rows(coef: np.ndarray, stack: list[np.ndarray]) -> np.ndarray:
-    """coef @ stack, (k, p) @ (p, n), as sums over the non-zero coefficients (no BLAS call)."""
+    """coef @ stack, (k, p) @ (p, n), as sums over the non-zero coefficients (no BLAS call),
+    term by term in the order of the types; a coefficient x load made once for every row that
+    has it, a coefficient of 1.0 not multiplied (x * 1.0 is x)."""
     k, n = coef.shape[0], stack[0].shape[0]
     out = np.empty((k, n))
+    scaled: dict[tuple[int, float], np.ndarray] = {}
     for j in range(k):
         row = out[j]
         terms = np.flatnonzero(coef[j])
         if not terms.size:
             row.fill(0.0)
         for m, t in enumerate(terms):
-            c = coef[j, t]
-            if m == 0:
-                np.multiply(stack[t], c, out=row)
-            elif c == 1.0:
-                row += stack[t]
+            c = float(coef[j, t])
+            if c == 1.0:
+                x = stack[t]
             else:
-                row += c * stack[t]
+                x = scaled.get((t, c))
+                if x is None:
+                    x = scaled[t, c] = c * stack[t]
+            if m == 0:
+                np.copyto(row, x)
+            else:
+                row += x
+    return out
+
+
+def _asd_factors(coef: np.ndarray, gts: dict, cdt: np.ndarray, cd_perm: float, n: int):
+    """(k, n): the CD of each ASD row for each post, NDS 2018 §2.3.2: the CD of the
+    shortest-duration load present in the row (``gts``: type -> load non-zero), permanent when
+    only dead load or nothing is. Worked out as max(permanent, CD of each load present) with no
+    CD below permanent (the caller's condition): a load of CD no larger than permanent, or of
+    no CD (wind, earthquake: NaN), changes nothing, and a row of none is permanent throughout."""
+    out = np.empty((coef.shape[0], n))
+    on: dict[int, np.ndarray] = {}  # type -> its CD where its load is non-zero, else 0
+    for j in range(coef.shape[0]):
+        row = out[j]
+        ts = [t for t in gts if coef[j, t] != 0 and cdt[t] > cd_perm]  # NaN compares False
+        if not ts:
+            row.fill(cd_perm)
+            continue
+        parts = []
+        for t in ts:
+            p = on.get(t)
+            if p is None:
+                p = on[t] = np.multiply(gts[t], cdt[t])
+            parts.append(p)
+        np.maximum(parts[0], cd_perm if len(parts) == 1 else parts[1], out=row)
+        for p in parts[2:]:
+            np.maximum(row, p, out=row)
+        if len(parts) > 1:
+            np.maximum(row, cd_perm, out=row)
     return out
 
 

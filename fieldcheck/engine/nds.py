@@ -119,7 +119,12 @@ def bearing_area_factor(
     ok = eligible & (lb_mm < CB_MAX_LB_MM) & (lb_mm > 0)
     if cb is None:
         cb = bearing_area_ratio(lb_mm)
-    return np.where(ok, cb, 1.0)
+    # where(ok, cb, 1.0) without numpy's slow pick on a mixed mask: where ok, cb is finite and
+    # at least 1 (lb > 0), so max(cb, 1) is cb; elsewhere 0 x cb is 0 or NaN (lb 0 or NaN) and
+    # fmax passes over NaN: 1
+    with np.errstate(invalid="ignore"):  # 0 x inf where lb is 0
+        out = np.multiply(ok, cb)
+        return np.fmax(out, 1.0, out=out)
 
 
 def bearing_area_ratio(lb_mm: np.ndarray) -> np.ndarray:
