@@ -858,12 +858,14 @@ def _check_value(
         return value  # the common case: no message to build
     r = _range_text(kind, lo, hi)
     rng = f" (accepted range: {r})" if r else ""
+    # the example given is inside the accepted range (the unit's own, e.g. 10 ft, may not be)
+    ex = _in_range_example(kind, lo, hi) if r else None
     if not math.isfinite(value):
-        raise _fail(kind, field, text, f"{what}is not a finite number", rng=rng)
+        raise _fail(kind, field, text, f"{what}is not a finite number", suggestion=ex, rng=rng)
     if positive and value <= 0:
-        raise _fail(kind, field, text, f"{what}must be greater than zero", rng=rng)
+        raise _fail(kind, field, text, f"{what}must be greater than zero", suggestion=ex, rng=rng)
     if nonnegative and value < 0:
-        raise _fail(kind, field, text, f"{what}must not be negative", rng=rng)
+        raise _fail(kind, field, text, f"{what}must not be negative", suggestion=ex, rng=rng)
     if kind.name == "temperature" and value < -273.15:
         raise _fail(kind, field, text, f"{what}is below absolute zero", rng=rng)
     if (lo is not None and value < lo) or (hi is not None and value > hi):
@@ -907,6 +909,8 @@ def _parse_checked(
             }.get(kind_name)
         r_text = _range_text(kind, lo, hi)
         rng = f" (accepted range: {r_text})" if r_text else ""
+        if suggestion is None and r_text:  # an example inside the range, as for a bad value
+            suggestion = _in_range_example(kind, lo, hi)
         raise _fail(kind, field, text, r.reason, suggestion, rng) from None
     except TypeError:  # unhashable, e.g. a list
         raise _fail(kind, field, text, "is not text") from None
