@@ -120,8 +120,8 @@ def rate(b: PostBatch, keep: tuple[str, ...] = ()) -> Rating:
 
 def _at_combination(blk: PostBatch, combo: np.ndarray) -> tuple[Later, Later]:
     """A check's demand and duration factor in a block where combinations ran, both made when
-    first read, from the check's combination (combinations.load_at): a large batch's checks
-    keep four full-length arrays fewer each, and their page faults."""
+    first read, from the check's combination (combinations.load_at): two full-length arrays
+    fewer for each such check of a large batch, and their page faults."""
     got: list = []
 
     def pair() -> tuple[np.ndarray, np.ndarray]:
