@@ -218,14 +218,17 @@ class VisitTable:
         return self.total_rows
 
     def counts_by_action(self, text: str = "") -> dict[str, int]:
-        """{action label: posts}, of those the filter ``text`` keeps."""
+        """{action label: posts}, of those the filter ``text`` keeps. A post not rated because
+        its load is missing (action 4) and one with no rating (field errors) share the label
+        "not rated": both are counted under it."""
         where, _ = self._hits(text)
-        return {
-            action_label(a): n
-            for a, n in self.conn.execute(
-                f"SELECT action, count(*) FROM visit_posts{where} GROUP BY 1"
-            )
-        }
+        out: dict[str, int] = {}
+        for a, n in self.conn.execute(
+            f"SELECT action, count(*) FROM visit_posts{where} GROUP BY 1"
+        ):
+            label = action_label(a)
+            out[label] = out.get(label, 0) + n
+        return out
 
     def _order(self, sort: str, hits: int) -> str:
         """ORDER BY for ``sort``: along its index, unless a filter keeps few posts (then

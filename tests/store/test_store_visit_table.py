@@ -84,3 +84,22 @@ def test_refresh_sees_a_conflict_made_since(log, shore):
         assert flagged == {"P2"} and log.conflicts() == [p2.member_id]
     finally:
         vt.close()
+
+
+def test_counts_hold_every_post_not_rated_load_missing_and_field_errors_alike(log, shore):
+    # a post with no load (action 4) and one saved with a field error (no rating) are both
+    # "not rated": the visit's counts add up to its posts (judgement: a post nobody could rate
+    # is never left out of the count the inspector reads)
+    res = log.import_rows(_posts(shore, 3), "Site", "Visit")
+    no_load = {k: v for k, v in shore.items() if k != "load"}
+    log.save_post(res.visit.id, {**no_load, "tag": "N1"})
+    log.save_post(res.visit.id, {**shore, "tag": "E1", "height": "tall"}, allow_errors=True)
+    log.save_post(res.visit.id, {**shore, "tag": "E2", "height": "tall"}, allow_errors=True)
+    vt = VisitTable(log.path, res.visit.id, {})
+    try:
+        counts = vt.counts_by_action()
+        assert counts["not rated"] == 3
+        assert sum(counts.values()) == vt.total() == 6
+        assert counts == {k: n for k, n in log.counts_by_action(res.visit.id).items() if n}
+    finally:
+        vt.close()
