@@ -28,7 +28,7 @@ from fieldcheck.engine.cautions import CAUTIONS
 from fieldcheck.engine.ec5_rating import clause_for
 from fieldcheck.engine.loads import combination_name
 from fieldcheck.engine.rating import detail
-from fieldcheck.engine.result import ACTION_TEXT, ACTIONS, DUE_DAYS
+from fieldcheck.engine.result import ACTION_TEXT, ACTIONS, DUE_DAYS, NOT_RATED
 from fieldcheck.engine.spring_ends import SPRING_MODE
 from fieldcheck.report.model import PostEntry, ReportData, ReportInfo, gather, visit_date
 from fieldcheck.report.notation import notation, sig, symbols
@@ -173,13 +173,12 @@ def _cover(d: ReportData) -> str:
         f"<td>{e(LEVEL_TEXT.get(v.level, v.level))}</td><td>{e(', '.join(v.instruments))}</td></tr>"
         for v in d.visits
     )
-    counts: dict[int | None, int] = {}
+    # a post with field errors (no action) and one with no load are both not rated: one count
+    counts: dict[int, int] = {}
     for p in d.posts:
-        counts[p.action] = counts.get(p.action, 0) + 1
-    count_txt = ", ".join(
-        f"{badge(a)} {n}"
-        for a, n in sorted(counts.items(), key=lambda t: -1 if t[0] is None else t[0])
-    )
+        a = NOT_RATED if p.action is None else p.action
+        counts[a] = counts.get(a, 0) + 1
+    count_txt = ", ".join(f"{badge(a)} {n}" for a, n in sorted(counts.items()))
     return (
         '<section id="cover"><h1>Survey report</h1>'
         f'<table class="titleblock"><tbody>{block}</tbody></table>'
@@ -380,7 +379,8 @@ def _open_actions(d: ReportData) -> str:
     else:
         rows = []
         for p in open_:
-            ratio = p.ratio
+            # a record with field errors was never rated: its load may well be given
+            ratio = "field errors" if p.action is None else ratio_text(p.ratio)
             what = (
                 ACTION_TEXT[p.action]
                 if p.action is not None
@@ -388,7 +388,7 @@ def _open_actions(d: ReportData) -> str:
             )
             rows.append(
                 f"<tr><td>{_where(p)}</td><td>{badge(p.action)}</td>"
-                f"<td class='num'>{e(ratio_text(ratio))}</td><td>{e(due_text(p))}</td>"
+                f"<td class='num'>{e(ratio)}</td><td>{e(due_text(p))}</td>"
                 f"<td>{e(what)}</td></tr>"
             )
         out.append(table(["Post", "Action", "num:Ratio", "Due", "What to do"], "".join(rows)))

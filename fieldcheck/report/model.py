@@ -287,7 +287,7 @@ def _rate_chunk(log, records: list[dict], meta_out: list, errs_out: dict, base: 
     each row into it, remedies, heights, caps)."""
     parsed, rating = log.rate_records(records)
     for e in parsed.errors:
-        errs_out.setdefault(base + e.row, []).append(f"{e.column}: {e.message}")
+        errs_out.setdefault(base + e.row, []).append(e.sentence())  # the column named once
     meta_out.extend(parsed.meta)
     if rating is None:
         return None, {}, None, None, None

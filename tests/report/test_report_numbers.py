@@ -160,3 +160,28 @@ def test_report_summary_equals_rating_summary(demo_log):
         ):
             assert p.summary.get(key) == full.get(key), (p.tag, key)
     assert any(p.summary["remedies"] for p in data.posts)  # S4 (demo) has options
+
+
+def test_posts_not_rated_are_one_count_and_a_record_with_errors_is_not_said_to_lack_a_load(
+    empty_log,
+):
+    # judgement: a post nobody could rate, for field errors or for want of a load, is "not
+    # rated" once on the cover (never two counts of the same badge); a record with a field error
+    # may hold its load, so its open action names the errors, each column named once
+    site = empty_log.add_site("Site")
+    v = empty_log.add_visit(site.id, "tester")
+    base = {"size": "4x4", "height": "8ft", "species": "spf", "grade": "no2"}
+    bad = {"tag": "E1", **base, "height": "tall", "load": "4kip"}
+    empty_log.save_post(v.id, bad, allow_errors=True)
+    empty_log.save_post(v.id, {"tag": "N1", **base}, allow_errors=True)
+    empty_log.save_post(v.id, {"tag": "R1", **base, "load": "1kip"})
+    out = render_report(empty_log)
+    cover = out[: out.index('id="client"')]
+    assert cover.count("NOT RATED") == 1 and "NOT RATED</span> 2" in cover
+    sec = out[out.index('id="actions"') : out.index('id="conflicts"')]
+    e1 = sec[sec.index(">E1<") :]
+    e1 = e1[: e1.index("</tr>")]
+    assert "field errors" in e1 and "no load given" not in e1
+    assert "height: height" not in out and "height:" in e1
+    n1 = sec[sec.index(">N1<") :]
+    assert "no load given" in n1[: n1.index("</tr>")]
