@@ -11,7 +11,8 @@ Schema version 1 (``SCHEMA_VERSION``), in this order:
   not read).
 - ``notes``: as typed.
 - ``state``: ``rated``, ``not rated: load missing`` or ``not rated`` (no stored rating).
-- ``action``: no-action, monitor, repair-or-brace, make-safe-now, not-rated.
+- ``action``: no-action, monitor, repair-or-brace, make-safe-now, not-rated (both states not
+  rated).
 - ``due_date``: visit date + the action's interval (blank: no deadline, or not rated).
 - ``ratio`` (3 decimals), ``capacity_lbf``/``capacity_kN``, ``demand_lbf``/``demand_kN``.
 - ``governing``: the governing check's key (``column``, ``end_bearing``, ...).
@@ -182,7 +183,8 @@ def rows(
         if act == NOT_RATED:
             out = ("not rated: load missing", ACTIONS[NOT_RATED], None)
         elif act is None or not 0 <= act < NOT_RATED:  # no rating, or a code unknown here
-            out = ("not rated", None, None)
+            # never a blank action a spreadsheet's filter reads as nothing to do (judgement)
+            out = ("not rated", ACTIONS[NOT_RATED], None)
         elif DUE_DAYS[act] is None or not day:
             out = ("rated", ACTIONS[act], None)
         else:

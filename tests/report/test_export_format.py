@@ -152,3 +152,19 @@ def test_json_posts_are_what_the_json_module_writes():
     for r in data:
         assert json.dumps(dict(zip(cols, r, strict=True)), ensure_ascii=False) in text
     assert json.loads(text)["posts"][0]["e"] == data[0][4]
+
+
+def test_a_post_with_field_errors_is_not_rated_in_the_action_column_too(empty_log, capsys):
+    # judgement: a post saved with a field error has no rating; its action is "not-rated",
+    # never blank (a spreadsheet filter on the action would pass a blank as nothing to do)
+    v = empty_log.add_visit(empty_log.add_site("S").id, "R. Okafor", name="V")
+    base = {"size": "4x4", "height": "8ft", "species": "spf", "grade": "no2", "load": "1kip"}
+    empty_log.save_post(v.id, {"tag": "E0", **base, "height": "tall"}, allow_errors=True)
+    for fmt in ("csv", "json"):
+        if fmt == "csv":
+            rows = {r["tag"]: r for r in _csv(capsys, ["export", "--db", str(empty_log.path)])}
+        else:
+            assert main(["export", "--db", str(empty_log.path), "--format", "json"]) == 0
+            rows = {p["tag"]: p for p in json.loads(capsys.readouterr().out)["posts"]}
+        assert (rows["E0"]["state"], rows["E0"]["action"]) == ("not rated", "not-rated")
+        assert rows["E0"]["due_date"] in ("", None) and rows["E0"]["ratio"] in ("", None)
