@@ -120,6 +120,8 @@ def test_batch_rates_good_rows_and_names_bad_ones(tmp_path, capsys):
         4665.1, abs=0.05
     )  # worked example A
     assert rows[1]["error"].startswith("height:") and rows[1]["allowable_load_lbf"] == ""
+    # judgement: a row not read is not rated, never a blank action
+    assert rows[1]["action"] == "not-rated" and rows[1]["demand_capacity_ratio"] == ""
     assert float(rows[2]["allowable_load_lbf"]) == pytest.approx(
         20918.2, abs=0.1
     )  # worked example B

@@ -234,6 +234,10 @@ def _run_batch(args: argparse.Namespace) -> int:
     for err in parsed.errors:
         errors_by_row.setdefault(err.row, []).append(err.sentence())
 
+    # a row with a field error is not rated: its action says so, never blank (judgement: a
+    # spreadsheet filter on the action passes a blank as nothing to do)
+    unrated = ["not-rated" if k == "action" else "" for k in RESULT_COLUMNS[:-1]]
+
     def write(out) -> None:
         w = csv.writer(out)
         w.writerow(fieldnames + list(RESULT_COLUMNS))
@@ -244,7 +248,7 @@ def _run_batch(args: argparse.Namespace) -> int:
                 w.writerow(base + [results[k][j] for k in RESULT_COLUMNS[:-1]] + [""])
                 j += 1
             else:
-                w.writerow(base + [""] * (len(RESULT_COLUMNS) - 1) + ["; ".join(errors_by_row[i])])
+                w.writerow(base + unrated + ["; ".join(errors_by_row[i])])
 
     if args.out and args.out != "-":
         write_atomically(args.out, write)
