@@ -13,6 +13,7 @@ RESULT_COLUMNS = (
     "allowable_load_kN",
     "demand_capacity_ratio",
     "governing_check",
+    "governing_combination",
     "action",
     "effective_length_factor",
     "slenderness_ratio",

@@ -37,6 +37,24 @@ def _fmt(a: np.ndarray, nd: int) -> list[str]:
     return ["" if np.isnan(x) else f"{x:.{nd}f}" for x in a.tolist()]
 
 
+def governing_combinations(r: Rating) -> list[str]:
+    """The load combination of each post's governing check (every ASCE 7 combination is rated
+    for every check, engine/combinations.py), as --json's governing_combination; blank where
+    the post is not rated (no load)."""
+    from fieldcheck.engine.loads import combination_name
+
+    n = r.n
+    combo = np.full(n, -1, dtype=np.intp)
+    for k, c in enumerate(r.checks.values()):
+        at = np.flatnonzero(r.governing == k)
+        if at.size:
+            own = r.batch.combo if c.combo is None else c.combo
+            combo[at] = np.broadcast_to(np.asarray(own), (n,)).take(at)
+    names = {int(k): combination_name(int(k)) for k in np.unique(combo).tolist()}
+    rated = np.isfinite(r.ratio).tolist()
+    return [names[k] if ok else "" for k, ok in zip(combo.tolist(), rated, strict=True)]
+
+
 def result_columns(r: Rating, meta: Sequence[dict] = ()) -> dict[str, list[str]]:
     """Every result column of the rated posts (``meta``: parse_records' meta of each rated row,
     naming the table and the status of its values)."""
@@ -70,6 +88,7 @@ def result_columns(r: Rating, meta: Sequence[dict] = ()) -> dict[str, list[str]]
         "allowable_load_kN": _fmt(only(nds, r.capacity_n / 1000.0), 4),
         "demand_capacity_ratio": _fmt(r.ratio, 4),
         "governing_check": names[r.governing].tolist(),
+        "governing_combination": governing_combinations(r),
         "action": np.array(ACTIONS, dtype=object)[r.action].tolist(),
         "effective_length_factor": _fmt(only(nds, np.where(ax2, v["ke2"], v["ke1"])), 4),
         "slenderness_ratio": _fmt(only(nds, v["le_d_max"]), 3),

@@ -198,6 +198,35 @@ def test_batch_columns_agree_with_each_posts_json_over_the_corpus():
                     assert float(cell) == pytest.approx(want, rel=6e-5, abs=6e-5), j
             assert cols["action"][j] == s["action"], j
             assert cols["governing_check"][j] == s["governing_check"], j
+            rated = s["demand_capacity_ratio"] is not None
+            assert cols["governing_combination"][j] == (
+                s["governing_combination"] if rated else ""
+            ), j
             assert cols["warnings"][j] == " | ".join(s["warnings"]), j
             assert cols["material"][j] == parsed.meta[j].get("_material", ""), j
     assert r.n > 1000
+
+
+def test_each_row_names_its_governing_load_combination(tmp_path, capsys):
+    # every ASCE 7 combination is rated for every check (ASCE 7-16 §2.4.1, NDS 2018 §2.3.2):
+    # 4x4 DF-L No.2, 11 ft, 45 sq ft under 55 psf dead and 20 psf roof live: D+Lr at CD 1.25
+    # governs the column (computed by hand: D alone 2,475 lbf / F'c A at CD 0.9 gives a lower
+    # ratio than 3,375 lbf at CD 1.25); a load given directly is "the load as given", and a post
+    # with no load names none
+    src = tmp_path / "in.csv"
+    src.write_text(
+        "tag,size,height,species,grade,tributary,dead,roof_live,load\n"
+        "C1,4x4,11ft,dfl,no2,45sqft,55psf,20psf,\n"
+        "G1,4x4,11ft,dfl,no2,,,,2kip\n"
+        "N1,4x4,11ft,dfl,no2,,,,\n"
+    )
+    out = tmp_path / "out.csv"
+    assert main(["rate", "--batch", str(src), "--out", str(out)]) == 0
+    capsys.readouterr()
+    rows = {r["tag"]: r for r in csv.DictReader(out.open())}
+    assert rows["C1"]["governing_check"] == "column"
+    assert rows["C1"]["governing_combination"] == "D+Lr"
+    assert rows["G1"]["governing_combination"] == _json(
+        capsys, ["G1", "", "", "", "11ft", "2kip", "4x4", "dfl", "no2"]
+    )["governing_combination"]
+    assert rows["N1"]["action"] == "not-rated" and rows["N1"]["governing_combination"] == ""
