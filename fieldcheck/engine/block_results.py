@@ -118,6 +118,7 @@ class BlockResults:
             else:
                 a[sl] = src(sl)
         self.done[key] = a
+        self.parts.pop(key, None)  # made: what the blocks left (a Later's arrays) can go
         return a
 
 
