@@ -1,12 +1,24 @@
 """Files the commands write (results, exports): written beside the target, then renamed, so a
-full disk or a kill never leaves half a file under the name the user gave."""
+full disk or a kill never leaves half a file under the name the user gave. A target that is a
+device or a pipe (``--out /dev/null``) is written as it is: never renamed over."""
 
 from __future__ import annotations
 
 import contextlib
 import os
+import stat
 from collections.abc import Callable
 from pathlib import Path
+
+
+def not_a_file(path: Path) -> bool:
+    """True where ``path`` exists and is a device or a pipe (``/dev/null``, a FIFO): a rename
+    over it would replace the device itself (as root, /dev/null with a plain file)."""
+    try:
+        mode = os.stat(path).st_mode
+    except OSError:
+        return False
+    return not (stat.S_ISREG(mode) or stat.S_ISDIR(mode))
 
 
 def write_atomically(path: str | Path, write: Callable, *, encoding: str = "utf-8") -> None:
@@ -16,6 +28,13 @@ def write_atomically(path: str | Path, write: Callable, *, encoding: str = "utf-
     from fieldcheck.store.faults import os_sentence
 
     target = Path(path)
+    if not_a_file(target):  # /dev/null, a pipe: written as it is, never renamed over
+        try:
+            with open(target, "w", newline="", encoding=encoding) as fh:
+                write(fh)
+        except OSError as exc:
+            raise UsageError(os_sentence(exc, target)) from None
+        return
     tmp = target.with_name(f".{target.name}.{os.getpid()}.part")
     try:
         try:

@@ -933,6 +933,11 @@ def write_report(
         sys.stdout.flush()
         return Path("-")
     path = Path(path).expanduser()
+    if _not_a_file(path):  # /dev/null, a pipe: written as it is, never renamed over
+        with open(path, "w", encoding="utf-8", newline="\n") as fh:
+            for part in parts:
+                fh.write(part)
+        return path
     fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".part", dir=path.parent or ".")
     try:
         os.chmod(tmp, 0o666 & ~_umask())
@@ -946,6 +951,18 @@ def write_report(
         Path(tmp).unlink(missing_ok=True)
         raise
     return path
+
+
+def _not_a_file(path: Path) -> bool:
+    """True where ``path`` exists and is a device or a pipe (``/dev/null``, a FIFO): renaming
+    the finished file over it would replace the device itself (as root, /dev/null)."""
+    import stat
+
+    try:
+        mode = os.stat(path).st_mode
+    except OSError:
+        return False
+    return not (stat.S_ISREG(mode) or stat.S_ISDIR(mode))
 
 
 def _umask() -> int:
