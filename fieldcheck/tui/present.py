@@ -114,7 +114,12 @@ def sig_text(text: str, digits: int = 4) -> str:
 
     global _NUMBER
     if _NUMBER is None:
-        _NUMBER = re.compile(r"(?<![\w.])(\d{1,3}(?:,\d{3})+|\d+)(\.\d+)?(?![\w.]|e[+-]?\d)")
+        # a standard's number (EN 14081-1, EN 14080:2013, 24 CFR 3285.202) is a name, not a
+        # value: never grouped or rounded
+        _NUMBER = re.compile(
+            r"(?<![\w.])(?<!EN )(?<!ISO )(?<!CFR )(?<!ASTM )"
+            r"(\d{1,3}(?:,\d{3})+|\d+)(\.\d+)?(?![\w.]|e[+-]?\d)"
+        )
 
     def one(m: re.Match[str]) -> str:
         whole, frac = m.group(1), m.group(2) or ""

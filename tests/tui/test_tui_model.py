@@ -60,6 +60,10 @@ def test_working_values_keep_three_or_four_significant_figures():
     assert present.sig_text("2757.903 MPa (400,000.0 psi)") == "2,758 MPa (400,000 psi)"
     assert present.sig_text("Cp = 0.871659") == "Cp = 0.8717"
     assert present.sig_text("NDS 2018 §3.7.1") == "NDS 2018 §3.7.1"  # clauses untouched
+    # a standard's number is a name (common practice, no source): never '14,081'
+    for name in ("C24, solid timber (EN 14081-1)", "GL24h (EN 14080)", "EN 14080:2013 Table 5"):
+        assert present.sig_text(name) == name
+    assert present.sig_text("24 CFR 3285.202(e)") == "24 CFR 3285.202(e)"
     assert present.sig(12.34567) == "12.35"
 
 
