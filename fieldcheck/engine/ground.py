@@ -191,8 +191,17 @@ def ground_summary(r: Rating, i: int) -> dict | None:
     cap = float(v["soil_capacity"][i])
     c = r.checks["soil_bearing"]
     q = float(b.soil_kpa[i])
+    # a pad of unknown thickness is taken as rigid: the check is made, but not relied on (the
+    # pad_rigid flag, repair level; judgement, see FLAGS)
+    rigid = has_pad and np.isnan(b.pad_t_mm[i])
     return {
-        "soil_check": "not verified" if np.isnan(cap) else "verified",
+        "soil_check": (
+            "not verified"
+            if np.isnan(cap)
+            else "not relied on: pad thickness not given"
+            if rigid
+            else "verified"
+        ),
         "allowable_psf": None if np.isnan(q) else round(q / PSF, 0),
         "allowable_kPa": None if np.isnan(q) else round(q, 3),
         "pad_area_ft2": None if not has_pad else round(float(b.pad_area_mm2[i]) / FT2, 3),

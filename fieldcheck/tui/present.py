@@ -226,13 +226,18 @@ def head_lines(
 
 def check_lines(summary: dict[str, Any] | None) -> list[str]:
     out = ["[b]Checks[/b] (ratio, clause)"]
+    ground = (summary or {}).get("ground") or {}
+    soil = ground.get("soil_check", "verified")
     for c in (summary or {}).get("checks") or []:
         r = c.get("ratio")
-        # no ratio (no load: not rated) is never a tick
-        mark = "?" if r is None or r != r else ("✖" if r > 1.0 else "✓")
+        # no ratio (no load: not rated) is never a tick; nor a check made on an assumed input
+        # that the rating does not rely on (a pad of unknown thickness taken as rigid)
+        doubt = c.get("name") == "soil_bearing" and soil != "verified"
+        mark = "?" if r is None or r != r else ("✖" if r > 1.0 else "?" if doubt else "✓")
+        note = f"; {soil}" if doubt else ""
         out.append(
             f" {mark} {ratio_text(r)} {escape(c.get('label', c.get('name', '')))} "
-            f"({escape(c.get('clause', ''))})"
+            f"({escape(c.get('clause', ''))}{escape(note)})"
         )
     return out
 

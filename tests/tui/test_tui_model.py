@@ -177,6 +177,25 @@ def test_a_check_with_no_ratio_is_never_ticked():
     assert [ln.split()[0] for ln in lines] == ["?", "?", "✓", "✖"]
 
 
+def test_a_soil_check_on_a_pad_of_unknown_thickness_is_never_ticked():
+    # judgement (engine/ground.py): a pad with no thickness is taken as rigid and the soil check
+    # is not relied on (the action is raised to repair); a tick beside it would read as safe
+    from fieldcheck.engine import explain
+    from fieldcheck.records import rate_records
+
+    post = {"size": "4x4", "height": "8ft", "species": "dfl", "grade": "no2", "load": "4kip"}
+    post |= {"pad": "2ft x 2ft", "soil": "clay"}
+    r, _ = rate_records([post, {**post, "pad_thickness": "12in"}])  # spreads over the pad
+    rigid, given = explain.summary(r, 0), explain.summary(r, 1)
+    assert rigid["ground"]["soil_check"].startswith("not relied on")
+    assert given["ground"]["soil_check"] == "verified"
+    assert rigid["action"] == "repair-or-brace"
+    soil = [ln for ln in present.check_lines(rigid) if "soil" in ln]
+    assert soil and soil[0].split()[0] == "?" and "pad thickness not given" in soil[0]
+    soil = [ln for ln in present.check_lines(given) if "soil" in ln]
+    assert soil and soil[0].split()[0] == "✓"
+
+
 def test_an_empty_field_with_a_default_says_it_is_the_default():
     # "1/2 in" alone in an empty field read as a value typed; the hint says "(default)"
     row = form.field_row(COLUMNS["decay_margin"], "")
