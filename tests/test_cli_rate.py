@@ -169,3 +169,26 @@ def test_bare_fieldcheck_help_never_a_traceback(capsys):
     assert main(["--help"]) == 0
     assert main(["rate", "--help"]) == 0
     assert "Traceback" not in capsys.readouterr().err
+
+
+def test_ignored_columns_are_carried_through_to_the_results(tmp_path, capsys):
+    # judgement: --ignore-unknown-columns leaves a column out of the rating, never out of what
+    # the user keeps: the results carry it unread, so even written over its input nothing is lost
+    src = tmp_path / "in.csv"
+    src.write_text(
+        "tag,Photo Ref,size,height,species,grade,load\n"
+        "A,IMG_0042,4x4,8ft,dfl,no2,4kip\n"
+        "B,IMG_0043,4x4,tall,dfl,no2,4kip\n"
+    )
+    args = ["rate", "--batch", str(src), "--ignore-unknown-columns"]
+    assert main([*args, "--out", str(src)]) == 1  # row B has a field error
+    assert "carried through" in capsys.readouterr().err
+    rows = list(csv.DictReader(src.open()))
+    assert [r["Photo Ref"] for r in rows] == ["IMG_0042", "IMG_0043"]
+    assert rows[0]["action"] == "no-action" and rows[1]["action"] == "not-rated"
+    # read again, the carried column is ignored again (and carried again), the old results
+    # left out and written anew
+    assert main([*args, "--out", str(tmp_path / "again.csv")]) == 1
+    again = list(csv.DictReader((tmp_path / "again.csv").open()))
+    assert [r["Photo Ref"] for r in again] == ["IMG_0042", "IMG_0043"]
+    assert list(again[0]).count("action") == 1

@@ -65,8 +65,9 @@ def add_csv_options(p: argparse.ArgumentParser) -> None:
     )
 
 
-def open_posts(args: argparse.Namespace, path: str):
-    """The CSV file of posts, header checked (a problem is a UsageError: one sentence, exit 2)."""
+def open_posts(args: argparse.Namespace, path: str, carried: bool = False):
+    """The CSV file of posts, header checked (a problem is a UsageError: one sentence, exit 2).
+    ``carried``: the ignored columns are written beside the results (rate --batch)."""
     from fieldcheck.commands.usage import UsageError
     from fieldcheck.records.csv_file import CsvProblem
     from fieldcheck.records.csv_file import open_posts as _open
@@ -82,18 +83,25 @@ def open_posts(args: argparse.Namespace, path: str):
     if table.ignored:
         print(
             f"fieldcheck: left out the columns {', '.join(table.ignored)} of {path} "
-            "(--ignore-unknown-columns).",
+            "(--ignore-unknown-columns)"
+            + ("; carried through unread to the results." if carried else "."),
             file=sys.stderr,
         )
     return table
 
 
-def read_all(table) -> list[dict[str, str]]:
-    """Every row (a CsvProblem on a later line is a UsageError too)."""
+def read_all_with_ignored(table) -> tuple[list[dict[str, str]], list[list[str]]]:
+    """Every row and the cells of its ignored columns (--ignore-unknown-columns), which a
+    results file carries through unread (a CsvProblem on a later line is a UsageError too)."""
     from fieldcheck.commands.usage import UsageError
     from fieldcheck.records.csv_file import CsvProblem
 
+    rows: list[dict[str, str]] = []
+    extras: list[list[str]] = []
     try:
-        return list(table)
+        for row, extra in table.with_ignored():
+            rows.append(row)
+            extras.append(extra)
     except CsvProblem as exc:
         raise UsageError(str(exc)) from None
+    return rows, extras

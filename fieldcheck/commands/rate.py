@@ -212,13 +212,16 @@ def _text(s: dict, system: str) -> str:
 
 
 def _run_batch(args: argparse.Namespace) -> int:
-    from fieldcheck.commands.csv_option import open_posts, read_all
+    from fieldcheck.commands.csv_option import open_posts, read_all_with_ignored
     from fieldcheck.commands.out_file import write_atomically
     from fieldcheck.records import parse_records
     from fieldcheck.report.batch_csv import KEEP, result_columns
 
-    with open_posts(args, args.batch) as table:
-        rows = read_all(table)
+    with open_posts(args, args.batch, carried=True) as table:
+        # the columns --ignore-unknown-columns leaves out of the rating are the user's: carried
+        # through to the results unread, so nothing is lost (even written over the input)
+        rows, extras = read_all_with_ignored(table)
+        ignored = list(table.ignored)
         # a file fieldcheck wrote before (a rated batch, an export): its old results are left
         # out, the new ones written once; the columns naming the post are kept
         old = {*derived_columns(keep=IDENTIFYING), *RESULT_COLUMNS}
@@ -240,10 +243,10 @@ def _run_batch(args: argparse.Namespace) -> int:
 
     def write(out) -> None:
         w = csv.writer(out)
-        w.writerow(fieldnames + list(RESULT_COLUMNS))
+        w.writerow(fieldnames + ignored + list(RESULT_COLUMNS))
         j = 0
         for i, row in enumerate(rows):
-            base = [row.get(k, "") for k in fieldnames]
+            base = [row.get(k, "") for k in fieldnames] + extras[i]
             if parsed.ok[i]:
                 w.writerow(base + [results[k][j] for k in RESULT_COLUMNS[:-1]] + [""])
                 j += 1

@@ -113,6 +113,7 @@ class PostsFile:
             )
         self._keep: list[tuple[int, str]] = []  # (cell index, column name)
         self.ignored: list[str] = []
+        self._ignored_at: list[int] = []  # their cell indices
         self._unnamed: list[int] = []
         seen: dict[str, str] = {}
         unknown: list[str] = []
@@ -131,6 +132,7 @@ class PostsFile:
                 self._keep.append((i, known[key]))
             elif ignore_unknown:
                 self.ignored.append(raw.strip())
+                self._ignored_at.append(i)
             else:
                 unknown.append(raw.strip())
         if unknown:
@@ -177,6 +179,17 @@ class PostsFile:
         for cells in self._cells():
             n = len(cells)
             yield {k: (cells[i] if i < n else "") for i, k in keep}
+
+    def with_ignored(self) -> Iterator[tuple[dict[str, str], list[str]]]:
+        """Each row as iterating gives it, with the cells of the ignored columns (``ignored``,
+        in their order): what a results file carries through unread."""
+        keep, extra = self._keep, self._ignored_at
+        for cells in self._cells():
+            n = len(cells)
+            yield (
+                {k: (cells[i] if i < n else "") for i, k in keep},
+                [cells[i] if i < n else "" for i in extra],
+            )
 
     def records(self, drop: Collection[str] = ()) -> Iterator[dict[str, str]]:
         """The rows as a survey log keeps a record: blank cells (not given) and the columns in
