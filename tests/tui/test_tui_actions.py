@@ -157,6 +157,9 @@ async def test_working_and_plot_agree_with_the_rating(db, ui) -> None:
         await pilot.press("f3")
         await ui.settle(app, pilot)
         working = ui.text(app, "#working-panel")
+        # the governing check by its label, as a person reads it, never its key
+        gov = editor.rating.governing_name(0)
+        assert f"Governing check: [b]{editor.rating.checks[gov].label}[/b]" in working
         # said where a value was recalled (a clause marked [M], a reference value from memory)
         steps = explain.working(editor.rating, 0)
         recalled = "[M]" in "".join(s.clause or "" for s in steps) or any(

@@ -236,3 +236,4 @@ def test_a_eurocode_post_is_enterable_from_the_form_edition_and_glulam_included(
     # a glulam class with an EN 338 edition is refused at the edition field, in one sentence
     parsed = parse_records([{**post, "class": "GL24h", "en338_edition": "2016"}])
     assert [e.column for e in parsed.errors] == ["en338_edition"]
+
