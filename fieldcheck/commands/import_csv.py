@@ -50,6 +50,7 @@ def run(args: argparse.Namespace) -> int:
         )
     from fieldcheck.commands.progress import counted, progress_bar
     from fieldcheck.config import load
+    from fieldcheck.engine.result import ACTIONS
     from fieldcheck.records.csv_file import CsvProblem
 
     # what fieldcheck itself wrote beside the records (an export's or a rated batch's columns:
@@ -83,6 +84,8 @@ def run(args: argparse.Namespace) -> int:
                 "visit": result.visit.name,
                 "read": result.read,
                 "imported": result.imported,
+                # the imported posts by action, not rated (load missing) included
+                "actions": dict(zip(ACTIONS, result.actions, strict=True)),
                 "errors": [
                     {"row": e.row + 1, "column": e.column, "message": e.message}
                     for e in result.errors
@@ -98,4 +101,18 @@ def run(args: argparse.Namespace) -> int:
             f"{result.visit.name!r} ({log.path})"
             + (f"; {bad} rows left out, correct them and import those rows again." if bad else ".")
         )
+        # what needs attention, worst first: a post not rated is never passed over in silence
+        n = result.actions
+        said = [
+            f"{n[a]} {word}"
+            for a, word in (
+                (4, "not rated (load missing: give it)"),
+                (3, "make safe now"),
+                (2, "repair or brace"),
+                (1, "monitor"),
+            )
+            if n[a]
+        ]
+        if said:
+            print("Of those: " + ", ".join(said) + " (fieldcheck report or export lists them).")
     return 0 if not result.errors else 1

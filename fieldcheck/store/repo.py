@@ -16,6 +16,7 @@ import os
 import shutil
 import sqlite3
 import threading
+from collections import Counter
 from collections.abc import Iterable, Iterator, Mapping, Sequence
 from dataclasses import dataclass, field
 from itertools import repeat
@@ -222,6 +223,8 @@ class ImportResult:
     site: Site
     visit: Visit
     read: int = 0  # rows read (imported + left out)
+    # imported posts by action (0 no action .. 4 not rated: load missing): what needs attention
+    actions: tuple[int, ...] = (0, 0, 0, 0, 0)
 
 
 @dataclass(frozen=True)
@@ -948,6 +951,7 @@ class Log:
         cache: dict = {}
         errors: list[RowError] = []
         read = imported = 0
+        actions: dict[int, int] = {}
         # every id written refers to the site, visit and stamp found or made here, or to the
         # members and revisions written just before it: no per-row foreign-key check
         with self._write(refs_made_here=True), _cyclic_gc_paused():
@@ -1015,9 +1019,13 @@ class Log:
                             repeat(created),
                         ),
                     )
+                    for a, n in Counter(result.columns[_ACTION_AT]).items():
+                        actions[a] = actions.get(a, 0) + n
                 read += len(records)
                 imported += k
-        return ImportResult(imported, errors, s, v, read)
+        return ImportResult(
+            imported, errors, s, v, read, tuple(actions.get(a, 0) for a in range(5))
+        )
 
     def export_rows(self, visit_id: str | None = None) -> ExportTable:
         """Current posts as flat rows, all in memory (see ``export_iter`` for a large log)."""
@@ -1351,6 +1359,7 @@ _ATT_COLS = (
     *ORIGIN_COLS,
 )
 _EXPORT_ONLY = frozenset(EXPORT_ONLY_COLUMNS)
+_ACTION_AT = rated.RATING_COLUMNS.index("action")  # in RatedColumns.columns
 _RATING_SQL = (
     "SELECT r.*, s.data_editions FROM ratings r LEFT JOIN engine_stamps s ON s.id = r.stamp_id"
 )
