@@ -31,7 +31,9 @@ def _shape(bottom: str, top: str):
     return buckled_shape(bottom, top)
 
 
-def ends_drawing(top: str, bottom: str, ke: float | None = None, height: int = 9) -> str:
+def ends_drawing(
+    top: str, bottom: str, ke: float | None = None, height: int = 9, symbol: str = "Ke"
+) -> str:
     """Plain text (no markup), about 24 columns by height + 4 rows."""
     top = top if top in ENDS else "pinned"
     bottom = bottom if bottom in ENDS else "pinned"
@@ -54,7 +56,7 @@ def ends_drawing(top: str, bottom: str, ke: float | None = None, height: int = 9
     else:
         lines.append(shape[1])
     if ke is not None and math.isfinite(ke):
-        lines.append(f"Ke = {ke:.2f}  (┆ straight, • buckled)")
+        lines.append(f"{symbol} = {ke:.2f}  (┆ straight, • buckled)")
     else:
         lines.append("(┆ straight, • buckled)")
     return "\n".join(lines)

@@ -542,10 +542,15 @@ class PostEditor(ReleasesKeys, Screen[None]):
 
     def _render_shape(self) -> None:
         rec = self.record
-        ke = self.summary.get("effective_length_factor") if self.summary else None
+        s = self.summary or {}
+        ke, symbol = s.get("effective_length_factor"), "Ke"
+        if ke is None and s.get("buckling_length_factors"):  # EC5: beta, of the governing axis
+            ke, symbol = s["buckling_length_factors"][int(s.get("governing_axis") or 1) - 1], "β"
         self._update_static(
             self.query_one("#ends-panel", Static),
-            ends_drawing(rec.get("top") or "pinned", rec.get("bottom") or "pinned", ke, height=7),
+            ends_drawing(
+                rec.get("top") or "pinned", rec.get("bottom") or "pinned", ke, 7, symbol
+            ),
         )
         plot = self.query_one("#plot-panel", Static)
         if self.batch is None or self.rating is None or self.stale:
@@ -595,9 +600,12 @@ class PostEditor(ReleasesKeys, Screen[None]):
             if rems:
                 box.highlighted = 0
         ratio = (self.summary or {}).get("demand_capacity_ratio")
+        action = (self.summary or {}).get("action")
         lines = []
         if self.stale:
             lines.append("Not rated: fix the form first; remedies follow from a good rating.")
+        elif present.load_missing(self.summary):
+            lines.append("Not rated: load missing. Give the load to see what would make it pass.")
         elif rems:
             lines.append(
                 f"As found: ratio {present.ratio_text(ratio)}. Enter or ctrl+r proposes the "
@@ -606,6 +614,14 @@ class PostEditor(ReleasesKeys, Screen[None]):
         elif ratio is not None and ratio > 1.0:
             lines.append(
                 "No single change modelled makes this post pass: make it safe and ask the engineer."
+            )
+        elif ratio is not None and action in ("repair-or-brace", "make-safe-now"):
+            # the ratio passes, the action comes from a warning (decay, a pad of unknown
+            # thickness, ...): never "no remedy needed" beside a repair or make-safe action
+            lines.append(
+                f"The ratio passes ({present.ratio_text(ratio)}), but the action is "
+                f"{present.action_word(action)}: it comes from the warnings on the Rating tab "
+                "(F2); do what they say."
             )
         else:
             lines.append(

@@ -314,3 +314,40 @@ async def test_rating_pane_names_the_material_table_and_values_status(db, ui) ->
         assert f"Material: {meta['_material']}" in " ".join(panel.split())
         assert f"Values: {explain.status_line(summary)}" in " ".join(panel.split())
         assert meta["_values_status"] in panel
+
+
+async def test_remedies_and_shape_never_read_as_safe_when_the_action_says_otherwise(db, ui) -> None:
+    # judgement (issue 13 item 9): a post whose ratio passes but whose action is repair (a pad
+    # of unknown thickness) is never told "no remedy needed: the post passes"; a post with no
+    # load is told to give it; an EC5 post's shape names beta (EN 1995-1-1 §6.3.2), never Ke
+    app = ui.app(db)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await ui.settle(app, pilot)
+        visit = (await app.store.call(lambda log: log.posts()))[0].visit_id
+        post = {"size": "4x4", "height": "8ft", "species": "dfl", "grade": "no2", "load": "4kip"}
+        rows = {
+            "Q1": {**post, "pad": "2ft x 2ft", "soil": "clay"},
+            "Q2": {k: v for k, v in post.items() if k != "load"},
+            "Q3": {"section": "100mmx100mm", "height": "2.4m", "method": "ec5", "class": "C24"}
+            | {"load": "20kN"},
+        }
+        for tag, rec in rows.items():
+            await app.store.call(lambda log, t=tag, r=rec: log.save_post(visit, {"tag": t, **r}))
+        said = {}
+        for tag in rows:
+            await ui.edit_post(app, pilot, tag)
+            await pilot.press("f5")
+            await ui.settle(app, pilot, 0.2)
+            said[tag] = ui.text(app, "#remedy-help")
+            await pilot.press("f4")
+            await ui.settle(app, pilot)
+            said[tag + "shape"] = str(app.screen.query_one("#ends-panel").content)
+            app.pop_screen()
+            app.pop_screen()
+            await ui.settle(app, pilot)
+        assert app.screen is not None
+        assert "passes (0.67)" in said["Q1"] and "repair" in said["Q1"]
+        assert "No remedy needed" not in said["Q1"]
+        assert "load missing" in said["Q2"] and "No remedy needed" not in said["Q2"]
+        assert "β = 1.00" in said["Q3shape"] and "Ke" not in said["Q3shape"]
+        assert "Ke = 1.00" in said["Q1shape"]
