@@ -57,6 +57,20 @@ def flag_texts(flags: int, method: int) -> list[str]:
     return [EC5_WARNINGS.get(f.name, f.text) for k, f in enumerate(FLAGS.flags) if flags >> k & 1]
 
 
+def action_reasons(r: Rating, i: int) -> list[str]:
+    """The warnings that set post i's action (each flag raised whose least action is that
+    action, monitor and up), in the post's method's words: why a post whose ratio passes is
+    to be monitored, repaired or made safe. Empty where the ratio band alone sets it."""
+    act = int(r.action[i])
+    if not 1 <= act < NOT_RATED:
+        return []
+    bits = 0
+    for k, f in enumerate(FLAGS.flags):
+        if f.escalates_to == act:
+            bits |= 1 << k
+    return flag_texts(int(r.flags[i]) & bits, int(r.batch.method[i]))
+
+
 def status_line(summary: dict) -> str | None:
     """Each reference value's status in words, for any place a rating reaches a person ('all
     secondary' or 'Fb memory, Fc secondary, ...'); None where the summary has none."""

@@ -26,6 +26,7 @@ from pathlib import Path
 from fieldcheck.engine.batch import EC5, END_NAMES
 from fieldcheck.engine.cautions import CAUTIONS
 from fieldcheck.engine.ec5_rating import clause_for
+from fieldcheck.engine.explain import action_reasons
 from fieldcheck.engine.loads import combination_name
 from fieldcheck.engine.rating import detail
 from fieldcheck.engine.result import ACTION_TEXT, ACTIONS, DUE_DAYS, NOT_RATED
@@ -386,6 +387,10 @@ def _open_actions(d: ReportData) -> str:
                 if p.action is not None
                 else ("Complete the record: " + "; ".join(p.errors))
             )
+            # the warnings that set the action: why a post whose ratio passes needs work
+            why = action_reasons(p.rating, p.j) if p.j is not None else []
+            if why:
+                what += " Raised by: " + " ".join(why)
             rows.append(
                 f"<tr><td>{_where(p)}</td><td>{badge(p.action)}</td>"
                 f"<td class='num'>{e(ratio)}</td><td>{e(due_text(p))}</td>"

@@ -185,3 +185,35 @@ def test_posts_not_rated_are_one_count_and_a_record_with_errors_is_not_said_to_l
     assert "height: height" not in out and "height:" in e1
     n1 = sec[sec.index(">N1<") :]
     assert "no load given" in n1[: n1.index("</tr>")]
+
+
+def test_an_open_action_raised_by_a_warning_says_which(empty_log):
+    # judgement (engine/ground.py): a pad of unknown thickness raises the action to repair
+    # although the soil ratio passes; the open actions say what raised it, and a post whose
+    # ratio alone sets its action names no warning
+    site = empty_log.add_site("Site")
+    v = empty_log.add_visit(site.id, "tester")
+    base = {"size": "4x4", "height": "8ft", "species": "dfl", "grade": "no2"}
+    empty_log.save_post(
+        v.id,
+        {"tag": "Q1", **base, "load": "4kip", "pad": "2ft x 2ft"}
+        | {
+            "soil": "clay",
+            "duration": "ten-years",
+            "moisture": "12%",
+            "cap_species": "dfl",
+            "sill_species": "dfl",
+        },
+    )
+    empty_log.save_post(
+        v.id,
+        {"tag": "Q2", **base, "load": "7kip", "duration": "ten-years"}
+        | {"moisture": "12%", "cap_species": "dfl", "sill_species": "dfl"},
+    )
+    out = render_report(empty_log)
+    sec = out[out.index('id="actions"') : out.index('id="conflicts"')]
+    q1 = sec[sec.index(">Q1<") :]
+    q1 = q1[: q1.index("</tr>")]
+    assert "REPAIR OR BRACE" in q1 and "Raised by: Pad thickness not given" in q1
+    q2 = sec[sec.index(">Q2<") :]
+    assert "Raised by" not in q2[: q2.index("</tr>")]
