@@ -225,16 +225,23 @@ def head_lines(
 
 
 def check_lines(summary: dict[str, Any] | None) -> list[str]:
-    out = ["[b]Checks[/b] (ratio, clause)"]
+    from fieldcheck.engine.loads import GIVEN
+
+    checks = (summary or {}).get("checks") or []
+    combos = any(c.get("combination") not in (None, GIVEN) for c in checks)
+    out = ["[b]Checks[/b] (ratio, " + ("combination, " if combos else "") + "clause)"]
     ground = (summary or {}).get("ground") or {}
     soil = ground.get("soil_check", "verified")
-    for c in (summary or {}).get("checks") or []:
+    for c in checks:
         r = c.get("ratio")
         # no ratio (no load: not rated) is never a tick; nor a check made on an assumed input
         # that the rating does not rely on (a pad of unknown thickness taken as rigid)
         doubt = c.get("name") == "soil_bearing" and soil != "verified"
         mark = "?" if r is None or r != r else ("✖" if r > 1.0 else "?" if doubt else "✓")
         note = f"; {soil}" if doubt else ""
+        # every ASCE 7 combination is rated for every check: each names the one governing it
+        if combos and r is not None and r == r:
+            note = f"; under {c['combination']}{note}"
         out.append(
             f" {mark} {ratio_text(r)} {escape(c.get('label', c.get('name', '')))} "
             f"({escape(c.get('clause', ''))}{escape(note)})"

@@ -237,3 +237,27 @@ def test_a_eurocode_post_is_enterable_from_the_form_edition_and_glulam_included(
     parsed = parse_records([{**post, "class": "GL24h", "en338_edition": "2016"}])
     assert [e.column for e in parsed.errors] == ["en338_edition"]
 
+
+def test_each_check_names_its_governing_combination_where_loads_are_combined():
+    # every ASCE 7 combination is rated for every check (ASCE 7-16 §2.4.1, NDS 2018 §2.3.2):
+    # 4x4 DF-L No.2, 11 ft, 45 sq ft of 55 psf dead and 20 psf roof live: D+Lr (CD 1.25) governs
+    # the column, D alone (CD 0.9) the end grain (computed by hand: 2,475 / (1,350 x 0.9 x 1.15
+    # x 12.25) = 0.145 > 3,375 / (1,350 x 1.25 x 1.15 x 12.25) = 0.142); a load given directly
+    # names no combination
+    from fieldcheck.engine import explain
+    from fieldcheck.records import rate_records
+
+    post = {"size": "4x4", "height": "11ft", "species": "dfl", "grade": "no2"}
+    r, _ = rate_records(
+        [
+            {**post, "tributary": "45sqft", "dead": "55psf", "roof_live": "20psf"},
+            {**post, "load": "2kip"},
+        ]
+    )
+    lines = present.check_lines(explain.summary(r, 0))
+    assert "combination" in lines[0]
+    column = next(ln for ln in lines if "column buckling" in ln)
+    end = next(ln for ln in lines if "end-grain" in ln)
+    assert "; under D+Lr)" in column and "; under D)" in end
+    lines = present.check_lines(explain.summary(r, 1))
+    assert "combination" not in lines[0] and "under" not in "".join(lines)
