@@ -229,6 +229,12 @@ def client_group(p: PostEntry) -> int | None:
     return p.action
 
 
+NOT_ASSESSED = (
+    "Complete the record (the load on it, or the measurement missing) and have it rated; keep "
+    "load off it and treat it as unsafe until then."
+)
+
+
 def _client(d: ReportData) -> str:
     """Plain words for the client: safe, restricted, to do by when; no engineering terms."""
     out = ['<section id="client" class="client"><h2>Client summary</h2>']
@@ -283,7 +289,8 @@ def _client(d: ReportData) -> str:
             + ", ".join(_where(p) for p in groups[0])
             + ".</p>"
         )
-    dated = [p for p in d.by_urgency() if p.action in (2, 3)]
+    # a post not assessed is work to do before anything else: never left out of the dates
+    dated = [p for p in d.by_urgency() if client_group(p) is None or p.action in (2, 3)]
     if dated:
         out.append("<h3>What must happen by when</h3>")
         out.append(
@@ -291,7 +298,8 @@ def _client(d: ReportData) -> str:
                 ["By", "Post", "What"],
                 "".join(
                     f"<tr><td>{e(due_text(p))}</td><td>{_where(p)}</td>"
-                    f"<td>{e(ACTION_TEXT[p.action])}</td></tr>"
+                    f"<td>{e(ACTION_TEXT[p.action] if client_group(p) else NOT_ASSESSED)}</td>"
+                    "</tr>"
                     for p in dated
                 ),
             )

@@ -217,3 +217,21 @@ def test_an_open_action_raised_by_a_warning_says_which(empty_log):
     assert "REPAIR OR BRACE" in q1 and "Raised by: Pad thickness not given" in q1
     q2 = sec[sec.index(">Q2<") :]
     assert "Raised by" not in q2[: q2.index("</tr>")]
+
+
+def test_posts_not_assessed_are_in_the_clients_dates_first(empty_log):
+    # judgement (issue 13 item 9): the client's "what must happen by when" never leaves out a
+    # post that could not be assessed (no load, a field error): it is work to do first, never
+    # a post with no date because it is fine
+    site = empty_log.add_site("Site")
+    v = empty_log.add_visit(site.id, "tester")
+    base = {"size": "4x4", "height": "8ft", "species": "spf", "grade": "no2"}
+    empty_log.save_post(v.id, {"tag": "N1", **base}, allow_errors=True)
+    empty_log.save_post(v.id, {"tag": "E1", **base, "height": "tall"}, allow_errors=True)
+    empty_log.save_post(v.id, {"tag": "R1", **base, "load": "6kip"})
+    out = render_report(empty_log)
+    client = out[out.index('id="client"') : out.index('id="summary"')]
+    dates = client[client.index("What must happen by when") :]
+    order = re.findall(r'<td data-label="Post">([A-Z]\d)', dates)
+    assert set(order[:2]) == {"N1", "E1"} and "R1" in order
+    assert dates.count("assess first") == 2 and dates.count("treat it as unsafe") == 2
