@@ -101,6 +101,9 @@ class PostBatch:
     cf_fb: np.ndarray = _f(1.0)  # size factor CF for Fb
     product: np.ndarray = _i(DIMENSION)
     wet_tabulated: np.ndarray = _b()  # values already for wet service (no further CM)
+    # grading class not known (a measured section thinner than a timber, a round post): in wet
+    # service the lowest CM any class takes, without the low-value reliefs (judgement)
+    class_unknown: np.ndarray = _b()
     knowledge: np.ndarray = _f(1.0)  # knowledge factor kappa (ASCE 41), 0.75 for default values
     strength_row: np.ndarray = _i(-1)  # EC5: en338.row_code of the class and edition (-1 none)
     # NDS: each reference value's status (read, secondary, memory), packed two bits a value by

@@ -122,7 +122,9 @@ def run_column(b: PostBatch, checks: dict, values: dict) -> None:
     # a factor of exactly 1.0 for the whole block is the shared filled(1.0, n): prod skips it
     one = filled(1.0, n)
     if wet.any():
-        cm_fc, cm_e = nds.wet_service_factors(b.product, b.fc_mpa, b.cf_fc, wet, b.wet_tabulated)
+        cm_fc, cm_e = nds.wet_service_factors(
+            b.product, b.fc_mpa, b.cf_fc, wet, b.wet_tabulated, b.class_unknown
+        )
     else:
         cm_fc = cm_e = one
     if np.isnan(b.temp_c).all():
@@ -346,6 +348,7 @@ COLUMN = Stage(
         "emin_mpa",
         "cf_fc",
         "wet_tabulated",
+        "class_unknown",
         "temp_c",
         "incised",
         "lam",

@@ -751,7 +751,9 @@ def add_checks(b: PostBatch, checks: dict, values: dict) -> None:
     gross_bending_properties(b, v)
     e1, e2, bow1, bow2 = eccentricities(b, v)
     time_fb = np.where(lrfd, nds.KF_FB * nds.PHI_B * b.lam, b.cd)
-    cm_fb = nds.wet_bending_factor(b.product, b.fb_mpa, b.cf_fb, v["wet"], b.wet_tabulated)
+    cm_fb = nds.wet_bending_factor(
+        b.product, b.fb_mpa, b.cf_fb, v["wet"], b.wet_tabulated, b.class_unknown
+    )
     # every factor but the duration one, which goes last (another combination changes only it)
     fb_untimed = b.fb_mpa * cm_fb * v["ct_f"] * b.cf_fb * v["ci_f"] * v["sr_bending"]
     fb_star = fb_untimed * time_fb
@@ -1120,11 +1122,13 @@ def reductions(r, i: int) -> list[dict]:
             "ASTM D245 principle (from memory)",
         )
     if v["cm_fc"][i] < 1.0 and int(b.method[i]) != EC5:  # EC5: the service class does it
+        unknown = bool(b.class_unknown[i])
         add(
             "wet service CM on Fc",
-            f"moisture {b.moisture_pct[i]:.0f} %",
+            f"moisture {b.moisture_pct[i]:.0f} %"
+            + (", grading class not known: the lowest CM of any class" if unknown else ""),
             v["cm_fc"][i],
-            "NDS Supplement",
+            "NDS Supplement; judgement (class not known)" if unknown else "NDS Supplement",
         )
     if b.knowledge[i] < 1.0:
         lvl = int(b.data_level[i])

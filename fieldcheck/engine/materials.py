@@ -343,7 +343,7 @@ def round_values(species: str, grade: str) -> dict:
                 parts.append(round_values(sp, grade))
             except ValueError:
                 continue  # the grade is not held for this species
-    return _lower(parts, "round post: lower")
+    return {**_lower(parts, "round post: lower"), "class_unknown": True}  # wet CM the lowest
 
 
 def _lowest_timber(species: str) -> dict:
@@ -479,6 +479,7 @@ def measured_values(species: str, grade: str, d1_in: float, d2_in: float) -> dic
                 elif not out["capped"]:
                     out["capped"] = why
     out["status"] = weakest(out["statuses"].values())
+    out["class_unknown"] = True  # thinner than a timber, no nominal size: wet CM the lowest
     return out
 
 

@@ -66,30 +66,43 @@ _CM_FC = np.array([1.0, 0.91, 0.8])  # dry or tabulated wet; wet timber; wet dim
 _CM_E = np.array([1.0, 0.9])  # all but wet dimension lumber; wet dimension lumber
 
 
-def wet_service_factors(product, fc, cf_fc, wet, wet_tabulated):
+def wet_service_factors(product, fc, cf_fc, wet, wet_tabulated, class_unknown=None):
     """CM for Fc and E/Emin (NDS Supplement Tables 4A and 4D adjustment factors).
 
     Dimension lumber: Fc 0.8 (1.0 when Fc CF <= 750 psi), E 0.9. Timbers: Fc 0.91, E 1.0. Values
     already tabulated for wet service take 1.0. CM for Fc-perp (0.67) belongs to each bearing: the
     rating applies it where the bearing is wet; CM for Fb is wet_bending_factor (bending checks).
+    A post whose grading class is not known (``class_unknown``: a measured section, a round post)
+    takes the lowest of them, Fc 0.8 and E 0.9, whatever its values (judgement, conservative:
+    its values are capped by or taken over several classes, and one CM for every size keeps a
+    larger section from rating lower in wet service).
     """
     apply = wet & ~wet_tabulated if wet_tabulated.any() else wet
     timber = product != DIMENSION
+    relief = fc * cf_fc <= 750 * PSI
+    if class_unknown is not None and class_unknown.any():
+        timber = timber & ~class_unknown
+        relief = relief & ~class_unknown
     dim = apply & ~timber
     # Fc: 1.0 dry, 0.91 wet timber, 0.8 wet dimension lumber above 750 psi; E: 0.9 wet
     # dimension lumber; table lookups by a one-byte code (np.where with scalars costs more)
-    code = np.left_shift(dim & ~(fc * cf_fc <= 750 * PSI), 1, dtype=np.uint8)
+    code = np.left_shift(dim & ~relief, 1, dtype=np.uint8)
     code |= apply & timber
     cm_fc = _CM_FC.take(code)
     cm_e = _CM_E.take(dim.view(np.uint8))
     return cm_fc, cm_e
 
 
-def wet_bending_factor(product, fb, cf_fb, wet, wet_tabulated):
+def wet_bending_factor(product, fb, cf_fb, wet, wet_tabulated, class_unknown=None):
     """CM for Fb (NDS Supplement Table 4A): 0.85 for wet dimension lumber, 1.0 when Fb CF <= 1150
-    psi, for timbers and for values tabulated wet; a NaN Fb takes 0.85."""
+    psi, for timbers and for values tabulated wet; a NaN Fb takes 0.85. A post whose grading
+    class is not known takes 0.85 (judgement, as wet_service_factors)."""
     dim = wet & ~wet_tabulated & (product == DIMENSION)
-    return np.where(dim & ~(fb * cf_fb <= 1150 * PSI), 0.85, 1.0)
+    relief = fb * cf_fb <= 1150 * PSI
+    if class_unknown is not None and class_unknown.any():
+        dim = dim | (wet & ~wet_tabulated & class_unknown)
+        relief = relief & ~class_unknown
+    return np.where(dim & ~relief, 0.85, 1.0)
 
 
 def temperature_factors(temp_c: np.ndarray, wet: np.ndarray):

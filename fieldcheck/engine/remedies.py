@@ -150,6 +150,7 @@ def _stock(species: str) -> tuple[tuple, dict[str, np.ndarray]]:
                 "cf_fb",
                 "product",
                 "wet_tabulated",
+                "class_unknown",
             )
         },
     )
@@ -175,6 +176,7 @@ def _stock(species: str) -> tuple[tuple, dict[str, np.ndarray]]:
                 ("cf_fb", cf_fb),
                 ("product", DIMENSION if cat == "dimension" else TIMBER),
                 ("wet_tabulated", rv["wet_tabulated"]),
+                ("class_unknown", False),  # a stock size names its grading class
             ):
                 cols[k].append(v)
     return tuple(opts), {k: np.asarray(v) for k, v in cols.items()}

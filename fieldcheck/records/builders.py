@@ -180,6 +180,7 @@ def material_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
         cf_fc=cf_fc,
         cf_fb=cf_fb,
         wet_tabulated=rv["wet_tabulated"],
+        class_unknown=rv.get("class_unknown", False),
         knowledge=rv["knowledge"],
         value_status=materials.pack_statuses(rv["statuses"]),
     )

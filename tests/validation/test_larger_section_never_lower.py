@@ -130,3 +130,56 @@ def test_the_issue_examples():
     s445 = capacity({**base, "section": "4.45 in x 4.45 in"})
     s450 = capacity({**base, "section": "4.5 in x 4.5 in"})
     assert s450 >= s445 * (1 - 1e-9) and s450 / s445 < 1.1
+
+
+def test_measured_sections_in_wet_service_examples():
+    # NDS Supplement Tables 4A, 4D wet service factors: a thin measured piece capped by a
+    # timber's values took the timber's CM (Fc 0.91, E 1.0) while a larger piece kept dimension
+    # lumber's (0.8, 0.9) and rated lower; a class not known takes the lowest CM (judgement)
+    wet = {"height": "2ft", "moisture": "25%"}
+    for cells, small, large in (
+        ({"species": "unknown", "grade": "no2"}, "7in x 1.875in", "8in x 1.875in"),
+        (
+            {"species": "southern-pine", "grade": "select-structural"},
+            "7in x 2.5in",
+            "7.25in x 2.5in",
+        ),
+    ):
+        base = {**wet, **cells}
+        _no_lower({**base, "section": small}, {**base, "section": large})
+
+
+def test_measured_sections_grid():
+    # every pair of a grid of measured sections, dry and wet, short and long, every species
+    # and grade drawn above: a larger section never rates lower (NDS Supplement Tables 4A, 4B,
+    # 4D with the class unknown; judgement for the caps)
+    import itertools
+
+    import numpy as np
+
+    sizes = [1.5, 1.875, 2.5, 3.5, 4.0, 4.45, 4.5, 5.5, 7.0, 7.25, 8.0, 9.25, 11.25, 12.0]
+    rows, keys = [], []
+    for sp, gr, wet, h in itertools.product(SPECIES, GRADES, (False, True), ("2ft", "8ft")):
+        for a, b in itertools.product(sizes, sizes):
+            if b <= a:
+                r = {"load": "1000lb", "height": h, "species": sp, "grade": gr}
+                r["section"] = f"{a} in x {b} in"
+                if wet:
+                    r["moisture"] = "25%"
+                rows.append(r)
+                keys.append((sp, gr, wet, h, a, b))
+    p = parse_records(rows)
+    refused = {e.row for e in p.errors}
+    kept = [k for i, k in enumerate(keys) if i not in refused]
+    r = rate(p.batch)
+    caps = np.vstack([c.capacity_n for c in r.checks.values()])
+    cap = np.min(np.where(np.isnan(caps), np.inf, caps), axis=0)
+    by_key = dict(zip(kept, cap, strict=True))
+    worse = []
+    for (sp, gr, wet, h, a, b), v in by_key.items():
+        for a2, b2 in itertools.product(sizes, sizes):
+            if a2 >= a and b2 >= b and b2 <= a2 and (a2, b2) != (a, b):
+                w = by_key.get((sp, gr, wet, h, a2, b2))
+                if w is not None and w < v * (1 - 1e-9):
+                    worse.append(((sp, gr, wet, h, a, b), (a2, b2), v, w))
+    assert not worse, worse[:5]
