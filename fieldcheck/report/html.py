@@ -462,6 +462,22 @@ def _record_table(record: dict[str, str], columns: tuple[str, ...]) -> str:
     return f'<div class="tw"><table class="kv inputs"><tbody>{rows}</tbody></table></div>'
 
 
+def _duration_text(rec: dict, s: dict, factor: str) -> str:
+    """Where the duration factor came from: the governing combination's loads, the duration
+    typed, the permanent default of a load given without one, or no load at all (the capacity
+    shown at that factor); never 'default' for a factor a combination set."""
+    lc = s.get("load_combination") or {}
+    if isinstance(lc, dict) and lc.get("key"):  # every combination rated, each at its own
+        return f"by load combination, each at its own; governing {lc.get('name', '')}: {factor}"
+    if rec.get("duration"):
+        return f"{rec['duration']}; {factor}"
+    if s.get("state") != "rated":
+        return f"not given, and no load: the capacity is shown at {factor}"
+    if any(str(w).startswith("No load duration stated") for w in s.get("warnings") or ()):
+        return f"not given: permanent assumed (the conservative choice); {factor}"
+    return f"not given: default; {factor}"
+
+
 def _assumptions(d: ReportData, p: PostEntry) -> str:
     r, j, b, u, s = p.rating, p.j, p.rating.batch, d.units, p.summary
     # a large batch keeps only the rating: the post's intermediates come from rating it alone
@@ -482,7 +498,7 @@ def _assumptions(d: ReportData, p: PostEntry) -> str:
             "Knowledge factor kappa",
             f"{float(b.knowledge[j]):g} (ASCE 41 data collection; visit level {p.visit.level})",
         ),
-        ("Load duration", f"{rec.get('duration', 'not given: default')}; {dur}"),
+        ("Load duration", _duration_text(rec, s, dur)),
         ("Moisture", _moisture(rec, p.meta, method)),
         ("Construction-stage member", "yes" if bool(b.construction[j]) else "no"),
     ]

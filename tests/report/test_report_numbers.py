@@ -235,3 +235,29 @@ def test_posts_not_assessed_are_in_the_clients_dates_first(empty_log):
     order = re.findall(r'<td data-label="Post">([A-Z]\d)', dates)
     assert set(order[:2]) == {"N1", "E1"} and "R1" in order
     assert dates.count("assess first") == 2 and dates.count("treat it as unsafe") == 2
+
+
+def test_the_load_duration_says_where_its_factor_came_from(empty_log):
+    # NDS 2018 §2.3.2 and Table 2.3.2: with nominal loads every ASCE 7 combination is rated,
+    # each at its own CD, and D+Lr (CD 1.25) governs this column (computed by hand, as in
+    # tests/tui/test_tui_model.py); a load given with no duration is permanent (CD 0.9, issue
+    # 13 item 8); a post with no load shows its capacity at the factor named. Never "default"
+    # for a factor a combination set.
+    site = empty_log.add_site("Site")
+    v = empty_log.add_visit(site.id, "tester")
+    base = {"size": "4x4", "height": "11ft", "species": "dfl", "grade": "no2"}
+    empty_log.save_post(
+        v.id, {"tag": "C1", **base, "tributary": "45sqft", "dead": "55psf", "roof_live": "20psf"}
+    )
+    empty_log.save_post(v.id, {"tag": "G1", **base, "load": "2kip"})
+    empty_log.save_post(v.id, {"tag": "N1", **base}, allow_errors=True)
+    out = render_report(empty_log)
+
+    def duration(tag: str) -> str:
+        sec = out[out.index(f"Post {tag}") :]
+        sec = sec[sec.index("Load duration") :]
+        return re.sub(r"<[^>]+>", "", sec[: sec.index("</tr>")])  # C<sub>D</sub>: CD
+
+    assert "governing D+Lr: CD = 1.25" in duration("C1") and "default" not in duration("C1")
+    assert "permanent assumed" in duration("G1") and "CD = 0.9" in duration("G1")
+    assert "no load: the capacity is shown at CD = 1" in duration("N1")
