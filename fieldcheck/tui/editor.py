@@ -43,6 +43,7 @@ from fieldcheck.engine import explain
 from fieldcheck.engine.curves import capacity_vs_height
 from fieldcheck.engine.rating import rate
 from fieldcheck.records import COLUMNS, parse_records
+from fieldcheck.report.notation import units_first
 from fieldcheck.tui import present, remedy_words
 from fieldcheck.tui.drawing import ends_drawing
 from fieldcheck.tui.footer import FittedFooter
@@ -528,11 +529,15 @@ class PostEditor(ReleasesKeys, Screen[None]):
             out.append("Not rated: fix the field marked ✖ in the form; no working until then.")
         elif self.rating is not None:
             out.append("[b]Working[/b] (values to 4 significant figures)")
+            # the user's units first, as the rating head and the report give them (an EC5 post
+            # speaks kN and mm first whatever the units, as EN 1995-1-1 and the report do)
+            ec5 = (self.record.get("method") or "").strip().lower() == "ec5"
+            units = "metric" if ec5 else self.app.units  # type: ignore[attr-defined]
             for step in explain.working(self.rating, 0):
                 note = present.memory_note(step.label, step.clause or "", self.record)
                 clause = step.clause.replace("[M]", "").strip() if step.clause else ""
                 clause = f"  [dim]{present.escape(clause)}{note}[/dim]" if clause or note else ""
-                value = present.sig_text(step.value)
+                value = units_first(present.sig_text(step.value), units)
                 if step.label == "Governing check" and step.value in self.rating.checks:
                     value = self.rating.checks[step.value].label  # its label, never its key
                 out.append(f"{present.escape(step.label)}: [b]{present.escape(value)}[/b]{clause}")

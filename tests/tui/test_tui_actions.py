@@ -160,6 +160,9 @@ async def test_working_and_plot_agree_with_the_rating(db, ui) -> None:
         # the governing check by its label, as a person reads it, never its key
         gov = editor.rating.governing_name(0)
         assert f"Governing check: [b]{editor.rating.checks[gov].label}[/b]" in working
+        # the user's units first (US customary here), as the rating head and the report give
+        # them (common practice, no source)
+        assert app.units == "us" and " in (" in working and " mm (" not in working
         # said where a value was recalled (a clause marked [M], a reference value from memory)
         steps = explain.working(editor.rating, 0)
         recalled = "[M]" in "".join(s.clause or "" for s in steps) or any(
