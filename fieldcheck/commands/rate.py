@@ -145,6 +145,11 @@ def _ec5_force(n: float, system: str) -> str:
     return kn if system == "metric" else f"{kn} ({format_force(n, 'us')})"
 
 
+def _n(value: object, spec: str) -> str:
+    """A number as ``spec``; a value the summary could not give (None: JSON has no NaN) as 'n/a'."""
+    return "n/a" if value is None else format(value, spec)
+
+
 def _text(s: dict, system: str) -> str:
     from fieldcheck.units import format_force
 
@@ -171,14 +176,16 @@ def _text(s: dict, system: str) -> str:
     if ec5:
         ax = s["governing_axis"] - 1
         lines.append(
-            f"\u03bb {s['lambda'][ax]:.1f}, \u03bb_rel {s['lambda_rel'][ax]:.3f}, "
-            f"k_c {s['k_c_governing']:.3f}, \u03b2_c {s['beta_c']:.1f} (axis {ax + 1}; "
-            f"EN 1995-1-1 §6.3.2), k_mod {s['k_mod']:.2f}, \u03b3_M {s['gamma_M']:.2f}"
+            f"\u03bb {_n(s['lambda'][ax], '.1f')}, \u03bb_rel {_n(s['lambda_rel'][ax], '.3f')}, "
+            f"k_c {_n(s['k_c_governing'], '.3f')}, \u03b2_c {_n(s['beta_c'], '.1f')} (axis "
+            f"{ax + 1}; EN 1995-1-1 §6.3.2), k_mod {_n(s['k_mod'], '.2f')}, "
+            f"\u03b3_M {_n(s['gamma_M'], '.2f')}"
         )
     else:
         lines.append(
-            f"Ke {s['effective_length_factor']}, le/d {s['slenderness_ratio']:.1f} "
-            f"(limit {s['slenderness_limit']:.0f}), stability factor {s['stability_factor']:.3f}"
+            f"Ke {s['effective_length_factor']}, le/d {_n(s['slenderness_ratio'], '.1f')} "
+            f"(limit {_n(s['slenderness_limit'], '.0f')}), stability factor "
+            f"{_n(s['stability_factor'], '.3f')}"
         )
     lines.append(f"Material      {s.get('material', '')}")
     values = explain.status_line(s)  # each reference value's status: read, secondary, memory

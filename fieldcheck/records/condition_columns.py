@@ -606,7 +606,10 @@ def _refuse_no_section(row: dict[str, Any], f: dict[str, Any], d1, d2, h) -> Non
     )
     with np.errstate(divide="ignore", invalid="ignore"):
         res = cond.residual(post)
-    left = min(float(res[k][0]) for k in ("area", "area_net", "area_top", "area_bottom"))
+    # an area left with no effective depth (a hollow core inside decay from both faces) has no
+    # stiffness to buckle about: nothing that can be rated either
+    kept = ("area", "area_net", "area_top", "area_bottom", "d_eff1", "d_eff2")
+    left = min(float(res[k][0]) for k in kept)
     if left > 0:
         return
     rest = given[1:]

@@ -244,3 +244,25 @@ def test_bad_input_one_sentence(row, column, words):
     assert err.column == column
     assert words in err.message
     assert err.message.count("\n") == 0 and err.message.startswith(column)
+
+
+def test_losses_that_leave_area_but_no_depth_are_refused():
+    # geometry: decay from both faces and a hollow core that together leave no effective depth
+    # at mid-height have nothing to buckle about; refused in one sentence, never rated with an
+    # infinite le/d (it printed numpy's divide warnings, and the text output failed)
+    rec = {
+        "size": "3x6",
+        "height": "0.76 m",
+        "species": "hem-fir",
+        "grade": "select-structural",
+        "decay_wide": "1.09 in",
+        "decay_narrow": "0.7 in",
+        "hollow": "1.23 in",
+        "hollow_at": "middle",
+    }
+    with np.errstate(all="raise"):
+        parsed = parse_records([rec])
+    assert not parsed.ok[0]
+    err = parsed.errors[0]
+    assert err.column == "decay_wide" and "leave no section" in err.message
+    assert err.message.count("\n") == 0
