@@ -150,6 +150,8 @@ class PostBatch:
     bottom_fc_perp_mpa: np.ndarray = _f()  # Fc-perp of the sill or plate below
     bottom_lb_mm: np.ndarray = _f()
     bottom_cb: np.ndarray = _b()
+    top_not_wood: np.ndarray = _b()  # the cap was stated none (steel, concrete): not wood
+    bottom_not_wood: np.ndarray = _b()  # the sill was stated none
     bearing_wet: np.ndarray = _b()  # the cap or sill is in wet service (CM = 0.67 on Fc-perp)
 
     # --- ground and load (engine/ground.py, engine/loads.py, engine/remedies.py) ----------------

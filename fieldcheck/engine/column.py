@@ -379,7 +379,8 @@ COLUMN = Stage(
     flags=(
         Flag(
             "no_load",
-            "No load given: the capacity is shown, but no decision can be made without the load.",
+            "No load given: the capacity is shown at the load duration stated, else at normal "
+            "duration (CD 1.0; LRFD lambda 0.8), but no decision can be made without the load.",
         ),
         Flag(
             "slender_construction",

@@ -246,6 +246,19 @@ def load_at(b: PostBatch, combo: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     return _at_slot(load, slot, flat), _at_slot(fac, slot, flat)
 
 
+def largest_perp_load(b: PostBatch) -> np.ndarray:
+    """Each post's largest load for bearing across the grain, which takes no CD (NDS 2018 Table
+    2.3.2 footnote): the largest over its combinations; LRFD: load / min(lambda, 1), as the
+    bearing checks take lambda (judgement); a load given directly (and EC5): that load."""
+    if used(b):
+        load, fac, _, _ = _dense(b)
+        fac = np.broadcast_to(fac, load.shape)
+        with np.errstate(invalid="ignore", divide="ignore"):
+            per = load / np.where(b.method == LRFD, np.minimum(fac, 1.0), 1.0)
+        return np.fmax.reduce(per, axis=0)
+    return b.load_n / np.where(b.method == LRFD, np.minimum(b.lam, 1.0), 1.0)
+
+
 def distinct_per_post(b: PostBatch) -> np.ndarray:
     """How many combinations of each post differ in load or duration factor (bench/engine.py)."""
     load, fac, _, _ = _dense(b)

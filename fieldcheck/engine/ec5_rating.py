@@ -488,6 +488,10 @@ def ec5_summary(r: Rating, i: int, out: dict) -> None:
 # The warnings of an EC5 post in EN 1995-1-1's terms, in place of the NDS wording of the same
 # flags (explain.warnings); a flag not listed reads the same under both methods.
 EC5_WARNINGS = {
+    "no_load": (
+        "No load given: N_Rd is shown at the k_mod of the load duration stated, else of the "
+        "long-term class (EN 1995-1-1 Table 3.1), but no decision can be made without the load."
+    ),
     "dry_assumed": (
         "Moisture not measured: the service class given (or 1) is used (EN 1995-1-1 §2.3.1.3: "
         "class 1 about 12 % or less, class 2 about 20 % or less, class 3 wetter; from memory). "

@@ -16,7 +16,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from fieldcheck.engine import en338, materials, remedies
+from fieldcheck.engine import bearing_screen, en338, materials, remedies
 from fieldcheck.engine.batch import EC5, METHOD_NAMES
 from fieldcheck.engine.cautions import CAUTIONS
 from fieldcheck.engine.customary import LBF
@@ -44,6 +44,10 @@ def finite(obj):
     return obj
 
 
+# an EC5 post's warnings in EN 1995-1-1's terms, wherever they differ from the NDS ones
+EC5_TEXTS = {**EC5_WARNINGS, **bearing_screen.EC5_WARNINGS}
+
+
 def warnings(r: Rating, i: int) -> list[str]:
     """The warnings of post i, in the order of the flag table (an EC5 post's in EN 1995-1-1's
     terms: ec5_rating.EC5_WARNINGS)."""
@@ -54,7 +58,7 @@ def flag_texts(flags: int, method: int) -> list[str]:
     """The warnings of a flag mask under a method (an EC5 post's in EN 1995-1-1's terms)."""
     if method != EC5:
         return FLAGS.texts(flags)
-    return [EC5_WARNINGS.get(f.name, f.text) for k, f in enumerate(FLAGS.flags) if flags >> k & 1]
+    return [EC5_TEXTS.get(f.name, f.text) for k, f in enumerate(FLAGS.flags) if flags >> k & 1]
 
 
 def action_reasons(r: Rating, i: int) -> list[str]:
@@ -169,8 +173,12 @@ def summary(r: Rating, i: int, with_remedies: bool = True) -> dict:
 def remedy_keys(r: Rating, i: int, out: dict, found: remedies.Remedies | None = None) -> None:
     """The summary's ``remedies`` (and ``remedies_note``) for post i: from ``found`` (remedies
     of the whole batch) or found now for post i alone."""
-    if not (r.ratio[i] > 1.0 or 2 <= r.action[i] < NOT_RATED):
+    if not (r.ratio[i] > 1.0 or 2 <= remedies.own_action_at(r, i) < NOT_RATED):
         out["remedies"] = []
+        if 2 <= r.action[i] < NOT_RATED:  # only a cap or sill nobody identified calls for it
+            out["remedies_note"] = (
+                "Identify the cap or sill (see the warning); the post itself needs no change."
+            )
         return
     if found is None:
         found, j = remedies.remedies(r.batch.take(np.array([i]))), 0

@@ -18,7 +18,7 @@ from functools import cache
 
 import numpy as np
 
-from fieldcheck.engine import loads
+from fieldcheck.engine import bearing_screen, loads
 from fieldcheck.engine import quantities as q
 from fieldcheck.engine.batch import EC5, LRFD, PostBatch
 from fieldcheck.engine.blocks import filled
@@ -56,6 +56,7 @@ def _no_checks(b: PostBatch, checks: dict, values: dict) -> None:
 
 def _load_flags(b: PostBatch, values: dict, flag: FlagSet) -> None:
     flag("shared", b.shared_by > 1)
+    bearing_screen.raise_flags(b, values, flag)  # a cap or sill not identified
 
 
 def load_combination(r: Rating, i: int) -> dict:
@@ -77,7 +78,7 @@ def load_combination(r: Rating, i: int) -> dict:
     else:
         row = combination_rows()[k]
         clause = row["clause"] + ("; NDS 2018 §2.3.2" if fname == "CD" else "")
-        out.update(name=row["name"], key=row["key"], clause=clause)
+        out.update(name=loads.combination_name(k, b, i), key=row["key"], clause=clause)
     return out
 
 
@@ -132,6 +133,13 @@ LOADS = Stage(
         "kmod",
         "combo",
         "shared_by",
+        "top_fc_perp_mpa",
+        "bottom_fc_perp_mpa",
+        "top_not_wood",
+        "bottom_not_wood",
+        "top_lb_mm",
+        "bottom_lb_mm",
+        "plate_lb_mm",
     ),
     checks=(),
     flags=(
@@ -140,6 +148,7 @@ LOADS = Stage(
             "Load shared by posts side by side: each carries an equal share only under a stiff "
             "cap (judgement); check the cap.",
         ),
+        *bearing_screen.FLAGS,
     ),
     run=_no_checks,
     raise_flags=_load_flags,

@@ -272,9 +272,52 @@ def combination_rows() -> tuple[dict[str, str], ...]:
     return tuple(table("load_combinations"))
 
 
-def combination_name(combo: int) -> str:
-    """The name of a combination row, or GIVEN for a load given directly (combo < 0)."""
-    return GIVEN if combo < 0 else combination_rows()[combo]["name"]
+# the nominal loads of a PostBatch, by ASCE 7 load type (the order of the combination table)
+NOMINAL_TYPES = (
+    ("D", "nom_d_n"),
+    ("L", "nom_l_n"),
+    ("Lr", "nom_lr_n"),
+    ("S", "nom_s_n"),
+    ("R", "nom_r_n"),
+    ("W", "nom_w_n"),
+    ("E", "nom_e_n"),
+)
+
+
+def combination_name(combo: int, batch=None, i: int = 0) -> str:
+    """The name of a combination row, or GIVEN for a load given directly (combo < 0). With a
+    batch: the terms of the loads post i carries only (1.2D+1.6L, not 1.2D+1.6L+0.5Lr where
+    there is no roof live load; the dead load is always named)."""
+    if combo < 0:
+        return GIVEN
+    if batch is None:
+        return combination_rows()[combo]["name"]
+    return present_name(combo, present_bits(batch, np.array([i]))[0])
+
+
+def present_bits(batch, idx: np.ndarray) -> np.ndarray:
+    """Bit t set where post idx carries a nominal load of type t (NOMINAL_TYPES order)."""
+    bits = np.zeros(len(idx), dtype=np.int64)
+    for t, (_, f) in enumerate(NOMINAL_TYPES):
+        bits |= (np.asarray(getattr(batch, f)).take(idx) > 0).astype(np.int64) << t
+    return bits
+
+
+def present_name(combo: int, bits: int) -> str:
+    """The name of combination ``combo`` with the terms of the loads in ``bits`` only (the dead
+    load always named; GIVEN for a load given directly)."""
+    if combo < 0:
+        return GIVEN
+    name = combination_rows()[combo]["name"]
+    present = {t for k, (t, _) in enumerate(NOMINAL_TYPES) if int(bits) >> k & 1}
+    kept = [x for x in name.split("+") if _term_type(x) in ("D", None) or _term_type(x) in present]
+    return "+".join(kept) if kept else name
+
+
+def _term_type(term: str) -> str | None:
+    """The load type a term of a combination name multiplies: 0.75(0.6W) -> W, 0.5Lr -> Lr."""
+    letters = term.rstrip(")").lstrip("0123456789.(")
+    return letters if letters in {t for t, _ in NOMINAL_TYPES} else None
 
 
 @dataclass(frozen=True)

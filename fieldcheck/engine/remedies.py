@@ -43,7 +43,7 @@ from fieldcheck.engine import materials, nds, sections
 from fieldcheck.engine import quantities as q
 from fieldcheck.engine.batch import DIMENSION, EC5, LRFD, RECT, TIMBER, PostBatch, make_batch
 from fieldcheck.engine.customary import FT, IN, LBF
-from fieldcheck.engine.rating import FLAGS, rate
+from fieldcheck.engine.rating import FLAGS, action_from, rate
 from fieldcheck.engine.result import ACTIONS, NOT_RATED, Rating
 
 KINDS = (
@@ -296,11 +296,38 @@ class Remedies:
         )
 
 
+# a cap or sill nobody identified (engine/bearing_screen.py) is cleared by identifying it, not by
+# any change to the post: it neither calls for a remedy nor keeps an option from passing
+UNIDENTIFIED = FLAGS.mask("cap_soft", "sill_soft")
+
+
+def _own_action(r: Rating) -> np.ndarray:
+    """The action without the flags of an unidentified cap or sill (see UNIDENTIFIED)."""
+    if not (r.flags & UNIDENTIFIED).any():
+        return r.action
+    return _action_without(r.ratio, r.flags)
+
+
+def own_action_at(r: Rating, i: int) -> int:
+    """:func:`_own_action` of post i alone."""
+    if not int(r.flags[i]) & UNIDENTIFIED:
+        return int(r.action[i])
+    return int(_action_without(r.ratio[i : i + 1], r.flags[i : i + 1])[0])
+
+
+def _action_without(ratio: np.ndarray, flags: np.ndarray) -> np.ndarray:
+    """rating.action_from without UNIDENTIFIED; the le/d limit as its flag records it (a large
+    batch keeps no le/d values): the same test, le/d over the limit."""
+    over = ((flags & FLAGS.bit["slender_limit"]) != 0).astype(np.float64)
+    return action_from(ratio, flags & ~UNIDENTIFIED, over, 0.5)
+
+
 def remedies(batch: PostBatch, rating: Rating | None = None) -> Remedies:
     """Ranked options that make each failing post pass, all rated in one engine call."""
     r = rating if rating is not None else rate(batch)
     # a post not rated (load missing) has no decision to remedy: it is left out
-    failing = np.flatnonzero((r.ratio > 1.0) | ((r.action >= 2) & (r.action != NOT_RATED)))
+    act = _own_action(r)
+    failing = np.flatnonzero((r.ratio > 1.0) | ((act >= 2) & (act != NOT_RATED)))
     sub = batch.take(failing)
     k = sub.n
     np.arange(k)
@@ -447,7 +474,8 @@ def remedies(batch: PostBatch, rating: Rating | None = None) -> Remedies:
     v1 = np.concatenate([t[3] for t in tags])
     v2 = np.concatenate([t[4] for t in tags])
     spc = np.concatenate([t[5] for t in tags])
-    ok = (rr.ratio <= 1.0) & (rr.action < 2)  # never offer an option that would itself fail
+    rr_act = _own_action(rr)
+    ok = (rr.ratio <= 1.0) & (rr_act < 2)  # never offer an option that would itself fail
     idx = np.flatnonzero(ok)
     # per (post, kind): the cheapest option that passes
     order = idx[np.lexsort((opt[idx], kind[idx], where[idx]))]
@@ -467,7 +495,7 @@ def remedies(batch: PostBatch, rating: Rating | None = None) -> Remedies:
         kind=kind[chosen],
         capacity_n=rr.capacity_n[chosen],
         ratio=rr.ratio[chosen],
-        action=rr.action[chosen],
+        action=rr_act[chosen],
         v1=v1[chosen],
         v2=v2[chosen],
         candidates=cand.take(chosen),

@@ -149,7 +149,7 @@ class Rating:
         c = self.checks[name]
         combo = int((self.batch.combo if c.combo is None else c.combo)[i])
         factor = float((self.duration_factor() if c.factor is None else c.factor)[i])
-        return combination_name(combo), factor
+        return combination_name(combo, self.batch, i), factor
 
     def combination_name(self, i: int) -> str:
         """The load combination of the governing check of post i (loads.GIVEN when the load

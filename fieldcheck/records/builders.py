@@ -233,6 +233,8 @@ def bearing_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
     f: dict[str, Any] = {}
     for end, col in (("top", "cap"), ("bottom", "sill")):
         sp = row.get(f"{col}_species")
+        if f"{col}_species" in row and sp is None:  # stated none: not wood (steel, concrete)
+            f[f"{end}_not_wood"] = True
         if sp:
             fc_perp, status = materials.fc_perp_held(sp)
             f[f"{end}_fc_perp_mpa"] = fc_perp

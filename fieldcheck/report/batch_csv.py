@@ -41,7 +41,7 @@ def governing_combinations(r: Rating) -> list[str]:
     """The load combination of each post's governing check (every ASCE 7 combination is rated
     for every check, engine/combinations.py), as --json's governing_combination; blank where
     the post is not rated (no load)."""
-    from fieldcheck.engine.loads import combination_name
+    from fieldcheck.engine.loads import present_bits, present_name
 
     n = r.n
     combo = np.full(n, -1, dtype=np.intp)
@@ -50,9 +50,11 @@ def governing_combinations(r: Rating) -> list[str]:
         if at.size:
             own = r.batch.combo if c.combo is None else c.combo
             combo[at] = np.broadcast_to(np.asarray(own), (n,)).take(at)
-    names = {int(k): combination_name(int(k)) for k in np.unique(combo).tolist()}
+    # the name holds the loads each post carries only: one name per (combination, loads present)
+    key = combo.astype(np.int64) * 128 + present_bits(r.batch, np.arange(n))
+    names = {k: present_name(k // 128, k % 128) for k in np.unique(key).tolist()}
     rated = np.isfinite(r.ratio).tolist()
-    return [names[k] if ok else "" for k, ok in zip(combo.tolist(), rated, strict=True)]
+    return [names[k] if ok else "" for k, ok in zip(key.tolist(), rated, strict=True)]
 
 
 def result_columns(r: Rating, meta: Sequence[dict] = ()) -> dict[str, list[str]]:

@@ -583,7 +583,7 @@ def _combination(r, name: str, j: int) -> str:
         if "dfac" not in cache:
             cache["dfac"] = r.duration_factor()
         combo = int((r.batch.combo if c.combo is None else c.combo)[j])
-        combo_name, factor = combination_name(combo), float(cache["dfac"][j])
+        combo_name, factor = combination_name(combo, r.batch, j), float(cache["dfac"][j])
     else:
         combo_name, factor = r.check_combination(name, j)
     return f"{combo_name} ({sig(factor, 3)})" if math.isfinite(factor) else combo_name

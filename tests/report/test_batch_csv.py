@@ -226,7 +226,10 @@ def test_each_row_names_its_governing_load_combination(tmp_path, capsys):
     rows = {r["tag"]: r for r in csv.DictReader(out.open())}
     assert rows["C1"]["governing_check"] == "column"
     assert rows["C1"]["governing_combination"] == "D+Lr"
-    assert rows["G1"]["governing_combination"] == _json(
-        capsys, ["G1", "", "", "", "11ft", "2kip", "4x4", "dfl", "no2"]
-    )["governing_combination"]
+    assert (
+        rows["G1"]["governing_combination"]
+        == _json(capsys, ["G1", "", "", "", "11ft", "2kip", "4x4", "dfl", "no2"])[
+            "governing_combination"
+        ]
+    )
     assert rows["N1"]["action"] == "not-rated" and rows["N1"]["governing_combination"] == ""
