@@ -28,18 +28,17 @@ SOFT_GAMMA_M = 1.3  # EN 1995-1-1 Table 2.3: solid timber (the softest class is 
 
 def _words(end: str, option: str, value: str) -> str:
     return (
-        f"The {end} was not identified, and the load is more than the softest wood held would "
-        f"carry in bearing across its grain ({value}): it may crush (judgement). Identify it: "
-        f"give {option}, or none if it is not wood."
+        f"{end} not identified: the load exceeds the bearing of the softest wood held "
+        f"({value}), so it may crush (judgement). Give {option}, or none if not wood."
     )
 
 
 _NDS = f"Fc-perp {SOFT_FC_PERP_MPA / materials.PSI:.0f} psi"
 _EC5 = f"f_c,90,k {SOFT_FC90K_MPA:.1f} MPa, k_c,90 = 1"
-CAP, SILL = "cap or beam above", "sill or plate below"
+CAP, SILL = "Cap or beam above", "Sill or plate below"
 FLAGS = (
-    Flag("cap_soft", _words(CAP, "--cap-species (unknown rates it at that bound)", _NDS), 2),
-    Flag("sill_soft", _words(SILL, "--sill-species (unknown rates it at that bound)", _NDS), 2),
+    Flag("cap_soft", _words(CAP, "--cap-species (unknown: rated at that value)", _NDS), 2),
+    Flag("sill_soft", _words(SILL, "--sill-species (unknown: rated at that value)", _NDS), 2),
 )
 # the same warnings as an EC5 rating gives them (ec5_rating.EC5_WARNINGS)
 EC5_WARNINGS = {

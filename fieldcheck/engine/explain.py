@@ -54,8 +54,18 @@ def warnings(r: Rating, i: int) -> list[str]:
     return flag_texts(int(r.flags[i]), int(r.batch.method[i]))
 
 
+# a cap or sill screened as not identified says more than "not checked": that one is left out
+_SAID_BY = (
+    (FLAGS.bit["cap_soft"], FLAGS.bit["cap_unchecked"]),
+    (FLAGS.bit["sill_soft"], FLAGS.bit["sill_unchecked"]),
+)
+
+
 def flag_texts(flags: int, method: int) -> list[str]:
     """The warnings of a flag mask under a method (an EC5 post's in EN 1995-1-1's terms)."""
+    for more, less in _SAID_BY:
+        if flags & more:
+            flags &= ~less
     if method != EC5:
         return FLAGS.texts(flags)
     return [EC5_TEXTS.get(f.name, f.text) for k, f in enumerate(FLAGS.flags) if flags >> k & 1]
