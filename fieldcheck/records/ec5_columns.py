@@ -32,6 +32,11 @@ def _class(s: str) -> str:
     return names[key]  # as the standard writes it (C24, GL24h)
 
 
+def _end_class(s: str) -> str | None:
+    """The class of a cap or sill, or None where it is stated none (not wood: steel, concrete)."""
+    return None if s.strip().lower() in ("none", "no", "-") else _class(s)
+
+
 def _edition(s: str) -> str:
     return en338.edition_name(s)
 
@@ -71,14 +76,18 @@ COLUMNS: tuple[Column, ...] = (
         "1",
     ),
     Column(
-        "cap_class", "bearing", "EN 338 class of the cap or beam above (method ec5)", "C24", _class
+        "cap_class",
+        "bearing",
+        "EN 338 class of the cap or beam above (method ec5), or none",
+        "C24",
+        _end_class,
     ),
     Column(
         "sill_class",
         "bearing",
-        "EN 338 class of the sill or plate below (method ec5)",
+        "EN 338 class of the sill or plate below (method ec5), or none",
         "C24",
-        _class,
+        _end_class,
     ),
 )
 
@@ -110,7 +119,7 @@ def ec5_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
     # NDS material inputs are refused, never ignored or misused: an NDS reference Fc-perp is not
     # an EN 338 f_c,90,k (judgement: not the same basis), and a strength class is a material known
     for col, say in NDS_MATERIAL.items():
-        if col in row and row[col] != "unknown":
+        if col in row and row[col] not in ("unknown", None):  # None: a cap or sill of none
             raise RowError(col, f"{col}: {say}")
     # EN 1995-1-1 has no temperature or incising factor in the checks fieldcheck makes: refused,
     # never ignored (judgement; the NDS Ct and Ci are not EN 1995-1-1 factors)
@@ -142,7 +151,9 @@ def ec5_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
         raise RowError("class", f"class: {e}") from None
     bearing = {}  # end -> the row of the cap or sill class
     for end, col in (("top", "cap_class"), ("bottom", "sill_class")):
-        if col in row:
+        if col in row and row[col] is None:  # stated none: not wood (steel, concrete)
+            f[f"{end}_not_wood"] = True
+        elif col in row:
             try:
                 bearing[end] = en338.row(en338.row_code(row[col], edition))
             except ValueError as e:

@@ -123,3 +123,14 @@ def test_combination_names_only_the_loads_present(capsys, method, loads, name):
     out = json.loads(capsys.readouterr().out)
     assert out["governing_combination"] == name
     assert out["load_combination"]["name"] == name
+
+
+@pytest.mark.parametrize("none", [("--cap-class", "none"), ("--cap-species", "none")])
+def test_ec5_can_say_the_cap_is_not_wood(capsys, none):
+    # the warning asks for the class or none: an EC5 record takes none too (judgement: a steel
+    # or concrete cap has no bearing across the grain to screen)
+    args = ["rate", "--section", "100mmx100mm", "--height", "2m", "--method", "ec5"]
+    args += ["--class", "C24", "--duration", "ten-years", "--load", "15kN", "--json"]
+    assert main([*args, *none]) in (0, 1)
+    out = json.loads(capsys.readouterr().out)
+    assert not _said(out, CAP_WORDS) and _said(out, SILL_WORDS)
