@@ -18,6 +18,7 @@ import numpy as np
 
 from fieldcheck.engine import combinations, en338, materials, nds
 from fieldcheck.engine.batch import EC5, LRFD, PostBatch
+from fieldcheck.engine.bearing_area import bearing_length, plate_bearing
 from fieldcheck.engine.blocks import distinct
 from fieldcheck.engine.stage import Flag, FlagSet
 
@@ -49,12 +50,11 @@ EC5_WARNINGS = {
 
 def _soft_capacity(b: PostBatch, values: dict, a_end, lb) -> np.ndarray:
     """What the softest value held carries at one end (N), Cb = 1, k_c,90 = 1, at factor 1."""
-    d1 = b.d1_mm
-    share = np.where(lb > 0, np.minimum(lb, d1), d1) / d1  # NaN: the post's width
+    _, share = bearing_length(lb, b.d1_mm, 1.0)
     area = a_end * share
-    plate = ~np.isnan(b.plate_lb_mm)
-    if distinct(plate).any():  # steel plates: the plate length x the post's thickness
-        area = np.where(plate, np.maximum(b.plate_lb_mm, d1) * b.d2_mm, area)
+    plates = plate_bearing(b)
+    if plates is not None:  # steel plates: the plate length x the post's thickness
+        area = np.where(plates[0], plates[2], area)
     ones = np.ones(b.n)
     # NDS 2018 §3.10.2: Fc-perp x CM x Ct (x KF phi for LRFD; lambda is on the load side)
     nds_cap = (

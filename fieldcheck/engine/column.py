@@ -15,6 +15,7 @@ import numpy as np
 
 from fieldcheck.engine import condition, nds, spring_ends
 from fieldcheck.engine.batch import EC5, LRFD, PostBatch
+from fieldcheck.engine.bearing_area import bearing_length
 from fieldcheck.engine.blocks import distinct, filled, is_one, prod, scaled
 from fieldcheck.engine.restraint import end_pair, modes_of_pairs
 from fieldcheck.engine.result import Check
@@ -190,8 +191,8 @@ def run_column(b: PostBatch, checks: dict, values: dict) -> None:
     # never more than the post (it bears only where it stands). It sets Cb and the bearing area
     # (NDS 2018 §3.10.4: Cb for lb < 6 in; §3.10.2: fc-perp = P / bearing area): the post's end
     # area x lb / d1 (NaN compares False: the post's width)
-    lb_top, share_top = _bearing_length(b.top_lb_mm, b.d1_mm, one)
-    lb_bot, share_bot = _bearing_length(b.bottom_lb_mm, b.d1_mm, one)
+    lb_top, share_top = bearing_length(b.top_lb_mm, b.d1_mm, one)
+    lb_bot, share_bot = bearing_length(b.bottom_lb_mm, b.d1_mm, one)
     ratio_top = nds.bearing_area_ratio(lb_top)
     ratio_bot = ratio_top if lb_bot is lb_top else None  # both the post's width: once
     cb_top = nds.bearing_area_factor(lb_top, b.top_cb, ratio_top)
@@ -262,16 +263,6 @@ def _stability(fce1, fce2, fc_star, c, kf):
     if np.isnan(cp2).any():
         return cp1, cp2, axis2, np.where(axis2, cp2, cp1)
     return cp1, cp2, axis2, np.minimum(cp1, cp2)
-
-
-def _bearing_length(lb: np.ndarray, d1: np.ndarray, one: np.ndarray):
-    """(lb, lb / d1): the bearing length along the cap's or sill's grain, the post's width d1
-    unless given and never more (NaN compares False), and its share of the end area (one: d1
-    throughout)."""
-    if not (distinct(lb) > 0).any():
-        return d1, one
-    lb = np.where(lb > 0, np.minimum(lb, d1), d1)
-    return lb, lb / d1
 
 
 def capacity_at(b: PostBatch, v: dict, idx: np.ndarray, time_fc: np.ndarray):

@@ -12,6 +12,7 @@ import numpy as np
 from fieldcheck.engine import ec5, en338
 from fieldcheck.engine import quantities as q
 from fieldcheck.engine.batch import EC5, ROUND, PostBatch
+from fieldcheck.engine.bearing_area import bearing_length, plate_bearing
 from fieldcheck.engine.blocks import distinct
 from fieldcheck.engine.restraint import MODE_KEYS, MODES
 from fieldcheck.engine.result import Rating, Step
@@ -58,18 +59,17 @@ def apply_ec5(b: PostBatch, checks: dict, values: dict) -> None:
     # distance and the next contact are not known, judgement). Steel plates at both ends: the
     # plate length along the grain (at least the post's width) x the post's thickness across,
     # as the NDS path takes them (plates stiff enough to spread the load, judgement)
-    plate = ~np.isnan(b.plate_lb_mm)
-    plate = plate if distinct(plate).any() else None
+    plates = plate_bearing(b)
     for end_name, key, lb, a_end in (
         ("top", "cap_bearing", "top_lb_mm", v["a_top"]),
         ("bottom", "sill_bearing", "bottom_lb_mm", v["a_bottom"]),
     ):
         fc90k = getattr(b, f"{end_name}_fc_perp_mpa")
-        given = getattr(b, lb)
-        length = np.where(given > 0, np.minimum(given, b.d1_mm), b.d1_mm)  # NaN: the width
+        length, _ = bearing_length(getattr(b, lb), b.d1_mm, None)
         width = a_end / b.d1_mm
-        if plate is not None:
-            length = np.where(plate, np.maximum(b.plate_lb_mm, b.d1_mm), length)
+        if plates is not None:
+            plate, plate_length, _ = plates
+            length = np.where(plate, plate_length, length)
             width = np.where(plate, b.d2_mm, width)
         br = ec5.bearing_perp_resistance(
             width,

@@ -32,6 +32,7 @@ import numpy as np
 from fieldcheck.engine import loads, nds
 from fieldcheck.engine import quantities as q
 from fieldcheck.engine.batch import EC5, PostBatch
+from fieldcheck.engine.bearing_area import plate_bearing
 from fieldcheck.engine.blocks import filled
 from fieldcheck.engine.customary import FT, LBF
 from fieldcheck.engine.result import Check, Rating, Step
@@ -141,10 +142,10 @@ def _ground_checks(b: PostBatch, checks: dict, values: dict) -> None:
     )
 
     # steel bearing plate at the cap and sill (NDS 2018 §3.10.2, §3.10.4); not for EC5 posts
-    plate = ~np.isnan(b.plate_lb_mm) & (b.method != EC5)
-    if plate.any():
-        lb = np.maximum(np.where(plate, b.plate_lb_mm, b.d1_mm), b.d1_mm)
-        a_plate = lb * b.d2_mm  # plate length along the grain x post thickness across, judgement
+    plates = plate_bearing(b)
+    plate = None if plates is None else plates[0] & (b.method != EC5)
+    if plate is not None and plate.any():
+        _, lb, a_plate = plates
         common = values["cm_bear"] * values["ct_f"] * values["perp_time"] * a_plate
         p_cap = b.top_fc_perp_mpa * nds.bearing_area_factor(lb, b.top_cb) * common
         p_sill = b.bottom_fc_perp_mpa * nds.bearing_area_factor(lb, b.bottom_cb) * common
