@@ -7,6 +7,7 @@
     engine    -> nothing of ours
     units     -> nothing of ours
     row_error -> nothing of ours (a refused field, named by records and store alike)
+    out_path  -> nothing of ours (an output that is a device or a pipe; report and commands)
     commands -> any layer below the interface (thin: parse, call, print), never cli.py, and one
                 command never imports another (shared helpers live in modules that are no command)
     cli      -> commands (and the interface, to open it)
@@ -34,11 +35,22 @@ ALLOWED: dict[str, set[str]] = {
     "units": set(),
     "config": set(),  # the user's config file (report title block, defaults)
     "row_error": set(),  # RowError: the store names it without loading records or the engine
+    "out_path": set(),  # a file or a device/pipe: the report and the commands write outputs
     "records": {"units", "engine", "row_error"},
     "store": {"records", "engine", "row_error"},
-    "report": {"engine", "units", "config", "row_error"},
-    "tui": {"report", "store", "records", "engine", "units", "config", "row_error"},
-    "commands": {"tui", "report", "store", "records", "engine", "units", "config", "row_error"},
+    "report": {"engine", "units", "config", "row_error", "out_path"},
+    "tui": {"report", "store", "records", "engine", "units", "config", "row_error", "out_path"},
+    "commands": {
+        "tui",
+        "report",
+        "store",
+        "records",
+        "engine",
+        "units",
+        "config",
+        "row_error",
+        "out_path",
+    },
     "cli": {"commands", "tui"},
     "root": set(),  # fieldcheck/__init__.py: the version
     "main": {"cli"},  # python -m fieldcheck

@@ -6,19 +6,10 @@ from __future__ import annotations
 
 import contextlib
 import os
-import stat
 from collections.abc import Callable
 from pathlib import Path
 
-
-def not_a_file(path: Path) -> bool:
-    """True where ``path`` exists and is a device or a pipe (``/dev/null``, a FIFO): a rename
-    over it would replace the device itself (as root, /dev/null with a plain file)."""
-    try:
-        mode = os.stat(path).st_mode
-    except OSError:
-        return False
-    return not (stat.S_ISREG(mode) or stat.S_ISDIR(mode))
+from fieldcheck.out_path import not_a_file
 
 
 def write_atomically(path: str | Path, write: Callable, *, encoding: str = "utf-8") -> None:

@@ -31,6 +31,7 @@ from fieldcheck.engine.loads import combination_name
 from fieldcheck.engine.rating import detail
 from fieldcheck.engine.result import ACTION_TEXT, ACTIONS, DUE_DAYS, NOT_RATED
 from fieldcheck.engine.spring_ends import SPRING_MODE
+from fieldcheck.out_path import not_a_file
 from fieldcheck.report.model import PostEntry, ReportData, ReportInfo, gather, visit_date
 from fieldcheck.report.notation import notation, sig, symbols
 from fieldcheck.report.photos import data_uri
@@ -962,7 +963,7 @@ def write_report(
         sys.stdout.flush()
         return Path("-")
     path = Path(path).expanduser()
-    if _not_a_file(path):  # /dev/null, a pipe: written as it is, never renamed over
+    if not_a_file(path):  # /dev/null, a pipe: written as it is, never renamed over
         with open(path, "w", encoding="utf-8", newline="\n") as fh:
             for part in parts:
                 fh.write(part)
@@ -980,18 +981,6 @@ def write_report(
         Path(tmp).unlink(missing_ok=True)
         raise
     return path
-
-
-def _not_a_file(path: Path) -> bool:
-    """True where ``path`` exists and is a device or a pipe (``/dev/null``, a FIFO): renaming
-    the finished file over it would replace the device itself (as root, /dev/null)."""
-    import stat
-
-    try:
-        mode = os.stat(path).st_mode
-    except OSError:
-        return False
-    return not (stat.S_ISREG(mode) or stat.S_ISDIR(mode))
 
 
 def _umask() -> int:
