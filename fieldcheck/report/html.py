@@ -28,7 +28,7 @@ from fieldcheck.engine.cautions import CAUTIONS
 from fieldcheck.engine.ec5_rating import clause_for
 from fieldcheck.engine.explain import action_reasons
 from fieldcheck.engine.loads import combination_name
-from fieldcheck.engine.rating import detail
+from fieldcheck.engine.rating import FLAGS, detail
 from fieldcheck.engine.result import ACTION_TEXT, ACTIONS, DUE_DAYS, NOT_RATED
 from fieldcheck.engine.spring_ends import SPRING_MODE
 from fieldcheck.out_path import not_a_file
@@ -463,7 +463,7 @@ def _record_table(record: dict[str, str], columns: tuple[str, ...]) -> str:
     return f'<div class="tw"><table class="kv inputs"><tbody>{rows}</tbody></table></div>'
 
 
-def _duration_text(rec: dict, s: dict, factor: str) -> str:
+def _duration_text(rec: dict, s: dict, factor: str, assumed: bool) -> str:
     """Where the duration factor came from: the governing combination's loads, the duration
     typed, the permanent default of a load given without one, or no load at all (the capacity
     shown at that factor); never 'default' for a factor a combination set."""
@@ -474,7 +474,7 @@ def _duration_text(rec: dict, s: dict, factor: str) -> str:
         return f"{rec['duration']}; {factor}"
     if s.get("state") != "rated":
         return f"not given, and no load: the capacity is shown at {factor}"
-    if any(str(w).startswith("No load duration stated") for w in s.get("warnings") or ()):
+    if assumed:  # the rating's own flag: a load given with no duration is taken as permanent
         return f"not given: permanent assumed (the conservative choice); {factor}"
     return f"not given: default; {factor}"
 
@@ -499,7 +499,10 @@ def _assumptions(d: ReportData, p: PostEntry) -> str:
             "Knowledge factor kappa",
             f"{float(b.knowledge[j]):g} (ASCE 41 data collection; visit level {p.visit.level})",
         ),
-        ("Load duration", _duration_text(rec, s, dur)),
+        (
+            "Load duration",
+            _duration_text(rec, s, dur, bool(int(r.flags[j]) & FLAGS.bit["duration_assumed"])),
+        ),
         ("Moisture", _moisture(rec, p.meta, method)),
         ("Construction-stage member", "yes" if bool(b.construction[j]) else "no"),
     ]
