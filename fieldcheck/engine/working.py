@@ -219,7 +219,7 @@ def closing_steps(r: Rating, i: int) -> list[Step]:
             "" if given else "; ASCE 7 §2.4.1 / §2.3.1, NDS 2018 §2.3.2"
         )
         add(Step(f"Check: {c.label}", f"capacity {q.force(cap)}{rtxt}", clause))
-    add(Step("Governing check", r.governing_name(i), ""))
+    add(Step("Governing check", r.checks[r.governing_name(i)].label, ""))  # its label, never key
     if not np.isnan(r.ratio[i]):
         add(
             Step(

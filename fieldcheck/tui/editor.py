@@ -538,8 +538,6 @@ class PostEditor(ReleasesKeys, Screen[None]):
                 clause = step.clause.replace("[M]", "").strip() if step.clause else ""
                 clause = f"  [dim]{present.escape(clause)}{note}[/dim]" if clause or note else ""
                 value = units_first(present.sig_text(step.value), units)
-                if step.label == "Governing check" and step.value in self.rating.checks:
-                    value = self.rating.checks[step.value].label  # its label, never its key
                 out.append(f"{present.escape(step.label)}: [b]{present.escape(value)}[/b]{clause}")
         else:
             out.append("No rating yet.")
