@@ -968,12 +968,12 @@ class Log:
                 ok = result.ok
                 k = len(ok)
                 if k:
-                    kept = records if k == len(records) else [records[i] for i in ok]
+                    good = records if k == len(records) else [records[i] for i in ok]
                     # rows built column by column (zip): no per-post Python frame
                     first = self._seqs(3 * k).start
                     ids = new_ids(3 * k)
                     member_ids, obs_ids = ids[0::3], ids[1::3]
-                    tags = [r.get("tag", "") for r in kept]
+                    tags = [r.get("tag", "") for r in good]
                     self._insert(
                         "members",
                         _MEMBER_COLS,
@@ -997,7 +997,7 @@ class Log:
                             repeat(None),
                             repeat(0),
                             repeat(""),
-                            record_texts(kept),
+                            record_texts(good),
                             repeat(dev),
                             range(first + k, first + 2 * k),
                             repeat(who),

@@ -43,3 +43,14 @@ def test_a_failure_in_a_later_chunk_leaves_the_log_as_it_was(tmp_path, shore):
         with pytest.raises(OSError):
             log.import_rows(rows(), "S", "V", chunk=2)
         assert log.posts() == [] and log.sites() == []
+
+
+def test_every_chunk_is_cleaned_alike(tmp_path, shore):
+    # the rows as a caller hands them (not kept): blank cells and the export's own columns are
+    # left out of the stored record in every chunk, not in the first one only
+    rows = [{**shore, "tag": f"P{i}", "notes": " ", "ratio": "0.5"} for i in range(5)]
+    with Log.open(tmp_path / "a.db") as log:
+        log.import_rows(rows, "S", "V", chunk=2)
+        stored = [p.record for p in log.posts()]
+    assert len(stored) == 5
+    assert all("notes" not in r and "ratio" not in r for r in stored), stored
