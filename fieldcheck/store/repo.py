@@ -430,10 +430,12 @@ class Log:
 
         ``refs_made_here``: every row the transaction writes refers only to rows the same code
         found or wrote in it (a bulk import: the site, the visit, the engine stamp, and the
-        members and revisions it has just written). SQLite's per-row foreign-key check (about
-        0.2 CPU-s per 100,000 imported posts) is then off for that transaction (PRAGMA foreign_keys
-        cannot change inside one) and on again after, whatever happens; the import's tests run
-        PRAGMA foreign_key_check on what it wrote. Nothing else may ask for it."""
+        members and revisions it has just written; a re-rate: the revisions it read in this
+        transaction and the stamp). SQLite's per-row foreign-key check (about 0.2 CPU-s per
+        100,000 imported posts) is then off for that transaction (PRAGMA foreign_keys cannot
+        change inside one) and on again after, whatever happens; the import's and the
+        re-rate's tests run PRAGMA foreign_key_check on what they wrote. Nothing else may ask
+        for it."""
         if self.readonly:
             raise LogError(f"the survey log {self.path} was opened read-only")
         with self._lock:
@@ -856,7 +858,9 @@ class Log:
         cache: dict = {}  # the records layer's distinct parses, kept from chunk to chunk
         errors: list[RowError] = []
         n = good_n = 0
-        with self._write(), _cyclic_gc_paused():
+        # every rating written refers to a revision read in this transaction and to the stamp
+        # found or made here: no per-row foreign-key check (see _write)
+        with self._write(refs_made_here=True), _cyclic_gc_paused():
             self._ensure_stamp()
             created = now()
             dev, who = self.device_id, self.author

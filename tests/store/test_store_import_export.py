@@ -49,6 +49,19 @@ def test_import_writes_no_dangling_reference_and_leaves_the_check_on(log, shore)
         )
 
 
+def test_rerate_writes_no_dangling_reference_and_leaves_the_check_on(log, shore):
+    # a re-rate too writes without the per-row check (its ratings refer to revisions it read
+    # in the same transaction and the stamp it found or made): the full check passes (judgement)
+    log.import_rows([{**shore, "tag": f"S{i}"} for i in range(20)], "Alder Row", "Shoring")
+    post = log.posts()[0]
+    log.save_post(post.visit_id, {**shore, "tag": "S0", "height": "7 ft"}, member_id=post.member_id)
+    res = log.rerate_all(chunk=8)
+    assert res.rated == 20
+    assert log.db.conn.execute("SELECT count(*) FROM ratings").fetchone()[0] == 41
+    assert _fk_problems(log) == []
+    assert log.db.conn.execute("PRAGMA foreign_keys").fetchone()[0] == 1
+
+
 def test_an_import_that_fails_part_way_writes_nothing_and_leaves_the_check_on(log, shore):
     def rows():
         yield from ({**shore, "tag": f"S{i}"} for i in range(20))
