@@ -26,13 +26,19 @@ from pathlib import Path
 from fieldcheck.engine.batch import EC5, END_NAMES
 from fieldcheck.engine.cautions import CAUTIONS
 from fieldcheck.engine.ec5_rating import clause_for
-from fieldcheck.engine.explain import action_reasons
 from fieldcheck.engine.loads import combination_name
 from fieldcheck.engine.rating import FLAGS, detail
-from fieldcheck.engine.result import ACTION_TEXT, ACTIONS, DUE_DAYS, NOT_RATED
+from fieldcheck.engine.result import ACTION_TEXT, ACTIONS, DUE_DAYS
 from fieldcheck.engine.spring_ends import SPRING_MODE
 from fieldcheck.out_path import not_a_file
-from fieldcheck.report.model import PostEntry, ReportData, ReportInfo, gather, visit_date
+from fieldcheck.report.model import (
+    PostEntry,
+    ReportData,
+    ReportInfo,
+    check_label,
+    gather,
+    visit_date,
+)
 from fieldcheck.report.notation import notation, sig, symbols
 from fieldcheck.report.photos import data_uri
 from fieldcheck.report.style import stylesheet
@@ -76,7 +82,8 @@ def date_text(d) -> str:
     return "" if d is None else d.isoformat()
 
 
-def due_text(p: PostEntry) -> str:
+def due_text(p) -> str:
+    """When a post's action falls due (``p``: a PostEntry or a model.PostRow)."""
     a = p.action
     if not p.rated:
         return "assess first"
@@ -105,25 +112,42 @@ def table(head: list[str], body: str, cls: str = "") -> str:
     """A table whose header row repeats on every printed page; on a phone-width screen each row
     becomes a card of "header: value" lines (nothing runs off the screen), and anything wider
     still scrolls sideways in its box. ``head``: header cells as HTML ("num:" right-aligns)."""
+    return "".join(table_parts(head, [body], cls))
+
+
+def table_parts(head: list[str], bodies, cls: str = ""):
+    """``table`` in pieces for a writer to stream: ``bodies`` is an iterable of row texts (each
+    whole rows), labelled one by one."""
     cells = "".join(
         f'<th class="num">{h[4:]}</th>' if h.startswith("num:") else f"<th>{h}</th>" for h in head
     )
     labels = [e(_TAGS.sub("", h[4:] if h.startswith("num:") else h)) for h in head]
     c = f' class="cards {cls}"' if cls else ' class="cards"'
-    return (
-        f'<div class="tw"><table{c}><thead><tr>{cells}</tr></thead>'
-        f"<tbody>{_labelled(body, labels)}</tbody></table></div>"
-    )
+    yield f'<div class="tw"><table{c}><thead><tr>{cells}</tr></thead><tbody>'
+    for body in bodies:
+        yield _labelled(body, labels)
+    yield "</tbody></table></div>"
+
+
+# rows joined into one piece before a writer gets them (fewer, larger writes)
+ROWS_PER_PIECE = 512
+
+
+def pieces(texts, sep: str = ""):
+    """``sep.join(texts)`` in pieces of ``ROWS_PER_PIECE`` texts (a stream of any length)."""
+    batch: list[str] = []
+    first = True
+    for t in texts:
+        batch.append(t)
+        if len(batch) == ROWS_PER_PIECE:
+            yield ("" if first else sep) + sep.join(batch)
+            batch, first = [], False
+    if batch:
+        yield ("" if first else sep) + sep.join(batch)
 
 
 def kv(rows: str) -> str:
     return f'<div class="tw"><table class="kv"><tbody>{rows}</tbody></table></div>'
-
-
-def check_label(r, name: str) -> str:
-    """A check's name in words (the engine's label), never its key."""
-    c = r.checks.get(name) if r is not None else None
-    return c.label if c is not None else name.replace("_", " ")
 
 
 def header_text(d: ReportData) -> tuple[str, str]:
@@ -176,16 +200,13 @@ def _cover(d: ReportData) -> str:
         for v in d.visits
     )
     # a post with field errors (no action) and one with no load are both not rated: one count
-    counts: dict[int, int] = {}
-    for p in d.posts:
-        a = NOT_RATED if p.action is None else p.action
-        counts[a] = counts.get(a, 0) + 1
-    count_txt = ", ".join(f"{badge(a)} {n}" for a, n in sorted(counts.items()))
+    # (model.gather counted them)
+    count_txt = ", ".join(f"{badge(a)} {n}" for a, n in sorted(d.counts.items()))
     return (
         '<section id="cover"><h1>Survey report</h1>'
         f'<table class="titleblock"><tbody>{block}</tbody></table>'
         + kv(
-            site_rows + f"<tr><th>Posts in this report</th><td>{len(d.posts)}"
+            site_rows + f"<tr><th>Posts in this report</th><td>{d.n}"
             f"{': ' + count_txt if count_txt else ''}</td></tr>"
             f"<tr><th>Scope</th><td>{e(d.scope)}</td></tr>"
         )
@@ -217,17 +238,9 @@ def _signoff(d: ReportData) -> str:
     )
 
 
-def _where(p: PostEntry) -> str:
-    loc = p.view.location
+def _where(p) -> str:
+    loc = p.location
     return f"{e(p.tag)}{' (' + e(loc) + ')' if loc else ''}"
-
-
-def client_group(p: PostEntry) -> int | None:
-    """The client summary's group of a post: its action, but None (not assessed) for a post with
-    no load (a capacity without a demand decides nothing) or no rating at all."""
-    if not p.rated or p.ratio is None:
-        return None
-    return p.action
 
 
 NOT_ASSESSED = (
@@ -236,79 +249,71 @@ NOT_ASSESSED = (
 )
 
 
-def _client(d: ReportData) -> str:
-    """Plain words for the client: safe, restricted, to do by when; no engineering terms."""
-    out = ['<section id="client" class="client"><h2>Client summary</h2>']
-    if not d.posts:
-        out.append(
+def _client(d: ReportData):
+    """Plain words for the client: safe, restricted, to do by when; no engineering terms. In
+    pieces, most urgent first within each group (the rows come from model.PostRows)."""
+    rows = d.rows
+    yield '<section id="client" class="client"><h2>Client summary</h2>'
+    if not d.n:
+        yield (
             "<p>No posts were recorded in the scope of this report, so there is nothing "
             "to decide from it. Ask the inspector whether the survey is complete.</p>"
         )
-    groups: dict[int | None, list[PostEntry]] = {}
-    for p in d.by_urgency():
-        groups.setdefault(client_group(p), []).append(p)
-    if groups.get(3):
-        out.append(
+    if rows.count(grp=3):
+        yield (
             '<div class="alert"><h3>\u2716 Unsafe now: keep everyone out from under these '
             "and call the engineer</h3><ul>"
         )
-        out += [
+        yield from pieces(
             f"<li>{_where(p)}: clear the area under the load now and put in emergency "
             "support before anyone works there again.</li>"
-            for p in groups[3]
-        ]
-        out.append("</ul></div>")
-    if groups.get(None):
-        out.append(
+            for p in rows.by_urgency(grp=3)
+        )
+        yield "</ul></div>"
+    if rows.count(grp=None):
+        yield (
             "<h3>? Not assessed: treat as unsafe</h3><p>These posts could not be assessed from "
             "what was recorded (a measurement or the load on them is missing); keep load off them "
             "and treat them as unsafe until the inspector completes them: "
-            + ", ".join(_where(p) for p in groups[None])
-            + ".</p>"
         )
-    if groups.get(2):
-        out.append(
-            "<h3>\u25b2 Restricted: do not add load; repair or brace by the date shown</h3><ul>"
-        )
-        out += [
+        yield from pieces((_where(p) for p in rows.by_urgency(grp=None)), ", ")
+        yield ".</p>"
+    if rows.count(grp=2):
+        yield "<h3>\u25b2 Restricted: do not add load; repair or brace by the date shown</h3><ul>"
+        yield from pieces(
             f"<li>{_where(p)}: no storage or extra load near this post; it must be repaired, "
             f"braced or supported by <b>{e(due_text(p))}</b>.</li>"
-            for p in groups[2]
-        ]
-        out.append("</ul>")
-    if groups.get(1):
-        out.append("<h3>\u25cb Safe to use, to be checked again</h3><ul>")
-        out += [
+            for p in rows.by_urgency(grp=2)
+        )
+        yield "</ul>"
+    if rows.count(grp=1):
+        yield "<h3>\u25cb Safe to use, to be checked again</h3><ul>"
+        yield from pieces(
             f"<li>{_where(p)}: safe to use as it is now; to be looked at again by "
             f"{e(due_text(p))}, and at once after any change, impact or movement.</li>"
-            for p in groups[1]
-        ]
-        out.append("</ul>")
-    if groups.get(0):
-        out.append(
-            "<h3>\u2713 Safe to use as found</h3><p>"
-            + ", ".join(_where(p) for p in groups[0])
-            + ".</p>"
+            for p in rows.by_urgency(grp=1)
         )
+        yield "</ul>"
+    if rows.count(grp=0):
+        yield "<h3>\u2713 Safe to use as found</h3><p>"
+        yield from pieces((_where(p) for p in rows.by_urgency(grp=0)), ", ")
+        yield ".</p>"
     # a post not assessed is work to do before anything else: never left out of the dates
-    dated = [p for p in d.by_urgency() if client_group(p) is None or p.action in (2, 3)]
-    if dated:
-        out.append("<h3>What must happen by when</h3>")
-        out.append(
-            table(
-                ["By", "Post", "What"],
-                "".join(
-                    f"<tr><td>{e(due_text(p))}</td><td>{_where(p)}</td>"
-                    f"<td>{e(ACTION_TEXT[p.action] if client_group(p) else NOT_ASSESSED)}</td>"
-                    "</tr>"
-                    for p in dated
-                ),
-            )
+    if rows.count(dated=1):
+        yield "<h3>What must happen by when</h3>"
+        yield from table_parts(
+            ["By", "Post", "What"],
+            pieces(
+                f"<tr><td>{e(due_text(p))}</td><td>{_where(p)}</td>"
+                f"<td>{e(ACTION_TEXT[p.action] if p.grp else NOT_ASSESSED)}</td>"
+                "</tr>"
+                for p in rows.by_urgency(dated=1)
+            ),
         )
     levels = sorted({v.level for v in d.visits})
     who = d.info.engineer or "the engineer responsible for the works"
     firm = f" ({d.info.firm})" if d.info.firm else ""
-    out.append(
+    yield (
         "<h3>Limits of this survey</h3><p>The posts were assessed from what could be seen and "
         f"measured on the day (data-collection level: {e(', '.join(levels) or 'not recorded')}). "
         "Hidden decay, hidden joints or loads nobody knew about can make a post weaker than shown. "
@@ -318,34 +323,31 @@ def _client(d: ReportData) -> str:
         "post moving, a settling sill, new cracks, creaking), first get everyone out from under "
         "the load, then call.</p></section>"
     )
-    return "".join(out)
 
 
-def _summary_rows(d: ReportData, posts) -> str:
-    u = d.units
-    rows = []
-    for p in posts:
-        mid = e(p.view.member_id)
-        if p.j is None:
-            rows.append(
-                f"<tr><td><a href='#m-{mid}'>{e(p.tag)}</a></td><td>{e(p.view.location)}</td>"
-                f"<td>{e(p.visit.name)}</td><td>{badge(None)}</td>"
-                "<td colspan=4>not rated: the record has field errors</td>"
-                "<td>assess first</td></tr>"
-            )
-            continue
-        r = p.rating
-        rows.append(
-            f"<tr><td><a href='#m-{mid}'>{e(p.tag)}</a></td><td>{e(p.view.location)}</td>"
-            f"<td>{e(p.visit.name)}</td><td>{badge(p.action)}</td>"
-            f'<td class="num" data-k="capacity" data-post="{mid}">'
-            f"{e(format_force(r.capacity_n[p.j], u))}</td>"
-            f'<td class="num">{e(format_force(r.demand_n[p.j], u))}</td>'
-            f'<td class="num" data-k="ratio" data-post="{mid}">'
-            f"{e(ratio_text(float(r.ratio[p.j])))}</td>"
-            f"<td>{e(check_label(r, r.governing_name(p.j)))}</td><td>{e(due_text(p))}</td></tr>"
+def _summary_row(d: ReportData, p) -> str:
+    """One row of the every-post table (``p``: a model.PostRow)."""
+    mid = e(p.member_id)
+    if p.action is None:
+        return (
+            f"<tr><td><a href='#m-{mid}'>{e(p.tag)}</a></td><td>{e(p.location)}</td>"
+            f"<td>{e(p.visit_name)}</td><td>{badge(None)}</td>"
+            "<td colspan=4>not rated: the record has field errors</td>"
+            "<td>assess first</td></tr>"
         )
-    return "".join(rows)
+    u, nan = d.units, math.nan
+    cap = nan if p.capacity_n is None else p.capacity_n
+    dem = nan if p.demand_n is None else p.demand_n
+    return (
+        f"<tr><td><a href='#m-{mid}'>{e(p.tag)}</a></td><td>{e(p.location)}</td>"
+        f"<td>{e(p.visit_name)}</td><td>{badge(p.action)}</td>"
+        f'<td class="num" data-k="capacity" data-post="{mid}">'
+        f"{e(format_force(cap, u))}</td>"
+        f'<td class="num">{e(format_force(dem, u))}</td>'
+        f'<td class="num" data-k="ratio" data-post="{mid}">'
+        f"{e(ratio_text(p.ratio))}</td>"
+        f"<td>{e(p.governs)}</td><td>{e(due_text(p))}</td></tr>"
+    )
 
 
 SUMMARY_HEAD = [
@@ -361,53 +363,55 @@ SUMMARY_HEAD = [
 ]
 
 
-def _summary_table(d: ReportData) -> str:
-    body = _summary_rows(d, d.posts) or (
-        "<tr><td colspan=9>No posts are recorded in this scope.</td></tr>"
-    )
-    return (
+def _summary_table(d: ReportData):
+    yield (
         '<section id="summary"><h2>Every post</h2>'
         "<p class='small muted'>Re-rated for this report in one engine run; due date = visit date "
         "+ the action's interval (judgement defaults: monitor 90 days, repair or brace 14 days, "
-        "make safe: now).</p>" + table(SUMMARY_HEAD, body) + "</section>"
+        "make safe: now).</p>"
     )
+    body = (
+        pieces(_summary_row(d, p) for p in d.rows.in_order())
+        if d.n
+        else ["<tr><td colspan=9>No posts are recorded in this scope.</td></tr>"]
+    )
+    yield from table_parts(SUMMARY_HEAD, body)
+    yield "</section>"
 
 
-def _open_actions(d: ReportData) -> str:
-    open_ = [p for p in d.by_urgency() if not p.rated or p.action in (1, 2, 3)]
-    out = ['<section id="actions"><h2>Open actions</h2>']
-    first = [p for p in open_ if p.action == 3]
-    if first:
-        out.append('<div class="alert"><h3>\u2716 Make safe first</h3><ol>')
-        out += [
+def _open_actions(d: ReportData):
+    rows = d.rows
+    yield '<section id="actions"><h2>Open actions</h2>'
+    if rows.count(open=1, action=3):
+        yield '<div class="alert"><h3>\u2716 Make safe first</h3><ol>'
+        yield from pieces(
             f"<li>{_where(p)}: ratio {e(ratio_text(p.ratio))}; {e(ACTION_TEXT[3])}</li>"
-            for p in first
-        ]
-        out.append("</ol></div>")
-    if not open_:
-        out.append("<p>No open actions: every post in this report is adequate as found.</p>")
+            for p in rows.by_urgency(open=1, action=3)
+        )
+        yield "</ol></div>"
+    if not rows.count(open=1):
+        yield "<p>No open actions: every post in this report is adequate as found.</p>"
     else:
-        rows = []
-        for p in open_:
-            # a record with field errors was never rated: its load may well be given
-            ratio = "field errors" if p.action is None else ratio_text(p.ratio)
-            what = (
-                ACTION_TEXT[p.action]
-                if p.action is not None
-                else ("Complete the record: " + "; ".join(p.errors))
-            )
-            # the warnings that set the action: why a post whose ratio passes needs work
-            why = action_reasons(p.rating, p.j) if p.j is not None else []
-            if why:
-                what += " Raised by: " + " ".join(why)
-            rows.append(
-                f"<tr><td>{_where(p)}</td><td>{badge(p.action)}</td>"
-                f"<td class='num'>{e(ratio)}</td><td>{e(due_text(p))}</td>"
-                f"<td>{e(what)}</td></tr>"
-            )
-        out.append(table(["Post", "Action", "num:Ratio", "Due", "What to do"], "".join(rows)))
-    out.append("</section>")
-    return "".join(out)
+        yield from table_parts(
+            ["Post", "Action", "num:Ratio", "Due", "What to do"],
+            pieces(_open_row(p) for p in rows.by_urgency(open=1)),
+        )
+    yield "</section>"
+
+
+def _open_row(p) -> str:
+    """One row of the open actions (``p``: a model.PostRow)."""
+    # a record with field errors was never rated: its load may well be given
+    ratio = "field errors" if p.action is None else ratio_text(p.ratio)
+    what = ACTION_TEXT[p.action] if p.action is not None else ("Complete the record: " + p.errors)
+    # the warnings that set the action: why a post whose ratio passes needs work
+    if p.why is not None:
+        what += " Raised by: " + p.why
+    return (
+        f"<tr><td>{_where(p)}</td><td>{badge(p.action)}</td>"
+        f"<td class='num'>{e(ratio)}</td><td>{e(due_text(p))}</td>"
+        f"<td>{e(what)}</td></tr>"
+    )
 
 
 def _conflicts(d: ReportData) -> str:
@@ -623,10 +627,10 @@ def _remedies(d: ReportData, p: PostEntry) -> str:
     )
 
 
-def _photo(d: ReportData, a) -> str:
+def _photo(p: PostEntry, a) -> str:
     """One attached photo: a reduced copy when its file is there and its sha256 is the recorded
     one, else a sentence saying why not; the caption and the sha256 either way."""
-    f = d.photo_files.get(a.id)
+    f = p.photo_files.get(a.id)
     uri = data_uri(f) if f is not None else None
     if uri is not None:
         img = f'<img src="{uri}" alt="{e(a.caption or "photo")}">'
@@ -663,7 +667,7 @@ def _notes_photos(d: ReportData, p: PostEntry) -> str:
     if revs:
         out.append(f"<h3>Office reviews</h3><ul>{revs}</ul>")
     if p.attachments:
-        out.append("<h3>Photos</h3><div>" + "".join(_photo(d, a) for a in p.attachments) + "</div>")
+        out.append("<h3>Photos</h3><div>" + "".join(_photo(p, a) for a in p.attachments) + "</div>")
     return "".join(out)
 
 
@@ -726,7 +730,7 @@ def working_rows(steps) -> list[tuple[str, str, str]]:
 def _states_rows(d: ReportData, p: PostEntry) -> str:
     """Office review and remedy state of a post (rows of its result table)."""
     out = ""
-    rv = d.review_states.get(p.view.member_id)
+    rv = p.review_state
     if rv is not None:
         if rv.review is None:
             text = "awaiting office review"
@@ -737,7 +741,7 @@ def _states_rows(d: ReportData, p: PostEntry) -> str:
             if rv.instruction:
                 text += f"; {rv.instruction}"
         out += f"<tr><th>Office review</th><td>{e(text)}</td></tr>"
-    rm = d.remedy_states.get(p.view.member_id)
+    rm = p.remedy_state
     if rm is not None:
         text = rm.state
         if rm.done_on:
@@ -876,9 +880,9 @@ def render_parts(d: ReportData, *, summary_only: bool = False, progress=None):
         f"<title>{e(title)}</title><style>{stylesheet(left, right)}</style></head><body>\n"
     )
     yield _cover(d) + "\n"
-    yield _client(d) + "\n"
-    yield _summary_table(d) + "\n"
-    yield _open_actions(d) + "\n"
+    for part in (_client, _summary_table, _open_actions):  # streamed: any number of posts
+        yield from part(d)
+        yield "\n"
     yield _conflicts(d) + "\n"
     if summary_only:
         yield (
@@ -925,9 +929,12 @@ def render_report(
     (default: the clock now)."""
     _check_units(units)
     d = gather(log, site_id, visit_id, units, now=now)
-    if info is not None:
-        d.info = info
-    return render(d, summary_only=summary_only)
+    try:
+        if info is not None:
+            d.info = info
+        return render(d, summary_only=summary_only)
+    finally:
+        d.close()
 
 
 def _check_units(units: str) -> None:
@@ -950,16 +957,23 @@ def write_report(
     the permissions the user's umask gives a new file, streamed post by post. Without ``info``,
     the title block comes from the config file and the revision is counted up in the log (a
     writable one). ``path`` "-": the standard output. ``progress(done, total, stage)``."""
-    import sys
-
     _check_units(units)
     d = gather(log, site_id, visit_id, units, progress=progress)
-    if info is None:
-        from fieldcheck.report.model import issue_info
+    try:
+        if info is None:
+            from fieldcheck.report.model import issue_info
 
-        info = issue_info(log, site_id, visit_id)
-    d.info = info
-    parts = render_parts(d, summary_only=summary_only, progress=progress)
+            info = issue_info(log, site_id, visit_id)
+        d.info = info
+        return _write(render_parts(d, summary_only=summary_only, progress=progress), path)
+    finally:
+        d.close()
+
+
+def _write(parts, path) -> Path:
+    """The pieces to ``path`` ("-": the standard output), atomically for a file."""
+    import sys
+
     if str(path) == "-":
         for part in parts:
             sys.stdout.write(part)

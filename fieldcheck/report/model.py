@@ -1,17 +1,23 @@
-"""What a survey report shows, gathered from the log and re-rated in ONE engine call.
+"""What a survey report shows, gathered from the log and re-rated a chunk of posts at a time.
 
-The renderer (html.py) only formats what is here. Every number a report prints comes from
-``ReportData.rating`` (the current records re-rated together) or from the stored rating it is
-compared with; per-post text (summary, working) is asked of the engine only for the posts of the
-report, and the capacity-against-height curves of every post come from one more engine call.
+The renderer (html.py) only formats what is here. Every number a report prints comes from the
+current records re-rated (one engine call per chunk of ``CHUNK`` posts) or from the stored rating
+it is compared with. ``gather`` makes two passes over the log so that memory stays flat in the
+number of posts: the first keeps what the summary parts show of each post as a compact row on
+disk (``PostRows``, a temporary table of the store), the second (``ReportData.posts``) reads and
+rates each chunk again for the per-post sections; per-post text (summary, working) is asked of
+the engine only when a section is written, and each chunk's capacity-against-height curves and
+remedies come from one more engine call each.
 """
 
 from __future__ import annotations
 
 import datetime as _dt
+import hashlib
 import math
+from collections.abc import Iterator
 from dataclasses import dataclass, field
-from typing import Any
+from typing import Any, NamedTuple
 
 import numpy as np
 
@@ -51,12 +57,18 @@ class PostEntry:
     curve_h: np.ndarray | None = None  # mm
     curve_cap: np.ndarray | None = None  # N
     review_state: Any = None  # store ReviewState: awaiting review, accepted, overridden, ...
+    remedy_state: Any = None  # store RemedyState: as found, proposed, as remedied
+    photo_files: dict[str, Any] = field(default_factory=dict)  # attachment id -> Path | None
     load_stored: Any = None  # () -> StoredRating | None (the log, asked when written)
     _cache: dict[str, Any] = field(default_factory=dict, repr=False)
 
     @property
     def tag(self) -> str:
         return self.view.tag or self.view.member_id[:8]
+
+    @property
+    def location(self) -> str:
+        return self.view.location
 
     @property
     def action(self) -> int | None:
@@ -175,8 +187,8 @@ class ReportData:
     sites: list[Any]
     visits: list[Any]
     scope: str  # "site ...", "visit ...", "the whole log"
-    posts: list[PostEntry]
-    rating: Rating | None
+    posts: Any  # Posts: iterable of PostEntry, read and rated again a chunk at a time; len()
+    rating: Rating | None  # the first chunk's rating
     conflicts: list[tuple[str, list[Any]]]  # (tag, heads) of members with more than one head
     engine_version: str
     editions: dict[str, str]
@@ -184,17 +196,23 @@ class ReportData:
     units: str
     signoffs: list[Any] = field(default_factory=list)  # sign-off reviews of the report's visits
     info: ReportInfo = field(default_factory=ReportInfo)
-    review_states: dict[str, Any] = field(default_factory=dict)  # member id -> ReviewState
-    remedy_states: dict[str, Any] = field(default_factory=dict)  # member id -> RemedyState
     columns: tuple[str, ...] = ()  # the rated record columns in the registry's order (log)
-    photo_files: dict[str, Any] = field(default_factory=dict)  # attachment id -> Path | None
+    rows: Any = None  # PostRows: what the summary parts show of each post (on disk)
+    counts: dict[int, int] = field(default_factory=dict)  # action (NOT_RATED: refused too) -> n
+
+    @property
+    def n(self) -> int:
+        return len(self.posts)
 
     @property
     def rated(self) -> list[PostEntry]:
+        """The posts with a rating (every post read: for a small report)."""
         return [p for p in self.posts if p.j is not None]
 
-    def by_urgency(self) -> list[PostEntry]:
-        return sorted(self.posts, key=lambda p: p.urgency_key)
+    def close(self) -> None:
+        """Remove the temporary table of the summary rows."""
+        if self.rows is not None:
+            self.rows.close()
 
 
 def visit_date(visit) -> _dt.date | None:
@@ -282,18 +300,222 @@ def _differences(stored, rating: Rating, j: int, eds: dict[str, str]) -> list[st
 CHUNK = max(1, BLOCK // len(CURVE_FACTORS))
 
 
-def _rate_chunk(log, records: list[dict], meta_out: list, errs_out: dict, base: int):
-    """Rate one chunk, parsed and rated by the log (``log.rate_records``): (rating, index of
-    each row into it, remedies, heights, caps)."""
-    parsed, rating = log.rate_records(records)
-    for e in parsed.errors:
-        errs_out.setdefault(base + e.row, []).append(e.sentence())  # the column named once
-    meta_out.extend(parsed.meta)
-    if rating is None:
-        return None, {}, None, None, None
-    heights, caps = capacity_curves(parsed.batch)
-    rem = batch_remedies(parsed.batch, rating)
-    return rating, {int(i): j for j, i in enumerate(parsed.index)}, rem, heights, caps
+def check_label(r, name: str) -> str:
+    """A check's name in words (the engine's label), never its key."""
+    c = r.checks.get(name) if r is not None else None
+    return c.label if c is not None else name.replace("_", " ")
+
+
+def client_group(p) -> int | None:
+    """The client summary's group of a post (a PostEntry or a PostRow): its action, but None
+    (not assessed) for a post with no load (a capacity without a demand decides nothing) or no
+    rating at all."""
+    if not p.rated or p.ratio is None:
+        return None
+    return p.action
+
+
+class PostRow(NamedTuple):
+    """What the summary parts (cover, client summary, every-post table, open actions) show of
+    one post: kept on disk (Log.scratch) between the report's two passes over the log, never one
+    object per post in memory."""
+
+    member_id: str
+    tag: str  # the tag, or the start of the member id when none was typed
+    location: str
+    visit_name: str
+    action: int | None  # None: the record has field errors (never rated)
+    ratio: float | None  # None: not finite (no load) or no rating
+    capacity_n: float | None  # None: not finite
+    demand_n: float | None
+    governs: str | None  # the governing check's label
+    due_day: int | None  # date ordinal
+    errors: str | None  # a refused record's field errors, "; "-joined
+    why: str | None  # open posts: the warnings that set the action, " "-joined; None: none
+    grp: int | None  # client_group
+    ua: float  # urgency: the action, 2.5 for a post not rated (after make safe, before repair)
+    ur: float  # then the ratio, -1 without one
+    open: int  # an open action (not rated, monitor, repair, make safe)
+    dated: int  # in the client's dates (not assessed, repair, make safe)
+
+    @property
+    def rated(self) -> bool:
+        return self.action is not None and self.action != NOT_RATED
+
+    @property
+    def due(self) -> _dt.date | None:
+        return None if self.due_day is None else _dt.date.fromordinal(self.due_day)
+
+
+# most urgent first: make safe, not rated, repair, monitor, no action; then the larger ratio,
+# then the tag, then the report's order (the scratch table's own)
+URGENCY = ("-ua", "-ur", "tag")
+
+
+class PostRows:
+    """The PostRow of every post of a report, in a temporary table of the store (on disk)."""
+
+    def __init__(self, log):
+        self._t = log.scratch(PostRow._fields)
+
+    def add(self, rows: list[PostRow]) -> None:
+        self._t.add(rows)
+
+    def count(self, **eq) -> int:
+        return self._t.count(**eq)
+
+    def in_order(self) -> Iterator[PostRow]:
+        return map(PostRow._make, self._t.read())
+
+    def by_urgency(self, **eq) -> Iterator[PostRow]:
+        """The rows (those whose fields equal ``eq``), most urgent first (``URGENCY``)."""
+        return map(PostRow._make, self._t.read(URGENCY, **eq))
+
+    def close(self) -> None:
+        self._t.close()
+
+
+def _finite(x: float) -> float | None:
+    return x if math.isfinite(x) else None
+
+
+def post_row(view, visit, rating: Rating | None, j: int | None, errors: list[str]) -> PostRow:
+    """The PostRow of one post (``j``: its index into ``rating``, None when refused)."""
+    tag = view.tag or view.member_id[:8]
+    if j is None:
+        action = ratio = cap = dem = gov = due = why = None
+        errs: str | None = "; ".join(errors)
+    else:
+        action = int(rating.action[j])
+        ratio = _finite(float(rating.ratio[j]))
+        cap, dem = _finite(float(rating.capacity_n[j])), _finite(float(rating.demand_n[j]))
+        gov = check_label(rating, rating.governing_name(j))
+        d = due_date(visit, action)
+        due = None if d is None else d.toordinal()
+        why = " ".join(explain.action_reasons(rating, j)) or None
+        errs = None
+    rated = action is not None and action != NOT_RATED
+    grp = None if not rated or ratio is None else action
+    return PostRow(
+        view.member_id,
+        tag,
+        view.location,
+        visit.name,
+        action,
+        ratio,
+        cap,
+        dem,
+        gov,
+        due,
+        errs,
+        why,
+        grp,
+        2.5 if not rated else float(action),
+        ratio if ratio is not None else -1.0,
+        int(not rated or action in (1, 2, 3)),
+        int(grp is None or action in (2, 3)),
+    )
+
+
+class LogChanged(ValueError):
+    """The log's posts changed between the report's two passes over them."""
+
+    def __init__(self):
+        super().__init__(
+            "the survey log changed while the report was being written (a post was saved, "
+            "withdrawn, synced or re-rated meanwhile); write the report again"
+        )
+
+
+def _digest(views, parsed, rating: Rating | None) -> bytes:
+    """What must be the same in both passes over one chunk: its posts' revisions and ratings."""
+    h = hashlib.blake2b(digest_size=16)
+    h.update("\0".join(v.observation_id for v in views).encode())
+    h.update(np.asarray(parsed.index, dtype=np.int64).tobytes())
+    if rating is not None:
+        for a in (rating.action, rating.ratio, rating.capacity_n, rating.demand_n):
+            h.update(np.ascontiguousarray(a).tobytes())
+    return h.digest()
+
+
+class Posts:
+    """The report's posts in order (PostEntry), read again from the log and re-rated a chunk
+    at a time each time they are iterated (``CHUNK`` posts in one engine call, their capacity
+    curves and remedies in one more each): the second pass of the report, holding one chunk.
+    Raises LogChanged when a chunk differs from the first pass (``digests``)."""
+
+    def __init__(self, log, visit_id, site_id, n: int, digests: list[bytes], visits, kept_out):
+        self._log, self._visit_id, self._site_id = log, visit_id, site_id
+        self._n, self._digests = n, digests
+        self._visits, self._kept_out = visits, kept_out
+
+    def __len__(self) -> int:
+        return self._n
+
+    def __iter__(self) -> Iterator[PostEntry]:
+        log = self._log
+        k = 0
+        chunks = log.iter_posts(self._visit_id, site_id=self._site_id, chunk=CHUNK)
+        for views in chunks:
+            parsed, rating = log.rate_records([p.record for p in views])
+            if k >= len(self._digests) or _digest(views, parsed, rating) != self._digests[k]:
+                chunks.close()
+                raise LogChanged()
+            k += 1
+            yield from self._entries(views, parsed, rating)
+        if k != len(self._digests):
+            raise LogChanged()
+
+    def _entries(self, views, parsed, rating) -> Iterator[PostEntry]:
+        log = self._log
+        errs: dict[int, list[str]] = {}
+        for er in parsed.errors:
+            errs.setdefault(er.row, []).append(er.sentence())  # the column named once
+        row_to_j: dict[int, int] = {}
+        rem = heights = caps = None
+        if rating is not None:
+            heights, caps = capacity_curves(parsed.batch)
+            rem = batch_remedies(parsed.batch, rating)
+            row_to_j = {int(i): j for j, i in enumerate(parsed.index)}
+        att = log.attachments_of(views)
+        revs = log.reviews_of(views)
+        # the log's review and remedy states leave out the posts at a demo site kept out of its
+        # lists (Log.demo_kept_out): the report has shown no such rows for them
+        shown = [v for v in views if v.site_id not in self._kept_out]
+        states = log.review_states_of(shown, revs)
+        remedy = log.remedy_states_of(shown)
+        for i, view in enumerate(views):
+            j = row_to_j.get(i)
+            visit = self._visits[view.visit_id]
+            mine = att.get(view.member_id, [])
+            common = {
+                "attachments": mine,
+                "reviews": revs.get(view.member_id, []),
+                "review_state": states.get(view.member_id),
+                "remedy_state": remedy.get(view.member_id),
+                "photo_files": {a.id: log.photo_file(a) for a in mine},
+                "load_stored": _loader(log, view.observation_id),
+            }
+            if j is None:
+                yield PostEntry(view, visit, None, errs.get(i, []), {}, **common)
+                continue
+            yield PostEntry(
+                view,
+                visit,
+                j,
+                [],
+                parsed.meta[j],
+                rating,
+                rem,
+                due_date(visit, int(rating.action[j])),
+                curve_h=heights[j],
+                curve_cap=caps[j],
+                **common,
+            )
+
+
+def _loader(log, obs_id: str):
+    return lambda: log.rating_for(obs_id)
 
 
 def gather(
@@ -304,133 +526,113 @@ def gather(
     progress=None,
     now: _dt.datetime | None = None,
 ) -> ReportData:
-    """Everything the report shows: the current records re-rated chunk by chunk (each chunk in
-    one engine call, its capacity curves in one more). ``progress(done, total, stage)``;
-    ``now``: the report's issue time (default: the clock now).
+    """Everything the report shows, in two passes over the log, each a chunk of ``CHUNK`` posts
+    at a time (memory flat in the number of posts):
 
-    The log gives the posts parsed and rated (``log.rate_records(records) -> (parsed, rating)``,
-    the store's API over the records layer and the engine): the report parses nothing itself.
-    """
+    1. here: each chunk is read (``log.iter_posts``) and rated in one engine call, and what the
+       summary parts show of each post is kept as a PostRow in a temporary table of the store
+       (``ReportData.rows``), with the counts, visits, sites and conflicts;
+    2. when ``ReportData.posts`` is iterated (the per-post sections): each chunk is read and
+       rated again (the same engine call: the same rating, checked), with its capacity curves,
+       remedies, photos, reviews and states, and dropped after.
+
+    ``progress(done, total, stage)``; ``now``: the report's issue time (default: the clock now).
+    The log gives the posts parsed and rated (``log.rate_records(records) -> (parsed,
+    rating)``, the store's API over the records layer and the engine): the report parses
+    nothing itself."""
     all_visits = {v.id: v for v in log.visits()}
     all_sites = {s.id: s for s in log.sites()}
     if visit_id is not None:
         visit = log.visit(visit_id)
         site_id = site_id or visit.site_id
-        views = log.posts(visit_id)
+        scope_args = (visit_id, None)
         visits = [visit]
         scope = f"visit {visit.name}"
     elif site_id is not None:
-        views = log.posts(site_id=site_id)
+        scope_args = (None, site_id)
         visits = log.visits(site_id)
         scope = f"site {log.site(site_id).name}"
     else:
-        views = log.posts()
+        scope_args = (None, None)
         visits = list(all_visits.values())
         scope = "the whole log"
+    scope_visits = list(visits)
+    conflicted = log.conflicts()  # before the pass: it may note what it found in the log
+    wanted = set(conflicted)
+    signoffs_all = log.sign_offs()
+    signoff_members = {r.member_id for r in signoffs_all if r.member_id}
+    tags: dict[str, str] = {}  # member id -> tag, of the conflicted posts in scope
+    in_scope: set[str] = set()  # of the members sign-offs name
+    post_sites: dict[str, None] = {}
+    seen = {v.id for v in visits}
+    counts: dict[int, int] = {}
+    digests: list[bytes] = []
+    rows = PostRows(log)
+    first: Rating | None = None
+    n = log.count_posts(scope_args[0], site_id=scope_args[1])
+    done = 0
+    try:
+        for views in log.iter_posts(scope_args[0], site_id=scope_args[1], chunk=CHUNK):
+            parsed, rating = log.rate_records([p.record for p in views])
+            digests.append(_digest(views, parsed, rating))
+            first = first or rating
+            errs: dict[int, list[str]] = {}
+            for er in parsed.errors:
+                errs.setdefault(er.row, []).append(er.sentence())
+            row_to_j = {} if rating is None else {int(i): j for j, i in enumerate(parsed.index)}
+            out = []
+            for i, view in enumerate(views):
+                j = row_to_j.get(i)
+                row = post_row(view, all_visits[view.visit_id], rating, j, errs.get(i, []))
+                out.append(row)
+                a = NOT_RATED if row.action is None else row.action
+                counts[a] = counts.get(a, 0) + 1
+                post_sites[view.site_id] = None
+                # visits the posts' current revisions were made on, besides the ones in scope
+                if view.visit_id not in seen:
+                    visits.append(all_visits[view.visit_id])
+                    seen.add(view.visit_id)
+                if view.member_id in wanted:
+                    tags[view.member_id] = view.tag
+                if view.member_id in signoff_members:
+                    in_scope.add(view.member_id)
+            rows.add(out)
+            done += len(views)
+            if progress is not None:
+                progress(done, n, "rating")
+    except BaseException:
+        rows.close()
+        raise
     site_ids = (
         [site_id]
         if site_id
-        else list(dict.fromkeys([v.site_id for v in visits] + [p.site_id for p in views]))
+        else list(dict.fromkeys([v.site_id for v in scope_visits] + list(post_sites)))
     )
     sites = [all_sites[s] if s in all_sites else log.site(s) for s in site_ids]
-    # visits the posts' current revisions were made on, besides the ones in scope
-    seen = {v.id for v in visits}
-    for p in views:
-        if p.visit_id not in seen:
-            visits.append(all_visits[p.visit_id])
-            seen.add(p.visit_id)
-
-    eds = editions()
-    members = {p.member_id for p in views}
-    att: dict[str, list] = {}
-    for a in log.attachments():
-        if a.member_id in members:
-            att.setdefault(a.member_id, []).append(a)
-    find = log.photo_file
-    files = {a.id: find(a) for lst in att.values() for a in lst}
-    rev: dict[str, list] = {}
     visit_ids = {v.id for v in visits}
-    signoffs = []
-    for r in log.reviews():
-        if r.member_id in members:
-            rev.setdefault(r.member_id, []).append(r)
-        elif r.kind == "sign-off" and r.visit_id in visit_ids:
-            signoffs.append(r)
-    states = log.review_states()
-
-    def loader(obs_id: str):
-        return lambda: log.rating_for(obs_id)
-
-    entries: list[PostEntry] = []
-    first: Rating | None = None
-    n = len(views)
-    for start in range(0, n, CHUNK):
-        chunk = views[start : start + CHUNK]
-        meta: list = []
-        errs: dict[int, list[str]] = {}
-        rating, row_to_j, rem, heights, caps = _rate_chunk(
-            log, [p.record for p in chunk], meta, errs, 0
-        )
-        first = first or rating
-        for i, view in enumerate(chunk):
-            j = row_to_j.get(i)
-            visit = all_visits[view.visit_id]
-            common = {
-                "attachments": att.get(view.member_id, []),
-                "reviews": rev.get(view.member_id, []),
-                "review_state": states.get(view.member_id),
-                "load_stored": loader(view.observation_id),
-            }
-            if j is None:
-                entries.append(PostEntry(view, visit, None, errs.get(i, []), {}, **common))
-                continue
-            entries.append(
-                PostEntry(
-                    view,
-                    visit,
-                    j,
-                    [],
-                    meta[j],
-                    rating,
-                    rem,
-                    due_date(visit, int(rating.action[j])),
-                    curve_h=heights[j],
-                    curve_cap=caps[j],
-                    **common,
-                )
-            )
-        if progress is not None:
-            progress(min(start + CHUNK, n), n, "rating")
-
+    signoffs = [r for r in signoffs_all if r.member_id not in in_scope and r.visit_id in visit_ids]
     conflicts = []
-    tags = {p.member_id: p.tag for p in views}
-    for mid in log.conflicts():
-        if mid in members:
-            heads = [
-                o
-                for o in log.history(mid)
-                if not any(c.supersedes == o.id for c in log.history(mid))
-            ]
-            conflicts.append((tags.get(mid) or mid[:8], heads))
+    for mid in conflicted:
+        if mid in tags:
+            hist = log.history(mid)
+            heads = [o for o in hist if not any(c.supersedes == o.id for c in hist)]
+            conflicts.append((tags[mid] or mid[:8], heads))
+    posts = Posts(
+        log, scope_args[0], scope_args[1], done, digests, all_visits, set(log.demo_kept_out)
+    )
     return ReportData(
         sites,
         visits,
         scope,
-        entries,
+        posts,
         first,
         conflicts,
         ENGINE_VERSION,
-        eds,
+        editions(),
         now if now is not None else _dt.datetime.now().astimezone(),
         units,
         signoffs,
-        review_states=_states(log, "review_states", members),
-        remedy_states=_states(log, "remedy_states", members),
-        photo_files=files,
         columns=log.record_columns(),
+        rows=rows,
+        counts=counts,
     )
-
-
-def _states(log, method: str, members: set[str]) -> dict[str, Any]:
-    """The log's per-post states (review, remedy) for the report's posts."""
-    return {m: st for m, st in getattr(log, method)().items() if m in members}

@@ -114,6 +114,8 @@ def _proposal(r: dict) -> Proposal:
     )
 
 
+# ids passed to SQLite as one JSON array (any number, one parameter)
+_IN_JSON = "IN (SELECT value FROM json_each(?))"
 _PROPOSALS_SQL = (
     "SELECT p.*, (SELECT min(d.done_on) FROM remedied d WHERE d.proposal_id = p.id) AS done_on "
     "FROM proposals p"
@@ -247,6 +249,35 @@ def states(
     for p in proposals(log):
         every[p.id] = p
         by_member.setdefault(p.member_id, []).append(p)
+    return _states(heads, done, by_member, every)
+
+
+def states_of(log: Log, views) -> dict[str, RemedyState]:
+    """``states`` for some posts only (``views``: their PostViews, current revisions): a reader
+    of the log a chunk at a time (the report). Three queries, whatever the size of the log."""
+    heads = {p.member_id: p.observation_id for p in views}
+    ids = json.dumps(list(heads))
+    done: dict[str, tuple[str, str | None]] = {}  # observation id -> (date, proposal id)
+    for oid, day, pid in log.db.conn.execute(
+        f"SELECT observation_id, done_on, proposal_id FROM remedied WHERE observation_id {_IN_JSON}"
+        " ORDER BY rowid",
+        [json.dumps(list(heads.values()))],
+    ):
+        done[oid] = (day, pid)
+    by_member: dict[str, list[Proposal]] = {}
+    every: dict[str, Proposal] = {}
+    mine = log.db.query(f"{_PROPOSALS_SQL} WHERE p.member_id {_IN_JSON} ORDER BY p.rowid", [ids])
+    for p in map(_proposal, mine):
+        every[p.id] = p
+        by_member.setdefault(p.member_id, []).append(p)
+    other = sorted({pid for _, pid in done.values() if pid and pid not in every})
+    if other:  # a remedy that carried out another post's proposal (its words are shown)
+        rows = log.db.query(f"{_PROPOSALS_SQL} WHERE p.id {_IN_JSON}", [json.dumps(other)])
+        every.update((p.id, p) for p in map(_proposal, rows))
+    return _states(heads, done, by_member, every)
+
+
+def _states(heads, done, by_member, every) -> dict[str, RemedyState]:
     out: dict[str, RemedyState] = {}
     for member, head in heads.items():
         mine = by_member.get(member, [])

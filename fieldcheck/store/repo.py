@@ -823,6 +823,80 @@ class Log:
         except BadRecord as exc:
             raise exc.in_log(self.path) from None
 
+    def iter_posts(
+        self,
+        visit_id: str | None = None,
+        *,
+        site_id: str | None = None,
+        chunk: int = STORE_CHUNK,
+    ) -> Iterator[list[PostView]]:
+        """The posts of ``posts(visit_id, site_id=site_id)`` in the same order, ``chunk`` at a
+        time, from one cursor (one read of the log per pass; consume it before closing the log):
+        for a reader that must not hold every post (the report)."""
+        if chunk < 1:
+            raise ValueError(f"chunk: {chunk} posts; give 1 or more, e.g. 4096")
+        where, params = _member_filter(visit_id, site_id, self.demo_kept_out)
+        cur = self.db.conn.execute(
+            _POSTS_SQL.format(filter=where, withdrawn="AND o.withdrawn = 0"), params
+        )
+        names = [d[0] for d in cur.description]
+        try:
+            while rows := cur.fetchmany(chunk):
+                try:
+                    yield [_post_view(dict(zip(names, r, strict=True))) for r in rows]
+                except BadRecord as exc:
+                    raise exc.in_log(self.path) from None
+        finally:
+            cur.close()
+
+    def count_posts(self, visit_id: str | None = None, *, site_id: str | None = None) -> int:
+        """How many posts ``iter_posts`` (and ``posts``) give, counted in SQLite."""
+        where, params = _member_filter(visit_id, site_id, self.demo_kept_out)
+        sql = (
+            f"SELECT count(*) FROM members m JOIN observations o ON o.rowid = {HEAD_ROWID_OF} "
+            f"WHERE o.withdrawn = 0 {where}"
+        )
+        return int(self.db.conn.execute(sql, params).fetchone()[0])
+
+    def attachments_of(self, views: Sequence[PostView]) -> dict[str, list[Attachment]]:
+        """member id -> the attachments of these posts, oldest first (one query)."""
+        out: dict[str, list[Attachment]] = {}
+        sql = f"SELECT * FROM attachments WHERE member_id {_IN_JSON} ORDER BY rowid"
+        for r in self.db.query(sql, [_member_ids(views)]):
+            a = _attachment(r)
+            out.setdefault(a.member_id, []).append(a)
+        return out
+
+    def reviews_of(self, views: Sequence[PostView]) -> dict[str, list[Review]]:
+        """member id -> the reviews of these posts, oldest first (one query)."""
+        out: dict[str, list[Review]] = {}
+        sql = f"SELECT * FROM reviews WHERE member_id {_IN_JSON} ORDER BY rowid"
+        for r in self.db.query(sql, [_member_ids(views)]):
+            rv = _review(r)
+            out.setdefault(rv.member_id, []).append(rv)
+        return out
+
+    def review_states_of(self, views: Sequence[PostView], reviews: dict | None = None):
+        """member id -> ReviewState of these posts, as ``review_states()`` gives them
+        (``reviews``: their ``reviews_of``, when already read)."""
+        from fieldcheck.store import reviews as rv
+
+        return rv.states_of(views, self.reviews_of(views) if reviews is None else reviews)
+
+    def remedy_states_of(self, views: Sequence[PostView]):
+        """member id -> RemedyState of these posts, as ``remedy_states()`` gives them."""
+        from fieldcheck.store import proposals
+
+        return proposals.states_of(self, views)
+
+    @staticmethod
+    def scratch(columns: Sequence[str]):
+        """A private temporary table (store/scratch.py ScratchRows) for rows a long job keeps
+        on the side: on disk, not in memory; close it when done."""
+        from fieldcheck.store.scratch import ScratchRows
+
+        return ScratchRows(columns)
+
     def conflicts(self) -> list[str]:
         """Members with more than one head (revisions made without seeing each other), sorted;
         found from the revisions written since the last call (``fieldcheck.store.conflicts``)."""
@@ -1223,14 +1297,13 @@ class Log:
             )
         return r
 
-    def reviews(self, member_id: str | None = None) -> list[Review]:
-        if member_id is None:
-            rows = self.db.query("SELECT * FROM reviews ORDER BY rowid")
-        else:
-            rows = self.db.query(
-                "SELECT * FROM reviews WHERE member_id = ? ORDER BY rowid", [member_id]
-            )
-        return [_review(r) for r in rows]
+    def reviews(self, member_id: str | None = None, *, kind: str | None = None) -> list[Review]:
+        """Reviews (of one post, of one kind, or all), oldest first."""
+        where = [(c, v) for c, v in (("member_id", member_id), ("kind", kind)) if v is not None]
+        sql = "SELECT * FROM reviews"
+        if where:
+            sql += " WHERE " + " AND ".join(f"{c} = ?" for c, _ in where)
+        return [_review(r) for r in self.db.query(sql + " ORDER BY rowid", [v for _, v in where])]
 
     # ---- the office engineer's review (fieldcheck.store.reviews holds the rules)
 
@@ -1414,6 +1487,14 @@ LEFT JOIN ratings r ON r.rowid = (SELECT max(rowid) FROM ratings WHERE observati
 WHERE o.withdrawn = 0 {{filter}}
 ORDER BY m.rowid
 """
+
+
+# ids passed to SQLite as one JSON array (any number, one parameter)
+_IN_JSON = "IN (SELECT value FROM json_each(?))"
+
+
+def _member_ids(views: Sequence[PostView]) -> str:
+    return json.dumps([v.member_id for v in views])
 
 
 def _member_filter(

@@ -252,6 +252,24 @@ def states(log: Log, visit_id: str | None = None) -> dict[str, ReviewState]:
     return out
 
 
+def states_of(views, reviews: dict[str, list[Review]]) -> dict[str, ReviewState]:
+    """``states`` for some posts only (``views``: their PostViews; ``reviews``: member id ->
+    their reviews, oldest first): a reader of the log a chunk at a time (the report)."""
+    out: dict[str, ReviewState] = {}
+    for p in views:
+        r = None
+        for x in reviews.get(p.member_id, ()):
+            if x.kind in _STATE_OF_KIND:
+                r = x  # oldest first: the last review of the post wins
+        if r is None or r.observation_id != p.observation_id or p.conflict:
+            out[p.member_id] = ReviewState(p.member_id, AWAITING)
+        else:
+            out[p.member_id] = ReviewState(
+                p.member_id, _STATE_OF_KIND[r.kind], r.author, r.created_at, r.text, r.action, r
+            )
+    return out
+
+
 def state(log: Log, member_id: str) -> ReviewState:
     """The review state of one post (a few indexed lookups: for the post view)."""
     head = log.head(member_id)
@@ -277,8 +295,4 @@ def _conflicted(log: Log, member_id: str) -> set[str]:
 
 
 def sign_offs(log: Log, visit_id: str | None = None) -> list[Review]:
-    return [
-        r
-        for r in log.reviews()
-        if r.kind == "sign-off" and (visit_id is None or r.visit_id == visit_id)
-    ]
+    return [r for r in log.reviews(kind="sign-off") if visit_id is None or r.visit_id == visit_id]
