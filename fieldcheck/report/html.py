@@ -7,8 +7,9 @@
 Two parts: a client summary in plain words (what is safe to use, what is restricted, what must
 happen by when) and the technical record for the office (every input as typed, the assumptions,
 every check, the working, remedies, notes, photos with their sha256, the stored rating compared
-with the re-rating). All the numbers come from one engine call over the report's posts
-(model.gather); every piece of user text goes through html.escape.
+with the re-rating). All the numbers come from the report's posts re-rated a chunk at a time
+(model.gather: two passes, memory flat in the number of posts); the parts over every post are
+written as pieces; every piece of user text goes through html.escape.
 """
 
 from __future__ import annotations

@@ -31,6 +31,12 @@ dataclasses from ``fieldcheck.store.repo``)::
         # current revision per member (members seen on that visit), in the order first recorded:
         # tag, location, record, ratio, action, action_label, capacity_n, demand_n, governing,
         # engine_version, revised_at, revised_by, conflict
+    log.iter_posts(visit_id=None, *, site_id=None, chunk=STORE_CHUNK) -> Iterator[list[PostView]]
+        # the same posts in the same order, a chunk at a time from one cursor (the report);
+        # per chunk: log.attachments_of(views), log.reviews_of(views) -> {member_id: [...]},
+        # log.review_states_of(views), log.remedy_states_of(views) -> {member_id: state}
+    log.count_posts(visit_id=None, *, site_id=None) -> int
+    log.scratch(columns) -> ScratchRows   # a private temporary table on disk (store/scratch.py)
     log.counts_by_action(visit_id=None) -> dict[str, int]   # "no-action", "monitor",
         # "repair-or-brace", "make-safe-now", "not rated"
     log.rating_for(observation_id) -> StoredRating | None   # latest, exactly as stored
@@ -69,7 +75,7 @@ dataclasses from ``fieldcheck.store.repo``)::
         # .line() -> "accepted: reviewed by ben, on 2026-12-02; ..."
     log.review_state(member_id) -> ReviewState             # one post (indexed lookups)
     log.sign_offs(visit_id=None) -> list[Review]
-    log.reviews(member_id=None) -> list[Review]           # every kind, oldest first
+    log.reviews(member_id=None, *, kind=None) -> list[Review]   # oldest first
     log.propose_remedy(observation_id, kind=, description=, changes=, ratio=None) -> Proposal
         # a remedy as a proposal linked to that revision (the post as found); the post itself
         # is not changed and stays rated as found
