@@ -44,6 +44,7 @@ class ScratchRows:
         self.columns = tuple(columns)
         self._conn = sqlite3.connect("", check_same_thread=False)
         self._conn.execute(f"PRAGMA cache_size = -{CACHE_KIB}")
+        self._conn.execute("PRAGMA temp_store = FILE")  # its sorts spill to files too
         self._conn.execute("PRAGMA journal_mode = OFF")
         self._conn.execute("PRAGMA synchronous = OFF")
         self._conn.execute(f"CREATE TABLE rows ({', '.join(self.columns)})")
