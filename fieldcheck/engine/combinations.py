@@ -317,27 +317,32 @@ def _flat(slot: np.ndarray, n: int) -> np.ndarray:
 def _sum_rows(coef: np.ndarray, stack: list[np.ndarray]) -> np.ndarray:
     """coef @ stack, (k, p) @ (p, n), as sums over the non-zero coefficients (no BLAS call),
     term by term in the order of the types; a coefficient x load made once for every row that
-    has it, a coefficient of 1.0 not multiplied (x * 1.0 is x)."""
+    has it, a coefficient of 1.0 not multiplied (x * 1.0 is x), the first two terms added
+    straight into the row (the same sum as a copy of the first and the second added to it)."""
     k, n = coef.shape[0], stack[0].shape[0]
     out = np.empty((k, n))
     scaled: dict[tuple[int, float], np.ndarray] = {}
+
+    def term(j: int, t: int) -> np.ndarray:
+        c = float(coef[j, t])
+        if c == 1.0:
+            return stack[t]
+        x = scaled.get((t, c))
+        if x is None:
+            x = scaled[t, c] = c * stack[t]
+        return x
+
     for j in range(k):
         row = out[j]
         terms = np.flatnonzero(coef[j])
         if not terms.size:
             row.fill(0.0)
-        for m, t in enumerate(terms):
-            c = float(coef[j, t])
-            if c == 1.0:
-                x = stack[t]
-            else:
-                x = scaled.get((t, c))
-                if x is None:
-                    x = scaled[t, c] = c * stack[t]
-            if m == 0:
-                np.copyto(row, x)
-            else:
-                row += x
+        elif terms.size == 1:
+            np.copyto(row, term(j, terms[0]))
+        else:
+            np.add(term(j, terms[0]), term(j, terms[1]), out=row)
+            for t in terms[2:]:
+                row += term(j, t)
     return out
 
 
@@ -435,8 +440,9 @@ def rate_with_combinations(b: PostBatch, run_stages, finish, keep_values: bool =
                 upper = _upper(load, fac, has, l_ref, f_ref)
             cap, *got = _beat_reference(how, b, v, cap, load, fac, combo, at_ref, upper)
         demand, c_fac, c_combo = got
-        none = ~(cap > 0)  # NaN or 0: every combination gives the same ratio (NaN or inf)
-        if none.any():  # the first combination of the post (slot 0), as ties go
+        some = cap > 0  # not NaN or 0, where every combination gives the same ratio (NaN, inf)
+        if not some.all():  # those take the first combination of the post (slot 0), as ties go
+            none = ~some
             demand = np.where(none, load[0], demand)
             c_fac = np.where(none, fac[0], c_fac)
             c_combo = np.where(none, combo[0], c_combo)
@@ -481,14 +487,15 @@ def _govern(keys: list, parts: tuple[list, ...]):
     (int8; a NaN never governs, all NaN: 0 and NaN), and each list of ``parts`` at it.
 
     One pass per check: a check takes over where its ratio is strictly larger (the max is
-    ``np.fmax``'s, as a reduction gives it), and those posts' parts are put in place (cheaper
-    than ``np.where`` unless nearly every post changes)."""
+    ``np.fmax``'s, as a reduction gives it), and m, larger than any check before it, is then a
+    running maximum. The parts are put in place once, at each post's final check (cheaper than
+    ``np.where`` unless nearly every post changes, and than moving a post at every check that
+    takes it over: the sill's bearing takes over most of the posts the cap's took)."""
     n = keys[0].shape[0]
     best = keys[0].copy()
-    got = [p[0] for p in parts]
-    owned = False
     gm = np.zeros(n, dtype=np.int8)
     nan_best = bool(np.isnan(best).any())
+    won = []
     for m in range(1, len(keys)):
         key = keys[m]
         win = key > best
@@ -497,12 +504,16 @@ def _govern(keys: list, parts: tuple[list, ...]):
         np.fmax(best, key, out=best)
         if nan_best:
             nan_best = bool(np.isnan(best).any())
-        idx = np.flatnonzero(win)
+        if win.any():
+            np.maximum(gm, np.multiply(win, m, dtype=np.int8), out=gm)
+            won.append(m)
+    got = [p[0] for p in parts]
+    if won:
+        got = [a.copy() for a in got]  # the checks' own arrays stay as they are
+    for m in won:
+        idx = np.flatnonzero(gm == m)
         if not idx.size:
             continue
-        gm[idx] = m
-        if not owned:  # the checks' own arrays stay as they are
-            got, owned = [a.copy() for a in got], True
         for a, p in zip(got, parts, strict=True):
             a[idx] = p[m].take(idx)
     return gm, best, got
