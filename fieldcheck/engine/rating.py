@@ -54,20 +54,29 @@ def rate(b: PostBatch, keep: tuple[str, ...] = ()) -> Rating:
     if n <= BLOCK:
         return _rate_any(b)
     starts = range(0, n, BLOCK)
-    first_blk = b.take(slice(0, BLOCK))
-    first = _rate_any(first_blk, bool(keep))
     # The rating, the kept values and the core arrays are copied block by block into arrays of
     # the batch's length; the checks' arrays and the governing combination's load, factor and
     # combination (the rating's batch) are put together by BlockResults, which copies only a
     # block's own arrays: each full-length array costs page faults, and a check's demand is
     # often the batch's load column or another check's (block_results.py).
-    # a kept value a block never made (an EC5 value in a block with no EC5 post) is NaN there
-    out = {k: np.empty(n, dtype=np.asarray(first.values.get(k, np.nan)).dtype) for k in keep}
-    core = {
-        k: np.empty(n, dtype=getattr(first, k).dtype)
-        for k in ("capacity_n", "ratio", "governing", "action", "flags")
-    }
-    clauses = {k: c.clause for k, c in first.checks.items()}
+    # The first block sets them up (their dtypes, the checks and their clauses) and is put in
+    # place before any other; the other blocks are rated meanwhile, on both threads, and wait
+    # only to be put in place.
+    first: dict = {}
+    first_put = threading.Event()
+
+    def set_up(r: Rating) -> None:
+        # a kept value a block never made (an EC5 value in a block with no EC5 post) is NaN there
+        first["out"] = {
+            k: np.empty(n, dtype=np.asarray(r.values.get(k, np.nan)).dtype) for k in keep
+        }
+        first["core"] = {
+            k: np.empty(n, dtype=getattr(r, k).dtype)
+            for k in ("capacity_n", "ratio", "governing", "action", "flags")
+        }
+        first["clauses"] = {k: c.clause for k, c in r.checks.items()}
+        first["rating"] = r
+
     lock = threading.Lock()
     results = BlockResults(n, starts, BLOCK)
 
@@ -79,12 +88,22 @@ def rate(b: PostBatch, keep: tuple[str, ...] = ()) -> Rating:
             b.method[sl], *(results.get(("batch", f))[sl] for f in ("cd", "lam")), b.kmod[sl]
         )
 
-    def put(start: int, first_block: tuple | None = None) -> None:
-        if first_block is None:
-            blk = b.take(slice(start, start + BLOCK))
-            r = _rate_any(blk, bool(keep))
+    def put(start: int) -> None:
+        blk = b.take(slice(start, start + BLOCK))
+        r = _rate_any(blk, bool(keep))
+        if start == 0:
+            try:
+                set_up(r)
+                put_block(start, blk, r)
+            finally:  # an error in the first block is raised by share_blocks; the others stop
+                first_put.set()
         else:
-            blk, r = first_block
+            first_put.wait()
+            if first.get("done"):
+                put_block(start, blk, r)
+
+    def put_block(start: int, blk: PostBatch, r: Rating) -> None:
+        out, core, clauses = first["out"], first["core"], first["clauses"]
         sl = slice(start, start + r.n)
         part = results.block(start, {id(getattr(blk, f)): getattr(b, f) for f in BATCH_FIELDS})
         for f in BATCH_FIELDS:  # the governing combination's, where combinations ran
@@ -107,10 +126,12 @@ def rate(b: PostBatch, keep: tuple[str, ...] = ()) -> Rating:
             a[sl] = r.values.get(k, np.nan)
         for k, a in core.items():
             a[sl] = getattr(r, k)
+        if start == 0:
+            first["done"] = True
 
-    put(0, (first_blk, first))
-    share_blocks(put, starts[1:])
-    checks = {k: _check(c, clauses[k], results) for k, c in first.checks.items()}
+    share_blocks(put, starts)
+    out, core, clauses = first["out"], first["core"], first["clauses"]
+    checks = {k: _check(c, clauses[k], results) for k, c in first["rating"].checks.items()}
     own = {f: results.get(("batch", f)) for f in BATCH_FIELDS}
     if any(a is not getattr(b, f) for f, a in own.items()):
         b = b.replace_arrays(**{f: a for f, a in own.items() if a is not getattr(b, f)})
