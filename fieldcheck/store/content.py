@@ -61,6 +61,14 @@ def _blocks(conn, table: str, device: str, cols: list[str], from_seq: int):
 
 
 SEAL_BUDGET = 100_000  # rows sealed per close at most: a big import is sealed over a few closes
+# the devices that wrote a table, in order, one index seek each on (device_id, device_seq) where
+# SELECT DISTINCT reads every entry of that index: a close after a write seals, and in a log of
+# 100,000 posts the three bulk tables' DISTINCT cost 0.04 CPU-s (measured), growing with the log
+_DEVICES = """WITH RECURSIVE d(id) AS (
+    SELECT min(device_id) FROM {t}
+    UNION ALL SELECT (SELECT min(device_id) FROM {t} WHERE device_id > d.id) FROM d
+    WHERE d.id IS NOT NULL)
+SELECT id FROM d WHERE id IS NOT NULL"""
 
 
 def seal(conn: sqlite3.Connection, budget: int = SEAL_BUDGET) -> int:
@@ -73,7 +81,7 @@ def seal(conn: sqlite3.Connection, budget: int = SEAL_BUDGET) -> int:
         if table not in have:
             continue
         cols = [r[1] for r in conn.execute(f"PRAGMA table_info({table})")]
-        devices = conn.execute(f"SELECT DISTINCT device_id FROM {table}").fetchall()
+        devices = conn.execute(_DEVICES.format(t=table)).fetchall()
         for (device,) in devices:
             last = conn.execute(
                 "SELECT block, first_seq, last_seq, cols, hash FROM seals WHERE tbl = ? AND "

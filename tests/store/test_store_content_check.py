@@ -85,3 +85,22 @@ def test_an_engine_stamp_edited_is_reported(survey, capsys):
     )
     rc, out = _check(survey, capsys)
     assert rc == 1 and "engine stamp" in out
+
+
+def test_every_device_s_rows_are_sealed(survey, tmp_path, shore, capsys):
+    # a copy of the log writes as a new device: the close seals both devices' rows (the
+    # devices found by index seeks, as SELECT DISTINCT finds them)
+    copy = tmp_path / "copy.db"
+    copy.write_bytes(survey.read_bytes())
+    with Log.open(copy, author="bob") as lg:
+        site = lg.find_site("Alder Row")
+        lg.save_post(lg.find_visit(site.id, "visit").id, dict(shore, tag="S10"))
+    conn = sqlite3.connect(copy)
+    for table in ("members", "observations", "ratings"):
+        wrote = conn.execute(f"SELECT DISTINCT device_id FROM {table}").fetchall()
+        sealed = conn.execute(
+            "SELECT DISTINCT device_id FROM seals WHERE tbl = ? ORDER BY device_id", [table]
+        ).fetchall()
+        assert len(wrote) == 2 and sealed == wrote, table
+    conn.close()
+    assert _check(copy, capsys)[0] == 0
