@@ -192,3 +192,22 @@ def test_ignored_columns_are_carried_through_to_the_results(tmp_path, capsys):
     again = list(csv.DictReader((tmp_path / "again.csv").open()))
     assert [r["Photo Ref"] for r in again] == ["IMG_0042", "IMG_0043"]
     assert list(again[0]).count("action") == 1
+
+
+def test_working_gives_the_users_units_first_as_the_interface_and_report_do(capsys):
+    # common practice, no source: a US customary user reads inches and psi first (the report and
+    # the interface write '3.5 in (88.9 mm)'); metric reads mm first; EC5 speaks kN and mm first
+    post = ["rate", "--size", "4x4", "--height", "10ft", "--species", "dfl", "--grade", "no2"]
+    post += ["--top", "pinned", "--bottom", "pinned", "--load", "4000lbf", "--working"]
+    assert main(post) == 0
+    out = capsys.readouterr().out
+    assert "Section d1 x d2 (measured or dressed): 3.5 in (88.9 mm) x 3.5 in (88.9 mm)" in out
+    assert "Reference Fc: 1,350 psi (9.308 MPa)" in out  # NDS Supplement Table 4A, DF-L No.2
+    assert "lu = 120 in (3048 mm)" in out and "3998.959" not in out  # four figures, as shown
+    assert main(["--units", "metric", *post]) == 0
+    out = capsys.readouterr().out
+    assert "88.9 mm (3.5 in) x 88.9 mm (3.5 in)" in out
+    ec5 = ["rate", "--method", "ec5", "--class", "C24", "--section", "100mmx100mm", "--load"]
+    assert main([*ec5, "20kN", "--height", "2.5m", "--top", "pinned", "--working"]) == 0
+    out = capsys.readouterr().out
+    assert "100 mm (3.937 in) x 100 mm (3.937 in)" in out, out

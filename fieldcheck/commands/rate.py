@@ -117,12 +117,18 @@ def run(args: argparse.Namespace) -> int:
             summary["working"] = [s.__dict__ for s in explain.working(rating, 0)]
         print(json.dumps(summary, indent=2, ensure_ascii=False))
         return FAILED if failed else 0
-    print(_text(summary, args.units_here or args.units or "us"))
+    system = args.units_here or args.units or "us"
+    print(_text(summary, system))
     if args.working:
+        from fieldcheck.report.notation import value_text
+
+        # the user's units first and four figures, as the interface and the report write the
+        # working (an EC5 post speaks kN and mm first whatever the units, as EN 1995-1-1 does)
+        first = "metric" if summary.get("method") == "ec5" else system
         print("\nWorking:")
         for s in explain.working(rating, 0):
             clause = f"   [{s.clause}]" if s.clause else ""
-            print(f"  {s.label}: {s.value}{clause}")
+            print(f"  {s.label}: {value_text(s.value, first)}{clause}")
     return FAILED if failed else 0
 
 
