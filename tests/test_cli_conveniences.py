@@ -26,7 +26,7 @@ POSTS = (
     "P2,6x6,9ft,southern-pine,no1,30000lbf\n"
 )
 LIGHT = ["rate", "--size", "6x6", "--height", "8ft", "--species", "douglas-fir-larch"]
-LIGHT += ["--grade", "no1", "--load", "1000lbf"]
+LIGHT += ["--grade", "no1", "--top", "pinned", "--bottom", "pinned", "--load", "1000lbf"]
 
 
 def _run(argv, stdin: str = "", env: dict | None = None) -> subprocess.CompletedProcess:

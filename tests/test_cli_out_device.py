@@ -11,7 +11,7 @@ import pytest
 
 from fieldcheck.cli import main
 
-ROWS = "tag,size,height,species,grade,load\nA,4x4,8ft,dfl,no2,4kip\n"
+ROWS = "tag,size,height,top,bottom,species,grade,load\nA,4x4,8ft,pinned,pinned,dfl,no2,4kip\n"
 
 
 def _through_fifo(tmp_path, args: list[str]) -> tuple[int, str]:

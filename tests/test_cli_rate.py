@@ -176,9 +176,9 @@ def test_ignored_columns_are_carried_through_to_the_results(tmp_path, capsys):
     # the user keeps: the results carry it unread, so even written over its input nothing is lost
     src = tmp_path / "in.csv"
     src.write_text(
-        "tag,Photo Ref,size,height,species,grade,load\n"
-        "A,IMG_0042,4x4,8ft,dfl,no2,4kip\n"
-        "B,IMG_0043,4x4,tall,dfl,no2,4kip\n"
+        "tag,Photo Ref,size,height,species,grade,load,top,bottom\n"
+        "A,IMG_0042,4x4,8ft,dfl,no2,4kip,pinned,pinned\n"
+        "B,IMG_0043,4x4,tall,dfl,no2,4kip,pinned,pinned\n"
     )
     args = ["rate", "--batch", str(src), "--ignore-unknown-columns"]
     assert main([*args, "--out", str(src)]) == 1  # row B has a field error

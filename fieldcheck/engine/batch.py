@@ -86,6 +86,8 @@ class PostBatch:
     ke1: np.ndarray = _f()  # effective-length factor override per axis (NaN: from the ends)
     ke2: np.ndarray = _f()
     theoretical_k: np.ndarray = _b()  # use theoretical K instead of the recommended design Ke
+    # an end the record does not state (no end and no spring given): pinned taken, with a warning
+    ends_assumed: np.ndarray = _b()
     # rotational spring at an end as R = k L / (E I) (0 pin, inf fixed; NaN: from the end code);
     # the end's translation still comes from its code (free or guided: sways). stability.py
     r_top: np.ndarray = _f()

@@ -325,6 +325,7 @@ def column_flags(b: PostBatch, values: dict, flag: FlagSet) -> None:
         flag("sway_braces", sway & (b.braced1 | b.braced2) & ~values["braced_solved"])
     flag("mechanism", mode == -1)
     flag("base_fixity", sway & (mode != -1))  # judgement: the K of a sway case needs the fixity
+    flag("ends_assumed", u(b.ends_assumed))
     flag("duration_assumed", u(b.duration_assumed) & has_load)
     flag("built_up", u(b.kf) < 1.0)
 
@@ -365,6 +366,7 @@ COLUMN = Stage(
         "braced1",
         "braced2",
         "duration_assumed",
+        "ends_assumed",
     ),
     checks=("column", "end_bearing", "cap_bearing", "sill_bearing"),
     flags=(
@@ -425,6 +427,13 @@ COLUMN = Stage(
             "end being truly fixed against rotation (NDS 2018 Appendix G); a base that can rotate "
             "makes the post a mechanism. Confirm the fixity (embedment, bolted base, moment "
             "connection) on site.",
+        ),
+        Flag(
+            "ends_assumed",
+            "End condition not stated (top, bottom or both): taken as pinned, held sideways and "
+            "free to turn (NDS 2018 Appendix G). A post whose top can move sideways is far weaker "
+            "(a flagpole: Ke 2.1): give --top and --bottom as seen.",
+            escalates_to=1,  # judgement: the column rests on an end nobody saw; never 'no action'
         ),
         Flag(
             "duration_assumed",

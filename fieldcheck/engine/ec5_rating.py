@@ -497,6 +497,11 @@ EC5_WARNINGS = {
         "class 1 about 12 % or less, class 2 about 20 % or less, class 3 wetter; from memory). "
         "Measure it: a wetter reading takes the wetter class and a lower k_mod."
     ),
+    "ends_assumed": (
+        "End condition not stated (top, bottom or both): taken as pinned, held sideways and free "
+        "to turn (β 1.0). A post whose top can move sideways is far weaker (a flagpole: β 2.1 as "
+        "NDS 2018 Appendix G, judgement): give --top and --bottom as seen."
+    ),
     "duration_assumed": (
         "No load duration stated: the load is taken as permanent (EN 1995-1-1 Table 2.1, the "
         "k_mod of the permanent class), the conservative choice for an existing post. Give "

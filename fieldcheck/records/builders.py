@@ -131,7 +131,18 @@ def end_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
     why = None if springs else mechanism_reason(bottom, top)  # spring ends: checked by the solver
     if why:
         raise RowError("top", why)
-    return {"top": top, "bottom": bottom, "theoretical_k": bool(row.get("k_theoretical", False))}
+    # an end nobody stated (neither the end nor a spring at it) is taken as pinned, and the rating
+    # says so (judgement: pinned holds the end sideways, which nobody saw)
+    unstated = any(
+        end not in row and f"{end}_spring" not in row and f"{end}_ratio" not in row
+        for end in ("top", "bottom")
+    )
+    return {
+        "top": top,
+        "bottom": bottom,
+        "theoretical_k": bool(row.get("k_theoretical", False)),
+        "ends_assumed": unstated,
+    }
 
 
 def load_duration(row: Row) -> str:

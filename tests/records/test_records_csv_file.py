@@ -201,10 +201,10 @@ def test_records_are_the_rows_as_the_log_keeps_them(tmp_path):
 def test_import_says_which_posts_need_attention_not_rated_first(tmp_path, capsys):
     # judgement (issue 13 item 9): a post imported with no load is not rated, and the import
     # says so instead of a bare "Imported 3 of 3"; the posts needing action are counted too
-    base = "4x4,8ft,douglas-fir-larch,no2"
+    base = "4x4,8ft,pinned,pinned,douglas-fir-larch,no2"
     src = _write(
         tmp_path / "p.csv",
-        "tag,size,height,species,grade,load\n"
+        "tag,size,height,top,bottom,species,grade,load\n"
         f"A,{base},1000lbf\nB,{base},\nC,{base},40000lbf\n",
     )
     db = tmp_path / "s.db"

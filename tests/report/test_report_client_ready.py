@@ -164,6 +164,7 @@ def test_a_post_without_its_load_is_never_called_safe(empty_log, parse_html):
     site = empty_log.add_site("Site")
     v = empty_log.add_visit(site.id, "R. Okafor")
     base = {"size": "6x6", "height": "8ft", "species": "douglas-fir-larch", "grade": "no1"}
+    base |= {"top": "pinned", "bottom": "pinned"}
     empty_log.save_post(v.id, {"tag": "N1", **base})  # no load: not rated, load missing
     empty_log.save_post(v.id, {"tag": "L1", **base, "load": "2000lbf"})
     out = render_report(empty_log)

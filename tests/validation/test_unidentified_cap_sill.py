@@ -19,6 +19,7 @@ from fieldcheck.engine import combinations
 from fieldcheck.engine.batch import make_batch
 
 POST = ["rate", "--size", "6x6", "--height", "8ft", "--species", "dfl", "--grade", "no1"]
+POST += ["--top", "pinned", "--bottom", "pinned"]
 SOFT_6X6_LBF = 375 * 5.5 * 5.5  # NDS 2018 §3.10.2: Fc-perp x bearing area, Cb = 1
 CAP_WORDS = "Cap or beam above not identified"
 SILL_WORDS = "Sill or plate below not identified"
