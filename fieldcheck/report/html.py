@@ -672,6 +672,14 @@ def _notes_photos(d: ReportData, p: PostEntry) -> str:
     return "".join(out)
 
 
+def _raised_from(r, j: int, p: PostEntry) -> str:
+    """Where an office override raised the action: what the post was rated as found."""
+    rated = int(r.action[j])
+    if p.action == rated:
+        return ""
+    return f" (set by the office review; rated as found: {e(ACTIONS[rated])})"
+
+
 def _stored(p: PostEntry, units: str) -> str:
     s = p.stored
     if s is None:
@@ -816,7 +824,8 @@ def _post(d: ReportData, p: PostEntry) -> str:
         f"{e(ratio_text(float(r.ratio[j])))}</td></tr>"
         f"<tr><th>Governing check</th><td>{e(check_label(r, r.governing_name(j)))}; "
         f"{e(_combination(r, r.governing_name(j), j))}</td></tr>"
-        f"<tr><th>Action</th><td>{badge(p.action)} {e(ACTION_TEXT[p.action])}</td></tr>"
+        f"<tr><th>Action</th><td>{badge(p.action)} {e(ACTION_TEXT[p.action])}"
+        f"{_raised_from(r, j, p)}</td></tr>"
         f"<tr><th>Due</th><td>{e(due_text(p))}</td></tr>" + _states_rows(d, p)
     )
     plot = ""

@@ -72,8 +72,12 @@ class PostEntry:
 
     @property
     def action(self) -> int | None:
-        """Current action category (ACTIONS index), None when the record has errors."""
-        return None if self.j is None else int(self.rating.action[self.j])
+        """The action in force (ACTIONS index), None when the record has errors: the rating's,
+        or an office override of this revision where it is more severe (judgement: the
+        engineer's make-safe reaches the client; an override never lowers the rating)."""
+        if self.j is None:
+            return None
+        return raised(int(self.rating.action[self.j]), self.review_state)
 
     @property
     def ratio(self) -> float | None:
@@ -220,6 +224,15 @@ def visit_date(visit) -> _dt.date | None:
         return _dt.datetime.fromisoformat(visit.started_at).date()
     except (TypeError, ValueError):
         return None
+
+
+def raised(action: int, state: Any) -> int:
+    """``action``, or the action an office override (store ReviewState) sets where it is more
+    severe; a post not rated stays not rated (nothing decided it)."""
+    over = getattr(state, "action", None)
+    if action == NOT_RATED or over is None or over <= action:
+        return action
+    return int(over)
 
 
 def due_date(visit, action: int | None) -> _dt.date | None:
@@ -379,14 +392,17 @@ def _finite(x: float) -> float | None:
     return x if math.isfinite(x) else None
 
 
-def post_row(view, visit, rating: Rating | None, j: int | None, errors: list[str]) -> PostRow:
-    """The PostRow of one post (``j``: its index into ``rating``, None when refused)."""
+def post_row(
+    view, visit, rating: Rating | None, j: int | None, errors: list[str], state: Any = None
+) -> PostRow:
+    """The PostRow of one post (``j``: its index into ``rating``, None when refused; ``state``:
+    its store ReviewState, whose override raises the action in force)."""
     tag = view.tag or view.member_id[:8]
     if j is None:
         action = ratio = cap = dem = gov = due = why = None
         errs: str | None = "; ".join(errors)
     else:
-        action = int(rating.action[j])
+        action = raised(int(rating.action[j]), state)
         ratio = _finite(float(rating.ratio[j]))
         cap, dem = _finite(float(rating.capacity_n[j])), _finite(float(rating.demand_n[j]))
         gov = check_label(rating, rating.governing_name(j))
@@ -507,7 +523,7 @@ class Posts:
                 parsed.meta[j],
                 rating,
                 rem,
-                due_date(visit, int(rating.action[j])),
+                due_date(visit, raised(int(rating.action[j]), common["review_state"])),
                 curve_h=heights[j],
                 curve_cap=caps[j],
                 **common,
@@ -580,10 +596,14 @@ def gather(
             for er in parsed.errors:
                 errs.setdefault(er.row, []).append(er.sentence())
             row_to_j = {} if rating is None else {int(i): j for j, i in enumerate(parsed.index)}
+            states = log.review_states_of(views)  # an override raises the action in force
             out = []
             for i, view in enumerate(views):
                 j = row_to_j.get(i)
-                row = post_row(view, all_visits[view.visit_id], rating, j, errs.get(i, []))
+                row = post_row(
+                    view, all_visits[view.visit_id], rating, j, errs.get(i, []),
+                    states.get(view.member_id),
+                )  # fmt: skip
                 out.append(row)
                 a = NOT_RATED if row.action is None else row.action
                 counts[a] = counts.get(a, 0) + 1

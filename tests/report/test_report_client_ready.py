@@ -219,3 +219,32 @@ def test_the_reports_combination_is_the_engines(demo_log):
         for name in r.checks:
             combo, factor = r.check_combination(name, j)
             assert _combination(r, name, j) == f"{combo} ({sig(factor, 3)})"
+
+
+def test_an_office_override_that_raises_the_action_reaches_the_client(empty_log, parse_html):
+    # judgement: the engineer's make-safe instruction is what the client and the open actions
+    # must act on; an override never lowers the post as rated (store/reviews.py), so the action
+    # in force is the more severe of the two, and the rating as found is still shown beside it
+    site = empty_log.add_site("Site")
+    v = empty_log.add_visit(site.id, "R. Okafor")
+    base = {"size": "6x6", "height": "8ft", "species": "douglas-fir-larch", "grade": "no1"}
+    base |= {"top": "pinned", "bottom": "pinned", "load": "2000lbf", "duration": "ten-years"}
+    base |= {"cap_species": "none", "sill_species": "none"}
+    up = empty_log.save_post(v.id, {"tag": "U1", **base})
+    down = empty_log.save_post(v.id, {"tag": "D1", **base, "load": "40000lbf"})
+    empty_log.review_post(up.member_id, "override", "sill crushed on site", "make-safe-now")
+    empty_log.review_post(down.member_id, "override", "looked fine", "no-action")
+    out = render_report(empty_log)
+    client = "".join(parse_html(out[out.index('id="client"') : out.index('id="summary"')]).text)
+    now = client[client.index("Unsafe now") : client.index("What must happen")]
+    assert "U1" in now and "D1" in now and "Safe to use" not in client, client
+    # the lowering override lowered nothing (store/reviews.py); the dates say now for both
+    dates = client[client.index("What must happen") :]
+    assert dates.count("now (") == 2 or dates.count("now") >= 2, dates
+    table = out[out.index('id="summary"') :]
+    row = table[table.index(">U1<") : table.index("</tr>", table.index(">U1<"))]
+    assert "MAKE SAFE" in row, row
+    post = out[out.index("Post U1") :]
+    post = post[: post.index("Stored rating")]
+    assert "overridden" in post and "sill crushed" in post
+    assert "rated as found: no-action" in post  # the rating as found, beside the raised action
