@@ -211,3 +211,23 @@ def test_working_gives_the_users_units_first_as_the_interface_and_report_do(caps
     assert main([*ec5, "20kN", "--height", "2.5m", "--top", "pinned", "--working"]) == 0
     out = capsys.readouterr().out
     assert "100 mm (3.937 in) x 100 mm (3.937 in)" in out, out
+
+
+def test_remedies_give_the_users_units_first_in_the_text_and_the_report(capsys, tmp_path):
+    # common practice, no source: a US customary user reads '60 in (1524 mm)', as the working
+    post = ["rate", "--size", "4x4", "--height", "10ft", "--species", "dfl", "--grade", "no2"]
+    post += ["--top", "pinned", "--bottom", "pinned", "--load", "5000lbf"]
+    assert main(post) in (0, 1)
+    out = capsys.readouterr().out
+    assert "Brace at mid-height, 60.0 in (1524 mm) from the bottom" in out, out
+    assert main(["--units", "metric", *post]) in (0, 1)
+    assert "1524 mm (60.0 in)" in capsys.readouterr().out
+    from fieldcheck.report.html import render_report
+    from fieldcheck.store import Log
+
+    with Log.open(tmp_path / "s.db", author="t", device="d") as log:
+        v = log.add_visit(log.add_site("S").id, "V")
+        rec = dict(zip(post[1::2], post[2::2], strict=True))
+        log.save_post(v.id, {k.lstrip("-"): val for k, val in rec.items()})
+        html = render_report(log)
+    assert "Brace at mid-height, 60.0 in (1524 mm) from the bottom" in html

@@ -213,10 +213,14 @@ def _text(s: dict, system: str) -> str:
         br = s["bracing"]
         lines.append(f"Bracing must carry {force(br['total_kN'])}  [{br['clause']}]")
     if s.get("remedies"):
+        from fieldcheck.report.notation import units_first  # re and html only: cheap
+
         lines.append("What would make it pass (cheapest first):")
         for k, rem in enumerate(s["remedies"], 1):
             cap = force(rem["capacity_kN"])
-            lines.append(f"  {k}. {rem['description']} Capacity {cap}, ratio {rem['ratio']:.3f}.")
+            # the user's units first, as the working (an EC5 post: kN and mm first)
+            desc = units_first(rem["description"], "metric" if ec5 else system)
+            lines.append(f"  {k}. {desc} Capacity {cap}, ratio {rem['ratio']:.3f}.")
     elif s.get("remedies_note"):
         lines.append(f"Remedies      {s['remedies_note']}")
     lines.append("")

@@ -40,7 +40,7 @@ from fieldcheck.report.model import (
     gather,
     visit_date,
 )
-from fieldcheck.report.notation import notation, sig, symbols
+from fieldcheck.report.notation import notation, sig, symbols, units_first
 from fieldcheck.report.photos import data_uri
 from fieldcheck.report.style import stylesheet
 from fieldcheck.report.svg import capacity_plot, end_sketch
@@ -605,9 +605,8 @@ def _remedies(d: ReportData, p: PostEntry) -> str:
     items = []
     for x in rem:
         if isinstance(x, dict):
-            text = (
-                x.get("description")
-                or x.get("text")
+            text = units_first(x.get("description") or "", d.units) or (
+                x.get("text")
                 or "; ".join(f"{k}: {v}" for k, v in x.items())
             )
             after = []

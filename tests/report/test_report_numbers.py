@@ -14,7 +14,7 @@ from fieldcheck.engine.curves import capacity_vs_height
 from fieldcheck.engine.rating import rate
 from fieldcheck.engine.result import ACTIONS, DUE_DAYS
 from fieldcheck.records import parse_records
-from fieldcheck.report import model
+from fieldcheck.report import model, notation
 from fieldcheck.report.html import ratio_text, render_report
 from fieldcheck.units import format_force
 
@@ -138,7 +138,9 @@ def test_remedies_are_shown_when_the_engine_gives_them(demo_log):
             if isinstance(rem, dict) and rem.get("description"):
                 from html import escape
 
-                assert escape(rem["description"]) in out
+                # the user's units first (US by default; an EC5 post's section speaks metric)
+                us = notation.units_first(rem["description"], "us")
+                assert escape(us) in out or escape(rem["description"]) in out
 
 
 def test_report_summary_equals_rating_summary(demo_log):
