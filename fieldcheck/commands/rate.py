@@ -274,18 +274,22 @@ def _run_batch(args: argparse.Namespace) -> int:
         write_atomically(args.out, write)
     else:
         write(sys.stdout)
-    rated = int(parsed.ok.sum())
-    failed = _fails(args, rating.action.tolist(), unrated=len(rows) - rated)
-    print(
-        f"fieldcheck: rated {rated} of {len(rows)} posts"
-        + (
-            f"; {len(rows) - rated} rows need correcting (see the error column)."
-            if rated < len(rows)
-            else "."
-        ),
-        file=sys.stderr,
-    )
+    from fieldcheck.engine.result import NOT_RATED
+
+    parsed_ok = int(parsed.ok.sum())
+    no_load = int((rating.action == NOT_RATED).sum())
+    failed = _fails(args, rating.action.tolist(), unrated=len(rows) - parsed_ok)
+    # a post with no load is not rated, as the import and the results' action column say
+    said = [f"fieldcheck: rated {parsed_ok - no_load} of {len(rows)} posts"]
+    if no_load:
+        said.append(f"{no_load} not rated (load missing: give it)")
+    if parsed_ok < len(rows):
+        bad = len(rows) - parsed_ok
+        said.append(
+            f"{bad} {'row needs' if bad == 1 else 'rows need'} correcting (see the error column)"
+        )
+    print("; ".join(said) + ".", file=sys.stderr)
     if failed:
         print(f"fieldcheck: --fail-on {args.fail_on}: at least one post fails.", file=sys.stderr)
         return FAILED
-    return 0 if rated == len(rows) else 1
+    return 0 if parsed_ok == len(rows) else 1
