@@ -108,6 +108,11 @@ def test_ground_in_json(capsys):
         (["--tributary", "120sqft", "--rain", "5psf"], "rain_duration"),
         (["--dead", "10psf"], "dead"),
         (["--tributary", "120sqft"], "tributary"),
+        # judgement: a dead load nobody stated is not zero (a floor's own weight, the dead part
+        # of a load from above); refused until stated, 0 where there is truly none
+        (["--tributary", "120sqft", "--live", "40psf"], "dead"),
+        (["--spacing", "10ft x 12ft", "--snow", "30psf"], "dead"),
+        (["--point-live", "2kip"], "point"),
         (["--tributary", "120sqft", "--live", "40psf", "--occupancy", "office"], "occupancy"),
         (["--tributary", "120sqft", "--dead=-10psf"], "dead"),
         (["--soil", "loam"], "soil"),
@@ -119,3 +124,11 @@ def test_bad_input_one_sentence_exit_2(capsys, args, word):
     err = capsys.readouterr().err.strip()
     assert err.startswith(f"fieldcheck: {word}"), err
     assert len(err.splitlines()) == 1 and "Traceback" not in err
+
+
+def test_a_dead_load_stated_zero_is_taken_as_zero(capsys):
+    # judgement: '0 psf' / '0 lbf' says there is none; then D+L is the live load alone
+    out = _json(capsys, "--tributary", "100sqft", "--live", "40psf", "--dead", "0psf")
+    assert out["demand_lbf"] == pytest.approx(4000.0, abs=1.0)  # 40 psf x 100 sq ft
+    out = _json(capsys, "--point-live", "2kip", "--point", "0lbf")
+    assert out["demand_lbf"] == pytest.approx(2000.0, abs=1.0)

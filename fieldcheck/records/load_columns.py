@@ -345,6 +345,20 @@ def load_fields(row: dict[str, Any], out: dict[str, Any]) -> dict[str, Any]:
                 "rain_duration: a rain load has no duration in NDS 2018 Table 2.3.2; "
                 "state it, e.g. --rain-duration seven-days.",
             )
+        # a dead load nobody stated is not zero: a floor or roof carries its own weight, and a
+        # point load from above its dead part (judgement); refused until stated, 0 if truly none
+        if area_given and "dead" not in row:
+            raise RowError(
+                "dead",
+                "dead: a tributary area carries its own weight; give its dead load (e.g. --dead "
+                "floor-wood + 5 psf or roof-asphalt, or --dead 0 psf if there is truly none).",
+            )
+        if not area_given and "point" not in row:
+            raise RowError(
+                "point",
+                "point: give the dead part of the load from above too (e.g. --point 2000 lbf, "
+                "or --point 0 lbf if there is truly none).",
+            )
         reduce = (
             {"live_reduction_area_mm2": area, "floors": nf} if row.get("live_reduction") else {}
         )
