@@ -754,7 +754,7 @@ def _num(x: float, grouping: bool = False, sig: int = 3) -> str:
     """x to ``sig`` significant figures (whole numbers kept whole), trailing zeros dropped."""
     if x == 0 or not math.isfinite(x):
         return "0" if x == 0 else str(x)
-    if abs(x) < 1e-6:  # a tiny value in powers of ten, not hundreds of zeros: 1e-320
+    if abs(x) < 1e-6 or abs(x) >= 1e15:  # powers of ten, not hundreds of digits: 1e-320, 1e300
         return f"{x:.{sig}g}"
     decimals = max(0, sig - 1 - math.floor(math.log10(abs(x))))
     s = f"{x:,.{decimals}f}" if grouping else f"{x:.{decimals}f}"

@@ -524,3 +524,11 @@ def test_a_tiny_value_outside_the_range_is_shown_in_powers_of_ten():
         u.parse_percent("1e-320", "end_contact", lo=1, hi=100)
     msg = str(err.value)
     assert "e-32" in msg and "0000000" not in msg and "1 to 100 %" in msg
+
+
+def test_a_huge_value_outside_the_range_is_shown_in_powers_of_ten():
+    # judgement: as for a tiny value, a person reads '4.448e+300 N', not 301 digits
+    with pytest.raises(UnitInputError) as err:
+        u.parse_force("1e300lbf", "load", lo=0, hi=1e8)
+    msg = str(err.value)
+    assert "e+300" in msg and "0000000" not in msg and len(msg) < 300, msg
