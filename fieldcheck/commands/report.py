@@ -94,7 +94,7 @@ def run(args: argparse.Namespace) -> int:
                 )
         except OSError as exc:
             raise UsageError(f"report: cannot write {args.out} ({exc.strerror or exc})") from None
-        n = len(log.posts(visit.id) if visit else log.posts(site_id=site.id if site else None))
+        n = log.count_posts(vid, site_id=None if vid else sid)  # counted in SQLite
     rev = f"revision {info.revision}"
     if draft:
         why = "" if args.draft else "; the log is read-only"

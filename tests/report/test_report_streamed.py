@@ -75,6 +75,27 @@ def test_a_log_changed_between_the_passes_is_refused(demo_log, tmp_path, monkeyp
     assert list((tmp_path / "out").iterdir()) == []  # no half-written report left behind
 
 
+@pytest.mark.parametrize("scope", [[], ["--site", "9 Birch Lane"], ["--visit", "V1"]])
+def test_the_command_reads_no_list_of_every_post(demo_log, tmp_path, monkeypatch, capsys, scope):
+    from fieldcheck.cli import main
+    from fieldcheck.store import repo
+
+    if scope and scope[0] == "--visit":
+        scope = ["--visit", demo_log.visits()[0].name]
+    if scope and scope[0] == "--site":
+        scope = ["--site", demo_log.sites()[0].name]
+    n = len(demo_log.posts(**({"visit_id": demo_log.visits()[0].id} if "--visit" in scope else {})))
+
+    def refuse(*a, **kw):
+        raise AssertionError("a list of every post")
+
+    monkeypatch.setattr(repo.Log, "posts", refuse)
+    out = tmp_path / "out.html"
+    argv = ["report", "--db", str(demo_log.path), "--out", str(out), "--quiet", "--draft"]
+    assert main(argv + scope) == 0
+    assert f"Wrote the report of {n} posts" in capsys.readouterr().err
+
+
 def _rows(n: int) -> list[dict[str, str]]:
     loads = ("2000lbf", "6000lbf", "14000lbf", "")  # every action, and posts with no load
     return [
