@@ -116,9 +116,16 @@ def main() -> None:
     rated.rate([POST])
     rated.engine_stamp()
     # and what opening a log loads (sqlite-utils and its plugins): a throwaway log beside the
-    # real one, closed again, so no connection crosses the fork
-    with Log.open(path + ".warm", author="kill", device="dev-warm"):
-        pass
+    # real one, closed again, so no connection crosses the fork. Reopening it and three saves
+    # time this machine now: the kill window follows, so a loaded machine still sees kills
+    # mid-stream, not only before the first write
+    with Log.open(path + ".warm", author="kill", device="dev-warm") as warm:
+        visit = warm.add_visit(warm.add_site("Warm site").id, "k", name="warm")
+    t0 = time.perf_counter()
+    with Log.open(path + ".warm", author="kill", device="dev-warm") as warm:
+        for j in range(3):
+            warm.save_post(visit.id, {**POST, "tag": f"W{j}"})
+    window = max(0.12, 3 * (time.perf_counter() - t0))
     rnd = random.Random(seed)
     failures: list[str] = []
     total_acks = 0
@@ -136,7 +143,7 @@ def main() -> None:
                 os._exit(1)
         os.close(w)
         # first cycles die early (during creation and migration), later ones mid-stream
-        time.sleep(rnd.uniform(0.0, 0.02 if cycle < 5 else 0.12))
+        time.sleep(rnd.uniform(0.0, 0.02 if cycle < 5 else window))
         os.kill(pid, signal.SIGKILL)
         os.waitpid(pid, 0)
         with os.fdopen(r) as fh:
@@ -158,7 +165,15 @@ def main() -> None:
     except Exception as exc:
         failures.append(f"final open: {exc!r}")
     print(
-        json.dumps({"cycles": cycles, "acked": total_acks, "posts": n_posts, "failures": failures})
+        json.dumps(
+            {
+                "cycles": cycles,
+                "acked": total_acks,
+                "posts": n_posts,
+                "window_s": round(window, 3),
+                "failures": failures,
+            }
+        )
     )
 
 
