@@ -1,7 +1,7 @@
 """The office export: a fixed, documented column set (the same header whatever the data), in CSV
 or JSON, streamed row by row.
 
-Schema version 1 (``SCHEMA_VERSION``), in this order:
+Schema version 2 (``SCHEMA_VERSION``), in this order:
 
 - ``tag``, ``location``: as typed.
 - ``site``, ``visit``, ``visit_date`` (YYYY-MM-DD).
@@ -11,15 +11,22 @@ Schema version 1 (``SCHEMA_VERSION``), in this order:
   not read).
 - ``notes``: as typed.
 - ``state``: ``rated``, ``not rated: load missing`` or ``not rated`` (no stored rating).
-- ``action``: no-action, monitor, repair-or-brace, make-safe-now, not-rated (both states not
-  rated).
-- ``due_date``: visit date + the action's interval (blank: no deadline, or not rated).
+- ``action``: the stored rating's action: no-action, monitor, repair-or-brace, make-safe-now,
+  not-rated (both states not rated).
+- ``office_action``: the action an office engineer's override sets, where it is in force (the
+  post's latest review, of its current revision, not in conflict) and more severe than
+  ``action``; blank otherwise. An override never lowers a rating (store/reviews.py).
+- ``due_date``: visit date + the interval of the action in force (``office_action`` where set,
+  else ``action``; blank: no deadline, or not rated).
 - ``ratio`` (3 decimals), ``capacity_lbf``/``capacity_kN``, ``demand_lbf``/``demand_kN``.
 - ``governing``: the governing check's key (``column``, ``end_bearing``, ...).
 - ``engine_version``, ``revised_at``, ``member_id``, ``observation_id``, ``schema_version``.
 
 Rounding: lbf to 1 lbf, kN to 0.01 kN, inches to 0.01 in, mm to 1 mm, ratio to 0.001. The values
 are the log's latest stored rating of each post's current revision.
+
+Version 2 added ``office_action`` (and the due date follows it): in version 1 an override that
+raised a post to make-safe-now left the export reading the rating's milder action and date.
 
 CSV: a cell of text that begins with ``=``, ``+``, ``-``, ``@``, a tab or a carriage return (and
 is not a plain number) is written with a leading apostrophe, so a spreadsheet shows it as text
@@ -43,7 +50,7 @@ from operator import is_not
 from fieldcheck.engine.customary import LBF
 from fieldcheck.engine.result import ACTIONS, DUE_DAYS, NOT_RATED
 
-SCHEMA_VERSION = 1
+SCHEMA_VERSION = 2
 SCHEMA = "fieldcheck-export"
 FIRST = ("tag", "location", "site", "visit", "visit_date")
 UNIT_COLUMNS = {
@@ -58,6 +65,7 @@ def _result_columns(force: str) -> tuple[str, ...]:
         "notes",
         "state",
         "action",
+        "office_action",
         "due_date",
         "ratio",
         f"capacity_{force}",
@@ -156,8 +164,9 @@ def rows(
     typed = {c: i for c, i in at.items() if c not in ADDED}.get
     i_height, i_load = at[UNIT_COLUMNS[units]["height"]], at[UNIT_COLUMNS[units]["load"]]
     i_site, i_visit, i_day, i_tail = at["site"], at["visit"], at["visit_date"], at["state"]
-    tail = ("state", "action", "due_date", "ratio", f"capacity_{f}", f"demand_{f}", "governing")
-    tail += ("engine_version", "revised_at", "member_id", "observation_id", "schema_version")
+    tail = ("state", "action", "office_action", "due_date", "ratio", f"capacity_{f}")
+    tail += (f"demand_{f}", "governing", "engine_version", "revised_at", "member_id")
+    tail += ("observation_id", "schema_version")
     if tuple(cols[i_tail:]) != tail:  # the row's end is written in one step below
         raise AssertionError(f"the export's last columns changed: {cols[i_tail:]}")
     blank: list = [None] * len(cols)
@@ -176,28 +185,39 @@ def rows(
             days[v.id] = _dt.datetime.fromisoformat(v.started_at).date().isoformat()
         except (TypeError, ValueError):
             days[v.id] = None
-    states: dict[tuple, tuple] = {}  # (action, visit id) -> (state, action, due date)
+    states: dict[tuple, tuple] = {}  # (action, office, visit) -> (state, action, office, due date)
 
-    def state(act, vid) -> tuple:
-        day = days.get(vid)
-        if act == NOT_RATED:
-            out = ("not rated: load missing", ACTIONS[NOT_RATED], None)
-        elif act is None or not 0 <= act < NOT_RATED:  # no rating, or a code unknown here
-            # never a blank action a spreadsheet's filter reads as nothing to do (judgement)
-            out = ("not rated", ACTIONS[NOT_RATED], None)
-        elif DUE_DAYS[act] is None or not day:
-            out = ("rated", ACTIONS[act], None)
-        else:
-            due = _dt.date.fromisoformat(day) + _dt.timedelta(days=DUE_DAYS[act])
-            out = ("rated", ACTIONS[act], due.isoformat())
-        states[act, vid] = out
+    def state(act, office, vid) -> tuple:
+        """The cells state .. due_date. ``office``: OFFICE_ACTION (None, or an action above
+        ``act``, which is rated 0-2); the due date follows it where set."""
+        out = _state(act, office, vid)
+        states[act, office, vid] = out
         return out
+
+    def _state(act, office, vid) -> tuple:
+        day = days.get(vid)
+        if office is not None and act is not None and 0 <= act < office < NOT_RATED:
+            due = None
+            if DUE_DAYS[office] is not None and day:
+                due = _dt.date.fromisoformat(day) + _dt.timedelta(days=DUE_DAYS[office])
+                due = due.isoformat()
+            return ("rated", ACTIONS[act], ACTIONS[office], due)
+        if act == NOT_RATED:
+            return ("not rated: load missing", ACTIONS[NOT_RATED], None, None)
+        if act is None or not 0 <= act < NOT_RATED:  # no rating, or a code unknown here
+            # never a blank action a spreadsheet's filter reads as nothing to do (judgement)
+            return ("not rated", ACTIONS[NOT_RATED], None, None)
+        if DUE_DAYS[act] is None or not day:
+            return ("rated", ACTIONS[act], None, None)
+        due = _dt.date.fromisoformat(day) + _dt.timedelta(days=DUE_DAYS[act])
+        return ("rated", ACTIONS[act], None, due.isoformat())
 
     stamps: dict[tuple, tuple] = {}  # (governing, engine version) -> their cells
 
     def gen() -> Iterator[list]:
         for part in log.export_chunks(visit_id):
-            for rec, (_, site, vid, mid, oid, when, _by, ratio, act, cap, dem, gov, ev) in part:
+            for rec, fields in part:
+                _, site, vid, mid, oid, when, _by, ratio, act, cap, dem, gov, ev, office = fields
                 row = blank.copy()
                 for k, v in rec.items():
                     i = typed(k)
@@ -211,7 +231,7 @@ def rows(
                 row[i_site] = site_cell.get(site)
                 row[i_visit] = visit_cell.get(vid)
                 row[i_day] = days.get(vid)
-                st = states.get((act, vid)) or state(act, vid)
+                st = states.get((act, office, vid)) or state(act, office, vid)
                 ge = stamps.get((gov, ev))
                 if ge is None:
                     ge = stamps[gov, ev] = (cell(gov), cell(ev))

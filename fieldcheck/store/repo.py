@@ -64,6 +64,7 @@ EXPORT_ONLY_COLUMNS = (
     "revised_by",
     "ratio",
     "action",
+    "office_action",
     "capacity_kN",
     "demand_kN",
     "governing",
@@ -178,6 +179,8 @@ class PostView:
     revised_at: str
     revised_by: str
     conflict: bool  # more than one head: two revisions made without seeing each other
+    # the action an office override in force sets, above the rating's (OFFICE_ACTION), else None
+    office_action: int | None = None
 
 
 @dataclass(frozen=True)
@@ -910,9 +913,11 @@ class Log:
         out = {action_label(a): 0 for a in range(len(rated.ACTION_LABELS))}
         out[action_label(None)] = 0
         where, params = _member_filter(visit_id, None, self.demo_kept_out)
-        sql = _EXPORT_SQL.format(filter=where)  # counted in SQLite: no post held in memory
+        # counted in SQLite (no post held in memory), each post under the action in force
+        sql = _EXPORT_SQL.format(filter=where, office=self._office_sql())
         for act, n in self.db.conn.execute(
-            f"SELECT e.action, count(*) FROM ({sql}) e GROUP BY 1", params
+            f"SELECT coalesce(e.office_action, e.action), count(*) FROM ({sql}) e GROUP BY 1",
+            params,
         ):
             label = action_label(act)
             out[label] = out.get(label, 0) + n
@@ -1133,22 +1138,32 @@ class Log:
 
     def _record_keys(self, where: str, params: list) -> dict[str, None]:
         """Every key of the current records (in order of first appearance), found in SQLite."""
-        sql = _EXPORT_SQL.format(filter=where)
+        sql = _EXPORT_SQL.format(filter=where, office="NULL")
         with self._reading_records():
             keys = self.db.conn.execute(
                 f"SELECT DISTINCT j.key FROM ({sql}) e, json_each(e.record_json) j", params
             ).fetchall()
         return dict.fromkeys(k for (k,) in keys)
 
+    def _office_sql(self) -> str:
+        """OFFICE_ACTION, or NULL when the log holds no override at all (most logs: the export
+        then costs no lookup per post)."""
+        row = self.db.conn.execute(
+            "SELECT EXISTS (SELECT 1 FROM reviews WHERE kind = 'override')"
+        ).fetchone()
+        return OFFICE_ACTION if row[0] else "NULL"
+
     def export_chunks(
         self, visit_id: str | None = None, *, chunk: int = STORE_CHUNK
     ) -> Iterator[list[tuple[dict, tuple]]]:
         """Current posts (withdrawn ones left out) in member order, ``chunk`` at a time, as pairs
         (record dict, row) where row holds EXPORT_FIELDS in order; the rating fields are None
-        where the revision has no rating. The bulk path under every export: consume it before
-        closing the log."""
+        where the revision has no rating, ``office_action`` None unless an office override in
+        force raises the rating's action (OFFICE_ACTION). The bulk path under every export:
+        consume it before closing the log."""
         where, params = _member_filter(visit_id, None, self.demo_kept_out)
-        cur = self.db.conn.execute(_EXPORT_SQL.format(filter=where), params)
+        sql = _EXPORT_SQL.format(filter=where, office=self._office_sql())
+        cur = self.db.conn.execute(sql, params)
         while rows := cur.fetchmany(chunk):
             try:
                 recs = _loads_many([r[0] for r in rows])
@@ -1165,7 +1180,8 @@ class Log:
         sites = dict(self.db.conn.execute("SELECT id, name FROM sites").fetchall())
         visits = dict(self.db.conn.execute("SELECT id, name FROM visits").fetchall())
         for part in self.export_chunks(visit_id, chunk=chunk):
-            for rec, (_, site, visit, mid, oid, at, by, ratio, act, cap, dem, gov, ev) in part:
+            for rec, fields in part:
+                _, site, visit, mid, oid, at, by, ratio, act, cap, dem, gov, ev, office = fields
                 row: dict[str, object] = {**blank, **rec} if blank else rec  # column order
                 row["site"] = sites.get(site, "")
                 row["visit"] = visits.get(visit, "")
@@ -1175,6 +1191,7 @@ class Log:
                 row["revised_by"] = by
                 row["ratio"] = ratio
                 row["action"] = action_label(act)
+                row["office_action"] = "" if office is None else action_label(office)
                 row["capacity_kN"] = None if cap is None else cap / 1000.0
                 row["demand_kN"] = None if dem is None else dem / 1000.0
                 row["governing"] = gov or ""
@@ -1477,10 +1494,23 @@ EXPORT_FIELDS = (
     "demand_n",
     "governing",
     "engine_version",
+    "office_action",
 )
+# The action an office override sets where it is in force and raises the rating's (store/reviews.py
+# rules: the post's latest accept / override / require-remedy / settle decides, and only when it is
+# about the current revision and the post is not in conflict; an override never lowers a rating,
+# and a post not rated stays not rated). NULL otherwise. Looked up only for posts rated below
+# make-safe-now (nothing is above it), by the member's reviews (reviews_member index).
+OFFICE_ACTION = f"""CASE WHEN r.action BETWEEN 0 AND 2 THEN (
+    SELECT rv.action FROM reviews rv
+    WHERE rv.rowid = (SELECT max(x.rowid) FROM reviews x WHERE x.member_id = m.id
+        AND x.kind IN ('accept', 'override', 'require-remedy', 'settle'))
+    AND rv.kind = 'override' AND rv.observation_id = o.id AND rv.action > r.action
+    AND {NHEADS} = 1) END"""
 _EXPORT_SQL = f"""
 SELECT o.record_json, m.site_id, o.visit_id, o.member_id, o.id, o.created_at, o.author,
-    r.ratio, r.action, r.capacity_n, r.demand_n, r.governing, r.engine_version
+    r.ratio, r.action, r.capacity_n, r.demand_n, r.governing, r.engine_version,
+    {{office}} AS office_action
 FROM members m
 JOIN observations o ON o.rowid = {HEAD_ROWID_OF}
 LEFT JOIN ratings r ON r.rowid = (SELECT max(rowid) FROM ratings WHERE observation_id = o.id)

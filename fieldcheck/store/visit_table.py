@@ -71,10 +71,13 @@ _THESE_MEMBERS = (
 
 
 def _build_sql(words: dict[str, str]) -> str:
-    from fieldcheck.store.repo import HEAD_ROWID_OF
+    from fieldcheck.store.repo import HEAD_ROWID_OF, OFFICE_ACTION
 
     # each record's JSON is read once (a materialized step), the keys made from those values;
-    # the filter's text is the record as stored (values and names) and the action's words
+    # the filter's text is the record as stored (values and names) and the action's words. The
+    # action in force (an office override that raises the rating's, else the rating's) sorts,
+    # filters and counts; the rating's own action is kept beside it.
+    in_force = "coalesce(office, action)"
     return f"""
 WITH base AS MATERIALIZED (
     SELECT m.rowid AS rank, o.rowid AS obs_rowid, o.member_id, o.id, o.visit_id, m.site_id,
@@ -83,7 +86,7 @@ WITH base AS MATERIALIZED (
         coalesce(json_extract(o.record_json, '$.location'), '') AS location,
         coalesce(json_extract(o.record_json, '$.height'), '') AS height,
         r.ratio, r.action, r.capacity_n, r.demand_n, coalesce(r.governing, '') AS governing,
-        r.engine_version, o.created_at, o.author
+        r.engine_version, o.created_at, o.author, {OFFICE_ACTION} AS office
     FROM members m
     JOIN observations o ON o.rowid = {HEAD_ROWID_OF}
     LEFT JOIN ratings r ON r.rowid = (SELECT max(rowid) FROM ratings WHERE observation_id = o.id)
@@ -94,8 +97,9 @@ SELECT rank, obs_rowid, member_id, id, visit_id, site_id, record_json, tag, loca
     ratio, action, capacity_n, demand_n, governing, engine_version, created_at, author,
     member_id IN (SELECT value FROM json_each(?)),
     coalesce(ratio, 9e999), lower(tag), lower(location),
-    {_action_rank_sql().replace("r.action", "action")}, height,
-    lower(record_json || ' ' || {_action_words_sql(words).replace("r.action", "action")})
+    {_action_rank_sql().replace("r.action", in_force)}, height,
+    lower(record_json || ' ' || {_action_words_sql(words).replace("r.action", in_force)}),
+    office
 FROM base
 """
 
@@ -105,11 +109,12 @@ _COLUMNS = (
     "visit_id TEXT, site_id TEXT, record_json TEXT, tag TEXT, location TEXT, ratio REAL, "
     "action INTEGER, capacity_n REAL, demand_n REAL, governing TEXT, engine_version TEXT, "
     "revised_at TEXT, revised_by TEXT, conflict INTEGER, worst REAL, tag_key TEXT, "
-    "loc_key TEXT, action_key INTEGER, height_key TEXT, hay TEXT"
+    "loc_key TEXT, action_key INTEGER, height_key TEXT, hay TEXT, office_action INTEGER"
 )
 _VIEW_COLS = (
     "member_id, observation_id, visit_id, site_id, tag, location, record_json, ratio, action, "
-    "capacity_n, demand_n, governing, engine_version, revised_at, revised_by, conflict"
+    "capacity_n, demand_n, governing, engine_version, revised_at, revised_by, conflict, "
+    "office_action"
 )
 
 
@@ -122,6 +127,7 @@ class VisitTable:
         self.visit_id = visit_id
         self._sql = _build_sql(action_words)
         self.mark = 0  # observations.rowid read up to
+        self.review_mark = 0  # reviews.rowid read up to (an override changes the action shown)
         self.conn.execute("PRAGMA temp_store = MEMORY")
         self.conn.execute(f"CREATE TEMP TABLE visit_posts ({_COLUMNS})")
         self.conn.execute("CREATE TEMP TABLE visit_hits (r INTEGER PRIMARY KEY)")
@@ -141,9 +147,11 @@ class VisitTable:
     def close(self) -> None:
         self.conn.close()
 
-    def _top(self) -> int:
-        row = self.conn.execute("SELECT max(rowid) FROM observations").fetchone()
-        return int(row[0] or 0)
+    def _top(self) -> tuple[int, int]:
+        row = self.conn.execute(
+            "SELECT (SELECT max(rowid) FROM observations), (SELECT max(rowid) FROM reviews)"
+        ).fetchone()
+        return int(row[0] or 0), int(row[1] or 0)
 
     def _take(self, members: list[str] | None) -> None:
         """(Re)read the given members (None: the whole visit) into the table, in one
@@ -168,22 +176,23 @@ class VisitTable:
                 self.conn.execute(
                     self._sql.format(members=_THESE_MEMBERS), [arg, self.visit_id, conflicted]
                 )
-            self.mark = top
+            self.mark, self.review_mark = top
             self._hits_for = None
             self.total_rows = self.conn.execute("SELECT count(*) FROM visit_posts").fetchone()[0]
 
     def refresh(self) -> list[str]:
-        """Take in what was written since the last read: only the members those revisions
-        belong to are read again. Returns their ids."""
-        if self._top() == self.mark:
+        """Take in what was written since the last read: only the members those revisions (or
+        reviews, synced from the office) belong to are read again. Returns their ids."""
+        if self._top() == (self.mark, self.review_mark):
             return []
-        # the rowid range, deduplicated here (DISTINCT in SQL would walk the member index)
+        # the rowid ranges, deduplicated here (DISTINCT in SQL would walk the member index)
         members = list(
             dict.fromkeys(
                 r[0]
                 for r in self.conn.execute(
-                    "SELECT member_id FROM observations WHERE rowid > ? ORDER BY rowid",
-                    [self.mark],
+                    "SELECT member_id FROM observations WHERE rowid > ? UNION ALL "
+                    "SELECT member_id FROM reviews WHERE rowid > ? AND member_id IS NOT NULL",
+                    [self.mark, self.review_mark],
                 )
             )
         )
@@ -223,8 +232,8 @@ class VisitTable:
         "not rated": both are counted under it."""
         where, _ = self._hits(text)
         out: dict[str, int] = {}
-        for a, n in self.conn.execute(
-            f"SELECT action, count(*) FROM visit_posts{where} GROUP BY 1"
+        for a, n in self.conn.execute(  # under the action in force
+            f"SELECT coalesce(office_action, action), count(*) FROM visit_posts{where} GROUP BY 1"
         ):
             label = action_label(a)
             out[label] = out.get(label, 0) + n
@@ -289,4 +298,5 @@ def _view(r: tuple) -> PostView:
         r[13],
         r[14],
         bool(r[15]),
+        r[16],
     )

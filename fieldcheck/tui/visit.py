@@ -76,7 +76,14 @@ def remedy_mark(state: Any) -> str:
 
 
 def action_cell(p: Any) -> str:
-    """The action word; a post with no load is not rated (never 'no action')."""
+    """The action word; a post with no load is not rated (never 'no action'). Where an office
+    override in force raises the rating's action, the override's action, marked as the office's,
+    with the rating's beside it (what was found on site stays in view)."""
+    office = getattr(p, "office_action", None)
+    if office is not None:
+        from fieldcheck.store.rated import action_label
+
+        return f"{action_word(action_label(office))} (office; rated {action_word(p.action_label)})"
     if (
         p.action_label in ("not rated", "not-rated")
         and p.capacity_n is not None

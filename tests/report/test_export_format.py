@@ -82,11 +82,48 @@ def test_formula_cells_are_written_as_text(empty_log, capsys, tmp_path):
 def test_json_has_the_schema_and_numbers_as_numbers(demo_log, capsys):
     assert main(["export", "--db", str(demo_log.path), "--format", "json", "--out", "-"]) == 0
     data = json.loads(capsys.readouterr().out)
-    assert (data["schema"], data["schema_version"], data["units"]) == ("fieldcheck-export", 1, "us")
+    assert (data["schema"], data["schema_version"], data["units"]) == ("fieldcheck-export", 2, "us")
     assert data["columns"] == ef.columns("us", COLUMNS)
     b1 = next(p for p in data["posts"] if p["tag"] == "B1")
     assert b1["height_in"] == 86.0 and b1["load_lbf"] == 7000 and b1["diameter"] is None
     assert list(b1) == data["columns"]
+
+
+def test_an_office_override_in_force_is_exported_beside_the_rating(empty_log, capsys):
+    # judgement: an engineer's override that raises a post's action is what the office's
+    # spreadsheet must act on, as the report does (report/model.py): office_action holds it and
+    # the due date follows it; action stays the rating's (what was found on site). An override
+    # never lowers a rating, and one of a revision since replaced is not in force
+    # (store/reviews.py)
+    v = empty_log.add_visit(
+        empty_log.add_site("S").id, "R. Okafor", name="V", started_at="2026-03-02T09:00:00Z"
+    )
+    base = {"size": "6x6", "height": "8ft", "species": "douglas-fir-larch", "grade": "no1"}
+    base |= {"top": "pinned", "bottom": "pinned", "load": "2000lbf", "duration": "ten-years"}
+    base |= {"cap_species": "none", "sill_species": "none"}
+    up = empty_log.save_post(v.id, {"tag": "U1", **base})
+    down = empty_log.save_post(v.id, {"tag": "D1", **base, "load": "40000lbf"})
+    old = empty_log.save_post(v.id, {"tag": "R1", **base})
+    empty_log.review_post(up.member_id, "override", "sill crushed on site", "make-safe-now")
+    empty_log.review_post(down.member_id, "override", "looked fine", "no-action")
+    empty_log.review_post(old.member_id, "override", "split at the cap", "repair-or-brace")
+    empty_log.save_post(v.id, {"tag": "R1", **base, "notes": "cap replaced"}, old.member_id)
+    rows = {r["tag"]: r for r in _csv(capsys, ["export", "--db", str(empty_log.path)])}
+    assert (rows["U1"]["action"], rows["U1"]["office_action"]) == ("no-action", "make-safe-now")
+    assert (
+        rows["U1"]["due_date"] == (dt.date(2026, 3, 2) + dt.timedelta(days=DUE_DAYS[3])).isoformat()
+    )
+    assert rows["D1"]["action"] == "make-safe-now" and rows["D1"]["office_action"] == ""
+    assert rows["R1"]["office_action"] == ""  # the override was of the revision replaced
+    assert main(["export", "--db", str(empty_log.path), "--format", "json"]) == 0
+    posts = {p["tag"]: p for p in json.loads(capsys.readouterr().out)["posts"]}
+    assert posts["U1"]["office_action"] == "make-safe-now" and posts["D1"]["office_action"] is None
+    # Log.export_rows (the store's own flat rows) carries it too, and the first screen's counts
+    # count the post under the action in force
+    flat = {r["tag"]: r for r in empty_log.export_rows().rows}
+    assert flat["U1"]["office_action"] == "make-safe-now" and flat["R1"]["office_action"] == ""
+    counts = empty_log.counts_by_action(v.id)
+    assert counts["make-safe-now"] == 2 and counts["no-action"] == 1, counts
 
 
 def test_optional_byte_order_mark(demo_log, tmp_path):

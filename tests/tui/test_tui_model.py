@@ -261,3 +261,19 @@ def test_each_check_names_its_governing_combination_where_loads_are_combined():
     assert "; under D+Lr)" in column and "; under D)" in end
     lines = present.check_lines(explain.summary(r, 1))
     assert "combination" not in lines[0] and "under" not in "".join(lines)
+
+
+def test_the_list_shows_an_office_override_in_force_beside_the_rating():
+    # judgement: the engineer's raised action leads the post's row, and the rating as found on
+    # site stays in view beside it (never overwritten)
+    from fieldcheck.tui.visit import action_cell
+
+    def post(label, office=None):
+        return SimpleNamespace(
+            action_label=label, capacity_n=1.0, demand_n=1.0, office_action=office
+        )
+
+    cell = action_cell(post("monitor", 3))
+    assert cell.startswith(present.action_word("make-safe-now"))
+    assert "office" in cell and present.action_word("monitor") in cell
+    assert action_cell(post("monitor")) == present.action_word("monitor")
