@@ -71,48 +71,60 @@ _THESE_MEMBERS = (
 
 
 def _build_sql(words: dict[str, str]) -> str:
-    from fieldcheck.store.repo import HEAD_ROWID_OF, OFFICE_ACTION
+    from fieldcheck.store.repo import HEAD_ROWID_OF
 
-    # each record's JSON is read once (a materialized step), the keys made from those values;
     # the filter's text is the record as stored (values and names) and the action's words. The
-    # action in force (an office override that raises the rating's, else the rating's) sorts,
-    # filters and counts; the rating's own action is kept beside it.
+    # action in force (an office override that raises the rating's, else the rating's: {office}
+    # is OFFICE_ACTION, or NULL when the log holds no override) sorts, filters and counts; the
+    # rating's own action is kept beside it. The sort keys read from the record's JSON (tag,
+    # location, height) are made when that sort is first asked for (_KEYS): a third of the
+    # copy's time, for sorts most visits never use. NOT MATERIALIZED: each row goes straight into
+    # the table (copying the rows first cost a fifth of the build at 100,000 posts); OFFICE_ACTION
+    # may then be worked out up to three times for a post rated below make-safe-now, a few index
+    # seeks each, and only when the log holds an override.
     in_force = "coalesce(office, action)"
     return f"""
-WITH base AS MATERIALIZED (
+WITH base AS NOT MATERIALIZED (
     SELECT m.rowid AS rank, o.rowid AS obs_rowid, o.member_id, o.id, o.visit_id, m.site_id,
-        o.record_json,
-        coalesce(json_extract(o.record_json, '$.tag'), '') AS tag,
-        coalesce(json_extract(o.record_json, '$.location'), '') AS location,
-        coalesce(json_extract(o.record_json, '$.height'), '') AS height,
-        r.ratio, r.action, r.capacity_n, r.demand_n, coalesce(r.governing, '') AS governing,
-        r.engine_version, o.created_at, o.author, {OFFICE_ACTION} AS office
+        o.record_json, r.ratio, r.action, r.capacity_n, r.demand_n,
+        coalesce(r.governing, '') AS governing, r.engine_version, o.created_at, o.author,
+        {{office}} AS office
     FROM members m
     JOIN observations o ON o.rowid = {HEAD_ROWID_OF}
     LEFT JOIN ratings r ON r.rowid = (SELECT max(rowid) FROM ratings WHERE observation_id = o.id)
     WHERE o.withdrawn = 0 AND {{members}}
 )
-INSERT INTO temp.visit_posts
-SELECT rank, obs_rowid, member_id, id, visit_id, site_id, record_json, tag, location,
+INSERT INTO temp.visit_posts (rank, obs_rowid, member_id, observation_id, visit_id, site_id,
+    record_json, ratio, action, capacity_n, demand_n, governing, engine_version, revised_at,
+    revised_by, conflict, worst, action_key, hay, office_action)
+SELECT rank, obs_rowid, member_id, id, visit_id, site_id, record_json,
     ratio, action, capacity_n, demand_n, governing, engine_version, created_at, author,
-    member_id IN (SELECT value FROM json_each(?)),
-    coalesce(ratio, 9e999), lower(tag), lower(location),
-    {_action_rank_sql().replace("r.action", in_force)}, height,
+    member_id IN (SELECT value FROM json_each(?)), coalesce(ratio, 9e999),
+    {_action_rank_sql().replace("r.action", in_force)},
     lower(record_json || ' ' || {_action_words_sql(words).replace("r.action", in_force)}),
     office
 FROM base
 """
 
 
+# the sort keys taken from the record, each made for every row still without it (NULL) when its
+# sort is first asked for, and again for the rows a refresh read
+_KEYS = {
+    "tag": ("tag_key", "lower(coalesce(json_extract(record_json, '$.tag'), ''))"),
+    "location": ("loc_key", "lower(coalesce(json_extract(record_json, '$.location'), ''))"),
+    "height": ("height_key", "coalesce(json_extract(record_json, '$.height'), '')"),
+}
+
+
 _COLUMNS = (
     "rank INTEGER PRIMARY KEY, obs_rowid INTEGER, member_id TEXT, observation_id TEXT, "
-    "visit_id TEXT, site_id TEXT, record_json TEXT, tag TEXT, location TEXT, ratio REAL, "
+    "visit_id TEXT, site_id TEXT, record_json TEXT, ratio REAL, "
     "action INTEGER, capacity_n REAL, demand_n REAL, governing TEXT, engine_version TEXT, "
     "revised_at TEXT, revised_by TEXT, conflict INTEGER, worst REAL, tag_key TEXT, "
     "loc_key TEXT, action_key INTEGER, height_key TEXT, hay TEXT, office_action INTEGER"
 )
 _VIEW_COLS = (
-    "member_id, observation_id, visit_id, site_id, tag, location, record_json, ratio, action, "
+    "member_id, observation_id, visit_id, site_id, record_json, ratio, action, "
     "capacity_n, demand_n, governing, engine_version, revised_at, revised_by, conflict, "
     "office_action"
 )
@@ -132,9 +144,17 @@ class VisitTable:
         self.conn.execute(f"CREATE TEMP TABLE visit_posts ({_COLUMNS})")
         self.conn.execute("CREATE TEMP TABLE visit_hits (r INTEGER PRIMARY KEY)")
         self._indexed: set[str] = set()
+        self._keyed: set[str] = set()  # sorts whose keys every row holds (_KEYS)
         self._hits_for: str | None = None  # the filter text visit_hits holds
         self._hits_n = 0
         self._take(None)
+
+    def _keys(self, sort: str) -> None:
+        if sort in _KEYS and sort not in self._keyed:
+            col, expr = _KEYS[sort]
+            with self.conn:
+                self.conn.execute(f"UPDATE visit_posts SET {col} = {expr} WHERE {col} IS NULL")
+            self._keyed.add(sort)
 
     def _index(self, name: str) -> None:
         if name in _INDEXES and name not in self._indexed:
@@ -159,11 +179,15 @@ class VisitTable:
         with self.conn:
             top = self._top()
             from fieldcheck.store.conflicts import among, open_conflicts
+            from fieldcheck.store.repo import OFFICE_ACTION
 
+            exists = "SELECT EXISTS (SELECT 1 FROM reviews WHERE kind = 'override')"
+            office = OFFICE_ACTION if self.conn.execute(exists).fetchone()[0] else "NULL"
             if members is None:  # the whole visit: its members listed once, in one pass
                 conflicted = json.dumps(open_conflicts(self.conn))
                 self.conn.execute(
-                    self._sql.format(members=_VISIT_MEMBERS), [self.visit_id, conflicted]
+                    self._sql.format(members=_VISIT_MEMBERS, office=office),
+                    [self.visit_id, conflicted],
                 )
             else:  # a few members: each looked up by id (never a list of the whole visit)
                 arg = json.dumps(members)
@@ -174,10 +198,12 @@ class VisitTable:
                     [arg],
                 )
                 self.conn.execute(
-                    self._sql.format(members=_THESE_MEMBERS), [arg, self.visit_id, conflicted]
+                    self._sql.format(members=_THESE_MEMBERS, office=office),
+                    [arg, self.visit_id, conflicted],
                 )
             self.mark, self.review_mark = top
             self._hits_for = None
+            self._keyed.clear()  # the rows read now have no sort keys yet
             self.total_rows = self.conn.execute("SELECT count(*) FROM visit_posts").fetchone()[0]
 
     def refresh(self) -> list[str]:
@@ -242,6 +268,7 @@ class VisitTable:
     def _order(self, sort: str, hits: int) -> str:
         """ORDER BY for ``sort``: along its index, unless a filter keeps few posts (then
         sorting those few beats walking the index past the others)."""
+        self._keys(sort)
         if hits >= 0 and hits * 8 < self.total_rows:
             return ", ".join("+" + t for t in _ORDER_BY[sort].split(", "))
         self._index(sort)
@@ -261,6 +288,7 @@ class VisitTable:
     def position(self, sort: str, text: str, member_id: str) -> int | None:
         """Where a member stands in the order ``sort`` (filtered by ``text``), or None."""
         where, _ = self._hits(text)
+        self._keys(sort)
         row = self.conn.execute(
             f"SELECT n FROM (SELECT member_id, row_number() OVER (ORDER BY {_ORDER_BY[sort]}) - 1 "
             f"AS n FROM visit_posts{where}) WHERE member_id = ?",
@@ -269,7 +297,8 @@ class VisitTable:
         return None if row is None else int(row[0])
 
     def tags(self) -> set[str]:
-        return {r[0] for r in self.conn.execute("SELECT tag FROM visit_posts")}
+        sql = "SELECT coalesce(json_extract(record_json, '$.tag'), '') FROM visit_posts"
+        return {r[0] for r in self.conn.execute(sql)}
 
     def last_added(self) -> PostView | None:
         rows = self.conn.execute(
@@ -279,24 +308,24 @@ class VisitTable:
 
 
 def _view(r: tuple) -> PostView:
-    rec = json.loads(r[6])
+    rec = json.loads(r[4])
     return PostView(
         r[0],
         r[1],
         r[2],
         r[3],
-        r[4],
-        r[5],
+        rec.get("tag", ""),
+        rec.get("location", ""),
         rec,
+        r[5],
+        r[6],
+        action_label(r[6]),
         r[7],
         r[8],
-        action_label(r[8]),
         r[9],
         r[10],
         r[11],
         r[12],
-        r[13],
+        bool(r[13]),
         r[14],
-        bool(r[15]),
-        r[16],
     )
