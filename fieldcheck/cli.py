@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import argparse
 import importlib
+import re
 import sys
 
 from fieldcheck.commands import COMMANDS
@@ -69,8 +70,32 @@ def build_parser(only: str | None = None) -> argparse.ArgumentParser:
     return p
 
 
+_NEGATIVE_WITH_UNIT = re.compile(r"^-\.?\d")  # "-10ft", "-3 kN"
+_PLAIN_NEGATIVE = re.compile(r"^-\d+$|^-\d*\.\d+$")  # argparse already takes these as values
+
+
+def _negative_values_attached(argv: list[str]) -> list[str]:
+    """``--height -10ft`` as ``--height=-10ft``: argparse reads a value that starts with a minus
+    and is not a plain number as an option, and says only 'expected one argument'; attached,
+    the value reaches its field's own check, which names the field and the accepted range."""
+    out: list[str] = []
+    for a in argv:
+        prev = out[-1] if out else ""
+        if (
+            _NEGATIVE_WITH_UNIT.match(a)
+            and not _PLAIN_NEGATIVE.match(a)
+            and prev.startswith("--")
+            and "=" not in prev
+            and len(prev) > 2
+        ):
+            out[-1] = f"{prev}={a}"
+        else:
+            out.append(a)
+    return out
+
+
 def main(argv: list[str] | None = None) -> int:
-    argv = sys.argv[1:] if argv is None else argv
+    argv = _negative_values_attached(sys.argv[1:] if argv is None else list(argv))
     command = next((a for a in argv if a in COMMANDS), None)
     parser = build_parser(only=command)
     try:

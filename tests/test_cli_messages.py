@@ -219,3 +219,20 @@ def test_an_out_of_range_example_is_itself_in_range(capsys, option, value):
         del cells["size"]
     parsed = parse_records([cells])
     assert parsed.ok[0], (line, example, parsed.errors)
+
+
+@pytest.mark.parametrize(
+    "option, value, field",
+    [
+        ("--height", "-10ft", "height:"),
+        ("--load", "-5kN", "load:"),
+        ("--height", "-.5m", "height:"),
+    ],
+)
+def test_a_negative_value_with_a_unit_reaches_its_own_field(capsys, option, value, field):
+    # judgement: '--height -10ft' was read by argparse as an option ('expected one argument');
+    # the value now reaches its field's check, which names the field and the accepted range
+    argv = list(BASE)
+    argv[argv.index(option) + 1] = value
+    line = _err(capsys, argv)
+    assert line.startswith(f"fieldcheck: {field}") and "accepted range" in line, line
