@@ -264,7 +264,13 @@ def run(argv: list[str]) -> dict:
     for line in out.splitlines():  # a floor that times only its own part prints it
         if line.startswith("CPU "):
             cpu = float(line.split()[1])
-    return {"cpu": cpu, "wall": wall, "peak_mb": ru.ru_maxrss / 1024.0}
+    return {
+        "cpu": cpu,
+        "wall": wall,
+        "peak_mb": ru.ru_maxrss / 1024.0,
+        "rc": p.returncode,
+        "stderr": eo[0].decode()[-2000:],
+    }
 
 
 PY = sys.executable
@@ -287,6 +293,8 @@ def bench(n: int, tmp: Path, repeats: int) -> dict:
             run([*CLI, "import", "--db", str(db), str(src), "--site", "Bench", "--visit", "One"])
         )
     rr = run([*CLI, "rerate", "--db", str(db)])
+    if rr["rc"] != 0:  # every synthetic post rates: a re-rate that stopped measured nothing
+        raise RuntimeError(f"fieldcheck rerate failed ({rr['rc']}): {rr['stderr']}")
     rr_floor = run([PY, "-c", FLOOR_RERATE, str(db), str(tmp / f"rr-floor-{n}.db")])
     records = run([PY, "-c", RECORDS, str(db), str(n)])
     exp: dict[str, dict] = {}
