@@ -9,6 +9,7 @@ from html import escape
 import numpy as np
 import pytest
 
+from fieldcheck import ENGINE_VERSION
 from fieldcheck.engine import explain
 from fieldcheck.engine.curves import capacity_vs_height
 from fieldcheck.engine.rating import rate
@@ -57,12 +58,12 @@ def test_every_check_row_is_the_engines(demo_log):
 def test_stored_rating_shown_and_compared(demo_log, monkeypatch):
     out = render_report(demo_log)
     assert "The stored rating equals this re-rating" in out
-    assert "Stored rating:</b> engine 0.1.0" in out
+    assert f"Stored rating:</b> engine {ENGINE_VERSION}" in out
     # a report made by a later engine says the stored ratings came from another one
     monkeypatch.setattr(model, "ENGINE_VERSION", "9.9.9")
     later = render_report(demo_log)
     assert "The stored rating differs from this re-rating" in later
-    assert "Stored by engine 0.1.0; this report uses 9.9.9." in later
+    assert f"Stored by engine {ENGINE_VERSION}; this report uses 9.9.9." in later
 
 
 def test_changed_numbers_are_reported_as_a_difference(demo_log, monkeypatch):
