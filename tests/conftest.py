@@ -76,3 +76,19 @@ def _alone_when_marked(request, tmp_path_factory):
             if not alone:
                 fcntl.flock(gate, fcntl.LOCK_UN)
         yield  # both files close after the test: every lock is released
+
+
+@pytest.fixture
+def older_engine(monkeypatch):
+    """A switch: ``older_engine(True)`` and the ratings stored from then on carry the stamp of
+    engine 0.0.9 (as an older fieldcheck's, hash-consistent); ``older_engine(False)`` this
+    engine's again."""
+    import fieldcheck
+    from fieldcheck.store import rated
+
+    def switch(on: bool) -> None:
+        monkeypatch.setattr(fieldcheck, "ENGINE_VERSION", "0.0.9" if on else fieldcheck.__version__)
+        rated.engine_stamp.cache_clear()
+
+    yield switch
+    rated.engine_stamp.cache_clear()  # before monkeypatch puts the version back (its teardown)

@@ -108,9 +108,25 @@ def test_check_and_rerate_json(demo_db, capsys):
     assert main(["check", "--db", str(demo_db), "--json"]) == 0
     out = json.loads(capsys.readouterr().out)
     assert out["sound"] is True and out["problems"] == [] and out["schema_version"] >= 5
+    assert out["older_ratings"] == 0  # the demo was rated by this engine
     assert main(["rerate", "--db", str(demo_db), "--json", "--quiet"]) == 0
     out = json.loads(capsys.readouterr().out)
     assert out["rated"] == 9 and out["unrated"] == 0 and out["errors"] == []
+
+
+def test_check_says_when_ratings_came_from_an_older_engine(tmp_path, capsys, older_engine):
+    # judgement: a stored action of another engine version is said, not a problem (exit 0)
+    older_engine(True)
+    db = tmp_path / "old.db"
+    with Log.open(db, author="tester") as log:
+        log.import_rows([{"size": "4x4", "height": "8ft", "load": "1kip"}], "S", "V")
+    older_engine(False)
+    assert main(["check", "--db", str(db)]) == 0
+    assert "1 posts rated by an older engine" in capsys.readouterr().out
+    assert main(["rerate", "--db", str(db), "--quiet"]) == 0
+    capsys.readouterr()
+    assert main(["check", "--db", str(db), "--json"]) == 0
+    assert json.loads(capsys.readouterr().out)["older_ratings"] == 0
 
 
 def test_sync_json(tmp_path, capsys):

@@ -35,6 +35,7 @@ def run(args: argparse.Namespace) -> int:
     try:
         with Log.open(path, readonly=True) as log:
             report = log.integrity()
+            older = log.older_rated()  # not a problem: said, with what brings them up to date
     except LogError as exc:
         return _refused(args, path, str(exc))
     except sqlite3.DatabaseError as exc:
@@ -49,6 +50,7 @@ def run(args: argparse.Namespace) -> int:
             "sound": not problems,
             "problems": problems,
             "conflicts": report.conflicts,
+            "older_ratings": older,
         }
         print(json.dumps(out, ensure_ascii=False, indent=1))
         return 0 if not problems else 1
@@ -56,6 +58,12 @@ def run(args: argparse.Namespace) -> int:
         f"{path}: schema version {report.schema_version}, "
         f"{'sound' if not problems else f'{len(problems)} problems'}"
         + (f", {report.conflicts} posts with conflicting revisions" if report.conflicts else "")
+        + (
+            f", {older} posts rated by an older engine or older reference data (fieldcheck "
+            "rerate rates them again, keeping the old ratings)"
+            if older
+            else ""
+        )
     )
     for p in problems:
         print(f"  - {p}")

@@ -181,6 +181,8 @@ class PostView:
     conflict: bool  # more than one head: two revisions made without seeing each other
     # the action an office override in force sets, above the rating's (OFFICE_ACTION), else None
     office_action: int | None = None
+    # the stored rating was made by another engine version or other reference data
+    older: bool = False
 
 
 @dataclass(frozen=True)
@@ -923,6 +925,21 @@ class Log:
             out[label] = out.get(label, 0) + n
         return out
 
+    def older_rated(self, visit_id: str | None = None) -> int:
+        """Current posts whose latest stored rating was made by another engine version or other
+        reference data (``older_stamp_sql``): their stored action may not be this fieldcheck's
+        (``rerate_all`` brings them up to date, keeping the old ratings)."""
+        older = older_stamp_sql(self.db.conn)
+        if older is None:
+            return 0
+        where, params = _member_filter(visit_id, None, self.demo_kept_out)
+        sql = f"""SELECT count(*) FROM members m
+            JOIN observations o ON o.rowid = {HEAD_ROWID_OF}
+            JOIN ratings r ON r.rowid = (SELECT max(rowid) FROM ratings
+                                         WHERE observation_id = o.id)
+            WHERE o.withdrawn = 0 AND {older} {where}"""
+        return int(self.db.conn.execute(sql, params).fetchone()[0])
+
     def count_members(self) -> int:
         """Members recorded (withdrawn ones too): a quick upper bound of the current posts."""
         return int(self.db.conn.execute("SELECT count(*) FROM members").fetchone()[0])
@@ -1517,6 +1534,17 @@ LEFT JOIN ratings r ON r.rowid = (SELECT max(rowid) FROM ratings WHERE observati
 WHERE o.withdrawn = 0 {{filter}}
 ORDER BY m.rowid
 """
+
+
+def older_stamp_sql(conn) -> str | None:
+    """SQL true for a rating (alias ``r``) made by another engine version or other reference
+    data than this fieldcheck's (its stamp differs), or None when the log holds no rating of
+    another stamp (the usual case: one small query of the stamps table)."""
+    stamp = rated.engine_stamp()[0]  # a hex digest: safe as a literal
+    other = conn.execute(
+        "SELECT EXISTS (SELECT 1 FROM main.engine_stamps WHERE id != ?)", [stamp]
+    ).fetchone()[0]
+    return f"(r.stamp_id IS NOT NULL AND r.stamp_id != '{stamp}')" if other else None
 
 
 # ids passed to SQLite as one JSON array (any number, one parameter)

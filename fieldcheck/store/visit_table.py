@@ -88,7 +88,7 @@ WITH base AS NOT MATERIALIZED (
     SELECT m.rowid AS rank, o.rowid AS obs_rowid, o.member_id, o.id, o.visit_id, m.site_id,
         o.record_json, r.ratio, r.action, r.capacity_n, r.demand_n,
         coalesce(r.governing, '') AS governing, r.engine_version, o.created_at, o.author,
-        {{office}} AS office
+        {{office}} AS office, {{older}} AS older
     FROM members m
     JOIN observations o ON o.rowid = {HEAD_ROWID_OF}
     LEFT JOIN ratings r ON r.rowid = (SELECT max(rowid) FROM ratings WHERE observation_id = o.id)
@@ -96,13 +96,13 @@ WITH base AS NOT MATERIALIZED (
 )
 INSERT INTO temp.visit_posts (rank, obs_rowid, member_id, observation_id, visit_id, site_id,
     record_json, ratio, action, capacity_n, demand_n, governing, engine_version, revised_at,
-    revised_by, conflict, worst, action_key, hay, office_action)
+    revised_by, conflict, worst, action_key, hay, office_action, older)
 SELECT rank, obs_rowid, member_id, id, visit_id, site_id, record_json,
     ratio, action, capacity_n, demand_n, governing, engine_version, created_at, author,
     member_id IN (SELECT value FROM json_each(?)), coalesce(ratio, 9e999),
     {_action_rank_sql().replace("r.action", in_force)},
     lower(record_json || ' ' || {_action_words_sql(words).replace("r.action", in_force)}),
-    office
+    office, older
 FROM base
 """
 
@@ -121,12 +121,13 @@ _COLUMNS = (
     "visit_id TEXT, site_id TEXT, record_json TEXT, ratio REAL, "
     "action INTEGER, capacity_n REAL, demand_n REAL, governing TEXT, engine_version TEXT, "
     "revised_at TEXT, revised_by TEXT, conflict INTEGER, worst REAL, tag_key TEXT, "
-    "loc_key TEXT, action_key INTEGER, height_key TEXT, hay TEXT, office_action INTEGER"
+    "loc_key TEXT, action_key INTEGER, height_key TEXT, hay TEXT, office_action INTEGER, "
+    "older INTEGER"
 )
 _VIEW_COLS = (
     "member_id, observation_id, visit_id, site_id, record_json, ratio, action, "
     "capacity_n, demand_n, governing, engine_version, revised_at, revised_by, conflict, "
-    "office_action"
+    "office_action, older"
 )
 
 
@@ -145,6 +146,7 @@ class VisitTable:
         self.conn.execute("CREATE TEMP TABLE visit_hits (r INTEGER PRIMARY KEY)")
         self._indexed: set[str] = set()
         self._keyed: set[str] = set()  # sorts whose keys every row holds (_KEYS)
+        self._any_older = False  # a rating of another stamp was seen (else older() is 0)
         self._hits_for: str | None = None  # the filter text visit_hits holds
         self._hits_n = 0
         self._take(None)
@@ -179,14 +181,16 @@ class VisitTable:
         with self.conn:
             top = self._top()
             from fieldcheck.store.conflicts import among, open_conflicts
-            from fieldcheck.store.repo import OFFICE_ACTION
+            from fieldcheck.store.repo import OFFICE_ACTION, older_stamp_sql
 
             exists = "SELECT EXISTS (SELECT 1 FROM reviews WHERE kind = 'override')"
             office = OFFICE_ACTION if self.conn.execute(exists).fetchone()[0] else "NULL"
+            older = older_stamp_sql(self.conn) or "0"
+            self._any_older = older != "0" or self._any_older
             if members is None:  # the whole visit: its members listed once, in one pass
                 conflicted = json.dumps(open_conflicts(self.conn))
                 self.conn.execute(
-                    self._sql.format(members=_VISIT_MEMBERS, office=office),
+                    self._sql.format(members=_VISIT_MEMBERS, office=office, older=older),
                     [self.visit_id, conflicted],
                 )
             else:  # a few members: each looked up by id (never a list of the whole visit)
@@ -198,7 +202,7 @@ class VisitTable:
                     [arg],
                 )
                 self.conn.execute(
-                    self._sql.format(members=_THESE_MEMBERS, office=office),
+                    self._sql.format(members=_THESE_MEMBERS, office=office, older=older),
                     [arg, self.visit_id, conflicted],
                 )
             self.mark, self.review_mark = top
@@ -251,6 +255,17 @@ class VisitTable:
 
     def total(self) -> int:
         return self.total_rows
+
+    def older(self, text: str = "") -> int:
+        """Posts (of those the filter ``text`` keeps) whose stored rating was made by another
+        engine version or other reference data (store.repo.older_stamp_sql)."""
+        if not self._any_older:
+            return 0
+        where, _ = self._hits(text)
+        cond = " AND older" if where else " WHERE older"
+        return int(
+            self.conn.execute(f"SELECT count(*) FROM visit_posts{where}{cond}").fetchone()[0]
+        )
 
     def counts_by_action(self, text: str = "") -> dict[str, int]:
         """{action label: posts}, of those the filter ``text`` keeps. A post not rated because
@@ -328,4 +343,5 @@ def _view(r: tuple) -> PostView:
         r[12],
         bool(r[13]),
         r[14],
+        bool(r[15]),
     )

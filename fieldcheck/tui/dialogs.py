@@ -79,6 +79,10 @@ class HelpScreen(ReleasesKeys, ModalScreen[None]):
             "",
             "[b]Symbols[/b]  ✓ no action  ◔ monitor  ▲ repair/brace  ✖ make safe now  ? not rated",
             "  ✎ unsaved draft   ⚡ conflict (two revisions made apart: F7)",
+            "  ⟳ rated by an older engine or older reference data: its stored action may have",
+            "    changed (u on the first screen re-rates the log; the old ratings are kept)",
+            "  (office; rated …): an office override in force raised the action; the rating as",
+            "    found on site is shown beside it",
         ]
         with Vertical(id="help-box", classes="dialog"):
             yield Static("Help — Esc closes", classes="title")

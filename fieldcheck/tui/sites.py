@@ -38,6 +38,7 @@ def _load_overview(log: Any) -> dict[str, Any]:
     return {
         "rows": rows,
         "conflicts": len(log.conflicts()),
+        "older": log.older_rated(),  # stored by another engine or reference data
         "path": str(log.path),
         "notices": notices,
     }
@@ -51,6 +52,7 @@ class SitesScreen(ReleasesKeys, Screen[None]):
         Binding("o", "open_visit", "Open", key_display="o/⏎", id="open_visit"),
         Binding("ctrl+n", "new_visit", "New visit", id="new_visit"),
         Binding("ctrl+l", "reload", "Reload", id="reload"),
+        Binding("u", "rerate", "Re-rate", id="rerate_log"),
         Binding("question_mark", "app.help", "Help", show=False, id="help_q"),
     ]
 
@@ -124,7 +126,48 @@ class SitesScreen(ReleasesKeys, Screen[None]):
         status = f"Log: {escape(data['path'])}"
         if conflicts:
             status += f"  ⚡ {conflicts} conflict{'s' if conflicts != 1 else ''} (F7)"
+        older = data.get("older", 0)
+        if older:
+            status += (
+                f"  ⟳ {older} post{'s' if older != 1 else ''} rated by an older engine or older "
+                "reference data: the actions shown may have changed; u re-rates them"
+            )
         self.query_one("#sites-status", Static).update(status)
+
+    def action_rerate(self) -> None:
+        self.rerate()
+
+    @work(exclusive=True, group="sites-rerate", exit_on_error=False)
+    async def rerate(self) -> None:
+        """Re-rate every current post with this engine and its reference data, in one
+        transaction (store Log.rerate_all): new ratings are added, the old ones and every record
+        as found on site are kept."""
+        app: Any = self.app
+        if app.store.office:  # the hub holds what each device stored: each field log re-rates
+            self.notify(
+                "The office view does not re-rate: each post keeps the rating its device stored. "
+                "Re-rate in each field log, or re-rate a log file in the office.",
+                title="Re-rate",
+                markup=False,
+            )
+            return
+        self.notify("Re-rating every post of the log…", title="Re-rate", markup=False)
+        try:
+            done = await app.store.call(lambda log: log.rerate_all())
+        except Exception as exc:  # a busy or read-only log: said, nothing changed
+            self.notify(
+                f"Nothing was re-rated: {exc}", title="Re-rate", severity="error", markup=False
+            )
+            return
+        words = f"{done.rated} post{'s' if done.rated != 1 else ''} re-rated with engine "
+        words += f"{done.engine_version}."
+        if done.unrated:
+            words += (
+                f" {done.unrated} no longer rate{'s' if done.unrated == 1 else ''} with this "
+                "engine: kept with their old ratings; open each to see why."
+            )
+        self.notify(words, title="Re-rate", markup=False, timeout=15)
+        self.reload()
 
     def on_screen_resume(self) -> None:
         if self.app.store.path is not None:  # type: ignore[attr-defined]

@@ -228,6 +228,8 @@ class VisitScreen(ReleasesKeys, Screen[None]):
                 mark = remedy_mark(self.states.get(p.member_id))
                 if mark:
                     action += f" · {mark}"
+                if getattr(p, "older", False):
+                    action = "⟳ " + action  # stored by an older engine or older data
                 loc = p.location or ""
                 if len(loc) > 24:
                     loc = loc[:23] + "…"
@@ -255,6 +257,9 @@ class VisitScreen(ReleasesKeys, Screen[None]):
                 remedy[st.state] = remedy.get(st.state, 0) + 1
         if remedy:
             summary += "  " + ", ".join(f"{n} {s}" for s, n in sorted(remedy.items()))
+        older = self.source.older(text) if hasattr(self.source, "older") else 0
+        if older:  # their stored action may not be this engine's: the first screen's u re-rates
+            summary += f"  ⟳ {older} rated by an older engine (u on the first screen re-rates)"
         new_draft = "  ✎ unsaved new post (ctrl+n)" if f"new:{self.visit_id}" in drafts else ""
         first = self.window_start + 1 if self.posts else 0
         last = self.window_start + len(self.posts)

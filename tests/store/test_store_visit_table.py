@@ -143,3 +143,33 @@ def test_an_office_override_in_force_is_the_action_listed_and_counted(log, shore
         assert vt.counts_by_action() == before == _nonzero(log.counts_by_action(res.visit.id))
     finally:
         vt.close()
+
+
+def test_ratings_of_an_older_engine_are_counted_marked_and_re_rated(log, shore, older_engine):
+    # judgement: a stored action made by another engine version (or other reference data) may
+    # not be this fieldcheck's; it is never shown as if it were: counted, marked, and re-rated
+    # on request with the old ratings kept (append-only)
+    older_engine(True)  # an older engine stores them
+    res = log.import_rows(_posts(shore, 5), "Site", "Visit")
+    older_engine(False)
+    assert log.older_rated() == 5 and log.older_rated(res.visit.id) == 5
+    fresh = log.save_post(res.visit.id, {**shore, "tag": "N1"})  # rated by this engine
+    vt = VisitTable(log.path, res.visit.id, {})
+    try:
+        rows = {p.tag: p for p in vt.page("tag", "", 0, 100)}
+        assert rows["N1"].older is False and all(rows[f"P{i}"].older for i in range(5))
+        assert vt.older() == 5 and vt.older("N1") == 0
+        before = log.db.conn.execute("SELECT count(*) FROM ratings").fetchone()[0]
+        done = log.rerate_all()
+        assert done.rated == 6 and log.older_rated() == 0
+        after = log.db.conn.execute("SELECT count(*) FROM ratings").fetchone()[0]
+        assert after == before + 6  # new ratings added; the old ones kept
+        # a re-rate runs from the first screen: a visit opened after it reads the new ratings
+        vt2 = VisitTable(log.path, res.visit.id, {})
+        try:
+            assert vt2.older() == 0
+            assert fresh.member_id in {p.member_id for p in vt2.page("tag", "", 0, 9)}
+        finally:
+            vt2.close()
+    finally:
+        vt.close()

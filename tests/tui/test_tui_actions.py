@@ -354,3 +354,33 @@ async def test_remedies_and_shape_never_read_as_safe_when_the_action_says_otherw
         assert "load missing" in said["Q2"] and "No remedy needed" not in said["Q2"]
         assert "β = 1.00" in said["Q3shape"] and "Ke" not in said["Q3shape"]
         assert "Ke = 1.00" in said["Q1shape"]
+
+
+async def test_posts_rated_by_an_older_engine_are_said_and_re_rated_with_u(
+    own_log, ui, older_engine
+) -> None:
+    # judgement: the first screen says when stored actions came from another engine version or
+    # other reference data, and u re-rates the log (new ratings added, the old ones kept)
+    from fieldcheck.store import Log
+    from fieldcheck.store.demo import demo_rows
+
+    own_log.parent.mkdir(parents=True)
+    older_engine(True)
+    with Log.open(own_log) as field:
+        visit = field.add_visit(field.add_site("9 Birch Lane").id, "J. Ortiz")
+        for row in demo_rows()[:2]:
+            row.pop("visit")
+            field.save_post(visit.id, row)
+    older_engine(False)
+
+    app = ui.app(own_log, demo=False)
+    async with app.run_test(size=(140, 30)) as pilot:
+        await ui.settle(app, pilot)
+        assert "⟳ 2 posts rated by an older engine" in ui.text(app, "#sites-status")
+        await pilot.press("u")
+        await ui.settle(app, pilot, 0.2)
+        assert "⟳" not in ui.text(app, "#sites-status")
+    with Log.open(own_log, readonly=True) as log:
+        assert log.older_rated() == 0
+        versions = [r[0] for r in log.db.conn.execute("SELECT engine_version FROM ratings")]
+        assert versions.count("0.0.9") == 2 and len(versions) == 4  # the old ratings kept
