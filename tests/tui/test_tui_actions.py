@@ -8,6 +8,8 @@ from __future__ import annotations
 
 from textual.widgets import DataTable, Footer, Input, Static
 
+from fieldcheck.tui import present
+
 
 async def test_a_remedy_is_a_proposal_and_the_post_stays_rated_as_found(db, ui, tmp_path) -> None:
     from PIL import Image
@@ -377,6 +379,12 @@ async def test_posts_rated_by_an_older_engine_are_said_and_re_rated_with_u(
     async with app.run_test(size=(140, 30)) as pilot:
         await ui.settle(app, pilot)
         assert "⟳ 2 posts rated by an older engine" in ui.text(app, "#sites-status")
+        await ui.open_visit(app, pilot)  # each such post is marked in the list, and counted
+        posts = app.screen.query_one("#posts", DataTable)
+        assert all(str(posts.get_row_at(i)[2]).startswith("⟳") for i in range(posts.row_count))
+        assert "⟳ 2 rated by an older engine" in ui.text(app, "#visit-status")
+        await pilot.press("escape")
+        await ui.settle(app, pilot)
         await pilot.press("u")
         await ui.settle(app, pilot, 0.2)
         assert "⟳" not in ui.text(app, "#sites-status")
@@ -384,3 +392,26 @@ async def test_posts_rated_by_an_older_engine_are_said_and_re_rated_with_u(
         assert log.older_rated() == 0
         versions = [r[0] for r in log.db.conn.execute("SELECT engine_version FROM ratings")]
         assert versions.count("0.0.9") == 2 and len(versions) == 4  # the old ratings kept
+
+
+async def test_the_list_shows_an_office_override_in_force(own_log, ui) -> None:
+    # judgement: the engineer's raised action leads the row, the rating as found beside it, and
+    # the visit's counts count the post under the action in force (as the report does)
+    from fieldcheck.store import Log
+    from fieldcheck.store.demo import demo_rows
+
+    own_log.parent.mkdir(parents=True)
+    with Log.open(own_log) as field:
+        visit = field.add_visit(field.add_site("9 Birch Lane").id, "J. Ortiz")
+        row = next(r for r in demo_rows() if r["tag"] == "B1")
+        row.pop("visit")
+        post = field.save_post(visit.id, row)
+        rated_as = field.posts(visit.id)[0].action_label
+        field.review_post(post.member_id, "override", "sill crushed on site", "make-safe-now")
+    app = ui.app(own_log, demo=False)
+    async with app.run_test(size=(160, 30)) as pilot:
+        await ui.open_visit(app, pilot)
+        cell = str(app.screen.query_one("#posts", DataTable).get_row_at(0)[2])
+        assert cell.startswith(present.action_word("make-safe-now")), cell
+        assert f"office; rated {present.action_word(rated_as)}" in cell
+        assert f"{present.action_word('make-safe-now')} 1" in ui.text(app, "#visit-status")
