@@ -1488,7 +1488,7 @@ NHEADS = f"""(SELECT count(*) FROM observations h WHERE h.member_id = m.id AND {
 _POSTS_SQL = f"""
 SELECT o.id, o.member_id, o.visit_id, o.record_json, {NHEADS} AS nheads, o.created_at,
     o.author, m.site_id, r.capacity_n, r.demand_n, r.ratio, r.action, r.governing,
-    r.engine_version
+    r.engine_version, r.stamp_id
 FROM members m
 JOIN observations o ON o.rowid = {HEAD_ROWID_OF}
 LEFT JOIN ratings r ON r.rowid = (SELECT max(rowid) FROM ratings WHERE observation_id = o.id)
@@ -1695,6 +1695,7 @@ def _post_view(r: dict) -> PostView:
         r["created_at"],
         r["author"],
         r["nheads"] > 1,
+        older=r.get("stamp_id") not in (None, rated.engine_stamp()[0]),
     )
 
 

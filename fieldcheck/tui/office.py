@@ -124,7 +124,7 @@ class OfficeScreen(Screen[None]):
                 escape(review),
                 escape(p.tag or "—"),
                 ratio_text(p.ratio),
-                action_word(p.action_label),
+                ("⟳ " if p.older else "") + action_word(p.action_label),
                 escape(site),
                 escape(visit),
                 key=p.member_id,
@@ -132,9 +132,11 @@ class OfficeScreen(Screen[None]):
         if self.rows:
             table.move_cursor(row=min(keep, len(self.rows) - 1))
         waiting = sum(1 for _, st, _, _ in self.rows if st.awaiting)
-        self.query_one("#office-title", Static).update(
-            f"Office review: {waiting} of {len(self.rows)} posts await review (all sites)"
-        )
+        older = sum(1 for p, _, _, _ in self.rows if p.older)
+        title = f"Office review: {waiting} of {len(self.rows)} posts await review (all sites)"
+        if older:  # the action shown is what an older engine stored: open the post to re-rate
+            title += f"; ⟳ {older} rated by an older engine (open one to see this engine's rating)"
+        self.query_one("#office-title", Static).update(title)
         self._status()
 
     def _current(self) -> tuple[Any, Any, str, str] | None:

@@ -173,3 +173,13 @@ def test_ratings_of_an_older_engine_are_counted_marked_and_re_rated(log, shore, 
             vt2.close()
     finally:
         vt.close()
+
+
+def test_the_posts_list_marks_ratings_of_an_older_engine(log, shore, older_engine):
+    # the office's review queue reads Log.posts: the same mark as the visit table (judgement)
+    older_engine(True)
+    res = log.import_rows(_posts(shore, 2), "Site", "Visit")
+    older_engine(False)
+    log.save_post(res.visit.id, {**shore, "tag": "N1"})
+    marks = {p.tag: p.older for p in log.posts(res.visit.id)}
+    assert marks == {"P0": True, "P1": True, "N1": False}
