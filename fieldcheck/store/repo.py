@@ -916,7 +916,7 @@ class Log:
         out[action_label(None)] = 0
         where, params = _member_filter(visit_id, None, self.demo_kept_out)
         # counted in SQLite (no post held in memory), each post under the action in force
-        sql = _EXPORT_SQL.format(filter=where, office=self._office_sql())
+        sql = _EXPORT_SQL.format(filter=where, office=office_action_sql(self.db.conn))
         for act, n in self.db.conn.execute(
             f"SELECT coalesce(e.office_action, e.action), count(*) FROM ({sql}) e GROUP BY 1",
             params,
@@ -1162,14 +1162,6 @@ class Log:
             ).fetchall()
         return dict.fromkeys(k for (k,) in keys)
 
-    def _office_sql(self) -> str:
-        """OFFICE_ACTION, or NULL when the log holds no override at all (most logs: the export
-        then costs no lookup per post)."""
-        row = self.db.conn.execute(
-            "SELECT EXISTS (SELECT 1 FROM reviews WHERE kind = 'override')"
-        ).fetchone()
-        return OFFICE_ACTION if row[0] else "NULL"
-
     def export_chunks(
         self, visit_id: str | None = None, *, chunk: int = STORE_CHUNK
     ) -> Iterator[list[tuple[dict, tuple]]]:
@@ -1179,7 +1171,7 @@ class Log:
         force raises the rating's action (OFFICE_ACTION). The bulk path under every export:
         consume it before closing the log."""
         where, params = _member_filter(visit_id, None, self.demo_kept_out)
-        sql = _EXPORT_SQL.format(filter=where, office=self._office_sql())
+        sql = _EXPORT_SQL.format(filter=where, office=office_action_sql(self.db.conn))
         cur = self.db.conn.execute(sql, params)
         while rows := cur.fetchmany(chunk):
             try:
@@ -1534,6 +1526,13 @@ LEFT JOIN ratings r ON r.rowid = (SELECT max(rowid) FROM ratings WHERE observati
 WHERE o.withdrawn = 0 {{filter}}
 ORDER BY m.rowid
 """
+
+
+def office_action_sql(conn) -> str:
+    """OFFICE_ACTION, or NULL when the log holds no override at all (most logs: a list or an
+    export then costs no lookup per post)."""
+    row = conn.execute("SELECT EXISTS (SELECT 1 FROM main.reviews WHERE kind = 'override')")
+    return OFFICE_ACTION if row.fetchone()[0] else "NULL"
 
 
 def older_stamp_sql(conn) -> str | None:

@@ -181,10 +181,9 @@ class VisitTable:
         with self.conn:
             top = self._top()
             from fieldcheck.store.conflicts import among, open_conflicts
-            from fieldcheck.store.repo import OFFICE_ACTION, older_stamp_sql
+            from fieldcheck.store.repo import office_action_sql, older_stamp_sql
 
-            exists = "SELECT EXISTS (SELECT 1 FROM reviews WHERE kind = 'override')"
-            office = OFFICE_ACTION if self.conn.execute(exists).fetchone()[0] else "NULL"
+            office = office_action_sql(self.conn)
             older = older_stamp_sql(self.conn) or "0"
             self._any_older = older != "0" or self._any_older
             if members is None:  # the whole visit: its members listed once, in one pass
