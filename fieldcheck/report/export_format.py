@@ -189,28 +189,23 @@ def rows(
 
     def state(act, office, vid) -> tuple:
         """The cells state .. due_date. ``office``: OFFICE_ACTION (None, or an action above
-        ``act``, which is rated 0-2); the due date follows it where set."""
-        out = _state(act, office, vid)
+        ``act``); the due date follows the action in force."""
+        if act == NOT_RATED:
+            out = ("not rated: load missing", ACTIONS[NOT_RATED], None, None)
+        elif act is None or not 0 <= act < NOT_RATED:  # no rating, or a code unknown here
+            # never a blank action a spreadsheet's filter reads as nothing to do (judgement)
+            out = ("not rated", ACTIONS[NOT_RATED], None, None)
+        else:
+            raised = office if office is not None and act < office < NOT_RATED else None
+            force = act if raised is None else raised
+            day, due = days.get(vid), None
+            if DUE_DAYS[force] is not None and day:
+                due = (
+                    _dt.date.fromisoformat(day) + _dt.timedelta(days=DUE_DAYS[force])
+                ).isoformat()
+            out = ("rated", ACTIONS[act], None if raised is None else ACTIONS[raised], due)
         states[act, office, vid] = out
         return out
-
-    def _state(act, office, vid) -> tuple:
-        day = days.get(vid)
-        if office is not None and act is not None and 0 <= act < office < NOT_RATED:
-            due = None
-            if DUE_DAYS[office] is not None and day:
-                due = _dt.date.fromisoformat(day) + _dt.timedelta(days=DUE_DAYS[office])
-                due = due.isoformat()
-            return ("rated", ACTIONS[act], ACTIONS[office], due)
-        if act == NOT_RATED:
-            return ("not rated: load missing", ACTIONS[NOT_RATED], None, None)
-        if act is None or not 0 <= act < NOT_RATED:  # no rating, or a code unknown here
-            # never a blank action a spreadsheet's filter reads as nothing to do (judgement)
-            return ("not rated", ACTIONS[NOT_RATED], None, None)
-        if DUE_DAYS[act] is None or not day:
-            return ("rated", ACTIONS[act], None, None)
-        due = _dt.date.fromisoformat(day) + _dt.timedelta(days=DUE_DAYS[act])
-        return ("rated", ACTIONS[act], None, due.isoformat())
 
     stamps: dict[tuple, tuple] = {}  # (governing, engine version) -> their cells
 
