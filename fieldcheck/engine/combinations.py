@@ -259,6 +259,17 @@ def largest_perp_load(b: PostBatch) -> np.ndarray:
     return b.load_n / np.where(b.method == LRFD, np.minimum(b.lam, 1.0), 1.0)
 
 
+def largest_load_per_factor(b: PostBatch) -> np.ndarray:
+    """Each post's largest load / duration factor over its combinations (CD, lambda; kmod for
+    EC5): where a capacity proportional to the factor is largest relative to it (the reference
+    combination); a load given directly: that load / its factor."""
+    if used(b):
+        load, fac, _, _ = _dense(b)
+        with np.errstate(invalid="ignore", divide="ignore"):
+            return np.fmax.reduce(load / fac, axis=0)
+    return b.load_n / _factor(b)
+
+
 def distinct_per_post(b: PostBatch) -> np.ndarray:
     """How many combinations of each post differ in load or duration factor (bench/engine.py)."""
     load, fac, _, _ = _dense(b)

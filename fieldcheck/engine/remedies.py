@@ -24,7 +24,8 @@ capacity:
 - ``replace``: the smallest stock section (4x4 ... 12x12 nominal) and the lowest stock grade
   (No.2, No.1, Select Structural) of the post's species group that passes (douglas-fir-larch
   when the species is unknown: judgement, common stock); a new, sound post: condition fields
-  back to their defaults; same height, ends, bracing, service and load. Not for EC5 posts.
+  back to their defaults; same height, ends, bracing, service and loads (every combination
+  rated, as for the post it replaces). Not for EC5 posts.
 
 API: ``remedies(batch, rating=None) -> Remedies`` (arrays for all offered options, sorted by post
 then rank) with ``Remedies.for_post(i) -> list[Remedy]``. Each Remedy has ``changes`` (PostBatch
@@ -39,9 +40,10 @@ from functools import cache
 
 import numpy as np
 
-from fieldcheck.engine import materials, nds, sections
+from fieldcheck.engine import combinations, materials, nds, sections
 from fieldcheck.engine import quantities as q
 from fieldcheck.engine.batch import DIMENSION, EC5, LRFD, RECT, TIMBER, PostBatch, make_batch
+from fieldcheck.engine.combinations import NOMINAL_FIELDS
 from fieldcheck.engine.customary import FT, IN, LBF
 from fieldcheck.engine.rating import FLAGS, action_from, rate
 from fieldcheck.engine.result import ACTIONS, NOT_RATED, Rating
@@ -84,7 +86,21 @@ _KEEP_ON_REPLACE = (
     "temp_c",
     "construction",
     "load_n",
+    # the loads as given: a new post is rated under every combination, as the old one was
+    "nom_d_n",
+    "nom_l_n",
+    "nom_lr_n",
+    "nom_s_n",
+    "nom_r_n",
+    "nom_w_n",
+    "nom_e_n",
+    "cd_l",
+    "cd_r",
+    "live_kind",
+    "duration_assumed",
     "end_plate",
+    "top_not_wood",
+    "bottom_not_wood",
     "top_fc_perp_mpa",
     "top_cb",
     "bottom_fc_perp_mpa",
@@ -417,8 +433,10 @@ def remedies(batch: PostBatch, rating: Rating | None = None) -> Remedies:
     w = np.flatnonzero(~np.isnan(sub.load_n) & (sub.shared_by < MAX_SHARED))
     part = sub.take(w)
     n_new = part.shared_by.astype(float) + 1.0
+    share = part.shared_by / n_new  # each post's share, the loads as given and the nominal ones
+    shared = {f: getattr(part, f) * share for f in NOMINAL_FIELDS}
     add(
-        part.replace(load_n=part.load_n * part.shared_by / n_new, shared_by=n_new.astype(np.int8)),
+        part.replace(load_n=part.load_n * share, shared_by=n_new.astype(np.int8), **shared),
         w,
         SECOND,
         np.zeros(w.size),
@@ -429,6 +447,7 @@ def remedies(batch: PostBatch, rating: Rating | None = None) -> Remedies:
     # replacement with stock sections and grades of the same species
     not_ec5 = sub.method != EC5
     codes = sub.species_code
+    per_factor = combinations.largest_load_per_factor(sub)
     for code in np.unique(codes[not_ec5]):
         sp = materials.SPECIES[code] if code >= 0 else DEFAULT_SPECIES
         opts, mat = _stock(sp)
@@ -438,11 +457,12 @@ def remedies(batch: PostBatch, rating: Rating | None = None) -> Remedies:
         w = np.flatnonzero(not_ec5 & (codes == code))
         rep = np.repeat(w, m)
         o = np.tile(np.arange(m), w.size)
-        # skip stock that cannot pass: capacity <= Fc x CF x (CD or KF phi lambda) x A (NDS 2018
-        # §3.7.1, Cp <= 1 and the other factors <= 1); the same answer, fewer rows to rate
-        time = np.where(sub.method[rep] == LRFD, nds.KF_FC * nds.PHI_C * sub.lam[rep], sub.cd[rep])
-        bound = mat["fc_mpa"][o] * mat["cf_fc"][o] * time * mat["d1_mm"][o] * mat["d2_mm"][o]
-        can = ~(sub.load_n[rep] > bound)
+        # skip stock that cannot pass: at every combination, capacity <= Fc x CF x (CD, or KF
+        # phi lambda) x A (NDS 2018 §3.7.1, Cp <= 1 and the other factors <= 1), so a largest
+        # load / factor above Fc x CF (x KF phi) x A fails; the same answer, fewer rows to rate
+        unit = np.where(sub.method[rep] == LRFD, nds.KF_FC * nds.PHI_C, 1.0)
+        bound = mat["fc_mpa"][o] * mat["cf_fc"][o] * unit * mat["d1_mm"][o] * mat["d2_mm"][o]
+        can = ~(per_factor[rep] > bound)
         rep, o = rep[can], o[can]
         keep = {name: getattr(sub, name)[rep] for name in _KEEP_ON_REPLACE}
         new = {name: v[o] for name, v in mat.items()}
