@@ -26,7 +26,8 @@ EXAMPLE_A = [
 
 
 def test_example_a_json(capsys):
-    assert main([*EXAMPLE_A, "--json"]) == 0
+    # no load: the capacity at the duration stated, here ten years (CD 1.0, NDS 2018 Table 2.3.2)
+    assert main([*EXAMPLE_A, "--duration", "ten-years", "--json"]) == 0
     out = json.loads(capsys.readouterr().out)
     # NDS 2018 §3.7.1, 4x4 No.2 DF-L pinned, computed by hand at 10 ft (NDS 2018 §3.7.1): 4,665.07
     # lb, Cp 0.245296

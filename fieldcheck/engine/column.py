@@ -372,8 +372,9 @@ COLUMN = Stage(
     flags=(
         Flag(
             "no_load",
-            "No load given: the capacity is shown at the load duration stated, else at normal "
-            "duration (CD 1.0; LRFD lambda 0.8), but no decision can be made without the load.",
+            "No load given: the capacity is shown at the load duration stated, else as for a "
+            "permanent load (CD 0.9; LRFD lambda 0.6), the lowest; no decision can be made "
+            "without the load.",
         ),
         Flag(
             "slender_construction",

@@ -490,7 +490,8 @@ def ec5_summary(r: Rating, i: int, out: dict) -> None:
 EC5_WARNINGS = {
     "no_load": (
         "No load given: N_Rd is shown at the k_mod of the load duration stated, else of the "
-        "long-term class (EN 1995-1-1 Table 3.1), but no decision can be made without the load."
+        "permanent class, the lowest (EN 1995-1-1 Table 3.1); no decision can be made without "
+        "the load."
     ),
     "dry_assumed": (
         "Moisture not measured: the service class given (or 1) is used (EN 1995-1-1 §2.3.1.3: "

@@ -146,9 +146,11 @@ def end_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:
 
 
 def load_duration(row: Row) -> str:
-    """The duration of a load given directly: as stated, else permanent (CD 0.9, lambda 0.6),
-    the conservative choice for an existing post (NDS 2018 Table 2.3.2; Appendix N Table N3)."""
-    return row.get("duration") or ("permanent" if "load" in row else "ten-years")
+    """The duration of a load given directly, or of the capacity shown where no load is given:
+    as stated, else permanent (CD 0.9, lambda 0.6), the conservative choice for an existing post
+    (NDS 2018 Table 2.3.2; Appendix N Table N3). Tributary loads take each combination's own
+    (engine/combinations.py), whatever this says."""
+    return row.get("duration") or "permanent"
 
 
 def material_fields(row: Row, out: dict[str, Any]) -> dict[str, Any]:

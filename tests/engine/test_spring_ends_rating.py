@@ -107,7 +107,7 @@ def test_k_factor_errors_exit_2(capsys, argv):
 
 
 def test_capacity_curve_is_the_batch_engine():
-    parsed = parse_records([BASE])
+    parsed = parse_records([{**BASE, "duration": "ten-years"}])  # CD 1.0 (NDS 2018 Table 2.3.2)
     h = np.array([96.0, 120.0]) * 25.4
     curve = capacity_vs_height(parsed.batch, h)
     # NDS 2018 §3.7.1, 4x4 No.2 DF-L pinned, computed by hand: 6,959.64 and 4,665.07 lb

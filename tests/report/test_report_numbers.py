@@ -244,8 +244,8 @@ def test_the_load_duration_says_where_its_factor_came_from(empty_log):
     # NDS 2018 §2.3.2 and Table 2.3.2: with nominal loads every ASCE 7 combination is rated,
     # each at its own CD, and D+Lr (CD 1.25) governs this column (computed by hand, as in
     # tests/tui/test_tui_model.py); a load given with no duration is permanent (CD 0.9, issue
-    # 13 item 8); a post with no load shows its capacity at the factor named. Never "default"
-    # for a factor a combination set.
+    # 13 item 8); a post with no load shows its capacity at the factor named (permanent, the
+    # lowest, judgement). Never "default" for a factor a combination set.
     site = empty_log.add_site("Site")
     v = empty_log.add_visit(site.id, "tester")
     base = {"size": "4x4", "height": "11ft", "species": "dfl", "grade": "no2"}
@@ -263,4 +263,4 @@ def test_the_load_duration_says_where_its_factor_came_from(empty_log):
 
     assert "governing D+Lr: CD = 1.25" in duration("C1") and "default" not in duration("C1")
     assert "permanent assumed" in duration("G1") and "CD = 0.9" in duration("G1")
-    assert "no load: the capacity is shown at CD = 1" in duration("N1")
+    assert "no load: the capacity is shown at CD = 0.9" in duration("N1")  # permanent, the lowest

@@ -212,6 +212,7 @@ def test_example_a_through_records_matches_engine():
                 "grade": "no2",
                 "top": "pinned",
                 "bottom": "pinned",
+                "duration": "ten-years",  # CD 1.0, NDS 2018 Table 2.3.2
             }
         ]
     )

@@ -106,7 +106,23 @@ def test_the_largest_load_over_the_combinations_not_the_reference():
 def test_no_load_says_at_which_duration_the_capacity_is_shown(capsys):
     assert main([*POST, "--json"]) == 0
     out = json.loads(capsys.readouterr().out)
-    assert any("normal duration (CD 1.0; LRFD lambda 0.8)" in w for w in out["warnings"])
+    assert any("permanent load (CD 0.9; LRFD lambda 0.6)" in w for w in out["warnings"])
+
+
+@pytest.mark.parametrize("method", ["asd", "lrfd", "ec5"])
+def test_no_load_capacity_is_shown_at_the_lowest_duration_factor(capsys, method):
+    # a missing duration is never read as the kinder one: with no load the capacity shown is that
+    # of a permanent load (NDS 2018 Table 2.3.2: CD 0.9; Appendix N Table N3: lambda 0.6;
+    # EN 1995-1-1 Table 3.1: the permanent class's k_mod), as for a load given with no duration;
+    # the choice is judgement
+    post = [*POST[:5], "--class", "C24", *POST[9:]] if method == "ec5" else POST
+    assert main([*post, "--method", method, "--json"]) == 0
+    none = json.loads(capsys.readouterr().out)
+    for duration, same in (("permanent", True), ("ten-years", False)):
+        args = [*post, "--method", method, "--load", "1kN", "--duration", duration]
+        assert main([*args, "--json"]) == 0
+        given = json.loads(capsys.readouterr().out)
+        assert (none["allowable_load_kN"] == given["allowable_load_kN"]) is same, duration
 
 
 @pytest.mark.parametrize(
