@@ -49,13 +49,15 @@ def _find_post(log, text: str, site_id):
     from fieldcheck.commands.usage import UsageError
 
     posts = log.posts(site_id=site_id)
+    # its tag, else its id (or the start of it), else the reference the list and the report give
+    # an untagged post (the end of its id)
     found = [p for p in posts if p.tag == text] or [
-        p for p in posts if p.member_id.startswith(text)
+        p for p in posts if p.member_id.startswith(text) or p.ref == text
     ]
     if len(found) == 1:
         return found[0]
     if found:
-        ids = ", ".join(p.member_id[:13] for p in found[:5])
+        ids = ", ".join(p.member_id for p in found[:5])
         raise UsageError(f"{len(found)} posts match {text!r} ({ids}); give the post's id or --site")
     raise UsageError(f"no post tagged or numbered {text!r} in this log; list them with `review`")
 
@@ -79,7 +81,7 @@ def run(args: argparse.Namespace) -> int:
             waiting = [p for p in log.posts(site_id=site_id) if states[p.member_id].awaiting]
             for p in waiting:
                 print(
-                    f"{p.member_id[:13]}  {p.tag or '-':<10} {p.action_label:<16} awaiting review"
+                    f"{p.ref}  {p.tag or '-':<10} {p.action_label:<16} awaiting review"
                 )
             print(f"{len(waiting)} posts await review.")
             return 0

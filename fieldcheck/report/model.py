@@ -64,7 +64,7 @@ class PostEntry:
 
     @property
     def tag(self) -> str:
-        return self.view.tag or self.view.member_id[:8]
+        return self.view.label
 
     @property
     def location(self) -> str:
@@ -397,7 +397,7 @@ def post_row(
 ) -> PostRow:
     """The PostRow of one post (``j``: its index into ``rating``, None when refused; ``state``:
     its store ReviewState, whose override raises the action in force)."""
-    tag = view.tag or view.member_id[:8]
+    tag = view.label
     if j is None:
         action = ratio = cap = dem = gov = due = why = None
         errs: str | None = "; ".join(errors)
@@ -613,7 +613,7 @@ def gather(
                     visits.append(all_visits[view.visit_id])
                     seen.add(view.visit_id)
                 if view.member_id in wanted:
-                    tags[view.member_id] = view.tag
+                    tags[view.member_id] = view.label
                 if view.member_id in signoff_members:
                     in_scope.add(view.member_id)
             rows.add(out)
@@ -636,7 +636,7 @@ def gather(
         if mid in tags:
             hist = log.history(mid)
             heads = [o for o in hist if not any(c.supersedes == o.id for c in hist)]
-            conflicts.append((tags[mid] or mid[:8], heads))
+            conflicts.append((tags[mid], heads))
     posts = Posts(
         log, scope_args[0], scope_args[1], done, digests, all_visits, set(log.demo_kept_out)
     )

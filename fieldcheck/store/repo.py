@@ -42,6 +42,7 @@ from fieldcheck.store.rows import (
     new_id,
     new_ids,
     now,
+    post_ref,
     record_texts,
 )
 from fieldcheck.store.schema import (
@@ -183,6 +184,16 @@ class PostView:
     office_action: int | None = None
     # the stored rating was made by another engine version or other reference data
     older: bool = False
+
+    @property
+    def ref(self) -> str:
+        """The short reference that tells this post from the others (rows.post_ref)."""
+        return post_ref(self.member_id)
+
+    @property
+    def label(self) -> str:
+        """What a person calls the post: its tag, else "untagged" and its reference."""
+        return self.tag or f"untagged {self.ref}"
 
 
 @dataclass(frozen=True)
@@ -1792,9 +1803,9 @@ def _own_device(db: Database, path: Path, dev: str, notices: list[str]) -> str:
         )
     devices.remember(new, path, 0)
     notices.append(
-        f"the survey log {path} writes as a new device from now on ({new[:8]}..., was "
-        f"{dev[:8]}...) because {why}; its earlier posts keep their place and nothing clashes "
-        "when it syncs"
+        f"the survey log {path} writes as a new device from now on (...{post_ref(new)}, was "
+        f"...{post_ref(dev)}) because {why}; its earlier posts keep their place and nothing "
+        "clashes when it syncs"
     )
     return new
 

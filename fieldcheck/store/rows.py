@@ -91,6 +91,17 @@ def new_id() -> str:
     return new_ids(1)[0]
 
 
+REF_DIGITS = 12  # hex digits of a post's reference (post_ref)
+
+
+def post_ref(member_id: str) -> str:
+    """A short reference that tells posts apart: the id's last 12 hex digits. Its head is the
+    time it was made (new_ids), the same for every post saved or imported in the same minute, so
+    a prefix names them all alike; the tail is the counter's low bits and 32 random bits
+    (random throughout in a uuid4 id)."""
+    return member_id[-REF_DIGITS:]
+
+
 # what json.dumps(obj, ensure_ascii=False, separators=(",", ":")) gives, without building an
 # encoder per call (a bulk import writes one record text per post)
 _ENCODE = json.JSONEncoder(ensure_ascii=False, separators=(",", ":")).encode

@@ -20,6 +20,7 @@ from pathlib import Path
 
 from fieldcheck.store.rated import ACTION_LABELS, action_label
 from fieldcheck.store.repo import PostView
+from fieldcheck.store.rows import REF_DIGITS
 
 SORTS = ("worst", "tag", "location", "action", "height", "added")
 # the order an inspector works in: worst action first; "not rated" (NULL) after the rest
@@ -73,7 +74,9 @@ _THESE_MEMBERS = (
 def _build_sql(words: dict[str, str]) -> str:
     from fieldcheck.store.repo import HEAD_ROWID_OF
 
-    # the filter's text is the record as stored (values and names) and the action's words. The
+    # the filter's text is the record as stored (values and names), the post's reference (the
+    # end of its id, rows.post_ref: what the report names an untagged post by) and the action's
+    # words. The
     # action in force (an office override that raises the rating's, else the rating's: {office}
     # is OFFICE_ACTION, or NULL when the log holds no override) sorts, filters and counts; the
     # rating's own action is kept beside it. The sort keys read from the record's JSON (tag,
@@ -101,7 +104,8 @@ SELECT rank, obs_rowid, member_id, id, visit_id, site_id, record_json,
     ratio, action, capacity_n, demand_n, governing, engine_version, created_at, author,
     member_id IN (SELECT value FROM json_each(?)), coalesce(ratio, 9e999),
     {_action_rank_sql().replace("r.action", in_force)},
-    lower(record_json || ' ' || {_action_words_sql(words).replace("r.action", in_force)}),
+    lower(record_json || ' ' || substr(member_id, -{REF_DIGITS}) || ' '
+        || {_action_words_sql(words).replace("r.action", in_force)}),
     office, older
 FROM base
 """

@@ -497,11 +497,14 @@ class ReportDialog(ProgressDialog):
 
 
 def _load_conflicts(log: Any) -> list[tuple[str, str, list[Any]]]:
+    """(member, what a person calls it, its revisions) of every post in conflict."""
+    from fieldcheck.store.rows import post_ref
+
     out = []
     for member in log.conflicts():
         hist = log.history(member)
         tag = next((o.record.get("tag", "") for o in reversed(hist) if o.record.get("tag")), "")
-        out.append((member, tag, hist))
+        out.append((member, tag or f"untagged {post_ref(member)}", hist))
     return out
 
 
@@ -527,9 +530,9 @@ class ConflictsScreen(ReleasesKeys, ModalScreen[None]):
                 f"⚡ {len(rows)} post{'s' if len(rows) != 1 else ''} with two revisions made "
                 "apart (open the post and save the right values to resolve):"
             ]
-            for member, tag, hist in rows:
+            for _, tag, hist in rows:
                 lines.append(
-                    f"  {escape(tag or member[:8])}: {len(hist)} revisions, latest by "
+                    f"  {escape(tag)}: {len(hist)} revisions, latest by "
                     f"{escape(hist[-1].author)} {hist[-1].created_at[:16]}"
                 )
             text = "\n".join(lines)

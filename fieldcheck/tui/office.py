@@ -179,7 +179,7 @@ class OfficeScreen(Screen[None]):
                 action, text = action.strip(), text.strip()
             self._record(post.member_id, kind, text, action)
 
-        self.app.push_screen(ReviewDialog(kind, post.tag or post.member_id[:8]), done)
+        self.app.push_screen(ReviewDialog(kind, post.label), done)
 
     @work(group="office-write", exit_on_error=False)
     async def _record(self, member_id: str, kind: str, text: str, action: str | None) -> None:

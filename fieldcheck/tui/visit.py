@@ -219,7 +219,7 @@ class VisitScreen(ReleasesKeys, Screen[None]):
         with self.app.batch_update():
             table.clear()
             for p in self.posts:
-                tag = p.tag or "—"
+                tag = p.tag or f"— {p.ref}"  # untagged: the reference the report names it by
                 if p.member_id in drafts:
                     tag = "✎ " + tag
                 action = action_cell(p)

@@ -245,3 +245,28 @@ async def test_an_old_demo_in_the_users_log_is_left_out_and_said_once(own_log, u
         assert app.screen.query_one("#visits", DataTable).row_count == 1  # cellar only
         said = [n.message for n in app._notifications]
         assert said.count(DEMO_KEPT_OUT) == 1
+
+
+async def test_untagged_posts_show_the_reference_the_report_names_them_by(own_log, ui) -> None:
+    # posts imported without tags: the list shows each one's reference (the end of its id, which
+    # the report and `fieldcheck review` use), never one shared placeholder (judgement)
+    from textual.widgets import DataTable
+
+    from fieldcheck.store import Log
+
+    own_log.parent.mkdir(parents=True)
+    post = {"size": "4x4", "height": "8ft", "species": "dfl", "grade": "no2", "load": "2000lbf"}
+    with Log.open(own_log) as log:
+        log.import_rows([dict(post) for _ in range(3)], site="9 Birch Lane", visit="cellar")
+        refs = {p.ref for p in log.posts()}
+    app = ui.app(None)
+    app.store.demo = None
+    async with app.run_test(size=(100, 30)) as pilot:
+        await ui.open_visit(app, pilot)
+        table = app.screen.query_one("#posts", DataTable)
+        shown = {str(table.get_row_at(i)[0]) for i in range(table.row_count)}
+        assert shown == {f"— {r}" for r in refs}
+        one = sorted(refs)[1]  # the filter finds a post by its reference, as the report gives it
+        await pilot.press("slash", *one)
+        await ui.settle(app, pilot)
+        assert table.row_count == 1 and str(table.get_row_at(0)[0]) == f"— {one}"
