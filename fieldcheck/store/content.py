@@ -18,7 +18,7 @@ import math
 import sqlite3
 
 from fieldcheck.store.merge import SYNC_TABLES
-from fieldcheck.store.rows import post_ref
+from fieldcheck.store.rows import short_ref
 
 BLOCK = 16  # rows per sealed block: an alteration is placed within 16 rows of one device
 REL_TOL = 1e-6  # the engine's iterative solves may differ in the last digits between batches
@@ -160,7 +160,7 @@ def _post_names(conn, member_ids) -> dict[str, str]:
     out = {}
     for mid in member_ids:
         row = conn.execute("SELECT tag FROM members WHERE id = ?", [mid]).fetchone()
-        out[mid] = f"post {row[0]}" if row and row[0] else f"untagged post {post_ref(mid)}"
+        out[mid] = f"post {row[0]}" if row and row[0] else f"untagged post {short_ref(mid)}"
     return out
 
 
@@ -253,7 +253,7 @@ def _ratings(conn, skip: set[str]) -> list[str]:
         if diff:
             name = _post_names(conn, [r[2]])[r[2]]
             out.append(
-                f"{name}: stored rating ...{post_ref(r[0])} does not match its record rated by "
+                f"{name}: stored rating ...{short_ref(r[0])} does not match its record rated by "
                 f"this engine ({version}, same data editions): {', '.join(diff)} differ (edited by "
                 "hand?)"
             )
@@ -274,7 +274,7 @@ def check_content(conn: sqlite3.Connection) -> list[str]:
         posts = _members_in(conn, table, device, lo, hi)
         who = ", ".join(_post_names(conn, posts).values()) if posts else "no post"
         out.append(
-            f"{table} rows {lo} to {hi} of device ...{post_ref(device)} changed after they were "
+            f"{table} rows {lo} to {hi} of device ...{short_ref(device)} changed after they were "
             f"written ({who}); compare with the office copy"
         )
     return out

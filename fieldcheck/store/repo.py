@@ -42,8 +42,8 @@ from fieldcheck.store.rows import (
     new_id,
     new_ids,
     now,
-    post_ref,
     record_texts,
+    short_ref,
 )
 from fieldcheck.store.schema import (
     MIGRATION_NAMES,
@@ -187,8 +187,8 @@ class PostView:
 
     @property
     def ref(self) -> str:
-        """The short reference that tells this post from the others (rows.post_ref)."""
-        return post_ref(self.member_id)
+        """The short reference that tells this post from the others (rows.short_ref)."""
+        return short_ref(self.member_id)
 
     @property
     def label(self) -> str:
@@ -1803,8 +1803,8 @@ def _own_device(db: Database, path: Path, dev: str, notices: list[str]) -> str:
         )
     devices.remember(new, path, 0)
     notices.append(
-        f"the survey log {path} writes as a new device from now on (...{post_ref(new)}, was "
-        f"...{post_ref(dev)}) because {why}; its earlier posts keep their place and nothing "
+        f"the survey log {path} writes as a new device from now on (...{short_ref(new)}, was "
+        f"...{short_ref(dev)}) because {why}; its earlier posts keep their place and nothing "
         "clashes when it syncs"
     )
     return new

@@ -91,14 +91,14 @@ def new_id() -> str:
     return new_ids(1)[0]
 
 
-REF_DIGITS = 12  # hex digits of a post's reference (post_ref)
+REF_DIGITS = 12  # hex digits of an id's short reference (short_ref)
 
 
-def post_ref(member_id: str) -> str:
-    """A short reference that tells posts apart: the id's last 12 hex digits. Its head is the
-    time it was made (new_ids), the same for every post saved or imported in the same minute, so
-    a prefix names them all alike; the tail is the counter's low bits and 32 random bits
-    (random throughout in a uuid4 id)."""
+def short_ref(member_id: str) -> str:
+    """A short reference that tells posts (visits, devices) apart: the id's last 12 hex digits.
+    Its head is the time it was made (new_ids), the same for every post saved or imported in the
+    same minute, so a prefix names them all alike; the tail is the counter's low bits and 32
+    random bits (random throughout in a uuid4 id)."""
     return member_id[-REF_DIGITS:]
 
 

@@ -75,7 +75,7 @@ def _build_sql(words: dict[str, str]) -> str:
     from fieldcheck.store.repo import HEAD_ROWID_OF
 
     # the filter's text is the record as stored (values and names), the post's reference (the
-    # end of its id, rows.post_ref: what the report names an untagged post by) and the action's
+    # end of its id, rows.short_ref: what the report names an untagged post by) and the action's
     # words. The
     # action in force (an office override that raises the rating's, else the rating's: {office}
     # is OFFICE_ACTION, or NULL when the log holds no override) sorts, filters and counts; the

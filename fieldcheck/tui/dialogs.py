@@ -464,8 +464,12 @@ class ReportDialog(ProgressDialog):
         yield Input("", id="report-path")
 
     def on_mount(self) -> None:
+        from fieldcheck.store.rows import short_ref
+
         path = self.app.store.path  # type: ignore[attr-defined]
-        suffix = f"-{self.visit_id[:8]}" if self.visit_id else ""
+        # each visit its own file: the end of its id (the head is the time, shared by visits
+        # made in the same minute, whose reports would write over each other)
+        suffix = f"-{short_ref(self.visit_id)}" if self.visit_id else ""
         default = (
             (path.parent / f"{path.stem}-report{suffix}.html") if path else Path("report.html")
         )
@@ -498,13 +502,13 @@ class ReportDialog(ProgressDialog):
 
 def _load_conflicts(log: Any) -> list[tuple[str, str, list[Any]]]:
     """(member, what a person calls it, its revisions) of every post in conflict."""
-    from fieldcheck.store.rows import post_ref
+    from fieldcheck.store.rows import short_ref
 
     out = []
     for member in log.conflicts():
         hist = log.history(member)
         tag = next((o.record.get("tag", "") for o in reversed(hist) if o.record.get("tag")), "")
-        out.append((member, tag or f"untagged {post_ref(member)}", hist))
+        out.append((member, tag or f"untagged {short_ref(member)}", hist))
     return out
 
 

@@ -12,7 +12,7 @@ import re
 
 from fieldcheck.cli import main
 from fieldcheck.report.html import render_report
-from fieldcheck.store.rows import new_ids, post_ref
+from fieldcheck.store.rows import new_ids, short_ref
 
 POST = {"size": "4x4", "height": "8ft", "species": "dfl", "grade": "no2", "load": "2000lbf"}
 
@@ -20,7 +20,7 @@ POST = {"size": "4x4", "height": "8ft", "species": "dfl", "grade": "no2", "load"
 def test_ids_made_together_have_distinct_references():
     ids = new_ids(5000)
     assert len({i[:13] for i in ids}) < 5  # the head is the time: shared
-    assert len({post_ref(i) for i in ids}) == 5000
+    assert len({short_ref(i) for i in ids}) == 5000
 
 
 def _untagged(empty_log, n=3):

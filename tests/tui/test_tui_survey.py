@@ -270,3 +270,23 @@ async def test_untagged_posts_show_the_reference_the_report_names_them_by(own_lo
         await pilot.press("slash", *one)
         await ui.settle(app, pilot)
         assert table.row_count == 1 and str(table.get_row_at(0)[0]) == f"— {one}"
+
+
+async def test_each_visit_gets_its_own_default_report_file(db, ui) -> None:
+    # the demo's two visits were made in the same minute: their ids begin alike, and a default
+    # file named by that head made the second visit's report write over the first's (judgement)
+    from textual.widgets import Input
+
+    app = ui.app(db)
+    paths = []
+    async with app.run_test(size=(100, 30)) as pilot:
+        for row in (0, 1):
+            await ui.open_visit(app, pilot, row)
+            await pilot.press("f10")
+            await ui.settle(app, pilot)
+            paths.append(app.screen.query_one("#report-path", Input).value)
+            await pilot.press("escape")
+            await ui.settle(app, pilot)
+            await pilot.press("escape")
+            await ui.settle(app, pilot)
+    assert paths[0] != paths[1], paths
