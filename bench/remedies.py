@@ -46,7 +46,9 @@ def failing_posts(n: int, seed: int = 1):
 def main() -> None:
     pool = failing_posts(N + N // 5)
     rp = rate(pool)
-    b = pool.take(np.flatnonzero((rp.ratio > 1.0) | (rp.action >= 2))[:N])  # 10,000 failing posts
+    # 10,000 failing posts: a ratio over 1 (a post at repair only for a cap or sill nobody
+    # identified is not one: identifying it clears it, remedies.py)
+    b = pool.take(np.flatnonzero(rp.ratio > 1.0)[:N])
     r = rate(b)
     remedies(b.take(np.arange(10)), rate(b.take(np.arange(10))))  # warm caches
     t0 = time.perf_counter()
