@@ -386,10 +386,13 @@ COLUMN = Stage(
             "le/d exceeds the NDS 2018 §3.7.1.4 limit (50, or 75 during construction): brace it "
             "or replace it.",
         ),
+        # a requirement of the NDS not met, not a failure: at least monitor (judgement)
         Flag(
             "end_plate",
-            "End-grain bearing stress exceeds 0.75 Fc*: bear the end on a steel plate (NDS 2018 "
-            "§3.10.1.3).",
+            "End-grain bearing stress exceeds 0.75 Fc* with no steel plate recorded: bear the end "
+            "on one (NDS 2018 §3.10.1.3); until then look at both ends for crushing or brooming "
+            "at every visit.",
+            1,
         ),
         Flag("dry_assumed", "Moisture not measured: dry service (19 % or less) assumed."),
         Flag(

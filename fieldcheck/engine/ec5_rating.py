@@ -518,8 +518,9 @@ EC5_WARNINGS = {
         "this slender is kept to the NDS 2018 §3.7.1.4 limit (judgement): brace it or replace it."
     ),
     "end_plate": (
-        "End-grain bearing stress above 0.75 of the compression strength: bear the end on a "
-        "steel plate (judgement after NDS 2018 §3.10.1.3; EN 1995-1-1 §6.1.4 is checked)."
+        "End-grain bearing stress above 0.75 of the compression strength with no steel plate "
+        "recorded: bear the end on one (judgement after NDS 2018 §3.10.1.3; EN 1995-1-1 §6.1.4 "
+        "is checked); until then look at both ends for crushing or brooming at every visit."
     ),
     "theoretical_k": (
         "Theoretical buckling-length factor used instead of the recommended design value, as "
