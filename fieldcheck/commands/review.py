@@ -17,7 +17,12 @@ DESCRIPTION = (
 
 def add_arguments(p: argparse.ArgumentParser) -> None:
     add_db_option(p)
-    p.add_argument("post", metavar="POST", nargs="?", help="the post's tag or id (or its start)")
+    p.add_argument(
+        "post",
+        metavar="POST",
+        nargs="?",
+        help="the post's tag, its id (or its start), or an untagged post's listed reference",
+    )
     g = p.add_mutually_exclusive_group()
     g.add_argument("--accept", action="store_true", help="accept the rating as it stands")
     g.add_argument(
