@@ -41,6 +41,9 @@ from fieldcheck.engine.result import Check, Rating, duration_factor
 
 TYPES = ("D", "L", "Lr", "S", "R", "W", "E")
 NOMINAL_FIELDS = ("nom_d_n", "nom_l_n", "nom_lr_n", "nom_s_n", "nom_r_n", "nom_w_n", "nom_e_n")
+# what a post's combinations are formed from: the nominal loads, the live and rain loads' CD and
+# the kind of live load (lambda, NDS 2018 Appendix N Table N3)
+LOAD_FIELDS = (*NOMINAL_FIELDS, "cd_l", "cd_r", "live_kind")
 LIVE_KINDS = ("occupancy", "storage", "impact")
 
 

@@ -22,6 +22,7 @@ from fieldcheck.engine import bearing_screen, loads
 from fieldcheck.engine import quantities as q
 from fieldcheck.engine.batch import EC5, LRFD, PostBatch
 from fieldcheck.engine.blocks import filled
+from fieldcheck.engine.combinations import LOAD_FIELDS
 from fieldcheck.engine.customary import LBF
 from fieldcheck.engine.loads import combination_rows
 from fieldcheck.engine.refdata import table
@@ -116,16 +117,7 @@ def load_steps(r: Rating, i: int) -> list[Step]:
 LOADS = Stage(
     name="loads",
     inputs=(
-        "nom_d_n",
-        "nom_l_n",
-        "nom_lr_n",
-        "nom_s_n",
-        "nom_r_n",
-        "nom_w_n",
-        "nom_e_n",
-        "cd_l",
-        "cd_r",
-        "live_kind",
+        *LOAD_FIELDS,
         "method",
         "load_n",
         "cd",

@@ -43,7 +43,7 @@ import numpy as np
 from fieldcheck.engine import combinations, materials, nds, sections
 from fieldcheck.engine import quantities as q
 from fieldcheck.engine.batch import DIMENSION, EC5, LRFD, RECT, TIMBER, PostBatch, make_batch
-from fieldcheck.engine.combinations import NOMINAL_FIELDS
+from fieldcheck.engine.combinations import LOAD_FIELDS, NOMINAL_FIELDS
 from fieldcheck.engine.customary import FT, IN, LBF
 from fieldcheck.engine.rating import FLAGS, action_from, rate
 from fieldcheck.engine.result import ACTIONS, NOT_RATED, Rating
@@ -87,16 +87,7 @@ _KEEP_ON_REPLACE = (
     "construction",
     "load_n",
     # the loads as given: a new post is rated under every combination, as the old one was
-    "nom_d_n",
-    "nom_l_n",
-    "nom_lr_n",
-    "nom_s_n",
-    "nom_r_n",
-    "nom_w_n",
-    "nom_e_n",
-    "cd_l",
-    "cd_r",
-    "live_kind",
+    *LOAD_FIELDS,
     "duration_assumed",
     "end_plate",
     "top_not_wood",
