@@ -31,7 +31,7 @@ raised a post to make-safe-now left the export reading the rating's milder actio
 CSV: a cell of text that begins with ``=``, ``+``, ``-``, ``@``, a tab or a carriage return (and
 is not a plain number) is written with a leading apostrophe, so a spreadsheet shows it as text
 instead of running it as a formula. Optional UTF-8 byte-order mark for spreadsheets that need it.
-JSON: ``{"schema": "fieldcheck-export", "schema_version": 1, "units": ..., "columns": [...],
+JSON: ``{"schema": "fieldcheck-export", "schema_version": 2, "units": ..., "columns": [...],
 "posts": [{...}, ...]}``, numbers as numbers, blanks as null, text as typed.
 """
 
