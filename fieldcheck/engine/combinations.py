@@ -262,6 +262,14 @@ def largest_perp_load(b: PostBatch) -> np.ndarray:
     return b.load_n / np.where(b.method == LRFD, np.minimum(b.lam, 1.0), 1.0)
 
 
+def largest_load(b: PostBatch) -> np.ndarray:
+    """Each post's largest load over its combinations (a load given directly: that load): what
+    a brace restrains it under, whichever combination governs a check."""
+    if used(b):
+        return np.fmax.reduce(_dense(b)[0], axis=0)
+    return b.load_n
+
+
 def largest_load_per_factor(b: PostBatch) -> np.ndarray:
     """Each post's largest load / duration factor over its combinations (CD, lambda; kmod for
     EC5): where a capacity proportional to the factor is largest relative to it (the reference

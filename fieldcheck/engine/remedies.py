@@ -222,7 +222,9 @@ class Remedies:
             if not (a == b or (isinstance(a, float) and np.isnan(a) and np.isnan(b))):
                 changes[f.name] = b.item() if hasattr(b, "item") else b
         v1, v2 = float(self.v1[j]), float(self.v2[j])
-        load = float(src.load_n[0])
+        # the brace's force from the largest load over the combinations, whichever one the post
+        # was rated at (rate --json hands over the governing check's, the report the largest)
+        load = float(combinations.largest_load(src)[0])
         resets = False
         if k == BRACE_WEAK:
             desc = (

@@ -218,3 +218,21 @@ def test_second_post_shares_the_tributary_loads():
     second = [x for x in found if x.kind == "second-post"]
     assert second and second[0].record_changes == {"shared_by": "2"}
     _each_offered_passes(rec, second)
+
+
+def test_brace_force_is_from_the_largest_load_over_the_combinations():
+    # 170 sq ft at D 12, L 49, Lr 36, S 35 psf: the largest ASD combination is ASCE 7 §2.4.1 (4),
+    # D + 0.75L + 0.75Lr = 2,040 + 6,247.5 + 4,590 = 12,877.5 lb (computed by hand); the brace
+    # carries at least 2 % of it, 258 lb (the 2 % rule of the brace remedy, remedies.py), in the
+    # single-post path (rate --json, the editor) and the batch path (the report) alike
+    rec = {
+        "size": "6x6", "height": "16ft", "species": "douglas-fir-larch", "grade": "no2",
+        "method": "asd", "tributary": "170sqft", "dead": "12psf", "live": "49psf",
+        "roof_live": "36psf", "snow": "35psf", "top": "pinned", "bottom": "pinned",
+    }  # fmt: skip
+    parsed = parse_records([rec])
+    r = rate(parsed.batch)
+    single = explain.summary(r, 0)["remedies"]
+    assert single == [x.as_dict() for x in remedies(parsed.batch, r).for_post(0)]
+    brace = [x for x in single if x["kind"].startswith("brace")]
+    assert brace and "(258 lbf)" in brace[0]["description"]
