@@ -23,9 +23,11 @@ capacity:
   under a cap stiff enough to share it (judgement, the description says so).
 - ``replace``: the smallest stock section (4x4 ... 12x12 nominal) and the lowest stock grade
   (No.2, No.1, Select Structural) of the post's species group that passes (douglas-fir-larch
-  when the species is unknown: judgement, common stock); a new, sound post: condition fields
-  back to their defaults; same height, ends, bracing, service and loads (every combination
-  rated, as for the post it replaces). Not for EC5 posts.
+  when the species is unknown: judgement, common stock); a new, sound post set plumb and
+  centred: the condition of its own wood and stance back to the defaults (and cleared from the
+  record, ``REPLACED_CONDITION_COLUMNS``), but not a settling sill, a moving post or crushing in
+  progress, which a new post in the same place still has; same height, ends, bracing, service
+  and loads (every combination rated, as for the post it replaces). Not for EC5 posts.
 
 API: ``remedies(batch, rating=None) -> Remedies`` (arrays for all offered options, sorted by post
 then rank) with ``Remedies.for_post(i) -> list[Remedy]``. Each Remedy has ``changes`` (PostBatch
@@ -110,6 +112,60 @@ _KEEP_ON_REPLACE = (
     "lean_mm",
     "species_code",
     "shared_by",
+    # what is happening around the post, not in its wood: a new post in the same place is still
+    # on a settling sill, still moving, still crushing into its cap or sill (make safe now)
+    "crushing_active",
+    "settling_sill",
+    "post_moving",
+)
+# the record's columns that describe the old post's own wood and how it stands, cleared when it
+# is replaced (a new, sound post set plumb and centred under the load); the other condition
+# columns (crushing, settling_sill, moving) stay, as the fields above do.
+# tests/engine/test_remedies_offered_pass.py checks this against the records' condition columns
+REPLACED_CONDITION_COLUMNS = (
+    "decay_wide",
+    "decay_wide2",
+    "decay_narrow",
+    "decay_narrow2",
+    "decay_at",
+    "decay_margin",
+    "hollow",
+    "hollow_at",
+    "char_wide",
+    "char_wide2",
+    "char_narrow",
+    "char_narrow2",
+    "char_at",
+    "wane",
+    "wane_corners",
+    "notch",
+    "notch_face",
+    "notch_height",
+    "hole",
+    "hole_face",
+    "hole_height",
+    "knot",
+    "knot_face",
+    "slope",
+    "slope_table",
+    "beyond_grade",
+    "split",
+    "split_faces",
+    "split_at",
+    "crushed_end",
+    "bow_weak",
+    "bow_strong",
+    "plumb_weak",
+    "plumb_strong",
+    "offset_weak",
+    "offset_strong",
+    "stress_wave",
+    "stress_wave_path",
+    "stress_wave_sound",
+    "stress_wave_suspect",
+    "stress_wave_advanced",
+    "density",
+    "data_level",
 )
 
 
@@ -274,9 +330,8 @@ class Remedies:
             size, grade = _stock(self.species[j])[0][int(v1)]
             sp = self.species[j]
             desc = (
-                f"Replace with a new {size} {sp} {grade} post (sound, grade-stamped), same "
-                "height, ends and "
-                "bracing."
+                f"Replace with a new {size} {sp} {grade} post (sound, grade-stamped), set plumb "
+                "and centred under the load; same height, ends and bracing."
             )
             rec = {
                 "size": size,
@@ -291,6 +346,7 @@ class Remedies:
                 "sill_bearing": "",
                 "end_contact": "",
                 "incised": "",
+                **dict.fromkeys(REPLACED_CONDITION_COLUMNS, ""),
             }
             resets = True
         return Remedy(
