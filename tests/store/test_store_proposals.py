@@ -105,3 +105,32 @@ def test_marked_only_states_are_the_full_states_that_are_not_as_found(log, visit
     marked = proposals.states(log, visit.id, marked_only=True)
     assert marked == {m: s for m, s in full.items() if s.state != "as found"}
     assert set(marked) == {a.member_id, b.member_id}
+
+
+def test_a_replacement_recorded_as_remedied_rates_as_it_was_offered(log, visit):
+    # the engine's replacement, proposed and carried out the way the interface does it: the new
+    # revision is a sound new post (the old post's decay cleared) and rates as offered; the post
+    # as found keeps its decay (nothing found on site is overwritten)
+    from fieldcheck.engine import explain
+    from fieldcheck.engine.rating import rate
+    from fieldcheck.records import parse_records
+
+    decayed = {**SIX_BY_SIX, "load": "12000 lbf", "decay_wide": "1.5 in", "decay_narrow": "1 in"}
+    decayed |= {"cap_species": "douglas-fir-larch", "sill_species": "douglas-fir-larch"}
+    found = log.save_post(visit.id, decayed)
+    offered = explain.summary(rate(parse_records([found.record]).batch), 0)["remedies"]
+    rep = next(x for x in offered if x["kind"] == "replace")
+    p = log.propose_remedy(
+        found.id,
+        kind=rep["kind"],
+        description=rep["description"],
+        changes=rep["record_changes"],
+        ratio=rep["ratio"],
+    )
+    log.record_remedied(found.member_id, visit.id, proposal_id=p.id)
+    first, now = log.history(found.member_id)
+    assert first.record["decay_wide"] == "1.5 in"
+    assert "decay_wide" not in now.record and "decay_narrow" not in now.record
+    post = log.posts(visit.id)[0]
+    assert post.ratio == pytest.approx(rep["ratio"], abs=5e-5)
+    assert post.action_label == rep["action"]
