@@ -221,7 +221,7 @@ def _text(s: dict, system: str) -> str:
             # the user's units first, as the working (an EC5 post: kN and mm first)
             desc = units_first(rem["description"], "metric" if ec5 else system)
             lines.append(f"  {k}. {desc} Capacity {cap}, ratio {rem['ratio']:.3f}.")
-    elif s.get("remedies_note"):
+    if s.get("remedies_note"):
         lines.append(f"Remedies      {s['remedies_note']}")
     lines.append("")
     lines.extend(f"  * {c}" for c in s["cautions"])

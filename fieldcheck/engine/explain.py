@@ -195,6 +195,12 @@ def remedy_keys(r: Rating, i: int, out: dict, found: remedies.Remedies | None = 
     else:
         j = i
     out["remedies"] = [x.as_dict() for x in found.for_post(j)]
+    if out["remedies"] and int(r.flags[i]) & remedies.UNIDENTIFIED:
+        out["remedies_note"] = (
+            "Identify the cap or sill as well (see the warning): until then a change that "
+            "leaves the load on it as it is leaves the post at repair or brace (each option's "
+            "action says what it leaves)."
+        )
     if not out["remedies"]:
         out["remedies_note"] = (
             "No single change we model makes this post pass (or it has no load): make it safe "

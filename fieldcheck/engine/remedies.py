@@ -564,7 +564,10 @@ def remedies(batch: PostBatch, rating: Rating | None = None) -> Remedies:
         kind=kind[chosen],
         capacity_n=rr.capacity_n[chosen],
         ratio=rr.ratio[chosen],
-        action=rr_act[chosen],
+        # the action the post has once the change is made, as its record will be rated: with an
+        # unidentified cap or sill that is still repair (the option is offered all the same:
+        # identifying the cap or sill clears it)
+        action=rr.action[chosen],
         v1=v1[chosen],
         v2=v2[chosen],
         candidates=cand.take(chosen),

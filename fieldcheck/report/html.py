@@ -621,9 +621,11 @@ def _remedies(d: ReportData, p: PostEntry) -> str:
         else:
             text = str(x)
         items.append(f"<li>{e(text)}</li>")
+    note = p.summary.get("remedies_note")  # an unidentified cap or sill: why options stay at repair
     return (
         f"<h3>Remedies</h3><p class='small muted'>Each option re-rated by the same engine; "
-        f"an engineer chooses and details the work.</p><ol>{''.join(items)}</ol>"
+        f"an engineer chooses and details the work.{' ' + e(note) if note else ''}</p>"
+        f"<ol>{''.join(items)}</ol>"
     )
 
 

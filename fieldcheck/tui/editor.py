@@ -614,6 +614,9 @@ class PostEditor(ReleasesKeys, Screen[None]):
                 f"As found: ratio {present.ratio_text(ratio)}. Enter or ctrl+r proposes the "
                 "highlighted remedy; the post stays recorded and rated as found."
             )
+            note = (self.summary or {}).get("remedies_note")
+            if note:
+                lines.append(note)
         elif ratio is not None and ratio > 1.0:
             lines.append(
                 "No single change modelled makes this post pass: make it safe and ask the engineer."
