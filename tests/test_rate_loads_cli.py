@@ -77,6 +77,12 @@ def test_failing_post_lists_remedies_json_and_text(capsys):
         "no2",
         "--load",
         "6000lbf",
+        # the cap and the sill named: with them unidentified the options stay at repair until
+        # they are (tests/engine/test_remedies_offered_pass.py)
+        "--cap-species",
+        "douglas-fir-larch",
+        "--sill-species",
+        "douglas-fir-larch",
     ]
     assert main([*args, "--json"]) == 0
     out = json.loads(capsys.readouterr().out)
