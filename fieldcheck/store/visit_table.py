@@ -22,6 +22,8 @@ from fieldcheck.store.rated import ACTION_LABELS, action_label
 from fieldcheck.store.repo import PostView
 from fieldcheck.store.rows import REF_DIGITS
 
+REF_MIN = 6  # characters of a filter word that may find a post by its reference
+
 SORTS = ("worst", "tag", "location", "action", "height", "added")
 # the order an inspector works in: worst action first; "not rated" (NULL) after the rest
 _ACTION_RANK = {"make-safe-now": 0, "repair-or-brace": 1, "monitor": 2, "no-action": 3}
@@ -74,9 +76,7 @@ _THESE_MEMBERS = (
 def _build_sql(words: dict[str, str]) -> str:
     from fieldcheck.store.repo import HEAD_ROWID_OF
 
-    # the filter's text is the record as stored (values and names), the post's reference (the
-    # end of its id, rows.short_ref: what the report names an untagged post by) and the action's
-    # words. The
+    # the filter's text is the record as stored (values and names) and the action's words. The
     # action in force (an office override that raises the rating's, else the rating's: {office}
     # is OFFICE_ACTION, or NULL when the log holds no override) sorts, filters and counts; the
     # rating's own action is kept beside it. The sort keys read from the record's JSON (tag,
@@ -104,8 +104,7 @@ SELECT rank, obs_rowid, member_id, id, visit_id, site_id, record_json,
     ratio, action, capacity_n, demand_n, governing, engine_version, created_at, author,
     member_id IN (SELECT value FROM json_each(?)), coalesce(ratio, 9e999),
     {_action_rank_sql().replace("r.action", in_force)},
-    lower(record_json || ' ' || substr(member_id, -{REF_DIGITS}) || ' '
-        || {_action_words_sql(words).replace("r.action", in_force)}),
+    lower(record_json || ' ' || {_action_words_sql(words).replace("r.action", in_force)}),
     office, older
 FROM base
 """
@@ -234,7 +233,10 @@ class VisitTable:
 
     def _hits(self, text: str) -> tuple[str, int]:
         """SQL keeping the posts whose text holds every word of ``text`` (any case), and how
-        many: one scan per new filter text, kept for the pages and counts that follow."""
+        many: one scan per new filter text, kept for the pages and counts that follow. A word of
+        REF_MIN characters or more also finds the post whose reference holds it (the end of its
+        id, rows.short_ref: what the list and the report name an untagged post by); a shorter
+        one would find stray posts among the hex digits ("b3" for the tag B3)."""
         words = [w for w in text.lower().split() if w]
         if not words:
             return "", -1
@@ -243,10 +245,17 @@ class VisitTable:
             esc = [w.replace("\\", "\\\\").replace("%", "\\%").replace("_", "\\_") for w in words]
             with self.conn:
                 self.conn.execute("DELETE FROM visit_hits")
+                ref = f"substr(member_id, -{REF_DIGITS})"
+                one = "hay LIKE ? ESCAPE '\\'"
+                both = f"({one} OR {ref} LIKE ? ESCAPE '\\')"
                 self.conn.execute(
                     "INSERT INTO visit_hits SELECT rowid FROM visit_posts WHERE "
-                    + " AND ".join("hay LIKE ? ESCAPE '\\'" for _ in words),
-                    [f"%{w}%" for w in esc],
+                    + " AND ".join(both if len(w) >= REF_MIN else one for w in words),
+                    [
+                        f"%{e}%"
+                        for w, e in zip(words, esc, strict=True)
+                        for _ in range(2 if len(w) >= REF_MIN else 1)
+                    ],
                 )
             self._hits_for = key
             self._hits_n = self.conn.execute("SELECT count(*) FROM visit_hits").fetchone()[0]

@@ -183,3 +183,21 @@ def test_the_posts_list_marks_ratings_of_an_older_engine(log, shore, older_engin
     log.save_post(res.visit.id, {**shore, "tag": "N1"})
     marks = {p.tag: p.older for p in log.posts(res.visit.id)}
     assert marks == {"P0": True, "P1": True, "N1": False}
+
+
+def test_a_reference_finds_its_post_and_a_short_word_never_finds_stray_ones(log, shore):
+    # an untagged post is listed and reported by the end of its id (rows.short_ref); typing it
+    # finds the post, but a short word such as the tag B3 must not also find the posts whose
+    # hex digits happen to hold "b3" (300 refs of 12 hex digits: nearly sure to, were refs matched
+    # by any word; judgement)
+    untagged = {k: v for k, v in shore.items() if k != "tag"}
+    rows = [{**shore, "tag": "B3"}] + [dict(untagged) for _ in range(300)]
+    res = log.import_rows(rows, "Site", "Visit")
+    vt = VisitTable(log.path, res.visit.id, {})
+    try:
+        assert [p.tag for p in vt.page("tag", "b3", 0, 10)] == ["B3"]
+        some = next(p for p in log.posts(res.visit.id) if not p.tag)
+        for text in (some.ref, some.ref[-6:].upper()):
+            assert [p.member_id for p in vt.page("tag", text, 0, 10)] == [some.member_id]
+    finally:
+        vt.close()
