@@ -249,36 +249,37 @@ def load_at(b: PostBatch, combo: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     return _at_slot(load, slot, flat), _at_slot(fac, slot, flat)
 
 
+def _largest(b: PostBatch, per) -> np.ndarray:
+    """Each post's largest ``per(load, factor)`` over its combinations (NaN where none); a load
+    given directly (and EC5): ``per`` of that load and its own factor."""
+    if not used(b):
+        load, fac = b.load_n, _factor(b)
+    else:
+        load, fac, _, _ = _dense(b)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        got = per(load, fac)
+    return np.fmax.reduce(got, axis=0) if got.ndim == 2 else got
+
+
 def largest_perp_load(b: PostBatch) -> np.ndarray:
     """Each post's largest load for bearing across the grain, which takes no CD (NDS 2018 Table
     2.3.2 footnote): the largest over its combinations; LRFD: load / min(lambda, 1), as the
     bearing checks take lambda (judgement); a load given directly (and EC5): that load."""
-    if used(b):
-        load, fac, _, _ = _dense(b)
-        fac = np.broadcast_to(fac, load.shape)
-        with np.errstate(invalid="ignore", divide="ignore"):
-            per = load / np.where(b.method == LRFD, np.minimum(fac, 1.0), 1.0)
-        return np.fmax.reduce(per, axis=0)
-    return b.load_n / np.where(b.method == LRFD, np.minimum(b.lam, 1.0), 1.0)
+    lrfd = b.method == LRFD
+    return _largest(b, lambda load, fac: load / np.where(lrfd, np.minimum(fac, 1.0), 1.0))
 
 
 def largest_load(b: PostBatch) -> np.ndarray:
     """Each post's largest load over its combinations (a load given directly: that load): what
     a brace restrains it under, whichever combination governs a check."""
-    if used(b):
-        return np.fmax.reduce(_dense(b)[0], axis=0)
-    return b.load_n
+    return _largest(b, lambda load, fac: load)
 
 
 def largest_load_per_factor(b: PostBatch) -> np.ndarray:
     """Each post's largest load / duration factor over its combinations (CD, lambda; kmod for
     EC5): where a capacity proportional to the factor is largest relative to it (the reference
     combination); a load given directly: that load / its factor."""
-    if used(b):
-        load, fac, _, _ = _dense(b)
-        with np.errstate(invalid="ignore", divide="ignore"):
-            return np.fmax.reduce(load / fac, axis=0)
-    return b.load_n / _factor(b)
+    return _largest(b, lambda load, fac: load / fac)
 
 
 def distinct_per_post(b: PostBatch) -> np.ndarray:

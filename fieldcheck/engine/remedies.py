@@ -260,6 +260,9 @@ class Remedies:
     v2: np.ndarray  # pad thickness / brace-both: 1 if the weak axis gets a brace too
     candidates: PostBatch  # the variant of each option
     species: np.ndarray = field(default_factory=lambda: np.array([], dtype=object))  # replace stock
+    # the post's largest load over its combinations, whichever one it was rated at (rate --json
+    # hands over the governing check's, the report the largest): what a brace's force is from
+    largest_n: np.ndarray = field(default_factory=lambda: np.zeros(0))
 
     def __len__(self) -> int:
         return int(self.post.shape[0])
@@ -278,9 +281,7 @@ class Remedies:
             if not (a == b or (isinstance(a, float) and np.isnan(a) and np.isnan(b))):
                 changes[f.name] = b.item() if hasattr(b, "item") else b
         v1, v2 = float(self.v1[j]), float(self.v2[j])
-        # the brace's force from the largest load over the combinations, whichever one the post
-        # was rated at (rate --json hands over the governing check's, the report the largest)
-        load = float(combinations.largest_load(src)[0])
+        load = float(self.largest_n[j])
         resets = False
         if k == BRACE_WEAK:
             desc = (
@@ -572,6 +573,7 @@ def remedies(batch: PostBatch, rating: Rating | None = None) -> Remedies:
         v2=v2[chosen],
         candidates=cand.take(chosen),
         species=spc[chosen],
+        largest_n=combinations.largest_load(sub)[where[chosen]],
     )
 
 
