@@ -18,7 +18,7 @@ import math
 import sqlite3
 
 from fieldcheck.store.merge import SYNC_TABLES
-from fieldcheck.store.rows import short_ref
+from fieldcheck.store.rows import post_label, short_ref
 
 BLOCK = 16  # rows per sealed block: an alteration is placed within 16 rows of one device
 REL_TOL = 1e-6  # the engine's iterative solves may differ in the last digits between batches
@@ -160,7 +160,7 @@ def _post_names(conn, member_ids) -> dict[str, str]:
     out = {}
     for mid in member_ids:
         row = conn.execute("SELECT tag FROM members WHERE id = ?", [mid]).fetchone()
-        out[mid] = f"post {row[0]}" if row and row[0] else f"untagged post {short_ref(mid)}"
+        out[mid] = f"post {post_label(row[0] if row else '', mid)}"
     return out
 
 

@@ -42,6 +42,7 @@ from fieldcheck.store.rows import (
     new_id,
     new_ids,
     now,
+    post_label,
     record_texts,
     short_ref,
 )
@@ -192,8 +193,8 @@ class PostView:
 
     @property
     def label(self) -> str:
-        """What a person calls the post: its tag, else "untagged" and its reference."""
-        return self.tag or f"untagged {self.ref}"
+        """What a person calls the post (rows.post_label)."""
+        return post_label(self.tag, self.member_id)
 
 
 @dataclass(frozen=True)

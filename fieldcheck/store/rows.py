@@ -102,6 +102,11 @@ def short_ref(member_id: str) -> str:
     return member_id[-REF_DIGITS:]
 
 
+def post_label(tag: str, member_id: str) -> str:
+    """What a person calls a post: its tag, else "untagged" and its reference (short_ref)."""
+    return tag or f"untagged {short_ref(member_id)}"
+
+
 # what json.dumps(obj, ensure_ascii=False, separators=(",", ":")) gives, without building an
 # encoder per call (a bulk import writes one record text per post)
 _ENCODE = json.JSONEncoder(ensure_ascii=False, separators=(",", ":")).encode

@@ -502,13 +502,13 @@ class ReportDialog(ProgressDialog):
 
 def _load_conflicts(log: Any) -> list[tuple[str, str, list[Any]]]:
     """(member, what a person calls it, its revisions) of every post in conflict."""
-    from fieldcheck.store.rows import short_ref
+    from fieldcheck.store.rows import post_label
 
     out = []
     for member in log.conflicts():
         hist = log.history(member)
         tag = next((o.record.get("tag", "") for o in reversed(hist) if o.record.get("tag")), "")
-        out.append((member, tag or f"untagged {short_ref(member)}", hist))
+        out.append((member, post_label(tag, member), hist))
     return out
 
 
