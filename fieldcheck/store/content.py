@@ -160,7 +160,7 @@ def _post_names(conn, member_ids) -> dict[str, str]:
     out = {}
     for mid in member_ids:
         row = conn.execute("SELECT tag FROM members WHERE id = ?", [mid]).fetchone()
-        out[mid] = f"post {post_label(row[0] if row else '', mid)}"
+        out[mid] = f"post {row[0]}" if row and row[0] else post_label("", mid)  # untagged <ref>
     return out
 
 
