@@ -322,7 +322,10 @@ def registry() -> Any:
                 folder = _cache_folder()
                 try:
                     _REGISTRY = pint.UnitRegistry(cache_folder=folder)
-                except OSError:  # a cache folder that cannot be written: no cache, same units
+                except Exception:
+                    # a cache folder that cannot be written, or pint's own cache files damaged
+                    # (a pickle cut short by a full disk or a killed process raises pickle's own
+                    # errors): no cache, the same units from pint's definitions
                     _REGISTRY = pint.UnitRegistry(cache_folder=None)
     return _REGISTRY
 

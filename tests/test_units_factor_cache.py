@@ -61,3 +61,28 @@ def test_an_unwritable_cache_folder_still_parses(tmp_path):
         assert abs(got[0] - 2540.0) < 1e-9
     finally:
         ro.chmod(0o700)
+
+
+def test_damaged_pint_cache_files_never_make_a_command_fail(tmp_path):
+    """pint keeps its parsed definitions as pickles beside our table; a pickle cut short (a full
+    disk, a killed process) raised UnpicklingError out of every command that parsed a unit."""
+    want = _run(tmp_path)[:3]
+    folder = tmp_path / "fieldcheck" / "pint"
+    for path in _stored(tmp_path):
+        path.unlink()  # so pint is asked again
+    damaged = [p for p in folder.iterdir() if p.is_file()]
+    assert damaged  # pint wrote its cache there
+    for p in damaged:
+        p.write_bytes(b"\x80\x04garbage")
+    got = _run(tmp_path)
+    assert got[:3] == want and got[3] is True
+    env = {**os.environ, "PYTHONPATH": str(ROOT), "XDG_CACHE_HOME": str(tmp_path)}
+    for path in _stored(tmp_path):
+        path.unlink()
+    for p in folder.glob("*.pickle"):
+        p.write_bytes(b"")
+    rate = "rate --size 4x4 --height 8ft --species douglas-fir-larch --grade no1 --load 3000lbf"
+    argv = [sys.executable, "-m", "fieldcheck", *rate.split()]
+    out = subprocess.run(argv, env=env, capture_output=True, text=True)
+    assert out.returncode in (0, 1), out.stderr
+    assert "Traceback" not in out.stderr
