@@ -51,11 +51,14 @@ def _select(cols: list[str], table: str, where: str) -> str:
 
 
 def _blocks(conn, table: str, device: str, cols: list[str], from_seq: int):
-    """(first seq, last seq, hash) per block of BLOCK rows from ``from_seq`` on."""
+    """(first seq, last seq, hash) per block of BLOCK rows from ``from_seq`` on (the rows
+    fetched a few hundred blocks at a time: one fetch per block cost as much as the hashing)."""
     cur = conn.execute(_select(cols, table, "device_seq >= ?"), [device, from_seq])
     k = cols.index("device_seq")
-    while rows := cur.fetchmany(BLOCK):
-        yield rows[0][k], rows[-1][k], _hash(rows)
+    while rows := cur.fetchmany(256 * BLOCK):
+        for i in range(0, len(rows), BLOCK):
+            part = rows[i : i + BLOCK]
+            yield part[0][k], part[-1][k], _hash(part)
 
 
 # ----------------------------------------------------------------------------- sealing
@@ -97,15 +100,17 @@ def seal(conn: sqlite3.Connection, budget: int = SEAL_BUDGET) -> int:
             # the last block again (it may be partial), with the columns it was sealed with
             block, start = (last[0], last[1]) if last else (0, 1)
             use = json.loads(last[3]) if last else cols
+            named = json.dumps(use)
+            rows = []
             for first, lastseq, h in _blocks(conn, table, device, use, start):
-                conn.execute(
-                    "INSERT OR REPLACE INTO seals VALUES (?, ?, ?, ?, ?, ?, ?)",
-                    [table, device, block, first, lastseq, json.dumps(use), h],
-                )
+                rows.append((table, device, block, first, lastseq, named, h))
                 block += 1
                 done += 1
                 if done * BLOCK >= budget:
-                    return done
+                    break
+            conn.executemany("INSERT OR REPLACE INTO seals VALUES (?, ?, ?, ?, ?, ?, ?)", rows)
+            if done * BLOCK >= budget:
+                return done
     return done
 
 
