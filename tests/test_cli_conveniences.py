@@ -104,6 +104,23 @@ def test_import_from_standard_input_with_json(tmp_path):
     assert "\x1b[" not in p.stderr  # no progress bar or escape codes in a pipe
 
 
+def test_import_names_the_rows_left_out_in_plain_words(tmp_path, capsys):
+    """One bad row: 'row' and 'it', not '1 rows ... those rows'; the bad cell is named by row
+    and column on standard error, and the exit code says not everything went in."""
+    src = tmp_path / "posts.csv"
+    src.write_text(POSTS.replace("P2,6x6,9ft", "P2,6x6,abc"), encoding="utf-8")
+    db = tmp_path / "in.db"
+    argv = ["import", "--db", str(db), str(src), "--site", "S", "--visit", "V", "--quiet"]
+    assert main(argv) == 1
+    out, err = capsys.readouterr()
+    assert "Imported 1 of 2 posts" in out
+    assert "1 row left out, correct it and import it again." in out
+    assert "row 2: height:" in err
+    src.write_text(POSTS.replace("9ft", "abc").replace("8ft", "x"), encoding="utf-8")
+    assert main([*argv[:2], str(tmp_path / "in2.db"), *argv[3:]]) == 1
+    assert "2 rows left out, correct them and import those rows again." in capsys.readouterr().out
+
+
 def test_check_and_rerate_json(demo_db, capsys):
     assert main(["check", "--db", str(demo_db), "--json"]) == 0
     out = json.loads(capsys.readouterr().out)

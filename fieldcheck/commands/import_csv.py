@@ -99,7 +99,13 @@ def run(args: argparse.Namespace) -> int:
         print(
             f"Imported {result.imported} of {result.read} posts into {result.site.name!r}, visit "
             f"{result.visit.name!r} ({log.path})"
-            + (f"; {bad} rows left out, correct them and import those rows again." if bad else ".")
+            + (
+                f"; {bad} row{'s' if bad > 1 else ''} left out, correct "
+                f"{'them' if bad > 1 else 'it'} and import {'those rows' if bad > 1 else 'it'} "
+                "again."
+                if bad
+                else "."
+            )
         )
         # what needs attention, worst first: a post not rated is never passed over in silence
         n = result.actions
