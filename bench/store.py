@@ -16,6 +16,9 @@ distinct-record parse cache does not carry the figure.
 - log tables (not a floor, for reading the ratios): SQLite alone writing the same posts into
   the log's own tables, rows made ready beforehand (``import_*_log_tables_cpu_s``: members,
   observations and ratings; ``rerate_*_log_tables_cpu_s``: ratings alone).
+- rows bare (not a floor either): the three rows each post needs (member, revision, rating, each
+  with its id, device, sequence, author and time) into tables with no type, key, index or CHECK,
+  in memory (``import_*_rows_bare_cpu_s``): the least any log with those rows costs.
 - records (not a floor either): reading every current record as the re-rate does before it
   rates (the heads query, JSON decoding, the records layer's column-wise parse, chunk by chunk;
   ``rerate_*_records_cpu_s``). With the log tables it says how much of ``rerate_ratio`` the
@@ -213,6 +216,45 @@ print("CPU", cpu)
 """
 
 
+# Not a floor either: the rows an import must write for each post (a member, its revision and its
+# rating, with the id, device, sequence, author and time every row records) in a database in
+# memory whose tables have no type, key, index or CHECK at all. The least any log holding those
+# three rows per post costs through Python's sqlite3, before a post is read, parsed or rated.
+ROWS_BARE = """
+import itertools, sqlite3, sys, time
+from fieldcheck.store.repo import _MEMBER_COLS, _OBS_COLS
+from fieldcheck.store.rows import RATING_COLS, dumps, new_ids, now
+sys.path.insert(0, "bench")
+from store import synthetic
+n = int(sys.argv[1])
+con = sqlite3.connect(":memory:")
+tables = (("members", _MEMBER_COLS), ("observations", _OBS_COLS), ("ratings", RATING_COLS))
+for name, cols in tables:
+    con.execute(f"CREATE TABLE {name} ({','.join(cols)})")
+sql = [f"INSERT INTO {t} ({','.join(c)}) VALUES ({','.join('?' * len(c))})" for t, c in tables]
+dev, who, created = new_ids(1)[0], "bench", now()
+rating = ("0.2.1", "stamp", 1000.0, 500.0, 0.5, 0, "compression", 0, None)
+cpu, seq, src = 0.0, 0, synthetic(n)
+con.execute("BEGIN")
+while recs := [{k: v for k, v in r.items() if v} for r in itertools.islice(src, 16384)]:
+    k = len(recs)
+    ids = new_ids(3 * k)
+    s = iter(range(seq + 1, seq + 3 * k + 1))
+    seq += 3 * k
+    m = [(i, "site", r["tag"], dev, next(s), who, created) for i, r in zip(ids[0::3], recs)]
+    o = [(i, mid, "visit", None, 0, "", dumps(r), dev, next(s), who, created)
+         for i, mid, r in zip(ids[1::3], ids[0::3], recs)]
+    g = [(i, oid, *rating, dev, next(s), who, created) for i, oid in zip(ids[2::3], ids[1::3])]
+    t0 = time.process_time()
+    for q, rows in zip(sql, (m, o, g)):
+        con.executemany(q, rows)
+    cpu += time.process_time() - t0
+t0 = time.process_time()
+con.execute("COMMIT")
+print("CPU", cpu + time.process_time() - t0)
+"""
+
+
 # Not a floor: the re-rate's reading of the records, the engine and the inserts left out (the
 # same query, chunks, decoding, parse cache and paused collector as Log.rerate_all).
 RECORDS = """
@@ -311,6 +353,7 @@ def bench(n: int, tmp: Path, repeats: int) -> dict:
     }
     for p in tmp.glob("tables-*"):
         p.unlink()
+    bare = run([PY, "-c", ROWS_BARE, str(n)])
     ratio_imp = statistics.median(a["cpu"] / b["cpu"] for a, b in zip(imp, imp_floor, strict=True))
     exp_ratio = {f: exp[f]["cpu"] / exp_floor[f]["cpu"] for f in exp}
     peaks = [max(r["peak_mb"] for r in imp), rr["peak_mb"], *(r["peak_mb"] for r in exp.values())]
@@ -327,6 +370,7 @@ def bench(n: int, tmp: Path, repeats: int) -> dict:
         "import_log_tables_cpu_s": round(tables["import"]["cpu"], 2),
         "rerate_log_tables_cpu_s": round(tables["rerate"]["cpu"], 2),
         "rerate_records_cpu_s": round(records["cpu"], 2),
+        "import_rows_bare_cpu_s": round(bare["cpu"], 2),
         "export_ratio": round(max(exp_ratio.values()), 2),
         "export_csv_ratio": round(exp_ratio["csv"], 2),
         "export_json_ratio": round(exp_ratio["json"], 2),
