@@ -683,10 +683,17 @@ class Log:
         member_id: str | None = None,
         *,
         allow_errors: bool = False,
+        base: str | None = None,
     ) -> Observation:
         """Store a post as typed: a new member (member_id None) or a new revision superseding the
         member's current head; rated in the same transaction. A record the engine refuses
-        raises ValueError (its first field error) unless ``allow_errors`` (then stored unrated)."""
+        raises ValueError (its first field error) unless ``allow_errors`` (then stored unrated).
+
+        ``base``: the revision the record was edited from (the interface's form). The new
+        revision supersedes it, not whatever is the head by then: when another program (or a
+        sync) wrote a revision of the post since, the post now has two heads, a conflict kept
+        and flagged for the office (``in_conflict``), never one of them written over in
+        silence."""
         rec = clean_record(record)
         result = rated.rate([rec])
         if result.errors and not allow_errors:
@@ -714,6 +721,13 @@ class Log:
                         )
                     ],
                 )
+            elif base is not None:
+                head = self._one("SELECT * FROM observations WHERE id = ?", [base])
+                if head is None or head["member_id"] != member_id:
+                    raise ValueError(
+                        f"revision {base} is not a revision of post {member_id} in this log"
+                    )
+                head = _observation(head)
             else:
                 head = self._head(member_id)
                 if head is None:
@@ -913,6 +927,13 @@ class Log:
         from fieldcheck.store.scratch import ScratchRows
 
         return ScratchRows(columns)
+
+    def in_conflict(self, member_id: str) -> bool:
+        """The member has more than one head (revisions made without seeing each other)."""
+        from fieldcheck.store.conflicts import among
+
+        with self._lock:
+            return bool(among(self.db.conn, [member_id]))
 
     def conflicts(self) -> list[str]:
         """Members with more than one head (revisions made without seeing each other), sorted;

@@ -77,6 +77,20 @@ def clean(record: dict[str, str]) -> dict[str, str]:
     return {k: v for k, v in record.items() if v is not None and str(v).strip()}
 
 
+# a draft of a saved post keeps, beside its fields, the revision it was edited from (no column is
+# named with a leading underscore): a draft restored after another program wrote the post is
+# saved beside that revision as a conflict, never over it
+DRAFT_BASE = "_edited_from"
+
+
+def draft_fields(draft: dict[str, Any]) -> tuple[dict[str, str], str | None]:
+    """A draft's fields and the revision it was edited from (None: a new post, or an older
+    drafts file)."""
+    fields = {k: v for k, v in draft.items() if k != DRAFT_BASE}
+    base = draft.get(DRAFT_BASE)
+    return fields, base if isinstance(base, str) and base else None
+
+
 def capacity_curve(batch: Any, heights_mm: np.ndarray) -> np.ndarray:
     """Capacity (N) of this one post at each height, in one engine call."""
     return np.asarray(capacity_vs_height(batch, heights_mm), dtype=float).reshape(-1)
@@ -103,7 +117,13 @@ class PostEditor(ReleasesKeys, Screen[None]):
     ]
 
     def __init__(
-        self, visit_id: str, member_id: str | None, record: dict[str, str], tag: str = ""
+        self,
+        visit_id: str,
+        member_id: str | None,
+        record: dict[str, str],
+        tag: str = "",
+        *,
+        revision: str | None = None,
     ) -> None:
         super().__init__()
         self.visit_id = visit_id
@@ -121,7 +141,10 @@ class PostEditor(ReleasesKeys, Screen[None]):
         self.material = ""  # the records' material text of the post rated (table, status)
         self.stale = False  # the rating shown is the last valid one
         self.remedies: list[dict[str, Any]] = []  # as listed: ranked, no margin last
-        self.head_id: str | None = None  # the saved revision the form started from / saved as
+        # the saved revision the form shows: the one ``record`` came from (``revision``), then
+        # each one saved; a save supersedes it (Log.save_post base=), so a revision another
+        # program wrote meanwhile is kept beside it as a conflict, not written over
+        self.head_id: str | None = revision if member_id is not None else None
         self.open_proposals: list[Any] = []  # store.proposals.Proposal, newest first
         self.remedy_state: Any = None  # store.proposals.RemedyState of this post
         self.draft_restored = False
@@ -142,9 +165,12 @@ class PostEditor(ReleasesKeys, Screen[None]):
 
     def compose(self) -> ComposeResult:
         draft = self.app.drafts.get(self.draft_key)  # type: ignore[attr-defined]
-        if draft is not None and clean(draft) != self.saved_record:
-            self.record = dict(draft)
+        fields, base = draft_fields(draft) if draft is not None else ({}, None)
+        if draft is not None and clean(fields) != self.saved_record:
+            self.record = dict(fields)
             self.draft_restored = True
+            if base is not None and self.member_id is not None:
+                self.head_id = base  # the draft's edits were made to that revision
         yield Header()
         yield Static("", id="editor-title", classes="title")
         yield Static("", id="review-line", classes="review")  # the office review, if any
@@ -291,6 +317,8 @@ class PostEditor(ReleasesKeys, Screen[None]):
         drafts = self.app.drafts  # type: ignore[attr-defined]
         if self.dirty:
             drafts[self.draft_key] = dict(self.record)
+            if self.member_id is not None and self.head_id is not None:
+                drafts[self.draft_key][DRAFT_BASE] = self.head_id
         elif drafts.pop(self.draft_key, None) is None:
             return
         self.app.drafts_changed()  # type: ignore[attr-defined]
@@ -551,9 +579,7 @@ class PostEditor(ReleasesKeys, Screen[None]):
             ke, symbol = s["buckling_length_factors"][int(s.get("governing_axis") or 1) - 1], "β"
         self._update_static(
             self.query_one("#ends-panel", Static),
-            ends_drawing(
-                rec.get("top") or "pinned", rec.get("bottom") or "pinned", ke, 7, symbol
-            ),
+            ends_drawing(rec.get("top") or "pinned", rec.get("bottom") or "pinned", ke, 7, symbol),
         )
         plot = self.query_one("#plot-panel", Static)
         if self.batch is None or self.rating is None or self.stale:
@@ -676,8 +702,8 @@ class PostEditor(ReleasesKeys, Screen[None]):
             self.query_one("#review-line", Static).update(
                 "Office review: " + present.escape(state.line()), layout=False
             )
-        if hist and member == self.member_id:
-            self.head_id = hist[-1].id
+        if hist and member == self.member_id and self.head_id is None:
+            self.head_id = hist[-1].id  # opened without its revision: the latest
         lines = [f"[b]{len(hist)} revision{'s' if len(hist) != 1 else ''}[/b] (oldest first)"]
         prev: dict[str, str] = {}
         for k, obs in enumerate(hist, 1):
@@ -712,10 +738,14 @@ class PostEditor(ReleasesKeys, Screen[None]):
             if not quiet:
                 self.notify("Nothing changed: no new revision.", markup=False)
             return True
+        base = self.head_id if member is not None else None
+
+        def write(log: Any) -> tuple[Any, bool]:
+            obs = log.save_post(self.visit_id, record, member, allow_errors=True, base=base)
+            return obs, member is not None and log.in_conflict(member)
+
         try:
-            obs = await self.app.store.call(  # type: ignore[attr-defined]
-                lambda log: log.save_post(self.visit_id, record, member, allow_errors=True)
-            )
+            obs, conflict = await self.app.store.call(write)  # type: ignore[attr-defined]
         except Exception as exc:
             self.notify(f"Not saved: {exc}", severity="error", markup=False)
             return False
@@ -728,6 +758,15 @@ class PostEditor(ReleasesKeys, Screen[None]):
         self._title()
         self.load_history()
         tag = record.get("tag", "post")
+        if conflict:
+            self.notify(
+                f"Saved {tag}, but the post was also changed elsewhere (another program or a "
+                "sync) since you opened it: both revisions are kept, marked ⚡ as a conflict for "
+                "the office to settle; see History (F6).",
+                severity="warning",
+                timeout=15,
+                markup=False,
+            )
         if self.stale:
             self.notify(
                 f"Saved {tag} as a new revision, not rated: "

@@ -159,7 +159,11 @@ class OfficeScreen(Screen[None]):
         from fieldcheck.tui.editor import PostEditor
 
         p = row[0]
-        self.app.push_screen(PostEditor(p.visit_id, p.member_id, dict(p.record), tag=p.tag))
+        self.app.push_screen(
+            PostEditor(
+                p.visit_id, p.member_id, dict(p.record), tag=p.tag, revision=p.observation_id
+            )
+        )
 
     def action_review(self, kind: str) -> None:
         row = self._current()

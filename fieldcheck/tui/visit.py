@@ -122,6 +122,10 @@ class VisitScreen(ReleasesKeys, Screen[None]):
         Binding("x", "worst", "Worst", id="worst"),
         Binding("slash", "focus_filter", "Filter", key_display="/", id="focus_filter"),
         Binding("question_mark", "app.help", "Help", show=False, id="help_q2"),
+        # the first and the last post of the whole visit, not of the window of rows the table
+        # holds (priority: before the table's own ctrl+home and ctrl+end)
+        Binding("ctrl+home", "to_end(False)", "First post", show=False, priority=True),
+        Binding("ctrl+end", "to_end(True)", "Last post", show=False, priority=True),
     ]
 
     def __init__(self, visit_id: str) -> None:
@@ -216,7 +220,11 @@ class VisitScreen(ReleasesKeys, Screen[None]):
         self.posts = self.source.page(self.sort_by, text, self.window_start, WINDOW)
         units = self.app.units  # type: ignore[attr-defined]
         drafts = self.app.drafts  # type: ignore[attr-defined]
-        with self.app.batch_update():
+        # the table's own cursor messages while it is emptied and filled (row 0, then the row
+        # selected) are not the user's moves: taken for them, a row-0 message moved the window
+        # back a half window at a time, so the keys never got past the first window and a sort
+        # left the cursor on another post
+        with self.app.batch_update(), self.prevent(DataTable.RowHighlighted):
             table.clear()
             for p in self.posts:
                 tag = p.tag or f"— {p.ref}"  # untagged: the reference the report names it by
@@ -275,7 +283,9 @@ class VisitScreen(ReleasesKeys, Screen[None]):
         table = event.data_table
         row = event.cursor_row
         key = str(event.row_key.value) if event.row_key is not None else None
-        if key is None:
+        if key is None or row != table.cursor_row or not table.is_valid_row_index(row):
+            return  # a message from before the table was last filled
+        if str(table.coordinate_to_cell_key(table.cursor_coordinate).row_key.value) != key:
             return
         if row >= table.row_count - 1 and self.window_start + table.row_count < self.shown:
             self._fill(key, offset=self.window_start + WINDOW // 2)
@@ -320,6 +330,13 @@ class VisitScreen(ReleasesKeys, Screen[None]):
         self.sort_by = SORTS[(SORTS.index(self.sort_by) + 1) % len(SORTS)]
         self._fill(locate=True)
 
+    def action_to_end(self, last: bool) -> None:
+        """The cursor on the first or the last post of the whole visit (as sorted, filtered)."""
+        self._fill(offset=self.shown if last else 0)
+        table = self.query_one("#posts", DataTable)
+        if table.row_count:
+            table.move_cursor(row=table.row_count - 1 if last else 0, animate=False)
+
     def action_worst(self) -> None:
         self.sort_by = "worst"
         self._fill(offset=0)
@@ -336,9 +353,21 @@ class VisitScreen(ReleasesKeys, Screen[None]):
         p = self._current()
         if p is None:
             return
+        if self.source is not None and self.source.refresh():
+            # written since the table was read (another program, a sync): the form starts from
+            # the post as it now stands, never from the copy on screen
+            self._fill(p.member_id, locate=True)
+            p = next((q for q in self.posts if q.member_id == p.member_id), None)
+            if p is None:
+                self.notify("That post was withdrawn meanwhile: the list is up to date now.")
+                return
         from fieldcheck.tui.editor import PostEditor
 
-        self.app.push_screen(PostEditor(self.visit_id, p.member_id, dict(p.record), tag=p.tag))
+        self.app.push_screen(
+            PostEditor(
+                self.visit_id, p.member_id, dict(p.record), tag=p.tag, revision=p.observation_id
+            )
+        )
 
     def action_add_post(self) -> None:
         from fieldcheck.tui.editor import PostEditor
