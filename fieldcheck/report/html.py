@@ -431,7 +431,8 @@ def _conflicts(d: ReportData) -> str:
         out.append(
             f"<h3>\u26a0 {e(tag)}: {len(heads)} revisions made without seeing each other</h3>"
             "<p>Both are kept; the office must choose one (nothing is resolved silently). "
-            "This report rates the newest.</p>"
+            "Until then this report rates the more urgent of them, and a withdrawal never "
+            "hides a revision still standing.</p>"
         )
         out.append(
             table(
@@ -606,8 +607,7 @@ def _remedies(d: ReportData, p: PostEntry) -> str:
     for x in rem:
         if isinstance(x, dict):
             text = units_first(x.get("description") or "", d.units) or (
-                x.get("text")
-                or "; ".join(f"{k}: {v}" for k, v in x.items())
+                x.get("text") or "; ".join(f"{k}: {v}" for k, v in x.items())
             )
             after = []
             if x.get("capacity_kN") is not None:

@@ -783,13 +783,14 @@ class Log:
     def _head(self, member_id: str) -> Observation | None:
         r = self._one(
             "SELECT * FROM observations o WHERE member_id = ? AND " + HEAD + " "
-            "ORDER BY device_seq DESC, id DESC LIMIT 1",
+            f"ORDER BY {HEAD_ORDER.format(h='o')} LIMIT 1",
             [member_id],
         )
         return None if r is None else _observation(r)
 
     def head(self, member_id: str) -> Observation | None:
-        """The current revision of a member (withdrawn or not); None if unknown."""
+        """The current revision of a member (withdrawn or not; of heads in conflict, the one
+        HEAD_ORDER shows); None if unknown."""
         return self._head(member_id)
 
     def history(self, member_id: str) -> list[Observation]:
@@ -1500,13 +1501,23 @@ _RATING_SQL = (
     "SELECT r.*, s.data_editions FROM ratings r LEFT JOIN engine_stamps s ON s.id = r.stamp_id"
 )
 
-# heads: revisions nobody supersedes; the newest head per member (by device_seq, never by clock).
+# heads: revisions nobody supersedes; one head per member (HEAD_ORDER; never by clock).
 # Members are walked in rowid order and each one's head found through the member and supersedes
 # indexes, so the rows stream (no sort, no window over the whole log) and a page or a visit
 # costs what it returns.
 _HEAD_H = HEAD.replace("= o.id", "= h.id")
+# Which head a member shows while it has more than one (a conflict, until the office settles it):
+# a head still standing before a withdrawn one, then the most urgent by its latest rating (make
+# safe now, not rated, repair, monitor, no action: the report's order), then the larger
+# device_seq. A withdrawal made on one laptop never hides a post revised on another, and the
+# lists, the export and the report show the worse of two revisions (judgement), never the one a
+# device counter happens to favour (device_seq is per device: across devices it means nothing).
+_URGENCY_OF = """coalesce((SELECT CASE r.action WHEN 3 THEN 4 WHEN 2 THEN 2 WHEN 1 THEN 1
+    WHEN 0 THEN 0 ELSE 3 END FROM ratings r WHERE r.observation_id = {h}.id
+    ORDER BY r.rowid DESC LIMIT 1), 3)"""
+HEAD_ORDER = "{h}.withdrawn, " + _URGENCY_OF + " DESC, {h}.device_seq DESC, {h}.id DESC"
 HEAD_OF = f"""(SELECT h.id FROM observations h WHERE h.member_id = m.id AND {_HEAD_H}
-    ORDER BY h.device_seq DESC, h.id DESC LIMIT 1)"""
+    ORDER BY {HEAD_ORDER.format(h="h")} LIMIT 1)"""
 # the same head by rowid (a join on it skips the id index)
 HEAD_ROWID_OF = HEAD_OF.replace("SELECT h.id FROM", "SELECT h.rowid FROM", 1)
 NHEADS = f"""(SELECT count(*) FROM observations h WHERE h.member_id = m.id AND {_HEAD_H})"""
