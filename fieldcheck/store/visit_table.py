@@ -27,8 +27,14 @@ REF_MIN = 6  # characters of a filter word that may find a post by its reference
 SORTS = ("worst", "tag", "location", "action", "height", "added")
 # the order an inspector works in: worst action first; "not rated" (NULL) after the rest
 _ACTION_RANK = {"make-safe-now": 0, "repair-or-brace": 1, "monitor": 2, "no-action": 3}
+# worst first, the report's order of urgency (report/model.py URGENCY): make safe now, not rated
+# (unknown is never read as safe), repair, monitor, no action; then the larger ratio. The action
+# in force decides, whatever set it: a post at repair because of decay, at a ratio of 0.02, comes
+# before every post at monitor or no action, whatever their ratios
+_URGENCY = {"make-safe-now": 0, "repair-or-brace": 2, "monitor": 3, "no-action": 4}
+_NOT_RATED_URGENCY = 1
 _ORDER_BY = {
-    "worst": "worst DESC, rank",
+    "worst": "urgency, worst DESC, rank",
     "tag": "tag_key, rank",
     "location": "loc_key, rank",
     "action": "action_key, worst DESC, rank",
@@ -36,7 +42,7 @@ _ORDER_BY = {
     "added": "rank",
 }
 _INDEXES = {  # made when first needed (building one costs about a fifth of the table's copy)
-    "worst": "worst DESC, rank",
+    "worst": "urgency, worst DESC, rank",
     "tag": "tag_key, rank",
     "location": "loc_key, rank",
     "action": "action_key, worst DESC, rank",
@@ -49,6 +55,14 @@ def _action_rank_sql() -> str:
         f"WHEN {i} THEN {_ACTION_RANK.get(label, 9)}" for i, label in enumerate(ACTION_LABELS)
     )
     return f"CASE r.action {whens} ELSE {len(_ACTION_RANK)} END"
+
+
+def _urgency_sql() -> str:
+    whens = " ".join(
+        f"WHEN {i} THEN {_URGENCY.get(label, _NOT_RATED_URGENCY)}"
+        for i, label in enumerate(ACTION_LABELS)
+    )
+    return f"CASE r.action {whens} ELSE {_NOT_RATED_URGENCY} END"
 
 
 def _action_words_sql(words: dict[str, str]) -> str:
@@ -99,10 +113,11 @@ WITH base AS NOT MATERIALIZED (
 )
 INSERT INTO temp.visit_posts (rank, obs_rowid, member_id, observation_id, visit_id, site_id,
     record_json, ratio, action, capacity_n, demand_n, governing, engine_version, revised_at,
-    revised_by, conflict, worst, action_key, hay, office_action, older)
+    revised_by, conflict, worst, urgency, action_key, hay, office_action, older)
 SELECT rank, obs_rowid, member_id, id, visit_id, site_id, record_json,
     ratio, action, capacity_n, demand_n, governing, engine_version, created_at, author,
     member_id IN (SELECT value FROM json_each(?)), coalesce(ratio, 9e999),
+    {_urgency_sql().replace("r.action", in_force)},
     {_action_rank_sql().replace("r.action", in_force)},
     lower(record_json || ' ' || {_action_words_sql(words).replace("r.action", in_force)}),
     office, older
@@ -123,7 +138,8 @@ _COLUMNS = (
     "rank INTEGER PRIMARY KEY, obs_rowid INTEGER, member_id TEXT, observation_id TEXT, "
     "visit_id TEXT, site_id TEXT, record_json TEXT, ratio REAL, "
     "action INTEGER, capacity_n REAL, demand_n REAL, governing TEXT, engine_version TEXT, "
-    "revised_at TEXT, revised_by TEXT, conflict INTEGER, worst REAL, tag_key TEXT, "
+    "revised_at TEXT, revised_by TEXT, conflict INTEGER, worst REAL, urgency INTEGER, "
+    "tag_key TEXT, "
     "loc_key TEXT, action_key INTEGER, height_key TEXT, hay TEXT, office_action INTEGER, "
     "older INTEGER"
 )

@@ -22,8 +22,10 @@ def test_pages_sorts_and_filter_match_the_posts(log, shore):
         posts = log.posts(res.visit.id)
         assert vt.total() == len(posts) == 57
 
-        def worst(p):
-            return -(p.ratio if p.ratio is not None and math.isfinite(p.ratio) else math.inf)
+        def worst(p):  # the report's order of urgency, then the larger ratio
+            urgency = {"make-safe-now": 0, "repair-or-brace": 2, "monitor": 3, "no-action": 4}
+            r = p.ratio if p.ratio is not None and math.isfinite(p.ratio) else math.inf
+            return (urgency.get(p.action_label, 1), -r)
 
         want = [p.member_id for p in sorted(posts, key=worst)]
         got = [p.member_id for k in range(0, 57, 10) for p in vt.page("worst", "", k, 10)]
@@ -199,5 +201,29 @@ def test_a_reference_finds_its_post_and_a_short_word_never_finds_stray_ones(log,
         some = next(p for p in log.posts(res.visit.id) if not p.tag)
         for text in (some.ref, some.ref[-6:].upper()):
             assert [p.member_id for p in vt.page("tag", text, 0, 10)] == [some.member_id]
+    finally:
+        vt.close()
+
+
+def test_worst_first_is_by_the_action_in_force_then_the_ratio(log, shore):
+    # report/model.py URGENCY: make safe now, not rated, repair, monitor, no action; a post at
+    # repair because of its condition (decay: EN 1995-1-1 has no strength for decayed wood,
+    # judgement) comes before every post at monitor or no action, whatever their ratios
+    rows = _posts(shore, 12)
+    rows[3] = {**rows[3], "load": "500lbf", "decay_wide": "40 mm", "decay_at": "bottom"}
+    rows[5] = {k: v for k, v in rows[5].items() if k != "load"}  # not rated: load missing
+    res = log.import_rows(rows, "Site", "Visit")
+    posts = {p.tag: p for p in log.posts(res.visit.id)}
+    decayed = posts["P3"]
+    assert decayed.action_label == "repair-or-brace" and decayed.ratio < 0.5
+    vt = VisitTable(log.path, res.visit.id, {})
+    try:
+        order = [p.tag for p in vt.page("worst", "", 0, 100)]
+        labels = [posts[t].action_label for t in order]
+        rank = {"make-safe-now": 0, "not-rated": 1, "not rated": 1, "repair-or-brace": 2}
+        rank |= {"monitor": 3, "no-action": 4}
+        assert [rank[a] for a in labels] == sorted(rank[a] for a in labels)
+        assert order.index("P5") < order.index("P3")  # not rated before repair
+        assert all(order.index("P3") < order.index(t) for t, p in posts.items() if p.action < 2)
     finally:
         vt.close()
