@@ -4,5 +4,5 @@ A screening aid for a competent person. Local codes, the authority having
 jurisdiction and a licensed engineer govern.
 """
 
-__version__ = "0.2.1"
+__version__ = "0.2.2"
 ENGINE_VERSION = __version__

@@ -81,6 +81,22 @@ def test_rate_fail_on(capsys):
     capsys.readouterr()
 
 
+def test_a_post_with_no_load_is_not_rated_even_when_its_condition_calls_for_repair(capsys):
+    # judgement: decay alone calls for repair, but with the load not known the post may well be
+    # one to make safe now; "not rated: load missing" is the more urgent state (the report's
+    # order), the decay stays said in its warning, and --fail-on counts it as worse than any
+    decayed = [*LIGHT[:-2], "--decay-wide", "40 mm", "--decay-at", "bottom"]
+    assert main([*decayed, "--json"]) == 0
+    out = json.loads(capsys.readouterr().out)
+    assert out["action"] == "not-rated" and out["state"] == "not rated: load missing"
+    assert out.get("due_days") is None
+    assert any("decay" in w.lower() for w in out["warnings"])
+    assert main([*decayed, "--fail-on", "make-safe-now"]) == 3
+    capsys.readouterr()
+    assert main([*decayed, "--load", "1000lbf", "--json"]) == 0  # with its load: rated
+    assert json.loads(capsys.readouterr().out)["action"] == "repair-or-brace"
+
+
 def test_batch_from_standard_input_to_standard_output_with_fail_on():
     p = _run(["rate", "--batch", "-", "--out", "-", "--fail-on", "repair-or-brace"], POSTS)
     assert p.returncode == 3, p.stderr

@@ -281,8 +281,11 @@ def action_from(ratio, flags, le_d_max=None, limit=None) -> np.ndarray:
         at_least(act, 2, le_d_max > limit)
     FLAGS.escalate(act, flags)  # every flag raised lifts the action to its least level
     # no ratio (the load is missing): not rated, a state of its own, unless the condition alone
-    # already calls for repair or making safe (those need no load); never no-action or monitor
+    # already calls for making safe now (that needs no load). Never no-action, monitor or repair:
+    # not rated is the more urgent of those (the report's order), since the load not known may
+    # well make the post one to make safe now; a condition that calls for repair says so in
+    # its warning beside "not rated: load missing" (judgement)
     unrated = np.isnan(ratio)
     if unrated.any():
-        act[unrated & (act < 2)] = NOT_RATED
+        act[unrated & (act < 3)] = NOT_RATED
     return act
