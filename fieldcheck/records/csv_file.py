@@ -101,7 +101,9 @@ class PostsFile:
         self.delimiter = _delimiter(first)
         self.dialect = _DELIMITER_NAMES[self.delimiter]
         text = io.StringIO(first)
-        self._reader = csv.reader(self._chain(text), delimiter=self.delimiter)
+        # strict: a quote opened and never closed is an error, not a cell that swallows every
+        # line after it (rows of posts silently read as one post's notes)
+        self._reader = csv.reader(self._chain(text), delimiter=self.delimiter, strict=True)
         try:
             header = next(self._reader, None)
         except csv.Error as exc:
@@ -203,7 +205,11 @@ class PostsFile:
         """Each data row's cells, checked (blank lines skipped)."""
         reader = self._reader
         width, unnamed = self._width, self._unnamed
+        # a cell running over several lines whose later lines hold this many delimiters holds
+        # rows, not text: an opening quote never closed until a later quote
+        rowlike = max(2, (width - 1) // 2)
         while True:
+            start = reader.line_num + 1  # the line the next row starts on
             try:
                 cells = next(reader)
             except StopIteration:
@@ -212,6 +218,14 @@ class PostsFile:
                 raise self._not_utf8(self._bad_line()) from None
             except csv.Error as exc:
                 line = reader.line_num
+                if "unexpected end of data" in str(exc) or (
+                    "expected after" in str(exc) and line > start
+                ):
+                    raise CsvProblem(
+                        f"{self.name}, line {start}: a quote (\") opened in this row is never "
+                        f"closed, so every line after it would be read into one cell (to line "
+                        f"{line}); close the quote or remove it"
+                    ) from None
                 if "field larger than field limit" in str(exc):
                     raise CsvProblem(
                         f"{self.name}, line {line}: a cell is longer than "
@@ -223,6 +237,16 @@ class PostsFile:
                 ) from None
             if not cells or (len(cells) == 1 and not cells[0].strip()):
                 continue  # a blank line
+            if reader.line_num > start:
+                for cell in cells:
+                    if "\n" in cell and any(
+                        part.count(self.delimiter) >= rowlike for part in cell.splitlines()[1:]
+                    ):
+                        raise CsvProblem(
+                            f"{self.name}, line {start}: a quoted cell runs on to line "
+                            f"{reader.line_num} over what look like further rows (a quote "
+                            "opened and never closed?); close the quote where the cell ends"
+                        )
             if len(cells) > width:
                 raise CsvProblem(
                     f"{self.name}, line {reader.line_num}: {len(cells)} cells but the header "

@@ -107,6 +107,26 @@ def test_ragged_row_refused_with_its_line(tmp_path, capsys):
     _refused(tmp_path, capsys, text, "line 3", "9 cells")
 
 
+def test_a_quote_never_closed_is_refused_not_read_as_one_post(tmp_path, capsys):
+    # common practice, no source: a notes cell opened with a quote and never closed swallowed
+    # every later row into it, so the posts after it (here at 9,000 and 12,000 lbf) vanished
+    head = "tag,size,height,species,grade,load,notes\n"
+    rows = [f"U{i},4x4,8ft,dfl,no2,{load}lbf" for i, load in enumerate((4000, 4000, 9000, 12000))]
+    text = f'{head}{rows[0]},sound\n{rows[1]},"loose wedge at top\n{rows[2]},crushing\n{rows[3]},\n'
+    _refused(tmp_path, capsys, text, "line 3", "never closed")
+    # closed by a later quote, the cell would hold the rows between: refused all the same
+    text = f'{head}{rows[1]},"loose wedge\n{rows[2]},crushing\n{rows[3]},"ok"\n'
+    _refused(tmp_path, capsys, text, "line 2")
+    text = f'{head}{rows[1]},"loose wedge\n{rows[2]},cap,split,"\n{rows[3]},x\n'
+    _refused(tmp_path, capsys, text, "line 2", "further rows")
+    # a quoted cell over two lines of notes, and inch marks, are read as they are
+    ok = f'{head}{rows[0]},"two lines,\nof notes"\nU9,4x4,8\' 4",dfl,no2,1000lbf,"6"" wide"\n'
+    with open_posts(_write(tmp_path / "ok.csv", ok)) as t:
+        got = list(t)
+    assert [r["notes"] for r in got] == ["two lines,\nof notes", '6" wide']
+    assert got[1]["height"] == "8' 4\""
+
+
 def test_oversized_cell_refused_with_its_line(tmp_path, capsys):
     text = f"{HEADER}\n{ROW.format(tag='A')}\n{ROW.format(tag='x' * 200_000)}\n"
     _refused(tmp_path, capsys, text, "line 3", "longer than")
