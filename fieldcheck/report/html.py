@@ -390,7 +390,9 @@ def _open_actions(d: ReportData):
             for p in rows.by_urgency(open=1, action=3)
         )
         yield "</ol></div>"
-    if not rows.count(open=1):
+    if not rows.count():
+        yield "<p>No posts in this report, so nothing here says any post is adequate.</p>"
+    elif not rows.count(open=1):
         yield "<p>No open actions: every post in this report is adequate as found.</p>"
     else:
         yield from table_parts(

@@ -112,6 +112,8 @@ def test_an_empty_visit_says_so(empty_log, parse_html):
     assert "No posts are recorded in this scope" in text
     assert "nothing to decide" in text
     assert "Quiet site" in text and "nothing found" in text
+    # judgement: with no post in it, the report never says every post is adequate
+    assert "adequate" not in text.replace("nothing here says any post is adequate", "")
 
 
 def test_an_empty_log_renders(empty_log):
