@@ -155,7 +155,7 @@ def test_check_says_when_ratings_came_from_an_older_engine(tmp_path, capsys, old
         log.import_rows([{"size": "4x4", "height": "8ft", "load": "1kip"}], "S", "V")
     older_engine(False)
     assert main(["check", "--db", str(db)]) == 0
-    assert "1 posts rated by an older engine" in capsys.readouterr().out
+    assert "1 post rated by an older engine" in capsys.readouterr().out
     assert main(["rerate", "--db", str(db), "--quiet"]) == 0
     capsys.readouterr()
     assert main(["check", "--db", str(db), "--json"]) == 0

@@ -5,6 +5,7 @@ from __future__ import annotations
 import argparse
 
 from fieldcheck.commands.log_option import add_db_option, log_path
+from fieldcheck.commands.wording import count
 
 DESCRIPTION = (
     "Check a survey log without changing it: SQLite's integrity and foreign-key checks, the "
@@ -56,11 +57,15 @@ def run(args: argparse.Namespace) -> int:
         return 0 if not problems else 1
     print(
         f"{path}: schema version {report.schema_version}, "
-        f"{'sound' if not problems else f'{len(problems)} problems'}"
-        + (f", {report.conflicts} posts with conflicting revisions" if report.conflicts else "")
+        f"{'sound' if not problems else count(len(problems), 'problem')}"
         + (
-            f", {older} posts rated by an older engine or older reference data (fieldcheck "
-            "rerate rates them again, keeping the old ratings)"
+            f", {count(report.conflicts, 'post')} with conflicting revisions"
+            if report.conflicts
+            else ""
+        )
+        + (
+            f", {count(older, 'post')} rated by an older engine or older reference data "
+            "(fieldcheck rerate rates them again, keeping the old ratings)"
             if older
             else ""
         )

@@ -6,6 +6,7 @@ import argparse
 import sys
 
 from fieldcheck.commands.log_option import add_db_option, open_log
+from fieldcheck.commands.wording import count
 
 DESCRIPTION = (
     "Write the current posts of a survey log (each post's latest revision, as typed, with its "
@@ -69,5 +70,5 @@ def run(args: argparse.Namespace) -> int:
                 write(sys.stdout)
         n = written[0]
     if to_file:
-        print(f"Exported {n} posts to {args.out}.", file=sys.stderr)
+        print(f"Exported {count(n, 'post')} to {args.out}.", file=sys.stderr)
     return 0

@@ -8,6 +8,7 @@ import sys
 
 from fieldcheck.commands.log_option import add_db_option, find_site, find_visit, log_path, open_log
 from fieldcheck.commands.progress import progress_bar
+from fieldcheck.commands.wording import count
 
 DESCRIPTION = (
     "Write the survey report (a client summary in plain words and the technical record: inputs, "
@@ -99,5 +100,5 @@ def run(args: argparse.Namespace) -> int:
     if draft:
         why = "" if args.draft else "; the log is read-only"
         rev = f"a draft of revision {info.revision}, not counted{why}"
-    print(f"Wrote the report of {n} posts to {path} ({rev}).", file=sys.stderr)
+    print(f"Wrote the report of {count(n, 'post')} to {path} ({rev}).", file=sys.stderr)
     return 0

@@ -5,6 +5,7 @@ from __future__ import annotations
 import argparse
 
 from fieldcheck.commands.log_option import add_db_option, open_log
+from fieldcheck.commands.wording import count
 
 DESCRIPTION = (
     "Re-rate every current post of a survey log through the batch engine in one pass, after an "
@@ -40,7 +41,7 @@ def run(args: argparse.Namespace) -> int:
             print(json.dumps(out, ensure_ascii=False, indent=1))
             return 0 if not res.unrated else 1
         print(
-            f"Re-rated {res.rated} posts in {log.path} with engine {res.engine_version}"
+            f"Re-rated {count(res.rated, 'post')} in {log.path} with engine {res.engine_version}"
             + (
                 f"; {res.unrated} could not be rated (fix their fields in the interface)."
                 if res.unrated

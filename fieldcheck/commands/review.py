@@ -5,6 +5,7 @@ from __future__ import annotations
 import argparse
 
 from fieldcheck.commands.log_option import add_db_option, open_log
+from fieldcheck.commands.wording import count
 
 DESCRIPTION = (
     "Record the office engineer's review of a post (accept the rating, override the action with "
@@ -85,10 +86,8 @@ def run(args: argparse.Namespace) -> int:
             states = log.review_states()
             waiting = [p for p in log.posts(site_id=site_id) if states[p.member_id].awaiting]
             for p in waiting:
-                print(
-                    f"{p.ref}  {p.tag or '-':<10} {p.action_label:<16} awaiting review"
-                )
-            print(f"{len(waiting)} posts await review.")
+                print(f"{p.ref}  {p.tag or '-':<10} {p.action_label:<16} awaiting review")
+            print(f"{count(len(waiting), 'post')} await{'s' if len(waiting) == 1 else ''} review.")
             return 0
         post = _find_post(log, args.post, site_id)
         if args.settle:

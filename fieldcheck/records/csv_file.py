@@ -222,7 +222,7 @@ class PostsFile:
                     "expected after" in str(exc) and line > start
                 ):
                     raise CsvProblem(
-                        f"{self.name}, line {start}: a quote (\") opened in this row is never "
+                        f'{self.name}, line {start}: a quote (") opened in this row is never '
                         f"closed, so every line after it would be read into one cell (to line "
                         f"{line}); close the quote or remove it"
                     ) from None

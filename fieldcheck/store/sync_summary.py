@@ -41,7 +41,9 @@ class SyncSummary:
         return self.rows_sent + self.rows_received
 
     def sentence(self) -> str:
-        if self.moved == 0 and not self.bundles_written:
+        if self.moved == 0 and not self.bundles_written and self.refused:
+            s = f"Nothing moved between this log and {self.office}"
+        elif self.moved == 0 and not self.bundles_written:
             s = f"Already in step with {self.office}: nothing to move"
         else:
             s = f"Sent {self.rows_sent:,} rows"
@@ -52,13 +54,13 @@ class SyncSummary:
                 s += f" ({fmt_tables(self.received)})"
         if self.conflicts:
             s += (
-                f"; {len(self.conflicts)} posts revised in two places without seeing each other "
-                f"await review ({len(self.new_conflicts)} new)"
+                f"; {_n(len(self.conflicts), 'post')} revised in two places without seeing each "
+                f"other await review ({len(self.new_conflicts)} new)"
             )
         if self.refused:
-            s += f"; {len(self.refused)} bundles refused"
+            s += f"; {_n(len(self.refused), 'bundle')} refused"
         if self.skipped:
-            s += f"; {len(self.skipped)} files in the folder skipped (see the warnings)"
+            s += f"; {_n(len(self.skipped), 'file')} in the folder skipped (see the warnings)"
         return s + "."
 
 
@@ -76,3 +78,7 @@ def checkpoint(log) -> None:
     with contextlib.suppress(Exception), locked(log):
         if not getattr(log, "readonly", False):
             log.db.execute("PRAGMA wal_checkpoint(PASSIVE)")
+
+
+def _n(n: int, noun: str) -> str:
+    return f"{n} {noun if n == 1 else noun + 's'}"

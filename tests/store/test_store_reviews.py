@@ -92,7 +92,7 @@ def test_review_command(tmp_path, shore, capsys):
         v = lg.add_visit(lg.add_site("Mill Lane").id, "ann", name="first visit")
         lg.save_post(v.id, dict(shore, tag="P1"))
     assert main(["review", "--db", str(db)]) == 0
-    assert "1 posts await review" in capsys.readouterr().out
+    assert "1 post awaits review" in capsys.readouterr().out
     assert main(["review", "--db", str(db), "P1", "--override", "monitor"]) == 2
     assert "reason" in capsys.readouterr().err
     assert main(["review", "--db", str(db), "P1", "--require-remedy", "add a shore"]) == 0

@@ -102,7 +102,7 @@ def test_report_and_review_from_the_hub(tmp_path, shore, hub_url, monkeypatch, c
     assert main(["review", "--db", hub_url, "--sign-off", "first visit", "--reason", "ok"]) == 0
     assert main(["review", "--db", hub_url]) == 0
     out = capsys.readouterr().out
-    assert "1 posts await review" in out and "P2" in out
+    assert "1 post awaits review" in out and "P2" in out
     html = tmp_path / "r.html"
     assert main(["report", "--db", hub_url, "--out", str(html)]) == 0
     text = html.read_text()
