@@ -23,6 +23,8 @@ from fieldcheck.store.repo import PostView
 from fieldcheck.store.rows import REF_DIGITS
 
 REF_MIN = 6  # characters of a filter word that may find a post by its reference
+# the action words of a post not rated because its load is missing (the list shows them so)
+LOAD_MISSING = "not rated: load missing"
 
 SORTS = ("worst", "tag", "location", "action", "height", "added")
 # the order an inspector works in: worst action first; "not rated" (NULL) after the rest
@@ -90,8 +92,12 @@ _THESE_MEMBERS = (
 def _build_sql(words: dict[str, str]) -> str:
     from fieldcheck.store.repo import HEAD_ROWID_OF
 
-    # the filter's text is the record as stored (values and names) and the action's words. The
-    # action in force (an office override that raises the rating's, else the rating's: {office}
+    # The filter's text (hay) is what the list shows of a post: the record as stored, the
+    # action's words ("load missing" for a post not rated for want of its load) and "untagged"
+    # for a post without a tag, folded by Python's casefold (SQLite's lower() folds ASCII
+    # letters only: "ÉTÉ" never found "été"). The names of the record's fields are in it, but a
+    # filter word of three letters or more never matches them (_word_sql). The action in force
+    # (an office override that raises the rating's, else the rating's: {office}
     # is OFFICE_ACTION, or NULL when the log holds no override) sorts, filters and counts; the
     # rating's own action is kept beside it. The sort keys read from the record's JSON (tag,
     # location, height) are made when that sort is first asked for (_KEYS): a third of the
@@ -119,7 +125,11 @@ SELECT rank, obs_rowid, member_id, id, visit_id, site_id, record_json,
     member_id IN (SELECT value FROM json_each(?)), coalesce(ratio, 9e999),
     {_urgency_sql().replace("r.action", in_force)},
     {_action_rank_sql().replace("r.action", in_force)},
-    lower(record_json || ' ' || {_action_words_sql(words).replace("r.action", in_force)}),
+    fold(record_json || ' ' || {_action_words_sql(words).replace("r.action", in_force)}
+        || CASE WHEN coalesce({in_force}, {len(ACTION_LABELS)}) >= {len(ACTION_LABELS)}
+            AND capacity_n IS NOT NULL AND demand_n IS NULL
+            THEN ' {_q(words.get(LOAD_MISSING, LOAD_MISSING))}' ELSE '' END
+        || CASE WHEN instr(record_json, '"tag":') = 0 THEN ' untagged' ELSE '' END),
     office, older
 FROM base
 """
@@ -161,6 +171,7 @@ class VisitTable:
         self.mark = 0  # observations.rowid read up to
         self.review_mark = 0  # reviews.rowid read up to (an override changes the action shown)
         self.conn.execute("PRAGMA temp_store = MEMORY")
+        self.conn.create_function("fold", 1, _fold, deterministic=True)
         self.conn.execute(f"CREATE TEMP TABLE visit_posts ({_COLUMNS})")
         self.conn.execute("CREATE TEMP TABLE visit_hits (r INTEGER PRIMARY KEY)")
         self._indexed: set[str] = set()
@@ -253,7 +264,7 @@ class VisitTable:
         REF_MIN characters or more also finds the post whose reference holds it (the end of its
         id, rows.short_ref: what the list and the report name an untagged post by); a shorter
         one would find stray posts among the hex digits ("b3" for the tag B3)."""
-        words = [w for w in text.lower().split() if w]
+        words = [w for w in _fold(text).split() if w]
         if not words:
             return "", -1
         key = " ".join(words)
@@ -262,11 +273,14 @@ class VisitTable:
             with self.conn:
                 self.conn.execute("DELETE FROM visit_hits")
                 ref = f"substr(member_id, -{REF_DIGITS})"
-                one = "hay LIKE ? ESCAPE '\\'"
-                both = f"({one} OR {ref} LIKE ? ESCAPE '\\')"
+
+                def match(w: str) -> str:
+                    one = f"{_word_sql(w)} LIKE ? ESCAPE '\\'"
+                    return f"({one} OR {ref} LIKE ? ESCAPE '\\')" if len(w) >= REF_MIN else one
+
                 self.conn.execute(
                     "INSERT INTO visit_hits SELECT rowid FROM visit_posts WHERE "
-                    + " AND ".join(both if len(w) >= REF_MIN else one for w in words),
+                    + " AND ".join(match(w) for w in words),
                     [
                         f"%{e}%"
                         for w, e in zip(words, esc, strict=True)
@@ -348,6 +362,31 @@ class VisitTable:
             f"SELECT {_VIEW_COLS} FROM visit_posts ORDER BY rank DESC LIMIT 1"
         ).fetchall()
         return _view(rows[0]) if rows else None
+
+
+KEY_MASK_MIN = 3  # characters of a filter word from which field names are masked
+
+
+def _word_sql(word: str) -> str:
+    """The text a filter word is looked for in: ``hay``, with the record's field names that
+    hold the word masked ("top" found every post by its field "top", "load" every post with a
+    load); plain ``hay`` for the many words no field name holds, and for a word of one or two
+    letters (the first keys of a word being typed: masking every name holding a "g" would cost
+    a keystroke ten times what it finds)."""
+    sql = "hay"
+    if len(word) < KEY_MASK_MIN:
+        return sql
+    from fieldcheck.records.columns import COLUMNS
+
+    for name in COLUMNS:
+        if word in name:
+            sql = f"replace({sql}, '\"{name}\":', ':')"
+    return sql
+
+
+def _fold(text: object) -> str | None:
+    """Any case alike, in any script (the filter's words and the text they are looked for in)."""
+    return None if text is None else str(text).casefold()
 
 
 def _view(r: tuple) -> PostView:

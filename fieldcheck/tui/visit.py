@@ -50,7 +50,9 @@ def _load_visit(log: Any, visit_id: str) -> dict[str, Any]:
     from fieldcheck.store.visit_table import VisitTable
 
     v = log.visit(visit_id)
-    words = {a: action_word(a) for a in (*ACTION_LABELS, action_label(None))}
+    from fieldcheck.store.visit_table import LOAD_MISSING
+
+    words = {a: action_word(a) for a in (*ACTION_LABELS, action_label(None), LOAD_MISSING)}
     return {
         "visit": v,
         "site": log.site(v.site_id),

@@ -227,3 +227,29 @@ def test_worst_first_is_by_the_action_in_force_then_the_ratio(log, shore):
         assert all(order.index("P3") < order.index(t) for t, p in posts.items() if p.action < 2)
     finally:
         vt.close()
+
+
+def test_the_filter_finds_what_the_list_shows_and_never_the_names_of_fields(log, shore):
+    # common practice, no source: a filter finds the words on screen, in any case and script
+    rows = _posts(shore, 9)
+    rows[1] = {**rows[1], "location": "Cellier ÉTÉ"}
+    rows[2] = {k: v for k, v in rows[2].items() if k != "load"}  # not rated: load missing
+    rows[3] = {k: v for k, v in rows[3].items() if k != "tag"}  # untagged
+    rows[4] = {**rows[4], "notes": "crushing at top"}
+    res = log.import_rows(rows, "Site", "Visit")
+    words = {"not rated: load missing": "? not rated: load missing"}
+    vt = VisitTable(log.path, res.visit.id, words)
+    try:
+        tags = {p.member_id: p.tag for p in log.posts(res.visit.id)}
+
+        def found(text: str) -> set[str]:
+            return {tags[p.member_id] for p in vt.page("tag", text, 0, 100)}
+
+        assert found("été") == found("ÉTÉ") == found("Été") == {"P1"}
+        assert found("load missing") == {"P2"}
+        assert found("untagged") == {""}
+        assert found("top") == {"P4"}  # the note, not every post's field "top"
+        bay = {p.tag for p in log.posts(res.visit.id) if p.location == "north bay"}
+        assert bay and found("north bay") == bay  # the values are found as before
+    finally:
+        vt.close()
