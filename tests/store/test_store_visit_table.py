@@ -31,7 +31,7 @@ def test_pages_sorts_and_filter_match_the_posts(log, shore):
         got = [p.member_id for k in range(0, 57, 10) for p in vt.page("worst", "", k, 10)]
         assert got == want
         by_tag = [p.tag for p in vt.page("tag", "", 0, 100)]
-        assert by_tag == sorted(by_tag, key=str.lower)
+        assert by_tag == [f"P{i}" for i in range(57)]  # natural order: P2 before P10
         # a filter keeps the posts holding every word, any case
         hits = vt.page("tag", "CORE  stair", 0, 100)
         assert {p.tag for p in hits} == {p.tag for p in posts if p.location == "stair core"}
@@ -251,5 +251,18 @@ def test_the_filter_finds_what_the_list_shows_and_never_the_names_of_fields(log,
         assert found("top") == {"P4"}  # the note, not every post's field "top"
         bay = {p.tag for p in log.posts(res.visit.id) if p.location == "north bay"}
         assert bay and found("north bay") == bay  # the values are found as before
+    finally:
+        vt.close()
+
+
+def test_heights_sort_by_length_however_written(log, shore):
+    # common practice, no source: 2.0 m < 7 ft 0 in (2,134 mm) < 2,500 mm < 9 ft < 10 ft
+    heights = ["10ft", "2500 mm", "9ft", "7ft 0in", "2.0 m"]
+    rows = [{**shore, "tag": f"H{i}", "height": h} for i, h in enumerate(heights)]
+    res = log.import_rows(rows, "Site", "Visit")
+    vt = VisitTable(log.path, res.visit.id, {})
+    try:
+        got = [p.record.get("height") for p in vt.page("height", "", 0, 100)]
+        assert got == ["2.0 m", "7ft 0in", "2500 mm", "9ft", "10ft"]
     finally:
         vt.close()
