@@ -25,6 +25,9 @@ from pathlib import Path
 from fieldcheck.records.columns import COLUMNS
 
 DELIMITERS = (",", ";", "\t")
+# a cell an export wrote as text for spreadsheets (report.export_format.neutralise: an apostrophe
+# before what a spreadsheet would run as a formula) reads back as it was: '-10 C is -10 C
+_GUARDED = ("'=", "'+", "'-", "'@", "'\t", "'\r")
 _DELIMITER_NAMES = {",": "comma", ";": "semicolon", "\t": "tab"}
 _SAVE_AS = "save the file as CSV UTF-8 (in a spreadsheet: Save As, CSV UTF-8) and try again"
 
@@ -41,6 +44,10 @@ def header_key(text: str) -> str:
 def _short(text: str, limit: int = 40) -> str:
     text = "".join(ch if ch.isprintable() else "?" for ch in text)
     return text if len(text) <= limit else text[: limit - 3] + "..."
+
+
+def _unguard(cell: str) -> str:
+    return cell[1:] if cell.startswith(_GUARDED) else cell
 
 
 def _delimiter(header_line: str) -> str:
@@ -180,7 +187,7 @@ class PostsFile:
         keep = self._keep
         for cells in self._cells():
             n = len(cells)
-            yield {k: (cells[i] if i < n else "") for i, k in keep}
+            yield {k: _unguard(cells[i]) if i < n else "" for i, k in keep}
 
     def with_ignored(self) -> Iterator[tuple[dict[str, str], list[str]]]:
         """Each row as iterating gives it, with the cells of the ignored columns (``ignored``,
@@ -189,7 +196,7 @@ class PostsFile:
         for cells in self._cells():
             n = len(cells)
             yield (
-                {k: (cells[i] if i < n else "") for i, k in keep},
+                {k: _unguard(cells[i]) if i < n else "" for i, k in keep},
                 [cells[i] if i < n else "" for i in extra],
             )
 
@@ -199,7 +206,7 @@ class PostsFile:
         keep = [(i, k) for i, k in self._keep if k not in drop]
         for cells in self._cells():
             n = len(cells)
-            yield {k: c for i, k in keep if i < n and (c := cells[i]).strip()}
+            yield {k: _unguard(c) for i, k in keep if i < n and (c := cells[i]).strip()}
 
     def _cells(self) -> Iterator[list[str]]:
         """Each data row's cells, checked (blank lines skipped)."""
