@@ -130,11 +130,18 @@ def test_import_names_the_rows_left_out_in_plain_words(tmp_path, capsys):
     assert main(argv) == 1
     out, err = capsys.readouterr()
     assert "Imported 1 of 2 posts" in out
-    assert "1 row left out, correct it and import it again." in out
+    assert "1 row left out: correct it and import a file of the header and that row alone" in out
     assert "row 2: height:" in err
     src.write_text(POSTS.replace("9ft", "abc").replace("8ft", "x"), encoding="utf-8")
     assert main([*argv[:2], str(tmp_path / "in2.db"), *argv[3:]]) == 1
-    assert "2 rows left out, correct them and import those rows again." in capsys.readouterr().out
+    assert "2 rows left out: correct them and import a file of the header and those rows alone" in (
+        capsys.readouterr().out
+    )
+    # the whole file again, corrected, into the same visit: the tags now held twice are named
+    src.write_text(POSTS, encoding="utf-8")
+    assert main(argv) == 0
+    err = capsys.readouterr().err
+    assert "1 tag is now held by more than one post" in err and "(e.g. P1)" in err
 
 
 def test_check_and_rerate_json(demo_db, capsys):

@@ -63,6 +63,8 @@ def run(args: argparse.Namespace) -> int:
         open_log(args) as log,
         progress_bar(args.quiet) as bar,
     ):
+        site = log.find_site(args.site)
+        existed = site is not None and log.find_visit(site.id, args.visit) is not None
         # streamed: the rows go to the log as they are read (memory flat in the file size); a
         # problem found on a later line leaves the log as it was (one transaction)
         try:
@@ -100,13 +102,23 @@ def run(args: argparse.Namespace) -> int:
             f"Imported {result.imported} of {result.read} posts into {result.site.name!r}, visit "
             f"{result.visit.name!r} ({log.path})"
             + (
-                f"; {bad} row{'s' if bad > 1 else ''} left out, correct "
-                f"{'them' if bad > 1 else 'it'} and import {'those rows' if bad > 1 else 'it'} "
-                "again."
+                f"; {bad} row{'s' if bad > 1 else ''} left out: correct "
+                f"{'them' if bad > 1 else 'it'} and import a file of the header and "
+                f"{'those rows' if bad > 1 else 'that row'} alone (the whole file again would add "
+                "its other posts a second time)."
                 if bad
                 else "."
             )
         )
+        if existed and result.imported:  # into a visit that held posts: imported twice?
+            n, tags = log.repeated_tags(result.visit.id)
+            if n:
+                print(
+                    f"fieldcheck: {n} tag{'s are' if n > 1 else ' is'} now held by more than one "
+                    f"post of visit {result.visit.name!r} (e.g. {', '.join(tags)}): if this file "
+                    "was imported before, withdraw the older posts (w in the visit list).",
+                    file=sys.stderr,
+                )
         # what needs attention, worst first: a post not rated is never passed over in silence
         n = result.actions
         said = [

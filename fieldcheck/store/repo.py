@@ -667,6 +667,19 @@ class Log:
             raise ValueError(f"visit {visit_id} is not in this log; choose a visit of a site")
         return _visit(r)
 
+    def repeated_tags(self, visit_id: str, limit: int = 5) -> tuple[int, list[str]]:
+        """Tags held by more than one current post of the visit (a file imported twice, a copy
+        not renamed): how many, and the first ``limit`` of them in natural order."""
+        rows = self.db.conn.execute(
+            f"""SELECT json_extract(o.record_json, '$.tag') AS tag FROM members m
+            JOIN observations o ON o.rowid = {HEAD_ROWID_OF}
+            WHERE m.id IN (SELECT member_id FROM observations WHERE visit_id = ?)
+            AND o.withdrawn = 0 AND tag IS NOT NULL AND tag <> ''
+            GROUP BY tag HAVING count(*) > 1 ORDER BY length(tag), tag""",
+            [visit_id],
+        ).fetchall()
+        return len(rows), [r[0] for r in rows[:limit]]
+
     def find_visit(self, site_id: str, name: str) -> Visit | None:
         r = self._one(
             "SELECT * FROM visits WHERE site_id = ? AND name = ? ORDER BY rowid LIMIT 1",
