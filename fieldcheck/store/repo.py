@@ -1529,10 +1529,16 @@ _URGENCY_OF = """coalesce((SELECT CASE r.action WHEN 3 THEN 4 WHEN 2 THEN 2 WHEN
     WHEN 0 THEN 0 ELSE 3 END FROM ratings r WHERE r.observation_id = {h}.id
     ORDER BY r.rowid DESC LIMIT 1), 3)"""
 HEAD_ORDER = "{h}.withdrawn, " + _URGENCY_OF + " DESC, {h}.device_seq DESC, {h}.id DESC"
-HEAD_OF = f"""(SELECT h.id FROM observations h WHERE h.member_id = m.id AND {_HEAD_H}
-    ORDER BY {HEAD_ORDER.format(h="h")} LIMIT 1)"""
+# A member with one head (nearly every one) takes it without the order's rating lookups: the
+# first query answers only then (coalesce stops at it); the ordered one runs for a conflict.
+_HEAD_OF = """coalesce(
+    (SELECT h.{col} FROM observations h WHERE h.member_id = m.id AND {head}
+        GROUP BY h.member_id HAVING count(*) = 1),
+    (SELECT h.{col} FROM observations h WHERE h.member_id = m.id AND {head}
+        ORDER BY {order} LIMIT 1))"""
+HEAD_OF = _HEAD_OF.format(col="id", head=_HEAD_H, order=HEAD_ORDER.format(h="h"))
 # the same head by rowid (a join on it skips the id index)
-HEAD_ROWID_OF = HEAD_OF.replace("SELECT h.id FROM", "SELECT h.rowid FROM", 1)
+HEAD_ROWID_OF = _HEAD_OF.format(col="rowid", head=_HEAD_H, order=HEAD_ORDER.format(h="h"))
 NHEADS = f"""(SELECT count(*) FROM observations h WHERE h.member_id = m.id AND {_HEAD_H})"""
 _POSTS_SQL = f"""
 SELECT o.id, o.member_id, o.visit_id, o.record_json, {NHEADS} AS nheads, o.created_at,

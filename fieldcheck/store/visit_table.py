@@ -93,8 +93,10 @@ def _build_sql(words: dict[str, str]) -> str:
     # The filter's text (hay) is what the list shows of a post: the record as stored, the
     # action's words ("load missing" for a post not rated for want of its load) and "untagged"
     # for a post without a tag, folded by Python's casefold (SQLite's lower() folds ASCII
-    # letters only: "ÉTÉ" never found "été"). The names of the record's fields are in it, but a
-    # filter word of three letters or more never matches them (_word_sql). The action in force
+    # letters only: "ÉTÉ" never found "été"; a record of ASCII alone, as most are, as many
+    # characters as bytes, takes lower(), the same for it and cheaper). The names of the
+    # record's fields are in it, but a filter word of three letters or more never matches them
+    # (_word_sql). The action in force
     # (an office override that raises the rating's, else the rating's: {office}
     # is OFFICE_ACTION, or NULL when the log holds no override) sorts, filters and counts; the
     # rating's own action is kept beside it. The sort keys read from the record's JSON (tag,
@@ -123,11 +125,13 @@ SELECT rank, obs_rowid, member_id, id, visit_id, site_id, record_json,
     member_id IN (SELECT value FROM json_each(?)), coalesce(ratio, 9e999),
     {_urgency_sql().replace("r.action", in_force)},
     {_action_rank_sql().replace("r.action", in_force)},
-    fold(record_json || ' ' || {_action_words_sql(words).replace("r.action", in_force)}
+    CASE WHEN length(record_json) = length(CAST(record_json AS BLOB)) THEN lower(record_json)
+        ELSE fold(record_json) END
+        || ' ' || lower({_action_words_sql(words).replace("r.action", in_force)}
         || CASE WHEN coalesce({in_force}, {len(ACTION_LABELS)}) >= {len(ACTION_LABELS)}
             AND capacity_n IS NOT NULL AND demand_n IS NULL
-            THEN ' {_q(words.get(LOAD_MISSING, LOAD_MISSING))}' ELSE '' END
-        || CASE WHEN instr(record_json, '"tag":') = 0 THEN ' untagged' ELSE '' END),
+            THEN ' {_q(words.get(LOAD_MISSING, LOAD_MISSING))}' ELSE '' END)
+        || CASE WHEN instr(record_json, '"tag":') = 0 THEN ' untagged' ELSE '' END,
     office, older
 FROM base
 """
