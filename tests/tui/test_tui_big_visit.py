@@ -30,6 +30,14 @@ def _log(own_log) -> None:
         log.import_rows([_post(i) for i in range(1, N + 1)], site="9 Birch Lane", visit="cellar")
 
 
+def _app(own_log, ui):
+    """The app on a log of N posts in one visit (no demo)."""
+    _log(own_log)
+    app = ui.app(None)
+    app.store.demo = None
+    return app
+
+
 def _at(screen, table) -> tuple[int, str]:
     """(position in the whole sorted visit, tag) of the cursor."""
     key = str(table.coordinate_to_cell_key(table.cursor_coordinate).row_key.value)
@@ -50,9 +58,7 @@ async def _open(app, pilot, ui):
 
 async def test_the_keys_reach_every_post_past_the_first_window(own_log, ui) -> None:
     # common practice, no source: a list of any length is walked by the arrow and page keys
-    _log(own_log)
-    app = ui.app(None)
-    app.store.demo = None
+    app = _app(own_log, ui)
     async with app.run_test(size=(100, 30)) as pilot:
         screen, table = await _open(app, pilot, ui)
         table.move_cursor(row=WINDOW - 3)
@@ -80,9 +86,7 @@ async def test_the_keys_reach_every_post_past_the_first_window(own_log, ui) -> N
 
 
 async def test_a_sort_keeps_the_cursor_on_its_post_beyond_the_first_window(own_log, ui) -> None:
-    _log(own_log)
-    app = ui.app(None)
-    app.store.demo = None
+    app = _app(own_log, ui)
     async with app.run_test(size=(100, 30)) as pilot:
         screen, table = await _open(app, pilot, ui)
         screen._fill(offset=WINDOW)
@@ -100,11 +104,9 @@ async def test_a_post_changed_elsewhere_is_opened_as_it_stands_and_never_saved_o
 ) -> None:
     # judgement: a change made by another program (the office, a sync) while the list is open
     # is never written over in silence; two revisions made apart are both kept as a conflict
-    _log(own_log)
+    app = _app(own_log, ui)
     with Log.open(own_log) as log:
         p5 = next(p for p in log.posts() if p.tag == "P005")
-    app = ui.app(None)
-    app.store.demo = None
     async with app.run_test(size=(100, 30)) as pilot:
         _, table = await _open(app, pilot, ui)
         with Log.open(own_log, author="office-pc") as other:  # while the list is open
