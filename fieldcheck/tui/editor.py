@@ -741,8 +741,11 @@ class PostEditor(ReleasesKeys, Screen[None]):
         base = self.head_id if member is not None else None
 
         def write(log: Any) -> tuple[Any, bool]:
+            """The revision saved, and whether this save made the post a conflict (a conflict
+            from before, a sync's, is already marked ⚡ in the list)."""
+            before = member is not None and log.in_conflict(member)
             obs = log.save_post(self.visit_id, record, member, allow_errors=True, base=base)
-            return obs, member is not None and log.in_conflict(member)
+            return obs, not before and member is not None and log.in_conflict(member)
 
         try:
             obs, conflict = await self.app.store.call(write)  # type: ignore[attr-defined]
