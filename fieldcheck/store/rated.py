@@ -55,6 +55,19 @@ def engine_stamp() -> tuple[str, str, str]:
     return sid, ENGINE_VERSION, eds
 
 
+# most urgent first, the report's order (report/model.py URGENCY): make safe now, then not rated
+# (no load, or a field error: unknown is never read as safe), repair, monitor, no action. The
+# head a conflict shows (repo.HEAD_ORDER) and the visit list's worst first rank by it.
+URGENCY = ("make-safe-now", "not rated", "repair-or-brace", "monitor", "no-action")
+
+
+def urgency_sql(action: str) -> str:
+    """SQL: the rank in URGENCY (0 the most urgent) of the action number ``action`` (NULL, 4 or
+    any other number: not rated)."""
+    whens = " ".join(f"WHEN {i} THEN {URGENCY.index(a)}" for i, a in enumerate(ACTION_LABELS))
+    return f"CASE {action} {whens} ELSE {URGENCY.index('not rated')} END"
+
+
 def action_label(action: int | None) -> str:
     if action is None or action == 4:  # 4: engine.rating.NOT_RATED (no load given)
         return "not rated"

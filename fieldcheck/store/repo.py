@@ -1525,10 +1525,12 @@ _HEAD_H = HEAD.replace("= o.id", "= h.id")
 # device_seq. A withdrawal made on one laptop never hides a post revised on another, and the
 # lists, the export and the report show the worse of two revisions (judgement), never the one a
 # device counter happens to favour (device_seq is per device: across devices it means nothing).
-_URGENCY_OF = """coalesce((SELECT CASE r.action WHEN 3 THEN 4 WHEN 2 THEN 2 WHEN 1 THEN 1
-    WHEN 0 THEN 0 ELSE 3 END FROM ratings r WHERE r.observation_id = {h}.id
-    ORDER BY r.rowid DESC LIMIT 1), 3)"""
-HEAD_ORDER = "{h}.withdrawn, " + _URGENCY_OF + " DESC, {h}.device_seq DESC, {h}.id DESC"
+_URGENCY_OF = (
+    f"coalesce((SELECT {rated.urgency_sql('r.action')} FROM ratings r "
+    "WHERE r.observation_id = {h}.id ORDER BY r.rowid DESC LIMIT 1), "
+    f"{rated.URGENCY.index('not rated')})"
+)
+HEAD_ORDER = "{h}.withdrawn, " + _URGENCY_OF + ", {h}.device_seq DESC, {h}.id DESC"
 # A member with one head (nearly every one) takes it without the order's rating lookups: the
 # first query answers only then (coalesce stops at it); the ordered one runs for a conflict.
 _HEAD_OF = """coalesce(

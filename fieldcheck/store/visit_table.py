@@ -19,7 +19,7 @@ import sqlite3
 import urllib.parse
 from pathlib import Path
 
-from fieldcheck.store.rated import ACTION_LABELS, action_label
+from fieldcheck.store.rated import ACTION_LABELS, action_label, urgency_sql
 from fieldcheck.store.repo import PostView
 from fieldcheck.store.rows import REF_DIGITS
 
@@ -30,12 +30,9 @@ LOAD_MISSING = "not rated: load missing"
 SORTS = ("worst", "tag", "location", "action", "height", "added")
 # the order an inspector works in: worst action first; "not rated" (NULL) after the rest
 _ACTION_RANK = {"make-safe-now": 0, "repair-or-brace": 1, "monitor": 2, "no-action": 3}
-# worst first, the report's order of urgency (report/model.py URGENCY): make safe now, not rated
-# (unknown is never read as safe), repair, monitor, no action; then the larger ratio. The action
+# worst first: the report's order of urgency (rated.URGENCY), then the larger ratio. The action
 # in force decides, whatever set it: a post at repair because of decay, at a ratio of 0.02, comes
 # before every post at monitor or no action, whatever their ratios
-_URGENCY = {"make-safe-now": 0, "repair-or-brace": 2, "monitor": 3, "no-action": 4}
-_NOT_RATED_URGENCY = 1
 _ORDER_BY = {
     "worst": "urgency, worst DESC, rank",
     "tag": "k.k, k.r",  # the sorts by a key read from the record join its own table (_KEYS)
@@ -55,14 +52,6 @@ def _action_rank_sql() -> str:
         f"WHEN {i} THEN {_ACTION_RANK.get(label, 9)}" for i, label in enumerate(ACTION_LABELS)
     )
     return f"CASE r.action {whens} ELSE {len(_ACTION_RANK)} END"
-
-
-def _urgency_sql() -> str:
-    whens = " ".join(
-        f"WHEN {i} THEN {_URGENCY.get(label, _NOT_RATED_URGENCY)}"
-        for i, label in enumerate(ACTION_LABELS)
-    )
-    return f"CASE r.action {whens} ELSE {_NOT_RATED_URGENCY} END"
 
 
 def _action_words_sql(words: dict[str, str]) -> str:
@@ -96,9 +85,9 @@ def _build_sql(words: dict[str, str]) -> str:
     # letters only: "ÉTÉ" never found "été"; a record of ASCII alone, as most are, as many
     # characters as bytes, takes lower(), the same for it and cheaper). The names of the
     # record's fields are in it, but a filter word of three letters or more never matches them
-    # (_word_sql). The action in force
-    # (an office override that raises the rating's, else the rating's: {office}
-    # is OFFICE_ACTION, or NULL when the log holds no override) sorts, filters and counts; the
+    # (_word_sql). The action in force (an office override that raises the rating's, else the
+    # rating's: {office} is OFFICE_ACTION, or NULL when the log holds no override) sorts,
+    # filters and counts; the
     # rating's own action is kept beside it. The sort keys read from the record's JSON (tag,
     # location, height) are made when that sort is first asked for (_KEYS): a third of the
     # copy's time, for sorts most visits never use. NOT MATERIALIZED: each row goes straight into
@@ -123,7 +112,7 @@ INSERT INTO temp.visit_posts (rank, obs_rowid, member_id, observation_id, visit_
 SELECT rank, obs_rowid, member_id, id, visit_id, site_id, record_json,
     ratio, action, capacity_n, demand_n, governing, engine_version, created_at, author,
     member_id IN (SELECT value FROM json_each(?)), coalesce(ratio, 9e999),
-    {_urgency_sql().replace("r.action", in_force)},
+    {urgency_sql(in_force)},
     {_action_rank_sql().replace("r.action", in_force)},
     CASE WHEN length(record_json) = length(CAST(record_json AS BLOB)) THEN lower(record_json)
         ELSE fold(record_json) END
@@ -137,13 +126,12 @@ FROM base
 """
 
 
-# the sort keys taken from the record, each made for every row still without it (NULL) when its
-# sort is first asked for, and again for the rows a refresh read
-# (tag and location in natural order, any case: P2 before P10; height by its length, however
-# it was written, a height that does not parse last). Each is kept in a narrow table of its own,
-# visit_key_<sort> (r: the post's rank, k: its key, indexed together), filled for the rows
-# without it when the sort is asked for: an UPDATE of the posts' table rewrote every wide row
-# (about 45 ms for 10,000 posts before a key was worked out).
+# the sort keys taken from the record, made for the rows without one when the sort is first
+# asked for, and again for the rows a refresh read: tag and location in natural order, any case
+# (P2 before P10); height by its length however it was written, one that does not parse last.
+# Each is kept in a narrow table of its own, visit_key_<sort> (r: the post's rank, k: its key,
+# indexed together): an UPDATE of the posts' table rewrote every wide row (about 45 ms for
+# 10,000 posts before a key was worked out).
 _KEYS = {"tag": "tag", "location": "location", "height": "height"}  # sort -> record field
 _UNKNOWN_MM = 1e300  # a height that does not parse sorts after every other
 

@@ -47,11 +47,9 @@ WINDOW = 200  # rows the DataTable holds at a time
 
 def _load_visit(log: Any, visit_id: str) -> dict[str, Any]:
     from fieldcheck.store.rated import ACTION_LABELS, action_label
-    from fieldcheck.store.visit_table import VisitTable
+    from fieldcheck.store.visit_table import LOAD_MISSING, VisitTable
 
     v = log.visit(visit_id)
-    from fieldcheck.store.visit_table import LOAD_MISSING
-
     words = {a: action_word(a) for a in (*ACTION_LABELS, action_label(None), LOAD_MISSING)}
     return {
         "visit": v,
