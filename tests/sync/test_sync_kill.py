@@ -69,12 +69,19 @@ def test_killed_sync_rerun_loses_and_duplicates_nothing(tmp_path, shore, canon, 
     # caught mid-way rather than after the sync has finished. Each rerun that does a killed
     # sync's work measures the sync again, so a machine that was busy at calibration and is idle
     # later (or the reverse) still has its syncs killed mid-way.
-    t0 = time.monotonic()
     env = {**os.environ, "PYTHONPATH": str(ROOT)}
-    subprocess.run(
-        [sys.executable, "-c", _IMPORTS], cwd=ROOT, env=env, capture_output=True, check=True
-    )
-    startup = time.monotonic() - t0
+    imports = [sys.executable, "-c", _IMPORTS]
+    # start-up is the shortest of three runs after an untimed one (which may compile bytecode):
+    # one run taken while the machine was busy measured 0.91 s against 0.3-0.4 s idle, seen in
+    # CI, and every later sleep then outlasted its sync (1 kill of 8); start-up is never measured
+    # again, as the sync is
+    subprocess.run(imports, cwd=ROOT, env=env, capture_output=True, check=True)
+    runs = []
+    for _ in range(3):
+        t0 = time.monotonic()
+        subprocess.run(imports, cwd=ROOT, env=env, capture_output=True, check=True)
+        runs.append(time.monotonic() - t0)
+    startup = min(runs)
     with Log.open(field, author="ann", device="dev-ann") as lg:
         lg.import_rows(_posts(shore, VISIT, "C0-"), "Alder Row", "visit 0")
     whole = _timed_sync(field, office)
